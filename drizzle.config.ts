@@ -1,0 +1,8 @@
+import { defineConfig } from 'drizzle-kit';
+
+// Migrations are generated here and applied by the server itself at start (server/db/migrate.ts).
+export default defineConfig({
+  dialect: 'postgresql',
+  schema: './server/db/schema/index.ts',
+  out: './server/db/migrations',
+});

@@ -1,0 +1,111 @@
+import { count } from 'drizzle-orm';
+import type { Db } from '../server/db/client.js';
+import {
+  auditLog,
+  deliveryPoints,
+  farmRecords,
+  farms,
+  farmSeasonFactors,
+  items,
+  oneTimeTokens,
+  priceObservations,
+  seasons,
+  sessions,
+  settings,
+  users,
+} from '../server/db/schema/index.js';
+import { hashPassword } from '../server/auth/passwords.js';
+import { newToken } from '../server/core/ids.js';
+import { buildDemoCoop, DEMO_ACCOUNTS, DEMO_PASSWORD } from './demo-coop.js';
+
+export async function isDatabaseEmpty(db: Db): Promise<boolean> {
+  const [{ n }] = await db.select({ n: count() }).from(users);
+  return Number(n) === 0;
+}
+
+/** Deletes every row of every table (keeps the schema). */
+export async function clearDatabase(db: Db) {
+  await db.transaction(async (tx) => {
+    for (const t of [auditLog, sessions, oneTimeTokens, farmRecords, farmSeasonFactors, priceObservations, farms, users, items, seasons, deliveryPoints, settings]) {
+      await tx.delete(t);
+    }
+  });
+}
+
+function chunks<T>(rows: T[], size = 500): T[][] {
+  const out: T[][] = [];
+  for (let i = 0; i < rows.length; i += size) out.push(rows.slice(i, i + size));
+  return out;
+}
+
+/** Loads the invented demo co-op in one transaction. */
+export async function loadDemoCoop(db: Db) {
+  const demo = buildDemoCoop();
+  const demoHash = await hashPassword(DEMO_PASSWORD);
+  // Other members cannot sign in until they ask for a reset link: one hash of a discarded random secret.
+  const lockedHash = await hashPassword(newToken());
+  await db.transaction(async (tx) => {
+    await tx.insert(settings).values({ key: 'coop', value: demo.settings });
+    const accounts = [
+      ...DEMO_ACCOUNTS.map((a) => ({ ...a, passwordHash: demoHash })),
+      ...demo.farms.slice(1).map((f) => ({ email: f.ownerEmail, name: f.ownerName, role: 'member' as const, passwordHash: lockedHash })),
+    ];
+    const userRows = await tx.insert(users).values(accounts).returning({ id: users.id, email: users.email });
+    const userId = new Map(userRows.map((u) => [u.email, u.id]));
+    const itemRows = await tx
+      .insert(items)
+      .values(
+        demo.items.map((i) => ({
+          code: i.code,
+          name: i.name,
+          role: i.role,
+          category: i.category,
+          unit: i.unit,
+          nPct: i.nPct ?? null,
+          p2o5Pct: i.p2o5Pct ?? null,
+          k2oPct: i.k2oPct ?? null,
+        })),
+      )
+      .returning({ id: items.id, code: items.code });
+    const itemId = new Map(itemRows.map((r) => [r.code, r.id]));
+    const seasonRows = await tx.insert(seasons).values(demo.seasons).returning({ id: seasons.id, label: seasons.label });
+    const seasonId = new Map(seasonRows.map((r) => [r.label, r.id]));
+    const dpRows = await tx.insert(deliveryPoints).values(demo.deliveryPoints).returning({ id: deliveryPoints.id, name: deliveryPoints.name });
+    const dpId = new Map(dpRows.map((r) => [r.name, r.id]));
+    const farmRows = await tx
+      .insert(farms)
+      .values(demo.farms.map((f) => ({ code: f.code, name: f.name, region: f.region, landHa: f.landHa, ownerUserId: userId.get(f.ownerEmail)! })))
+      .returning({ id: farms.id, code: farms.code });
+    const farmId = new Map(farmRows.map((r) => [r.code, r.id]));
+    for (const part of chunks(demo.prices)) {
+      await tx.insert(priceObservations).values(
+        part.map((p) => ({
+          itemId: itemId.get(p.item)!,
+          seasonId: seasonId.get(p.season)!,
+          deliveryPointId: dpId.get(p.deliveryPoint)!,
+          price: p.price,
+          currency: demo.settings.currency,
+          source: p.source,
+          observedOn: p.observedOn,
+        })),
+      );
+    }
+    for (const part of chunks(demo.records)) {
+      await tx
+        .insert(farmRecords)
+        .values(part.map((r) => ({ farmId: farmId.get(r.farm)!, seasonId: seasonId.get(r.season)!, itemId: itemId.get(r.item)!, quantity: r.quantity })));
+    }
+    for (const part of chunks(demo.land)) {
+      await tx
+        .insert(farmSeasonFactors)
+        .values(part.map((l) => ({ farmId: farmId.get(l.farm)!, seasonId: seasonId.get(l.season)!, factor: 'land_ha', value: l.landHa })));
+    }
+  });
+}
+
+/** Loads the demo only into an empty database; answers whether it did. */
+export async function seedDemoIfEmpty(db: Db): Promise<boolean> {
+  if (!(await isDatabaseEmpty(db))) return false;
+  await loadDemoCoop(db);
+  return true;
+}

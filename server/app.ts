@@ -1,0 +1,106 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import cookieParser from 'cookie-parser';
+import express, { Router } from 'express';
+import helmet from 'helmet';
+import { pinoHttp } from 'pino-http';
+import { pino } from 'pino';
+import type { AppContext } from './context.js';
+import { errorHandler, notFoundHandler } from './core/error-handler.js';
+import { mountRoutes, type MountedRoute, type RouteDef } from './core/routes.js';
+import { csrfProtection } from './auth/csrf.js';
+import { loadSession } from './auth/session.js';
+import { authRoutes } from './auth/auth-router.js';
+import { usersRoutes } from './users/users-router.js';
+import { farmsRoutes } from './farms/farms-router.js';
+import { settingsRoutes } from './settings/settings-router.js';
+import { summaryRoutes } from './summary/summary-router.js';
+import { auditRoutes } from './audit/audit-router.js';
+import { devMailRoutes } from './mail/dev-mail-router.js';
+import { VERSION } from './version.js';
+
+export interface NetputApp extends express.Express {
+  /** Every API route with its access rule, as mounted. */
+  routeTable: MountedRoute[];
+}
+
+/** Builds the Express app around a context; only main.ts listens. */
+export function createApp(ctx: AppContext): NetputApp {
+  const app = express() as NetputApp;
+  const table: MountedRoute[] = [];
+  app.routeTable = table;
+  app.disable('x-powered-by');
+  app.set('trust proxy', process.env.TRUST_PROXY ?? 'loopback');
+
+  app.use(
+    pinoHttp({
+      logger: pino({ level: ctx.config.logLevel }),
+      autoLogging: { ignore: (req) => !req.url?.startsWith('/api') },
+      redact: ['req.headers.cookie', 'res.headers["set-cookie"]'],
+    }),
+  );
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          // Angular's production build has no inline scripts; AG Grid's theming injects <style>.
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          frameSrc: ["'self'"],
+          upgradeInsecureRequests: ctx.config.secureCookies ? [] : null,
+        },
+      },
+      strictTransportSecurity: ctx.config.secureCookies,
+    }),
+  );
+
+  const api = Router();
+  api.use(express.json({ limit: '1mb' }));
+  api.use(cookieParser());
+  api.use(loadSession(ctx.db));
+  api.use(csrfProtection(ctx.config.secureCookies));
+
+  const mount = (prefix: string, defs: RouteDef[]) => {
+    const router = Router();
+    mountRoutes(
+      router,
+      `/api${prefix}`,
+      defs.filter((d) => !d.devOnly || ctx.config.dev),
+      table,
+    );
+    api.use(prefix, router);
+  };
+  mount('', [
+    {
+      method: 'get',
+      path: '/health',
+      access: 'public',
+      handler: (_req, res) => res.json({ status: 'ok', version: VERSION, database: ctx.dbKind }),
+    },
+    ...farmsRoutes(ctx),
+  ]);
+  mount('/auth', authRoutes(ctx));
+  mount('/users', usersRoutes(ctx));
+  mount('/settings', settingsRoutes(ctx));
+  mount('/summary', summaryRoutes(ctx));
+  mount('/audit', auditRoutes(ctx));
+  mount('/dev/mail', devMailRoutes(ctx));
+  api.use(notFoundHandler);
+  api.use(errorHandler);
+  app.use('/api', api);
+
+  // The built Angular app, with the SPA fallback for client routes.
+  const index = path.join(ctx.config.appDir, 'index.html');
+  if (fs.existsSync(index)) {
+    app.use(express.static(ctx.config.appDir, { index: false, maxAge: '1h' }));
+    app.get('/{*splat}', (_req, res) => {
+      res.setHeader('Cache-Control', 'no-cache');
+      res.sendFile(index);
+    });
+  }
+  app.use(errorHandler);
+  return app;
+}

@@ -1,0 +1,106 @@
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import { z } from 'zod';
+import { loginSchema, passwordResetRequestSchema, setPasswordSchema } from '../../shared/schemas.js';
+import type { RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
+import { AppError } from '../core/app-error.js';
+import type { AppContext } from '../context.js';
+import { passwordResetMail } from '../mail/templates.js';
+import { getSettings } from '../settings/settings-service.js';
+import { checkCredentials, findUserByEmail, issueToken, meOf, redeemToken, RESET_HOURS, tokenInfo } from './auth-service.js';
+import { endSession, SESSION_COOKIE, startSession } from './session.js';
+
+const tokenParams = z.object({ token: z.string().min(20).max(100).regex(/^[A-Za-z0-9_-]+$/, 'Not a valid link') });
+
+/** Sends a reset link when the account exists; callers answer the same either way. */
+export async function sendPasswordReset(ctx: AppContext, userId: number, email: string, name: string) {
+  const token = await issueToken(ctx.db, userId, 'reset');
+  const { coopName } = await getSettings(ctx.db);
+  await ctx.mailer.send(passwordResetMail(email, name, `${ctx.config.publicUrl}/reset/${token}`, coopName, RESET_HOURS));
+}
+
+export function authRoutes(ctx: AppContext): RouteDef[] {
+  // Per client address and e-mail: 10 attempts in 15 minutes (the account lockout covers spread-out guessing).
+  const loginLimiter = rateLimit({
+    windowMs: 15 * 60_000,
+    limit: 10,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String((req.body as { email?: unknown })?.email ?? '').toLowerCase().slice(0, 254)}`,
+    handler: (_req, _res, next) => next(new AppError(429, 'rate_limited', 'Too many sign-in attempts; wait 15 minutes and try again')),
+  });
+  const resetLimiter = rateLimit({
+    windowMs: 15 * 60_000,
+    limit: 5,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    handler: (_req, _res, next) => next(new AppError(429, 'rate_limited', 'Too many requests; wait 15 minutes and try again')),
+  });
+  const secure = ctx.config.secureCookies;
+
+  return [
+    { method: 'get', path: '/csrf', access: 'public', handler: (_req, res) => res.status(204).end() },
+    {
+      method: 'post',
+      path: '/login',
+      access: 'public',
+      handler: async (req, res, next) => {
+        await new Promise<void>((resolve, reject) => loginLimiter(req, res, (err?: unknown) => (err ? reject(err) : resolve())));
+        if (res.headersSent) return;
+        const body = parse(loginSchema, req.body, 'body');
+        const userId = await checkCredentials(ctx.db, body.email, body.password);
+        await endSession(ctx.db, req.sessionId);
+        await startSession(ctx.db, res, userId, req.get('user-agent'), secure);
+        res.json({ user: await meOf(ctx.db, userId) });
+      },
+    },
+    {
+      method: 'post',
+      path: '/logout',
+      access: 'signed-in',
+      handler: async (req, res) => {
+        await endSession(ctx.db, req.sessionId);
+        res.clearCookie(SESSION_COOKIE, { path: '/' });
+        res.status(204).end();
+      },
+    },
+    { method: 'get', path: '/me', access: 'signed-in', handler: async (req, res) => res.json(await meOf(ctx.db, req.user!.id)) },
+    {
+      method: 'post',
+      path: '/password-reset',
+      access: 'public',
+      handler: async (req, res) => {
+        await new Promise<void>((resolve, reject) => resetLimiter(req, res, (err?: unknown) => (err ? reject(err) : resolve())));
+        if (res.headersSent) return;
+        const { email } = parse(passwordResetRequestSchema, req.body, 'body');
+        const user = await findUserByEmail(ctx.db, email);
+        if (user?.active) {
+          await sendPasswordReset(ctx, user.id, user.email, user.name).catch((err: unknown) => req.log?.error({ err }, 'reset mail failed'));
+        }
+        res.status(202).json({ message: 'If an account exists for this address, a link to choose a new password is on its way.' });
+      },
+    },
+    {
+      method: 'get',
+      path: '/tokens/:token',
+      access: 'public',
+      handler: async (req, res) => {
+        const { token } = parse(tokenParams, req.params, 'params');
+        res.json(await tokenInfo(ctx.db, token));
+      },
+    },
+    {
+      method: 'post',
+      path: '/tokens/:token',
+      access: 'public',
+      handler: async (req, res) => {
+        const { token } = parse(tokenParams, req.params, 'params');
+        const { password } = parse(setPasswordSchema, req.body, 'body');
+        const userId = await redeemToken(ctx.db, token, password);
+        await endSession(ctx.db, req.sessionId);
+        await startSession(ctx.db, res, userId, req.get('user-agent'), secure);
+        res.json({ user: await meOf(ctx.db, userId) });
+      },
+    },
+  ];
+}

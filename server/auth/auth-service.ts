@@ -1,0 +1,127 @@
+import { and, eq, isNull, sql } from 'drizzle-orm';
+import type { Me, TokenInfo } from '../../shared/api-types.js';
+import type { Db } from '../db/client.js';
+import { farms, oneTimeTokens, sessions, users } from '../db/schema/index.js';
+import { AppError } from '../core/app-error.js';
+import { newToken, sha256 } from '../core/ids.js';
+import { recordAudit } from '../audit/audit-repository.js';
+import { dummyPasswordHash, hashPassword, verifyPassword } from './passwords.js';
+
+/** After this many wrong passwords in a row the account is locked for LOCK_MINUTES. */
+export const MAX_FAILED_SIGN_INS = 10;
+export const LOCK_MINUTES = 15;
+export const INVITE_DAYS = 7;
+export const RESET_HOURS = 2;
+
+export async function meOf(db: Db, userId: number): Promise<Me> {
+  const [row] = await db
+    .select({ id: users.id, email: users.email, name: users.name, role: users.role, farmId: farms.id })
+    .from(users)
+    .leftJoin(farms, eq(farms.ownerUserId, users.id))
+    .where(eq(users.id, userId));
+  if (!row) throw AppError.notFound('The account');
+  return { ...row, farmId: row.farmId ?? null };
+}
+
+const WRONG = 'The e-mail address or the password is wrong';
+
+/** Checks a password; counts failures and locks the account after too many in a row. */
+export async function checkCredentials(db: Db, email: string, password: string): Promise<number> {
+  const [user] = await db.select().from(users).where(eq(users.email, email));
+  if (!user) {
+    await verifyPassword(await dummyPasswordHash(), password);
+    throw new AppError(401, 'invalid_credentials', WRONG);
+  }
+  if (user.lockedUntil && user.lockedUntil.getTime() > Date.now()) {
+    throw new AppError(429, 'locked', `Too many wrong passwords: the account is locked until ${user.lockedUntil.toISOString().slice(11, 16)} UTC`);
+  }
+  const ok = await verifyPassword(user.passwordHash, password);
+  if (!ok || !user.active) {
+    if (!ok) {
+      const failed = user.failedSignIns + 1;
+      await db
+        .update(users)
+        .set({
+          failedSignIns: failed >= MAX_FAILED_SIGN_INS ? 0 : failed,
+          lockedUntil: failed >= MAX_FAILED_SIGN_INS ? new Date(Date.now() + LOCK_MINUTES * 60_000) : null,
+        })
+        .where(eq(users.id, user.id));
+    }
+    throw new AppError(401, 'invalid_credentials', ok ? 'This account has been deactivated; ask your co-op administrator' : WRONG);
+  }
+  await db.update(users).set({ failedSignIns: 0, lockedUntil: null, lastSignInAt: new Date() }).where(eq(users.id, user.id));
+  return user.id;
+}
+
+/** Issues a one-time link token; earlier unused tokens of the same purpose stop working. */
+export async function issueToken(db: Db, userId: number, purpose: 'invite' | 'reset'): Promise<string> {
+  const token = newToken();
+  const ms = purpose === 'invite' ? INVITE_DAYS * 86400_000 : RESET_HOURS * 3600_000;
+  await db
+    .update(oneTimeTokens)
+    .set({ usedAt: new Date() })
+    .where(and(eq(oneTimeTokens.userId, userId), eq(oneTimeTokens.purpose, purpose), isNull(oneTimeTokens.usedAt)));
+  await db.insert(oneTimeTokens).values({ tokenHash: sha256(token), userId, purpose, expiresAt: new Date(Date.now() + ms) });
+  return token;
+}
+
+async function findToken(db: Db, token: string) {
+  const [row] = await db
+    .select({
+      id: oneTimeTokens.id,
+      purpose: oneTimeTokens.purpose,
+      expiresAt: oneTimeTokens.expiresAt,
+      usedAt: oneTimeTokens.usedAt,
+      userId: users.id,
+      email: users.email,
+      name: users.name,
+      active: users.active,
+    })
+    .from(oneTimeTokens)
+    .innerJoin(users, eq(users.id, oneTimeTokens.userId))
+    .where(eq(oneTimeTokens.tokenHash, sha256(token)));
+  if (!row) throw AppError.notFound('This link');
+  if (row.usedAt) throw AppError.gone('This link has already been used; ask for a new one');
+  if (row.expiresAt.getTime() < Date.now()) throw AppError.gone('This link has expired; ask for a new one');
+  if (!row.active) throw AppError.gone('This account has been deactivated');
+  return row;
+}
+
+export async function tokenInfo(db: Db, token: string): Promise<TokenInfo> {
+  const row = await findToken(db, token);
+  return { purpose: row.purpose, email: row.email, name: row.name, expiresAt: row.expiresAt.toISOString() };
+}
+
+/** Sets the password from a one-time link, in one transaction; every other session of the account ends. */
+export async function redeemToken(db: Db, token: string, password: string): Promise<number> {
+  const hash = await hashPassword(password);
+  return db.transaction(async (tx) => {
+    const row = await findToken(tx, token);
+    const claimed = await tx
+      .update(oneTimeTokens)
+      .set({ usedAt: new Date() })
+      .where(and(eq(oneTimeTokens.id, row.id), isNull(oneTimeTokens.usedAt)))
+      .returning({ id: oneTimeTokens.id });
+    if (claimed.length === 0) throw AppError.gone('This link has already been used; ask for a new one');
+    await tx
+      .update(users)
+      .set({ passwordHash: hash, failedSignIns: 0, lockedUntil: null, lastSignInAt: new Date() })
+      .where(eq(users.id, row.userId));
+    await tx.delete(sessions).where(eq(sessions.userId, row.userId));
+    await recordAudit(tx, {
+      actorUserId: row.userId,
+      action: row.purpose === 'invite' ? 'user.accept-invitation' : 'user.reset-password',
+      entity: 'user',
+      entityId: row.userId,
+    });
+    return row.userId;
+  });
+}
+
+export async function findUserByEmail(db: Db, email: string) {
+  const [user] = await db
+    .select({ id: users.id, name: users.name, email: users.email, active: users.active })
+    .from(users)
+    .where(eq(sql`lower(${users.email})`, email.toLowerCase()));
+  return user;
+}

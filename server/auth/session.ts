@@ -1,0 +1,89 @@
+import type { CookieOptions, RequestHandler, Response } from 'express';
+import { and, eq, gt, lt } from 'drizzle-orm';
+import type { Role } from '../../shared/roles.js';
+import type { Db } from '../db/client.js';
+import { farms, sessions, users } from '../db/schema/index.js';
+import { newToken, sha256 } from '../core/ids.js';
+
+export const SESSION_COOKIE = 'netput_sid';
+/** Sessions end after 12 hours without use, and after 7 days in any case. */
+const IDLE_MS = 12 * 3600_000;
+const ABSOLUTE_MS = 7 * 24 * 3600_000;
+
+export interface SessionUser {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  farmId: number | null;
+}
+
+declare global {
+  // eslint-disable-next-line @typescript-eslint/no-namespace
+  namespace Express {
+    interface Request {
+      user?: SessionUser;
+      sessionId?: string;
+    }
+  }
+}
+
+export function sessionCookieOptions(secure: boolean): CookieOptions {
+  return { httpOnly: true, sameSite: 'lax', secure, path: '/', maxAge: ABSOLUTE_MS };
+}
+
+/** Starts a fresh session (a new id every sign-in) and sets its cookie. */
+export async function startSession(db: Db, res: Response, userId: number, userAgent: string | undefined, secure: boolean) {
+  const token = newToken();
+  await db.insert(sessions).values({
+    id: sha256(token),
+    userId,
+    expiresAt: new Date(Date.now() + ABSOLUTE_MS),
+    userAgent: userAgent?.slice(0, 300),
+  });
+  res.cookie(SESSION_COOKIE, token, sessionCookieOptions(secure));
+}
+
+export async function endSession(db: Db, sessionId: string | undefined) {
+  if (sessionId) await db.delete(sessions).where(eq(sessions.id, sessionId));
+}
+
+/** Loads `req.user` from the session cookie; an expired, idle or deactivated session is dropped. */
+export function loadSession(db: Db): RequestHandler {
+  return async (req, res, next) => {
+    const token: unknown = req.cookies?.[SESSION_COOKIE];
+    if (typeof token !== 'string' || token.length < 20 || token.length > 100) return next();
+    const id = sha256(token);
+    const now = new Date();
+    const [row] = await db
+      .select({
+        lastSeenAt: sessions.lastSeenAt,
+        id: users.id,
+        email: users.email,
+        name: users.name,
+        role: users.role,
+        active: users.active,
+        farmId: farms.id,
+      })
+      .from(sessions)
+      .innerJoin(users, eq(users.id, sessions.userId))
+      .leftJoin(farms, eq(farms.ownerUserId, users.id))
+      .where(and(eq(sessions.id, id), gt(sessions.expiresAt, now)));
+    if (!row || !row.active || now.getTime() - row.lastSeenAt.getTime() > IDLE_MS) {
+      if (row) await db.delete(sessions).where(eq(sessions.id, id));
+      res.clearCookie(SESSION_COOKIE, { path: '/' });
+      return next();
+    }
+    req.user = { id: row.id, email: row.email, name: row.name, role: row.role, farmId: row.farmId ?? null };
+    req.sessionId = id;
+    // Touch at most once a minute.
+    if (now.getTime() - row.lastSeenAt.getTime() > 60_000) {
+      await db.update(sessions).set({ lastSeenAt: now }).where(eq(sessions.id, id));
+    }
+    next();
+  };
+}
+
+export async function purgeExpiredSessions(db: Db) {
+  await db.delete(sessions).where(lt(sessions.expiresAt, new Date()));
+}

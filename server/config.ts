@@ -1,0 +1,39 @@
+import path from 'node:path';
+
+export interface Config {
+  port: number;
+  /** Folder for PGlite's data and other local files. */
+  dataDir: string;
+  databaseUrl?: string;
+  /** smtp:// or smtps:// URL; unset: a local fake SMTP server is started. */
+  smtpUrl?: string;
+  mailFrom: string;
+  /** Base URL used in links sent by e-mail. */
+  publicUrl: string;
+  /** Development mode: the received-mail page is on, cookies are not `Secure`. */
+  dev: boolean;
+  /** Set the `Secure` flag on cookies (serve over HTTPS). */
+  secureCookies: boolean;
+  logLevel: string;
+  /** Folder with the built Angular app, served with an SPA fallback when it exists. */
+  appDir: string;
+}
+
+export function loadConfig(env: NodeJS.ProcessEnv = process.env, argv: string[] = process.argv): Config {
+  const port = Number(env.PORT ?? 3000);
+  if (!Number.isInteger(port) || port < 0 || port > 65535) throw new Error(`PORT must be a port number, not "${env.PORT}"`);
+  const dev = argv.includes('--dev') || env.NODE_ENV === 'development';
+  const publicUrl = (env.PUBLIC_URL ?? `http://localhost:${port}`).replace(/\/$/, '');
+  return {
+    port,
+    dataDir: path.resolve(env.DATA_DIR ?? './data'),
+    databaseUrl: env.DATABASE_URL || undefined,
+    smtpUrl: env.SMTP_URL || undefined,
+    mailFrom: env.MAIL_FROM ?? 'Netput <outlook@netput.example.org>',
+    publicUrl,
+    dev,
+    secureCookies: env.COOKIE_SECURE ? env.COOKIE_SECURE === 'true' : publicUrl.startsWith('https://'),
+    logLevel: env.LOG_LEVEL ?? 'info',
+    appDir: path.resolve(env.APP_DIR ?? 'dist/netput/browser'),
+  };
+}

@@ -1,0 +1,14 @@
+import type { Config } from './config.js';
+import type { Db } from './db/client.js';
+import type { Mailer } from './mail/mailer.js';
+import type { FakeSmtp } from './mail/fake-smtp.js';
+
+/** What every router and service is given: built once by main.ts, or by a test with its own database. */
+export interface AppContext {
+  db: Db;
+  dbKind: 'pglite' | 'postgres';
+  config: Config;
+  mailer: Mailer;
+  /** Present when the server runs its own fake SMTP server (development and tests). */
+  fakeSmtp?: FakeSmtp;
+}

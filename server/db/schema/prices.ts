@@ -1,0 +1,35 @@
+import { date, doublePrecision, index, integer, pgTable, text, uniqueIndex } from 'drizzle-orm/pg-core';
+import { items } from './items.js';
+import { seasons } from './seasons.js';
+
+export const deliveryPoints = pgTable('delivery_points', {
+  id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
+  name: text('name').notNull().unique(),
+  kind: text('kind', { enum: ['delivery point', 'region'] }).notNull(),
+  region: text('region').notNull(),
+});
+
+export const priceObservations = pgTable(
+  'price_observations',
+  {
+    id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
+    itemId: integer('item_id')
+      .notNull()
+      .references(() => items.id, { onDelete: 'restrict' }),
+    seasonId: integer('season_id')
+      .notNull()
+      .references(() => seasons.id, { onDelete: 'restrict' }),
+    deliveryPointId: integer('delivery_point_id')
+      .notNull()
+      .references(() => deliveryPoints.id, { onDelete: 'restrict' }),
+    /** Price per item unit, in `currency`. */
+    price: doublePrecision('price').notNull(),
+    currency: text('currency').notNull(),
+    source: text('source').notNull(),
+    observedOn: date('observed_on').notNull(),
+  },
+  (t) => [
+    uniqueIndex('price_obs_unique').on(t.itemId, t.seasonId, t.deliveryPointId, t.observedOn),
+    index('price_obs_season_idx').on(t.seasonId),
+  ],
+);

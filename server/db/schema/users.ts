@@ -1,0 +1,22 @@
+import { sql } from 'drizzle-orm';
+import { boolean, check, integer, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
+
+export const users = pgTable(
+  'users',
+  {
+    id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
+    email: text('email').notNull().unique(),
+    name: text('name').notNull(),
+    role: text('role', { enum: ['admin', 'planner', 'treasurer', 'member'] }).notNull(),
+    /** argon2id; null while an invitation has not been accepted. */
+    passwordHash: text('password_hash'),
+    active: boolean('active').notNull().default(true),
+    /** Members may opt out of outlook e-mails. */
+    mailOptOut: boolean('mail_opt_out').notNull().default(false),
+    failedSignIns: integer('failed_sign_ins').notNull().default(0),
+    lockedUntil: timestamp('locked_until', { withTimezone: true }),
+    createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
+    lastSignInAt: timestamp('last_sign_in_at', { withTimezone: true }),
+  },
+  (t) => [check('users_role_check', sql`${t.role} in ('admin','planner','treasurer','member')`)],
+);

@@ -1,0 +1,18 @@
+import type { RouteDef } from '../core/routes.js';
+import type { AppContext } from '../context.js';
+import { listFarms, myFarm } from './farms-repository.js';
+
+export function farmsRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/farms',
+      access: 'signed-in',
+      handler: async (req, res) => {
+        const user = req.user!;
+        res.json(await listFarms(ctx.db, user.role === 'member' ? user.farmId : undefined));
+      },
+    },
+    { method: 'get', path: '/my-farm', access: ['member'], handler: async (req, res) => res.json(await myFarm(ctx.db, req.user!.farmId)) },
+  ];
+}

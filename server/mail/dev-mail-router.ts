@@ -1,0 +1,24 @@
+import type { RouteDef } from '../core/routes.js';
+import { AppError } from '../core/app-error.js';
+import type { AppContext } from '../context.js';
+
+/** The received-mail page's API: development mode only, admins only. */
+export function devMailRoutes(ctx: AppContext): RouteDef[] {
+  const smtp = () => {
+    if (!ctx.fakeSmtp) throw AppError.notFound('The local mailbox');
+    return ctx.fakeSmtp;
+  };
+  return [
+    { method: 'get', path: '/', access: ['admin'], devOnly: true, handler: (_req, res) => res.json(smtp().messages().reverse()) },
+    {
+      method: 'delete',
+      path: '/',
+      access: ['admin'],
+      devOnly: true,
+      handler: (_req, res) => {
+        smtp().clear();
+        res.status(204).end();
+      },
+    },
+  ];
+}

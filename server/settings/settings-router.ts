@@ -1,0 +1,20 @@
+import { settingsSchema } from '../../shared/schemas.js';
+import type { RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
+import type { AppContext } from '../context.js';
+import { getSettings, saveSettings } from './settings-service.js';
+
+export function settingsRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    { method: 'get', path: '/', access: 'signed-in', handler: async (_req, res) => res.json(await getSettings(ctx.db)) },
+    {
+      method: 'put',
+      path: '/',
+      access: ['admin'],
+      handler: async (req, res) => {
+        const body = parse(settingsSchema, req.body, 'body');
+        res.json(await saveSettings(ctx.db, body, req.user!.id));
+      },
+    },
+  ];
+}

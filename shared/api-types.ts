@@ -1,0 +1,93 @@
+import type { Role } from './roles.js';
+
+/** The one JSON error shape every failing API call answers with. */
+export interface ApiError {
+  error: {
+    code: string;
+    message: string;
+    /** Field-level problems: `path` names the field (e.g. `email`, `rows.3.price`). */
+    details?: { path: string; message: string }[];
+  };
+}
+
+/** `GET /api/auth/me`. */
+export interface Me {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  farmId: number | null;
+}
+
+export type UserStatus = 'active' | 'invited' | 'deactivated';
+
+/** A row of `GET /api/users` (admin only). */
+export interface UserSummary {
+  id: number;
+  email: string;
+  name: string;
+  role: Role;
+  farmId: number | null;
+  farmName: string | null;
+  status: UserStatus;
+  createdAt: string;
+  lastSignInAt: string | null;
+}
+
+/** `GET /api/auth/tokens/:token`: what a one-time link is for. */
+export interface TokenInfo {
+  purpose: 'invite' | 'reset';
+  email: string;
+  name: string;
+  expiresAt: string;
+}
+
+/** `GET /api/farms`: members get only their own farm. */
+export interface FarmSummary {
+  id: number;
+  code: string;
+  name: string;
+  region: string;
+  landHa: number;
+  ownerUserId: number | null;
+  ownerName: string | null;
+}
+
+/** `GET /api/settings` (everyone signed in reads; admin writes). */
+export interface CoopSettings {
+  coopName: string;
+  currency: string;
+  unitSystem: 'metric' | 'us';
+  storageCapacityT: number;
+  handlingCapacityTPerDay: number;
+}
+
+/** `GET /api/summary`: the figures a home page starts from. */
+export interface CoopSummary {
+  coopName: string;
+  farms: number;
+  members: number;
+  items: { outputs: number; inputs: number };
+  seasons: { count: number; first: string | null; last: string | null };
+  priceObservations: number;
+  farmRecords: number;
+  /** Seasons (labels) for which some farm has no record, newest first. */
+  recordGaps: { season: string; farmsMissing: number }[];
+}
+
+/** `GET /api/my-farm` (member): their own farm and its records. */
+export interface MyFarm {
+  farm: FarmSummary;
+  records: { season: string; item: string; role: 'output' | 'input'; unit: string; quantity: number }[];
+}
+
+/** `GET /api/dev/mail` (admin, development only). */
+export interface StoredMail {
+  id: number;
+  receivedAt: string;
+  from: string;
+  to: string[];
+  subject: string;
+  text: string;
+  html: string | null;
+}
