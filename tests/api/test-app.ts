@@ -1,0 +1,57 @@
+import os from 'node:os';
+import path from 'node:path';
+import supertest from 'supertest';
+import { loadConfig } from '../../server/config.js';
+import { openDatabase, type Database } from '../../server/db/client.js';
+import { createApp, type NetputApp } from '../../server/app.js';
+import { createMailer } from '../../server/mail/mailer.js';
+import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
+import { loadDemoCoop } from '../../seed/load-demo.js';
+
+export interface TestApp {
+  app: NetputApp;
+  database: Database;
+  smtp: FakeSmtp;
+  close(): Promise<void>;
+}
+
+/** A real app on a fresh in-memory PGlite (migrated, optionally with the demo co-op) and a fake SMTP server. */
+export async function startTestApp(options: { demo?: boolean; dev?: boolean } = {}): Promise<TestApp> {
+  const database = await openDatabase({ dataDir: 'memory://' });
+  if (options.demo !== false) await loadDemoCoop(database.db);
+  const smtp = await startFakeSmtp();
+  const config = {
+    ...loadConfig({ LOG_LEVEL: 'silent', PUBLIC_URL: 'http://netput.test', APP_DIR: path.join(os.tmpdir(), 'netput-no-app') }, options.dev ? ['--dev'] : []),
+  };
+  const mailer = createMailer(smtp.url, config.mailFrom);
+  const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp: smtp });
+  return {
+    app,
+    database,
+    smtp,
+    async close() {
+      mailer.close();
+      await smtp.close();
+      await database.close();
+    },
+  };
+}
+
+/** A supertest agent that keeps cookies and sends the XSRF header the way Angular does. */
+export async function agent(app: NetputApp) {
+  const a = supertest.agent(app);
+  const res = await a.get('/api/auth/csrf');
+  const cookie = ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('XSRF-TOKEN='));
+  const xsrf = cookie ? decodeURIComponent(cookie.split(';')[0].split('=')[1]) : '';
+  a.set('X-XSRF-TOKEN', xsrf);
+  return a;
+}
+
+export const DEMO_PASSWORD = 'netput-demo';
+
+export async function signedIn(app: NetputApp, email: string, password = DEMO_PASSWORD) {
+  const a = await agent(app);
+  const res = await a.post('/api/auth/login').send({ email, password });
+  if (res.status !== 200) throw new Error(`sign-in of ${email} failed: ${res.status} ${JSON.stringify(res.body)}`);
+  return a;
+}
