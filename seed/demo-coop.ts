@@ -1,5 +1,5 @@
 import { DateTime } from 'luxon';
-import { BASE_LAND_HA, buildTechnology, DEMO_ITEMS, MID_TREND, netputs, NUMERAIRE } from './technology.js';
+import { BASE_LAND_HA, buildTechnology, DEMO_ITEMS, MID_TREND, netputs } from './technology.js';
 import { seededRandom } from './random.js';
 
 /**
@@ -55,6 +55,8 @@ export interface DemoCoop {
   /** Quantities ≥ 0 in each item's unit; land per farm and season in `land`. */
   records: { farm: string; season: string; item: string; quantity: number }[];
   land: { farm: string; season: string; landHa: number }[];
+  deflator: { name: string; base: string; source: string };
+  deflatorValues: { season: string; value: number }[];
 }
 
 export function seasonLabel(startYear: number) {
@@ -160,8 +162,9 @@ export function buildDemoCoop(seed = 20261201): DemoCoop {
       }
     });
   }
-  void NUMERAIRE;
-  return { settings: DEMO_SETTINGS, items: DEMO_ITEMS, seasons, deliveryPoints: DELIVERY_POINTS, farms, prices, records, land };
+  const deflator = { name: 'Consumer prices (demo)', base: `${seasonLabel(FIRST_SEASON + MID_TREND)} = 100`, source: 'Invented for the demo co-op' };
+  const deflatorValues = seasons.map((s) => ({ season: s.label, value: round(100 * Math.exp(0.015 * (s.startYear - FIRST_SEASON - MID_TREND)), 1) }));
+  return { settings: DEMO_SETTINGS, items: DEMO_ITEMS, seasons, deliveryPoints: DELIVERY_POINTS, farms, prices, records, land, deflator, deflatorValues };
 }
 
 function round(x: number, digits: number) {

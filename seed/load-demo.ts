@@ -8,6 +8,8 @@ import {
   farmSeasonFactors,
   items,
   oneTimeTokens,
+  priceIndexes,
+  priceIndexValues,
   priceObservations,
   seasons,
   sessions,
@@ -26,7 +28,7 @@ export async function isDatabaseEmpty(db: Db): Promise<boolean> {
 /** Deletes every row of every table (keeps the schema). */
 export async function clearDatabase(db: Db) {
   await db.transaction(async (tx) => {
-    for (const t of [auditLog, sessions, oneTimeTokens, farmRecords, farmSeasonFactors, priceObservations, farms, users, items, seasons, deliveryPoints, settings]) {
+    for (const t of [auditLog, sessions, oneTimeTokens, farmRecords, farmSeasonFactors, priceIndexValues, priceIndexes, priceObservations, farms, users, items, seasons, deliveryPoints, settings]) {
       await tx.delete(t);
     }
   });
@@ -95,6 +97,8 @@ export async function loadDemoCoop(db: Db) {
         .insert(farmRecords)
         .values(part.map((r) => ({ farmId: farmId.get(r.farm)!, seasonId: seasonId.get(r.season)!, itemId: itemId.get(r.item)!, quantity: r.quantity })));
     }
+    const [ix] = await tx.insert(priceIndexes).values(demo.deflator).returning({ id: priceIndexes.id });
+    await tx.insert(priceIndexValues).values(demo.deflatorValues.map((v) => ({ indexId: ix.id, seasonId: seasonId.get(v.season)!, value: v.value })));
     for (const part of chunks(demo.land)) {
       await tx
         .insert(farmSeasonFactors)

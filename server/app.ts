@@ -17,6 +17,10 @@ import { settingsRoutes } from './settings/settings-router.js';
 import { summaryRoutes } from './summary/summary-router.js';
 import { auditRoutes } from './audit/audit-router.js';
 import { devMailRoutes } from './mail/dev-mail-router.js';
+import { importsRoutes } from './imports/imports-router.js';
+import { deliveryPointsRoutes, farmWriteRoutes, itemsRoutes, seasonsRoutes } from './reference/reference-router.js';
+import { priceIndexRoutes, pricesRoutes } from './prices/prices-router.js';
+import { recordsRoutes } from './records/records-router.js';
 import { VERSION } from './version.js';
 
 export interface NetputApp extends express.Express {
@@ -87,6 +91,14 @@ export function createApp(ctx: AppContext): NetputApp {
   mount('/settings', settingsRoutes(ctx));
   mount('/summary', summaryRoutes(ctx));
   mount('/audit', auditRoutes(ctx));
+  mount('/items', itemsRoutes(ctx));
+  mount('/seasons', seasonsRoutes(ctx));
+  mount('/delivery-points', deliveryPointsRoutes(ctx));
+  mount('/farms', farmWriteRoutes(ctx));
+  mount('/prices', pricesRoutes(ctx));
+  mount('/price-indexes', priceIndexRoutes(ctx));
+  mount('/records', recordsRoutes(ctx));
+  mount('/imports', importsRoutes(ctx));
   mount('/dev/mail', devMailRoutes(ctx));
   api.use(notFoundHandler);
   api.use(errorHandler);

@@ -91,3 +91,74 @@ export interface StoredMail {
   text: string;
   html: string | null;
 }
+
+export interface Item {
+  id: number;
+  code: string;
+  name: string;
+  role: 'output' | 'input';
+  category: 'grain' | 'oilseed' | 'fertiliser' | 'fuel' | 'labour' | 'other';
+  unit: string;
+  nPct: number | null;
+  p2o5Pct: number | null;
+  k2oPct: number | null;
+}
+
+export interface Season {
+  id: number;
+  label: string;
+  startYear: number;
+  startMonth: number;
+  startsOn: string;
+}
+
+export interface DeliveryPoint {
+  id: number;
+  name: string;
+  kind: 'delivery point' | 'region';
+  region: string;
+}
+
+export interface PriceRow {
+  id: number;
+  itemId: number;
+  itemCode: string;
+  itemName: string;
+  unit: string;
+  seasonId: number;
+  season: string;
+  deliveryPointId: number;
+  deliveryPoint: string;
+  price: number;
+  currency: string;
+  source: string;
+  observedOn: string;
+}
+
+/** `GET /api/prices/series`: one mean price per item and season (deflated when an index is named). */
+export interface PriceSeries {
+  deflator: { name: string; base: string } | null;
+  seasons: string[];
+  series: { itemCode: string; itemName: string; unit: string; currency: string; values: (number | null)[] }[];
+}
+
+export interface FarmRecordRow {
+  farmId: number;
+  farmCode: string;
+  seasonId: number;
+  season: string;
+  itemId: number;
+  itemCode: string;
+  itemName: string;
+  role: 'output' | 'input';
+  unit: string;
+  quantity: number;
+}
+
+export interface PriceIndex {
+  id: number;
+  name: string;
+  base: string;
+  source: string;
+  values: { seasonId: number; season: string; value: number }[];
+}

@@ -11,7 +11,14 @@ export const notFoundHandler: RequestHandler = (req, res) => {
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   let status = 500;
   let body: ApiError = { error: { code: 'internal', message: 'Something went wrong on the server; it has been logged.' } };
-  if (err instanceof AppError) {
+  const pgCode = postgresErrorCode(err);
+  if (pgCode === '23503' || pgCode === '23001') {
+    status = 409;
+    body = { error: { code: 'in_use', message: 'This record is still used by other records (prices, farm records or models); remove those first' } };
+  } else if (pgCode === '23505') {
+    status = 409;
+    body = { error: { code: 'conflict', message: 'A record with the same key already exists' } };
+  } else if (err instanceof AppError) {
     status = err.status;
     body = { error: { code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}) } };
   } else if (err && typeof err === 'object' && 'type' in err && typeof err.status === 'number' && err.status < 500) {
@@ -30,3 +37,11 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   if (res.headersSent) return;
   res.status(status).json(body);
 };
+
+/** PostgreSQL's SQLSTATE of a failed query (Drizzle wraps the driver's error in `cause`). */
+export function postgresErrorCode(err: unknown): string | undefined {
+  for (let e = err as { code?: unknown; cause?: unknown } | undefined, depth = 0; e && depth < 4; e = e.cause as typeof e, depth++) {
+    if (typeof e.code === 'string' && /^[0-9A-Z]{5}$/.test(e.code)) return e.code;
+  }
+  return undefined;
+}

@@ -33,3 +33,26 @@ export const priceObservations = pgTable(
     index('price_obs_season_idx').on(t.seasonId),
   ],
 );
+
+/** A price index the planner picks or uploads to deflate nominal prices (e.g. a consumer price index). */
+export const priceIndexes = pgTable('price_indexes', {
+  id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
+  name: text('name').notNull().unique(),
+  /** e.g. "2015 = 100" */
+  base: text('base').notNull(),
+  source: text('source').notNull(),
+});
+
+export const priceIndexValues = pgTable(
+  'price_index_values',
+  {
+    indexId: integer('index_id')
+      .notNull()
+      .references(() => priceIndexes.id, { onDelete: 'cascade' }),
+    seasonId: integer('season_id')
+      .notNull()
+      .references(() => seasons.id, { onDelete: 'cascade' }),
+    value: doublePrecision('value').notNull(),
+  },
+  (t) => [uniqueIndex('price_index_values_unique').on(t.indexId, t.seasonId)],
+);

@@ -1,0 +1,140 @@
+import { eq } from 'drizzle-orm';
+import { z } from 'zod';
+import { priceIndexSchema, priceSchema } from '../../shared/data-schemas.js';
+import { idParamSchema } from '../../shared/schemas.js';
+import type { RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
+import { AppError } from '../core/app-error.js';
+import type { AppContext } from '../context.js';
+import { priceIndexes, priceIndexValues, priceObservations, seasons } from '../db/schema/index.js';
+import { recordAudit } from '../audit/audit-repository.js';
+import { getPrice, listPrices, priceSeries } from './prices-repository.js';
+
+const READ = ['admin', 'planner', 'treasurer'] as const;
+const WRITE = ['planner'] as const;
+
+const idList = z
+  .string()
+  .regex(/^\d+(,\d+)*$/, 'Use comma-separated ids such as 1,2,3')
+  .transform((s) => s.split(',').map(Number))
+  .optional();
+const listQuery = z.object({ items: idList, seasons: idList, deliveryPoints: idList });
+const seriesQuery = z.object({ items: idList, deflator: z.coerce.number().int().positive().optional() });
+const blockSchema = z.object({ rows: z.array(priceSchema).min(1, 'Send at least one row').max(5000, 'Paste at most 5,000 rows at once') });
+
+export function pricesRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/',
+      access: READ,
+      handler: async (req, res) => {
+        const q = parse(listQuery, req.query, 'query');
+        res.json(await listPrices(ctx.db, { itemIds: q.items, seasonIds: q.seasons, deliveryPointIds: q.deliveryPoints }));
+      },
+    },
+    {
+      method: 'get',
+      path: '/series',
+      access: READ,
+      handler: async (req, res) => {
+        const q = parse(seriesQuery, req.query, 'query');
+        res.json(await priceSeries(ctx.db, q.items ?? [], q.deflator));
+      },
+    },
+    {
+      // One row or a pasted block: all rows are written or none.
+      method: 'post',
+      path: '/',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { rows } = parse(blockSchema, req.body, 'body');
+        const created = await ctx.db.transaction(async (tx) => {
+          const out = await tx.insert(priceObservations).values(rows).returning({ id: priceObservations.id });
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.create', entity: 'price', entityId: out.map((o) => o.id).join(','), after: rows });
+          return out;
+        });
+        res.status(201).json(await listPrices(ctx.db).then((all) => all.filter((r) => created.some((c) => c.id === r.id))));
+      },
+    },
+    {
+      method: 'put',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        const body = parse(priceSchema, req.body, 'body');
+        await ctx.db.transaction(async (tx) => {
+          const before = await getPrice(tx, id);
+          await tx.update(priceObservations).set(body).where(eq(priceObservations.id, id));
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.update', entity: 'price', entityId: id, before, after: body });
+        });
+        res.json(await getPrice(ctx.db, id));
+      },
+    },
+    {
+      method: 'delete',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        await ctx.db.transaction(async (tx) => {
+          const before = await getPrice(tx, id);
+          await tx.delete(priceObservations).where(eq(priceObservations.id, id));
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.delete', entity: 'price', entityId: id, before });
+        });
+        res.status(204).end();
+      },
+    },
+  ];
+}
+
+export function priceIndexRoutes(ctx: AppContext): RouteDef[] {
+  const load = async (db: AppContext['db'], id?: number) => {
+    const ixs = await (id ? db.select().from(priceIndexes).where(eq(priceIndexes.id, id)) : db.select().from(priceIndexes));
+    const values = await db
+      .select({ indexId: priceIndexValues.indexId, seasonId: priceIndexValues.seasonId, season: seasons.label, value: priceIndexValues.value, year: seasons.startYear })
+      .from(priceIndexValues)
+      .innerJoin(seasons, eq(seasons.id, priceIndexValues.seasonId));
+    return ixs.map((ix) => ({
+      ...ix,
+      values: values
+        .filter((v) => v.indexId === ix.id)
+        .sort((a, b) => a.year - b.year)
+        .map(({ seasonId, season, value }) => ({ seasonId, season, value })),
+    }));
+  };
+  return [
+    { method: 'get', path: '/', access: READ, handler: async (_req, res) => res.json(await load(ctx.db)) },
+    {
+      method: 'post',
+      path: '/',
+      access: WRITE,
+      handler: async (req, res) => {
+        const body = parse(priceIndexSchema, req.body, 'body');
+        const id = await ctx.db.transaction(async (tx) => {
+          const [ix] = await tx.insert(priceIndexes).values({ name: body.name, base: body.base, source: body.source }).returning({ id: priceIndexes.id });
+          if (body.values.length) await tx.insert(priceIndexValues).values(body.values.map((v) => ({ indexId: ix.id, ...v })));
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price-index.create', entity: 'price-index', entityId: ix.id, after: body });
+          return ix.id;
+        });
+        res.status(201).json((await load(ctx.db, id))[0]);
+      },
+    },
+    {
+      method: 'delete',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        await ctx.db.transaction(async (tx) => {
+          const [before] = await load(tx, id);
+          if (!before) throw AppError.notFound('The price index');
+          await tx.delete(priceIndexes).where(eq(priceIndexes.id, id));
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price-index.delete', entity: 'price-index', entityId: id, before });
+        });
+        res.status(204).end();
+      },
+    },
+  ];
+}

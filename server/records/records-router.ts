@@ -1,0 +1,151 @@
+import { and, asc, eq, inArray, type SQL } from 'drizzle-orm';
+import { z } from 'zod';
+import type { FarmRecordRow } from '../../shared/api-types.js';
+import { landSchema, recordSchema } from '../../shared/data-schemas.js';
+import type { RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
+import { AppError } from '../core/app-error.js';
+import type { AppContext } from '../context.js';
+import type { Db } from '../db/client.js';
+import { farmRecords, farms, farmSeasonFactors, items, seasons } from '../db/schema/index.js';
+import { recordAudit } from '../audit/audit-repository.js';
+import type { SessionUser } from '../auth/session.js';
+
+const idList = z
+  .string()
+  .regex(/^\d+(,\d+)*$/, 'Use comma-separated ids such as 1,2,3')
+  .transform((s) => s.split(',').map(Number))
+  .optional();
+const listQuery = z.object({ farms: idList, seasons: idList });
+const blockSchema = z.object({ rows: z.array(recordSchema).min(1).max(5000, 'Send at most 5,000 rows at once') });
+const keySchema = recordSchema.pick({ farmId: true, seasonId: true, itemId: true });
+
+/** Members are held to their own farm whatever filter they send. */
+function farmScope(user: SessionUser, requested?: number[]): number[] | undefined {
+  if (user.role !== 'member') return requested;
+  if (user.farmId === null) return [];
+  return [user.farmId];
+}
+
+export async function listRecords(db: Db, farmIds?: number[], seasonIds?: number[]): Promise<FarmRecordRow[]> {
+  if (farmIds && farmIds.length === 0) return [];
+  const parts: SQL[] = [];
+  if (farmIds) parts.push(inArray(farmRecords.farmId, farmIds));
+  if (seasonIds?.length) parts.push(inArray(farmRecords.seasonId, seasonIds));
+  return db
+    .select({
+      farmId: farmRecords.farmId,
+      farmCode: farms.code,
+      seasonId: farmRecords.seasonId,
+      season: seasons.label,
+      itemId: farmRecords.itemId,
+      itemCode: items.code,
+      itemName: items.name,
+      role: items.role,
+      unit: items.unit,
+      quantity: farmRecords.quantity,
+    })
+    .from(farmRecords)
+    .innerJoin(farms, eq(farms.id, farmRecords.farmId))
+    .innerJoin(seasons, eq(seasons.id, farmRecords.seasonId))
+    .innerJoin(items, eq(items.id, farmRecords.itemId))
+    .where(parts.length ? and(...parts) : undefined)
+    .orderBy(asc(farms.code), asc(seasons.startYear), asc(items.id));
+}
+
+export async function listLand(db: Db, farmIds?: number[]) {
+  if (farmIds && farmIds.length === 0) return [];
+  return db
+    .select({ farmId: farmSeasonFactors.farmId, farmCode: farms.code, seasonId: farmSeasonFactors.seasonId, season: seasons.label, landHa: farmSeasonFactors.value })
+    .from(farmSeasonFactors)
+    .innerJoin(farms, eq(farms.id, farmSeasonFactors.farmId))
+    .innerJoin(seasons, eq(seasons.id, farmSeasonFactors.seasonId))
+    .where(and(eq(farmSeasonFactors.factor, 'land_ha'), farmIds ? inArray(farmSeasonFactors.farmId, farmIds) : undefined))
+    .orderBy(asc(farms.code), asc(seasons.startYear));
+}
+
+export function recordsRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/',
+      access: 'signed-in',
+      handler: async (req, res) => {
+        const q = parse(listQuery, req.query, 'query');
+        res.json(await listRecords(ctx.db, farmScope(req.user!, q.farms), q.seasons));
+      },
+    },
+    {
+      method: 'get',
+      path: '/land',
+      access: 'signed-in',
+      handler: async (req, res) => {
+        const q = parse(listQuery, req.query, 'query');
+        res.json(await listLand(ctx.db, farmScope(req.user!, q.farms)));
+      },
+    },
+    {
+      // Insert or replace quantities: a cell edited in the grid or a pasted block, all or nothing.
+      method: 'put',
+      path: '/',
+      access: ['planner'],
+      handler: async (req, res) => {
+        const { rows } = parse(blockSchema, req.body, 'body');
+        await ctx.db.transaction(async (tx) => {
+          for (const row of rows) {
+            const key = and(eq(farmRecords.farmId, row.farmId), eq(farmRecords.seasonId, row.seasonId), eq(farmRecords.itemId, row.itemId));
+            const [before] = await tx.select().from(farmRecords).where(key);
+            await tx
+              .insert(farmRecords)
+              .values(row)
+              .onConflictDoUpdate({ target: [farmRecords.farmId, farmRecords.seasonId, farmRecords.itemId], set: { quantity: row.quantity } });
+            await recordAudit(tx, {
+              actorUserId: req.user!.id,
+              action: before ? 'record.update' : 'record.create',
+              entity: 'farm-record',
+              entityId: `${row.farmId}/${row.seasonId}/${row.itemId}`,
+              before: before ?? null,
+              after: row,
+            });
+          }
+        });
+        res.json(await listRecords(ctx.db, [...new Set(rows.map((r) => r.farmId))], [...new Set(rows.map((r) => r.seasonId))]));
+      },
+    },
+    {
+      method: 'delete',
+      path: '/',
+      access: ['planner'],
+      handler: async (req, res) => {
+        const k = parse(keySchema, req.body, 'body');
+        await ctx.db.transaction(async (tx) => {
+          const deleted = await tx
+            .delete(farmRecords)
+            .where(and(eq(farmRecords.farmId, k.farmId), eq(farmRecords.seasonId, k.seasonId), eq(farmRecords.itemId, k.itemId)))
+            .returning();
+          if (!deleted.length) throw AppError.notFound('The farm record');
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'record.delete', entity: 'farm-record', entityId: `${k.farmId}/${k.seasonId}/${k.itemId}`, before: deleted[0] });
+        });
+        res.status(204).end();
+      },
+    },
+    {
+      method: 'put',
+      path: '/land',
+      access: ['planner'],
+      handler: async (req, res) => {
+        const body = parse(landSchema, req.body, 'body');
+        await ctx.db.transaction(async (tx) => {
+          const key = and(eq(farmSeasonFactors.farmId, body.farmId), eq(farmSeasonFactors.seasonId, body.seasonId), eq(farmSeasonFactors.factor, 'land_ha'));
+          const [before] = await tx.select().from(farmSeasonFactors).where(key);
+          await tx
+            .insert(farmSeasonFactors)
+            .values({ farmId: body.farmId, seasonId: body.seasonId, factor: 'land_ha', value: body.landHa })
+            .onConflictDoUpdate({ target: [farmSeasonFactors.farmId, farmSeasonFactors.seasonId, farmSeasonFactors.factor], set: { value: body.landHa } });
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'land.update', entity: 'farm-land', entityId: `${body.farmId}/${body.seasonId}`, before: before ?? null, after: body });
+        });
+        res.json(await listLand(ctx.db, [body.farmId]));
+      },
+    },
+  ];
+}
