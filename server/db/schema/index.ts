@@ -6,3 +6,5 @@ export * from './items.js';
 export * from './prices.js';
 export * from './records.js';
 export * from './audit.js';
+export * from './models.js';
+export * from './jobs.js';
