@@ -21,6 +21,7 @@ import { importsRoutes } from './imports/imports-router.js';
 import { deliveryPointsRoutes, farmWriteRoutes, itemsRoutes, seasonsRoutes } from './reference/reference-router.js';
 import { priceIndexRoutes, pricesRoutes } from './prices/prices-router.js';
 import { recordsRoutes } from './records/records-router.js';
+import { modelRunsRoutes, modelsRoutes } from './models/models-router.js';
 import { VERSION } from './version.js';
 
 export interface NetputApp extends express.Express {
@@ -99,6 +100,8 @@ export function createApp(ctx: AppContext): NetputApp {
   mount('/price-indexes', priceIndexRoutes(ctx));
   mount('/records', recordsRoutes(ctx));
   mount('/imports', importsRoutes(ctx));
+  mount('/models', modelsRoutes(ctx));
+  mount('/model-runs', modelRunsRoutes(ctx));
   mount('/dev/mail', devMailRoutes(ctx));
   api.use(notFoundHandler);
   api.use(errorHandler);

@@ -2,6 +2,7 @@ import type { Config } from './config.js';
 import type { Db } from './db/client.js';
 import type { Mailer } from './mail/mailer.js';
 import type { FakeSmtp } from './mail/fake-smtp.js';
+import type { JobRunner } from './jobs/job-runner.js';
 
 /** What every router and service is given: built once by main.ts, or by a test with its own database. */
 export interface AppContext {
@@ -11,4 +12,6 @@ export interface AppContext {
   mailer: Mailer;
   /** Present when the server runs its own fake SMTP server (development and tests). */
   fakeSmtp?: FakeSmtp;
+  /** The background job runner of this instance, when it runs one. */
+  jobs?: JobRunner;
 }

@@ -4,6 +4,7 @@ import { createApp } from './app.js';
 import { createMailer } from './mail/mailer.js';
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp.js';
 import { purgeExpiredSessions } from './auth/session.js';
+import { startBackgroundWork } from './jobs/background.js';
 import { seedDemoIfEmpty } from '../seed/load-demo.js';
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from '../seed/demo-coop.js';
 
@@ -21,7 +22,8 @@ async function main() {
     smtpUrl = fakeSmtp.url;
   }
   const mailer = createMailer(smtpUrl, config.mailFrom);
-  const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp });
+  const background = startBackgroundWork(database.db);
+  const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp, jobs: background.runner });
 
   const server = app.listen(config.port, () => {
     const address = server.address();
@@ -45,6 +47,7 @@ async function main() {
     console.log(`${signal}: stopping`);
     server.close();
     server.closeAllConnections();
+    await background.stop();
     mailer.close();
     await fakeSmtp?.close();
     await database.close();

@@ -7,6 +7,7 @@ import { createApp, type NetputApp } from '../../server/app.js';
 import { createMailer } from '../../server/mail/mailer.js';
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
 import { loadDemoCoop } from '../../seed/load-demo.js';
+import { startBackgroundWork } from '../../server/jobs/background.js';
 
 export interface TestApp {
   app: NetputApp;
@@ -16,7 +17,7 @@ export interface TestApp {
 }
 
 /** A real app on a fresh in-memory PGlite (migrated, optionally with the demo co-op) and a fake SMTP server. */
-export async function startTestApp(options: { demo?: boolean; dev?: boolean } = {}): Promise<TestApp> {
+export async function startTestApp(options: { demo?: boolean; dev?: boolean; jobs?: boolean } = {}): Promise<TestApp> {
   const database = await openDatabase({ dataDir: 'memory://' });
   if (options.demo !== false) await loadDemoCoop(database.db);
   const smtp = await startFakeSmtp();
@@ -24,12 +25,14 @@ export async function startTestApp(options: { demo?: boolean; dev?: boolean } = 
     ...loadConfig({ LOG_LEVEL: 'silent', PUBLIC_URL: 'http://netput.test', APP_DIR: path.join(os.tmpdir(), 'netput-no-app') }, options.dev ? ['--dev'] : []),
   };
   const mailer = createMailer(smtp.url, config.mailFrom);
-  const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp: smtp });
+  const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50 }) : undefined;
+  const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp: smtp, jobs: background?.runner });
   return {
     app,
     database,
     smtp,
     async close() {
+      await background?.stop();
       mailer.close();
       await smtp.close();
       await database.close();

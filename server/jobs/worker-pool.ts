@@ -1,0 +1,39 @@
+import os from 'node:os';
+import { MessageChannel } from 'node:worker_threads';
+import { Piscina } from 'piscina';
+import type { FitRunResult, FitTask } from './fit-task.js';
+
+/**
+ * Worker threads for CPU-heavy work, so the request thread stays responsive. Workers load the
+ * TypeScript sources through tsx, as the main thread does.
+ */
+export class WorkerPool {
+  private readonly pool: Piscina;
+
+  constructor(size = Math.max(1, Math.min(2, os.availableParallelism() - 0))) {
+    this.pool = new Piscina({
+      filename: new URL('./fit-task.ts', import.meta.url).href,
+      minThreads: 0,
+      maxThreads: size,
+      idleTimeout: 30_000,
+      execArgv: [...process.execArgv.filter((a) => !a.startsWith('--inspect')), '--import', 'tsx'],
+    });
+  }
+
+  runFit(task: Omit<FitTask, 'progressPort'>, onProgress: (share: number, stage: string) => void, signal?: AbortSignal): Promise<FitRunResult> {
+    const channel = new MessageChannel();
+    channel.port2.on('message', (m: { share: number; stage: string }) => onProgress(m.share, m.stage));
+    channel.port2.unref();
+    return this.pool
+      .run({ ...task, progressPort: channel.port1 }, { transferList: [channel.port1], signal })
+      .finally(() => channel.port2.close()) as Promise<FitRunResult>;
+  }
+
+  get threads() {
+    return this.pool.threads.length;
+  }
+
+  close() {
+    return this.pool.destroy();
+  }
+}
