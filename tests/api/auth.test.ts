@@ -12,7 +12,7 @@ describe('GET /api/health', () => {
   it('answers ok with the database kind', async () => {
     const res = await supertest(t.app).get('/api/health');
     expect(res.status).toBe(200);
-    expect(res.body).toMatchObject({ status: 'ok', database: 'pglite' });
+    expect(res.body).toMatchObject({ status: 'ok', database: process.env.NETPUT_TEST_DB === 'postgres' ? 'postgres' : 'pglite' });
   });
 });
 

@@ -2,7 +2,8 @@ import os from 'node:os';
 import path from 'node:path';
 import supertest from 'supertest';
 import { loadConfig } from '../../server/config.js';
-import { openDatabase, type Database } from '../../server/db/client.js';
+import type { Database } from '../../server/db/client.js';
+import { openTestDatabase } from './test-db.js';
 import { createApp, type NetputApp } from '../../server/app.js';
 import { createMailer } from '../../server/mail/mailer.js';
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
@@ -18,7 +19,7 @@ export interface TestApp {
 
 /** A real app on a fresh in-memory PGlite (migrated, optionally with the demo co-op) and a fake SMTP server. */
 export async function startTestApp(options: { demo?: boolean; dev?: boolean; jobs?: boolean } = {}): Promise<TestApp> {
-  const database = await openDatabase({ dataDir: 'memory://' });
+  const database = await openTestDatabase();
   if (options.demo !== false) await loadDemoCoop(database.db);
   const smtp = await startFakeSmtp();
   const config = {
