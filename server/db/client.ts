@@ -33,6 +33,8 @@ export interface OpenOptions {
 export async function openDatabase(options: OpenOptions): Promise<Database> {
   if (options.databaseUrl) {
     const pool = new pg.Pool({ connectionString: options.databaseUrl, max: 10 });
+    // An idle client cut off by the server (restart, dropped database) must not crash the process.
+    pool.on('error', () => {});
     const db = drizzlePg(pool, { schema }) as unknown as Db;
     await migratePg(drizzlePg(pool), { migrationsFolder: MIGRATIONS_DIR });
     return { db, kind: 'postgres', close: () => pool.end() };
