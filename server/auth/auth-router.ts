@@ -9,6 +9,7 @@ import { passwordResetMail } from '../mail/templates.js';
 import { getSettings } from '../settings/settings-service.js';
 import { checkCredentials, findUserByEmail, issueToken, meOf, redeemToken, RESET_HOURS, tokenInfo } from './auth-service.js';
 import { endSession, SESSION_COOKIE, startSession } from './session.js';
+import { DatabaseRateLimitStore } from './rate-limit-store.js';
 
 const tokenParams = z.object({ token: z.string().min(20).max(100).regex(/^[A-Za-z0-9_-]+$/, 'Not a valid link') });
 
@@ -24,6 +25,7 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
   const loginLimiter = rateLimit({
     windowMs: 15 * 60_000,
     limit: 10,
+    store: new DatabaseRateLimitStore(ctx.db, 'login:'),
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String((req.body as { email?: unknown })?.email ?? '').toLowerCase().slice(0, 254)}`,
@@ -32,6 +34,7 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
   const resetLimiter = rateLimit({
     windowMs: 15 * 60_000,
     limit: 5,
+    store: new DatabaseRateLimitStore(ctx.db, 'reset:'),
     standardHeaders: 'draft-8',
     legacyHeaders: false,
     handler: (_req, _res, next) => next(new AppError(429, 'rate_limited', 'Too many requests; wait 15 minutes and try again')),

@@ -138,3 +138,15 @@ describe('role checks', () => {
     expect(JSON.stringify(res.body)).not.toMatch(/at .*\.ts/);
   });
 });
+
+describe('sign-in rate limit', () => {
+  it('the 11th attempt for one address within 15 minutes answers 429, counted in the database', async () => {
+    const a = await agent(t.app);
+    const statuses: number[] = [];
+    for (let i = 0; i < 11; i++) statuses.push((await a.post('/api/auth/login').send({ email: 'limit@example.org', password: 'wrong-password-x' })).status);
+    expect(statuses.slice(0, 10).every((s) => s === 401)).toBe(true);
+    expect(statuses[10]).toBe(429);
+    const rows = await t.database.db.execute("select hits from rate_limit_hits where key like 'login:%limit@example.org'");
+    expect((rows as unknown as { rows: { hits: number }[] }).rows[0].hits).toBe(11);
+  });
+});

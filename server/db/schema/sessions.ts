@@ -29,3 +29,10 @@ export const oneTimeTokens = pgTable('one_time_tokens', {
   expiresAt: timestamp('expires_at', { withTimezone: true }).notNull(),
   usedAt: timestamp('used_at', { withTimezone: true }),
 });
+
+/** Hit counters of the rate limiters, shared by every app instance. */
+export const rateLimitHits = pgTable('rate_limit_hits', {
+  key: text('key').primaryKey(),
+  hits: integer('hits').notNull(),
+  resetAt: timestamp('reset_at', { withTimezone: true }).notNull(),
+});
