@@ -31,7 +31,7 @@ describe('backup and restore', () => {
     expect(kept && fs.existsSync(kept)).toBe(true);
   }, 120_000);
 
-  it.runIf(process.env.TEST_DATABASE_URL)('a PostgreSQL database round-trips through pg_dump / pg_restore', async () => {
+  it.runIf(process.env.NETPUT_TEST_DB === 'postgres' && process.env.TEST_DATABASE_URL)('a PostgreSQL database round-trips through pg_dump / pg_restore', async () => {
     const server = process.env.TEST_DATABASE_URL!;
     const name = `netput_backup_${randomBytes(4).toString('hex')}`;
     const admin = new pg.Client({ connectionString: server });

@@ -5,7 +5,8 @@ import { openDatabase, type Database } from '../../server/db/client.js';
 import { exportDatabase, importDatabase } from '../../server/db/portable.js';
 import { loadDemoCoop } from '../../seed/load-demo.js';
 
-const serverUrl = process.env.TEST_DATABASE_URL;
+// Server-only checks run in the PostgreSQL suite (npm run test:postgres).
+const serverUrl = process.env.NETPUT_TEST_DB === 'postgres' ? process.env.TEST_DATABASE_URL : undefined;
 const opened: Database[] = [];
 const created: string[] = [];
 afterAll(async () => {

@@ -1,0 +1,102 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { randomBytes } from 'node:crypto';
+import pg from 'pg';
+import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
+import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
+
+/**
+ * Two app instances on one PostgreSQL database: sessions, rate-limit counters and background jobs
+ * live in the database, so both instances share them and every job runs exactly once.
+ */
+// Server-only checks run in the PostgreSQL suite (npm run test:postgres).
+const serverUrl = process.env.NETPUT_TEST_DB === 'postgres' ? process.env.TEST_DATABASE_URL : undefined;
+const name = `netput_two_${randomBytes(4).toString('hex')}`;
+let a: ServerProcess;
+let b: ServerProcess;
+let smtp: FakeSmtp;
+let dbUrl: string;
+
+describe.runIf(serverUrl)('two instances on one PostgreSQL database', () => {
+  beforeAll(async () => {
+    const admin = new pg.Client({ connectionString: serverUrl });
+    await admin.connect();
+    await admin.query(`create database ${name}`);
+    await admin.end();
+    const u = new URL(serverUrl!);
+    u.pathname = `/${name}`;
+    dbUrl = u.toString();
+    smtp = await startFakeSmtp();
+    // The first instance migrates and loads the demo; the second finds both done.
+    a = await startServerProcess({ DATABASE_URL: dbUrl, SMTP_URL: smtp.url });
+    b = await startServerProcess({ DATABASE_URL: dbUrl, SMTP_URL: smtp.url });
+  }, 240_000);
+
+  afterAll(async () => {
+    await a?.stop();
+    await b?.stop();
+    await smtp?.close();
+    const admin = new pg.Client({ connectionString: serverUrl });
+    await admin.connect();
+    await admin.query(`drop database if exists ${name} with (force)`);
+    await admin.end();
+  }, 60_000);
+
+  it('a session made on one instance works on the other', async () => {
+    const s = new HttpSession(a.url);
+    expect((await s.request('POST', '/api/auth/login', { email: 'planner@example.org', password: 'netput-demo' })).status).toBe(200);
+    const me = await s.at(b.url).request('GET', '/api/auth/me');
+    expect(me.status).toBe(200);
+    expect(me.body.email).toBe('planner@example.org');
+  });
+
+  it('fits queued on either instance each run exactly once', async () => {
+    const s = new HttpSession(a.url);
+    await s.request('POST', '/api/auth/login', { email: 'planner@example.org', password: 'netput-demo' });
+    const sb = s.at(b.url);
+    const definition = {
+      items: ['wheat', 'canola', 'nitrogen', 'labour'],
+      numeraire: 'labour',
+      fixedFactors: ['land_ha'],
+      trend: true,
+      form: 'nq',
+      curvature: 'check',
+      fromSeason: null,
+      toSeason: null,
+      farms: null,
+      backtestSeasons: 0,
+    };
+    const model = await s.request('POST', '/api/models', { name: 'Two-instance model', definition });
+    expect(model.status).toBe(201);
+    const runIds: number[] = [];
+    for (let i = 0; i < 6; i++) {
+      const r = await (i % 2 ? sb : s).request('POST', `/api/models/${model.body.id}/runs`);
+      expect(r.status).toBe(202);
+      runIds.push(r.body.id);
+    }
+    const deadline = Date.now() + 180_000;
+    let statuses: string[] = [];
+    while (Date.now() < deadline) {
+      statuses = await Promise.all(runIds.map(async (id) => (await sb.request('GET', `/api/model-runs/${id}/status`)).body.status));
+      if (statuses.every((st) => st === 'succeeded' || st === 'failed')) break;
+      await new Promise((r) => setTimeout(r, 500));
+    }
+    expect(statuses).toEqual(runIds.map(() => 'succeeded'));
+    const c = new pg.Client({ connectionString: dbUrl });
+    await c.connect();
+    const { rows } = await c.query<{ ref_id: number; attempts: number; status: string; locked_by: string }>(
+      `select ref_id, attempts, status, locked_by from jobs where kind = 'fit' order by ref_id`,
+    );
+    await c.end();
+    expect(rows.map((r) => r.ref_id)).toEqual(runIds);
+    expect(rows.every((r) => r.attempts === 1 && r.status === 'done')).toBe(true);
+  }, 240_000);
+
+  it('sign-in attempts are counted across both instances', async () => {
+    const statuses: number[] = [];
+    for (let i = 0; i < 11; i++) {
+      const s = new HttpSession(i % 2 ? b.url : a.url);
+      statuses.push((await s.request('POST', '/api/auth/login', { email: 'shared-limit@example.org', password: 'wrong-password-1' })).status);
+    }
+    expect(statuses[10]).toBe(429);
+  }, 120_000);
+});
