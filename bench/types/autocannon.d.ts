@@ -1,0 +1,22 @@
+// Just what the benchmarks use of autocannon (it ships no types).
+declare module 'autocannon' {
+  interface Options {
+    url: string;
+    connections?: number;
+    duration?: number;
+    headers?: Record<string, string>;
+    requests?: { method?: string; path: string; headers?: Record<string, string>; body?: string }[];
+  }
+  interface Result {
+    requests: { average: number; total: number };
+    latency: Record<string, number>;
+    errors: number;
+    timeouts: number;
+    non2xx?: number;
+  }
+  interface Instance extends PromiseLike<Result> {
+    on(event: 'response', cb: (client: unknown, statusCode: number, bytes: number, responseTime: number) => void): void;
+  }
+  function autocannon(options: Options): Instance;
+  export default autocannon;
+}

@@ -1,0 +1,102 @@
+import { DatePipe } from '@angular/common';
+import { httpResource } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, signal } from '@angular/core';
+import { MatButton } from '@angular/material/button';
+import { MatPaginator, type PageEvent } from '@angular/material/paginator';
+import { MatProgressBar } from '@angular/material/progress-bar';
+import {
+  MatCell,
+  MatCellDef,
+  MatColumnDef,
+  MatHeaderCell,
+  MatHeaderCellDef,
+  MatHeaderRow,
+  MatHeaderRowDef,
+  MatNoDataRow,
+  MatRow,
+  MatRowDef,
+  MatTable,
+} from '@angular/material/table';
+import { errorMessage } from '../../core/api-error';
+
+/** One row of `GET /api/audit` (shape from the API contract; not yet in shared/api-types.ts). */
+export interface AuditEntry {
+  id: number;
+  at: string;
+  actorEmail: string | null;
+  action: string;
+  entity: string;
+  entityId: string | number | null;
+  before: unknown;
+  after: unknown;
+}
+
+export interface AuditPage {
+  rows: AuditEntry[];
+  total: number;
+}
+
+export interface FieldChange {
+  field: string;
+  before: string;
+  after: string;
+}
+
+function show(value: unknown): string {
+  if (value === undefined) return '(none)';
+  if (typeof value === 'string') return value;
+  return JSON.stringify(value);
+}
+
+/** The fields that differ between an entry's before and after states, in readable form. */
+export function changedFields(entry: Pick<AuditEntry, 'before' | 'after'>): FieldChange[] {
+  const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+  const before = isObject(entry.before) ? entry.before : {};
+  const after = isObject(entry.after) ? entry.after : {};
+  const fields = [...new Set([...Object.keys(before), ...Object.keys(after)])];
+  return fields
+    .filter((field) => JSON.stringify(before[field]) !== JSON.stringify(after[field]))
+    .map((field) => ({ field, before: show(before[field]), after: show(after[field]) }));
+}
+
+/** `/admin/audit`: who changed what, newest first, a page at a time. */
+@Component({
+  selector: 'np-audit-log',
+  imports: [
+    DatePipe,
+    MatButton,
+    MatPaginator,
+    MatProgressBar,
+    MatTable,
+    MatColumnDef,
+    MatHeaderCellDef,
+    MatHeaderCell,
+    MatCellDef,
+    MatCell,
+    MatHeaderRowDef,
+    MatHeaderRow,
+    MatNoDataRow,
+    MatRowDef,
+    MatRow,
+  ],
+  templateUrl: './audit-log.html',
+  styleUrl: './audit-log.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class AuditLog {
+  protected readonly pageSize = signal(25);
+  protected readonly pageIndex = signal(0);
+  protected readonly audit = httpResource<AuditPage>(() => ({
+    url: '/api/audit',
+    params: { limit: this.pageSize(), offset: this.pageIndex() * this.pageSize() },
+  }));
+  protected readonly page = computed<AuditPage>(() => (this.audit.hasValue() ? this.audit.value() : { rows: [], total: 0 }));
+  protected readonly rows = computed(() => this.page().rows.map((row) => ({ ...row, changes: changedFields(row) })));
+  protected readonly problem = computed(() => (this.audit.error() ? errorMessage(this.audit.error()) : null));
+  protected readonly columns = ['at', 'actor', 'action', 'entity', 'changes'];
+
+  protected changePage(event: PageEvent): void {
+    this.pageSize.set(event.pageSize);
+    this.pageIndex.set(event.pageIndex);
+  }
+}

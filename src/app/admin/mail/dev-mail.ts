@@ -1,0 +1,85 @@
+import { DatePipe } from '@angular/common';
+import { HttpClient, httpResource } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, inject, linkedSignal } from '@angular/core';
+import { MatButton } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatIcon } from '@angular/material/icon';
+import { MatProgressBar } from '@angular/material/progress-bar';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { MatTab, MatTabGroup } from '@angular/material/tabs';
+import { DomSanitizer, type SafeHtml } from '@angular/platform-browser';
+import { firstValueFrom } from 'rxjs';
+import type { StoredMail } from '../../../../shared/api-types';
+import { errorMessage } from '../../core/api-error';
+import { ConfirmDialog, type ConfirmDialogData } from '../../shared/confirm-dialog';
+
+/** A piece of a plain-text body: text, or a web link worth making clickable. */
+export type TextPart = { text: string; href?: string };
+
+/** Splits a plain-text mail body so http(s) links (invitation and reset links) can be clicked. */
+export function linkify(text: string): TextPart[] {
+  const parts: TextPart[] = [];
+  const pattern = /https?:\/\/[^\s<>"')]+/g;
+  let last = 0;
+  for (const match of text.matchAll(pattern)) {
+    const start = match.index ?? 0;
+    if (start > last) parts.push({ text: text.slice(last, start) });
+    parts.push({ text: match[0], href: match[0] });
+    last = start + match[0].length;
+  }
+  if (last < text.length) parts.push({ text: text.slice(last) });
+  return parts;
+}
+
+/** `/admin/mail` (development mode only): what the local fake SMTP server received. */
+@Component({
+  selector: 'np-dev-mail',
+  imports: [DatePipe, MatButton, MatIcon, MatProgressBar, MatTabGroup, MatTab],
+  templateUrl: './dev-mail.html',
+  styleUrl: './dev-mail.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class DevMail {
+  // services
+  readonly #http = inject(HttpClient);
+  readonly #dialog = inject(MatDialog);
+  readonly #snackBar = inject(MatSnackBar);
+  readonly #sanitizer = inject(DomSanitizer);
+
+  protected readonly mails = httpResource<StoredMail[]>(() => '/api/dev/mail');
+  protected readonly list = computed(() => (this.mails.hasValue() ? this.mails.value() : []));
+  protected readonly problem = computed(() => (this.mails.error() ? errorMessage(this.mails.error()) : null));
+  /** The open mail; follows the newest one until the admin picks another. */
+  protected readonly selectedId = linkedSignal<StoredMail[], number | null>({
+    source: this.list,
+    computation: (mails, previous) =>
+      previous && mails.some((m) => m.id === previous.value) ? previous.value : (mails[0]?.id ?? null),
+  });
+  protected readonly selected = computed(() => this.list().find((m) => m.id === this.selectedId()) ?? null);
+  protected readonly textParts = computed(() => linkify(this.selected()?.text ?? ''));
+  /**
+   * The HTML body, shown in an iframe with an empty `sandbox` (no scripts, no forms, its own opaque
+   * origin) via `srcdoc`; the document also inherits the page's CSP, so nothing is fetched from
+   * outside. Angular's sanitizer would strip the mail's styling, hence the explicit trust here.
+   */
+  protected readonly htmlBody = computed<SafeHtml | null>(() => {
+    const html = this.selected()?.html;
+    return html ? this.#sanitizer.bypassSecurityTrustHtml(html) : null;
+  });
+
+  protected async clearAll(): Promise<void> {
+    const data: ConfirmDialogData = {
+      title: 'Delete all stored mail?',
+      message: 'The development server forgets every mail it received. Real mail is not affected.',
+      confirmLabel: 'Delete all',
+      destructive: true,
+    };
+    if (!(await firstValueFrom(this.#dialog.open(ConfirmDialog, { data }).afterClosed()))) return;
+    try {
+      await firstValueFrom(this.#http.delete('/api/dev/mail', { responseType: 'text' }));
+      this.mails.reload();
+    } catch (error) {
+      this.#snackBar.open(errorMessage(error), 'Dismiss');
+    }
+  }
+}

@@ -1,0 +1,89 @@
+import { ChangeDetectionStrategy, Component, effect, inject, signal } from '@angular/core';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { MatButton } from '@angular/material/button';
+import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
+import { MatInput } from '@angular/material/input';
+import { MatProgressBar } from '@angular/material/progress-bar';
+import { MatOption, MatSelect } from '@angular/material/select';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import type { CoopSettings } from '../../../../shared/api-types';
+import { settingsSchema } from '../../../../shared/schemas';
+import { ApiRequestError, errorMessage } from '../../core/api-error';
+import { SettingsStore } from '../../core/settings-store';
+import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+
+/** `/admin/settings`: the co-op's name, currency, units and capacities. */
+@Component({
+  selector: 'np-coop-settings',
+  imports: [
+    ReactiveFormsModule,
+    MatFormField,
+    MatLabel,
+    MatHint,
+    MatError,
+    MatSuffix,
+    MatInput,
+    MatSelect,
+    MatOption,
+    MatButton,
+    MatProgressBar,
+  ],
+  templateUrl: './coop-settings.html',
+  styleUrl: './coop-settings.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class CoopSettingsPage {
+  // services
+  readonly #store = inject(SettingsStore);
+  readonly #snackBar = inject(MatSnackBar);
+
+  protected readonly resource = this.#store.resource;
+  protected readonly form = inject(NonNullableFormBuilder).group({
+    coopName: ['', [Validators.required, zodValidator(settingsSchema.shape.coopName)]],
+    currency: ['', [Validators.required, zodValidator(settingsSchema.shape.currency)]],
+    unitSystem: ['metric' as CoopSettings['unitSystem'], Validators.required],
+    storageCapacityT: [0, [Validators.required, zodValidator(settingsSchema.shape.storageCapacityT)]],
+    handlingCapacityTPerDay: [0, [Validators.required, zodValidator(settingsSchema.shape.handlingCapacityTPerDay)]],
+  });
+  protected readonly saving = signal(false);
+  protected readonly failure = signal<string | null>(null);
+
+  constructor() {
+    // Fill the form once the settings arrive, and again after a save; never over someone's edits.
+    effect(() => {
+      const settings = this.#store.settings();
+      if (settings && this.form.pristine) this.form.reset(settings);
+    });
+  }
+
+  protected upperCaseCurrency(): void {
+    const control = this.form.controls.currency;
+    control.setValue(control.value.trim().toUpperCase());
+  }
+
+  protected async saveSettings(): Promise<void> {
+    if (this.form.invalid) {
+      this.form.markAllAsTouched();
+      return;
+    }
+    this.failure.set(null);
+    this.saving.set(true);
+    try {
+      const value = this.form.getRawValue();
+      const saved = await this.#store.save({ ...value, coopName: value.coopName.trim() });
+      this.form.reset(saved);
+      this.#snackBar.open('Settings saved.', 'OK');
+    } catch (error) {
+      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
+        this.failure.set(errorMessage(error));
+      }
+    } finally {
+      this.saving.set(false);
+    }
+  }
+
+  protected discardChanges(): void {
+    const settings = this.#store.settings();
+    if (settings) this.form.reset(settings);
+  }
+}

@@ -1,0 +1,48 @@
+import type { Routes } from '@angular/router';
+import { ACCESS } from './core/access';
+import { roleGuard, signedInGuard, signedOutGuard } from './core/auth-guards';
+import { Shell } from './shell/shell';
+
+export const routes: Routes = [
+  {
+    path: 'sign-in',
+    title: 'Sign in',
+    canMatch: [signedOutGuard],
+    loadComponent: () => import('./sign-in/sign-in').then((m) => m.SignIn),
+  },
+  {
+    path: 'forgot-password',
+    title: 'Forgot your password',
+    loadComponent: () => import('./sign-in/forgot-password').then((m) => m.ForgotPassword),
+  },
+  {
+    path: 'invite/:token',
+    title: 'Accept your invitation',
+    data: { purpose: 'invite' },
+    loadComponent: () => import('./set-password/set-password').then((m) => m.SetPassword),
+  },
+  {
+    path: 'reset/:token',
+    title: 'Choose a new password',
+    data: { purpose: 'reset' },
+    loadComponent: () => import('./set-password/set-password').then((m) => m.SetPassword),
+  },
+  {
+    path: '',
+    component: Shell,
+    canMatch: [signedInGuard],
+    children: [
+      { path: '', pathMatch: 'full', title: 'Home', loadComponent: () => import('./home/home').then((m) => m.Home) },
+      {
+        path: 'farms',
+        title: 'Farms',
+        canMatch: [roleGuard(ACCESS.farms)],
+        loadComponent: () => import('./farms/farms-list').then((m) => m.FarmsList),
+      },
+      { path: 'admin', loadChildren: () => import('./admin/admin.routes') },
+      { path: 'account', title: 'Account', loadComponent: () => import('./account/account').then((m) => m.Account) },
+      { path: 'forbidden', title: 'No access', loadComponent: () => import('./status/forbidden').then((m) => m.Forbidden) },
+      { path: '**', title: 'Page not found', loadComponent: () => import('./status/not-found').then((m) => m.NotFound) },
+    ],
+  },
+];

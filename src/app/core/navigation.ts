@@ -1,0 +1,31 @@
+import type { Role } from '../../../shared/roles';
+import { ACCESS } from './access';
+
+/** One entry of the side navigation. Adding a feature to the menu is one line in `NAV_ITEMS`. */
+export interface NavItem {
+  readonly path: string;
+  readonly label: string;
+  /** A Material Symbols ligature name. */
+  readonly icon: string;
+  readonly roles: readonly Role[];
+  /** Where the entry sits: the work pages (default), under "Administration", or last with the person's own pages. */
+  readonly group?: 'admin' | 'personal';
+  /** Shown only while the server runs in development mode (GET /api/dev/mail answers 200). */
+  readonly devOnly?: boolean;
+}
+
+export const NAV_ITEMS: readonly NavItem[] = [
+  { path: '/', label: 'Home', icon: 'home', roles: ACCESS.everyone },
+  { path: '/farms', label: 'Farms', icon: 'agriculture', roles: ACCESS.farms },
+  { path: '/admin/users', label: 'Users', icon: 'group', roles: ACCESS.users, group: 'admin' },
+  { path: '/admin/settings', label: 'Co-op settings', icon: 'tune', roles: ACCESS.settings, group: 'admin' },
+  { path: '/admin/audit', label: 'Audit log', icon: 'fact_check', roles: ACCESS.audit, group: 'admin' },
+  { path: '/admin/mail', label: 'Mail outbox', icon: 'outgoing_mail', roles: ACCESS.devMail, group: 'admin', devOnly: true },
+  { path: '/account', label: 'Account', icon: 'manage_accounts', roles: ACCESS.everyone, group: 'personal' },
+];
+
+/** The entries a role may use, in menu order. */
+export function navItemsFor(role: Role | null, options: { devMail: boolean }): NavItem[] {
+  if (role === null) return [];
+  return NAV_ITEMS.filter((item) => item.roles.includes(role) && (!item.devOnly || options.devMail));
+}

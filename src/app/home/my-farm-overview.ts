@@ -1,0 +1,90 @@
+import { DecimalPipe } from '@angular/common';
+import { httpResource } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed } from '@angular/core';
+import { MatButton } from '@angular/material/button';
+import { MatCard, MatCardContent } from '@angular/material/card';
+import { MatIcon } from '@angular/material/icon';
+import { MatProgressBar } from '@angular/material/progress-bar';
+import {
+  MatCell,
+  MatCellDef,
+  MatColumnDef,
+  MatHeaderCell,
+  MatHeaderCellDef,
+  MatHeaderRow,
+  MatHeaderRowDef,
+  MatRow,
+  MatRowDef,
+  MatTable,
+} from '@angular/material/table';
+import type { MyFarm } from '../../../shared/api-types';
+import { errorMessage, errorStatus } from '../core/api-error';
+import { CautionNote } from '../shared/caution-note';
+
+/** One line of the records table: an item and its quantity in each season. */
+export interface RecordLine {
+  item: string;
+  role: 'output' | 'input';
+  unit: string;
+  bySeason: Record<string, number>;
+}
+
+/** Turns the flat record list into item lines with a quantity per season, outputs first; seasons newest first. */
+export function recordsBySeason(records: MyFarm['records']): { seasons: string[]; lines: RecordLine[] } {
+  const seasons = [...new Set(records.map((r) => r.season))].sort((a, b) => b.localeCompare(a, undefined, { numeric: true }));
+  const lines = new Map<string, RecordLine>();
+  for (const r of records) {
+    const key = `${r.role}\u0000${r.item}\u0000${r.unit}`;
+    let line = lines.get(key);
+    if (!line) {
+      line = { item: r.item, role: r.role, unit: r.unit, bySeason: {} };
+      lines.set(key, line);
+    }
+    line.bySeason[r.season] = (line.bySeason[r.season] ?? 0) + r.quantity;
+  }
+  const ordered = [...lines.values()].sort(
+    (a, b) => (a.role === b.role ? a.item.localeCompare(b.item) : a.role === 'output' ? -1 : 1),
+  );
+  return { seasons, lines: ordered };
+}
+
+@Component({
+  selector: 'np-my-farm-overview',
+  imports: [
+    DecimalPipe,
+    MatCard,
+    MatCardContent,
+    MatIcon,
+    MatButton,
+    MatProgressBar,
+    MatTable,
+    MatColumnDef,
+    MatHeaderCellDef,
+    MatHeaderCell,
+    MatCellDef,
+    MatCell,
+    MatHeaderRowDef,
+    MatHeaderRow,
+    MatRowDef,
+    MatRow,
+    CautionNote,
+  ],
+  templateUrl: './my-farm-overview.html',
+  styleUrl: './my-farm-overview.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class MyFarmOverview {
+  protected readonly myFarm = httpResource<MyFarm>(() => '/api/my-farm');
+  protected readonly data = computed(() => (this.myFarm.hasValue() ? this.myFarm.value() : null));
+  protected readonly noFarm = computed(() => errorStatus(this.myFarm.error()) === 404);
+  protected readonly problem = computed(() =>
+    this.myFarm.error() && !this.noFarm() ? errorMessage(this.myFarm.error()) : null,
+  );
+  protected readonly table = computed(() => recordsBySeason(this.data()?.records ?? []));
+  protected readonly columns = computed(() => ['item', ...this.table().seasons]);
+
+  /** Tonnes and hectares to one decimal; litres, hours and kilograms are whole numbers at farm scale. */
+  protected digitsFor(unit: string): string {
+    return unit === 't' || unit === 'ha' ? '1.1-1' : '1.0-0';
+  }
+}

@@ -1,0 +1,113 @@
+import { provideHttpClient, withInterceptors } from '@angular/common/http';
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { computed, provideZonelessChangeDetection, signal } from '@angular/core';
+import { TestBed, type ComponentFixture } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import type { CoopSettings, Me } from '../../../shared/api-types';
+import type { Role } from '../../../shared/roles';
+import { apiErrorInterceptor } from '../core/api-error-interceptor';
+import { AuthStore } from '../core/auth-store';
+import { Shell } from './shell';
+
+const settings: CoopSettings = {
+  coopName: 'Vale Grain Co-operative',
+  currency: 'EUR',
+  unitSystem: 'metric',
+  storageCapacityT: 12000,
+  handlingCapacityTPerDay: 400,
+};
+
+function person(role: Role): Me {
+  return { id: 7, email: `${role}@example.org`, name: `Test ${role}`, role, farmId: role === 'member' ? 3 : null };
+}
+
+describe('Shell', () => {
+  let http: HttpTestingController;
+  let fixture: ComponentFixture<Shell>;
+
+  async function render(role: Role, devMail: 'on' | 'off' | 'not-asked' = 'not-asked'): Promise<void> {
+    const user = signal<Me | null>(person(role));
+    TestBed.configureTestingModule({
+      providers: [
+        provideZonelessChangeDetection(),
+        provideRouter([]),
+        provideHttpClient(withInterceptors([apiErrorInterceptor])),
+        provideHttpClientTesting(),
+        {
+          provide: AuthStore,
+          useValue: {
+            user,
+            role: computed(() => user()?.role ?? null),
+            signedIn: computed(() => user() !== null),
+            clear: () => user.set(null),
+          },
+        },
+      ],
+    });
+    http = TestBed.inject(HttpTestingController);
+    fixture = TestBed.createComponent(Shell);
+    // Requests keep the app unstable, so answer them before waiting for stability.
+    TestBed.tick();
+    http.expectOne('/api/settings').flush(settings);
+    if (devMail === 'on') http.expectOne('/api/dev/mail').flush([]);
+    if (devMail === 'off') {
+      http
+        .expectOne('/api/dev/mail')
+        .flush({ error: { code: 'not_found', message: 'Not found' } }, { status: 404, statusText: 'Not Found' });
+    }
+    await fixture.whenStable();
+  }
+
+  function navLabels(): string[] {
+    const nav = (fixture.nativeElement as HTMLElement).querySelector('nav[aria-label=Main]');
+    return [...(nav?.querySelectorAll('a') ?? [])].map((a) => a.textContent?.replace(/\s+/g, ' ').trim() ?? '');
+  }
+
+  function navPaths(): string[] {
+    const nav = (fixture.nativeElement as HTMLElement).querySelector('nav[aria-label=Main]');
+    return [...(nav?.querySelectorAll('a') ?? [])].map((a) => a.getAttribute('href') ?? '');
+  }
+
+  afterEach(() => http.verify());
+
+  it('should show a planner the co-op pages and the audit log, but no user administration', async () => {
+    await render('planner');
+
+    expect(navPaths()).toEqual(['/', '/farms', '/admin/audit', '/account']);
+    expect(navLabels().join(' | ')).not.toMatch(/Users|Co-op settings|Mail outbox/);
+  });
+
+  it('should show a member only home and account', async () => {
+    await render('member');
+
+    expect(navPaths()).toEqual(['/', '/account']);
+  });
+
+  it('should show a treasurer farms but no administration heading', async () => {
+    await render('treasurer');
+
+    expect(navPaths()).toEqual(['/', '/farms', '/account']);
+    expect((fixture.nativeElement as HTMLElement).textContent).not.toContain('Administration');
+  });
+
+  it('should show an admin the mail outbox only when the server keeps mail', async () => {
+    await render('admin', 'on');
+
+    expect(navPaths()).toEqual(['/', '/farms', '/admin/users', '/admin/settings', '/admin/audit', '/admin/mail', '/account']);
+  });
+
+  it('should leave the mail outbox out for an admin when the server is not in development mode', async () => {
+    await render('admin', 'off');
+
+    expect(navPaths()).not.toContain('/admin/mail');
+    expect(navPaths()).toContain('/admin/users');
+  });
+
+  it("should show the co-op's name from the settings and the person's name in the toolbar", async () => {
+    await render('planner');
+
+    const toolbar = (fixture.nativeElement as HTMLElement).querySelector('mat-toolbar');
+    expect(toolbar?.textContent).toContain('Vale Grain Co-operative');
+    expect(toolbar?.textContent).toContain('Test planner');
+  });
+});

@@ -1,0 +1,74 @@
+import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { MatButton } from '@angular/material/button';
+import { MatError, MatFormField, MatLabel } from '@angular/material/form-field';
+import { MatInput } from '@angular/material/input';
+import { RouterLink } from '@angular/router';
+import { emailSchema } from '../../../shared/schemas';
+import { errorMessage } from '../core/api-error';
+import { AuthStore } from '../core/auth-store';
+import { PublicFrame } from '../shared/public-frame';
+import { zodValidator } from '../shared/zod-validator';
+
+@Component({
+  selector: 'np-forgot-password',
+  imports: [ReactiveFormsModule, RouterLink, PublicFrame, MatFormField, MatLabel, MatError, MatInput, MatButton],
+  template: `
+    <np-public-frame heading="Forgot your password?">
+      @if (sentTo(); as email) {
+        <p class="sent" role="status">
+          If an account exists for {{ email }}, we have sent it a link to choose a new password. The link
+          works once and expires; check the spam folder if nothing arrives within a few minutes.
+        </p>
+      } @else {
+        <p class="intro">Enter the e-mail address you sign in with and we will send a link to choose a new password.</p>
+        <form [formGroup]="form" (ngSubmit)="requestLink()" novalidate>
+          <mat-form-field>
+            <mat-label>E-mail</mat-label>
+            <input matInput formControlName="email" type="email" autocomplete="username" required />
+            @if (form.controls.email.hasError('required')) {
+              <mat-error>Enter your e-mail address</mat-error>
+            } @else if (form.controls.email.hasError('schema')) {
+              <mat-error>{{ form.controls.email.getError('schema') }}</mat-error>
+            }
+          </mat-form-field>
+          @if (failure(); as message) {
+            <p class="problem" role="alert">{{ message }}</p>
+          }
+          <button matButton="filled" type="submit" class="submit" [disabled]="submitting()">Send the link</button>
+        </form>
+      }
+      <p class="links"><a routerLink="/sign-in">Back to sign-in</a></p>
+    </np-public-frame>
+  `,
+  styleUrl: './sign-in.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class ForgotPassword {
+  readonly #auth = inject(AuthStore);
+
+  protected readonly form = inject(NonNullableFormBuilder).group({
+    email: ['', [Validators.required, zodValidator(emailSchema)]],
+  });
+  protected readonly submitting = signal(false);
+  protected readonly failure = signal<string | null>(null);
+  protected readonly sentTo = signal<string | null>(null);
+
+  protected async requestLink(): Promise<void> {
+    if (this.form.invalid) {
+      this.form.markAllAsTouched();
+      return;
+    }
+    const email = this.form.controls.email.value.trim();
+    this.failure.set(null);
+    this.submitting.set(true);
+    try {
+      await this.#auth.requestPasswordReset(email);
+      this.sentTo.set(email);
+    } catch (error) {
+      this.failure.set(errorMessage(error));
+    } finally {
+      this.submitting.set(false);
+    }
+  }
+}
