@@ -1,0 +1,283 @@
+/**
+ * Seemingly unrelated regressions with linear cross-equation restrictions R·β = q: equation-by-
+ * equation OLS, one-step feasible GLS, or iterated FGLS to convergence, computed the way R's
+ * systemfit does it (bordered normal equations, its residual-covariance conventions, its
+ * convergence rule), so that its printed estimates can be reproduced exactly.
+ */
+import { inverse, solve, zeros, type Mat } from './linalg.js';
+
+export type Column = ArrayLike<number>;
+
+export interface SurEquationInput {
+  name: string;
+  y: Column;
+  regressors: { name: string; values: Column }[];
+}
+
+/**
+ * Divisor of the residual covariance σ_ij = e_i'e_j / d (systemfit's `methodResidCov`):
+ * 'noDfCor' d = T (Gaussian ML); 'geomean' d = √((T−K_i)(T−K_j)); 'max' d = T − max(K_i, K_j).
+ */
+export type ResidualCovarianceMethod = 'noDfCor' | 'geomean' | 'max';
+
+export interface SurOptions {
+  method?: 'OLS' | 'SUR';
+  /** R (rows over all stacked coefficients, in equation order) and q (default zeros). */
+  restrictions?: { matrix: Mat; rhs?: number[] };
+  /** 1 gives one-step FGLS; larger values iterate (ITSUR). Default 1, as in systemfit. */
+  maxIterations?: number;
+  /** Stop when √(Σ(Δβ)² / Σβ_old²) ≤ tolerance. Default 1e-5, as in systemfit. */
+  tolerance?: number;
+  residualCovariance?: ResidualCovarianceMethod;
+}
+
+export interface SurEquationResult {
+  name: string;
+  coefficientNames: string[];
+  /** Offset of this equation's first coefficient in the stacked vector. */
+  offset: number;
+  ssr: number;
+  /** 1 − SSR / Σ(y − ȳ)². */
+  r2: number;
+  /** √(SSR / T). */
+  rmse: number;
+}
+
+export interface SurResult {
+  coefficients: number[];
+  /** Stacked names `<equation>_<regressor>`, as systemfit prints them. */
+  names: string[];
+  covariance: Mat;
+  standardErrors: number[];
+  /** Σ̂ used in the last GLS step (systemfit's `residCovEst`). */
+  sigmaUsed: Mat;
+  /** Σ̂ recomputed from the final residuals with the same divisor (systemfit's `residCov`). */
+  residualCovariance: Mat;
+  residuals: Float64Array[];
+  equations: SurEquationResult[];
+  observations: number;
+  iterations: number;
+  converged: boolean;
+  /** K_i net of restrictions that involve equation i alone (used by the Σ̂ divisors). */
+  coefficientsNetOfRestrictions: number[];
+}
+
+/**
+ * Fit a system of linear equations by OLS or (iterated) SUR.
+ * @throws Error when a design or the bordered system is singular
+ */
+export function fitSur(equations: SurEquationInput[], options: SurOptions = {}): SurResult {
+  const method = options.method ?? 'SUR';
+  const maxIterations = options.maxIterations ?? 1;
+  const tolerance = options.tolerance ?? 1e-5;
+  const covMethod = options.residualCovariance ?? 'geomean';
+  const nEq = equations.length;
+  const T = equations[0]!.y.length;
+  for (const eq of equations) {
+    if (eq.y.length !== T) throw new Error(`sur: equation ${eq.name} has ${eq.y.length} observations, expected ${T}`);
+    for (const r of eq.regressors) if (r.values.length !== T) throw new Error(`sur: regressor ${r.name} of ${eq.name} has the wrong length`);
+  }
+  const kEq = equations.map((e) => e.regressors.length);
+  const offsets: number[] = [];
+  let K = 0;
+  for (const k of kEq) {
+    offsets.push(K);
+    K += k;
+  }
+
+  const { xx: xxBlocks, xy: xyBlocks } = systemCrossProducts(equations);
+
+  const R = options.restrictions?.matrix;
+  const q = options.restrictions?.rhs ?? (R ? new Array<number>(R.length).fill(0) : []);
+  if (R) for (const row of R) if (row.length !== K) throw new Error(`sur: restriction rows need ${K} entries`);
+
+  // K_i less restrictions confined to equation i (cross-equation restrictions do not count).
+  const kLi = kEq.slice();
+  if (R) {
+    for (const row of R) {
+      const total = row.reduce((s, v) => s + v * v, 0);
+      for (let i = 0; i < nEq; i++) {
+        let part = 0;
+        for (let c = offsets[i]!; c < offsets[i]! + kEq[i]!; c++) part += row[c]! * row[c]!;
+        if (part === total) kLi[i]!--;
+      }
+    }
+  }
+
+  const gls = (sigmaInv: Mat | null, withCov = true): { coef: number[]; cov: Mat } => {
+    const A = zeros(K, K);
+    const b = new Array<number>(K).fill(0);
+    for (let i = 0; i < nEq; i++) {
+      for (let j = 0; j < nEq; j++) {
+        const w = sigmaInv ? sigmaInv[i]![j]! : i === j ? 1 : 0;
+        if (w === 0) continue;
+        const blk = xxBlocks[i]![j]!;
+        for (let a = 0; a < kEq[i]!; a++) for (let c = 0; c < kEq[j]!; c++) A[offsets[i]! + a]![offsets[j]! + c]! += w * blk[a]![c]!;
+        const v = xyBlocks[i]![j]!;
+        for (let a = 0; a < kEq[i]!; a++) b[offsets[i]! + a]! += w * v[a]!;
+      }
+    }
+    if (!R || R.length === 0) {
+      return { coef: solve(A, b), cov: withCov ? inverse(A) : [] };
+    }
+    const r = R.length;
+    const W = zeros(K + r, K + r);
+    for (let a = 0; a < K; a++) for (let c = 0; c < K; c++) W[a]![c] = A[a]![c]!;
+    for (let l = 0; l < r; l++)
+      for (let c = 0; c < K; c++) {
+        W[K + l]![c] = R[l]![c]!;
+        W[c]![K + l] = R[l]![c]!;
+      }
+    const rhs = [...b, ...q];
+    const sol = solve(W, rhs);
+    if (!withCov) return { coef: sol.slice(0, K), cov: [] };
+    const winv = inverse(W);
+    return { coef: sol.slice(0, K), cov: winv.slice(0, K).map((row) => row.slice(0, K)) };
+  };
+
+  const residualsOf = (coef: number[]): Float64Array[] =>
+    equations.map((eq, i) => {
+      const e = Float64Array.from(eq.y as ArrayLike<number>);
+      eq.regressors.forEach((reg, a) => {
+        const bcoef = coef[offsets[i]! + a]!;
+        const v = reg.values;
+        for (let t = 0; t < T; t++) e[t]! -= bcoef * v[t]!;
+      });
+      return e;
+    });
+
+  const residCov = (res: Float64Array[]): Mat => {
+    const S = zeros(nEq, nEq);
+    for (let i = 0; i < nEq; i++)
+      for (let j = i; j < nEq; j++) {
+        let s = 0;
+        const ei = res[i]!;
+        const ej = res[j]!;
+        for (let t = 0; t < T; t++) s += ei[t]! * ej[t]!;
+        let d: number;
+        if (covMethod === 'noDfCor') d = T;
+        else if (covMethod === 'geomean') d = Math.sqrt((T - kLi[i]!) * (T - kLi[j]!));
+        else d = T - Math.max(kLi[i]!, kLi[j]!);
+        S[i]![j] = s / d;
+        S[j]![i] = s / d;
+      }
+    return S;
+  };
+
+  let { coef, cov } = gls(null, method === 'OLS');
+  let iterations = 0;
+  let converged = true;
+  let sigmaUsed: Mat;
+  if (method === 'SUR') {
+    let coefDiffRel = Infinity;
+    sigmaUsed = zeros(nEq, nEq);
+    while (coefDiffRel > tolerance && iterations < maxIterations) {
+      iterations++;
+      const old = coef;
+      sigmaUsed = residCov(residualsOf(coef));
+      coef = gls(inverse(sigmaUsed), false).coef;
+      let num = 0;
+      let den = 0;
+      for (let a = 0; a < K; a++) {
+        num += (coef[a]! - old[a]!) ** 2;
+        den += old[a]! ** 2;
+      }
+      coefDiffRel = Math.sqrt(num / den);
+    }
+    converged = maxIterations === 1 || coefDiffRel <= tolerance;
+    // As systemfit: the covariance uses the Σ̂ of the last GLS step.
+    cov = gls(inverse(sigmaUsed)).cov;
+  } else {
+    const res0 = residualsOf(coef);
+    sigmaUsed = residCov(res0).map((row, i) => row.map((v, j) => (i === j ? v : 0)));
+    cov = gls(inverse(sigmaUsed)).cov;
+  }
+
+  const residuals = residualsOf(coef);
+  const residualCovariance = residCov(residuals);
+  const eqResults: SurEquationResult[] = equations.map((eq, i) => {
+    const e = residuals[i]!;
+    let ssr = 0;
+    for (let t = 0; t < T; t++) ssr += e[t]! * e[t]!;
+    let ym = 0;
+    for (let t = 0; t < T; t++) ym += eq.y[t]!;
+    ym /= T;
+    let sst = 0;
+    for (let t = 0; t < T; t++) sst += (eq.y[t]! - ym) ** 2;
+    return {
+      name: eq.name,
+      coefficientNames: eq.regressors.map((r) => r.name),
+      offset: offsets[i]!,
+      ssr,
+      r2: 1 - ssr / sst,
+      rmse: Math.sqrt(ssr / T),
+    };
+  });
+  return {
+    coefficients: coef,
+    names: equations.flatMap((eq) => eq.regressors.map((r) => `${eq.name}_${r.name}`)),
+    covariance: cov,
+    standardErrors: cov.map((row, i) => Math.sqrt(Math.max(row[i]!, 0))),
+    sigmaUsed,
+    residualCovariance,
+    residuals,
+    equations: eqResults,
+    observations: T,
+    iterations,
+    converged,
+    coefficientsNetOfRestrictions: kLi,
+  };
+}
+
+/**
+ * Cross-products X_i'X_j and X_i'y_j of a system's equations. Columns shared between equations
+ * (the same array object) are multiplied once, which matters for long panels.
+ */
+export function systemCrossProducts(equations: SurEquationInput[]): { xx: Mat[][]; xy: number[][][]; yy: Mat } {
+  const T = equations[0]!.y.length;
+  const columnIndex = new Map<Column, number>();
+  const columns: Column[] = [];
+  const idOf = (c: Column): number => {
+    let id = columnIndex.get(c);
+    if (id === undefined) {
+      id = columns.length;
+      columnIndex.set(c, id);
+      columns.push(c);
+    }
+    return id;
+  };
+  const xIds = equations.map((e) => e.regressors.map((r) => idOf(r.values)));
+  const yIds = equations.map((e) => idOf(e.y));
+  const gram = crossProducts(columns, T);
+  const nEq = equations.length;
+  const xx: Mat[][] = [];
+  const xy: number[][][] = [];
+  for (let i = 0; i < nEq; i++) {
+    xx.push([]);
+    xy.push([]);
+    for (let j = 0; j < nEq; j++) {
+      xx[i]!.push(xIds[i]!.map((a) => xIds[j]!.map((b) => gram[a]![b]!)));
+      xy[i]!.push(xIds[i]!.map((a) => gram[a]![yIds[j]!]!));
+    }
+  }
+  const yy = yIds.map((a) => yIds.map((b) => gram[a]![b]!));
+  return { xx, xy, yy };
+}
+
+/** Gram matrix of columns (upper triangle computed, mirrored). */
+export function crossProducts(columns: Column[], T: number): Mat {
+  const U = columns.length;
+  const g = zeros(U, U);
+  const arrs = columns.map((c) => (c instanceof Float64Array ? c : Float64Array.from(c as ArrayLike<number>)));
+  for (let a = 0; a < U; a++) {
+    const ca = arrs[a]!;
+    for (let b = a; b < U; b++) {
+      const cb = arrs[b]!;
+      let s = 0;
+      for (let t = 0; t < T; t++) s += ca[t]! * cb[t]!;
+      g[a]![b] = s;
+      g[b]![a] = s;
+    }
+  }
+  return g;
+}
