@@ -1,24 +1,24 @@
 import { count } from 'drizzle-orm';
 import type { Db } from '../server/db/client.js';
 import {
-  auditLog,
   deliveryPoints,
   farmRecords,
   farms,
   farmSeasonFactors,
   items,
-  oneTimeTokens,
   priceIndexes,
   priceIndexValues,
   priceObservations,
   seasons,
-  sessions,
   settings,
   users,
 } from '../server/db/schema/index.js';
 import { hashPassword } from '../server/auth/passwords.js';
 import { newToken } from '../server/core/ids.js';
 import { buildDemoCoop, DEMO_ACCOUNTS, DEMO_PASSWORD } from './demo-coop.js';
+import { seedFertiliserProducts } from '../server/budget/fertiliser-products.js';
+import { tablesInDependencyOrder } from '../server/db/portable.js';
+import { purgeOutlookData } from '../server/outlook/outlook-service.js';
 
 export async function isDatabaseEmpty(db: Db): Promise<boolean> {
   const [{ n }] = await db.select({ n: count() }).from(users);
@@ -27,10 +27,12 @@ export async function isDatabaseEmpty(db: Db): Promise<boolean> {
 
 /** Deletes every row of every table (keeps the schema). */
 export async function clearDatabase(db: Db) {
+  // Children before the tables they point to.
+  const tables = tablesInDependencyOrder().reverse();
   await db.transaction(async (tx) => {
-    for (const t of [auditLog, sessions, oneTimeTokens, farmRecords, farmSeasonFactors, priceIndexValues, priceIndexes, priceObservations, farms, users, items, seasons, deliveryPoints, settings]) {
-      await tx.delete(t);
-    }
+    // Published outlooks refuse deletion unless the purge flag is set in this transaction.
+    await purgeOutlookData(tx);
+    for (const t of tables) await tx.delete(t);
   });
 }
 
@@ -99,6 +101,7 @@ export async function loadDemoCoop(db: Db) {
     }
     const [ix] = await tx.insert(priceIndexes).values(demo.deflator).returning({ id: priceIndexes.id });
     await tx.insert(priceIndexValues).values(demo.deflatorValues.map((v) => ({ indexId: ix.id, seasonId: seasonId.get(v.season)!, value: v.value })));
+    await seedFertiliserProducts(tx, demo.settings.currency);
     for (const part of chunks(demo.land)) {
       await tx
         .insert(farmSeasonFactors)

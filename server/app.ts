@@ -22,6 +22,10 @@ import { deliveryPointsRoutes, farmWriteRoutes, itemsRoutes, seasonsRoutes } fro
 import { priceIndexRoutes, pricesRoutes } from './prices/prices-router.js';
 import { recordsRoutes } from './records/records-router.js';
 import { modelRunsRoutes, modelsRoutes } from './models/models-router.js';
+import { budgetsRoutes, fertiliserProductsRoutes } from './budget/budgets-router.js';
+import { outlookRoutes, futuresRoutes } from './outlook/outlook-router.js';
+import { portalRoutes } from './outlook/portal-router.js';
+import { accountMailRoutes, unsubscribeRoutes } from './outlook/account-router.js';
 import { VERSION } from './version.js';
 
 export interface NetputApp extends express.Express {
@@ -102,6 +106,13 @@ export function createApp(ctx: AppContext): NetputApp {
   mount('/imports', importsRoutes(ctx));
   mount('/models', modelsRoutes(ctx));
   mount('/model-runs', modelRunsRoutes(ctx));
+  mount('/budgets', budgetsRoutes(ctx));
+  mount('/fertiliser-products', fertiliserProductsRoutes(ctx));
+  mount('/outlooks', outlookRoutes(ctx));
+  mount('/futures-quotes', futuresRoutes(ctx));
+  mount('/portal', portalRoutes(ctx));
+  mount('/account', accountMailRoutes(ctx));
+  mount('/unsubscribe', unsubscribeRoutes(ctx));
   mount('/dev/mail', devMailRoutes(ctx));
   api.use(notFoundHandler);
   api.use(errorHandler);

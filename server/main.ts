@@ -22,7 +22,7 @@ async function main() {
     smtpUrl = fakeSmtp.url;
   }
   const mailer = createMailer(smtpUrl, config.mailFrom);
-  const background = startBackgroundWork(database.db);
+  const background = startBackgroundWork(database.db, { mailer });
   const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp, jobs: background.runner });
 
   const server = app.listen(config.port, () => {

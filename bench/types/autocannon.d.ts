@@ -5,7 +5,7 @@ declare module 'autocannon' {
     connections?: number;
     duration?: number;
     headers?: Record<string, string>;
-    requests?: { method?: string; path: string; headers?: Record<string, string>; body?: string }[];
+    requests?: { method?: string; path: string; headers?: Record<string, string>; body?: string; setupRequest?: (req: any) => any }[]; // eslint-disable-line @typescript-eslint/no-explicit-any
   }
   interface Result {
     requests: { average: number; total: number };
@@ -18,5 +18,8 @@ declare module 'autocannon' {
     on(event: 'response', cb: (client: unknown, statusCode: number, bytes: number, responseTime: number) => void): void;
   }
   function autocannon(options: Options): Instance;
+  namespace autocannon {
+    export type { Result };
+  }
   export default autocannon;
 }

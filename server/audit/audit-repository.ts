@@ -23,7 +23,8 @@ export async function recordAudit(db: Db, entry: AuditEntry) {
   });
 }
 
-export async function listAudit(db: Db, limit: number, offset: number) {
+export async function listAudit(db: Db, limit: number, offset: number, entity?: string) {
+  const only = entity ? eq(auditLog.entity, entity) : undefined;
   const rows = await db
     .select({
       id: auditLog.id,
@@ -37,9 +38,10 @@ export async function listAudit(db: Db, limit: number, offset: number) {
     })
     .from(auditLog)
     .leftJoin(users, eq(users.id, auditLog.actorUserId))
+    .where(only)
     .orderBy(desc(auditLog.at), desc(auditLog.id))
     .limit(limit)
     .offset(offset);
-  const [{ total }] = await db.select({ total: count() }).from(auditLog);
+  const [{ total }] = await db.select({ total: count() }).from(auditLog).where(only);
   return { rows: rows.map((r) => ({ ...r, at: r.at.toISOString() })), total };
 }

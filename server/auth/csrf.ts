@@ -20,6 +20,8 @@ function same(a: string, b: string): boolean {
  */
 export function csrfProtection(secure: boolean): RequestHandler {
   return (req, res, next) => {
+    // RFC 8058 one-click unsubscribe: mail providers POST without cookies; the signed token is the authority.
+    if (req.method === 'POST' && /^\/unsubscribe\/[^/]+$/.test(req.path)) return next();
     let cookie: unknown = req.cookies?.[XSRF_COOKIE];
     if (typeof cookie !== 'string' || cookie.length < 20) {
       cookie = newToken();

@@ -1,5 +1,5 @@
-import { getTableName, sql } from 'drizzle-orm';
-import { getTableConfig, type PgTable } from 'drizzle-orm/pg-core';
+import { getTableName, is, sql } from 'drizzle-orm';
+import { getTableConfig, PgTable } from 'drizzle-orm/pg-core';
 import * as schema from './schema/index.js';
 import type { Db } from './client.js';
 
@@ -13,15 +13,7 @@ export interface PortableDump {
 }
 
 function allTables(): PgTable[] {
-  return Object.values(schema).filter((v): v is PgTable => typeof v === 'object' && v !== null && getTableConfigSafe(v) !== null);
-}
-
-function getTableConfigSafe(v: unknown) {
-  try {
-    return getTableConfig(v as PgTable);
-  } catch {
-    return null;
-  }
+  return (Object.values(schema) as unknown[]).filter((v): v is PgTable => is(v, PgTable));
 }
 
 /** Tables sorted so that each comes after the tables its foreign keys point to. */

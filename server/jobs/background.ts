@@ -1,16 +1,32 @@
 import type { Db } from '../db/client.js';
+import type { Mailer } from '../mail/mailer.js';
+import { OutboxDispatcher } from '../mail/outbox-dispatcher.js';
 import { FIT_JOB, fitJobHandler } from '../models/models-service.js';
+import { OUTLOOK_PROJECTION_JOB, projectionJobHandler } from '../outlook/projection-service.js';
 import { JobRunner } from './job-runner.js';
 import { WorkerPool } from './worker-pool.js';
 
-/** The worker pool and the job runner of one app instance. */
-export function startBackgroundWork(db: Db, options: { threads?: number; pollMs?: number } = {}) {
+/**
+ * The worker pool, the job runner and (given a mailer) the mail outbox dispatcher of one app instance.
+ * OUTBOX_SEND_DELAY_MS pauses each send between its claim and SMTP (crash tests only).
+ */
+export function startBackgroundWork(db: Db, options: { threads?: number; pollMs?: number; mailer?: Mailer } = {}) {
   const pool = new WorkerPool(options.threads);
-  const runner = new JobRunner(db, { [FIT_JOB]: { handler: fitJobHandler(db, pool) } }, options.threads ?? 2, options.pollMs ?? 250).start();
+  const runner = new JobRunner(
+    db,
+    { [FIT_JOB]: { handler: fitJobHandler(db, pool) }, [OUTLOOK_PROJECTION_JOB]: { handler: projectionJobHandler(db, pool) } },
+    options.threads ?? 2,
+    options.pollMs ?? 250,
+  ).start();
+  const outbox = options.mailer
+    ? new OutboxDispatcher(db, options.mailer, { pollMs: options.pollMs ?? 500, sendDelayMs: Number(process.env.OUTBOX_SEND_DELAY_MS ?? 0) || 0 }).start()
+    : undefined;
   return {
     pool,
     runner,
+    outbox,
     async stop() {
+      await outbox?.stop();
       await runner.stop();
       await pool.close();
     },

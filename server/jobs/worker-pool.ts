@@ -2,6 +2,10 @@ import os from 'node:os';
 import { MessageChannel } from 'node:worker_threads';
 import { Piscina } from 'piscina';
 import type { FitRunResult, FitTask } from './fit-task.js';
+import type { ProjectionResult } from '../estimation/index.js';
+import type { ProjectionTask } from '../outlook/projection-task.js';
+
+const PROJECTION_TASK = new URL('../outlook/projection-task.ts', import.meta.url).href;
 
 /**
  * Worker threads for CPU-heavy work, so the request thread stays responsive. Workers load the
@@ -27,6 +31,11 @@ export class WorkerPool {
     return this.pool
       .run({ ...task, progressPort: channel.port1 }, { transferList: [channel.port1], signal })
       .finally(() => channel.port2.close()) as Promise<FitRunResult>;
+  }
+
+  /** A season projection (server/outlook/projection-task.ts) on the same threads. */
+  runProjection(task: ProjectionTask, signal?: AbortSignal): Promise<ProjectionResult> {
+    return this.pool.run(task, { filename: PROJECTION_TASK, signal }) as Promise<ProjectionResult>;
   }
 
   get threads() {

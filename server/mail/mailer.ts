@@ -5,6 +5,9 @@ export interface OutgoingMail {
   subject: string;
   text: string;
   html?: string;
+  /** A stable Message-ID lets a retry after an unknown outcome be recognised downstream. */
+  messageId?: string;
+  headers?: Record<string, string>;
 }
 
 export interface Mailer {

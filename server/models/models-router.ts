@@ -5,7 +5,7 @@ import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
-import { models } from '../db/schema/index.js';
+import { models, users } from '../db/schema/index.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { elasticitiesAt, evaluateFit, isEstimationInputError, type FitResult } from '../estimation/index.js';
 import { cancelRun, createModel, getModel, getRun, getRunStatus, listModels, rerun, startRun } from './models-service.js';
@@ -71,7 +71,17 @@ export function modelRunsRoutes(ctx: AppContext): RouteDef[] {
     return (run.result as { fit: FitResult }).fit;
   };
   return [
-    { method: 'get', path: '/:id', access: READ, handler: async (req, res) => res.json(await getRun(ctx.db, parse(idParamSchema, req.params, 'params').id)) },
+    {
+      method: 'get',
+      path: '/:id',
+      access: READ,
+      handler: async (req, res) => {
+        const run = await getRun(ctx.db, parse(idParamSchema, req.params, 'params').id);
+        // Who started it, by name, for the result page's provenance (treasurers cannot list users).
+        const [by] = run.createdBy === null ? [] : await ctx.db.select({ name: users.name }).from(users).where(eq(users.id, run.createdBy));
+        res.json({ ...run, createdByName: by?.name ?? null });
+      },
+    },
     {
       method: 'get',
       path: '/:id/status',

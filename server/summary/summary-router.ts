@@ -18,7 +18,10 @@ export async function coopSummary(db: Db): Promise<CoopSummary> {
     .from(farmRecords)
     .groupBy(farmRecords.seasonId);
   const withRecords = new Map(perSeason.map((r) => [r.seasonId, Number(r.farmsWithRecords)]));
+  // Seasons after the newest one with any record have not been recorded yet: not gaps.
+  const lastRecorded = seasonRows.reduce((last, s, i) => (withRecords.has(s.id) ? i : last), -1);
   const recordGaps = seasonRows
+    .slice(0, lastRecorded + 1)
     .map((s) => ({ season: s.label, farmsMissing: Number(farmCount) - (withRecords.get(s.id) ?? 0) }))
     .filter((g) => g.farmsMissing > 0)
     .reverse();

@@ -26,7 +26,7 @@ export async function startTestApp(options: { demo?: boolean; dev?: boolean; job
     ...loadConfig({ LOG_LEVEL: 'silent', PUBLIC_URL: 'http://netput.test', APP_DIR: path.join(os.tmpdir(), 'netput-no-app') }, options.dev ? ['--dev'] : []),
   };
   const mailer = createMailer(smtp.url, config.mailFrom);
-  const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50 }) : undefined;
+  const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50, mailer }) : undefined;
   const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp: smtp, jobs: background?.runner });
   return {
     app,

@@ -8,3 +8,6 @@ export * from './records.js';
 export * from './audit.js';
 export * from './models.js';
 export * from './jobs.js';
+export * from './imports.js';
+export * from './budgets.js';
+export * from './outlook.js';

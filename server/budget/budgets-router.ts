@@ -1,0 +1,126 @@
+import type { Response } from 'express';
+import { idParamSchema } from '../../shared/schemas.js';
+import type { AppContext } from '../context.js';
+import type { RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
+import { budgetExportQuerySchema, budgetInputSchema, budgetViewQuerySchema, fertiliserProductSchema } from './budget-schemas.js';
+import { budgetCsv, budgetXlsx } from './budget-export.js';
+import { budgetForExport, createBudget, deleteBudget, getBudget, listBudgets, previewBudget, unitSystemOf, updateBudget } from './budget-service.js';
+import { createProduct, deleteProduct, listProducts, updateProduct } from './fertiliser-products.js';
+
+/** Treasurers write budgets and the product list they plan with; planners and admins read; members nothing. */
+const READ = ['admin', 'planner', 'treasurer'] as const;
+const WRITE = ['treasurer'] as const;
+
+function fileName(id: number, name: string, ext: string): string {
+  const slug = name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 60) || 'budget';
+  return `budget-${id}-${slug}.${ext}`;
+}
+
+function attach(res: Response, type: string, name: string, body: string | Buffer) {
+  res.setHeader('Content-Type', type);
+  res.setHeader('Content-Disposition', `attachment; filename="${name}"`);
+  res.setHeader('Cache-Control', 'no-store');
+  res.send(body);
+}
+
+/** Mounted at /api/budgets. */
+export function budgetsRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    { method: 'get', path: '/', access: READ, handler: async (_req, res) => res.json(await listBudgets(ctx.db)) },
+    {
+      // Computes a budget without saving it, to try inputs out.
+      method: 'post',
+      path: '/preview',
+      access: WRITE,
+      handler: async (req, res) => {
+        const input = parse(budgetInputSchema, req.body, 'body');
+        const { units } = parse(budgetViewQuerySchema, req.query, 'query');
+        res.json(await previewBudget(ctx.db, input, await unitSystemOf(ctx.db, units)));
+      },
+    },
+    {
+      method: 'post',
+      path: '/',
+      access: WRITE,
+      handler: async (req, res) => {
+        const input = parse(budgetInputSchema, req.body, 'body');
+        const { units } = parse(budgetViewQuerySchema, req.query, 'query');
+        res.status(201).json(await createBudget(ctx.db, input, req.user!.id, await unitSystemOf(ctx.db, units)));
+      },
+    },
+    {
+      method: 'get',
+      path: '/:id',
+      access: READ,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        const { units } = parse(budgetViewQuerySchema, req.query, 'query');
+        res.json(await getBudget(ctx.db, id, await unitSystemOf(ctx.db, units)));
+      },
+    },
+    {
+      method: 'put',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        const input = parse(budgetInputSchema, req.body, 'body');
+        const { units } = parse(budgetViewQuerySchema, req.query, 'query');
+        res.json(await updateBudget(ctx.db, id, input, req.user!.id, await unitSystemOf(ctx.db, units)));
+      },
+    },
+    {
+      method: 'delete',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        await deleteBudget(ctx.db, parse(idParamSchema, req.params, 'params').id, req.user!.id);
+        res.status(204).end();
+      },
+    },
+    {
+      method: 'get',
+      path: '/:id/export',
+      access: READ,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        const q = parse(budgetExportQuerySchema, req.query, 'query');
+        const { header, result } = await budgetForExport(ctx.db, id, await unitSystemOf(ctx.db, q.units));
+        if (q.format === 'csv') attach(res, 'text/csv; charset=utf-8', fileName(id, header.name, 'csv'), budgetCsv(header, result));
+        else attach(res, 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet', fileName(id, header.name, 'xlsx'), await budgetXlsx(header, result));
+      },
+    },
+  ];
+}
+
+/** Mounted at /api/fertiliser-products: the products budgets plan with. */
+export function fertiliserProductsRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    { method: 'get', path: '/', access: READ, handler: async (_req, res) => res.json(await listProducts(ctx.db)) },
+    {
+      method: 'post',
+      path: '/',
+      access: WRITE,
+      handler: async (req, res) => res.status(201).json(await createProduct(ctx.db, parse(fertiliserProductSchema, req.body, 'body'), req.user!.id)),
+    },
+    {
+      method: 'put',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        res.json(await updateProduct(ctx.db, id, parse(fertiliserProductSchema, req.body, 'body'), req.user!.id));
+      },
+    },
+    {
+      method: 'delete',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        await deleteProduct(ctx.db, parse(idParamSchema, req.params, 'params').id, req.user!.id);
+        res.status(204).end();
+      },
+    },
+  ];
+}

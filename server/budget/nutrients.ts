@@ -1,0 +1,52 @@
+import { k2oToK, p2o5ToP } from '../../shared/units.js';
+
+/**
+ * The three nutrients a fertiliser budget sizes, named like the demo model's items: nitrogen in
+ * kg N, phosphate in kg P2O5, potash in kg K2O (oxide basis, as grades are written).
+ */
+export const NUTRIENTS = ['nitrogen', 'phosphate', 'potash'] as const;
+export type Nutrient = (typeof NUTRIENTS)[number];
+export type NutrientAmounts = Record<Nutrient, number>;
+
+export const NUTRIENT_LABEL: Record<Nutrient, string> = { nitrogen: 'N', phosphate: 'P2O5', potash: 'K2O' };
+
+/** The grade column of a product for each nutrient. */
+export const GRADE_FIELD = { nitrogen: 'nPct', phosphate: 'p2o5Pct', potash: 'k2oPct' } as const;
+
+export interface Graded {
+  nPct: number;
+  p2o5Pct: number;
+  k2oPct: number;
+}
+
+/** kg of the nutrient in one tonne of product: grade % × 10. */
+export function kgPerTonne(product: Graded, nutrient: Nutrient): number {
+  return product[GRADE_FIELD[nutrient]] * 10;
+}
+
+export function gradeLabel(p: Graded): string {
+  const f = (x: number) => (Number.isInteger(x) ? String(x) : String(Math.round(x * 10) / 10));
+  return `${f(p.nPct)}-${f(p.p2o5Pct)}-${f(p.k2oPct)}`;
+}
+
+export const zeroAmounts = (): NutrientAmounts => ({ nitrogen: 0, phosphate: 0, potash: 0 });
+
+export function mapAmounts(a: NutrientAmounts, f: (v: number, n: Nutrient) => number): NutrientAmounts {
+  return { nitrogen: f(a.nitrogen, 'nitrogen'), phosphate: f(a.phosphate, 'phosphate'), potash: f(a.potash, 'potash') };
+}
+
+/** Elemental P and K (kg) of an oxide-basis amount, for showing beside P2O5 and K2O. */
+export function elementsOf(a: NutrientAmounts): { p: number; k: number } {
+  return { p: p2o5ToP(a.phosphate), k: k2oToK(a.potash) };
+}
+
+/** An input the budget cannot work with: a 422 with the field it concerns. */
+export class BudgetInputError extends Error {
+  constructor(
+    message: string,
+    readonly path?: string,
+  ) {
+    super(message);
+    this.name = 'BudgetInputError';
+  }
+}

@@ -1,0 +1,118 @@
+/**
+ * A budget that starts from a published season outlook (issue 6): the nutrient demand is the
+ * outlook's co-op projection (point at θ̂) in the chosen price scenario, as published; the
+ * elasticities and the exact re-evaluation for price scenarios come from the outlook's own model
+ * run at the same prices and the same farm points (each farm's fixed factors as published).
+ *
+ * The published snapshot belongs to server/outlook; only the fields read here are checked, so a
+ * version without a co-op projection answers 422 rather than a wrong number.
+ */
+import { eq } from 'drizzle-orm';
+import { z } from 'zod';
+import type { Db } from '../db/client.js';
+import { outlookVersionFarms, outlookVersions } from '../db/schema/index.js';
+import { AppError } from '../core/app-error.js';
+import { getRun } from '../models/models-service.js';
+import type { FitResult } from '../estimation/index.js';
+import type { BudgetSource } from './budget-schemas.js';
+import type { ResolvedSource } from './budget-compute.js';
+import { coopElasticities, demandAt } from './model-demand.js';
+import { nutrientItemsOf } from './nutrient-items.js';
+import { BudgetInputError, NUTRIENTS, type Nutrient, type NutrientAmounts } from './nutrients.js';
+
+const quantitySchema = z.object({ point: z.number(), p5: z.number(), p95: z.number() });
+const snapshotSchema = z.object({
+  outlookId: z.number(),
+  version: z.number(),
+  season: z.object({ label: z.string(), startYear: z.number() }),
+  title: z.string(),
+  publishedAt: z.string(),
+  model: z.object({ runId: z.number(), modelName: z.string().optional() }),
+  scenarios: z.array(z.object({ name: z.string(), prices: z.record(z.string(), z.number()) })).min(1),
+  projection: z.object({
+    trendSeason: z.number().nullable().optional(),
+    coop: z.object({ items: z.array(z.object({ item: z.string(), unit: z.string(), scenarios: z.record(z.string(), quantitySchema) })) }),
+  }),
+});
+const farmPartSchema = z.object({ code: z.string(), fixed: z.record(z.string(), z.number()) });
+
+export async function resolveOutlook(db: Db, source: Extract<BudgetSource, { kind: 'outlook' }>): Promise<ResolvedSource> {
+  const [row] = await db.select().from(outlookVersions).where(eq(outlookVersions.id, source.outlookVersionId));
+  if (!row) throw AppError.notFound('The published outlook');
+  const parsed = snapshotSchema.safeParse(row.snapshot);
+  if (!parsed.success) throw new BudgetInputError(`Published outlook ${source.outlookVersionId} carries no co-op projection a budget can read`, 'source.outlookVersionId');
+  const snap = parsed.data;
+  const scenario = snap.scenarios.find((s) => s.name === source.scenario);
+  if (!scenario) throw new BudgetInputError(`The outlook has no "${source.scenario}" scenario (it has ${snap.scenarios.map((s) => s.name).join(', ')})`, 'source.scenario');
+
+  const run = await getRun(db, snap.model.runId);
+  const fit = (run.result as { fit: FitResult }).fit;
+  const nutrientItems = await nutrientItemsOf(db, fit, source.items);
+  const demand = {} as NutrientAmounts;
+  const bands = {} as Record<Nutrient, { p5: number; p95: number }>;
+  for (const n of NUTRIENTS) {
+    const it = snap.projection.coop.items.find((x) => x.item === nutrientItems[n].code);
+    const q = it?.scenarios[scenario.name];
+    if (!q) throw new BudgetInputError(`The outlook projects no "${nutrientItems[n].code}" (${n}) in its ${scenario.name} scenario`, `source.items.${n}`);
+    const k = nutrientItems[n].kgPerUnit;
+    demand[n] = q.point * k;
+    bands[n] = { p5: q.p5 * k, p95: q.p95 * k };
+    if (!(demand[n] > 0)) throw new BudgetInputError(`The outlook projects no positive ${n} demand (${Math.round(demand[n])} kg)`, 'source.outlookVersionId');
+  }
+
+  const parts = await db.select({ data: outlookVersionFarms.data }).from(outlookVersionFarms).where(eq(outlookVersionFarms.versionId, row.id));
+  const points = parts
+    .map((p) => farmPartSchema.safeParse(p.data))
+    .filter((p) => p.success)
+    .map((p) => ({ farm: p.data.code, season: snap.season.label, fixed: p.data.fixed }))
+    .sort((a, b) => (a.farm < b.farm ? -1 : a.farm > b.farm ? 1 : 0));
+  const prices = scenario.prices;
+  const warnings: string[] = [];
+  const nutrientPrices: Partial<Record<Nutrient, number>> = {};
+  for (const n of NUTRIENTS) if (prices[nutrientItems[n].code] !== undefined) nutrientPrices[n] = prices[nutrientItems[n].code]! / nutrientItems[n].kgPerUnit;
+  let elasticities: ResolvedSource['elasticities'] = null;
+  let farms: unknown[] = [];
+  let exactDemandAt: ResolvedSource['exactDemandAt'];
+  if (points.length) {
+    elasticities = coopElasticities(fit, points, prices, nutrientItems);
+    const check = demandAt(fit, points, prices, nutrientItems);
+    farms = check.farms;
+    for (const n of NUTRIENTS)
+      if (Math.abs(check.total[n] / demand[n] - 1) > 1e-6)
+        warnings.push(`The model re-evaluated at the outlook's farms gives ${Math.round(check.total[n])} kg ${n}, the published projection ${Math.round(demand[n])} kg; the budget uses the published figure`);
+    const scale = Object.fromEntries(NUTRIENTS.map((n) => [n, demand[n] / check.total[n]])) as NutrientAmounts;
+    exactDemandAt = (changes) => {
+      const p = { ...prices };
+      for (const n of NUTRIENTS) p[nutrientItems[n].code] = p[nutrientItems[n].code]! * (1 + (changes[n] ?? 0) / 100);
+      const t = demandAt(fit, points, p, nutrientItems).total;
+      // On the published level: the same ratio to the model's own base figure.
+      return { nitrogen: t.nitrogen * scale.nitrogen, phosphate: t.phosphate * scale.phosphate, potash: t.potash * scale.potash };
+    };
+  } else warnings.push('The published outlook has no farm parts, so the scenarios hold the nutrient demand fixed');
+
+  return {
+    kind: 'outlook',
+    demand,
+    elasticities,
+    elasticitySource: elasticities ? 'outlook' : 'none',
+    nutrientPrices,
+    detail: {
+      outlookId: snap.outlookId,
+      versionId: row.id,
+      version: snap.version,
+      title: snap.title,
+      season: snap.season.startYear,
+      seasonLabel: snap.season.label,
+      publishedAt: snap.publishedAt,
+      scenario: scenario.name,
+      runId: snap.model.runId,
+      modelName: snap.model.modelName ?? null,
+      prices,
+      bands,
+      nutrientItems,
+      farms,
+    },
+    warnings,
+    exactDemandAt,
+  };
+}

@@ -1,0 +1,129 @@
+/**
+ * The personal outlook e-mail: HTML and plain text with the member's own farm figures, the co-op
+ * totals, the expected prices, the planner's commentary, the cautions, a link to the portal and a
+ * one-click unsubscribe link. It only shows numbers it is given; it computes none.
+ */
+
+export interface OutlookMailQuantity {
+  name: string;
+  unit: string;
+  role: 'output' | 'input';
+  /** Base scenario: point projection and the 5–95% band. */
+  point: number;
+  p5: number;
+  p95: number;
+  /** Point projections of the low and high scenarios. */
+  low: number;
+  high: number;
+}
+
+export interface OutlookMailInput {
+  to: string;
+  recipientName: string;
+  coopName: string;
+  season: string;
+  version: number;
+  title: string;
+  publishedOn: string;
+  prices: { name: string; priceUnit: string; low: number; base: number; high: number; method: string }[];
+  farm: { code: string; name: string; fixed: string; items: OutlookMailQuantity[] } | null;
+  coop: OutlookMailQuantity[];
+  deliveries: { point: number; p5: number; p95: number; storageShare: number | null; handlingDays: number | null } | null;
+  /** How the low and high scenarios are made, in words. */
+  scenarioRule: string;
+  commentary: string;
+  cautions: string[];
+  portalUrl: string;
+  unsubscribeUrl: string;
+}
+
+const nf0 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 0 });
+const nf1 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 1, minimumFractionDigits: 1 });
+const nf2 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 2, minimumFractionDigits: 2 });
+const nf3 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 3, minimumFractionDigits: 3 });
+
+export function fmtQuantity(x: number): string {
+  return Math.abs(x) >= 100 ? nf0.format(x) : nf1.format(x);
+}
+export function fmtMoney(x: number): string {
+  return Math.abs(x) >= 10 ? nf2.format(x) : nf3.format(x);
+}
+
+function escapeHtml(s: string): string {
+  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+}
+
+const band = (q: OutlookMailQuantity) => `${fmtQuantity(q.p5)}–${fmtQuantity(q.p95)}`;
+
+function quantityLines(rows: OutlookMailQuantity[]): string[] {
+  return rows.map(
+    (q) =>
+      `  ${q.name}: ${fmtQuantity(q.point)} ${q.unit} (90% band ${band(q)}; low scenario ${fmtQuantity(q.low)}, high scenario ${fmtQuantity(q.high)})`,
+  );
+}
+
+function quantityTable(rows: OutlookMailQuantity[]): string {
+  const th = 'style="text-align:left;padding:4px 8px;border-bottom:1px solid #c9d3ca"';
+  const td = 'style="padding:4px 8px;border-bottom:1px solid #e3e8e3"';
+  const tdn = 'style="padding:4px 8px;border-bottom:1px solid #e3e8e3;text-align:right;white-space:nowrap"';
+  return `<table style="border-collapse:collapse;font-size:14px">
+<tr><th ${th}>Item</th><th ${th}>Projected</th><th ${th}>90% band</th><th ${th}>Low scenario</th><th ${th}>High scenario</th></tr>
+${rows
+  .map(
+    (q) =>
+      `<tr><td ${td}>${escapeHtml(q.name)}</td><td ${tdn}>${fmtQuantity(q.point)} ${escapeHtml(q.unit)}</td><td ${tdn}>${band(q)}</td><td ${tdn}>${fmtQuantity(q.low)}</td><td ${tdn}>${fmtQuantity(q.high)}</td></tr>`,
+  )
+  .join('\n')}
+</table>`;
+}
+
+export function outlookMail(m: OutlookMailInput): { to: string; subject: string; text: string; html: string } {
+  const updated = m.version > 1 ? ` (update ${m.version})` : '';
+  const subject = `${m.coopName}: season outlook ${m.season}${updated}`;
+  const priceLines = m.prices.map((p) => `  ${p.name}: ${fmtMoney(p.base)} ${p.priceUnit} (low ${fmtMoney(p.low)}, high ${fmtMoney(p.high)}; ${p.method})`);
+  const deliveries = m.deliveries
+    ? `Deliveries to the co-op: ${fmtQuantity(m.deliveries.point)} t (band ${fmtQuantity(m.deliveries.p5)}–${fmtQuantity(m.deliveries.p95)} t)${
+        m.deliveries.storageShare !== null ? `, ${Math.round(100 * m.deliveries.storageShare)}% of the storage capacity` : ''
+      }${m.deliveries.handlingDays !== null ? `, about ${nf0.format(m.deliveries.handlingDays)} days of intake at full handling capacity` : ''}.`
+    : null;
+
+  const text = [
+    `Hello ${m.recipientName},`,
+    `${m.coopName} has published its outlook for the ${m.season} season${updated}: "${m.title}" (${m.publishedOn}).`,
+    m.farm
+      ? `Your farm, ${m.farm.name} (${m.farm.code}, ${m.farm.fixed}), at the expected prices:\n${quantityLines(m.farm.items).join('\n')}`
+      : 'No farm is linked to your account, so this message shows the co-op totals only.',
+    `The co-op in total:\n${quantityLines(m.coop).join('\n')}${deliveries ? `\n${deliveries}` : ''}`,
+    `Expected prices:\n${priceLines.join('\n')}\n${m.scenarioRule}`,
+    m.commentary.trim() ? `From the planner:\n${m.commentary.trim()}` : null,
+    `Please note:\n${m.cautions.map((c) => `- ${c}`).join('\n')}`,
+    `Read the full outlook and your farm's figures in the member portal:\n${m.portalUrl}`,
+    `You receive this because you are a member of ${m.coopName}. To stop outlook e-mails, open this link:\n${m.unsubscribeUrl}`,
+  ]
+    .filter((x): x is string => x !== null)
+    .join('\n\n');
+
+  const p = (s: string) => `<p>${escapeHtml(s)}</p>`;
+  const html = `<!doctype html><html><body style="font-family:Roboto,Arial,sans-serif;color:#1d2a1f;max-width:640px">
+<h1 style="font-size:20px">${escapeHtml(`Season outlook ${m.season}${updated}`)}</h1>
+${p(`Hello ${m.recipientName},`)}
+${p(`${m.coopName} has published its outlook for the ${m.season} season: “${m.title}” (${m.publishedOn}).`)}
+${
+  m.farm
+    ? `<h2 style="font-size:16px">Your farm: ${escapeHtml(`${m.farm.name} (${m.farm.code})`)}</h2>${p(`${m.farm.fixed}; figures at the expected prices.`)}${quantityTable(m.farm.items)}`
+    : p('No farm is linked to your account, so this message shows the co-op totals only.')
+}
+<h2 style="font-size:16px">The co-op in total</h2>
+${quantityTable(m.coop)}
+${deliveries ? p(deliveries) : ''}
+<h2 style="font-size:16px">Expected prices</h2>
+<ul>${m.prices.map((x) => `<li>${escapeHtml(`${x.name}: ${fmtMoney(x.base)} ${x.priceUnit} (low ${fmtMoney(x.low)}, high ${fmtMoney(x.high)}; ${x.method})`)}</li>`).join('')}</ul>
+${p(m.scenarioRule)}
+${m.commentary.trim() ? `<h2 style="font-size:16px">From the planner</h2>${m.commentary.trim().split(/\n{2,}/).map(p).join('\n')}` : ''}
+<h2 style="font-size:16px">Please note</h2>
+<ul style="font-size:13px;color:#3c4a3e">${m.cautions.map((c) => `<li>${escapeHtml(c)}</li>`).join('')}</ul>
+<p><a href="${escapeHtml(m.portalUrl)}" style="background:#2f6b3a;color:#fff;padding:10px 16px;border-radius:18px;text-decoration:none">Open the outlook</a></p>
+<p style="color:#5b665c;font-size:12px">${escapeHtml(`You receive this because you are a member of ${m.coopName}.`)} <a href="${escapeHtml(m.unsubscribeUrl)}">Stop outlook e-mails</a> · sent by Netput</p>
+</body></html>`;
+  return { to: m.to, subject, text, html };
+}

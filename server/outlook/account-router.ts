@@ -1,0 +1,86 @@
+import type { Request, Response } from 'express';
+import { eq } from 'drizzle-orm';
+import type { RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
+import { AppError } from '../core/app-error.js';
+import type { AppContext } from '../context.js';
+import type { Db } from '../db/client.js';
+import { users } from '../db/schema/index.js';
+import { recordAudit } from '../audit/audit-repository.js';
+import { getSettings } from '../settings/settings-service.js';
+import { mailPreferencesSchema, unsubscribeParamSchema } from './outlook-schemas.js';
+import { unsubscribeSecret, verifyUnsubscribe } from './unsubscribe-token.js';
+
+async function preferences(db: Db, userId: number) {
+  const [u] = await db.select({ email: users.email, optOut: users.mailOptOut }).from(users).where(eq(users.id, userId));
+  if (!u) throw AppError.notFound('The account');
+  return { email: u.email, outlookEmails: !u.optOut };
+}
+
+async function setOptOut(db: Db, userId: number, optOut: boolean, action: string) {
+  await db.transaction(async (tx) => {
+    const [before] = await tx.select({ optOut: users.mailOptOut }).from(users).where(eq(users.id, userId));
+    if (!before) throw AppError.notFound('The account');
+    await tx.update(users).set({ mailOptOut: optOut }).where(eq(users.id, userId));
+    await recordAudit(tx, { actorUserId: userId, action, entity: 'user', entityId: userId, before: { mailOptOut: before.optOut }, after: { mailOptOut: optOut } });
+  });
+}
+
+/** `/api/account`: the member's own mail preferences. */
+export function accountMailRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    { method: 'get', path: '/mail-preferences', access: ['member'], handler: async (req, res) => res.json(await preferences(ctx.db, req.user!.id)) },
+    {
+      method: 'put',
+      path: '/mail-preferences',
+      access: ['member'],
+      handler: async (req, res) => {
+        const body = parse(mailPreferencesSchema, req.body, 'body');
+        await setOptOut(ctx.db, req.user!.id, !body.outlookEmails, body.outlookEmails ? 'mail.subscribe' : 'mail.unsubscribe');
+        res.json(await preferences(ctx.db, req.user!.id));
+      },
+    },
+  ];
+}
+
+function escapeHtml(s: string): string {
+  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+}
+
+function page(title: string, lines: string[]) {
+  return `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width,initial-scale=1"><title>${escapeHtml(title)}</title></head>
+<body style="font-family:Roboto,Arial,sans-serif;color:#1d2a1f;max-width:560px;margin:48px auto;padding:0 16px">
+<h1 style="font-size:20px">${escapeHtml(title)}</h1>${lines.map((l) => `<p>${escapeHtml(l)}</p>`).join('')}</body></html>`;
+}
+
+/**
+ * `/api/unsubscribe/:token` (public): the link in every outlook e-mail and the RFC 8058 one-click
+ * target of its List-Unsubscribe header. The signed token names the member; opening the link turns
+ * their outlook e-mails off (answering a page, or JSON to a client that asks for it).
+ */
+export function unsubscribeRoutes(ctx: AppContext): RouteDef[] {
+  const unsubscribe = async (req: Request, res: Response, oneClick: boolean) => {
+    const wantsJson = oneClick || req.accepts(['html', 'json']) === 'json';
+    const { token } = parse(unsubscribeParamSchema, req.params, 'params');
+    const userId = verifyUnsubscribe(await unsubscribeSecret(ctx.db), token);
+    const [u] = userId !== null ? await ctx.db.select({ id: users.id, email: users.email }).from(users).where(eq(users.id, userId)) : [];
+    if (!u) {
+      if (wantsJson) throw AppError.notFound('The unsubscribe link');
+      res.status(404).type('html').send(page('This link does not work', ['The unsubscribe link is not valid. Sign in and open your mail preferences to change what you receive.']));
+      return;
+    }
+    await setOptOut(ctx.db, u.id, true, oneClick ? 'mail.unsubscribe-one-click' : 'mail.unsubscribe-link');
+    if (wantsJson) {
+      res.json({ email: u.email, outlookEmails: false });
+      return;
+    }
+    const { coopName } = await getSettings(ctx.db);
+    res
+      .type('html')
+      .send(page('You will get no more outlook e-mails', [`${u.email} will no longer receive the season outlook e-mails of ${coopName}.`, 'Published outlooks stay readable in the member portal. To receive the e-mails again, sign in and turn them on in your mail preferences.']));
+  };
+  return [
+    { method: 'get', path: '/:token', access: 'public', handler: (req, res) => unsubscribe(req, res, false) },
+    { method: 'post', path: '/:token', access: 'public', handler: (req, res) => unsubscribe(req, res, true) },
+  ];
+}

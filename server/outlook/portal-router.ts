@@ -1,0 +1,28 @@
+import type { RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
+import type { AppContext } from '../context.js';
+import { listVersions, memberVersion } from './outlook-service.js';
+import { versionParamSchema } from './outlook-schemas.js';
+
+/**
+ * `/api/portal`: the member portal. Only published versions exist here, and of the farm figures
+ * only the signed-in member's own farm (taken from the session, whatever the request asks for).
+ */
+export function portalRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    { method: 'get', path: '/outlook', access: ['member'], handler: async (req, res) => res.json(await memberVersion(ctx.db, req.user!.farmId)) },
+    {
+      method: 'get',
+      path: '/outlook/versions',
+      access: ['member'],
+      handler: async (_req, res) =>
+        res.json((await listVersions(ctx.db)).map((v) => ({ id: v.id, outlookId: v.outlookId, version: v.version, season: v.season, title: v.title, publishedAt: v.publishedAt }))),
+    },
+    {
+      method: 'get',
+      path: '/outlook/versions/:versionId',
+      access: ['member'],
+      handler: async (req, res) => res.json(await memberVersion(ctx.db, req.user!.farmId, parse(versionParamSchema, req.params, 'params').versionId)),
+    },
+  ];
+}
