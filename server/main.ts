@@ -5,6 +5,7 @@ import { createMailer } from './mail/mailer.js';
 import { startFakeSmtp, type FakeSmtp } from './mail/fake-smtp.js';
 import { purgeExpiredSessions } from './auth/session.js';
 import { startBackgroundWork } from './jobs/background.js';
+import { importCommitsIdle } from './imports/imports-service.js';
 import { seedDemoIfEmpty } from '../seed/load-demo.js';
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from '../seed/demo-coop.js';
 
@@ -47,6 +48,8 @@ async function main() {
     console.log(`${signal}: stopping`);
     server.close();
     server.closeAllConnections();
+    // Let a running import commit finish (or roll back) before the database closes.
+    await importCommitsIdle();
     await background.stop();
     mailer.close();
     await fakeSmtp?.close();

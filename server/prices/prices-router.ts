@@ -9,6 +9,7 @@ import type { AppContext } from '../context.js';
 import { priceIndexes, priceIndexValues, priceObservations, seasons } from '../db/schema/index.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { getPrice, listPrices, priceSeries } from './prices-repository.js';
+import { exportFormatSchema, PRICE_COLUMNS, priceExportRows, sendSpreadsheet } from '../exports/data-exports.js';
 
 const READ = ['admin', 'planner', 'treasurer'] as const;
 const WRITE = ['planner'] as const;
@@ -31,6 +32,16 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => {
         const q = parse(listQuery, req.query, 'query');
         res.json(await listPrices(ctx.db, { itemIds: q.items, seasonIds: q.seasons, deliveryPointIds: q.deliveryPoints }));
+      },
+    },
+    {
+      // The same columns the price import reads, so an export re-imports cleanly.
+      method: 'get',
+      path: '/export',
+      access: READ,
+      handler: async (req, res) => {
+        const { format } = parse(exportFormatSchema, req.query, 'query');
+        await sendSpreadsheet(res, format, await priceExportRows(ctx.db), PRICE_COLUMNS, 'prices');
       },
     },
     {

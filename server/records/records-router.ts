@@ -10,6 +10,7 @@ import type { Db } from '../db/client.js';
 import { farmRecords, farms, farmSeasonFactors, items, seasons } from '../db/schema/index.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import type { SessionUser } from '../auth/session.js';
+import { exportFormatSchema, RECORD_COLUMNS, recordExportRows, sendSpreadsheet } from '../exports/data-exports.js';
 
 const idList = z
   .string()
@@ -73,6 +74,16 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => {
         const q = parse(listQuery, req.query, 'query');
         res.json(await listRecords(ctx.db, farmScope(req.user!, q.farms), q.seasons));
+      },
+    },
+    {
+      // Members export only their own farm's records.
+      method: 'get',
+      path: '/export',
+      access: 'signed-in',
+      handler: async (req, res) => {
+        const { format } = parse(exportFormatSchema, req.query, 'query');
+        await sendSpreadsheet(res, format, await recordExportRows(ctx.db, farmScope(req.user!)), RECORD_COLUMNS, 'farm-records');
       },
     },
     {

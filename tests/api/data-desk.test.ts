@@ -138,3 +138,24 @@ describe('farm records', () => {
     expect(audit.after.quantity).toBe(1234.5);
   });
 });
+
+describe('exports', () => {
+  it('a planner exports prices as CSV with one row per observation', async () => {
+    const planner = await signedIn(t.app, 'planner@example.org');
+    const count = (await planner.get('/api/prices')).body.length;
+    const res = await planner.get('/api/prices/export?format=csv');
+    expect(res.status).toBe(200);
+    expect(res.headers['content-type']).toMatch(/text\/csv/);
+    const lines = res.text.trim().split(/\r?\n/);
+    expect(lines.length).toBe(count + 1);
+  });
+
+  it("a member's record export holds only their own farm", async () => {
+    const member = await signedIn(t.app, 'member@example.org');
+    const res = await member.get('/api/records/export?format=csv');
+    expect(res.status).toBe(200);
+    const lines = res.text.trim().split(/\r?\n/).slice(1);
+    expect(lines.length).toBeGreaterThan(0);
+    expect(lines.every((l) => l.startsWith('F01,'))).toBe(true);
+  });
+});
