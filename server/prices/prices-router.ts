@@ -78,7 +78,9 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
         await ctx.db.transaction(async (tx) => {
           const before = await getPrice(tx, id);
           await tx.update(priceObservations).set(body).where(eq(priceObservations.id, id));
-          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.update', entity: 'price', entityId: id, before, after: body });
+          // Both sides in the same joined shape, so the audit page shows only what changed.
+          const after = await getPrice(tx, id);
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.update', entity: 'price', entityId: id, before, after });
         });
         res.json(await getPrice(ctx.db, id));
       },

@@ -82,8 +82,9 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       path: '/export',
       access: 'signed-in',
       handler: async (req, res) => {
-        const { format } = parse(exportFormatSchema, req.query, 'query');
-        await sendSpreadsheet(res, format, await recordExportRows(ctx.db, farmScope(req.user!)), RECORD_COLUMNS, 'farm-records');
+        // `?farms=3` narrows a planner's export to those farms (the farm page downloads its own).
+        const { format, farms: only } = parse(exportFormatSchema.extend({ farms: idList }), req.query, 'query');
+        await sendSpreadsheet(res, format, await recordExportRows(ctx.db, farmScope(req.user!, only)), RECORD_COLUMNS, 'farm-records');
       },
     },
     {

@@ -7,6 +7,7 @@ import type { FarmSummary } from '../../../shared/api-types';
 import { ROLE_LABELS } from '../../../shared/roles';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
+import { MailPreferencesToggle } from '../my-farm/mail-preferences';
 
 const ROLE_DESCRIPTIONS = {
   admin: 'You invite people, set their roles and keep the co-op settings.',
@@ -18,7 +19,7 @@ const ROLE_DESCRIPTIONS = {
 /** `/account`: who you are signed in as, and a way to change your password. */
 @Component({
   selector: 'np-account',
-  imports: [MatCard, MatCardContent, MatButton, MatIcon],
+  imports: [MatCard, MatCardContent, MatButton, MatIcon, MailPreferencesToggle],
   templateUrl: './account.html',
   styleUrl: './account.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -43,6 +44,9 @@ export class Account {
     const farmId = this.#auth.user()?.farmId;
     return this.farms.hasValue() ? (this.farms.value().find((f) => f.id === farmId) ?? null) : null;
   });
+
+  /** Members choose whether the outlook e-mails reach them. */
+  protected readonly isMember = computed(() => this.#auth.role() === 'member');
 
   protected readonly sending = signal(false);
   protected readonly sent = signal(false);

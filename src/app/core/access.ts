@@ -9,6 +9,21 @@ export const ACCESS = {
   coopSummary: ['admin', 'planner', 'treasurer'],
   myFarm: ['member'],
   farms: ['admin', 'planner', 'treasurer'],
+  models: ['admin', 'planner', 'treasurer'],
+  modelsWrite: ['planner'],
+  prices: ['admin', 'planner', 'treasurer'],
+  imports: ['admin', 'planner'],
+  reference: ['admin', 'planner', 'treasurer'],
+  /** Who changes reference data, prices, farms and records (everyone else with access reads). */
+  dataEdit: ['planner'],
+  /** Season outlooks in full (every farm) and the accountability record; planners write, the board reads. */
+  outlook: ['admin', 'planner', 'treasurer'],
+  outlookWrite: ['planner'],
+  /** The outlook e-mails' delivery log. */
+  outlookLog: ['planner', 'admin'],
+  budget: ['admin', 'planner', 'treasurer'],
+  /** Who makes and changes fertiliser budgets and the product list (planners and admins read). */
+  budgetEdit: ['treasurer'],
   users: ['admin'],
   settings: ['admin'],
   audit: ['admin', 'planner'],

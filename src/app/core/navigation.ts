@@ -16,7 +16,14 @@ export interface NavItem {
 
 export const NAV_ITEMS: readonly NavItem[] = [
   { path: '/', label: 'Home', icon: 'home', roles: ACCESS.everyone },
+  { path: '/my-farm/outlook', label: 'Season outlook', icon: 'wb_sunny', roles: ACCESS.myFarm },
+  { path: '/prices', label: 'Prices', icon: 'price_change', roles: ACCESS.prices },
   { path: '/farms', label: 'Farms', icon: 'agriculture', roles: ACCESS.farms },
+  { path: '/imports', label: 'Imports', icon: 'upload_file', roles: ACCESS.imports },
+  { path: '/reference', label: 'Reference data', icon: 'dataset', roles: ACCESS.reference },
+  { path: '/models', label: 'Models', icon: 'query_stats', roles: ACCESS.models },
+  { path: '/outlook', label: 'Outlook', icon: 'insights', roles: ACCESS.outlook },
+  { path: '/budget', label: 'Budget', icon: 'request_quote', roles: ACCESS.budget },
   { path: '/admin/users', label: 'Users', icon: 'group', roles: ACCESS.users, group: 'admin' },
   { path: '/admin/settings', label: 'Co-op settings', icon: 'tune', roles: ACCESS.settings, group: 'admin' },
   { path: '/admin/audit', label: 'Audit log', icon: 'fact_check', roles: ACCESS.audit, group: 'admin' },

@@ -1,38 +1,72 @@
 import { DecimalPipe } from '@angular/common';
 import { httpResource } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
 import { MatFormField, MatLabel, MatPrefix } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
 import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { Router, RouterLink } from '@angular/router';
 import { AgGridAngular } from 'ag-grid-angular';
-import type { ColDef, GridApi, GridReadyEvent } from 'ag-grid-community';
+import type { ColDef, GridApi, GridReadyEvent, ICellRendererParams, RowClickedEvent } from 'ag-grid-community';
 import type { FarmSummary } from '../../../shared/api-types';
+import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage } from '../core/api-error';
-import { gridTheme } from '../shared/grid';
+import { AuthStore } from '../core/auth-store';
+import type { FarmRow } from '../data-desk/data-desk-api';
+import { gridTheme, safeCsvCell } from '../data-desk/data-grid';
+import { FarmDialog, type FarmDialogData } from './farm-dialog';
 
 const landFormat = new Intl.NumberFormat(undefined, { minimumFractionDigits: 1, maximumFractionDigits: 1 });
 
-/** `/farms`: every farm of the co-op, read-only for now. */
+/** `/farms`: every farm of the co-op; a row opens the farm's records. Planners add and edit farms. */
 @Component({
   selector: 'np-farms-list',
-  imports: [DecimalPipe, AgGridAngular, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatButton, MatProgressBar],
+  imports: [DecimalPipe, RouterLink, AgGridAngular, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatButton, MatProgressBar],
   templateUrl: './farms-list.html',
   styleUrl: './farms-list.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class FarmsList {
+  readonly #auth = inject(AuthStore);
+  readonly #dialog = inject(MatDialog);
+  readonly #router = inject(Router);
+  readonly #snackBar = inject(MatSnackBar);
+
   protected readonly farms = httpResource<FarmSummary[]>(() => '/api/farms', { defaultValue: [] });
   protected readonly rows = computed(() => (this.farms.hasValue() ? this.farms.value() : []));
   protected readonly problem = computed(() => (this.farms.error() ? errorMessage(this.farms.error()) : null));
   protected readonly totalLand = computed(() => this.rows().reduce((sum, f) => sum + f.landHa, 0));
+  protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
+  protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
   protected readonly quickFilter = signal('');
   readonly #grid = signal<GridApi<FarmSummary> | null>(null);
 
   protected readonly theme = gridTheme;
   protected readonly columns: ColDef<FarmSummary>[] = [
-    { field: 'code', headerName: 'Code', width: 110, filter: 'agTextColumnFilter', sort: 'asc' },
+    {
+      field: 'code',
+      headerName: 'Code',
+      width: 110,
+      filter: 'agTextColumnFilter',
+      sort: 'asc',
+      // A real link, so the records open by keyboard, middle-click or a click on the code.
+      cellRenderer: (p: ICellRendererParams<FarmSummary>) => {
+        const a = document.createElement('a');
+        a.textContent = p.value ?? '';
+        if (p.data) {
+          a.href = `/farms/${p.data.id}`;
+          a.addEventListener('click', (event) => {
+            if (event.ctrlKey || event.metaKey || event.shiftKey || event.button !== 0) return;
+            event.preventDefault();
+            void this.#router.navigate(['/farms', p.data!.id]);
+          });
+        }
+        return a;
+      },
+    },
     { field: 'name', headerName: 'Farm', flex: 2, minWidth: 180, filter: 'agTextColumnFilter' },
     { field: 'region', headerName: 'Region', flex: 1, minWidth: 140, filter: 'agTextColumnFilter' },
     {
@@ -58,7 +92,25 @@ export class FarmsList {
     this.#grid.set(event.api);
   }
 
+  protected rowClicked(event: RowClickedEvent<FarmSummary>): void {
+    const target = event.event?.target as HTMLElement | null;
+    if (target?.closest('a') || !event.data) return;
+    void this.#router.navigate(['/farms', event.data.id]);
+  }
+
+  protected addFarm(): void {
+    const data: FarmDialogData = { farm: null, regions: [...new Set(this.rows().map((f) => f.region))].sort() };
+    this.#dialog
+      .open<FarmDialog, FarmDialogData, FarmRow>(FarmDialog, { data, autoFocus: 'first-tabbable' })
+      .afterClosed()
+      .subscribe((saved) => {
+        if (!saved) return;
+        this.farms.reload();
+        this.#snackBar.open(`${saved.name} (${saved.code}) added. Open it to enter its records.`, 'OK');
+      });
+  }
+
   protected exportCsv(): void {
-    this.#grid()?.exportDataAsCsv({ fileName: 'netput-farms.csv' });
+    this.#grid()?.exportDataAsCsv({ fileName: 'netput-farms.csv', processCellCallback: safeCsvCell });
   }
 }

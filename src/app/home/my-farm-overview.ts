@@ -1,7 +1,8 @@
 import { DecimalPipe } from '@angular/common';
 import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed } from '@angular/core';
-import { MatButton } from '@angular/material/button';
+import { MatAnchor, MatButton } from '@angular/material/button';
+import { RouterLink } from '@angular/router';
 import { MatCard, MatCardContent } from '@angular/material/card';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
@@ -56,6 +57,8 @@ export function recordsBySeason(records: MyFarm['records']): { seasons: string[]
     MatCardContent,
     MatIcon,
     MatButton,
+    MatAnchor,
+    RouterLink,
     MatProgressBar,
     MatTable,
     MatColumnDef,

@@ -73,27 +73,41 @@ describe('Shell', () => {
   it('should show a planner the co-op pages and the audit log, but no user administration', async () => {
     await render('planner');
 
-    expect(navPaths()).toEqual(['/', '/farms', '/admin/audit', '/account']);
+    expect(navPaths()).toEqual(['/', '/prices', '/farms', '/imports', '/reference', '/models', '/outlook', '/budget', '/admin/audit', '/account']);
     expect(navLabels().join(' | ')).not.toMatch(/Users|Co-op settings|Mail outbox/);
   });
 
-  it('should show a member only home and account', async () => {
+  it('should show a member only home, their season outlook and account', async () => {
     await render('member');
 
-    expect(navPaths()).toEqual(['/', '/account']);
+    expect(navPaths()).toEqual(['/', '/my-farm/outlook', '/account']);
   });
 
   it('should show a treasurer farms but no administration heading', async () => {
     await render('treasurer');
 
-    expect(navPaths()).toEqual(['/', '/farms', '/account']);
+    expect(navPaths()).toEqual(['/', '/prices', '/farms', '/reference', '/models', '/outlook', '/budget', '/account']);
     expect((fixture.nativeElement as HTMLElement).textContent).not.toContain('Administration');
   });
 
   it('should show an admin the mail outbox only when the server keeps mail', async () => {
     await render('admin', 'on');
 
-    expect(navPaths()).toEqual(['/', '/farms', '/admin/users', '/admin/settings', '/admin/audit', '/admin/mail', '/account']);
+    expect(navPaths()).toEqual([
+      '/',
+      '/prices',
+      '/farms',
+      '/imports',
+      '/reference',
+      '/models',
+      '/outlook',
+      '/budget',
+      '/admin/users',
+      '/admin/settings',
+      '/admin/audit',
+      '/admin/mail',
+      '/account',
+    ]);
   });
 
   it('should leave the mail outbox out for an admin when the server is not in development mode', async () => {

@@ -6,9 +6,17 @@ export default async function foundation({ base, page }: Harness): Promise<void>
   // --- planner -----------------------------------------------------------------------------
   const plannerIn = await check('the planner signs in through the form', () => signIn(page, base, 'planner@example.org'));
   if (plannerIn) {
-    await check("the planner's navigation is Home, Farms, Audit log, Account", async () => {
-      assertEqual(await navHrefs(page), ['/', '/farms', '/admin/audit', '/account'], 'navigation links');
-      assertEqual(await navTitles(page), ['Home', 'Farms', 'Audit log', 'Account'], 'navigation labels');
+    await check("the planner's navigation is Home, Prices, Farms, Imports, Reference data, Models, Outlook, Budget, Audit log, Account", async () => {
+      assertEqual(
+        await navHrefs(page),
+        ['/', '/prices', '/farms', '/imports', '/reference', '/models', '/outlook', '/budget', '/admin/audit', '/account'],
+        'navigation links',
+      );
+      assertEqual(
+        await navTitles(page),
+        ['Home', 'Prices', 'Farms', 'Imports', 'Reference data', 'Models', 'Outlook', 'Budget', 'Audit log', 'Account'],
+        'navigation labels',
+      );
     });
     await check('admin entries are absent for the planner', async () => {
       const titles = await navTitles(page);
@@ -72,9 +80,9 @@ export default async function foundation({ base, page }: Harness): Promise<void>
     signIn(page, base, 'member@example.org'),
   );
   if (memberIn) {
-    await check("the member's navigation is only Home and Account", async () => {
-      assertEqual(await navHrefs(page), ['/', '/account'], 'navigation links');
-      assertEqual(await navTitles(page), ['Home', 'Account'], 'navigation labels');
+    await check("the member's navigation is only Home, Season outlook and Account", async () => {
+      assertEqual(await navHrefs(page), ['/', '/my-farm/outlook', '/account'], 'navigation links');
+      assertEqual(await navTitles(page), ['Home', 'Season outlook', 'Account'], 'navigation labels');
     });
     await check('the member sees their own farm and its records', async () => {
       const mine = (await page.evaluate(() => fetch('/api/my-farm').then((r) => r.json()))) as {

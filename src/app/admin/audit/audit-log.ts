@@ -1,7 +1,10 @@
 import { DatePipe } from '@angular/common';
 import { httpResource } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
+import { MatFormField, MatLabel } from '@angular/material/form-field';
+import { MatOption, MatSelect } from '@angular/material/select';
+import { Router } from '@angular/router';
 import { MatPaginator, type PageEvent } from '@angular/material/paginator';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import {
@@ -59,12 +62,31 @@ export function changedFields(entry: Pick<AuditEntry, 'before' | 'after'>): Fiel
     .map((field) => ({ field, before: show(before[field]), after: show(after[field]) }));
 }
 
-/** `/admin/audit`: who changed what, newest first, a page at a time. */
+/** The kinds of record the audit log names (`entity`), in words, for the filter. */
+export const AUDIT_ENTITIES: { entity: string; label: string }[] = [
+  { entity: 'price', label: 'Prices' },
+  { entity: 'price-index', label: 'Price indexes' },
+  { entity: 'farm-record', label: 'Farm records' },
+  { entity: 'farm-land', label: 'Farm land per season' },
+  { entity: 'farm', label: 'Farms' },
+  { entity: 'item', label: 'Items' },
+  { entity: 'season', label: 'Seasons' },
+  { entity: 'delivery-point', label: 'Delivery points' },
+  { entity: 'import', label: 'Imports' },
+  { entity: 'user', label: 'Users' },
+  { entity: 'settings', label: 'Settings' },
+];
+
+/** `/admin/audit`: who changed what, newest first, a page at a time; `?entity=price` shows one kind of record. */
 @Component({
   selector: 'np-audit-log',
   imports: [
     DatePipe,
     MatButton,
+    MatFormField,
+    MatLabel,
+    MatSelect,
+    MatOption,
     MatPaginator,
     MatProgressBar,
     MatTable,
@@ -84,16 +106,33 @@ export function changedFields(entry: Pick<AuditEntry, 'before' | 'after'>): Fiel
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class AuditLog {
+  readonly #router = inject(Router);
+  /** `?entity=` (bound by the router): only entries about this kind of record. */
+  readonly entity = input<string | undefined>(undefined);
+  protected readonly shownEntity = linkedSignal(() => this.entity() ?? '');
+  protected readonly entities = computed(() => {
+    const current = this.shownEntity();
+    return current && !AUDIT_ENTITIES.some((e) => e.entity === current) ? [...AUDIT_ENTITIES, { entity: current, label: current }] : AUDIT_ENTITIES;
+  });
   protected readonly pageSize = signal(25);
-  protected readonly pageIndex = signal(0);
+  protected readonly pageIndex = linkedSignal({ source: this.shownEntity, computation: () => 0 });
   protected readonly audit = httpResource<AuditPage>(() => ({
     url: '/api/audit',
-    params: { limit: this.pageSize(), offset: this.pageIndex() * this.pageSize() },
+    params: {
+      limit: this.pageSize(),
+      offset: this.pageIndex() * this.pageSize(),
+      ...(this.shownEntity() ? { entity: this.shownEntity() } : {}),
+    },
   }));
   protected readonly page = computed<AuditPage>(() => (this.audit.hasValue() ? this.audit.value() : { rows: [], total: 0 }));
   protected readonly rows = computed(() => this.page().rows.map((row) => ({ ...row, changes: changedFields(row) })));
   protected readonly problem = computed(() => (this.audit.error() ? errorMessage(this.audit.error()) : null));
   protected readonly columns = ['at', 'actor', 'action', 'entity', 'changes'];
+
+  protected chooseEntity(entity: string): void {
+    this.shownEntity.set(entity);
+    void this.#router.navigate([], { queryParams: { entity: entity || null }, queryParamsHandling: 'merge', replaceUrl: true });
+  }
 
   protected changePage(event: PageEvent): void {
     this.pageSize.set(event.pageSize);

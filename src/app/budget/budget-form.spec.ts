@@ -1,0 +1,103 @@
+import { bookingProblems, defaultBooking, formValueFromStored, toBudgetInput, whereOf } from './budget-form';
+import type { FertiliserProduct, ProductCopy, StoredInputs } from './budget-types';
+
+// The demo list's urea and DAP (grades: Cornell NRCCA CA4 PO26 and UNL PASSEL; prices invented for the demo).
+const list: FertiliserProduct[] = [
+  { id: 1, name: 'Urea', nPct: 46, p2o5Pct: 0, k2oPct: 0, form: 'solid', pricePerT: 475, currency: 'EUR', lotT: 25, supplier: '', gradeSource: '', priceNote: '', active: true, updatedAt: '' },
+  { id: 5, name: 'DAP', nPct: 18, p2o5Pct: 46, k2oPct: 0, form: 'solid', pricePerT: 650, currency: 'EUR', lotT: 25, supplier: '', gradeSource: '', priceNote: '', active: true, updatedAt: '' },
+  { id: 7, name: 'Muriate of potash', nPct: 0, p2o5Pct: 0, k2oPct: 60, form: 'solid', pricePerT: 355, currency: 'EUR', lotT: 25, supplier: '', gradeSource: '', priceNote: '', active: true, updatedAt: '' },
+];
+
+const copy = (p: FertiliserProduct, changes: Partial<ProductCopy> = {}): ProductCopy => ({
+  productId: p.id,
+  name: p.name,
+  nPct: p.nPct,
+  p2o5Pct: p.p2o5Pct,
+  k2oPct: p.k2oPct,
+  form: p.form,
+  pricePerT: p.pricePerT,
+  currency: p.currency,
+  lotT: p.lotT,
+  supplier: p.supplier,
+  gradeSource: p.gradeSource,
+  priceNote: p.priceNote,
+  ...changes,
+});
+
+const stored: StoredInputs = {
+  source: { kind: 'model-run', runId: 3, prices: { nitrogen: 1.3 } },
+  products: [copy(list[0]!), copy(list[1]!, { pricePerT: 640, priceNote: 'Budget quote' })],
+  bookingPlan: {
+    months: [
+      { month: '2026-08', share: 1 / 3, prepay: true },
+      { month: '2026-10', share: 2 / 3, prepay: false },
+    ],
+    prepayDiscountPct: 2.5,
+    paymentTermsDays: 30,
+    deliveryMonth: '2027-02',
+    financingRatePct: 5,
+  },
+  scenarios: [{ name: 'N +20 %', priceChanges: { nitrogen: 20 }, productPriceChanges: { '5': 10 } }],
+  options: { lotRule: 'whole-lots' },
+};
+
+describe('formValueFromStored and toBudgetInput', () => {
+  it('should send a saved budget back unchanged when nothing was edited', () => {
+    const { value, preserved } = formValueFromStored('Season plan', stored, list, 'metric');
+    const input = toBudgetInput(value, 'metric', preserved)!;
+
+    expect(input.source).toEqual({ kind: 'model-run', runId: 3, prices: { nitrogen: 1.3 } });
+    // Urea at its list price stays a list product; DAP keeps its quote; potash was not chosen.
+    expect(input.products).toEqual([{ productId: 1 }, { productId: 5, pricePerT: 640 }]);
+    expect(input.bookingPlan.months.map((m) => m.share)).toEqual([expect.closeTo(1 / 3, 9), expect.closeTo(2 / 3, 9)]);
+    expect(input.bookingPlan).toMatchObject({ prepayDiscountPct: 2.5, paymentTermsDays: 30, deliveryMonth: '2027-02', financingRatePct: 5 });
+    expect(input.scenarios).toEqual([{ name: 'N +20 %', priceChanges: { nitrogen: 20 }, productPriceChanges: { '5': 10 } }]);
+    expect(input.options).toEqual({ lotRule: 'whole-lots' });
+  });
+
+  it('should offer the other listed products unticked, and mark a product gone from the list', () => {
+    const gone = { ...stored, products: [...stored.products, { ...copy(list[2]!), productId: 99, name: 'Old blend' }] };
+    const { value } = formValueFromStored('x', gone, list, 'metric');
+
+    expect(value.products.map((p) => [p.name, p.include, p.gone])).toEqual([
+      ['Urea', true, false],
+      ['DAP', true, false],
+      ['Old blend', false, true],
+      ['Muriate of potash', false, false],
+    ]);
+  });
+});
+
+describe('bookingProblems', () => {
+  it('should accept the starting pattern: 40 + 40 + 20 % before a February delivery', () => {
+    expect(bookingProblems(defaultBooking(2026))).toEqual([]);
+  });
+
+  it('should say what is wrong with shares, order and delivery', () => {
+    const plan = defaultBooking(2026);
+    plan.months[2]!.sharePct = 10;
+    plan.months[1]!.month = '2026-07';
+    plan.deliveryMonth = '2026-12';
+
+    expect(bookingProblems(plan)).toEqual([
+      'The booked shares add up to 90 %; they must add up to 100 %.',
+      'Booking month 2 (2026-07) must come after month 1 (2026-08).',
+      'Delivery (2026-12) cannot come before the last booking month (2027-01).',
+    ]);
+  });
+});
+
+describe('whereOf', () => {
+  it("should put the server's field paths in the page's words", () => {
+    const products = ['Urea', 'DAP'];
+    const scenarios = ['N +20 %'];
+
+    expect(whereOf('body.bookingPlan.months.0.month', products, scenarios)).toBe('Booking plan, month 1');
+    expect(whereOf('bookingPlan.months', products, scenarios)).toBe('Booking plan');
+    expect(whereOf('bookingPlan.deliveryMonth', products, scenarios)).toBe('Booking plan, delivery month');
+    expect(whereOf('products.1.productId', products, scenarios)).toBe('Products, DAP');
+    expect(whereOf('body.scenarios.0.name', products, scenarios)).toBe('Scenario “N +20 %”');
+    expect(whereOf('source.prices.urea', products, scenarios)).toBe('Demand source, expected price of urea');
+    expect(whereOf('options.referencePrices.phosphate', products, scenarios)).toBe('Reference nutrient prices');
+  });
+});

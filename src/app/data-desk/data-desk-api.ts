@@ -1,0 +1,139 @@
+import { HttpClient, type HttpResponse } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import { firstValueFrom } from 'rxjs';
+import type { DeliveryPoint, FarmRecordRow, Item, PriceIndex, PriceRow, Season } from '../../../shared/api-types';
+import type { PriceInput } from '../../../shared/data-schemas';
+
+export type ItemBody = Omit<Item, 'id'>;
+export type SeasonBody = Pick<Season, 'label' | 'startYear' | 'startMonth'>;
+export type DeliveryPointBody = Omit<DeliveryPoint, 'id'>;
+export interface FarmBody {
+  code: string;
+  name: string;
+  region: string;
+  landHa: number;
+}
+/** A farm as the farm routes answer it (the list with owners is GET /api/farms). */
+export interface FarmRow extends FarmBody {
+  id: number;
+  ownerUserId: number | null;
+}
+export interface PriceIndexBody {
+  name: string;
+  base: string;
+  source: string;
+  values: { seasonId: number; value: number }[];
+}
+export interface RecordKey {
+  farmId: number;
+  seasonId: number;
+  itemId: number;
+}
+export interface RecordBody extends RecordKey {
+  quantity: number;
+}
+export interface LandRow {
+  farmId: number;
+  farmCode: string;
+  seasonId: number;
+  season: string;
+  landHa: number;
+}
+
+/**
+ * The data desk's writes: reference data, farms, prices, price indexes, farm records and land. Every
+ * write is audited by the server in the same transaction. Reads go through `httpResource` in the pages.
+ */
+@Injectable({ providedIn: 'root' })
+export class DataDeskApi {
+  readonly #http = inject(HttpClient);
+
+  // --- reference data ---
+  createItem(body: ItemBody): Promise<Item> {
+    return firstValueFrom(this.#http.post<Item>('/api/items', body));
+  }
+  updateItem(id: number, body: ItemBody): Promise<Item> {
+    return firstValueFrom(this.#http.put<Item>(`/api/items/${id}`, body));
+  }
+  deleteItem(id: number): Promise<unknown> {
+    return firstValueFrom(this.#http.delete(`/api/items/${id}`, { responseType: 'text' }));
+  }
+  createSeason(body: SeasonBody): Promise<Season> {
+    return firstValueFrom(this.#http.post<Season>('/api/seasons', body));
+  }
+  updateSeason(id: number, body: SeasonBody): Promise<Season> {
+    return firstValueFrom(this.#http.put<Season>(`/api/seasons/${id}`, body));
+  }
+  deleteSeason(id: number): Promise<unknown> {
+    return firstValueFrom(this.#http.delete(`/api/seasons/${id}`, { responseType: 'text' }));
+  }
+  createDeliveryPoint(body: DeliveryPointBody): Promise<DeliveryPoint> {
+    return firstValueFrom(this.#http.post<DeliveryPoint>('/api/delivery-points', body));
+  }
+  updateDeliveryPoint(id: number, body: DeliveryPointBody): Promise<DeliveryPoint> {
+    return firstValueFrom(this.#http.put<DeliveryPoint>(`/api/delivery-points/${id}`, body));
+  }
+  deleteDeliveryPoint(id: number): Promise<unknown> {
+    return firstValueFrom(this.#http.delete(`/api/delivery-points/${id}`, { responseType: 'text' }));
+  }
+
+  // --- farms ---
+  createFarm(body: FarmBody): Promise<FarmRow> {
+    return firstValueFrom(this.#http.post<FarmRow>('/api/farms', body));
+  }
+  updateFarm(id: number, body: FarmBody): Promise<FarmRow> {
+    return firstValueFrom(this.#http.put<FarmRow>(`/api/farms/${id}`, body));
+  }
+  deleteFarm(id: number): Promise<unknown> {
+    return firstValueFrom(this.#http.delete(`/api/farms/${id}`, { responseType: 'text' }));
+  }
+
+  // --- prices ---
+  /** One row or a pasted block; the server writes all rows or none. */
+  createPrices(rows: PriceInput[]): Promise<PriceRow[]> {
+    return firstValueFrom(this.#http.post<PriceRow[]>('/api/prices', { rows }));
+  }
+  updatePrice(id: number, body: PriceInput): Promise<PriceRow> {
+    return firstValueFrom(this.#http.put<PriceRow>(`/api/prices/${id}`, body));
+  }
+  deletePrice(id: number): Promise<unknown> {
+    return firstValueFrom(this.#http.delete(`/api/prices/${id}`, { responseType: 'text' }));
+  }
+  createPriceIndex(body: PriceIndexBody): Promise<PriceIndex> {
+    return firstValueFrom(this.#http.post<PriceIndex>('/api/price-indexes', body));
+  }
+  deletePriceIndex(id: number): Promise<unknown> {
+    return firstValueFrom(this.#http.delete(`/api/price-indexes/${id}`, { responseType: 'text' }));
+  }
+
+  // --- farm records ---
+  /** Inserts or replaces quantities, all or nothing; answers the farms' records of those seasons. */
+  putRecords(rows: RecordBody[]): Promise<FarmRecordRow[]> {
+    return firstValueFrom(this.#http.put<FarmRecordRow[]>('/api/records', { rows }));
+  }
+  deleteRecord(key: RecordKey): Promise<unknown> {
+    return firstValueFrom(this.#http.delete('/api/records', { body: key, responseType: 'text' }));
+  }
+  putLand(body: { farmId: number; seasonId: number; landHa: number }): Promise<LandRow[]> {
+    return firstValueFrom(this.#http.put<LandRow[]>('/api/records/land', body));
+  }
+
+  /**
+   * Downloads a server export (CSV or XLSX) and hands it to the browser as a file. Going through
+   * HttpClient rather than a plain link means a failure shows the server's message, not a blank tab.
+   */
+  async download(url: string, fallbackName: string): Promise<string> {
+    const response: HttpResponse<Blob> = await firstValueFrom(this.#http.get(url, { observe: 'response', responseType: 'blob' }));
+    const disposition = response.headers.get('Content-Disposition') ?? '';
+    const name = /filename="?([^";]+)"?/.exec(disposition)?.[1] ?? fallbackName;
+    const href = URL.createObjectURL(response.body ?? new Blob());
+    const a = document.createElement('a');
+    a.href = href;
+    a.download = name;
+    document.body.appendChild(a);
+    a.click();
+    a.remove();
+    setTimeout(() => URL.revokeObjectURL(href), 10_000);
+    return name;
+  }
+}

@@ -1,0 +1,143 @@
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { MatButton } from '@angular/material/button';
+import {
+  MAT_DIALOG_DATA,
+  MatDialogActions,
+  MatDialogClose,
+  MatDialogContent,
+  MatDialogRef,
+  MatDialogTitle,
+} from '@angular/material/dialog';
+import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
+import { MatInput } from '@angular/material/input';
+import { MatOption, MatSelect } from '@angular/material/select';
+import { DateTime } from 'luxon';
+import type { PriceRow } from '../../../../shared/api-types';
+import { priceSchema } from '../../../../shared/data-schemas';
+import { ApiRequestError, errorMessage } from '../../core/api-error';
+import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+import { DataDeskApi } from '../data-desk-api';
+import type { Lookups } from '../reference-store';
+import { seasonSpan } from '../season-dates';
+
+export interface PriceDialogData {
+  lookups: Lookups;
+  currency: string;
+  existing: readonly PriceRow[];
+}
+
+/** Adds one price observation. Closes with the stored row. */
+@Component({
+  selector: 'np-price-dialog',
+  imports: [
+    ReactiveFormsModule,
+    MatDialogTitle,
+    MatDialogContent,
+    MatDialogActions,
+    MatDialogClose,
+    MatButton,
+    MatFormField,
+    MatLabel,
+    MatHint,
+    MatError,
+    MatSuffix,
+    MatInput,
+    MatSelect,
+    MatOption,
+  ],
+  templateUrl: './price-dialog.html',
+  styles: `
+    form {
+      display: grid;
+      grid-template-columns: 1fr 1fr;
+      gap: 12px 16px;
+      padding-top: 8px;
+      min-width: min(560px, 76vw);
+    }
+    .wide {
+      grid-column: 1 / -1;
+    }
+    @media (max-width: 599.98px) {
+      form {
+        grid-template-columns: 1fr;
+      }
+    }
+    .problem {
+      margin: 0;
+      color: var(--mat-sys-error);
+    }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class PriceDialog {
+  readonly #api = inject(DataDeskApi);
+  readonly #dialogRef = inject<MatDialogRef<PriceDialog, PriceRow[]>>(MatDialogRef);
+  protected readonly data = inject<PriceDialogData>(MAT_DIALOG_DATA);
+  protected readonly lookups = this.data.lookups;
+  protected readonly seasonsNewestFirst = [...this.lookups.seasons].reverse();
+
+  protected readonly form = inject(NonNullableFormBuilder).group({
+    itemId: [null as number | null, Validators.required],
+    seasonId: [this.seasonsNewestFirst[0]?.id ?? (null as number | null), Validators.required],
+    deliveryPointId: [null as number | null, Validators.required],
+    price: [null as number | null, [Validators.required, zodValidator(priceSchema.shape.price)]],
+    currency: [this.data.currency, [Validators.required, zodValidator(priceSchema.shape.currency)]],
+    source: ['', [Validators.required, zodValidator(priceSchema.shape.source)]],
+    observedOn: [DateTime.now().toISODate(), [Validators.required, zodValidator(priceSchema.shape.observedOn)]],
+  });
+
+  readonly #value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
+  protected readonly item = computed(() => {
+    const id = this.#value().itemId;
+    return id == null ? null : (this.lookups.itemById.get(id) ?? null);
+  });
+  /** The season's months, and a word when the date falls outside them (allowed: forward prices exist). */
+  protected readonly dateHint = computed(() => {
+    const v = this.#value();
+    const season = v.seasonId == null ? undefined : this.lookups.seasonById.get(v.seasonId);
+    if (!season) return '';
+    const span = seasonSpan(season);
+    const date = v.observedOn ? DateTime.fromISO(v.observedOn, { zone: 'utc' }) : null;
+    const outside = date?.isValid && (date < span.start || date > span.end);
+    return `${season.label} runs ${span.text}${outside ? ' — this date is outside it' : ''}`;
+  });
+  protected readonly saving = signal(false);
+  protected readonly failure = signal<string | null>(null);
+
+  protected async save(): Promise<void> {
+    if (this.form.invalid) {
+      this.form.markAllAsTouched();
+      return;
+    }
+    const v = this.form.getRawValue();
+    const body = {
+      itemId: v.itemId!,
+      seasonId: v.seasonId!,
+      deliveryPointId: v.deliveryPointId!,
+      price: v.price!,
+      currency: v.currency.trim().toUpperCase(),
+      source: v.source.trim(),
+      observedOn: v.observedOn,
+    };
+    const twin = this.data.existing.find(
+      (e) => e.itemId === body.itemId && e.seasonId === body.seasonId && e.deliveryPointId === body.deliveryPointId && e.observedOn === body.observedOn,
+    );
+    if (twin) {
+      this.failure.set(`${twin.itemName} at ${twin.deliveryPoint} on ${twin.observedOn} is already stored (${twin.price} ${twin.currency}); change that row in the grid instead.`);
+      return;
+    }
+    this.failure.set(null);
+    this.saving.set(true);
+    try {
+      this.#dialogRef.close(await this.#api.createPrices([body]));
+    } catch (error) {
+      // Field messages come back as body.rows.0.<field>.
+      const details = error instanceof ApiRequestError ? error.error.details?.map((d) => ({ ...d, path: d.path.replace(/^body\.rows\.0\./, '') })) : undefined;
+      if (!applyServerDetails(this.form.controls, details)) this.failure.set(errorMessage(error));
+    } finally {
+      this.saving.set(false);
+    }
+  }
+}

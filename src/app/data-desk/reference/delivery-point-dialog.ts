@@ -1,0 +1,115 @@
+import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { MatButton } from '@angular/material/button';
+import {
+  MAT_DIALOG_DATA,
+  MatDialogActions,
+  MatDialogClose,
+  MatDialogContent,
+  MatDialogRef,
+  MatDialogTitle,
+} from '@angular/material/dialog';
+import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
+import { MatInput } from '@angular/material/input';
+import { MatOption, MatSelect } from '@angular/material/select';
+import type { DeliveryPoint } from '../../../../shared/api-types';
+import { deliveryPointSchema } from '../../../../shared/data-schemas';
+import { ApiRequestError, errorMessage } from '../../core/api-error';
+import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+import { DataDeskApi } from '../data-desk-api';
+
+/** Adds or edits a delivery point (an elevator, a store, a depot) or a price region. */
+@Component({
+  selector: 'np-delivery-point-dialog',
+  imports: [
+    ReactiveFormsModule,
+    MatDialogTitle,
+    MatDialogContent,
+    MatDialogActions,
+    MatDialogClose,
+    MatButton,
+    MatFormField,
+    MatLabel,
+    MatHint,
+    MatError,
+    MatInput,
+    MatSelect,
+    MatOption,
+  ],
+  template: `
+    <h2 mat-dialog-title>{{ point ? 'Edit ' + point.name : 'Add a delivery point or region' }}</h2>
+    <mat-dialog-content>
+      <form id="point-form" [formGroup]="form" (ngSubmit)="save()" novalidate>
+        <mat-form-field class="wide">
+          <mat-label>Name</mat-label>
+          <input matInput formControlName="name" required autocomplete="off" cdkFocusInitial />
+          <mat-hint>As files and price sheets name it, e.g. Ashby elevator</mat-hint>
+          @if (form.controls.name.hasError('required')) {
+            <mat-error>Enter a name</mat-error>
+          } @else if (form.controls.name.hasError('schema')) {
+            <mat-error>{{ form.controls.name.getError('schema') }}</mat-error>
+          } @else if (form.controls.name.hasError('server')) {
+            <mat-error>{{ form.controls.name.getError('server') }}</mat-error>
+          }
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>Kind</mat-label>
+          <mat-select formControlName="kind" required>
+            <mat-option value="delivery point">Delivery point</mat-option>
+            <mat-option value="region">Price region</mat-option>
+          </mat-select>
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>Region</mat-label>
+          <input matInput formControlName="region" required autocomplete="off" />
+          @if (form.controls.region.hasError('required')) {
+            <mat-error>Enter the region</mat-error>
+          } @else if (form.controls.region.hasError('schema')) {
+            <mat-error>{{ form.controls.region.getError('schema') }}</mat-error>
+          }
+        </mat-form-field>
+        @if (failure(); as message) {
+          <p class="problem" role="alert">{{ message }}</p>
+        }
+      </form>
+    </mat-dialog-content>
+    <mat-dialog-actions align="end">
+      <button matButton type="button" mat-dialog-close>Cancel</button>
+      <button matButton="filled" type="submit" form="point-form" [disabled]="saving()">{{ point ? 'Save changes' : 'Add' }}</button>
+    </mat-dialog-actions>
+  `,
+  styleUrl: './ref-dialog.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class DeliveryPointDialog {
+  readonly #api = inject(DataDeskApi);
+  readonly #dialogRef = inject<MatDialogRef<DeliveryPointDialog, DeliveryPoint>>(MatDialogRef);
+  protected readonly point = inject<DeliveryPoint | null>(MAT_DIALOG_DATA);
+  protected readonly form = inject(NonNullableFormBuilder).group({
+    name: [this.point?.name ?? '', [Validators.required, zodValidator(deliveryPointSchema.shape.name)]],
+    kind: [this.point?.kind ?? ('delivery point' as DeliveryPoint['kind']), Validators.required],
+    region: [this.point?.region ?? '', [Validators.required, zodValidator(deliveryPointSchema.shape.region)]],
+  });
+  protected readonly saving = signal(false);
+  protected readonly failure = signal<string | null>(null);
+
+  protected async save(): Promise<void> {
+    if (this.form.invalid) {
+      this.form.markAllAsTouched();
+      return;
+    }
+    const v = this.form.getRawValue();
+    const body = { name: v.name.trim(), kind: v.kind, region: v.region.trim() };
+    this.failure.set(null);
+    this.saving.set(true);
+    try {
+      this.#dialogRef.close(this.point ? await this.#api.updateDeliveryPoint(this.point.id, body) : await this.#api.createDeliveryPoint(body));
+    } catch (error) {
+      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
+        this.failure.set(error instanceof ApiRequestError && error.status === 409 ? `A delivery point named “${body.name}” exists already.` : errorMessage(error));
+      }
+    } finally {
+      this.saving.set(false);
+    }
+  }
+}

@@ -1,0 +1,98 @@
+import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { MatButton } from '@angular/material/button';
+import {
+  MAT_DIALOG_DATA,
+  MatDialogActions,
+  MatDialogClose,
+  MatDialogContent,
+  MatDialogRef,
+  MatDialogTitle,
+} from '@angular/material/dialog';
+import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
+import { MatInput } from '@angular/material/input';
+import type { PriceIndex } from '../../../../shared/api-types';
+import { priceIndexSchema } from '../../../../shared/data-schemas';
+import { ApiRequestError, errorMessage } from '../../core/api-error';
+import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+import { DataDeskApi } from '../data-desk-api';
+import { parseTable, readIndexValues } from '../paste';
+import { ProblemList } from '../problem-list';
+import type { Lookups } from '../reference-store';
+
+/** Adds a price index (to deflate prices with): its name, base, source and a value per season, typed, pasted or read from a CSV file. */
+@Component({
+  selector: 'np-price-index-dialog',
+  imports: [
+    ReactiveFormsModule,
+    MatDialogTitle,
+    MatDialogContent,
+    MatDialogActions,
+    MatDialogClose,
+    MatButton,
+    MatFormField,
+    MatLabel,
+    MatHint,
+    MatError,
+    MatInput,
+    ProblemList,
+  ],
+  templateUrl: './price-index-dialog.html',
+  styleUrl: './ref-dialog.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class PriceIndexDialog {
+  readonly #api = inject(DataDeskApi);
+  readonly #dialogRef = inject<MatDialogRef<PriceIndexDialog, PriceIndex>>(MatDialogRef);
+  protected readonly lookups = inject<Lookups>(MAT_DIALOG_DATA);
+
+  protected readonly form = inject(NonNullableFormBuilder).group({
+    name: ['', [Validators.required, zodValidator(priceIndexSchema.shape.name)]],
+    base: ['', [Validators.required, zodValidator(priceIndexSchema.shape.base)]],
+    source: ['', [Validators.required, zodValidator(priceIndexSchema.shape.source)]],
+    values: ['', Validators.required],
+  });
+  readonly #text = toSignal(this.form.controls.values.valueChanges, { initialValue: '' });
+  protected readonly read = computed(() => readIndexValues(parseTable(this.#text()), this.lookups));
+  protected readonly missing = computed(() => {
+    const have = new Set(this.read().values.map((v) => v.seasonId));
+    return this.lookups.seasons.filter((s) => !have.has(s.id)).map((s) => s.label);
+  });
+  protected readonly saving = signal(false);
+  protected readonly failure = signal<string | null>(null);
+
+  protected async fileChosen(event: Event): Promise<void> {
+    const input = event.target as HTMLInputElement;
+    const file = input.files?.[0];
+    input.value = '';
+    if (!file) return;
+    if (file.size > 1024 * 1024) {
+      this.failure.set(`${file.name} is larger than 1 MB; an index has one value per season.`);
+      return;
+    }
+    this.form.controls.values.setValue(await file.text());
+    if (!this.form.controls.name.value) this.form.controls.name.setValue(file.name.replace(/\.[^.]+$/, ''));
+  }
+
+  protected async save(): Promise<void> {
+    const read = this.read();
+    if (this.form.invalid || read.problems.length > 0 || read.values.length === 0) {
+      this.form.markAllAsTouched();
+      return;
+    }
+    const v = this.form.getRawValue();
+    const body = { name: v.name.trim(), base: v.base.trim(), source: v.source.trim(), values: read.values };
+    this.failure.set(null);
+    this.saving.set(true);
+    try {
+      this.#dialogRef.close(await this.#api.createPriceIndex(body));
+    } catch (error) {
+      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
+        this.failure.set(error instanceof ApiRequestError && error.status === 409 ? `An index named “${body.name}” exists already.` : errorMessage(error));
+      }
+    } finally {
+      this.saving.set(false);
+    }
+  }
+}

@@ -1,0 +1,143 @@
+import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { MatButton } from '@angular/material/button';
+import {
+  MAT_DIALOG_DATA,
+  MatDialogActions,
+  MatDialogClose,
+  MatDialogContent,
+  MatDialogRef,
+  MatDialogTitle,
+} from '@angular/material/dialog';
+import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
+import { MatInput } from '@angular/material/input';
+import type { FarmSummary } from '../../../shared/api-types';
+import { farmSchema } from '../../../shared/data-schemas';
+import { ApiRequestError, errorMessage } from '../core/api-error';
+import { DataDeskApi, type FarmRow } from '../data-desk/data-desk-api';
+import { applyServerDetails, zodValidator } from '../shared/zod-validator';
+
+export interface FarmDialogData {
+  farm: FarmSummary | null;
+  /** Regions already in use, offered as suggestions. */
+  regions: string[];
+}
+
+/** Adds or edits a farm: code, name, region and the land it farms now. The owning member is linked under Users. */
+@Component({
+  selector: 'np-farm-dialog',
+  imports: [
+    ReactiveFormsModule,
+    MatDialogTitle,
+    MatDialogContent,
+    MatDialogActions,
+    MatDialogClose,
+    MatButton,
+    MatFormField,
+    MatLabel,
+    MatHint,
+    MatError,
+    MatSuffix,
+    MatInput,
+  ],
+  template: `
+    <h2 mat-dialog-title>{{ farm ? 'Edit ' + farm.name : 'Add a farm' }}</h2>
+    <mat-dialog-content>
+      <form id="farm-form" [formGroup]="form" (ngSubmit)="save()" novalidate>
+        <mat-form-field>
+          <mat-label>Farm code</mat-label>
+          <input matInput formControlName="code" required autocomplete="off" cdkFocusInitial />
+          <mat-hint>The co-op's own code, e.g. F21</mat-hint>
+          @if (form.controls.code.hasError('required')) {
+            <mat-error>Enter a code</mat-error>
+          } @else if (form.controls.code.hasError('schema')) {
+            <mat-error>{{ form.controls.code.getError('schema') }}</mat-error>
+          } @else if (form.controls.code.hasError('server')) {
+            <mat-error>{{ form.controls.code.getError('server') }}</mat-error>
+          }
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>Name</mat-label>
+          <input matInput formControlName="name" required autocomplete="off" />
+          @if (form.controls.name.hasError('required')) {
+            <mat-error>Enter the farm's name</mat-error>
+          } @else if (form.controls.name.hasError('schema')) {
+            <mat-error>{{ form.controls.name.getError('schema') }}</mat-error>
+          }
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>Region</mat-label>
+          <input matInput formControlName="region" required autocomplete="off" list="farm-regions" />
+          <datalist id="farm-regions">
+            @for (r of data.regions; track r) {
+              <option [value]="r"></option>
+            }
+          </datalist>
+          @if (form.controls.region.hasError('required')) {
+            <mat-error>Enter the region</mat-error>
+          } @else if (form.controls.region.hasError('schema')) {
+            <mat-error>{{ form.controls.region.getError('schema') }}</mat-error>
+          }
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>Land farmed now</mat-label>
+          <input matInput type="number" min="0" step="any" formControlName="landHa" required />
+          <span matTextSuffix>ha</span>
+          <mat-hint>Land per season is kept with the farm's records</mat-hint>
+          @if (form.controls.landHa.hasError('required')) {
+            <mat-error>Enter the land in hectares</mat-error>
+          } @else if (form.controls.landHa.hasError('schema')) {
+            <mat-error>{{ form.controls.landHa.getError('schema') }}</mat-error>
+          }
+        </mat-form-field>
+        <p class="info np-muted">
+          Owning member:
+          {{ farm?.ownerName ?? 'none linked' }}. An administrator links a member's account to the farm under Users.
+        </p>
+        @if (failure(); as message) {
+          <p class="problem" role="alert">{{ message }}</p>
+        }
+      </form>
+    </mat-dialog-content>
+    <mat-dialog-actions align="end">
+      <button matButton type="button" mat-dialog-close>Cancel</button>
+      <button matButton="filled" type="submit" form="farm-form" [disabled]="saving()">{{ farm ? 'Save changes' : 'Add farm' }}</button>
+    </mat-dialog-actions>
+  `,
+  styleUrl: '../data-desk/reference/ref-dialog.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class FarmDialog {
+  readonly #api = inject(DataDeskApi);
+  readonly #dialogRef = inject<MatDialogRef<FarmDialog, FarmRow>>(MatDialogRef);
+  protected readonly data = inject<FarmDialogData>(MAT_DIALOG_DATA);
+  protected readonly farm = this.data.farm;
+  protected readonly form = inject(NonNullableFormBuilder).group({
+    code: [this.farm?.code ?? '', [Validators.required, zodValidator(farmSchema.shape.code)]],
+    name: [this.farm?.name ?? '', [Validators.required, zodValidator(farmSchema.shape.name)]],
+    region: [this.farm?.region ?? '', [Validators.required, zodValidator(farmSchema.shape.region)]],
+    landHa: [this.farm?.landHa ?? (null as number | null), [Validators.required, zodValidator(farmSchema.shape.landHa)]],
+  });
+  protected readonly saving = signal(false);
+  protected readonly failure = signal<string | null>(null);
+
+  protected async save(): Promise<void> {
+    if (this.form.invalid) {
+      this.form.markAllAsTouched();
+      return;
+    }
+    const v = this.form.getRawValue();
+    const body = { code: v.code.trim(), name: v.name.trim(), region: v.region.trim(), landHa: Number(v.landHa) };
+    this.failure.set(null);
+    this.saving.set(true);
+    try {
+      this.#dialogRef.close(this.farm ? await this.#api.updateFarm(this.farm.id, body) : await this.#api.createFarm(body));
+    } catch (error) {
+      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
+        this.failure.set(error instanceof ApiRequestError && error.status === 409 ? `A farm with the code “${body.code}” exists already.` : errorMessage(error));
+      }
+    } finally {
+      this.saving.set(false);
+    }
+  }
+}

@@ -1,0 +1,274 @@
+import { DecimalPipe } from '@angular/common';
+import { httpResource } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, signal } from '@angular/core';
+import { MatButton } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatIcon } from '@angular/material/icon';
+import { MatProgressBar } from '@angular/material/progress-bar';
+import { MatSnackBar } from '@angular/material/snack-bar';
+import { Router, RouterLink } from '@angular/router';
+import { AgGridAngular } from 'ag-grid-angular';
+import type {
+  CellValueChangedEvent,
+  ColDef,
+  ColGroupDef,
+  GetRowIdParams,
+  GridApi,
+  GridReadyEvent,
+  IErrorValidationParams,
+  ValueFormatterParams,
+} from 'ag-grid-community';
+import { firstValueFrom } from 'rxjs';
+import type { FarmRecordRow, FarmSummary, Item } from '../../../shared/api-types';
+import { ACCESS, roleAllows } from '../core/access';
+import { errorMessage, errorStatus } from '../core/api-error';
+import { AuthStore } from '../core/auth-store';
+import { DataDeskApi, type FarmRow, type LandRow, type RecordBody } from '../data-desk/data-desk-api';
+import { gridTheme, safeCsvCell } from '../data-desk/data-grid';
+import { parseTable } from '../data-desk/paste';
+import { ReferenceStore } from '../data-desk/reference-store';
+import { CautionNote } from '../shared/caution-note';
+import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
+import { FarmDialog, type FarmDialogData } from './farm-dialog';
+import { itemKey, pivotRecords, recordCellProblem, type SeasonRow } from './records-pivot';
+
+const quantityFormat = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 2 });
+const landFormat = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 });
+
+/** `/farms/:id`: one farm, its outputs, input use and land per season in one grid. Planners edit cells and paste blocks. */
+@Component({
+  selector: 'np-farm-records',
+  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatIcon, MatProgressBar, CautionNote],
+  templateUrl: './farm-records.html',
+  styleUrl: './farm-records.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class FarmRecords {
+  readonly #api = inject(DataDeskApi);
+  readonly #auth = inject(AuthStore);
+  readonly #dialog = inject(MatDialog);
+  readonly #router = inject(Router);
+  readonly #snackBar = inject(MatSnackBar);
+  protected readonly ref = inject(ReferenceStore);
+
+  /** The route's `:id`. */
+  readonly id = input.required<string>();
+  protected readonly farmId = computed(() => Number(this.id()));
+  protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
+  protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
+
+  protected readonly farms = httpResource<FarmSummary[]>(() => '/api/farms');
+  protected readonly farm = computed(() => (this.farms.hasValue() ? (this.farms.value().find((f) => f.id === this.farmId()) ?? null) : null));
+  protected readonly notFound = computed(() => this.farms.hasValue() && this.farm() === null);
+  protected readonly records = httpResource<FarmRecordRow[]>(() => (Number.isInteger(this.farmId()) ? { url: '/api/records', params: { farms: this.farmId() } } : undefined));
+  protected readonly land = httpResource<LandRow[]>(() => (Number.isInteger(this.farmId()) ? { url: '/api/records/land', params: { farms: this.farmId() } } : undefined));
+  protected readonly loading = computed(() => this.farms.isLoading() || this.records.isLoading() || this.land.isLoading() || !this.ref.loaded());
+  protected readonly problem = computed(() => {
+    const e = this.farms.error() ?? this.records.error() ?? this.land.error() ?? this.ref.error();
+    return e ? errorMessage(e) : null;
+  });
+
+  protected readonly rows = linkedSignal<SeasonRow[]>(() =>
+    pivotRecords(
+      this.ref.seasons(),
+      this.ref.items(),
+      this.records.hasValue() ? this.records.value() : [],
+      this.land.hasValue() ? this.land.value() : [],
+    ),
+  );
+  protected readonly recordCount = computed(() => (this.records.hasValue() ? this.records.value().length : 0));
+  protected readonly gaps = computed(() => this.rows().filter((r) => this.ref.items().every((it) => r[itemKey(it.id)] === null)).map((r) => r.season));
+  protected readonly status = signal<{ ok: boolean; text: string } | null>(null);
+  readonly #grid = signal<GridApi<SeasonRow> | null>(null);
+
+  protected readonly theme = gridTheme;
+  protected readonly getRowId = (p: GetRowIdParams<SeasonRow>) => String(p.data.seasonId);
+  protected readonly defaultColDef: ColDef<SeasonRow> = { sortable: false, resizable: true, editable: () => this.canEdit() };
+  protected readonly columns = computed<(ColDef<SeasonRow> | ColGroupDef<SeasonRow>)[]>(() => {
+    const items = this.ref.items();
+    const itemColumn = (it: Item): ColDef<SeasonRow> => ({
+      colId: itemKey(it.id),
+      field: itemKey(it.id),
+      headerName: `${it.name} (${it.unit})`,
+      headerTooltip: `${it.name}, ${it.role === 'output' ? 'produced' : 'used'}, in ${it.unit}`,
+      type: 'numericColumn',
+      minWidth: 110,
+      flex: 1,
+      wrapHeaderText: true,
+      autoHeaderHeight: true,
+      valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? quantityFormat.format(p.value) : '—'),
+      cellClassRules: { 'np-missing': (p) => p.value === null || p.value === undefined },
+      cellEditor: 'agNumberCellEditor',
+      cellEditorParams: { getValidationErrors: (p: IErrorValidationParams<SeasonRow>) => this.#validate('quantity', p) },
+    });
+    return [
+      { field: 'season', headerName: 'Season', pinned: 'left', width: 110, editable: false },
+      {
+        field: 'landHa',
+        headerName: 'Land (ha)',
+        type: 'numericColumn',
+        width: 120,
+        valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? landFormat.format(p.value) : '—'),
+        cellClassRules: { 'np-missing': (p) => p.value === null || p.value === undefined },
+        cellEditor: 'agNumberCellEditor',
+        cellEditorParams: { getValidationErrors: (p: IErrorValidationParams<SeasonRow>) => this.#validate('land', p) },
+      },
+      { headerName: 'Outputs (produced)', children: items.filter((i) => i.role === 'output').map(itemColumn) },
+      { headerName: 'Inputs (used)', children: items.filter((i) => i.role === 'input').map(itemColumn) },
+    ];
+  });
+
+  protected gridReady(event: GridReadyEvent<SeasonRow>): void {
+    this.#grid.set(event.api);
+  }
+
+  #validate(kind: 'quantity' | 'land', p: IErrorValidationParams<SeasonRow>): string[] | null {
+    const problem = recordCellProblem(kind, p.value);
+    if (problem) this.status.set({ ok: false, text: `${p.cellEditorParams.data.season}: ${problem}` });
+    return problem ? [problem] : null;
+  }
+
+  protected async cellChanged(event: CellValueChangedEvent<SeasonRow>): Promise<void> {
+    const key = event.colDef.field as keyof SeasonRow | undefined;
+    if (!key || event.newValue === event.oldValue) return;
+    const row = event.data;
+    const farmId = this.farmId();
+    const revert = () => {
+      this.rows.update((rows) => rows.map((r) => (r.seasonId === row.seasonId ? { ...r, [key]: event.oldValue } : r)));
+      event.api.applyTransaction({ update: [{ ...row, [key]: event.oldValue }] });
+    };
+    try {
+      if (key === 'landHa') {
+        await this.#api.putLand({ farmId, seasonId: row.seasonId, landHa: Number(event.newValue) });
+        this.status.set({ ok: true, text: `Saved: land in ${row.season} is ${landFormat.format(Number(event.newValue))} ha.` });
+      } else {
+        const item = this.ref.items().find((it) => itemKey(it.id) === key)!;
+        if (event.newValue === null || event.newValue === undefined || event.newValue === '') {
+          const data: ConfirmDialogData = {
+            title: `Remove ${item.name.toLowerCase()} of ${row.season}?`,
+            message: `The record (${quantityFormat.format(event.oldValue)} ${item.unit}) is deleted; the audit log keeps it.`,
+            confirmLabel: 'Remove record',
+            destructive: true,
+          };
+          if (!(await firstValueFrom(this.#dialog.open(ConfirmDialog, { data }).afterClosed()))) return revert();
+          await this.#api.deleteRecord({ farmId, seasonId: row.seasonId, itemId: item.id });
+          this.status.set({ ok: true, text: `Removed: ${item.name} in ${row.season}.` });
+        } else {
+          await this.#api.putRecords([{ farmId, seasonId: row.seasonId, itemId: item.id, quantity: Number(event.newValue) }]);
+          this.status.set({ ok: true, text: `Saved: ${item.name} in ${row.season} is ${quantityFormat.format(Number(event.newValue))} ${item.unit}.` });
+        }
+      }
+      this.rows.update((rows) => rows.map((r) => (r.seasonId === row.seasonId ? { ...r, [key]: event.newValue ?? null } : r)));
+    } catch (error) {
+      revert();
+      this.status.set({ ok: false, text: `Not saved (${row.season}): ${errorMessage(error)}` });
+    }
+  }
+
+  /**
+   * Ctrl+V on the grid fills cells from the focused one, right and down, as in a spreadsheet. All the
+   * quantities go in one request (all or nothing); land cells follow, one season at a time.
+   */
+  protected async gridPaste(event: ClipboardEvent): Promise<void> {
+    if (!this.canEdit()) return;
+    const target = event.target as HTMLElement | null;
+    if (target?.closest('input, textarea')) return;
+    const grid = this.#grid();
+    const focused = grid?.getFocusedCell();
+    const text = event.clipboardData?.getData('text/plain') ?? '';
+    if (!grid || !focused || text.trim() === '') return;
+    event.preventDefault();
+    const block = parseTable(text);
+    const columns = grid.getAllDisplayedColumns().map((c) => c.getColId());
+    const startCol = columns.indexOf(focused.column.getColId());
+    const rows: SeasonRow[] = [];
+    grid.forEachNodeAfterFilterAndSort((n) => n.data && rows.push(n.data));
+    const problems: string[] = [];
+    const records: RecordBody[] = [];
+    const land: { seasonId: number; landHa: number }[] = [];
+    block.forEach((cells, r) => {
+      const row = rows[focused.rowIndex + r];
+      if (!row) {
+        problems.push(`line ${r + 1}: below the last season`);
+        return;
+      }
+      cells.forEach((cell, c) => {
+        const colId = columns[startCol + c];
+        if (!colId || colId === 'season') {
+          problems.push(`line ${r + 1}, cell ${c + 1}: outside the editable columns`);
+          return;
+        }
+        if (cell === '') return;
+        const kind = colId === 'landHa' ? 'land' : 'quantity';
+        const problem = recordCellProblem(kind, cell);
+        if (problem) problems.push(`${row.season}, ${this.#columnName(colId)}: ${problem}`);
+        else if (kind === 'land') land.push({ seasonId: row.seasonId, landHa: Number(cell) });
+        else records.push({ farmId: this.farmId(), seasonId: row.seasonId, itemId: Number(colId.slice(1)), quantity: Number(cell) });
+      });
+    });
+    if (problems.length) {
+      this.status.set({ ok: false, text: `Nothing pasted: ${problems.slice(0, 5).join('; ')}${problems.length > 5 ? `; and ${problems.length - 5} more` : ''}` });
+      return;
+    }
+    try {
+      if (records.length) await this.#api.putRecords(records);
+      for (const l of land) await this.#api.putLand({ farmId: this.farmId(), ...l });
+      this.status.set({ ok: true, text: `Pasted ${records.length} quantities${land.length ? ` and land of ${land.length} seasons` : ''}.` });
+    } catch (error) {
+      this.status.set({ ok: false, text: `Not pasted: ${errorMessage(error)}` });
+    }
+    this.records.reload();
+    this.land.reload();
+  }
+
+  #columnName(colId: string): string {
+    if (colId === 'landHa') return 'land';
+    return this.ref.items().find((it) => itemKey(it.id) === colId)?.name ?? colId;
+  }
+
+  protected editFarm(): void {
+    const farm = this.farm();
+    if (!farm) return;
+    const data: FarmDialogData = { farm, regions: [...new Set((this.farms.hasValue() ? this.farms.value() : []).map((f) => f.region))].sort() };
+    this.#dialog
+      .open<FarmDialog, FarmDialogData, FarmRow>(FarmDialog, { data, autoFocus: 'first-tabbable' })
+      .afterClosed()
+      .subscribe((saved) => {
+        if (!saved) return;
+        this.farms.reload();
+        this.#snackBar.open(`${saved.name} saved.`, 'OK');
+      });
+  }
+
+  protected async deleteFarm(): Promise<void> {
+    const farm = this.farm();
+    if (!farm) return;
+    const data: ConfirmDialogData = {
+      title: `Delete ${farm.name}?`,
+      message: `This deletes the farm and its ${this.recordCount()} records and land of every season. Models already fitted keep their copy of the data. The audit log records the deletion.`,
+      confirmLabel: 'Delete farm and records',
+      destructive: true,
+    };
+    if (!(await firstValueFrom(this.#dialog.open(ConfirmDialog, { data }).afterClosed()))) return;
+    try {
+      await this.#api.deleteFarm(farm.id);
+      this.#snackBar.open(`${farm.name} deleted.`, 'OK');
+      await this.#router.navigate(['/farms']);
+    } catch (error) {
+      this.#snackBar.open(errorMessage(error), 'Dismiss');
+    }
+  }
+
+  protected async download(format: 'csv' | 'xlsx'): Promise<void> {
+    const farm = this.farm();
+    try {
+      await this.#api.download(`/api/records/export?format=${format}&farms=${this.farmId()}`, `netput-records-${farm?.code ?? this.farmId()}.${format}`);
+    } catch (error) {
+      if (errorStatus(error) === 404 && format === 'csv') {
+        this.#grid()?.exportDataAsCsv({ fileName: `netput-records-${farm?.code ?? this.farmId()}.csv`, processCellCallback: safeCsvCell });
+        return;
+      }
+      this.#snackBar.open(errorStatus(error) === 404 ? 'This server does not offer XLSX exports of records yet.' : errorMessage(error), 'Dismiss');
+    }
+  }
+}

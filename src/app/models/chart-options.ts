@@ -1,0 +1,133 @@
+import type { EChartsCoreOption } from 'echarts/core';
+import { formatAmount } from './model-format';
+
+/** Series colours of the model charts (our own): observed figures dark, the model's in ochre, errors in clay. */
+export const CHART_COLOURS = {
+  actual: '#33481c',
+  model: '#b26d12',
+  second: '#2f7a86',
+  error: '#b25a2c',
+  axis: '#6d6a5f',
+  grid: '#e4e1d8',
+} as const;
+
+/** Axis ticks: whole numbers from 10 up, up to three decimals below (ticks are round already). */
+function axisNumber(v: number): string {
+  const a = Math.abs(v);
+  return new Intl.NumberFormat('en', { maximumFractionDigits: a >= 10 || a === 0 ? 0 : 3 }).format(v).replace('-', '−');
+}
+
+const TEXT = { color: '#3b3a33', fontFamily: 'Roboto, system-ui, sans-serif' };
+
+function axisName(name: string) {
+  return { name, nameLocation: 'middle' as const, nameTextStyle: { ...TEXT, fontSize: 12 } };
+}
+
+const valueAxis = {
+  type: 'value' as const,
+  scale: true,
+  axisLabel: { ...TEXT, formatter: axisNumber },
+  splitLine: { lineStyle: { color: CHART_COLOURS.grid } },
+  axisLine: { lineStyle: { color: CHART_COLOURS.axis } },
+};
+
+const base = {
+  aria: { enabled: true },
+  animation: false,
+  textStyle: TEXT,
+  legend: { top: 0, textStyle: TEXT },
+  tooltip: { trigger: 'axis' as const, valueFormatter: (v: unknown) => (typeof v === 'number' ? formatAmount(v) : String(v)) },
+};
+
+/** Co-op totals by season: what members delivered or bought, and what the model fits. */
+export function fittedOption(seasons: string[], actual: number[], fitted: number[], quantityLabel: string): EChartsCoreOption {
+  return {
+    ...base,
+    grid: { left: 72, right: 16, top: 40, bottom: 56 },
+    xAxis: {
+      type: 'category',
+      data: seasons,
+      axisLabel: { ...TEXT, rotate: 45 },
+      axisLine: { lineStyle: { color: CHART_COLOURS.axis } },
+    },
+    yAxis: { ...valueAxis, ...axisName(quantityLabel), nameGap: 60 },
+    series: [
+      { name: 'Actual (members)', type: 'line', data: actual, symbol: 'circle', symbolSize: 6, lineStyle: { width: 2 }, color: CHART_COLOURS.actual },
+      { name: 'Fitted (model)', type: 'line', data: fitted, symbol: 'diamond', symbolSize: 7, lineStyle: { width: 2, type: 'dashed' }, color: CHART_COLOURS.model },
+    ],
+  };
+}
+
+export interface ResidualPoint {
+  fitted: number;
+  residual: number;
+  label: string;
+}
+
+/** Farm-season residuals (actual − fitted) against the fitted quantity, with the zero line. */
+export function residualOption(points: ResidualPoint[], quantityLabel: string): EChartsCoreOption {
+  return {
+    ...base,
+    tooltip: {
+      trigger: 'item',
+      formatter: (p: { data: [number, number, string] }) => `${p.data[2]}<br>fitted ${formatAmount(p.data[0])}, residual ${formatAmount(p.data[1])}`,
+    },
+    grid: { left: 72, right: 16, top: 40, bottom: 48 },
+    xAxis: { ...valueAxis, ...axisName(`Fitted ${quantityLabel}`), nameGap: 28 },
+    yAxis: { ...valueAxis, scale: false, ...axisName('Actual − fitted'), nameGap: 60 },
+    series: [
+      {
+        name: 'Farm-seasons',
+        type: 'scatter',
+        symbolSize: 5,
+        data: points.map((p) => [p.fitted, p.residual, p.label]),
+        color: CHART_COLOURS.second,
+        itemStyle: { opacity: 0.7 },
+        markLine: { silent: true, symbol: 'none', data: [{ yAxis: 0 }], lineStyle: { color: CHART_COLOURS.error, type: 'solid' }, label: { show: false } },
+      },
+    ],
+  };
+}
+
+/** One netput against one price, the other prices, land and trend at their sample means. */
+export function responseOption(prices: number[], quantities: number[], priceLabel: string, quantityLabel: string, meanPrice: number): EChartsCoreOption {
+  return {
+    ...base,
+    grid: { left: 72, right: 24, top: 40, bottom: 48 },
+    xAxis: { ...valueAxis, ...axisName(priceLabel), nameGap: 28 },
+    yAxis: { ...valueAxis, ...axisName(quantityLabel), nameGap: 60 },
+    tooltip: { trigger: 'axis', formatter: (ps: { data: [number, number] }[]) => `price ${formatAmount(ps[0]?.data[0])}: ${formatAmount(ps[0]?.data[1])}` },
+    series: [
+      {
+        name: 'Model response',
+        type: 'line',
+        data: prices.map((p, k) => [p, quantities[k]]),
+        symbol: 'none',
+        lineStyle: { width: 3 },
+        color: CHART_COLOURS.model,
+        markLine: {
+          silent: true,
+          symbol: 'none',
+          data: [{ xAxis: meanPrice }],
+          lineStyle: { color: CHART_COLOURS.axis, type: 'dotted' },
+          label: { formatter: 'sample mean', color: TEXT.color, position: 'insideEndBottom' },
+        },
+      },
+    ],
+  };
+}
+
+/** Back-test error by item: mean absolute percentage error and bias, in %. */
+export function backtestOption(items: string[], mape: number[], bias: number[]): EChartsCoreOption {
+  return {
+    ...base,
+    grid: { left: 56, right: 16, top: 40, bottom: 72 },
+    xAxis: { type: 'category', data: items, axisLabel: { ...TEXT, rotate: 30, interval: 0 }, axisLine: { lineStyle: { color: CHART_COLOURS.axis } } },
+    yAxis: { ...valueAxis, scale: false, axisLabel: { ...TEXT, formatter: (v: number) => `${v} %` } },
+    tooltip: { trigger: 'axis', valueFormatter: (v: unknown) => (typeof v === 'number' ? `${v.toFixed(1)} %` : String(v)) },
+    series: [
+      { name: 'Mean absolute error (%)', type: 'bar', data: mape, color: CHART_COLOURS.error },
+      { name: 'Bias (%)', type: 'bar', data: bias, color: CHART_COLOURS.second },
+    ],
+  };
+}

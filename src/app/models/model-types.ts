@@ -1,0 +1,216 @@
+import type { ModelDefinition } from '../../../shared/model-schemas';
+
+/**
+ * The shapes the model API answers with (server/models/models-service.ts, server/jobs/fit-task.ts,
+ * server/estimation/fit.ts). Declared here because those server types import Node modules the
+ * client build cannot type-check; only the fields the screens read are listed.
+ */
+export type RunState = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
+
+export const ACTIVE_STATES: readonly RunState[] = ['queued', 'running'];
+
+/** `GET /api/model-runs/:id/status` and each entry of a model's `runs`. */
+export interface RunStatus {
+  id: number;
+  modelId: number;
+  status: RunState;
+  /** 0..1 */
+  progress: number;
+  stage: string;
+  dataHash: string;
+  optionsHash: string;
+  softwareVersion: string;
+  error: string | null;
+  rerunOf: number | null;
+  createdAt: string;
+  startedAt: string | null;
+  finishedAt: string | null;
+}
+
+/** `GET /api/models` rows and `GET /api/models/:id`. */
+export interface ModelSummary {
+  id: number;
+  name: string;
+  definition: ModelDefinition;
+  createdBy: number | null;
+  createdAt: string;
+  runs: RunStatus[];
+}
+
+export interface ExcludedObservation {
+  farm: string;
+  season: string;
+  reason: string;
+}
+
+export interface NetputRef {
+  name: string;
+  role: 'output' | 'input';
+}
+
+export interface CoefficientEstimate {
+  name: string;
+  parameter: string;
+  estimate: number;
+  standardError: number;
+}
+
+export interface EquationFit {
+  item: string;
+  role: 'output' | 'input';
+  r2: number;
+  rmse: number;
+  ssr: number;
+  coefficients: CoefficientEstimate[];
+}
+
+export interface CurvatureReport {
+  global: boolean;
+  unrestrictedEigenvalues: number[];
+  unrestrictedConvex: boolean;
+  imposed: boolean;
+  eigenvalues: number[];
+  convexAtMeans: boolean;
+  violatingObservations: number;
+  violationShare: number;
+  binding?: boolean;
+  iterations?: number;
+  converged?: boolean;
+}
+
+export interface MonotonicityReport {
+  item: string;
+  role: 'output' | 'input';
+  violations: number;
+  share: number;
+}
+
+export interface FitResult {
+  layout: {
+    form: 'normalized-quadratic' | 'generalized-leontief';
+    items: NetputRef[];
+    numeraire: string;
+    factors: string[];
+    trendOrigin: number | null;
+    parameterNames: string[];
+  };
+  observations: number;
+  theta: number[];
+  standardErrors: number[];
+  equations: EquationFit[];
+  logLikelihood: number;
+  parameterCount: number;
+  aic: number;
+  bic: number;
+  iterations: number;
+  converged: boolean;
+  seasonYears: { first: number; last: number };
+  means: { prices: number[]; fixed: number[] };
+  curvature: CurvatureReport;
+  monotonicity: MonotonicityReport[];
+  monotonicityViolationShare: number;
+  warnings: string[];
+}
+
+/** The fit-contract document (server/estimation/contract.ts) stored with the run. */
+export interface FitSummary {
+  form: FitResult['layout']['form'];
+  numeraire: string;
+  items: NetputRef[];
+  observations: number;
+  evaluatedAt: { prices: Record<string, number>; fixed: Record<string, number> };
+  netputs: Record<string, number>;
+  profit: number;
+  elasticities: number[][];
+  elasticityStandardErrors: number[][];
+  convex: boolean;
+  curvatureImposed: boolean;
+  equations: { item: string; r2: number; rmse: number }[];
+  fixedFactors: string[];
+  trend: { firstSeason: number; definition: string } | null;
+  shadowValues: Record<string, { value: number; standardError: number }>;
+  logLikelihood: number;
+  parameterCount: number;
+  aic: number;
+  bic: number;
+  iterations: number;
+  converged: boolean;
+  warnings: string[];
+  caution: string;
+}
+
+export interface BacktestSeason {
+  season: string;
+  predicted: Record<string, number>;
+  actual: Record<string, number>;
+  fittedOn: { first: string; last: string; observations: number };
+}
+
+export interface BacktestItem {
+  item: string;
+  /** % */
+  mape: number;
+  /** % (positive: the model over-projects) */
+  bias: number;
+}
+
+export interface FitRunResult {
+  fit: FitResult;
+  summary: FitSummary;
+  shadowValues: { factor: string; value: number; standardError: number; profitElasticity: number }[];
+  longRun: { items: string[]; shortRun: number[][]; longRun: number[][]; longRunStandardErrors: number[][] } | null;
+  longRunError: string | null;
+  fittedBySeason: { season: string; actual: Record<string, number>; fitted: Record<string, number> }[];
+  residuals: { season: string; farm: string | null; fitted: Record<string, number>; residual: Record<string, number> }[];
+  responseCurves: { item: string; prices: number[]; quantities: number[] }[];
+  backtest: { seasons: BacktestSeason[]; items: BacktestItem[]; error: string | null };
+}
+
+/** `GET /api/model-runs/:id` (the snapshot itself is left out; `observations` counts it). */
+export interface RunDetail extends RunStatus {
+  definition: ModelDefinition;
+  excluded: ExcludedObservation[];
+  result: FitRunResult | null;
+  createdBy: number | null;
+  /** Name of the person who started the run (null when the account is gone). */
+  createdByName?: string | null;
+  observations: number;
+}
+
+/** `GET /api/model-runs/:id/evaluate`. */
+export interface Evaluation {
+  items: NetputRef[];
+  point: { prices: number[]; fixed: number[] };
+  /** + output supply, − input demand, in item units, layout order. */
+  netputs: number[];
+  profit: number;
+  convex: boolean;
+  elasticities: number[][];
+  standardErrors: number[][];
+}
+
+export const FORM_LABELS: Record<ModelDefinition['form'] | FitResult['layout']['form'], string> = {
+  nq: 'Normalised quadratic',
+  gl: 'Generalised Leontief',
+  'normalized-quadratic': 'Normalised quadratic',
+  'generalized-leontief': 'Generalised Leontief',
+};
+
+export const CURVATURE_LABELS: Record<ModelDefinition['curvature'], string> = {
+  auto: 'Impose only when the estimate breaks it',
+  impose: 'Always impose',
+  check: 'Check only, never impose',
+};
+
+export const STATE_LABELS: Record<RunState, string> = {
+  queued: 'Waiting',
+  running: 'Running',
+  succeeded: 'Finished',
+  failed: 'Failed',
+  cancelled: 'Cancelled',
+};
+
+export const FACTOR_LABELS: Record<string, string> = {
+  land_ha: 'Land (ha)',
+  trend: 'Trend (technical change)',
+};

@@ -1,0 +1,86 @@
+import { BreakpointObserver } from '@angular/cdk/layout';
+import { httpResource } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
+import { MatButton } from '@angular/material/button';
+import { MatFormField, MatLabel } from '@angular/material/form-field';
+import { MatProgressBar } from '@angular/material/progress-bar';
+import { MatOption, MatSelect } from '@angular/material/select';
+import { Router, RouterLink } from '@angular/router';
+import { map } from 'rxjs';
+import { errorMessage, errorStatus } from '../core/api-error';
+import { ExpectationsTable } from '../outlook/expectations-table';
+import { FanChart, fanInputFor } from '../outlook/fan-chart';
+import { OutlookCautions } from '../outlook/outlook-cautions';
+import { describeFixed, formatDate, formatQuantity, formatShare } from '../outlook/outlook-format';
+import type { MemberVersion, MemberVersionRow } from '../outlook/outlook-types';
+import { SourceFacts } from '../outlook/source-facts';
+import { QuantityCards } from './quantity-cards';
+
+/**
+ * `/my-farm/outlook`: the member's portal. The published outlook (co-op part) and the member's own
+ * farm only; the server takes the farm from the session. A picker opens earlier versions.
+ */
+@Component({
+  selector: 'np-portal-outlook',
+  imports: [RouterLink, MatButton, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, ExpectationsTable, FanChart, OutlookCautions, QuantityCards, SourceFacts],
+  templateUrl: './portal-outlook.html',
+  styleUrl: './portal-outlook.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class PortalOutlook {
+  readonly #router = inject(Router);
+
+  // inputs
+  /** Query parameter: a published version's id; the newest of the latest season when absent. */
+  readonly version = input<string | undefined>(undefined);
+
+  protected readonly versions = httpResource<MemberVersionRow[]>(() => '/api/portal/outlook/versions');
+  protected readonly outlook = httpResource<MemberVersion>(() => {
+    const v = this.version();
+    return v ? `/api/portal/outlook/versions/${encodeURIComponent(v)}` : '/api/portal/outlook';
+  });
+  protected readonly o = computed(() => (this.outlook.hasValue() ? this.outlook.value() : null));
+  protected readonly nothing = computed(() => errorStatus(this.outlook.error()) === 404);
+  protected readonly problem = computed(() => (this.outlook.error() && !this.nothing() ? errorMessage(this.outlook.error()) : null));
+  protected readonly versionList = computed(() => (this.versions.hasValue() ? this.versions.value() : []));
+
+  readonly #narrow = toSignal(
+    inject(BreakpointObserver)
+      .observe('(max-width: 599.98px)')
+      .pipe(map((s) => s.matches)),
+    { initialValue: false },
+  );
+  protected readonly narrow = this.#narrow;
+
+  /** The item the fan charts show: the farm's first output to begin with. */
+  protected readonly item = linkedSignal(() => {
+    const items = this.o()?.farm?.items ?? this.o()?.projection.coop.items ?? [];
+    return (items.find((i) => i.role === 'output') ?? items[0])?.item ?? '';
+  });
+  protected readonly farmFan = computed(() => {
+    const o = this.o();
+    const it = o?.farm?.items.find((i) => i.item === this.item());
+    return o?.farm && it ? fanInputFor(it, o.farm.history, o.season.label, { compact: this.narrow(), maxHistory: this.narrow() ? 8 : 12 }) : null;
+  });
+  protected readonly coopFan = computed(() => {
+    const o = this.o();
+    const it = o?.projection.coop.items.find((i) => i.item === this.item());
+    return o && it ? fanInputFor(it, o.projection.coop.history, o.season.label, { compact: this.narrow(), maxHistory: this.narrow() ? 8 : 12 }) : null;
+  });
+  protected readonly delivered = computed(() => {
+    const c = this.o()?.projection.coop;
+    const d = c?.deliveries?.scenarios['base'];
+    if (!c || !d) return null;
+    return { point: d.point, p5: d.p5, p95: d.p95, storage: c.capacity?.scenarios['base']?.storageShare?.point ?? null, capacity: c.capacity?.storageCapacityT ?? null };
+  });
+
+  protected readonly describeFixed = describeFixed;
+  protected readonly formatDate = formatDate;
+  protected readonly formatQuantity = formatQuantity;
+  protected readonly formatShare = formatShare;
+
+  protected chooseVersion(id: number): void {
+    void this.#router.navigate(['/my-farm/outlook'], { queryParams: { version: id } });
+  }
+}

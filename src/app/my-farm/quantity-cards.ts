@@ -1,0 +1,80 @@
+import { ChangeDetectionStrategy, Component, input } from '@angular/core';
+import { formatBand, formatQuantity } from '../outlook/outlook-format';
+import type { ItemProjection } from '../outlook/outlook-types';
+
+/**
+ * Projected quantities as cards that read on a phone: the base scenario at the estimates (the figure
+ * of the e-mail), its 5–95 % band, and the low and high scenarios.
+ */
+@Component({
+  selector: 'np-quantity-cards',
+  template: `
+    <ul class="cards" [attr.aria-label]="label()">
+      @for (it of items(); track it.item) {
+        <li class="card" [class.input]="it.role === 'input'">
+          <span class="what">{{ it.name }} <span class="role">{{ it.role === 'output' ? 'supply' : 'demand' }}</span></span>
+          <span class="value">{{ formatQuantity(it.scenarios['base']?.point) }} <span class="unit">{{ it.unit }}</span></span>
+          <span class="band">90 % band {{ formatBand(it.scenarios['base']) }}</span>
+          <span class="scen">Low {{ formatQuantity(it.scenarios['low']?.point) }} · high {{ formatQuantity(it.scenarios['high']?.point) }}</span>
+        </li>
+      }
+    </ul>
+  `,
+  styles: `
+    .cards {
+      display: grid;
+      grid-template-columns: repeat(auto-fill, minmax(150px, 1fr));
+      gap: 8px;
+      margin: 0;
+      padding: 0;
+      list-style: none;
+    }
+    .card {
+      display: flex;
+      flex-direction: column;
+      gap: 2px;
+      padding: 10px 12px;
+      min-width: 0;
+      border-radius: var(--mat-sys-corner-medium);
+      border: 1px solid var(--mat-sys-outline-variant);
+      background: var(--mat-sys-surface-container-lowest);
+      border-left: 4px solid var(--mat-sys-primary);
+    }
+    .card.input {
+      border-left-color: var(--mat-sys-tertiary);
+    }
+    .what {
+      font: var(--mat-sys-title-small);
+    }
+    .role {
+      display: block;
+      font: var(--mat-sys-label-small);
+      color: var(--mat-sys-on-surface-variant);
+      text-transform: uppercase;
+      letter-spacing: 0.04em;
+    }
+    .value {
+      font: var(--mat-sys-title-large);
+      font-variant-numeric: tabular-nums;
+      white-space: nowrap;
+    }
+    .unit {
+      font: var(--mat-sys-body-medium);
+      color: var(--mat-sys-on-surface-variant);
+    }
+    .band,
+    .scen {
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
+    }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class QuantityCards {
+  // inputs
+  readonly items = input.required<readonly ItemProjection[]>();
+  readonly label = input('Projected quantities');
+
+  protected readonly formatQuantity = formatQuantity;
+  protected readonly formatBand = formatBand;
+}

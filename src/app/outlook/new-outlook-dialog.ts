@@ -1,0 +1,117 @@
+import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { MatButton } from '@angular/material/button';
+import { MAT_DIALOG_DATA, MatDialogActions, MatDialogClose, MatDialogContent, MatDialogRef, MatDialogTitle } from '@angular/material/dialog';
+import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
+import { MatInput } from '@angular/material/input';
+import { MatOption, MatSelect } from '@angular/material/select';
+import { seasonLabelSchema } from '../../../server/outlook/outlook-schemas';
+import { ApiRequestError, errorMessage } from '../core/api-error';
+import { applyServerDetails, zodValidator } from '../shared/zod-validator';
+import { OutlookApi } from './outlook-api';
+import type { OutlookDraft } from './outlook-types';
+
+export interface RunChoice {
+  id: number;
+  label: string;
+}
+
+export interface NewOutlookDialogData {
+  /** Suggested season label (the one after the latest recorded). */
+  season: string;
+  runs: RunChoice[];
+  /** Seasons that already have an outlook. */
+  taken: string[];
+}
+
+/** Opens the draft outlook of a season with a finished model run. */
+@Component({
+  selector: 'np-new-outlook-dialog',
+  imports: [ReactiveFormsModule, MatDialogTitle, MatDialogContent, MatDialogActions, MatDialogClose, MatButton, MatFormField, MatLabel, MatHint, MatError, MatInput, MatSelect, MatOption],
+  template: `
+    <h2 mat-dialog-title>Open a season outlook</h2>
+    <mat-dialog-content>
+      <form id="new-outlook" class="form" [formGroup]="form" (ngSubmit)="save()" novalidate aria-label="Open a season outlook">
+        <mat-form-field>
+          <mat-label>Season</mat-label>
+          <input matInput formControlName="season" required autocomplete="off" cdkFocusInitial />
+          <mat-hint>e.g. 2026/27; a season not recorded yet is added</mat-hint>
+          @if (form.controls.season.hasError('schema')) {
+            <mat-error>{{ form.controls.season.getError('schema') }}</mat-error>
+          } @else if (form.controls.season.hasError('server')) {
+            <mat-error>{{ form.controls.season.getError('server') }}</mat-error>
+          }
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>Title</mat-label>
+          <input matInput formControlName="title" autocomplete="off" [placeholder]="'Season outlook ' + form.controls.season.value" />
+          <mat-hint>Optional</mat-hint>
+        </mat-form-field>
+        <mat-form-field>
+          <mat-label>Model run</mat-label>
+          <mat-select formControlName="modelRunId">
+            @for (r of data.runs; track r.id) {
+              <mat-option [value]="r.id">{{ r.label }}</mat-option>
+            }
+          </mat-select>
+          <mat-hint>{{ data.runs.length ? 'Each item of the model starts at last season’s price' : 'No model run has finished yet: fit one under Models first' }}</mat-hint>
+          @if (form.controls.modelRunId.hasError('required')) {
+            <mat-error>Choose a finished model run</mat-error>
+          }
+        </mat-form-field>
+        @if (failure(); as message) {
+          <p class="np-error-text" role="alert">{{ message }}</p>
+        }
+      </form>
+    </mat-dialog-content>
+    <mat-dialog-actions align="end">
+      <button matButton type="button" mat-dialog-close>Cancel</button>
+      <button matButton="filled" type="submit" form="new-outlook" [disabled]="saving()">Open the draft</button>
+    </mat-dialog-actions>
+  `,
+  styles: `
+    .form {
+      display: flex;
+      flex-direction: column;
+      gap: 12px;
+      min-width: min(420px, 80vw);
+      padding-top: 4px;
+    }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class NewOutlookDialog {
+  // services
+  readonly #api = inject(OutlookApi);
+  readonly #ref = inject<MatDialogRef<NewOutlookDialog, OutlookDraft>>(MatDialogRef);
+  protected readonly data = inject<NewOutlookDialogData>(MAT_DIALOG_DATA);
+
+  protected readonly form = inject(NonNullableFormBuilder).group({
+    season: [this.data.season, [zodValidator(seasonLabelSchema)]],
+    title: [''],
+    modelRunId: [(this.data.runs[0]?.id ?? null) as number | null, [Validators.required]],
+  });
+  protected readonly saving = signal(false);
+  protected readonly failure = signal<string | null>(null);
+
+  protected async save(): Promise<void> {
+    this.form.markAllAsTouched();
+    const v = this.form.getRawValue();
+    if (this.data.taken.includes(v.season.trim())) {
+      this.form.controls.season.setErrors({ server: `An outlook for ${v.season.trim()} exists already; open it from the list` });
+      return;
+    }
+    if (this.form.invalid) return;
+    this.saving.set(true);
+    this.failure.set(null);
+    try {
+      const created = await this.#api.create({ season: v.season.trim(), modelRunId: v.modelRunId, ...(v.title.trim() ? { title: v.title.trim() } : {}) });
+      this.#ref.close(created);
+    } catch (error) {
+      const matched = error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details);
+      if (!matched) this.failure.set(errorMessage(error));
+    } finally {
+      this.saving.set(false);
+    }
+  }
+}

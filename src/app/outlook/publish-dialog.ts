@@ -1,0 +1,54 @@
+import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
+import { MatButton } from '@angular/material/button';
+import { MatCheckbox } from '@angular/material/checkbox';
+import { MAT_DIALOG_DATA, MatDialogActions, MatDialogClose, MatDialogContent, MatDialogTitle } from '@angular/material/dialog';
+
+export interface PublishDialogData {
+  season: string;
+  version: number;
+  hasCommentary: boolean;
+}
+
+export interface PublishChoice {
+  notifyMembers: boolean;
+}
+
+/** Asks before publishing a version, which can never be changed afterwards, and whether to e-mail the members. */
+@Component({
+  selector: 'np-publish-dialog',
+  imports: [MatDialogTitle, MatDialogContent, MatDialogActions, MatDialogClose, MatButton, MatCheckbox],
+  template: `
+    <h2 mat-dialog-title>Publish version {{ data.version }} of the {{ data.season }} outlook?</h2>
+    <mat-dialog-content class="content">
+      <p>
+        The published version is a frozen copy: season, model run, expected prices, scenarios, projection, your commentary and the
+        cautions. It cannot be changed afterwards; publishing again makes version {{ data.version + 1 }}.
+      </p>
+      <p>Members read it in their portal with their own farm's figures only.</p>
+      @if (!data.hasCommentary) {
+        <p class="warn">The commentary is empty: members will see the figures without your words.</p>
+      }
+      <mat-checkbox [checked]="notify()" (change)="notify.set($event.checked)">
+        E-mail each member who has not opted out a personal copy
+      </mat-checkbox>
+    </mat-dialog-content>
+    <mat-dialog-actions align="end">
+      <button matButton type="button" [mat-dialog-close]="undefined">Cancel</button>
+      <button matButton="filled" type="button" [mat-dialog-close]="{ notifyMembers: notify() }" cdkFocusInitial>Publish version {{ data.version }}</button>
+    </mat-dialog-actions>
+  `,
+  styles: `
+    .content p {
+      margin: 0 0 10px;
+      max-width: 60ch;
+    }
+    .warn {
+      color: var(--mat-sys-error);
+    }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class PublishDialog {
+  protected readonly data = inject<PublishDialogData>(MAT_DIALOG_DATA);
+  protected readonly notify = signal(true);
+}

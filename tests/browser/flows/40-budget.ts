@@ -1,0 +1,337 @@
+import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import ExcelJS from 'exceljs';
+import Papa from 'papaparse';
+import type { Page, Response } from 'playwright-core';
+import type { Harness } from '../harness.js';
+import { assert, assertEqual, check, mainNav, shot, signIn, signOut } from '../harness.js';
+
+/** A fit takes seconds on the demo co-op, longer while other fits share the two cores. */
+const RUN_TIMEOUT_MS = 180_000;
+const COMPUTE_TIMEOUT_MS = 60_000;
+
+/** The model the budget tests fit when no run has finished yet (all seven demo items, NQ, land + trend). */
+const DEFINITION = {
+  items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'],
+  numeraire: 'labour',
+  fixedFactors: ['land_ha'],
+  trend: true,
+  form: 'nq',
+  curvature: 'auto',
+  fromSeason: null,
+  toSeason: null,
+  farms: null,
+  backtestSeasons: 0,
+};
+
+interface Line {
+  name: string;
+  tonnes: number;
+  lots: number;
+}
+
+interface Scenario {
+  name: string;
+  demand: { nitrogen: number; phosphate: number; potash: number };
+  mix: { lines: Line[] };
+  totals: { cash: number; cost: number };
+}
+
+interface Result {
+  unitSystem: 'metric' | 'us';
+  source: { kind: string };
+  cautions: string[];
+  scenarios: Scenario[];
+}
+
+/** The page's own rounding (src/app/budget/budget-format.ts), to compare cells with the API's numbers. */
+const fixed = (v: number, digits: number) =>
+  new Intl.NumberFormat('en', { minimumFractionDigits: digits, maximumFractionDigits: digits }).format(v).replace('-', '−');
+const tonnes = (v: number) => fixed(v, Math.abs(v) > 0 && Math.abs(v) < 1 ? 3 : 1);
+const mass = (v: number) => fixed(v, 0);
+const money = (v: number, currency: string) => `${currency} ${fixed(v, 0)}`;
+
+/** The next answer of a budget computation (preview, save or read), as JSON. */
+async function nextResult(page: Page, test: (url: URL, response: Response) => boolean): Promise<{ result: Result; id?: number }> {
+  const response = await page.waitForResponse((r) => test(new URL(r.url()), r) && r.ok(), { timeout: COMPUTE_TIMEOUT_MS });
+  return (await response.json()) as { result: Result; id?: number };
+}
+
+const isPreview = (u: URL, r: Response) => u.pathname === '/api/budgets/preview' && r.request().method() === 'POST';
+
+/** The text of a grid cell of the product plan, by product and column id order (AG Grid renders cells by col-id). */
+async function planCell(page: Page, product: string, headerStart: string): Promise<string> {
+  const grid = page.locator('np-product-plan ag-grid-angular');
+  const header = grid.locator('.ag-header-cell', { hasText: headerStart }).first();
+  const colId = await header.getAttribute('col-id');
+  assert(colId, `no column headed "${headerStart}"`);
+  // Pinned and scrolling parts of a row share its row-index; find the product's index in the pinned part.
+  const nameCell = grid.locator('.ag-cell[col-id="name"]', { hasText: new RegExp(`^${product}$`) }).first();
+  const rowIndex = await nameCell.locator('xpath=ancestor::*[@row-index][1]').getAttribute('row-index');
+  assert(rowIndex !== null, `no plan row for ${product}`);
+  return (await grid.locator(`.ag-row[row-index="${rowIndex}"] .ag-cell[col-id="${colId}"]`).first().innerText()).trim();
+}
+
+/** The cells of one row of the side-by-side table, in scenario order. */
+async function comparisonRow(page: Page, group: RegExp, label: string): Promise<string[]> {
+  const table = page.getByRole('table', { name: 'Scenarios side by side' });
+  const body = table.locator('tbody').filter({ has: page.locator('tr.group th', { hasText: group }) });
+  const row = body.locator('tr').filter({ has: page.getByRole('rowheader', { name: label, exact: true }) });
+  return (await row.locator('td').allInnerTexts()).map((t) => t.trim());
+}
+
+/** Issue 7: a treasurer builds a fertiliser budget from the outlook (or a model run), tries N +20 %, switches units and exports. */
+export default async function budget({ base, page }: Harness): Promise<void> {
+  const currency = 'EUR';
+
+  // --- planner: a finished model run must exist (the demo co-op ships none) -------------------------
+  const plannerIn = await check('the planner signs in to make sure a model run has finished', () => signIn(page, base, 'planner@example.org'));
+  if (!plannerIn) return;
+  const runReady = await check('a finished model run exists (the planner fits one through the API if none has)', async () => {
+    // Plain script text: tsx would wrap named inner functions in a helper the page does not have.
+    const outcome = (await page.evaluate(`(async () => {
+      const definition = ${JSON.stringify(DEFINITION)};
+      const token = decodeURIComponent((document.cookie.split('; ').find((c) => c.startsWith('XSRF-TOKEN=')) || '').split('=')[1] || '');
+      const post = async (url, body) => {
+        const r = await fetch(url, {
+          method: 'POST',
+          headers: body === undefined ? { 'X-XSRF-TOKEN': token } : { 'X-XSRF-TOKEN': token, 'Content-Type': 'application/json' },
+          body: body === undefined ? undefined : JSON.stringify(body),
+        });
+        return { status: r.status, body: await r.json().catch(() => null) };
+      };
+      const models = await (await fetch('/api/models')).json();
+      const done = models.flatMap((m) => m.runs).find((r) => r.status === 'succeeded');
+      if (done) return 'run #' + done.id + ' had finished';
+      const model = await post('/api/models', { name: 'Fertiliser budget model', definition });
+      if (model.status !== 201) return 'POST /api/models answered ' + model.status;
+      const run = await post('/api/models/' + model.body.id + '/runs');
+      if (run.status !== 202) return 'POST /api/models/:id/runs answered ' + run.status;
+      const deadline = Date.now() + ${RUN_TIMEOUT_MS};
+      while (Date.now() < deadline) {
+        const s = await (await fetch('/api/model-runs/' + run.body.id + '/status')).json();
+        if (s.status === 'succeeded') return 'run #' + run.body.id + ' fitted';
+        if (s.status === 'failed' || s.status === 'cancelled') return 'run #' + run.body.id + ' ' + s.status + ': ' + s.error;
+        await new Promise((r) => setTimeout(r, 500));
+      }
+      return 'run #' + run.body.id + ' did not finish in time';
+    })()`)) as string;
+    assert(/had finished|fitted/.test(outcome), outcome);
+  });
+  const versions = (await page.evaluate(() => fetch('/api/outlooks/versions').then((r) => r.json()))) as { id: number; title: string }[];
+  await check('the planner signs out', () => signOut(page));
+  if (!runReady) return;
+
+  // --- treasurer: build, scenario, units, exports ----------------------------------------------------
+  const treasurerIn = await check('the treasurer signs in', () => signIn(page, base, 'treasurer@example.org'));
+  if (!treasurerIn) return;
+  let budgetId = 0;
+  let baseMetric: Scenario | null = null;
+
+  const opened = await check('Budget is in the navigation and opens the list with a New budget button', async () => {
+    await mainNav(page).getByRole('link', { name: 'Budget' }).click();
+    await page.waitForURL(/\/budget$/);
+    await page.getByRole('heading', { level: 1, name: 'Fertiliser budgets' }).waitFor();
+    assertEqual(await page.title(), 'Fertiliser budgets · Netput', 'page title');
+    await page.getByText('it is not an application recommendation').first().waitFor();
+  });
+
+  const built =
+    opened &&
+    (await check(`a new budget starts from ${versions.length ? 'the published outlook' : 'the latest model run (no outlook is published)'} and shows product tonnes`, async () => {
+      const preview = nextResult(page, isPreview);
+      await page.getByRole('link', { name: 'New budget' }).click();
+      await page.waitForURL(/\/budget\/new$/);
+      const source = versions.length ? 'Published outlook' : 'Model run';
+      assert(await page.getByRole('radio', { name: source }).isChecked(), `"${source}" is not the chosen source`);
+      const { result } = await preview;
+      assertEqual(result.source.kind, versions.length ? 'outlook' : 'model-run', 'source of the preview');
+      baseMetric = result.scenarios[0]!;
+      await page.getByRole('heading', { name: 'Product plan' }).waitFor();
+      const urea = baseMetric.mix.lines.find((l) => l.name === 'Urea');
+      assert(urea && urea.tonnes > 0, 'the least-cost mix buys no urea');
+      await page.locator('np-product-plan .ag-row').first().waitFor();
+      assertEqual(await planCell(page, 'Urea', 'Bought'), tonnes(urea.tonnes), 'urea tonnes bought');
+      assertEqual(await planCell(page, 'Urea', 'Lots'), `${urea.lots} × 25`, 'urea lots (25 t each)');
+      await page.getByText(result.cautions[1]!.slice(0, 60)).first().waitFor();
+    }));
+
+  if (built) {
+    await check('the cash chart draws the monthly cash as SVG with its months', async () => {
+      const chart = page.locator('np-cash-chart [role="img"]');
+      await chart.locator('svg').waitFor();
+      const label = (await chart.getAttribute('aria-label')) ?? '';
+      assert(/^Cash by month, Base, \w{3} \d{4} to \w{3} \d{4}; most in \w{3} \d{4}: EUR [\d,]+; /.test(label), `chart label: ${label}`);
+      // The running total ends at the cash the base pays: list value less prepayment discounts.
+      assert(label.endsWith(`${money(baseMetric!.totals.cash, currency)} in all`), `chart label ends "${label.slice(-40)}", cash ${baseMetric!.totals.cash}`);
+      assert((await chart.locator('svg path').count()) > 5, 'the chart drew no bars');
+      const table = page.getByRole('table', { name: 'Cash by month, Base' });
+      assertEqual((await table.locator('tbody tr').count()) > 0, true, 'cash table rows');
+    });
+    await page.getByRole('heading', { name: 'Booking and cash' }).evaluate((el) => el.scrollIntoView({ block: 'start' }));
+    await shot(page, 'treasurer-budget-new-1280');
+
+    await check('the treasurer saves the budget and lands on its own page', async () => {
+      const saved = nextResult(page, (u, r) => u.pathname === '/api/budgets' && r.request().method() === 'POST');
+      await page.getByRole('button', { name: 'Save budget' }).click();
+      budgetId = (await saved).id!;
+      await page.waitForURL(new RegExp(`/budget/${budgetId}$`));
+      await page.getByRole('link', { name: 'Export XLSX' }).waitFor();
+    });
+  }
+
+  let upMetric: Scenario | null = null;
+  const scenarioAdded =
+    budgetId > 0 &&
+    (await check('a scenario N +20 % changes cost and demand, side by side with the base', async () => {
+      const preview = nextResult(page, isPreview);
+      await page.getByRole('button', { name: 'N +20 %' }).click();
+      const { result } = await preview;
+      upMetric = result.scenarios.find((s) => s.name === 'N +20 %')!;
+      const b = result.scenarios[0]!;
+      assert(upMetric, 'no scenario N +20 % in the preview');
+      // Own-price elasticity below zero: dearer nitrogen, less nitrogen bought.
+      assert(upMetric.demand.nitrogen < b.demand.nitrogen, 'nitrogen demand did not fall');
+      await page.getByRole('columnheader', { name: 'N +20 %' }).waitFor();
+      const nRow = await comparisonRow(page, /^Nutrient demand, kg$/, 'N');
+      assert(nRow[0] === mass(b.demand.nitrogen), `base N cell ${nRow[0]}, expected ${mass(b.demand.nitrogen)}`);
+      assert(nRow[1]!.startsWith(mass(upMetric.demand.nitrogen)), `N +20 % cell ${nRow[1]}, expected ${mass(upMetric.demand.nitrogen)}`);
+      assert(/−\d/.test(nRow[1]!), `the N +20 % cell shows no fall: ${nRow[1]}`);
+      const cash = await comparisonRow(page, /^Money, EUR$/, 'Cash paid');
+      assertEqual(cash[0], money(b.totals.cash, currency), 'base cash');
+      assert(cash[1]!.startsWith(money(upMetric.totals.cash, currency)), `N +20 % cash cell ${cash[1]}`);
+      assert(upMetric.totals.cash !== b.totals.cash, 'the cash did not change');
+    }));
+
+  if (scenarioAdded) {
+    await check('the treasurer adds a potash scenario named by hand and saves both', async () => {
+      await page.getByRole('button', { name: 'Another scenario' }).click();
+      const names = page.getByLabel('Scenario name');
+      await names.last().fill('-10 % potash');
+      await page.getByLabel('K2O price').last().fill('-10');
+      await page.getByRole('columnheader', { name: '-10 % potash' }).waitFor({ timeout: COMPUTE_TIMEOUT_MS });
+      const saved = nextResult(page, (u, r) => u.pathname === `/api/budgets/${budgetId}` && r.request().method() === 'PUT');
+      await page.getByRole('button', { name: 'Save changes' }).click();
+      const { result } = await saved;
+      assertEqual(result.scenarios.map((s) => s.name), ['Base', 'N +20 %', '-10 % potash'], 'saved scenarios');
+      await page.getByRole('link', { name: 'Export CSV' }).waitFor();
+    });
+    await check('the plan and the cash show the N +20 % scenario when chosen, beside the base', async () => {
+      await page.getByRole('radio', { name: 'N +20 %' }).first().click();
+      await page.getByRole('table', { name: 'Cash by month, N +20 %' }).waitFor();
+      const urea = upMetric!.mix.lines.find((l) => l.name === 'Urea')!;
+      assertEqual(await planCell(page, 'Urea', 'Bought'), tonnes(urea.tonnes), 'urea tonnes at N +20 %');
+      await page.locator('np-cash-chart [role="img"]').getByText('Cumulative, Base').first().waitFor();
+    });
+    await page.getByRole('heading', { name: 'Price scenarios side by side' }).evaluate((el) => el.scrollIntoView({ block: 'start' }));
+    await shot(page, 'treasurer-budget-scenarios-1280');
+  }
+
+  if (budgetId > 0 && baseMetric) {
+    await check('US units show lb and short tons, converted exactly', async () => {
+      const read = nextResult(page, (u) => u.pathname === `/api/budgets/${budgetId}` && u.searchParams.get('units') === 'us');
+      await page.getByRole('radio', { name: 'US (lb, short ton)' }).click();
+      const { result } = await read;
+      assertEqual(result.unitSystem, 'us', 'unit system read');
+      await page.locator('np-product-plan .ag-header-cell', { hasText: 'Bought, short tons' }).waitFor();
+      await page.getByRole('radio', { name: 'Base' }).first().click();
+      const urea = baseMetric!.mix.lines.find((l) => l.name === 'Urea')!;
+      // 1 short ton = 2000 lb × 0.45359237 kg = 907.18474 kg exactly.
+      assertEqual(await planCell(page, 'Urea', 'Bought'), tonnes((urea.tonnes * 1000) / 907.18474), 'urea short tons');
+      const demand = page.getByRole('table', { name: 'Base nutrient demand' });
+      await demand.getByText(`${mass(baseMetric!.demand.nitrogen / 0.45359237)} lb N`).waitFor();
+      await page.getByRole('table', { name: 'Cash by month, Base' }).getByRole('columnheader', { name: 'Booked, short tons' }).waitFor();
+    });
+    await page.getByRole('heading', { name: 'Product plan' }).evaluate((el) => el.scrollIntoView({ block: 'start' }));
+    await shot(page, 'treasurer-budget-us-1280');
+
+    const dir = mkdtempSync(join(tmpdir(), 'netput-budget-downloads-'));
+    try {
+      await check('the XLSX export downloads, each sheet headed by the cautions', async () => {
+        const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export XLSX' }).click()]);
+        assert(/^budget-\d+-.+\.xlsx$/.test(download.suggestedFilename()), `file name ${download.suggestedFilename()}`);
+        const file = join(dir, download.suggestedFilename());
+        await download.saveAs(file);
+        const wb = new ExcelJS.Workbook();
+        await wb.xlsx.readFile(file);
+        assertEqual(wb.worksheets.map((w) => w.name), ['Summary', 'Scenarios', 'Plan', 'Cash', 'Cautions'], 'sheets');
+        const first = String(wb.getWorksheet('Summary')!.getCell('A1').value);
+        assert(first.includes('not an application recommendation'), `Summary!A1 is "${first}"`);
+        // The side-by-side sheet: a header row naming every scenario, under the caution rows.
+        let header: unknown[] = [];
+        wb.getWorksheet('Scenarios')!.eachRow((row) => {
+          const values = row.values as unknown[];
+          if (values[2] === 'Base') header = values.slice(2);
+        });
+        assertEqual(header, ['Base', 'N +20 %', "'-10 % potash"], 'scenario columns (a name starting with "-" is escaped)');
+      });
+
+      await check('the CSV export starts with the caution rows, is in US units and escapes its cells', async () => {
+        const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export CSV' }).click()]);
+        assert(download.suggestedFilename().endsWith('.csv'), `file name ${download.suggestedFilename()}`);
+        const file = join(dir, download.suggestedFilename());
+        await download.saveAs(file);
+        const text = readFileSync(file, 'utf8').replace(/^\uFEFF/, '');
+        const rows = Papa.parse<Record<string, string>>(text, { header: true, skipEmptyLines: true }).data;
+        assertEqual(rows.slice(0, 4).map((r) => r['section']), ['caution', 'caution', 'caution', 'caution'], 'first sections');
+        assert(rows[1]!['value']!.includes('certified adviser'), 'the second caution does not name the certified adviser');
+        // RFC 4180: a caution holding commas is one quoted cell.
+        assert(text.split('\r\n')[1]!.startsWith('caution,,,,caution,"'), `first data line: ${text.split('\r\n')[1]}`);
+        // OWASP CSV injection: text that starts like a formula gets a leading apostrophe.
+        const potash = rows.filter((r) => r['scenario']?.includes('-10 % potash'));
+        assert(potash.length > 0 && potash.every((r) => r['scenario'] === "'-10 % potash"), `potash scenario cells: ${potash[0]?.['scenario']}`);
+        assert(!/(^|,)-10 % potash/m.test(text), 'a cell starts with "-" unescaped');
+        const units = rows.find((r) => r['section'] === 'budget' && r['measure'] === 'units');
+        assertEqual(units?.['value'], 'US customary (lb, short ton)', 'units row');
+        const bought = rows.find((r) => r['section'] === 'plan' && r['scenario'] === 'Base' && r['product'] === 'Urea' && r['measure'] === 'quantity bought');
+        assertEqual(bought?.['unit'], 'short ton', 'unit of urea bought');
+      });
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+
+    await check('the budget list shows the saved budget with its scenarios', async () => {
+      await page.getByRole('link', { name: 'Fertiliser budgets' }).first().click();
+      await page.waitForURL(/\/budget$/);
+      await page.getByRole('cell', { name: 'N +20 %, -10 % potash' }).waitFor();
+    });
+    // Leave the next flows in the co-op's default units.
+    await page.getByRole('radio', { name: 'Metric (kg, t)' }).click();
+  }
+  await check('the treasurer signs out', () => signOut(page));
+
+  // --- planner reads without edit affordances; a member is turned away -------------------------------
+  if (budgetId > 0) {
+    const plannerAgain = await check('the planner signs in to read the budget', () => signIn(page, base, 'planner@example.org'));
+    if (plannerAgain) {
+      await check('the planner reads the budget and may export it, but sees nothing to edit', async () => {
+        await page.goto(`${base}/budget/${budgetId}`);
+        await page.getByRole('heading', { name: 'Price scenarios side by side' }).waitFor();
+        await page.getByRole('link', { name: 'Export CSV' }).waitFor();
+        for (const name of ['Save changes', 'Delete', 'N +20 %', 'Add a booking month']) assertEqual(await page.getByRole('button', { name, exact: true }).count(), 0, `"${name}" buttons`);
+        assertEqual(await page.getByLabel('Scenario name').count(), 0, 'scenario name fields');
+        await page.getByRole('table', { name: 'Booking plan' }).waitFor();
+        await page.goto(`${base}/budget`);
+        await page.getByRole('heading', { level: 1, name: 'Fertiliser budgets' }).waitFor();
+        assertEqual(await page.getByRole('link', { name: 'New budget' }).count(), 0, '"New budget" links');
+      });
+      await shot(page, 'planner-budget-read-1280');
+      await check('the planner cannot open a new budget', async () => {
+        await page.goto(`${base}/budget/new`);
+        await page.getByRole('heading', { name: 'Your role cannot open this page' }).waitFor();
+      });
+      await check('the planner signs out', () => signOut(page));
+    }
+    const memberIn = await check('the member signs in', () => signIn(page, base, 'member@example.org'));
+    if (memberIn) {
+      await check('the member has no Budget entry and is turned away from budgets', async () => {
+        const titles = await mainNav(page).locator('.mat-mdc-list-item-title').allTextContents();
+        assert(!titles.map((t) => t.trim()).includes('Budget'), 'the member sees Budget');
+        await page.goto(`${base}/budget/${budgetId}`);
+        await page.getByRole('heading', { name: 'Your role cannot open this page' }).waitFor();
+      });
+      await check('the member signs out', () => signOut(page));
+    }
+  }
+}
