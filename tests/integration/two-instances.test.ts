@@ -15,6 +15,7 @@ let a: ServerProcess;
 let b: ServerProcess;
 let smtp: FakeSmtp;
 let dbUrl: string;
+let firstRunId: number;
 
 describe.runIf(serverUrl)('two instances on one PostgreSQL database', () => {
   beforeAll(async () => {
@@ -89,7 +90,33 @@ describe.runIf(serverUrl)('two instances on one PostgreSQL database', () => {
     await c.end();
     expect(rows.map((r) => r.ref_id)).toEqual(runIds);
     expect(rows.every((r) => r.attempts === 1 && r.status === 'done')).toBe(true);
+    firstRunId = runIds[0];
   }, 240_000);
+
+  it('an outlook published on one instance reaches every subscribed member exactly once', async () => {
+    const s = new HttpSession(b.url);
+    await s.request('POST', '/api/auth/login', { email: 'planner@example.org', password: 'netput-demo' });
+    const draft = await s.request('POST', '/api/outlooks', { season: '2026/27', modelRunId: firstRunId });
+    expect(draft.status).toBe(201);
+    expect((await s.request('POST', `/api/outlooks/${draft.body.id}/projection`)).status).toBe(202);
+    const deadline = Date.now() + 180_000;
+    while (Date.now() < deadline && (await s.at(a.url).request('GET', `/api/outlooks/${draft.body.id}/projection`)).body.status !== 'succeeded') {
+      await new Promise((r) => setTimeout(r, 500));
+    }
+    smtp.clear();
+    const published = await s.request('POST', `/api/outlooks/${draft.body.id}/publish`, { commentary: 'Two-instance outlook' });
+    expect(published.status).toBe(201);
+    const queued = published.body.mails.queued as number;
+    expect(queued).toBeGreaterThan(0);
+    await smtp.waitFor(queued, 120_000);
+    // Give both dispatchers time to (wrongly) send anything twice before counting.
+    await new Promise((r) => setTimeout(r, 3000));
+    const recipients = smtp.messages().flatMap((m) => m.to);
+    expect(recipients).toHaveLength(queued);
+    expect(new Set(recipients).size).toBe(queued);
+    const log = await s.request('GET', `/api/outlooks/${draft.body.id}/deliveries`);
+    expect(log.body.counts.sent).toBe(queued);
+  }, 300_000);
 
   it('sign-in attempts are counted across both instances', async () => {
     const statuses: number[] = [];
