@@ -15,7 +15,7 @@ import { assertEqual, check, counts, freePort, type Harness, serverLog, SHOTS, s
 import type { ChildProcess } from 'node:child_process';
 
 const CHROMIUM = process.env['CHROMIUM_PATH'] ?? '/usr/bin/chromium';
-const STEP_TIMEOUT_MS = 15_000;
+const STEP_TIMEOUT_MS = 30_000;
 const onlyIndex = process.argv.indexOf('--only');
 const only = onlyIndex > 0 ? process.argv[onlyIndex + 1] : undefined;
 

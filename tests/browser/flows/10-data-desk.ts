@@ -167,6 +167,8 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     await page.getByRole('status').getByText('A price must be more than 0').waitFor();
     assertEqual(await editor.count(), 1, 'the editor stays open on a refused value');
     await editor.press('Escape');
+    // The grid puts the cell back asynchronously after the editor closes.
+    for (let i = 0; i < 50 && (await priceCell.innerText()).trim() !== '228.40'; i++) await page.waitForTimeout(100);
     assertEqual((await priceCell.innerText()).trim(), '228.40', 'price after Escape');
   });
 
