@@ -1,5 +1,6 @@
 import { Piscina } from 'piscina';
 import { AppError } from '../core/app-error.js';
+import { workerBundle } from '../core/worker-bundle.js';
 import type { Lookups, ValidationOptions, ValidationOutcome } from './import-types.js';
 import type { ImportLimits } from './import-limits.js';
 import { unpackedView, type WriteSet } from './packed-rows.js';
@@ -15,14 +16,15 @@ let pool: Piscina | null = null;
 
 function getPool(): Piscina {
   pool ??= new Piscina({
-    filename: new URL('./validation-worker-entry.mjs', import.meta.url).href,
+    filename: workerBundle(new URL('./validation-task.ts', import.meta.url)),
     minThreads: 0,
     maxThreads: THREADS,
     idleTimeout: 60_000,
     // A small young generation keeps the worker's resident memory down; the rows it keeps are packed.
     resourceLimits: { maxOldGenerationSizeMb: WORKER_HEAP_MB, maxYoungGenerationSizeMb: 16 },
-    // Only tsx: the parent's own flags (--expose-gc, --inspect, vitest's) may not be valid in a worker.
-    execArgv: ['--import', 'tsx'],
+    // Plain JavaScript (see workerBundle): the parent's own flags (tsx, --expose-gc, --inspect,
+    // vitest's) may not be valid in a worker.
+    execArgv: [],
   });
   return pool;
 }

@@ -1,26 +1,25 @@
 import os from 'node:os';
 import { MessageChannel } from 'node:worker_threads';
 import { Piscina } from 'piscina';
+import { workerBundle } from '../core/worker-bundle.js';
 import type { FitRunResult, FitTask } from './fit-task.js';
 import type { ProjectionResult } from '../estimation/index.js';
 import type { ProjectionTask } from '../outlook/projection-task.js';
 
-const PROJECTION_TASK = new URL('../outlook/projection-task.ts', import.meta.url).href;
-
 /**
- * Worker threads for CPU-heavy work, so the request thread stays responsive. Workers load the
- * TypeScript sources through tsx, as the main thread does.
+ * Worker threads for CPU-heavy work, so the request thread stays responsive. Workers run the
+ * task modules compiled to plain JavaScript (workerBundle), without tsx.
  */
 export class WorkerPool {
   private readonly pool: Piscina;
 
   constructor(size = Math.max(1, Math.min(2, os.availableParallelism() - 0))) {
     this.pool = new Piscina({
-      filename: new URL('./fit-task.ts', import.meta.url).href,
+      filename: workerBundle(new URL('./fit-task.ts', import.meta.url)),
       minThreads: 0,
       maxThreads: size,
       idleTimeout: 30_000,
-      execArgv: [...process.execArgv.filter((a) => !a.startsWith('--inspect')), '--import', 'tsx'],
+      execArgv: [],
     });
   }
 
@@ -35,7 +34,7 @@ export class WorkerPool {
 
   /** A season projection (server/outlook/projection-task.ts) on the same threads. */
   runProjection(task: ProjectionTask, signal?: AbortSignal): Promise<ProjectionResult> {
-    return this.pool.run(task, { filename: PROJECTION_TASK, signal }) as Promise<ProjectionResult>;
+    return this.pool.run(task, { filename: workerBundle(new URL('../outlook/projection-task.ts', import.meta.url)), signal }) as Promise<ProjectionResult>;
   }
 
   get threads() {
