@@ -7,6 +7,7 @@ import { pinoHttp } from 'pino-http';
 import { pino } from 'pino';
 import type { AppContext } from './context.js';
 import { errorHandler, notFoundHandler } from './core/error-handler.js';
+import { ReadCache } from './core/read-cache.js';
 import { mountRoutes, type MountedRoute, type RouteDef } from './core/routes.js';
 import { csrfProtection } from './auth/csrf.js';
 import { loadSession } from './auth/session.js';
@@ -31,6 +32,8 @@ import { VERSION } from './version.js';
 export interface NetputApp extends express.Express {
   /** Every API route with its access rule, as mounted. */
   routeTable: MountedRoute[];
+  /** In-memory answers of the cacheable read routes (PGlite mode only). */
+  readCache: ReadCache | null;
 }
 
 /** Builds the Express app around a context; only main.ts listens. */
@@ -69,9 +72,12 @@ export function createApp(ctx: AppContext): NetputApp {
   const api = Router();
   api.use(express.json({ limit: '1mb' }));
   api.use(cookieParser());
-  api.use(loadSession(ctx.db));
+  api.use(loadSession(ctx.db, ctx.changes ?? null));
   api.use(csrfProtection(ctx.config.secureCookies));
 
+  const readCache = ctx.changes ? new ReadCache(ctx.changes) : null;
+  app.readCache = readCache;
+  const cacheMiddleware = readCache?.middleware();
   const mount = (prefix: string, defs: RouteDef[]) => {
     const router = Router();
     mountRoutes(
@@ -79,6 +85,7 @@ export function createApp(ctx: AppContext): NetputApp {
       `/api${prefix}`,
       defs.filter((d) => !d.devOnly || ctx.config.dev),
       table,
+      cacheMiddleware,
     );
     api.use(prefix, router);
   };

@@ -1,4 +1,5 @@
 import type { Config } from './config.js';
+import type { ChangeTracker } from './db/change-tracker.js';
 import type { Db } from './db/client.js';
 import type { Mailer } from './mail/mailer.js';
 import type { FakeSmtp } from './mail/fake-smtp.js';
@@ -8,6 +9,8 @@ import type { JobRunner } from './jobs/job-runner.js';
 export interface AppContext {
   db: Db;
   dbKind: 'pglite' | 'postgres';
+  /** This process's view of database writes (PGlite), for the in-memory caches; absent: no caching. */
+  changes?: ChangeTracker | null;
   config: Config;
   mailer: Mailer;
   /** Present when the server runs its own fake SMTP server (development and tests). */

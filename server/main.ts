@@ -24,7 +24,7 @@ async function main() {
   }
   const mailer = createMailer(smtpUrl, config.mailFrom);
   const background = startBackgroundWork(database.db, { mailer });
-  const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp, jobs: background.runner });
+  const app = createApp({ db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp, jobs: background.runner });
 
   const server = app.listen(config.port, () => {
     const address = server.address();

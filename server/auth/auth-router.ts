@@ -67,7 +67,7 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
         res.status(204).end();
       },
     },
-    { method: 'get', path: '/me', access: 'signed-in', handler: async (req, res) => res.json(await meOf(ctx.db, req.user!.id)) },
+    { method: 'get', path: '/me', access: 'signed-in', cache: true, handler: async (req, res) => res.json(await meOf(ctx.db, req.user!.id)) },
     {
       method: 'post',
       path: '/password-reset',

@@ -41,6 +41,7 @@ export function crudRoutes(ctx: AppContext, spec: CrudSpec): RouteDef[] {
       method: 'get',
       path: '/',
       access: spec.read,
+      cache: true,
       handler: async (_req, res) => res.json(await ctx.db.select(columns).from(table).orderBy(asc(spec.orderBy))),
     },
     {

@@ -11,6 +11,12 @@ export interface RouteDef {
   access: Access;
   /** Only mounted in development mode. */
   devOnly?: boolean;
+  /**
+   * GET only: the answer may be kept in memory until a table it was read from is written
+   * (core/read-cache.ts). Only for answers that depend on nothing but the database, the user and
+   * the URL (no clock, no in-memory job state, no headers of their own).
+   */
+  cache?: boolean;
   handler: (req: Request, res: Response, next: NextFunction) => unknown;
 }
 
@@ -30,9 +36,12 @@ export function requireAccess(access: Access): RequestHandler {
 }
 
 /** Mounts each definition on the router behind its access check and records it in `table`. */
-export function mountRoutes(router: Router, prefix: string, defs: RouteDef[], table: MountedRoute[]): void {
+export function mountRoutes(router: Router, prefix: string, defs: RouteDef[], table: MountedRoute[], cache?: RequestHandler): void {
   for (const def of defs) {
-    router[def.method](def.path, requireAccess(def.access), def.handler as RequestHandler);
-    table.push({ method: def.method, path: def.path, access: def.access, devOnly: def.devOnly, fullPath: prefix + def.path });
+    if (def.cache && def.method !== 'get') throw new Error(`${def.method.toUpperCase()} ${prefix}${def.path}: only GET answers can be cached`);
+    const handlers: RequestHandler[] = [requireAccess(def.access)];
+    if (def.cache && cache) handlers.push(cache);
+    router[def.method](def.path, ...handlers, def.handler as RequestHandler);
+    table.push({ method: def.method, path: def.path, access: def.access, devOnly: def.devOnly, cache: def.cache, fullPath: prefix + def.path });
   }
 }

@@ -9,6 +9,7 @@ import { drizzle as drizzlePg } from 'drizzle-orm/node-postgres';
 import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
 import pg from 'pg';
 import * as schema from './schema/index.js';
+import { ChangeTracker, classify } from './change-tracker.js';
 
 export type Schema = typeof schema;
 /** The one database type the rest of the server sees: PGlite or a PostgreSQL server behind it. */
@@ -17,6 +18,8 @@ export type Db = PgDatabase<PgQueryResultHKT, Schema>;
 export interface Database {
   db: Db;
   kind: 'pglite' | 'postgres';
+  /** Writes seen by this process (PGlite only: a PostgreSQL server has other writers). */
+  changes: ChangeTracker | null;
   close(): Promise<void>;
 }
 
@@ -35,7 +38,7 @@ export interface OpenOptions {
  * about 290 MB of resident memory; 32 MB keeps a co-op's working set (a few hundred thousand
  * price and record rows) cached at about 130 MB less. NETPUT_PGLITE_SHARED_BUFFERS overrides it.
  */
-const PGLITE_OPTIONS = { postgresqlconf: process.env.NETPUT_PGLITE_CONF ?? `shared_buffers=${process.env.NETPUT_PGLITE_SHARED_BUFFERS ?? '32MB'}` };
+const PGLITE_OPTIONS = { postgresqlconf: `shared_buffers=${process.env.NETPUT_PGLITE_SHARED_BUFFERS ?? '32MB'}` };
 
 /** Opens the database and applies the committed migrations (idempotent). */
 export async function openDatabase(options: OpenOptions): Promise<Database> {
@@ -45,7 +48,7 @@ export async function openDatabase(options: OpenOptions): Promise<Database> {
     pool.on('error', () => {});
     const db = drizzlePg(pool, { schema }) as unknown as Db;
     await migratePg(drizzlePg(pool), { migrationsFolder: MIGRATIONS_DIR });
-    return { db, kind: 'postgres', close: () => pool.end() };
+    return { db, kind: 'postgres', changes: null, close: () => pool.end() };
   }
   let client: PGlite;
   if (!options.dataDir || options.dataDir.startsWith('memory://')) {
@@ -56,7 +59,56 @@ export async function openDatabase(options: OpenOptions): Promise<Database> {
     client = new PGlite(options.dataDir, PGLITE_OPTIONS);
   }
   await client.waitReady;
+  const changes = new ChangeTracker();
+  watchWrites(client, changes);
   const db = drizzlePglite(client, { schema }) as unknown as Db;
   await migratePglite(drizzlePglite(client), { migrationsFolder: MIGRATIONS_DIR });
-  return { db, kind: 'pglite', close: () => client.close() };
+  return { db, kind: 'pglite', changes, close: () => client.close() };
+}
+
+type Queryable = Pick<PGlite, 'query' | 'exec'>;
+
+/**
+ * Feeds every statement run through the PGlite client (and through its transactions) to the
+ * change tracker. A write is stamped when it is sent and again when it has finished; writes made
+ * in a transaction are stamped once more when the transaction ends, when they become visible.
+ */
+function watchWrites(client: PGlite, changes: ChangeTracker): void {
+  const wrap = (target: Queryable, written: Set<string> | null) => {
+    const query = target.query.bind(target);
+    const exec = target.exec.bind(target);
+    const note = (sql: string) => {
+      changes.observe(sql);
+      if (written) written.add(sql);
+    };
+    target.query = (async (sql: string, params?: unknown[], options?: unknown) => {
+      note(sql);
+      try {
+        return await query(sql, params as never, options as never);
+      } finally {
+        if (!written) changes.observe(sql);
+      }
+    }) as PGlite['query'];
+    target.exec = (async (sql: string, options?: unknown) => {
+      note(sql);
+      try {
+        return await exec(sql, options as never);
+      } finally {
+        if (!written) changes.observe(sql);
+      }
+    }) as PGlite['exec'];
+  };
+  wrap(client, null);
+  const transaction = client.transaction.bind(client);
+  client.transaction = (async (fn: (tx: Parameters<Parameters<PGlite['transaction']>[0]>[0]) => Promise<unknown>) => {
+    const statements = new Set<string>();
+    try {
+      return await transaction(async (tx) => {
+        wrap(tx, statements);
+        return fn(tx);
+      });
+    } finally {
+      for (const sql of statements) if (classify(sql).write !== 'none') changes.observe(sql);
+    }
+  }) as PGlite['transaction'];
 }

@@ -8,11 +8,12 @@ export function farmsRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/farms',
       access: 'signed-in',
+      cache: true,
       handler: async (req, res) => {
         const user = req.user!;
         res.json(await listFarms(ctx.db, user.role === 'member' ? user.farmId : undefined));
       },
     },
-    { method: 'get', path: '/my-farm', access: ['member'], handler: async (req, res) => res.json(await myFarm(ctx.db, req.user!.farmId)) },
+    { method: 'get', path: '/my-farm', access: ['member'], cache: true, handler: async (req, res) => res.json(await myFarm(ctx.db, req.user!.farmId)) },
   ];
 }

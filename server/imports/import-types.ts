@@ -134,6 +134,8 @@ export interface ImportResult extends Omit<ValidationOutcome, 'writes'> {
   /** Why the last commit failed (nothing was written). */
   failure: string | null;
   commitStartedAt: string | null;
+  /** The server process that started the commit (imports-service's PROCESS_ID). */
+  commitProcess?: string;
 }
 
 export interface ImportView extends ImportResult {

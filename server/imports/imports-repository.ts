@@ -12,6 +12,8 @@ export type ImportMeta = Omit<ImportRow, 'content'> & { createdByName: string | 
 
 /** Rows per INSERT statement during a commit; progress moves once per chunk. */
 export const WRITE_CHUNK = 2000;
+/** A pause after each chunk of a commit, inside its transaction (crash tests only: IMPORT_CHUNK_DELAY_MS). */
+const CHUNK_DELAY_MS = Number(process.env.IMPORT_CHUNK_DELAY_MS ?? 0) || 0;
 
 export async function loadLookups(db: Db): Promise<Lookups> {
   const [itemRows, seasonRows, farmRows, dpRows, settings] = await Promise.all([
@@ -307,6 +309,7 @@ export async function writeRows(
       await attempt(existing, () => upsert(existing, 'update'));
       done += chunk.length;
       onProgress(done);
+      if (CHUNK_DELAY_MS) await new Promise((r) => setTimeout(r, CHUNK_DELAY_MS));
     }
   };
   const onConflict = (conflict: 'update' | 'nothing', set: ReturnType<typeof sql>) => (conflict === 'update' ? sql`do update set ${set}` : sql`do nothing`);

@@ -3,7 +3,9 @@
  * with its outcome, and committed in the background in ONE transaction (all rows or none), written in
  * chunks with the progress kept in memory; the final status goes to the database.
  */
-import { createHash } from 'node:crypto';
+import { createHash, randomUUID } from 'node:crypto';
+import { sql } from 'drizzle-orm';
+import type pg from 'pg';
 import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
 import type { Db } from '../db/client.js';
@@ -39,8 +41,70 @@ import {
 import { validateInWorker, type CheckedFile } from './validation-pool.js';
 import type { WriteSet } from './packed-rows.js';
 
-/** A commit left `committing` this long with no job in this process is reported as failed (the server stopped). */
-const STALE_COMMIT_MS = 15 * 60_000;
+/** This server process; a commit started by another process on PGlite (one process only) died with it. */
+const PROCESS_ID = randomUUID();
+
+/** First key of the advisory lock a commit holds on a PostgreSQL server (the second is the import id). */
+const COMMIT_LOCK = 0x4e50_494d; // "NPIM"
+
+interface CommitLock {
+  release(): Promise<void>;
+}
+
+/**
+ * PostgreSQL server only: takes the import's advisory lock on a connection of its own, held from
+ * the claim until the commit has ended. A lock dies with its connection, so when the server
+ * holding it stops, the lock is free at once. Null when another instance holds it.
+ */
+async function takeCommitLock(ctx: AppContext, id: number): Promise<CommitLock | null> {
+  const pool = (ctx.db as unknown as { $client: pg.Pool }).$client;
+  const client = await pool.connect();
+  try {
+    const { rows } = await client.query<{ ok: boolean }>('select pg_try_advisory_lock($1, $2) as ok', [COMMIT_LOCK, id]);
+    if (!rows[0]!.ok) {
+      client.release();
+      return null;
+    }
+  } catch (err) {
+    client.release(err as Error);
+    throw err;
+  }
+  return {
+    async release() {
+      try {
+        await client.query('select pg_advisory_unlock($1, $2)', [COMMIT_LOCK, id]);
+        client.release();
+      } catch (err) {
+        // A broken connection is dropped, and its lock with it.
+        client.release(err as Error);
+      }
+    },
+  };
+}
+
+/**
+ * True when a `committing` import is not being committed by anyone: the server that started it
+ * stopped, and the database rolled its transaction back. On PGlite only one process opens the
+ * data, so a commit started by an earlier process is dead. On a PostgreSQL server the committing
+ * instance holds the import's advisory lock (takeCommitLock) from before its claim to after its
+ * end; when the lock is free, nobody is committing it.
+ */
+async function commitIsDead(ctx: AppContext, jobs: ImportJobs, meta: ImportMeta): Promise<boolean> {
+  if (meta.status !== 'committing' || jobs.get(meta.id)) return false;
+  const result = meta.result as ImportResult;
+  if (ctx.dbKind === 'pglite') return result.commitProcess !== PROCESS_ID;
+  return ctx.db.transaction(async (tx) => {
+    const r = (await tx.execute(sql`select pg_try_advisory_xact_lock(${COMMIT_LOCK}, ${meta.id}) as free`)) as unknown as { rows: { free: boolean }[] };
+    return r.rows[0]!.free;
+  });
+}
+
+/** Records a dead commit as failed (nothing was written) and answers the import as it now is. */
+async function settleDeadCommit(ctx: AppContext, meta: ImportMeta): Promise<ImportMeta> {
+  const failed: ImportResult = { ...(meta.result as ImportResult), failure: 'The server stopped during the commit; nothing was written. Commit again.' };
+  await updateImport(ctx.db, meta.id, { status: 'failed', result: failed });
+  return { ...meta, status: 'failed', result: failed };
+}
 
 const TABLE_LABEL: Record<TableName, string> = { prices: 'prices', records: 'farm records', factors: 'farm factors (land)' };
 
@@ -245,17 +309,23 @@ export async function startCommit(
   userId: number,
   log: (err: unknown) => void,
 ): Promise<ImportView> {
-  const meta = await metaOrThrow(ctx.db, id);
+  let meta = await metaOrThrow(ctx.db, id);
+  if (await commitIsDead(ctx, jobs, meta)) meta = await settleDeadCommit(ctx, meta);
   const result = meta.result as ImportResult;
   if (jobs.get(id) || meta.status === 'committing') throw AppError.conflict('This import is already being committed');
   if (meta.status === 'committed') throw AppError.conflict(`This import was committed on ${meta.committedAt?.toISOString().slice(0, 10)}; upload the file again to import it anew`);
   if (result.errorCount > 0) {
     throw AppError.conflict(`The file has ${result.errorCount.toLocaleString('en-GB')} error(s); fix them (or the column mapping) and validate again before committing`);
   }
-  const started: ImportResult = { ...result, onExisting, failure: null, commitStartedAt: new Date().toISOString() };
-  if (!(await claimForCommit(ctx.db, id, started))) throw AppError.conflict('This import is already being committed');
+  const started: ImportResult = { ...result, onExisting, failure: null, commitStartedAt: new Date().toISOString(), commitProcess: PROCESS_ID };
+  const lock = ctx.dbKind === 'postgres' ? await takeCommitLock(ctx, id) : null;
+  if (ctx.dbKind === 'postgres' && !lock) throw AppError.conflict('This import is already being committed');
+  if (!(await claimForCommit(ctx.db, id, started))) {
+    await lock?.release();
+    throw AppError.conflict('This import is already being committed');
+  }
   const view = viewOf({ ...meta, status: 'committing' }, started, { done: 0, total: sum(result.toWrite) });
-  jobs.start(id, view, (v) => runCommit(ctx, jobs, meta, v, onExisting, userId, log));
+  jobs.start(id, view, (v) => runCommit(ctx, jobs, meta, v, onExisting, userId, log).finally(() => lock?.release()));
   return view;
 }
 
@@ -315,19 +385,15 @@ async function runCommit(ctx: AppContext, jobs: ImportJobs, meta: ImportMeta, vi
 export async function getImport(ctx: AppContext, jobs: ImportJobs, id: number): Promise<ImportView> {
   const running = jobs.get(id);
   if (running) return { ...running.view, progress: { ...running.view.progress } };
-  const meta = await metaOrThrow(ctx.db, id);
-  const result = meta.result as ImportResult;
-  if (meta.status === 'committing' && Date.now() - Date.parse(result.commitStartedAt ?? meta.createdAt.toISOString()) > STALE_COMMIT_MS) {
-    // The transaction of a server that stopped was rolled back by the database.
-    const failed: ImportResult = { ...result, failure: 'The server stopped during the commit; nothing was written. Commit again.' };
-    await updateImport(ctx.db, id, { status: 'failed', result: failed });
-    return viewOf({ ...meta, status: 'failed' }, failed);
-  }
-  return viewOf(meta, result);
+  let meta = await metaOrThrow(ctx.db, id);
+  if (await commitIsDead(ctx, jobs, meta)) meta = await settleDeadCommit(ctx, meta);
+  return viewOf(meta, meta.result as ImportResult);
 }
 
 export async function listImports(ctx: AppContext, jobs: ImportJobs, limit: number): Promise<ImportSummary[]> {
   const rows = await listImportMeta(ctx.db, limit);
+  const dead = new Set<number>();
+  for (const m of rows) if (await commitIsDead(ctx, jobs, m)) dead.add((await settleDeadCommit(ctx, m)).id);
   return rows.map((m) => {
     const r = m.result as ImportResult;
     const live = jobs.get(m.id)?.view;
@@ -337,7 +403,7 @@ export async function listImports(ctx: AppContext, jobs: ImportJobs, limit: numb
       fileName: m.fileName,
       fileSize: m.fileSize,
       format: m.format,
-      status: live?.status ?? m.status,
+      status: live?.status ?? (dead.has(m.id) ? 'failed' : m.status),
       createdAt: m.createdAt.toISOString(),
       createdBy: m.createdByName,
       committedAt: m.committedAt?.toISOString() ?? null,

@@ -10,6 +10,9 @@ import { ImportFileError } from './import-file-error.js';
 import { IMPORT_LIMITS, type ImportLimits } from './import-limits.js';
 import { validateImport } from './import-validator.js';
 import { packWrites, transferList, type PackedWrites } from './packed-rows.js';
+import { lowerWorkerPriority } from '../jobs/worker-priority.js';
+
+lowerWorkerPriority();
 
 export interface ValidationTask {
   bytes: Uint8Array;

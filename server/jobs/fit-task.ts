@@ -10,6 +10,9 @@ import {
   type FitResult,
   type NetputDataset,
 } from '../estimation/index.js';
+import { lowerWorkerPriority } from './worker-priority.js';
+
+lowerWorkerPriority();
 
 /** What the fit worker is given: plain JSON, so it crosses the thread boundary unchanged. */
 export interface FitTask {

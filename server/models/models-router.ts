@@ -20,7 +20,7 @@ function pairs(s: string | undefined): Record<string, number> | undefined {
 
 export function modelsRoutes(ctx: AppContext): RouteDef[] {
   return [
-    { method: 'get', path: '/', access: READ, handler: async (_req, res) => res.json(await listModels(ctx.db)) },
+    { method: 'get', path: '/', access: READ, cache: true, handler: async (_req, res) => res.json(await listModels(ctx.db)) },
     {
       method: 'post',
       path: '/',

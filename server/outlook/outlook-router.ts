@@ -46,7 +46,7 @@ export const DELIVERY_LOG = ['planner', 'admin'] as const;
 export function outlookRoutes(ctx: AppContext): RouteDef[] {
   const id = (req: { params: unknown }) => parse(idParamSchema, req.params, 'params').id;
   return [
-    { method: 'get', path: '/', access: OUTLOOK_READ, handler: async (_req, res) => res.json(await listOutlooks(ctx.db)) },
+    { method: 'get', path: '/', access: OUTLOOK_READ, cache: true, handler: async (_req, res) => res.json(await listOutlooks(ctx.db)) },
     {
       method: 'post',
       path: '/',

@@ -10,11 +10,12 @@ import { versionParamSchema } from './outlook-schemas.js';
  */
 export function portalRoutes(ctx: AppContext): RouteDef[] {
   return [
-    { method: 'get', path: '/outlook', access: ['member'], handler: async (req, res) => res.json(await memberVersion(ctx.db, req.user!.farmId)) },
+    { method: 'get', path: '/outlook', access: ['member'], cache: true, handler: async (req, res) => res.json(await memberVersion(ctx.db, req.user!.farmId)) },
     {
       method: 'get',
       path: '/outlook/versions',
       access: ['member'],
+      cache: true,
       handler: async (_req, res) =>
         res.json((await listVersions(ctx.db)).map((v) => ({ id: v.id, outlookId: v.outlookId, version: v.version, season: v.season, title: v.title, publishedAt: v.publishedAt }))),
     },
@@ -22,6 +23,7 @@ export function portalRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/outlook/versions/:versionId',
       access: ['member'],
+      cache: true,
       handler: async (req, res) => res.json(await memberVersion(ctx.db, req.user!.farmId, parse(versionParamSchema, req.params, 'params').versionId)),
     },
   ];

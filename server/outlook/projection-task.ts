@@ -1,4 +1,7 @@
 import { projectSeason, type FitResult, type ProjectionOptions, type ProjectionResult } from '../estimation/index.js';
+import { lowerWorkerPriority } from '../jobs/worker-priority.js';
+
+lowerWorkerPriority();
 
 /** What the projection worker is given: plain JSON, so it crosses the thread boundary unchanged. */
 export interface ProjectionTask {

@@ -29,6 +29,7 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/',
       access: READ,
+      cache: true,
       handler: async (req, res) => {
         const q = parse(listQuery, req.query, 'query');
         res.json(await listPrices(ctx.db, { itemIds: q.items, seasonIds: q.seasons, deliveryPointIds: q.deliveryPoints }));
@@ -48,6 +49,7 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/series',
       access: READ,
+      cache: true,
       handler: async (req, res) => {
         const q = parse(seriesQuery, req.query, 'query');
         res.json(await priceSeries(ctx.db, q.items ?? [], q.deflator));
@@ -118,7 +120,7 @@ export function priceIndexRoutes(ctx: AppContext): RouteDef[] {
     }));
   };
   return [
-    { method: 'get', path: '/', access: READ, handler: async (_req, res) => res.json(await load(ctx.db)) },
+    { method: 'get', path: '/', access: READ, cache: true, handler: async (_req, res) => res.json(await load(ctx.db)) },
     {
       method: 'post',
       path: '/',

@@ -71,6 +71,7 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/',
       access: 'signed-in',
+      cache: true,
       handler: async (req, res) => {
         const q = parse(listQuery, req.query, 'query');
         res.json(await listRecords(ctx.db, farmScope(req.user!, q.farms), q.seasons));
@@ -91,6 +92,7 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/land',
       access: 'signed-in',
+      cache: true,
       handler: async (req, res) => {
         const q = parse(listQuery, req.query, 'query');
         res.json(await listLand(ctx.db, farmScope(req.user!, q.farms)));

@@ -42,6 +42,6 @@ export async function coopSummary(db: Db): Promise<CoopSummary> {
 }
 
 export function summaryRoutes(ctx: AppContext): RouteDef[] {
-  return [{ method: 'get', path: '/', access: ['admin', 'planner', 'treasurer'], handler: async (_req, res) => res.json(await coopSummary(ctx.db)) }];
+  return [{ method: 'get', path: '/', access: ['admin', 'planner', 'treasurer'], cache: true, handler: async (_req, res) => res.json(await coopSummary(ctx.db)) }];
 }
 

@@ -27,7 +27,7 @@ export async function startTestApp(options: { demo?: boolean; dev?: boolean; job
   };
   const mailer = createMailer(smtp.url, config.mailFrom);
   const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50, mailer }) : undefined;
-  const app = createApp({ db: database.db, dbKind: database.kind, config, mailer, fakeSmtp: smtp, jobs: background?.runner });
+  const app = createApp({ db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp: smtp, jobs: background?.runner });
   return {
     app,
     database,

@@ -27,6 +27,9 @@ export async function startServerProcess(env: Record<string, string>, timeoutMs 
   const child = spawn('node_modules/.bin/tsx', ['server/main.ts'], {
     env: { ...process.env, LOG_LEVEL: 'warn', PORT: String(port), APP_DIR: '/nonexistent', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
+    // tsx runs the server in a child node process: a process group of their own lets a signal
+    // (SIGKILL above all) reach the server itself and not only the tsx wrapper.
+    detached: true,
   });
   child.stdout!.on('data', (d) => (out += d));
   child.stderr!.on('data', (d) => (out += d));
@@ -41,7 +44,7 @@ export async function startServerProcess(env: Record<string, string>, timeoutMs 
       /* not up yet */
     }
     if (Date.now() > deadline) {
-      child.kill('SIGKILL');
+      process.kill(-child.pid!, 'SIGKILL');
       throw new Error(`server did not start in time: ${out}`);
     }
     await new Promise((r) => setTimeout(r, 200));
@@ -51,12 +54,24 @@ export async function startServerProcess(env: Record<string, string>, timeoutMs 
     port,
     child,
     output: () => out,
-    stop: (signal = 'SIGTERM') =>
-      new Promise((resolve) => {
-        if (child.exitCode !== null) return resolve();
-        child.once('exit', () => resolve());
-        child.kill(signal);
-      }),
+    stop: async (signal = 'SIGTERM') => {
+      const pgid = child.pid!;
+      const alive = () => {
+        try {
+          process.kill(-pgid, 0);
+          return true;
+        } catch {
+          return false;
+        }
+      };
+      if (!alive()) return;
+      process.kill(-pgid, signal);
+      const end = Date.now() + 30_000;
+      while (alive()) {
+        if (Date.now() > end) process.kill(-pgid, 'SIGKILL');
+        await new Promise((r) => setTimeout(r, 50));
+      }
+    },
   };
 }
 
@@ -75,6 +90,22 @@ export class HttpSession {
 
   cookieHeader() {
     return [...this.cookies].map(([k, v]) => `${k}=${v}`).join('; ');
+  }
+
+  /** A multipart upload: text fields and one file in the form field "file". */
+  async upload(path: string, fields: Record<string, string>, file: { name: string; bytes: Uint8Array; type?: string }) {
+    if (!this.cookies.has('XSRF-TOKEN')) this.remember(await fetch(`${this.base}/api/auth/csrf`, { headers: { cookie: this.cookieHeader() } }));
+    const form = new FormData();
+    for (const [k, v] of Object.entries(fields)) form.append(k, v);
+    form.append('file', new Blob([file.bytes as Uint8Array<ArrayBuffer>], { type: file.type ?? 'text/csv' }), file.name);
+    const res = await fetch(`${this.base}${path}`, {
+      method: 'POST',
+      headers: { cookie: this.cookieHeader(), 'x-xsrf-token': decodeURIComponent(this.cookies.get('XSRF-TOKEN') ?? '') },
+      body: form,
+    });
+    this.remember(res);
+    const text = await res.text();
+    return { status: res.status, body: (text ? JSON.parse(text) : null) as any }; // eslint-disable-line @typescript-eslint/no-explicit-any
   }
 
   /** Shares this session's cookies with another instance's base URL. */
