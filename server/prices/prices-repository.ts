@@ -5,6 +5,8 @@ import { deliveryPoints, items, priceIndexes, priceIndexValues, priceObservation
 import { AppError } from '../core/app-error.js';
 
 export interface PriceFilter {
+  /** Only these rows (an empty list matches none). */
+  ids?: number[];
   itemIds?: number[];
   seasonIds?: number[];
   deliveryPointIds?: number[];
@@ -28,6 +30,7 @@ const rowColumns = {
 
 function where(f: PriceFilter): SQL | undefined {
   const parts: SQL[] = [];
+  if (f.ids) parts.push(f.ids.length ? inArray(priceObservations.id, f.ids) : sql`false`);
   if (f.itemIds?.length) parts.push(inArray(priceObservations.itemId, f.itemIds));
   if (f.seasonIds?.length) parts.push(inArray(priceObservations.seasonId, f.seasonIds));
   if (f.deliveryPointIds?.length) parts.push(inArray(priceObservations.deliveryPointId, f.deliveryPointIds));

@@ -1,4 +1,4 @@
-import { eq } from 'drizzle-orm';
+import { eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { priceIndexSchema, priceSchema } from '../../shared/data-schemas.js';
 import { idParamSchema } from '../../shared/schemas.js';
@@ -22,6 +22,13 @@ const idList = z
 const listQuery = z.object({ items: idList, seasons: idList, deliveryPoints: idList });
 const seriesQuery = z.object({ items: idList, deflator: z.coerce.number().int().positive().optional() });
 const blockSchema = z.object({ rows: z.array(priceSchema).min(1, 'Send at least one row').max(5000, 'Paste at most 5,000 rows at once') });
+const deleteBlockSchema = z.object({
+  ids: z
+    .array(z.number().int().positive())
+    .min(1, 'Choose at least one price')
+    .max(5000, 'Delete at most 5,000 prices at once')
+    .refine((ids) => new Set(ids).size === ids.length, 'A price is listed twice'),
+});
 
 export function pricesRoutes(ctx: AppContext): RouteDef[] {
   return [
@@ -88,6 +95,27 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       },
     },
     {
+      // The rows chosen in the grid: all are deleted or none (an id that is gone refuses the lot).
+      method: 'post',
+      path: '/deletions',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { ids } = parse(deleteBlockSchema, req.body, 'body');
+        await ctx.db.transaction(async (tx) => {
+          const before = await listPrices(tx, { ids });
+          const found = new Set(before.map((r) => r.id));
+          const missing = ids.filter((id) => !found.has(id));
+          if (missing.length) {
+            const list = `${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ', …' : ''}`;
+            throw new AppError(404, 'not_found', `${missing.length === 1 ? `Price ${list} was` : `Prices ${list} were`} not found (deleted meanwhile?); nothing was deleted`);
+          }
+          await tx.delete(priceObservations).where(inArray(priceObservations.id, ids));
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.delete', entity: 'price', entityId: ids.join(','), before });
+        });
+        res.json({ deleted: ids.length });
+      },
+    },
+    {
       method: 'delete',
       path: '/:id',
       access: WRITE,
@@ -134,6 +162,25 @@ export function priceIndexRoutes(ctx: AppContext): RouteDef[] {
           return ix.id;
         });
         res.status(201).json((await load(ctx.db, id))[0]);
+      },
+    },
+    {
+      // A corrected or extended index: name, base, source and every value replaced together.
+      method: 'put',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        const body = parse(priceIndexSchema, req.body, 'body');
+        await ctx.db.transaction(async (tx) => {
+          const [before] = await load(tx, id);
+          if (!before) throw AppError.notFound('The price index');
+          await tx.update(priceIndexes).set({ name: body.name, base: body.base, source: body.source }).where(eq(priceIndexes.id, id));
+          await tx.delete(priceIndexValues).where(eq(priceIndexValues.indexId, id));
+          if (body.values.length) await tx.insert(priceIndexValues).values(body.values.map((v) => ({ indexId: id, ...v })));
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price-index.update', entity: 'price-index', entityId: id, before, after: (await load(tx, id))[0] });
+        });
+        res.json((await load(ctx.db, id))[0]);
       },
     },
     {

@@ -7,6 +7,10 @@ beforeAll(async () => {
 });
 afterAll(async () => t.close());
 
+/** One planner session for the tests that need nothing else (sign-ins are rate-limited per address). */
+let planner$: ReturnType<typeof signedIn> | undefined;
+const plannerAgent = () => (planner$ ??= signedIn(t.app, 'planner@example.org'));
+
 async function ids(a: Awaited<ReturnType<typeof signedIn>>) {
   const items = (await a.get('/api/items')).body as { id: number; code: string }[];
   const seasons = (await a.get('/api/seasons')).body as { id: number; label: string }[];
@@ -105,6 +109,43 @@ describe('prices', () => {
     expect(ok.status).toBe(201);
     expect(ok.body).toHaveLength(2);
     expect((await planner.get('/api/prices')).body.length).toBe(count + 2);
+  });
+
+  it('deleting chosen rows is all or nothing: one id already gone keeps every row', async () => {
+    const planner = await plannerAgent();
+    const k = await ids(planner);
+    const row = { itemId: k.item('wheat'), seasonId: k.season('2025/26'), deliveryPointId: k.dp('Ashby elevator'), price: 250, currency: 'EUR', source: 'delete test', observedOn: '2025-10-20' };
+    const made = (await planner.post('/api/prices').send({ rows: [row, { ...row, observedOn: '2025-10-21' }, { ...row, observedOn: '2025-10-22' }] })).body as { id: number }[];
+    const count = (await planner.get('/api/prices')).body.length;
+    const refused = await planner.post('/api/prices/deletions').send({ ids: [made[0]!.id, 999_999, made[1]!.id] });
+    expect(refused.status).toBe(404);
+    expect(refused.body.error.message).toBe('Price 999999 was not found (deleted meanwhile?); nothing was deleted');
+    expect((await planner.get('/api/prices')).body.length).toBe(count);
+    expect((await planner.post('/api/prices/deletions').send({ ids: [made[0]!.id, made[0]!.id] })).status).toBe(400);
+    const treasurer = await signedIn(t.app, 'treasurer@example.org');
+    expect((await treasurer.post('/api/prices/deletions').send({ ids: [made[0]!.id] })).status).toBe(403);
+    const done = await planner.post('/api/prices/deletions').send({ ids: made.map((m) => m.id) });
+    expect(done.body).toEqual({ deleted: 3 });
+    expect((await planner.get('/api/prices')).body.length).toBe(count - 3);
+    const audit = (await planner.get('/api/audit?entity=price')).body.rows ?? (await planner.get('/api/audit?entity=price')).body;
+    const entry = (audit as { action: string; entityId: string; before: { id: number }[] }[]).find((a) => a.action === 'price.delete' && a.entityId === made.map((m) => m.id).join(','));
+    expect(entry?.before.map((b) => b.id)).toEqual(made.map((m) => m.id));
+  });
+
+  it('a price index is corrected in place: name, base, source and values replaced together', async () => {
+    const planner = await plannerAgent();
+    const k = await ids(planner);
+    const created = await planner.post('/api/price-indexes').send({ name: 'Test index', base: '2015/16 = 100', source: 'Invented for a test', values: [{ seasonId: k.season('2015/16'), value: 100 }, { seasonId: k.season('2016/17'), value: 103 }] });
+    expect(created.status).toBe(201);
+    const fixed = await planner.put(`/api/price-indexes/${created.body.id}`).send({ name: 'Test index (revised)', base: '2015/16 = 100', source: 'Invented, revised', values: [{ seasonId: k.season('2015/16'), value: 100 }, { seasonId: k.season('2016/17'), value: 102.5 }, { seasonId: k.season('2017/18'), value: 104 }] });
+    expect(fixed.status).toBe(200);
+    expect(fixed.body).toMatchObject({ id: created.body.id, name: 'Test index (revised)', source: 'Invented, revised' });
+    expect(fixed.body.values.map((v: { season: string; value: number }) => [v.season, v.value])).toEqual([['2015/16', 100], ['2016/17', 102.5], ['2017/18', 104]]);
+    // A bad value refuses the whole change.
+    const bad = await planner.put(`/api/price-indexes/${created.body.id}`).send({ ...fixed.body, values: [{ seasonId: k.season('2015/16'), value: -1 }] });
+    expect(bad.status).toBe(400);
+    expect((await planner.get('/api/price-indexes')).body.find((i: { id: number }) => i.id === created.body.id).values).toHaveLength(3);
+    expect((await planner.put('/api/price-indexes/999999').send(fixed.body)).status).toBe(404);
   });
 
   it('a member cannot read the price table', async () => {

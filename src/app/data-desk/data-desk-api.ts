@@ -96,11 +96,15 @@ export class DataDeskApi {
   updatePrice(id: number, body: PriceInput): Promise<PriceRow> {
     return firstValueFrom(this.#http.put<PriceRow>(`/api/prices/${id}`, body));
   }
-  deletePrice(id: number): Promise<unknown> {
-    return firstValueFrom(this.#http.delete(`/api/prices/${id}`, { responseType: 'text' }));
+  /** Deletes the chosen prices in one transaction: all of them or, if any is gone, none. */
+  deletePrices(ids: number[]): Promise<{ deleted: number }> {
+    return firstValueFrom(this.#http.post<{ deleted: number }>('/api/prices/deletions', { ids }));
   }
   createPriceIndex(body: PriceIndexBody): Promise<PriceIndex> {
     return firstValueFrom(this.#http.post<PriceIndex>('/api/price-indexes', body));
+  }
+  updatePriceIndex(id: number, body: PriceIndexBody): Promise<PriceIndex> {
+    return firstValueFrom(this.#http.put<PriceIndex>(`/api/price-indexes/${id}`, body));
   }
   deletePriceIndex(id: number): Promise<unknown> {
     return firstValueFrom(this.#http.delete(`/api/price-indexes/${id}`, { responseType: 'text' }));

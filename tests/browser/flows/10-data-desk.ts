@@ -213,6 +213,17 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     await page.waitForFunction((rows) => document.querySelectorAll(rows).length === 2, PRICE_ROWS);
   });
 
+  await check('the two pasted rows are chosen and deleted together, after a confirmation', async () => {
+    const boxes = page.locator(`${PRICE_ROWS} .ag-selection-checkbox input`);
+    await boxes.nth(0).check();
+    await boxes.nth(1).check();
+    await page.getByRole('button', { name: 'Delete 2 selected' }).click();
+    await page.getByRole('dialog').getByRole('button', { name: 'Delete 2 prices' }).click();
+    await page.getByText('2 prices deleted.').waitFor();
+    await page.waitForFunction((rows) => document.querySelectorAll(rows).length === 0, PRICE_ROWS);
+    await page.getByLabel('Search prices').fill('');
+  });
+
   await check('the prices download as CSV in the import’s own columns, the edit included', async () => {
     const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('button', { name: 'CSV', exact: true }).click()]);
     const path = await download.path();
@@ -242,6 +253,20 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     await dialog.getByRole('button', { name: 'Cancel' }).click();
   });
   await shot(page, 'data-desk-reference-1280');
+
+  await check('a stored price index is corrected in its dialog and saved', async () => {
+    await page.getByRole('tab', { name: 'Price indexes' }).click();
+    const grid = page.locator('ag-grid-angular[aria-label="Price indexes"]');
+    await grid.getByText('Consumer prices (demo)').click();
+    await page.getByRole('button', { name: 'Edit', exact: true }).click();
+    const dialog = page.getByRole('dialog');
+    await dialog.getByRole('heading', { name: 'Correct the price index Consumer prices (demo)' }).waitFor();
+    assert((await dialog.getByLabel(/^Values/).inputValue()).split('\n').length === 20, 'the stored values are not filled in');
+    await dialog.getByLabel('Source').fill('Invented for the demo co-op (revised)');
+    await dialog.getByRole('button', { name: 'Save index' }).click();
+    await page.getByText('Consumer prices (demo) saved with 20 seasons').waitFor();
+    await grid.getByText('Invented for the demo co-op (revised)').waitFor();
+  });
 
   await check('a farm opens on its records per season, with land, outputs and inputs in their units', async () => {
     await page.goto(`${base}/farms`);

@@ -325,25 +325,18 @@ export class PricesPage {
       destructive: true,
     };
     if (!(await firstValueFrom(this.#dialog.open(ConfirmDialog, { data }).afterClosed()))) return;
-    const deleted: number[] = [];
-    let failure: string | null = null;
-    for (const row of chosen) {
-      try {
-        await this.#api.deletePrice(row.id);
-        deleted.push(row.id);
-      } catch (error) {
-        failure = `${describe(row)}: ${errorMessage(error)}`;
-        break;
-      }
+    // One request, one transaction: all the chosen prices go, or none does.
+    try {
+      await this.#api.deletePrices(chosen.map((r) => r.id));
+    } catch (error) {
+      this.#snackBar.open(`Nothing deleted: ${errorMessage(error)}`, 'Dismiss');
+      return;
     }
-    const gone = new Set(deleted);
+    const gone = new Set(chosen.map((r) => r.id));
     this.rows.update((rows) => rows.filter((r) => !gone.has(r.id)));
     this.series.reload();
     this.selectedCount.set(0);
-    this.#snackBar.open(
-      failure ? `${deleted.length} of ${chosen.length} deleted; stopped at ${failure}` : `${deleted.length} ${deleted.length === 1 ? 'price' : 'prices'} deleted.`,
-      failure ? 'Dismiss' : 'OK',
-    );
+    this.#snackBar.open(`${chosen.length} ${chosen.length === 1 ? 'price' : 'prices'} deleted.`, 'OK');
   }
 
   protected async download(format: 'csv' | 'xlsx'): Promise<void> {

@@ -21,7 +21,12 @@ import { parseTable, readIndexValues } from '../paste';
 import { ProblemList } from '../problem-list';
 import type { Lookups } from '../reference-store';
 
-/** Adds a price index (to deflate prices with): its name, base, source and a value per season, typed, pasted or read from a CSV file. */
+export interface PriceIndexDialogData {
+  lookups: Lookups;
+  index?: PriceIndex;
+}
+
+/** Adds a price index (to deflate prices with), or corrects a stored one: its name, base, source and a value per season, typed, pasted or read from a CSV file. */
 @Component({
   selector: 'np-price-index-dialog',
   imports: [
@@ -45,7 +50,10 @@ import type { Lookups } from '../reference-store';
 export class PriceIndexDialog {
   readonly #api = inject(DataDeskApi);
   readonly #dialogRef = inject<MatDialogRef<PriceIndexDialog, PriceIndex>>(MatDialogRef);
-  protected readonly lookups = inject<Lookups>(MAT_DIALOG_DATA);
+  readonly #data = inject<PriceIndexDialogData>(MAT_DIALOG_DATA);
+  protected readonly lookups = this.#data.lookups;
+  /** The index being corrected, or null for a new one. */
+  protected readonly editing = this.#data.index ?? null;
 
   protected readonly form = inject(NonNullableFormBuilder).group({
     name: ['', [Validators.required, zodValidator(priceIndexSchema.shape.name)]],
@@ -53,7 +61,18 @@ export class PriceIndexDialog {
     source: ['', [Validators.required, zodValidator(priceIndexSchema.shape.source)]],
     values: ['', Validators.required],
   });
-  readonly #text = toSignal(this.form.controls.values.valueChanges, { initialValue: '' });
+  readonly #text = toSignal(this.form.controls.values.valueChanges, { initialValue: this.#initialValues() });
+
+  constructor() {
+    if (this.editing) {
+      this.form.setValue({ name: this.editing.name, base: this.editing.base, source: this.editing.source, values: this.#initialValues() });
+    }
+  }
+
+  /** The stored values as the two tab-separated columns the planner would paste. */
+  #initialValues(): string {
+    return this.#data.index ? this.#data.index.values.map((v) => `${v.season}\t${v.value}`).join('\n') : '';
+  }
   protected readonly read = computed(() => readIndexValues(parseTable(this.#text()), this.lookups));
   protected readonly missing = computed(() => {
     const have = new Set(this.read().values.map((v) => v.seasonId));
@@ -86,7 +105,7 @@ export class PriceIndexDialog {
     this.failure.set(null);
     this.saving.set(true);
     try {
-      this.#dialogRef.close(await this.#api.createPriceIndex(body));
+      this.#dialogRef.close(await (this.editing ? this.#api.updatePriceIndex(this.editing.id, body) : this.#api.createPriceIndex(body)));
     } catch (error) {
       if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
         this.failure.set(error instanceof ApiRequestError && error.status === 409 ? `An index named “${body.name}” exists already.` : errorMessage(error));

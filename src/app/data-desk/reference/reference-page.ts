@@ -137,12 +137,15 @@ export class ReferencePage {
   // --- price indexes ---
   protected addIndex(): void {
     this.#afterSave(
-      this.#dialog.open(PriceIndexDialog, { data: this.ref.lookups(), autoFocus: 'first-tabbable', maxWidth: '96vw' }).afterClosed(),
+      this.#dialog.open(PriceIndexDialog, { data: { lookups: this.ref.lookups() }, autoFocus: 'first-tabbable', maxWidth: '96vw' }).afterClosed(),
       (saved: PriceIndex) => `${saved.name} added with ${saved.values.length} seasons. Choose it under Prices → Deflated.`,
     );
   }
-  protected editIndex(): void {
-    this.#snackBar.open('An index cannot be changed once stored: delete it and add it again with the corrected values.', 'OK');
+  protected editIndex(ix: PriceIndex): void {
+    this.#afterSave(
+      this.#dialog.open(PriceIndexDialog, { data: { lookups: this.ref.lookups(), index: ix }, autoFocus: 'first-tabbable', maxWidth: '96vw' }).afterClosed(),
+      (saved: PriceIndex) => `${saved.name} saved with ${saved.values.length} seasons; deflated prices use the corrected values.`,
+    );
   }
   protected removeIndex(ix: PriceIndex): void {
     void this.#remove(`the index ${ix.name}`, () => this.#api.deletePriceIndex(ix.id), 'A model uses it.');
