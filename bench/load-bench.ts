@@ -84,6 +84,10 @@ try {
     seconds,
     connections,
     endpoints: paths,
+    notes: [
+      'PGlite mode (the default): answers of these GET routes are kept in memory until a table they were read from is written (server/core/read-cache.ts), and session lookups likewise; the fits write model_runs (progress, results), so /api/models is read again from the database after each such write.',
+      'The fits run in worker threads at nice 10, so they take the CPU the request thread leaves.',
+    ],
     requests: latencies.length,
     requestsPerSecond: Math.round(result.requests.average),
     latencyMs: { p50: percentile(latencies, 50), p95: percentile(latencies, 95), p99: percentile(latencies, 99), max: latencies.at(-1) },
