@@ -64,6 +64,21 @@ export const recordSchema = z.object({
   quantity: z.number({ error: 'Enter a quantity' }).nonnegative('A quantity cannot be negative').max(1e12),
 });
 
+/** A fixed factor's name as stored (land is `land_ha`): lower case, digits and underscores. */
+export const factorNameSchema = z
+  .string()
+  .trim()
+  .regex(/^[a-z][a-z0-9_]{0,39}$/, 'Use lower-case letters, digits and _ (up to 40), starting with a letter, e.g. irrigated_ha');
+
+/** One farm's level of one fixed factor in one season (land in ha, irrigated area, machinery value, …). */
+export const factorValueSchema = z.object({
+  farmId: z.number().int().positive(),
+  seasonId: z.number().int().positive(),
+  factor: factorNameSchema,
+  value: z.number().finite().min(0, 'A fixed factor cannot be negative').max(1e9),
+});
+export const factorKeySchema = factorValueSchema.pick({ farmId: true, seasonId: true, factor: true });
+
 export const landSchema = z.object({
   farmId: z.number().int().positive(),
   seasonId: z.number().int().positive(),

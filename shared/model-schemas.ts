@@ -8,8 +8,11 @@ export const modelDefinitionSchema = z
     /** Item codes in the model: outputs and inputs. */
     items: z.array(itemCode).min(2, 'Choose at least two items').max(12, 'Choose at most 12 items'),
     numeraire: itemCode,
-    /** Quasi-fixed factors from the farm records; only land (ha) is recorded today. */
-    fixedFactors: z.array(z.enum(['land_ha'])).max(1).default(['land_ha']),
+    /** Quasi-fixed factors from the farm records: land_ha and any other factor recorded per farm and season. */
+    fixedFactors: z
+      .array(z.string().trim().regex(/^[a-z][a-z0-9_]{0,39}$/, 'A fixed factor is named in lower-case letters, digits and _'))
+      .max(4, 'Choose at most 4 fixed factors')
+      .default(['land_ha']),
     trend: z.boolean().default(true),
     form: z.enum(['nq', 'gl']).default('nq'),
     curvature: z.enum(['auto', 'impose', 'check']).default('auto'),
@@ -22,7 +25,9 @@ export const modelDefinitionSchema = z
     backtestSeasons: z.number().int().min(0).max(10).default(5),
   })
   .refine((d) => d.items.includes(d.numeraire), { message: 'The numeraire must be one of the chosen items', path: ['numeraire'] })
-  .refine((d) => new Set(d.items).size === d.items.length, { message: 'An item is chosen twice', path: ['items'] });
+  .refine((d) => new Set(d.items).size === d.items.length, { message: 'An item is chosen twice', path: ['items'] })
+  .refine((d) => new Set(d.fixedFactors).size === d.fixedFactors.length, { message: 'A fixed factor is chosen twice', path: ['fixedFactors'] })
+  .refine((d) => !d.fixedFactors.includes('trend'), { message: 'The trend is chosen with its own switch, not as a fixed factor', path: ['fixedFactors'] });
 export type ModelDefinition = z.output<typeof modelDefinitionSchema>;
 
 export const modelCreateSchema = z.object({

@@ -46,14 +46,14 @@ export class ReadCache {
       if (hit) this.entries.delete(key);
       this.misses++;
       const since = this.changes.now();
-      const { tables } = this.changes.recordReads(() => {
-        this.capture(res, (body) => {
-          if (body.length > MAX_BODY_CHARS || !this.changes.unchangedSince(tables, since)) return;
-          this.entries.set(key, { body, tables, since, storedAt: Date.now() });
-          if (this.entries.size > MAX_ENTRIES) this.entries.delete(this.entries.keys().next().value!);
-        });
-        next();
+      // Filled while the handler runs; the handler may answer before its first await.
+      const tables = new Set<string>();
+      this.capture(res, (body) => {
+        if (body.length > MAX_BODY_CHARS || !this.changes.unchangedSince(tables, since)) return;
+        this.entries.set(key, { body, tables, since, storedAt: Date.now() });
+        if (this.entries.size > MAX_ENTRIES) this.entries.delete(this.entries.keys().next().value!);
       });
+      this.changes.recordReads(() => next(), tables);
     };
   }
 

@@ -51,9 +51,8 @@ export class ChangeTracker {
     return true;
   }
 
-  /** Runs `fn` collecting the tables its queries read (in its whole async continuation). */
-  recordReads<T>(fn: () => T): { tables: Set<string>; result: T } {
-    const tables = new Set<string>();
+  /** Runs `fn` collecting the tables its queries read (in its whole async continuation) into `tables`. */
+  recordReads<T>(fn: () => T, tables: Set<string> = new Set<string>()): { tables: Set<string>; result: T } {
     const result = this.reads.run(tables, fn);
     return { tables, result };
   }

@@ -51,13 +51,19 @@ export async function buildDataset(db: Db, def: ModelDefinition): Promise<{ data
           .from(farmRecords)
           .where(and(inArray(farmRecords.itemId, itemIds), inArray(farmRecords.seasonId, seasonIds), inArray(farmRecords.farmId, farmIds)))
       : [];
-  const landRows =
-    seasonIds.length && farmIds.length
+  const factorRows =
+    seasonIds.length && farmIds.length && def.fixedFactors.length
       ? await db
           .select()
           .from(farmSeasonFactors)
-          .where(and(eq(farmSeasonFactors.factor, 'land_ha'), inArray(farmSeasonFactors.seasonId, seasonIds), inArray(farmSeasonFactors.farmId, farmIds)))
+          .where(and(inArray(farmSeasonFactors.factor, def.fixedFactors), inArray(farmSeasonFactors.seasonId, seasonIds), inArray(farmSeasonFactors.farmId, farmIds)))
       : [];
+  const unrecorded = def.fixedFactors.filter((f) => !factorRows.some((r) => r.factor === f));
+  if (unrecorded.length) {
+    throw AppError.invalid(`No farm in the sample has a recorded value of ${unrecorded.join(', ')}`, [
+      { path: 'definition.fixedFactors', message: `Not recorded: ${unrecorded.join(', ')}` },
+    ]);
+  }
 
   const mean = (xs: number[]) => (xs.length ? xs.reduce((a, b) => a + b, 0) / xs.length : undefined);
   const priceFaced = (itemId: number, seasonId: number, region: string) => {
@@ -65,7 +71,7 @@ export async function buildDataset(db: Db, def: ModelDefinition): Promise<{ data
     return mean(all.filter((p) => p.region === region).map((p) => p.price)) ?? mean(all.map((p) => p.price));
   };
   const qty = new Map(recordRows.map((r) => [`${r.farmId}/${r.seasonId}/${r.itemId}`, r.quantity]));
-  const land = new Map(landRows.map((r) => [`${r.farmId}/${r.seasonId}`, r.value]));
+  const factorValue = new Map(factorRows.map((r) => [`${r.farmId}/${r.seasonId}/${r.factor}`, r.value]));
 
   const ds: NetputDataset = {
     items: ordered.map((i) => ({ name: i.code, role: i.role })),
@@ -85,20 +91,21 @@ export async function buildDataset(db: Db, def: ModelDefinition): Promise<{ data
       row++;
       const prices = ordered.map((i) => priceFaced(i.id, s.id, f.region));
       const quantities = ordered.map((i) => qty.get(`${f.id}/${s.id}/${i.id}`));
-      const landHa = land.get(`${f.id}/${s.id}`);
+      const levels = def.fixedFactors.map((factor) => factorValue.get(`${f.id}/${s.id}/${factor}`));
+      const noFactor = def.fixedFactors.filter((_, k) => levels[k] === undefined);
       const noPrice = ordered.filter((_, k) => prices[k] === undefined).map((i) => i.code);
       const noRecord = ordered.filter((_, k) => quantities[k] === undefined).map((i) => i.code);
       if (quantities.every((q) => q === undefined)) continue; // the farm has no records that season
       if (noPrice.length) excluded.push({ farm: f.code, season: s.label, reason: `no price for ${noPrice.join(', ')}` });
       else if (noRecord.length) excluded.push({ farm: f.code, season: s.label, reason: `no record of ${noRecord.join(', ')}` });
-      else if (def.fixedFactors.includes('land_ha') && landHa === undefined) excluded.push({ farm: f.code, season: s.label, reason: 'no land recorded' });
+      else if (noFactor.length) excluded.push({ farm: f.code, season: s.label, reason: noFactor.map((n) => (n === 'land_ha' ? 'no land recorded' : `no ${n} recorded`)).join(', ') });
       else {
         ds.seasons.push(s.label);
         ds.seasonYears.push(s.startYear);
         ds.farms!.push(f.code);
         prices.forEach((p, k) => ds.prices[k].push(p!));
         quantities.forEach((q, k) => ds.quantities[k].push(q!));
-        def.fixedFactors.forEach((_, k) => ds.fixed[k].push(landHa!));
+        levels.forEach((v, k) => ds.fixed[k].push(v!));
         ds.rows.push(row);
       }
     }

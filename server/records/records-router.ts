@@ -1,7 +1,7 @@
-import { and, asc, eq, inArray, type SQL } from 'drizzle-orm';
+import { and, asc, countDistinct, eq, inArray, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import type { FarmRecordRow } from '../../shared/api-types.js';
-import { landSchema, recordSchema } from '../../shared/data-schemas.js';
+import { factorKeySchema, factorValueSchema, landSchema, recordSchema } from '../../shared/data-schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import { AppError } from '../core/app-error.js';
@@ -65,8 +65,86 @@ export async function listLand(db: Db, farmIds?: number[]) {
     .orderBy(asc(farms.code), asc(seasons.startYear));
 }
 
+export async function listFactors(db: Db, farmIds?: number[]) {
+  if (farmIds && farmIds.length === 0) return [];
+  return db
+    .select({ farmId: farmSeasonFactors.farmId, farmCode: farms.code, seasonId: farmSeasonFactors.seasonId, season: seasons.label, factor: farmSeasonFactors.factor, value: farmSeasonFactors.value })
+    .from(farmSeasonFactors)
+    .innerJoin(farms, eq(farms.id, farmSeasonFactors.farmId))
+    .innerJoin(seasons, eq(seasons.id, farmSeasonFactors.seasonId))
+    .where(farmIds ? inArray(farmSeasonFactors.farmId, farmIds) : undefined)
+    .orderBy(asc(farms.code), asc(seasons.startYear), asc(farmSeasonFactors.factor));
+}
+
 export function recordsRoutes(ctx: AppContext): RouteDef[] {
   return [
+    {
+      // Every fixed factor (land_ha and any other) per farm and season.
+      method: 'get',
+      path: '/factors',
+      access: 'signed-in',
+      cache: true,
+      handler: async (req, res) => {
+        const q = parse(listQuery, req.query, 'query');
+        res.json(await listFactors(ctx.db, farmScope(req.user!, q.farms)));
+      },
+    },
+    {
+      // The fixed factors recorded anywhere, with how many farms and seasons have a value: the model form's choices.
+      method: 'get',
+      path: '/factor-names',
+      access: 'signed-in',
+      cache: true,
+      handler: async (req, res) => {
+        const scope = farmScope(req.user!, undefined);
+        if (scope && scope.length === 0) return res.json([]);
+        res.json(
+          await ctx.db
+            .select({ factor: farmSeasonFactors.factor, farms: countDistinct(farmSeasonFactors.farmId), seasons: countDistinct(farmSeasonFactors.seasonId) })
+            .from(farmSeasonFactors)
+            .where(scope ? inArray(farmSeasonFactors.farmId, scope) : undefined)
+            .groupBy(farmSeasonFactors.factor)
+            .orderBy(asc(farmSeasonFactors.factor)),
+        );
+      },
+    },
+    {
+      // Set one farm's level of one fixed factor in one season (a grid cell).
+      method: 'put',
+      path: '/factors',
+      access: ['planner'],
+      handler: async (req, res) => {
+        const body = parse(factorValueSchema, req.body, 'body');
+        if (body.factor === 'land_ha' && !(body.value > 0)) throw AppError.invalid('Land must be more than 0 ha', [{ path: 'body.value', message: 'Land must be more than 0 ha' }]);
+        await ctx.db.transaction(async (tx) => {
+          const key = and(eq(farmSeasonFactors.farmId, body.farmId), eq(farmSeasonFactors.seasonId, body.seasonId), eq(farmSeasonFactors.factor, body.factor));
+          const [before] = await tx.select().from(farmSeasonFactors).where(key);
+          await tx
+            .insert(farmSeasonFactors)
+            .values(body)
+            .onConflictDoUpdate({ target: [farmSeasonFactors.farmId, farmSeasonFactors.seasonId, farmSeasonFactors.factor], set: { value: body.value } });
+          await recordAudit(tx, { actorUserId: req.user!.id, action: before ? 'factor.update' : 'factor.create', entity: 'farm-factor', entityId: `${body.farmId}/${body.seasonId}/${body.factor}`, before: before ?? null, after: body });
+        });
+        res.json(await listFactors(ctx.db, [body.farmId]));
+      },
+    },
+    {
+      method: 'delete',
+      path: '/factors',
+      access: ['planner'],
+      handler: async (req, res) => {
+        const k = parse(factorKeySchema, req.body, 'body');
+        await ctx.db.transaction(async (tx) => {
+          const deleted = await tx
+            .delete(farmSeasonFactors)
+            .where(and(eq(farmSeasonFactors.farmId, k.farmId), eq(farmSeasonFactors.seasonId, k.seasonId), eq(farmSeasonFactors.factor, k.factor)))
+            .returning();
+          if (!deleted.length) throw AppError.notFound('The fixed factor value');
+          await recordAudit(tx, { actorUserId: req.user!.id, action: 'factor.delete', entity: 'farm-factor', entityId: `${k.farmId}/${k.seasonId}/${k.factor}`, before: deleted[0] });
+        });
+        res.status(204).end();
+      },
+    },
     {
       method: 'get',
       path: '/',

@@ -180,6 +180,65 @@ describe('farm records', () => {
   });
 });
 
+describe('fixed factors other than land', () => {
+  it('a planner records a factor per farm and season; a model uses it and leaves out the seasons without it', async () => {
+    const planner = await plannerAgent();
+    const k = await ids(planner);
+    const farms = (await planner.get('/api/farms')).body as { id: number; code: string }[];
+    const seasons = ['2016/17', '2017/18', '2018/19', '2019/20', '2020/21', '2021/22', '2022/23', '2023/24', '2024/25'];
+    // Every farm has an irrigated area in those seasons except F02 in 2024/25 (invented values).
+    for (const [fi, f] of farms.entries())
+      for (const [si, label] of seasons.entries()) {
+        if (f.code === 'F02' && label === '2024/25') continue;
+        const res = await planner.put('/api/records/factors').send({ farmId: f.id, seasonId: k.season(label), factor: 'irrigated_ha', value: 20 + ((fi * 7 + si * 3) % 40) });
+        expect(res.status, JSON.stringify(res.body)).toBe(200);
+      }
+    const f1 = farms.find((f) => f.code === 'F01')!;
+    const listed = (await planner.get(`/api/records/factors?farms=${f1.id}`)).body as { factor: string; season: string; value: number }[];
+    expect(listed.filter((r) => r.factor === 'irrigated_ha')).toHaveLength(9);
+    expect(listed.some((r) => r.factor === 'land_ha')).toBe(true);
+    expect((await planner.get('/api/records/factor-names')).body).toEqual([
+      { factor: 'irrigated_ha', farms: 20, seasons: 9 },
+      { factor: 'land_ha', farms: 20, seasons: 20 },
+    ]);
+
+    // Names and values are checked; the member reads only their own farm's factors, and writes nothing.
+    const bad = await planner.put('/api/records/factors').send({ farmId: f1.id, seasonId: k.season('2016/17'), factor: 'Irrigated ha', value: -3 });
+    expect(bad.status).toBe(400);
+    expect(bad.body.error.details.map((d: { path: string }) => d.path).sort()).toEqual(['body.factor', 'body.value']);
+    expect((await planner.put('/api/records/factors').send({ farmId: f1.id, seasonId: k.season('2016/17'), factor: 'land_ha', value: 0 })).status).toBe(400);
+    const member = await signedIn(t.app, 'member@example.org');
+    const own = (await member.get(`/api/records/factors?farms=${farms.find((f) => f.code === 'F02')!.id}`)).body as { farmCode: string }[];
+    expect(new Set(own.map((r) => r.farmCode))).toEqual(new Set(['F01']));
+    expect((await member.put('/api/records/factors').send({ farmId: f1.id, seasonId: k.season('2016/17'), factor: 'irrigated_ha', value: 1 })).status).toBe(403);
+
+    const model = await planner.post('/api/models').send({
+      name: 'Land and irrigation',
+      definition: { items: ['wheat', 'canola', 'nitrogen', 'diesel', 'labour'], numeraire: 'labour', fixedFactors: ['land_ha', 'irrigated_ha'], fromSeason: '2016/17', toSeason: '2024/25', backtestSeasons: 0 },
+    });
+    expect(model.status, JSON.stringify(model.body)).toBe(201);
+    const run = await planner.post(`/api/models/${model.body.id}/runs`).send({});
+    expect(run.status, JSON.stringify(run.body)).toBe(202);
+    const { dataset } = (await planner.get(`/api/model-runs/${run.body.id}/dataset`)).body;
+    expect(dataset.fixedFactors).toEqual(['land_ha', 'irrigated_ha']);
+    expect(dataset.fixed[1]).toHaveLength(dataset.seasons.length);
+    const f02in2024 = dataset.farms.some((f: string, i: number) => f === 'F02' && dataset.seasons[i] === '2024/25');
+    expect(f02in2024).toBe(false);
+    const excluded = (await planner.get(`/api/model-runs/${run.body.id}`)).body.excluded as { farm: string; season: string; reason: string }[];
+    expect(excluded).toContainEqual({ farm: 'F02', season: '2024/25', reason: 'no irrigated_ha recorded' });
+
+    // A factor nobody recorded is refused when the run starts, naming the field.
+    const none = await planner.post('/api/models').send({ name: 'Unknown factor', definition: { items: ['wheat', 'labour'], numeraire: 'labour', fixedFactors: ['drainage_ha'] } });
+    const refused = await planner.post(`/api/models/${none.body.id}/runs`).send({});
+    expect(refused.status).toBe(400);
+    expect(refused.body.error.message).toBe('No farm in the sample has a recorded value of drainage_ha');
+
+    // Removing a value.
+    expect((await planner.delete('/api/records/factors').send({ farmId: f1.id, seasonId: k.season('2016/17'), factor: 'irrigated_ha' })).status).toBe(204);
+    expect((await planner.delete('/api/records/factors').send({ farmId: f1.id, seasonId: k.season('2016/17'), factor: 'irrigated_ha' })).status).toBe(404);
+  });
+});
+
 describe('exports', () => {
   it('a planner exports prices as CSV with one row per observation', async () => {
     const planner = await signedIn(t.app, 'planner@example.org');

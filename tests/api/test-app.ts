@@ -23,7 +23,7 @@ export async function startTestApp(options: { demo?: boolean; dev?: boolean; job
   if (options.demo !== false) await loadDemoCoop(database.db);
   const smtp = await startFakeSmtp();
   const config = {
-    ...loadConfig({ LOG_LEVEL: 'silent', PUBLIC_URL: 'http://netput.test', APP_DIR: path.join(os.tmpdir(), 'netput-no-app') }, options.dev ? ['--dev'] : []),
+    ...loadConfig({ LOG_LEVEL: process.env.TEST_LOG_LEVEL ?? 'silent', PUBLIC_URL: 'http://netput.test', APP_DIR: path.join(os.tmpdir(), 'netput-no-app') }, options.dev ? ['--dev'] : []),
   };
   const mailer = createMailer(smtp.url, config.mailFrom);
   const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50, mailer }) : undefined;

@@ -32,6 +32,16 @@ export interface RecordKey {
 export interface RecordBody extends RecordKey {
   quantity: number;
 }
+/** One farm's level of one fixed factor in one season (GET /api/records/factors). */
+export interface FactorRow {
+  farmId: number;
+  farmCode: string;
+  seasonId: number;
+  season: string;
+  factor: string;
+  value: number;
+}
+
 export interface LandRow {
   farmId: number;
   farmCode: string;
@@ -117,6 +127,12 @@ export class DataDeskApi {
   }
   deleteRecord(key: RecordKey): Promise<unknown> {
     return firstValueFrom(this.#http.delete('/api/records', { body: key, responseType: 'text' }));
+  }
+  putFactor(body: { farmId: number; seasonId: number; factor: string; value: number }): Promise<FactorRow[]> {
+    return firstValueFrom(this.#http.put<FactorRow[]>('/api/records/factors', body));
+  }
+  deleteFactor(key: { farmId: number; seasonId: number; factor: string }): Promise<unknown> {
+    return firstValueFrom(this.#http.delete('/api/records/factors', { body: key, responseType: 'text' }));
   }
   putLand(body: { farmId: number; seasonId: number; landHa: number }): Promise<LandRow[]> {
     return firstValueFrom(this.#http.put<LandRow[]>('/api/records/land', body));

@@ -3,7 +3,9 @@ import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
+import { MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
+import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
@@ -23,14 +25,15 @@ import type { FarmRecordRow, FarmSummary, Item } from '../../../shared/api-types
 import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
-import { DataDeskApi, type FarmRow, type LandRow, type RecordBody } from '../data-desk/data-desk-api';
+import { factorNameSchema } from '../../../shared/data-schemas';
+import { DataDeskApi, type FactorRow, type FarmRow, type LandRow, type RecordBody } from '../data-desk/data-desk-api';
 import { gridTheme, safeCsvCell } from '../data-desk/data-grid';
 import { parseTable } from '../data-desk/paste';
 import { ReferenceStore } from '../data-desk/reference-store';
 import { CautionNote } from '../shared/caution-note';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
 import { FarmDialog, type FarmDialogData } from './farm-dialog';
-import { itemKey, pivotRecords, recordCellProblem, type SeasonRow } from './records-pivot';
+import { factorKey, itemKey, pivotRecords, recordCellProblem, type SeasonRow } from './records-pivot';
 
 const quantityFormat = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 2 });
 const landFormat = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 });
@@ -38,7 +41,7 @@ const landFormat = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 1, ma
 /** `/farms/:id`: one farm, its outputs, input use and land per season in one grid. Planners edit cells and paste blocks. */
 @Component({
   selector: 'np-farm-records',
-  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatIcon, MatProgressBar, CautionNote],
+  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatHint, MatIcon, MatInput, MatLabel, MatProgressBar, CautionNote],
   templateUrl: './farm-records.html',
   styleUrl: './farm-records.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -62,9 +65,21 @@ export class FarmRecords {
   protected readonly notFound = computed(() => this.farms.hasValue() && this.farm() === null);
   protected readonly records = httpResource<FarmRecordRow[]>(() => (Number.isInteger(this.farmId()) ? { url: '/api/records', params: { farms: this.farmId() } } : undefined));
   protected readonly land = httpResource<LandRow[]>(() => (Number.isInteger(this.farmId()) ? { url: '/api/records/land', params: { farms: this.farmId() } } : undefined));
-  protected readonly loading = computed(() => this.farms.isLoading() || this.records.isLoading() || this.land.isLoading() || !this.ref.loaded());
+  protected readonly factors = httpResource<FactorRow[]>(() => (Number.isInteger(this.farmId()) ? { url: '/api/records/factors', params: { farms: this.farmId() } } : undefined));
+  /** Factors added as columns in this visit, before any value of them is saved. */
+  readonly #addedFactors = signal<string[]>([]);
+  /** Fixed factors other than land: those this farm has values of, and those just added. */
+  protected readonly otherFactors = computed(() => {
+    const recorded = this.factors.hasValue() ? this.factors.value().map((f) => f.factor) : [];
+    return [...new Set([...recorded, ...this.#addedFactors()])].filter((f) => f !== 'land_ha').sort();
+  });
+  protected readonly newFactor = signal('');
+  protected readonly newFactorProblem = signal<string | null>(null);
+  protected readonly loading = computed(
+    () => this.farms.isLoading() || this.records.isLoading() || this.land.isLoading() || this.factors.isLoading() || !this.ref.loaded(),
+  );
   protected readonly problem = computed(() => {
-    const e = this.farms.error() ?? this.records.error() ?? this.land.error() ?? this.ref.error();
+    const e = this.farms.error() ?? this.records.error() ?? this.land.error() ?? this.factors.error() ?? this.ref.error();
     return e ? errorMessage(e) : null;
   });
 
@@ -74,6 +89,8 @@ export class FarmRecords {
       this.ref.items(),
       this.records.hasValue() ? this.records.value() : [],
       this.land.hasValue() ? this.land.value() : [],
+      this.factors.hasValue() ? this.factors.value() : [],
+      this.otherFactors(),
     ),
   );
   protected readonly recordCount = computed(() => (this.records.hasValue() ? this.records.value().length : 0));
@@ -113,6 +130,29 @@ export class FarmRecords {
         cellEditor: 'agNumberCellEditor',
         cellEditorParams: { getValidationErrors: (p: IErrorValidationParams<SeasonRow>) => this.#validate('land', p) },
       },
+      ...(this.otherFactors().length
+        ? [
+            {
+              headerName: 'Other fixed factors',
+              children: this.otherFactors().map(
+                (name): ColDef<SeasonRow> => ({
+                  colId: factorKey(name),
+                  field: factorKey(name),
+                  headerName: name,
+                  headerTooltip: `Fixed factor ${name}: this farm's level in each season`,
+                  type: 'numericColumn',
+                  minWidth: 120,
+                  wrapHeaderText: true,
+                  autoHeaderHeight: true,
+                  valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? quantityFormat.format(p.value) : '—'),
+                  cellClassRules: { 'np-missing': (p) => p.value === null || p.value === undefined },
+                  cellEditor: 'agNumberCellEditor',
+                  cellEditorParams: { getValidationErrors: (p: IErrorValidationParams<SeasonRow>) => this.#validate('factor', p) },
+                }),
+              ),
+            },
+          ]
+        : []),
       { headerName: 'Outputs (produced)', children: items.filter((i) => i.role === 'output').map(itemColumn) },
       { headerName: 'Inputs (used)', children: items.filter((i) => i.role === 'input').map(itemColumn) },
     ];
@@ -122,7 +162,24 @@ export class FarmRecords {
     this.#grid.set(event.api);
   }
 
-  #validate(kind: 'quantity' | 'land', p: IErrorValidationParams<SeasonRow>): string[] | null {
+  /** Adds a column for a fixed factor this farm has no values of yet (irrigated area, machinery value, …). */
+  protected addFactor(): void {
+    const parsed = factorNameSchema.safeParse(this.newFactor());
+    if (!parsed.success) {
+      this.newFactorProblem.set(parsed.error.issues[0]!.message);
+      return;
+    }
+    if (parsed.data === 'land_ha' || this.otherFactors().includes(parsed.data)) {
+      this.newFactorProblem.set(`${parsed.data} is a column already`);
+      return;
+    }
+    this.#addedFactors.update((names) => [...names, parsed.data]);
+    this.newFactor.set('');
+    this.newFactorProblem.set(null);
+    this.status.set({ ok: true, text: `Column ${parsed.data} added: enter the farm's level in each season.` });
+  }
+
+  #validate(kind: 'quantity' | 'land' | 'factor', p: IErrorValidationParams<SeasonRow>): string[] | null {
     const problem = recordCellProblem(kind, p.value);
     if (problem) this.status.set({ ok: false, text: `${p.cellEditorParams.data.season}: ${problem}` });
     return problem ? [problem] : null;
@@ -141,6 +198,15 @@ export class FarmRecords {
       if (key === 'landHa') {
         await this.#api.putLand({ farmId, seasonId: row.seasonId, landHa: Number(event.newValue) });
         this.status.set({ ok: true, text: `Saved: land in ${row.season} is ${landFormat.format(Number(event.newValue))} ha.` });
+      } else if (key.startsWith('fx_')) {
+        const factor = key.slice(3);
+        if (event.newValue === null || event.newValue === undefined || event.newValue === '') {
+          await this.#api.deleteFactor({ farmId, seasonId: row.seasonId, factor });
+          this.status.set({ ok: true, text: `Removed: ${factor} in ${row.season}.` });
+        } else {
+          await this.#api.putFactor({ farmId, seasonId: row.seasonId, factor, value: Number(event.newValue) });
+          this.status.set({ ok: true, text: `Saved: ${factor} in ${row.season} is ${quantityFormat.format(Number(event.newValue))}.` });
+        }
       } else {
         const item = this.ref.items().find((it) => itemKey(it.id) === key)!;
         if (event.newValue === null || event.newValue === undefined || event.newValue === '') {
@@ -186,6 +252,7 @@ export class FarmRecords {
     const problems: string[] = [];
     const records: RecordBody[] = [];
     const land: { seasonId: number; landHa: number }[] = [];
+    const levels: { seasonId: number; factor: string; value: number }[] = [];
     block.forEach((cells, r) => {
       const row = rows[focused.rowIndex + r];
       if (!row) {
@@ -199,10 +266,11 @@ export class FarmRecords {
           return;
         }
         if (cell === '') return;
-        const kind = colId === 'landHa' ? 'land' : 'quantity';
+        const kind = colId === 'landHa' ? 'land' : colId.startsWith('fx_') ? 'factor' : 'quantity';
         const problem = recordCellProblem(kind, cell);
         if (problem) problems.push(`${row.season}, ${this.#columnName(colId)}: ${problem}`);
         else if (kind === 'land') land.push({ seasonId: row.seasonId, landHa: Number(cell) });
+        else if (kind === 'factor') levels.push({ seasonId: row.seasonId, factor: colId.slice(3), value: Number(cell) });
         else records.push({ farmId: this.farmId(), seasonId: row.seasonId, itemId: Number(colId.slice(1)), quantity: Number(cell) });
       });
     });
@@ -213,16 +281,20 @@ export class FarmRecords {
     try {
       if (records.length) await this.#api.putRecords(records);
       for (const l of land) await this.#api.putLand({ farmId: this.farmId(), ...l });
-      this.status.set({ ok: true, text: `Pasted ${records.length} quantities${land.length ? ` and land of ${land.length} seasons` : ''}.` });
+      for (const l of levels) await this.#api.putFactor({ farmId: this.farmId(), ...l });
+      const extra = [land.length ? `land of ${land.length} seasons` : '', levels.length ? `${levels.length} fixed-factor values` : ''].filter(Boolean).join(' and ');
+      this.status.set({ ok: true, text: `Pasted ${records.length} quantities${extra ? ` and ${extra}` : ''}.` });
     } catch (error) {
       this.status.set({ ok: false, text: `Not pasted: ${errorMessage(error)}` });
     }
     this.records.reload();
     this.land.reload();
+    this.factors.reload();
   }
 
   #columnName(colId: string): string {
     if (colId === 'landHa') return 'land';
+    if (colId.startsWith('fx_')) return colId.slice(3);
     return this.ref.items().find((it) => itemKey(it.id) === colId)?.name ?? colId;
   }
 

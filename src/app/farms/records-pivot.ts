@@ -1,32 +1,46 @@
 import type { FarmRecordRow, Item, Season } from '../../../shared/api-types';
-import type { LandRow } from '../data-desk/data-desk-api';
+import type { FactorRow, LandRow } from '../data-desk/data-desk-api';
 
-/** One season of a farm: land and a quantity per item (`i<itemId>`), null where nothing is recorded. */
+/**
+ * One season of a farm: land, a quantity per item (`i<itemId>`) and the level of each other fixed
+ * factor (`fx_<name>`), null where nothing is recorded.
+ */
 export interface SeasonRow {
   seasonId: number;
   season: string;
   startYear: number;
   landHa: number | null;
   [itemKey: `i${number}`]: number | null;
+  [factorKey: `fx_${string}`]: number | null;
 }
 
 export const itemKey = (itemId: number): `i${number}` => `i${itemId}`;
+export const factorKey = (factor: string): `fx_${string}` => `fx_${factor}`;
 
 /** Records and land of one farm as a table of seasons (newest first) by items; every season is a row, so gaps show. */
-export function pivotRecords(seasons: readonly Season[], items: readonly Item[], records: readonly FarmRecordRow[], land: readonly LandRow[]): SeasonRow[] {
+export function pivotRecords(
+  seasons: readonly Season[],
+  items: readonly Item[],
+  records: readonly FarmRecordRow[],
+  land: readonly LandRow[],
+  factors: readonly FactorRow[] = [],
+  factorNames: readonly string[] = [],
+): SeasonRow[] {
   const landOf = new Map(land.map((l) => [l.seasonId, l.landHa]));
+  const level = new Map(factors.map((f) => [`${f.seasonId}|${f.factor}`, f.value]));
   const qty = new Map(records.map((r) => [`${r.seasonId}|${r.itemId}`, r.quantity]));
   return [...seasons]
     .sort((a, b) => b.startYear - a.startYear)
     .map((s) => {
       const row: SeasonRow = { seasonId: s.id, season: s.label, startYear: s.startYear, landHa: landOf.get(s.id) ?? null };
       for (const it of items) row[itemKey(it.id)] = qty.get(`${s.id}|${it.id}`) ?? null;
+      for (const name of factorNames) row[factorKey(name)] = level.get(`${s.id}|${name}`) ?? null;
       return row;
     });
 }
 
-/** What is wrong with a quantity or land cell, in the shared schema's words, or null. */
-export function recordCellProblem(kind: 'quantity' | 'land', value: unknown): string | null {
+/** What is wrong with a quantity, land or other fixed-factor cell, in the shared schema's words, or null. */
+export function recordCellProblem(kind: 'quantity' | 'land' | 'factor', value: unknown): string | null {
   if (value === null || value === undefined || value === '') {
     return kind === 'land' ? 'Land cannot be left empty: enter the hectares farmed that season' : null;
   }
@@ -35,6 +49,11 @@ export function recordCellProblem(kind: 'quantity' | 'land', value: unknown): st
   if (kind === 'land') {
     if (!(n > 0)) return 'Land must be more than 0 ha';
     if (n > 1e6) return 'Land must be at most 1,000,000 ha';
+    return null;
+  }
+  if (kind === 'factor') {
+    if (n < 0) return 'A fixed factor cannot be negative';
+    if (n > 1e9) return 'The value is larger than the largest kept (1,000,000,000)';
     return null;
   }
   if (n < 0) return 'A quantity cannot be negative (inputs are recorded as positive amounts used)';

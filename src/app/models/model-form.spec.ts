@@ -93,6 +93,21 @@ describe('ModelForm', () => {
     expect(saved.map((s) => [s.model.id, s.run])).toEqual([[9, true]]);
   });
 
+  it('should offer the other recorded fixed factors and send a chosen one after land', async () => {
+    fixture.componentRef.setInput('factorNames', [{ factor: 'irrigated_ha', farms: 12, seasons: 9 }]);
+    await fixture.whenStable();
+    const box = [...el().querySelectorAll('mat-checkbox')].find((c) => c.textContent?.includes('irrigated_ha as a fixed factor'))!;
+    expect(box.textContent).toContain('recorded for 12 farms in 9 seasons');
+    (box.querySelector('input') as HTMLInputElement).click();
+    await typeName('Land and irrigation');
+    button('Save only').click();
+    await fixture.whenStable();
+    const req = http.expectOne('/api/models');
+    expect(req.request.body.definition.fixedFactors).toEqual(['land_ha', 'irrigated_ha']);
+    req.flush({ id: 10, name: 'Land and irrigation', definition: req.request.body.definition, createdBy: 2, createdAt: '2026-01-01T00:00:00Z', runs: [] });
+    await fixture.whenStable();
+  });
+
   it('should say what is wrong and send nothing when fewer than two items and no name are given', async () => {
     for (const label of ['Canola (rapeseed)', 'Nitrogen (N)', 'Hired labour']) {
       const box = [...el().querySelectorAll('mat-checkbox')].find((c) => c.textContent?.includes(label))!;

@@ -52,6 +52,8 @@ export class ModelForm {
   readonly items = input.required<readonly Item[]>();
   readonly seasons = input.required<readonly Season[]>();
   readonly farms = input.required<readonly FarmSummary[]>();
+  /** Fixed factors recorded besides land (GET /api/records/factor-names), offered as more fixed factors. */
+  readonly factorNames = input<readonly { factor: string; farms: number; seasons: number }[]>([]);
 
   readonly saved = output<ModelSaved>();
   readonly cancelled = output<void>();
@@ -64,6 +66,7 @@ export class ModelForm {
     items: [[] as string[]],
     numeraire: [''],
     land: [true],
+    otherFactors: [[] as string[]],
     trend: [true],
     form: ['nq' as ModelDefinition['form']],
     curvature: ['auto' as ModelDefinition['curvature']],
@@ -96,6 +99,18 @@ export class ModelForm {
       this.form.controls.items.setValue(items.map((i) => i.code));
       this.#keepNumeraire();
     });
+  }
+
+  protected isFactorChosen(name: string): boolean {
+    return (this.#value().otherFactors ?? []).includes(name);
+  }
+
+  protected toggleFactor(name: string, on: boolean): void {
+    const order = this.factorNames().map((f) => f.factor);
+    const next = new Set(this.form.controls.otherFactors.value);
+    if (on) next.add(name);
+    else next.delete(name);
+    this.form.controls.otherFactors.setValue(order.filter((f) => next.has(f)));
   }
 
   protected isChosen(code: string): boolean {
@@ -132,7 +147,7 @@ export class ModelForm {
     const parsed = modelDefinitionSchema.safeParse({
       items: v.items,
       numeraire: v.numeraire,
-      fixedFactors: v.land ? ['land_ha'] : [],
+      fixedFactors: [...(v.land ? ['land_ha'] : []), ...v.otherFactors],
       trend: v.trend,
       form: v.form,
       curvature: v.curvature,

@@ -73,6 +73,9 @@ export class ModelsList {
   // Only the form needs these; they load when it opens.
   protected readonly seasons = httpResource<Season[]>(() => (this.defining() ? '/api/seasons' : undefined));
   protected readonly farms = httpResource<FarmSummary[]>(() => (this.defining() ? '/api/farms' : undefined));
+  readonly #factorNames = httpResource<{ factor: string; farms: number; seasons: number }[]>(() => (this.defining() ? '/api/records/factor-names' : undefined));
+  /** Fixed factors recorded besides land, for the form to offer. */
+  protected readonly otherFactors = computed(() => (this.#factorNames.hasValue() ? this.#factorNames.value().filter((f) => f.factor !== 'land_ha') : []));
   protected readonly stateLabels = STATE_LABELS;
   protected readonly columns = ['name', 'definition', 'latest', 'runs', 'created'];
 

@@ -297,6 +297,25 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     const stored = (await page.evaluate((id) => fetch(`/api/records?farms=${id}`).then((r) => r.json()), farmId)) as { season: string; itemCode: string; quantity: number }[];
     assertEqual(stored.find((r) => r.season === season && r.itemCode === 'wheat')?.quantity, 1200.5, 'stored wheat quantity');
   });
+  await check('another fixed factor gets a column of its own, and a value typed in it is stored', async () => {
+    await page.getByLabel('Another fixed factor').fill('Irrigated area');
+    await page.getByRole('button', { name: 'Add column' }).click();
+    await page.getByText('Use lower-case letters, digits and _').waitFor();
+    await page.getByLabel('Another fixed factor').fill('irrigated_ha');
+    await page.getByRole('button', { name: 'Add column' }).click();
+    const grid = page.locator('ag-grid-angular[aria-label^="Records of "]');
+    await grid.getByText('Other fixed factors').waitFor();
+    const newest = grid.locator('.ag-row[row-index="0"]');
+    const season = (await newest.locator('[col-id="season"]').first().innerText()).trim();
+    const cell = newest.locator('[col-id="fx_irrigated_ha"]');
+    await cell.dblclick();
+    await cell.locator('input').fill('42.5');
+    await cell.locator('input').press('Enter');
+    await page.getByText(`Saved: irrigated_ha in ${season} is 42.5.`).waitFor();
+    const farmId = Number(new URL(page.url()).pathname.split('/').pop());
+    const stored = (await page.evaluate((id) => fetch(`/api/records/factors?farms=${id}`).then((r) => r.json()), farmId)) as { season: string; factor: string; value: number }[];
+    assertEqual(stored.find((r) => r.season === season && r.factor === 'irrigated_ha')?.value, 42.5, 'stored irrigated area');
+  });
   await shot(page, 'data-desk-farm-records-1280');
 
   await page.setViewportSize({ width: 375, height: 780 });
