@@ -30,6 +30,27 @@ async function waitForRun(a: Awaited<ReturnType<typeof signedIn>>, id: number) {
 }
 
 describe('model runs', () => {
+  it('a second recorded fixed factor enters the fit beside land and can be set when evaluating', async () => {
+    const planner = await signedIn(t.app, 'planner@example.org');
+    const farms = (await planner.get('/api/farms')).body as { id: number; code: string }[];
+    const seasons = (await planner.get('/api/seasons')).body as { id: number; label: string }[];
+    // Invented irrigated areas, varying by farm and season, for every farm-season of the demo.
+    for (const [fi, f] of farms.entries())
+      for (const [si, s] of seasons.entries())
+        expect((await planner.put('/api/records/factors').send({ farmId: f.id, seasonId: s.id, factor: 'irrigated_ha', value: 10 + ((fi * 13 + si * 7) % 50) })).status).toBe(200);
+    const created = await planner.post('/api/models').send({ name: 'Land and irrigation', definition: { ...definition, fixedFactors: ['land_ha', 'irrigated_ha'], backtestSeasons: 0 } });
+    const started = await planner.post(`/api/models/${created.body.id}/runs`);
+    expect(started.status, JSON.stringify(started.body)).toBe(202);
+    const done = await waitForRun(planner, started.body.id);
+    expect(done.status, done.error).toBe('succeeded');
+    const run = (await planner.get(`/api/model-runs/${started.body.id}`)).body;
+    expect(run.result.summary.fixedFactors).toEqual(['land_ha', 'irrigated_ha', 'trend']);
+    const ev = await planner.get(`/api/model-runs/${started.body.id}/evaluate?fixed=land_ha=300,irrigated_ha=25`);
+    expect(ev.status, JSON.stringify(ev.body)).toBe(200);
+    expect(ev.body.point.fixed.slice(0, 2)).toEqual([300, 25]); // in the order of the fixed factors
+  });
+
+
   it('a planner defines a model, runs it in the background and reads a stored, reproducible result', async () => {
     const planner = await signedIn(t.app, 'planner@example.org');
     const created = await planner.post('/api/models').send({ name: 'All items, NQ, land + trend', definition });

@@ -225,6 +225,11 @@ export class FarmRecords {
         }
       }
       this.rows.update((rows) => rows.map((r) => (r.seasonId === row.seasonId ? { ...r, [key]: event.newValue ?? null } : r)));
+      // The grid shows the edit already; the sources are refreshed so a later re-pivot (a column
+      // added, another resource reloaded) cannot bring back the old value.
+      if (key === 'landHa') this.land.reload();
+      else if (key.startsWith('fx_')) this.factors.reload();
+      else this.records.reload();
     } catch (error) {
       revert();
       this.status.set({ ok: false, text: `Not saved (${row.season}): ${errorMessage(error)}` });

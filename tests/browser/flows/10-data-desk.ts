@@ -315,6 +315,8 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     const farmId = Number(new URL(page.url()).pathname.split('/').pop());
     const stored = (await page.evaluate((id) => fetch(`/api/records/factors?farms=${id}`).then((r) => r.json()), farmId)) as { season: string; factor: string; value: number }[];
     assertEqual(stored.find((r) => r.season === season && r.factor === 'irrigated_ha')?.value, 42.5, 'stored irrigated area');
+    // The wheat edited before still shows its new value after the grid was rebuilt with the new column.
+    await newest.locator('[col-id="i1"]').getByText('1,200.5').waitFor();
   });
   await shot(page, 'data-desk-farm-records-1280');
 
