@@ -1,14 +1,8 @@
 import { k2oToK, p2o5ToP } from '../../shared/units.js';
 
-/**
- * The three nutrients a fertiliser budget sizes, named like the demo model's items: nitrogen in
- * kg N, phosphate in kg P2O5, potash in kg K2O (oxide basis, as grades are written).
- */
-export const NUTRIENTS = ['nitrogen', 'phosphate', 'potash'] as const;
-export type Nutrient = (typeof NUTRIENTS)[number];
-export type NutrientAmounts = Record<Nutrient, number>;
+import { NUTRIENTS, type Nutrient, type NutrientAmounts } from '../../shared/budget-types.js';
 
-export const NUTRIENT_LABEL: Record<Nutrient, string> = { nitrogen: 'N', phosphate: 'P2O5', potash: 'K2O' };
+export { NUTRIENT_LABEL, NUTRIENTS, type Nutrient, type NutrientAmounts } from '../../shared/budget-types.js';
 
 /** The grade column of a product for each nutrient. */
 export const GRADE_FIELD = { nitrogen: 'nPct', phosphate: 'p2o5Pct', potash: 'k2oPct' } as const;

@@ -10,8 +10,11 @@
  * lots, either by rounding each product up to its next lot ('round-up') or by solving the same
  * program in whole lots (an integer program, 'whole-lots'), which may choose a different, cheaper mix.
  */
+import type { LotRule, MixLine, MixResult } from '../../shared/budget-types.js';
 import lpSolver, { type Model, type SolveResult, type SolverAPI } from 'javascript-lp-solver';
 import { BudgetInputError, gradeLabel, kgPerTonne, NUTRIENT_LABEL, NUTRIENTS, zeroAmounts, type Graded, type Nutrient, type NutrientAmounts } from './nutrients.js';
+
+export type { LotRule, MixLine, MixResult } from '../../shared/budget-types.js';
 
 /**
  * javascript-lp-solver 1.0.3 ships an ES module whose default export is the solver, but its one
@@ -27,41 +30,6 @@ export interface MixProduct extends Graded {
   pricePerT: number;
   /** Delivery lot in tonnes of product. */
   lotT: number;
-}
-
-export type LotRule = 'round-up' | 'whole-lots';
-
-export interface MixLine {
-  productId: number;
-  name: string;
-  grade: string;
-  pricePerT: number;
-  lotT: number;
-  /** Tonnes in the least-cost continuous mix. */
-  lpTonnes: number;
-  lots: number;
-  /** Tonnes bought: lots × lot size. */
-  tonnes: number;
-  cost: number;
-  /** kg of N, P2O5, K2O the bought tonnes carry. */
-  supplies: NutrientAmounts;
-}
-
-export interface MixResult {
-  lotRule: LotRule;
-  demand: NutrientAmounts;
-  /** Only products bought (or chosen by the continuous mix), in the order given. */
-  lines: MixLine[];
-  /** Cost of the continuous least-cost mix. */
-  lpCost: number;
-  /** Cost of the tonnes bought in whole lots. */
-  cost: number;
-  /** Nutrients the bought tonnes carry, and what exceeds the need (lots, and N credited from MAP/DAP beyond the N need). */
-  supply: NutrientAmounts;
-  overSupply: NutrientAmounts;
-  /** Nutrients the continuous mix carries beyond the need (a product carrying two nutrients can force it). */
-  lpOverSupply: NutrientAmounts;
-  warnings: string[];
 }
 
 /** Values below this many tonnes are solver noise (it reports 8 decimals). */

@@ -11,6 +11,7 @@
  * relative change of θ is below the tolerance, converging to the Gaussian ML estimate under
  * convexity.
  */
+import type { OptimalityCheck } from '../../shared/estimation-types.js';
 import { choleskyLower, jacobiEigenvalues, matMul, pinvSymmetric, solve, symmetricEigen, transpose, zeros, type Mat } from './linalg.js';
 import { fitLeastSquares } from './lm.js';
 import type { CurvatureBlock } from './model.js';
@@ -56,14 +57,7 @@ export interface ImposedFit {
   optimality: OptimalityCheck;
 }
 
-export interface OptimalityCheck {
-  /** max_j |∂f/∂θ_j|·SE_j over the parameters outside C (0 at a stationary point; objective units). */
-  stationarity: number;
-  /** Smallest eigenvalue of the multiplier Λ = ∂f/∂C over its largest |eigenvalue| (≥ 0 at a KKT point). */
-  dualMinEigenvalue: number;
-  /** tr(ΛC)/(‖Λ‖·‖C‖) (0 at a KKT point: the multiplier acts only on the binding directions). */
-  complementarity: number;
-}
+export type { OptimalityCheck } from '../../shared/estimation-types.js';
 
 export interface ImposeArgs {
   equations: SurEquationInput[];

@@ -4,13 +4,16 @@
  * T, to convergence, i.e. Gaussian ML), check convexity in prices and impose it when it fails.
  */
 import { Matrix, QrDecomposition } from 'ml-matrix';
-import { checkConvexity, imposeConvexity, leadingBlock, type OptimalityCheck } from './curvature.js';
+import type { CoefficientEstimate, CurvatureReport, EquationFit } from '../../shared/estimation-types.js';
+import { checkConvexity, imposeConvexity, leadingBlock } from './curvature.js';
 import type { NetputDataset, NetputItem } from './dataset.js';
 import { EstimationInputError } from './errors.js';
 import { formOf, resolveFormName } from './forms.js';
 import { covarianceToCorrelation, jacobiEigenvalues, logDetSymmetricPD, type Mat } from './linalg.js';
 import type { FormName, ModelData, ModelLayout } from './model.js';
 import { fitSur, type SurEquationInput } from './sur.js';
+
+export type { CoefficientEstimate, CurvatureReport, EquationFit } from '../../shared/estimation-types.js';
 
 export interface FitOptions {
   /** 'nq' (default) or 'gl', or the full form names. */
@@ -28,45 +31,6 @@ export interface FitOptions {
   maxIterations?: number;
   /** Stop when the relative change of the coefficients is below this (default 1e-8). */
   tolerance?: number;
-}
-
-export interface CoefficientEstimate {
-  /** systemfit-style name `<equation>_<regressor>`. */
-  name: string;
-  /** Structural parameter carried (e.g. `b[wheat,canola]`). */
-  parameter: string;
-  estimate: number;
-  standardError: number;
-}
-
-export interface EquationFit {
-  item: string;
-  role: NetputItem['role'];
-  r2: number;
-  rmse: number;
-  ssr: number;
-  coefficients: CoefficientEstimate[];
-}
-
-export interface CurvatureReport {
-  /** True when convexity at one point implies it everywhere (NQ). */
-  global: boolean;
-  /** Eigenvalues of the curvature block at the sample-mean prices, before any imposition. */
-  unrestrictedEigenvalues: number[];
-  unrestrictedConvex: boolean;
-  imposed: boolean;
-  /** Eigenvalues of the curvature block at the sample-mean prices in the reported fit. */
-  eigenvalues: number[];
-  convexAtMeans: boolean;
-  /** Observations whose price Hessian is not positive semidefinite (reported fit). */
-  violatingObservations: number;
-  violationShare: number;
-  /** When imposed: the constraint ends on the boundary (a zero eigenvalue). */
-  binding?: boolean;
-  /** When imposed: first-order optimality diagnostics of the constrained fit. */
-  optimality?: OptimalityCheck;
-  iterations?: number;
-  converged?: boolean;
 }
 
 export interface MonotonicityReport {

@@ -1,22 +1,17 @@
+import type { LotRule, MixResult, Nutrient, NutrientAmounts } from '../../../shared/budget-types';
 import type { UnitSystem } from '../../../shared/units';
 
 /**
  * The shapes the budget API answers with and accepts (server/budget/budget-compute.ts,
- * budget-schemas.ts, budget-service.ts, booking.ts, product-mix.ts). Declared here because those
- * server modules import Node-only code the client build cannot type-check; only the fields the
- * screens read or send are listed.
+ * budget-schemas.ts, budget-service.ts, booking.ts). Declared here because those server modules
+ * import Node-only code the client build cannot type-check; only the fields the screens read or
+ * send are listed. The nutrients and the product mix are shared with the server (shared/budget-types.ts).
  */
 
-export const NUTRIENTS = ['nitrogen', 'phosphate', 'potash'] as const;
-export type Nutrient = (typeof NUTRIENTS)[number];
-export type NutrientAmounts = Record<Nutrient, number>;
-
-/** How grades are written: N, P2O5, K2O (oxide basis). */
-export const NUTRIENT_LABEL: Record<Nutrient, string> = { nitrogen: 'N', phosphate: 'P2O5', potash: 'K2O' };
+export { NUTRIENT_LABEL, NUTRIENTS, type LotRule, type MixLine, type MixResult, type Nutrient, type NutrientAmounts } from '../../../shared/budget-types';
 
 export type PriceChanges = Partial<Record<Nutrient, number>>;
 export type ElasticityMatrix = Record<Nutrient, Record<Nutrient, number>>;
-export type LotRule = 'round-up' | 'whole-lots';
 export type SourceKind = 'model-run' | 'manual' | 'outlook';
 export type ProductForm = 'solid' | 'liquid' | 'gas';
 
@@ -113,31 +108,6 @@ export interface ProductCopy {
   supplier: string;
   gradeSource: string;
   priceNote: string;
-}
-
-export interface MixLine {
-  productId: number;
-  name: string;
-  grade: string;
-  pricePerT: number;
-  lotT: number;
-  lpTonnes: number;
-  lots: number;
-  tonnes: number;
-  cost: number;
-  supplies: NutrientAmounts;
-}
-
-export interface MixResult {
-  lotRule: LotRule;
-  demand: NutrientAmounts;
-  lines: MixLine[];
-  lpCost: number;
-  cost: number;
-  supply: NutrientAmounts;
-  overSupply: NutrientAmounts;
-  lpOverSupply: NutrientAmounts;
-  warnings: string[];
 }
 
 export interface CashMonth {

@@ -1,9 +1,13 @@
+import type { CurvatureReport, EquationFit } from '../../../shared/estimation-types';
 import type { ModelDefinition } from '../../../shared/model-schemas';
+
+export type { CoefficientEstimate, CurvatureReport, EquationFit } from '../../../shared/estimation-types';
 
 /**
  * The shapes the model API answers with (server/models/models-service.ts, server/jobs/fit-task.ts,
  * server/estimation/fit.ts). Declared here because those server types import Node modules the
- * client build cannot type-check; only the fields the screens read are listed.
+ * client build cannot type-check; only the fields the screens read are listed. The engine's result
+ * shapes are shared with the server (shared/estimation-types.ts).
  */
 export type RunState = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
@@ -46,36 +50,6 @@ export interface ExcludedObservation {
 export interface NetputRef {
   name: string;
   role: 'output' | 'input';
-}
-
-export interface CoefficientEstimate {
-  name: string;
-  parameter: string;
-  estimate: number;
-  standardError: number;
-}
-
-export interface EquationFit {
-  item: string;
-  role: 'output' | 'input';
-  r2: number;
-  rmse: number;
-  ssr: number;
-  coefficients: CoefficientEstimate[];
-}
-
-export interface CurvatureReport {
-  global: boolean;
-  unrestrictedEigenvalues: number[];
-  unrestrictedConvex: boolean;
-  imposed: boolean;
-  eigenvalues: number[];
-  convexAtMeans: boolean;
-  violatingObservations: number;
-  violationShare: number;
-  binding?: boolean;
-  iterations?: number;
-  converged?: boolean;
 }
 
 export interface MonotonicityReport {
