@@ -152,3 +152,44 @@ export async function shot(page: Page, name: string): Promise<void> {
   await page.screenshot({ path: join(SHOTS, `${name}.png`), fullPage: true });
 }
 
+
+/**
+ * Makes sure a fitted model run exists, through the API as the signed-in planner: a finished run is
+ * taken (of a model holding every item in `needs`, the largest such model first), else a model is
+ * defined with `definition` and fitted. Answers what happened: "run #7 had finished", "run #9
+ * fitted", or why not.
+ */
+export async function ensureFittedRun(page: Page, options: { name: string; definition: unknown; needs?: string[]; timeoutMs: number }): Promise<string> {
+  // Plain script text: tsx would wrap named inner functions in a helper the page does not have.
+  return (await page.evaluate(`(async () => {
+    const definition = ${JSON.stringify(options.definition)};
+    const needs = ${JSON.stringify(options.needs ?? [])};
+    const token = decodeURIComponent((document.cookie.split('; ').find((c) => c.startsWith('XSRF-TOKEN=')) || '').split('=')[1] || '');
+    const post = async (url, body) => {
+      const r = await fetch(url, {
+        method: 'POST',
+        headers: body === undefined ? { 'X-XSRF-TOKEN': token } : { 'X-XSRF-TOKEN': token, 'Content-Type': 'application/json' },
+        body: body === undefined ? undefined : JSON.stringify(body),
+      });
+      return { status: r.status, body: await r.json().catch(() => null) };
+    };
+    const models = await (await fetch('/api/models')).json();
+    const fits = models
+      .filter((m) => needs.every((item) => m.definition.items.includes(item)))
+      .sort((a, b) => (needs.length ? b.definition.items.length - a.definition.items.length : 0))
+      .flatMap((m) => m.runs.filter((r) => r.status === 'succeeded'));
+    if (fits.length) return 'run #' + fits[0].id + ' had finished';
+    const model = await post('/api/models', { name: ${JSON.stringify(options.name)}, definition });
+    if (model.status !== 201) return 'POST /api/models answered ' + model.status;
+    const run = await post('/api/models/' + model.body.id + '/runs');
+    if (run.status !== 202) return 'POST /api/models/:id/runs answered ' + run.status;
+    const deadline = Date.now() + ${options.timeoutMs};
+    while (Date.now() < deadline) {
+      const s = await (await fetch('/api/model-runs/' + run.body.id + '/status')).json();
+      if (s.status === 'succeeded') return 'run #' + run.body.id + ' fitted';
+      if (s.status === 'failed' || s.status === 'cancelled') return 'run #' + run.body.id + ' ' + s.status + ': ' + s.error;
+      await new Promise((r) => setTimeout(r, 500));
+    }
+    return 'run #' + run.body.id + ' did not finish in time';
+  })()`)) as string;
+}

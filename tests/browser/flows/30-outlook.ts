@@ -1,6 +1,6 @@
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
-import { assert, assertEqual, check, mainNav, shot, signIn, signOut } from '../harness.js';
+import { assert, assertEqual, check, ensureFittedRun, mainNav, shot, signIn, signOut } from '../harness.js';
 
 /** A fit and a projection take seconds on the demo co-op, longer while other work shares the two cores. */
 const JOB_TIMEOUT_MS = 180_000;
@@ -46,39 +46,7 @@ async function gridRows(grid: ReturnType<Page['locator']>): Promise<number> {
 const getJson = <T>(page: Page, url: string) => page.evaluate((u) => fetch(u).then((r) => r.json()), url) as Promise<T>;
 
 /** The run the flow projects with: a finished one covering wheat and nitrogen, else one fitted now through the API. */
-async function ensureRun(page: Page): Promise<string> {
-  // Plain script text: tsx would wrap named inner functions in a helper the page does not have.
-  return (await page.evaluate(`(async () => {
-    const definition = ${JSON.stringify(DEFINITION)};
-    const token = decodeURIComponent((document.cookie.split('; ').find((c) => c.startsWith('XSRF-TOKEN=')) || '').split('=')[1] || '');
-    const post = async (url, body) => {
-      const r = await fetch(url, {
-        method: 'POST',
-        headers: body === undefined ? { 'X-XSRF-TOKEN': token } : { 'X-XSRF-TOKEN': token, 'Content-Type': 'application/json' },
-        body: body === undefined ? undefined : JSON.stringify(body),
-      });
-      return { status: r.status, body: await r.json().catch(() => null) };
-    };
-    const models = await (await fetch('/api/models')).json();
-    const fits = models
-      .filter((m) => m.definition.items.includes('wheat') && m.definition.items.includes('nitrogen'))
-      .sort((a, b) => b.definition.items.length - a.definition.items.length)
-      .flatMap((m) => m.runs.filter((r) => r.status === 'succeeded'));
-    if (fits.length) return 'run #' + fits[0].id + ' had finished';
-    const model = await post('/api/models', { name: 'Outlook model', definition });
-    if (model.status !== 201) return 'POST /api/models answered ' + model.status;
-    const run = await post('/api/models/' + model.body.id + '/runs');
-    if (run.status !== 202) return 'POST /api/models/:id/runs answered ' + run.status;
-    const deadline = Date.now() + ${JOB_TIMEOUT_MS};
-    while (Date.now() < deadline) {
-      const s = await (await fetch('/api/model-runs/' + run.body.id + '/status')).json();
-      if (s.status === 'succeeded') return 'run #' + run.body.id + ' fitted';
-      if (s.status === 'failed' || s.status === 'cancelled') return 'run #' + run.body.id + ' ' + s.status + ': ' + s.error;
-      await new Promise((r) => setTimeout(r, 500));
-    }
-    return 'run #' + run.body.id + ' did not finish in time';
-  })()`)) as string;
-}
+const ensureRun = (page: Page) => ensureFittedRun(page, { name: 'Outlook model', definition: DEFINITION, needs: ['wheat', 'nitrogen'], timeoutMs: JOB_TIMEOUT_MS });
 
 /** Issue 6: a planner sets expectations, projects and publishes the 2026/27 outlook; the demo member reads only their own farm. */
 export default async function outlook({ base, page }: Harness): Promise<void> {

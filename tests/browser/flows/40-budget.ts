@@ -5,7 +5,7 @@ import ExcelJS from 'exceljs';
 import Papa from 'papaparse';
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
-import { assert, assertEqual, check, mainNav, shot, signIn, signOut } from '../harness.js';
+import { assert, assertEqual, check, ensureFittedRun, mainNav, shot, signIn, signOut } from '../harness.js';
 
 /** A fit takes seconds on the demo co-op, longer while other fits share the two cores. */
 const RUN_TIMEOUT_MS = 180_000;
@@ -89,34 +89,7 @@ export default async function budget({ base, page }: Harness): Promise<void> {
   const plannerIn = await check('the planner signs in to make sure a model run has finished', () => signIn(page, base, 'planner@example.org'));
   if (!plannerIn) return;
   const runReady = await check('a finished model run exists (the planner fits one through the API if none has)', async () => {
-    // Plain script text: tsx would wrap named inner functions in a helper the page does not have.
-    const outcome = (await page.evaluate(`(async () => {
-      const definition = ${JSON.stringify(DEFINITION)};
-      const token = decodeURIComponent((document.cookie.split('; ').find((c) => c.startsWith('XSRF-TOKEN=')) || '').split('=')[1] || '');
-      const post = async (url, body) => {
-        const r = await fetch(url, {
-          method: 'POST',
-          headers: body === undefined ? { 'X-XSRF-TOKEN': token } : { 'X-XSRF-TOKEN': token, 'Content-Type': 'application/json' },
-          body: body === undefined ? undefined : JSON.stringify(body),
-        });
-        return { status: r.status, body: await r.json().catch(() => null) };
-      };
-      const models = await (await fetch('/api/models')).json();
-      const done = models.flatMap((m) => m.runs).find((r) => r.status === 'succeeded');
-      if (done) return 'run #' + done.id + ' had finished';
-      const model = await post('/api/models', { name: 'Fertiliser budget model', definition });
-      if (model.status !== 201) return 'POST /api/models answered ' + model.status;
-      const run = await post('/api/models/' + model.body.id + '/runs');
-      if (run.status !== 202) return 'POST /api/models/:id/runs answered ' + run.status;
-      const deadline = Date.now() + ${RUN_TIMEOUT_MS};
-      while (Date.now() < deadline) {
-        const s = await (await fetch('/api/model-runs/' + run.body.id + '/status')).json();
-        if (s.status === 'succeeded') return 'run #' + run.body.id + ' fitted';
-        if (s.status === 'failed' || s.status === 'cancelled') return 'run #' + run.body.id + ' ' + s.status + ': ' + s.error;
-        await new Promise((r) => setTimeout(r, 500));
-      }
-      return 'run #' + run.body.id + ' did not finish in time';
-    })()`)) as string;
+    const outcome = await ensureFittedRun(page, { name: 'Fertiliser budget model', definition: DEFINITION, timeoutMs: RUN_TIMEOUT_MS });
     assert(/had finished|fitted/.test(outcome), outcome);
   });
   const versions = (await page.evaluate(() => fetch('/api/outlooks/versions').then((r) => r.json()))) as { id: number; title: string }[];
