@@ -48,3 +48,132 @@ export interface MixResult {
   lpOverSupply: NutrientAmounts;
   warnings: string[];
 }
+
+export type SourceKind = 'model-run' | 'manual' | 'outlook';
+export type ElasticitySource = 'model-run' | 'given' | 'outlook' | 'none';
+export type ProductForm = 'solid' | 'liquid' | 'gas';
+
+export interface BookingMonth {
+  /** YYYY-MM */
+  month: string;
+  /** Share of each product's tonnage booked this month, 0 < share ≤ 1; the shares sum to 1. */
+  share: number;
+  /** Paid at booking with the discount (default), or on terms after delivery. */
+  prepay: boolean;
+}
+
+export interface BookingPlan {
+  months: BookingMonth[];
+  prepayDiscountPct: number;
+  paymentTermsDays: number;
+  /** YYYY-MM when the product is taken and invoiced (tranches not prepaid). */
+  deliveryMonth: string;
+  /** Annual cost of the co-op's credit line, %, to weigh prepaying; null leaves it out. */
+  financingRatePct: number | null;
+}
+
+export interface Tranche {
+  bookingMonth: string;
+  productId: number;
+  name: string;
+  tonnes: number;
+  /** At the list price. */
+  listValue: number;
+  prepay: boolean;
+  discount: number;
+  paid: number;
+  /** YYYY-MM-DD */
+  payDate: string;
+  payMonth: string;
+  /** Interest on paying early, when a financing rate is given (prepaid tranches). */
+  financingCost: number | null;
+}
+
+export interface CashMonth {
+  month: string;
+  bookedTonnes: number;
+  /** Booked this month at list prices. */
+  bookedValue: number;
+  prepaid: number;
+  onTerms: number;
+  cash: number;
+  cumulative: number;
+}
+
+export interface CashSchedule {
+  months: CashMonth[];
+  tranches: Tranche[];
+  totals: {
+    listValue: number;
+    prepayDiscount: number;
+    cash: number;
+    financingCost: number | null;
+    /** Discount minus financing cost of the prepaid tranches. */
+    netPrepaySaving: number | null;
+    peakMonth: string | null;
+    peakCash: number;
+  };
+}
+
+export type ElasticityMatrix = Record<Nutrient, Record<Nutrient, number>>;
+
+export type PriceChanges = Partial<Record<Nutrient, number>>;
+
+/** A fertiliser product as a budget copies it. */
+export interface ProductCopy {
+  productId: number;
+  name: string;
+  nPct: number;
+  p2o5Pct: number;
+  k2oPct: number;
+  form: ProductForm;
+  pricePerT: number;
+  currency: string;
+  lotT: number;
+  supplier: string;
+  gradeSource: string;
+  priceNote: string;
+}
+
+export interface ScenarioResult {
+  name: string;
+  priceChanges: PriceChanges;
+  productPrices: { productId: number; name: string; changePct: number; pricePerT: number }[];
+  demand: NutrientAmounts;
+  demandElements: { p: number; k: number };
+  /** % change from the base demand. */
+  demandChangePct: NutrientAmounts;
+  /** The model re-evaluated exactly at the changed prices (model-run sources). */
+  modelDemand: NutrientAmounts | null;
+  mix: MixResult;
+  cash: CashSchedule;
+  totals: {
+    lpCost: number;
+    /** Lots at list prices. */
+    cost: number;
+    /** Paid, after prepayment discounts. */
+    cash: number;
+    prepayDiscount: number;
+    changeFromBasePct: number;
+  };
+}
+
+export interface BudgetResult {
+  softwareVersion: string;
+  currency: string;
+  units: { nutrient: string; product: string; price: string };
+  lotRule: LotRule;
+  source: { kind: SourceKind; detail: Record<string, unknown> };
+  demand: {
+    base: NutrientAmounts;
+    elements: { p: number; k: number };
+    elasticities: ElasticityMatrix | null;
+    elasticitySource: ElasticitySource;
+  };
+  referencePrices: { values: Record<Nutrient, number | null>; basis: Record<Nutrient, 'given' | 'model-run' | 'products' | 'none'> };
+  products: (ProductCopy & { grade: string; costPerKg: Record<Nutrient, number | null> })[];
+  scenarios: ScenarioResult[];
+  cautions: string[];
+  notes: string[];
+  warnings: string[];
+}

@@ -50,3 +50,14 @@ export interface CurvatureReport {
   iterations?: number;
   converged?: boolean;
 }
+
+/** Summary of projected quantities: supply for outputs, demand for inputs (both positive). */
+export interface QuantitySummary {
+  /** At θ̂ without residuals. */
+  point: number;
+  mean: number;
+  sd: number;
+  median: number;
+  p5: number;
+  p95: number;
+}

@@ -7,75 +7,17 @@
  * month to the day the invoice would have been due) against its discount.
  */
 import { DateTime } from 'luxon';
+import type { BookingMonth, BookingPlan, CashMonth, CashSchedule, Tranche } from '../../shared/budget-types.js';
 import { BudgetInputError } from './nutrients.js';
 
-export interface BookingMonth {
-  /** YYYY-MM */
-  month: string;
-  /** Share of each product's tonnage booked this month, 0 < share ≤ 1; the shares sum to 1. */
-  share: number;
-  /** Paid at booking with the discount (default), or on terms after delivery. */
-  prepay: boolean;
-}
+export type { BookingMonth, BookingPlan, CashMonth, CashSchedule, Tranche } from '../../shared/budget-types.js';
 
-export interface BookingPlan {
-  months: BookingMonth[];
-  prepayDiscountPct: number;
-  paymentTermsDays: number;
-  /** YYYY-MM when the product is taken and invoiced (tranches not prepaid). */
-  deliveryMonth: string;
-  /** Annual cost of the co-op's credit line, %, to weigh prepaying; null leaves it out. */
-  financingRatePct: number | null;
-}
 
 export interface CashLine {
   productId: number;
   name: string;
   tonnes: number;
   pricePerT: number;
-}
-
-export interface Tranche {
-  bookingMonth: string;
-  productId: number;
-  name: string;
-  tonnes: number;
-  /** At the list price. */
-  listValue: number;
-  prepay: boolean;
-  discount: number;
-  paid: number;
-  /** YYYY-MM-DD */
-  payDate: string;
-  payMonth: string;
-  /** Interest on paying early, when a financing rate is given (prepaid tranches). */
-  financingCost: number | null;
-}
-
-export interface CashMonth {
-  month: string;
-  bookedTonnes: number;
-  /** Booked this month at list prices. */
-  bookedValue: number;
-  prepaid: number;
-  onTerms: number;
-  cash: number;
-  cumulative: number;
-}
-
-export interface CashSchedule {
-  months: CashMonth[];
-  tranches: Tranche[];
-  totals: {
-    listValue: number;
-    prepayDiscount: number;
-    cash: number;
-    financingCost: number | null;
-    /** Discount minus financing cost of the prepaid tranches. */
-    netPrepaySaving: number | null;
-    peakMonth: string | null;
-    peakCash: number;
-  };
 }
 
 const MONTH = /^\d{4}-(0[1-9]|1[0-2])$/;

@@ -3,6 +3,7 @@
  * demand, the least-cost product mix in delivery lots and the booking and cash schedule. Pure and
  * deterministic: the same inputs (and software version) give the same result.
  */
+import type { BudgetResult, ProductCopy, ScenarioResult, SourceKind, ElasticitySource } from '../../shared/budget-types.js';
 import { VERSION } from '../version.js';
 import { cashSchedule, checkBookingPlan, type BookingPlan, type CashSchedule } from './booking.js';
 import { BUDGET_CAUTIONS, BUDGET_METHOD_NOTES } from './cautions.js';
@@ -10,28 +11,14 @@ import { BudgetInputError, elementsOf, gradeLabel, kgPerTonne, NUTRIENTS, type N
 import { solveProductMix, type LotRule, type MixProduct, type MixResult } from './product-mix.js';
 import { productPriceChangePct, referencePricesFromProducts, respondDemand, type ElasticityMatrix, type PriceChanges } from './scenarios.js';
 
-/** A fertiliser product as a budget copies it. */
-export interface ProductCopy {
-  productId: number;
-  name: string;
-  nPct: number;
-  p2o5Pct: number;
-  k2oPct: number;
-  form: 'solid' | 'liquid' | 'gas';
-  pricePerT: number;
-  currency: string;
-  lotT: number;
-  supplier: string;
-  gradeSource: string;
-  priceNote: string;
-}
+export type { BudgetResult, ProductCopy, ScenarioResult } from '../../shared/budget-types.js';
 
 /** The nutrient demand a source resolved to, with what the scenarios need from it. */
 export interface ResolvedSource {
-  kind: 'model-run' | 'manual' | 'outlook';
+  kind: SourceKind;
   demand: NutrientAmounts;
   elasticities: ElasticityMatrix | null;
-  elasticitySource: 'model-run' | 'given' | 'outlook' | 'none';
+  elasticitySource: ElasticitySource;
   /** Per kg of nutrient at the source's price point (a model run's nutrient item prices). */
   nutrientPrices: Partial<Record<Nutrient, number>>;
   /** What the source says about itself (run, prices, farms...), shown and exported as is. */
@@ -54,49 +41,6 @@ export interface BudgetComputeInput {
   scenarios: ScenarioSpec[];
   lotRule: LotRule;
   referencePrices?: Partial<Record<Nutrient, number>>;
-}
-
-export interface ScenarioResult {
-  name: string;
-  priceChanges: PriceChanges;
-  productPrices: { productId: number; name: string; changePct: number; pricePerT: number }[];
-  demand: NutrientAmounts;
-  demandElements: { p: number; k: number };
-  /** % change from the base demand. */
-  demandChangePct: NutrientAmounts;
-  /** The model re-evaluated exactly at the changed prices (model-run sources). */
-  modelDemand: NutrientAmounts | null;
-  mix: MixResult;
-  cash: CashSchedule;
-  totals: {
-    lpCost: number;
-    /** Lots at list prices. */
-    cost: number;
-    /** Paid, after prepayment discounts. */
-    cash: number;
-    prepayDiscount: number;
-    changeFromBasePct: number;
-  };
-}
-
-export interface BudgetResult {
-  softwareVersion: string;
-  currency: string;
-  units: { nutrient: string; product: string; price: string };
-  lotRule: LotRule;
-  source: { kind: ResolvedSource['kind']; detail: Record<string, unknown> };
-  demand: {
-    base: NutrientAmounts;
-    elements: { p: number; k: number };
-    elasticities: ElasticityMatrix | null;
-    elasticitySource: ResolvedSource['elasticitySource'];
-  };
-  referencePrices: { values: Record<Nutrient, number | null>; basis: Record<Nutrient, 'given' | 'model-run' | 'products' | 'none'> };
-  products: (ProductCopy & { grade: string; costPerKg: Record<Nutrient, number | null> })[];
-  scenarios: ScenarioResult[];
-  cautions: string[];
-  notes: string[];
-  warnings: string[];
 }
 
 function referencePrices(input: BudgetComputeInput, source: ResolvedSource): BudgetResult['referencePrices'] {

@@ -13,10 +13,9 @@
  *    per kg of nutrient), so urea follows the N change fully and DAP by its N and P2O5 value shares.
  *    An explicit product price change overrides this.
  */
+import type { ElasticityMatrix, PriceChanges } from '../../shared/budget-types.js';
 import { BudgetInputError, GRADE_FIELD, kgPerTonne, NUTRIENT_LABEL, NUTRIENTS, type Graded, type Nutrient, type NutrientAmounts } from './nutrients.js';
 
-export type ElasticityMatrix = Record<Nutrient, Record<Nutrient, number>>;
-export type PriceChanges = Partial<Record<Nutrient, number>>;
 
 /** Nutrient demand after price changes, by the constant-elasticity approximation. */
 export function respondDemand(base: NutrientAmounts, elasticities: ElasticityMatrix | null, changes: PriceChanges): NutrientAmounts {
@@ -33,6 +32,7 @@ export function respondDemand(base: NutrientAmounts, elasticities: ElasticityMat
   }
   return out;
 }
+export type { ElasticityMatrix, PriceChanges } from '../../shared/budget-types.js';
 
 export interface ReferencePrices {
   /** Per kg of N, P2O5, K2O; null for a nutrient no product carries. */

@@ -13,6 +13,7 @@
  * normals come in antithetic pairs (see antitheticNormals).
  * Projections are estimates, not advice.
  */
+import type { QuantitySummary } from '../../shared/estimation-types.js';
 import { leadingBlock } from './curvature.js';
 import { EstimationInputError } from './errors.js';
 import type { FitResult } from './fit.js';
@@ -48,16 +49,7 @@ export interface ProjectionOptions {
   residuals?: boolean;
 }
 
-/** Summary of projected quantities: supply for outputs, demand for inputs (both positive). */
-export interface QuantitySummary {
-  /** At θ̂ without residuals. */
-  point: number;
-  mean: number;
-  sd: number;
-  median: number;
-  p5: number;
-  p95: number;
-}
+export type { QuantitySummary } from '../../shared/estimation-types.js';
 
 export interface FarmProjection {
   id: string;

@@ -8,23 +8,9 @@ import { and, asc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { farmRecords, items, outlookVersionFarms, outlookVersions, seasons } from '../db/schema/index.js';
 import { priceSeries } from '../prices/prices-repository.js';
-import type { FarmOutlook } from './projection-service.js';
-import type { OutlookSnapshot } from './outlook-service.js';
+import type { Comparison, FarmOutlook, OutlookSnapshot } from '../../shared/outlook-types.js';
 
-export interface Comparison {
-  item: string;
-  name: string;
-  unit: string;
-  role: 'output' | 'input';
-  /** Base scenario: point projection and 5–95% band (for the co-op row, only when every farm reported). */
-  projected: number;
-  p5: number | null;
-  p95: number | null;
-  actual: number | null;
-  error: number | null;
-  errorPct: number | null;
-  withinBand: boolean | null;
-}
+export type { Comparison } from '../../shared/outlook-types.js';
 
 const pct = (projected: number, actual: number | null) => (actual !== null && actual !== 0 ? (100 * (projected - actual)) / actual : null);
 

@@ -1,6 +1,7 @@
 import { asc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { futuresQuotes, items, seasons } from '../db/schema/index.js';
+import type { ItemExpectation } from '../../shared/outlook-types.js';
 import { AppError } from '../core/app-error.js';
 import { priceSeries } from '../prices/prices-repository.js';
 import { getSettings } from '../settings/settings-service.js';
@@ -21,12 +22,7 @@ import {
 
 type ItemRow = typeof items.$inferSelect;
 
-export interface ItemExpectation extends ComputedExpectation {
-  name: string;
-  role: 'output' | 'input';
-  unit: string;
-  currency: string;
-}
+export type { ItemExpectation } from '../../shared/outlook-types.js';
 
 /** The data every method of one item draws on: the co-op's mean price per season before the target, and futures quotes. */
 export async function expectationData(db: Db, itemRows: ItemRow[], target: { label: string; startYear: number }): Promise<Map<number, ExpectationData>> {

@@ -11,15 +11,9 @@
  */
 import { linearRegression, linearRegressionLine } from 'simple-statistics';
 
-export type ExpectationMethod =
-  | { kind: 'last' }
-  | { kind: 'moving-average'; k: number; olympic?: boolean }
-  | { kind: 'trend'; seasons: number }
-  | { kind: 'adaptive'; lambda: number }
-  | { kind: 'futures-basis'; contract?: string | null; basisSeasons: number }
-  | { kind: 'manual'; value: number };
+import type { BandRule, ComputedExpectation, ErrorHistory, ExpectationMethod, ExpectationSetting, PastError, ScenarioRule } from '../../shared/outlook-types.js';
 
-export type BandRule = { kind: 'errors'; k: number } | { kind: 'percent'; pct: number } | { kind: 'manual'; low: number; high: number };
+export type { BandRule, ComputedExpectation, ErrorHistory, ExpectationMethod, ExpectationSetting, PastError, ScenarioRule } from '../../shared/outlook-types.js';
 
 /** One season's price: the co-op mean cash price (all delivery points and dates). */
 export interface PricePoint {
@@ -44,22 +38,6 @@ export interface ExpectationData {
   futures: FuturesBySeason;
   /** For explanations, e.g. "EUR/t". */
   priceUnit: string;
-}
-
-export interface PastError {
-  season: string;
-  expected: number;
-  actual: number;
-  /** 100 · (actual − expected) / expected */
-  errorPct: number;
-}
-
-export interface ErrorHistory {
-  seasons: PastError[];
-  /** Root mean square of the relative errors, in %. */
-  rmsPct: number | null;
-  /** Mean relative error, in % (positive: prices came out above the expectation). */
-  meanPct: number | null;
 }
 
 export interface MethodValue {
@@ -280,29 +258,6 @@ export function bandAround(base: number, rule: BandRule, errors: ErrorHistory, p
   return { low, high, explanation: `Low ${fmtPrice(low)} and high ${fmtPrice(high)} ${priceUnit}: ${why}.` };
 }
 
-export interface ExpectationSetting {
-  item: string;
-  method: ExpectationMethod;
-  band?: BandRule;
-  /** The planner's own words about the choice. */
-  note?: string;
-}
-
-export interface ComputedExpectation {
-  item: string;
-  method: ExpectationMethod;
-  methodLabel: string;
-  band: BandRule;
-  base: number;
-  low: number;
-  high: number;
-  priceUnit: string;
-  explanation: string;
-  note: string;
-  inputs: Record<string, unknown>;
-  errors: ErrorHistory;
-}
-
 export function defaultBand(method: ExpectationMethod): BandRule {
   return method.kind === 'manual' ? { kind: 'percent', pct: 10 } : { kind: 'errors', k: 1 };
 }
@@ -332,8 +287,6 @@ export function computeExpectation(setting: ExpectationSetting, data: Expectatio
     errors,
   };
 }
-
-export type ScenarioRule = 'margin' | 'uniform';
 
 /**
  * The three price scenarios. `margin`: low = outputs at their low and inputs at their high price (the

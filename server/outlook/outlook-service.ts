@@ -22,42 +22,13 @@ import {
   type OutlookRow,
   type ProjectionTables,
 } from './projection-service.js';
+import type { FullVersion, MemberVersion, OutlookSnapshot } from '../../shared/outlook-types.js';
 import { signUnsubscribe, unsubscribeSecret } from './unsubscribe-token.js';
 
 /** Where the e-mail's portal link points (the member's page with the published outlook). */
 export const PORTAL_PATH = '/my-farm/outlook';
 
-/** The co-op part of a published version: what every reader sees. */
-export interface OutlookSnapshot {
-  outlookId: number;
-  version: number;
-  season: { label: string; startYear: number };
-  title: string;
-  commentary: string;
-  publishedAt: string;
-  publishedBy: string | null;
-  coopName: string;
-  currency: string;
-  model: {
-    runId: number;
-    modelId: number;
-    modelName: string;
-    form: string;
-    numeraire: string;
-    factors: string[];
-    dataHash: string;
-    softwareVersion: string;
-    observations: number;
-    sampleSeasons: { first: number; last: number };
-    fittedAt: string | null;
-  };
-  expectations: ItemExpectation[];
-  scenarioRule: ScenarioRule;
-  scenarioRuleText: string;
-  scenarios: ProjectionTables['scenarios'];
-  projection: { draws: number; seed: number; trendSeason: number | null; computedAt: string; farmsProjected: number; coop: CoopProjection };
-  cautions: string[];
-}
+export type { OutlookSnapshot } from '../../shared/outlook-types.js';
 
 // ---------------------------------------------------------------------------------------------
 // Drafts
@@ -419,7 +390,7 @@ async function versionRow(db: Db, versionId: number) {
 }
 
 /** A published version in full (co-op part and every farm): planners, treasurers, admins. */
-export async function fullVersion(db: Db, versionId: number) {
+export async function fullVersion(db: Db, versionId: number): Promise<FullVersion> {
   const row = await versionRow(db, versionId);
   const parts = await db.select({ data: outlookVersionFarms.data }).from(outlookVersionFarms).where(eq(outlookVersionFarms.versionId, versionId));
   const farmsOut = parts.map((p) => p.data as FarmOutlook).sort((a, b) => a.code.localeCompare(b.code));
@@ -431,7 +402,7 @@ export async function fullVersion(db: Db, versionId: number) {
  * farm comes from the session (never from the request), and the query itself is held to it.
  * Without an id: the newest version of the latest season that has one.
  */
-export async function memberVersion(db: Db, farmId: number | null, versionId?: number) {
+export async function memberVersion(db: Db, farmId: number | null, versionId?: number): Promise<MemberVersion> {
   let row: typeof outlookVersions.$inferSelect | undefined;
   if (versionId) row = await versionRow(db, versionId);
   else

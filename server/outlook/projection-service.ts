@@ -14,6 +14,7 @@ import type { JobHandler } from '../jobs/job-runner.js';
 import type { WorkerPool } from '../jobs/worker-pool.js';
 import type { FitRunResult } from '../jobs/fit-task.js';
 import type { FitResult, ProjectionResult, QuantitySummary } from '../estimation/index.js';
+import type { ByScenario, CapacityComparison, CoopProjection, FarmOutlook, History, ItemProjection, ProjectionTables, ScenarioName, TotalBand } from '../../shared/outlook-types.js';
 import { hashOf } from '../models/model-data.js';
 import { getSettings } from '../settings/settings-service.js';
 import { scenarioPrices, SCENARIO_RULE_TEXT, type ScenarioRule } from './expectations.js';
@@ -24,78 +25,7 @@ import { isDeliveredInTonnes, tonnesOf } from './units.js';
 export const OUTLOOK_PROJECTION_JOB = 'outlook-projection';
 
 export type OutlookRow = typeof outlooks.$inferSelect;
-export type ScenarioName = 'low' | 'base' | 'high';
-export type ByScenario<T> = Record<string, T>;
-
-export interface ItemProjection {
-  item: string;
-  name: string;
-  role: 'output' | 'input';
-  unit: string;
-  /** Supply (outputs) or demand (inputs), positive, per scenario: point at θ̂, mean, sd, median, 5% and 95%. */
-  scenarios: ByScenario<QuantitySummary>;
-  /** The same in tonnes, for items counted by mass (t, kg N, ...); null for litres and hours. */
-  tonnes: { unit: string; scenarios: ByScenario<QuantitySummary> } | null;
-}
-
-export interface History {
-  seasons: string[];
-  /** Per item code, the recorded quantity per season (null when nothing was recorded). */
-  items: Record<string, (number | null)[]>;
-}
-
-export interface TotalBand {
-  point: number;
-  mean: number;
-  /** Sums of the items' 5% and 95% points: a conservative band (it assumes the items move together). */
-  p5: number;
-  p95: number;
-}
-
-export interface CapacityComparison {
-  storageCapacityT: number;
-  handlingCapacityTPerDay: number;
-  /** Per scenario: deliveries as a share of storage capacity, and days of intake at full handling capacity. */
-  scenarios: ByScenario<{ storageShare: TotalBand | null; handlingDays: TotalBand | null }>;
-  note: string;
-}
-
-export interface CoopProjection {
-  items: ItemProjection[];
-  /** Outputs delivered in tonnes (grain and oilseed), summed. */
-  deliveries: { unit: 't'; items: string[]; scenarios: ByScenario<TotalBand>; bandNote: string } | null;
-  capacity: CapacityComparison | null;
-  history: History;
-}
-
-export interface FarmOutlook {
-  farmId: number;
-  code: string;
-  name: string;
-  region: string;
-  /** Fixed factors the farm was projected at (land in ha, trend). */
-  fixed: Record<string, number>;
-  fixedSource: string;
-  items: ItemProjection[];
-  history: History;
-}
-
-export interface ProjectionTables {
-  inputsHash: string;
-  computedAt: string;
-  season: { label: string; startYear: number };
-  modelRunId: number;
-  draws: number;
-  seed: number;
-  /** The season year the trend was set to (null when the model has no trend). */
-  trendSeason: number | null;
-  scenarioRule: ScenarioRule;
-  scenarioRuleText: string;
-  scenarios: { name: string; prices: Record<string, number>; curvatureViolations: number; curvatureViolationShare: number }[];
-  coop: CoopProjection;
-  farms: FarmOutlook[];
-  cautions: string[];
-}
+export type { ByScenario, CapacityComparison, CoopProjection, FarmOutlook, History, ItemProjection, ProjectionTables, ScenarioName, TotalBand } from '../../shared/outlook-types.js';
 
 /** Everything the projection's numbers depend on; the published version must match it. */
 export function draftInputsHash(o: OutlookRow): string {

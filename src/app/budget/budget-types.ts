@@ -1,19 +1,31 @@
-import type { LotRule, MixResult, Nutrient, NutrientAmounts } from '../../../shared/budget-types';
+import type { BudgetResult as EngineBudgetResult, ElasticityMatrix, LotRule, Nutrient, NutrientAmounts, PriceChanges, ProductCopy, ProductForm, SourceKind } from '../../../shared/budget-types';
 import type { UnitSystem } from '../../../shared/units';
 
 /**
- * The shapes the budget API answers with and accepts (server/budget/budget-compute.ts,
- * budget-schemas.ts, budget-service.ts, booking.ts). Declared here because those server modules
- * import Node-only code the client build cannot type-check; only the fields the screens read or
- * send are listed. The nutrients and the product mix are shared with the server (shared/budget-types.ts).
+ * The shapes the budget API answers with and accepts. The engine's result (nutrients, product mix,
+ * booking and cash, scenarios) is declared once in shared/budget-types.ts; the request bodies follow
+ * server/budget/budget-schemas.ts (zod) and the list rows server/budget/budget-service.ts, with the
+ * fields the screens read or send.
  */
 
-export { NUTRIENT_LABEL, NUTRIENTS, type LotRule, type MixLine, type MixResult, type Nutrient, type NutrientAmounts } from '../../../shared/budget-types';
-
-export type PriceChanges = Partial<Record<Nutrient, number>>;
-export type ElasticityMatrix = Record<Nutrient, Record<Nutrient, number>>;
-export type SourceKind = 'model-run' | 'manual' | 'outlook';
-export type ProductForm = 'solid' | 'liquid' | 'gas';
+export {
+  NUTRIENT_LABEL,
+  NUTRIENTS,
+  type CashMonth,
+  type CashSchedule,
+  type ElasticityMatrix,
+  type LotRule,
+  type MixLine,
+  type MixResult,
+  type Nutrient,
+  type NutrientAmounts,
+  type PriceChanges,
+  type ProductCopy,
+  type ProductForm,
+  type ScenarioResult,
+  type SourceKind,
+  type Tranche,
+} from '../../../shared/budget-types';
 
 /** `GET /api/fertiliser-products` rows. Prices per tonne of product, lots in tonnes (metric, as stored). */
 export interface FertiliserProduct {
@@ -94,59 +106,6 @@ export interface BudgetInput {
 
 // --- results ----------------------------------------------------------------------------------
 
-/** A product as a budget copied it (metric: per t, t). */
-export interface ProductCopy {
-  productId: number;
-  name: string;
-  nPct: number;
-  p2o5Pct: number;
-  k2oPct: number;
-  form: ProductForm;
-  pricePerT: number;
-  currency: string;
-  lotT: number;
-  supplier: string;
-  gradeSource: string;
-  priceNote: string;
-}
-
-export interface CashMonth {
-  /** YYYY-MM */
-  month: string;
-  bookedTonnes: number;
-  bookedValue: number;
-  prepaid: number;
-  onTerms: number;
-  cash: number;
-  cumulative: number;
-}
-
-export interface CashSchedule {
-  months: CashMonth[];
-  totals: {
-    listValue: number;
-    prepayDiscount: number;
-    cash: number;
-    financingCost: number | null;
-    netPrepaySaving: number | null;
-    peakMonth: string | null;
-    peakCash: number;
-  };
-}
-
-export interface ScenarioResult {
-  name: string;
-  priceChanges: PriceChanges;
-  productPrices: { productId: number; name: string; changePct: number; pricePerT: number }[];
-  demand: NutrientAmounts;
-  demandElements: { p: number; k: number };
-  demandChangePct: NutrientAmounts;
-  modelDemand: NutrientAmounts | null;
-  mix: MixResult;
-  cash: CashSchedule;
-  totals: { lpCost: number; cost: number; cash: number; prepayDiscount: number; changeFromBasePct: number };
-}
-
 /** What a source says about itself (`result.source.detail`); which fields appear depends on the kind. */
 export interface SourceDetail {
   runId?: number;
@@ -171,28 +130,9 @@ export interface SourceDetail {
 }
 
 /** A stored or previewed result, in the unit system asked for (`unitSystem`). */
-export interface BudgetResult {
-  softwareVersion: string;
-  currency: string;
+export interface BudgetResult extends Omit<EngineBudgetResult, 'source'> {
   unitSystem: UnitSystem;
-  units: { nutrient: string; product: string; price: string };
-  lotRule: LotRule;
   source: { kind: SourceKind; detail: SourceDetail };
-  demand: {
-    base: NutrientAmounts;
-    elements: { p: number; k: number };
-    elasticities: ElasticityMatrix | null;
-    elasticitySource: 'model-run' | 'given' | 'outlook' | 'none';
-  };
-  referencePrices: {
-    values: Record<Nutrient, number | null>;
-    basis: Record<Nutrient, 'given' | 'model-run' | 'products' | 'none'>;
-  };
-  products: (ProductCopy & { grade: string; costPerKg: Record<Nutrient, number | null> })[];
-  scenarios: ScenarioResult[];
-  cautions: string[];
-  notes: string[];
-  warnings: string[];
 }
 
 /** The stored inputs, as `GET /api/budgets/:id` and the preview return them beside the result. */

@@ -1,63 +1,12 @@
 /**
- * The shapes the season-outlook API answers with (server/outlook/API.md; the server types live in
- * server/outlook/{expectations,expectations-service,projection-service,outlook-service,accountability}.ts).
- * Declared here because those server modules import the database layer, which the client build
- * cannot type-check; only the fields the screens read are listed.
+ * The shapes the season-outlook API answers with. The data the server also builds on (expectations,
+ * projection tables, published snapshots) is declared once in shared/outlook-types.ts; the rest are
+ * answers the server assembles in its routes (server/outlook/API.md), listed with the fields the
+ * screens read.
  */
+import type { Comparison, ErrorHistory, ExpectationMethod, ExpectationSetting, ItemExpectation, ProjectionTables, ScenarioRule } from '../../../shared/outlook-types';
 
-export type ExpectationKind = 'last' | 'moving-average' | 'trend' | 'adaptive' | 'futures-basis' | 'manual';
-
-export type ExpectationMethod =
-  | { kind: 'last' }
-  | { kind: 'moving-average'; k: number; olympic?: boolean }
-  | { kind: 'trend'; seasons: number }
-  | { kind: 'adaptive'; lambda: number }
-  | { kind: 'futures-basis'; contract?: string | null; basisSeasons: number }
-  | { kind: 'manual'; value: number };
-
-export type BandRule = { kind: 'errors'; k: number } | { kind: 'percent'; pct: number } | { kind: 'manual'; low: number; high: number };
-
-/** What the planner sets for one item (`PUT /api/outlooks/:id/expectations` sends a list of these). */
-export interface ExpectationSetting {
-  item: string;
-  method: ExpectationMethod;
-  band?: BandRule;
-  note?: string;
-}
-
-export interface PastError {
-  season: string;
-  expected: number;
-  actual: number;
-  /** 100 · (actual − expected) / expected */
-  errorPct: number;
-}
-
-export interface ErrorHistory {
-  seasons: PastError[];
-  rmsPct: number | null;
-  meanPct: number | null;
-}
-
-/** One item's expected price as computed and stored with the draft (and frozen in a version). */
-export interface ItemExpectation {
-  item: string;
-  name: string;
-  role: 'output' | 'input';
-  unit: string;
-  currency: string;
-  /** e.g. "EUR/t" */
-  priceUnit: string;
-  method: ExpectationMethod;
-  methodLabel: string;
-  band: BandRule;
-  base: number;
-  low: number;
-  high: number;
-  explanation: string;
-  note: string;
-  errors: ErrorHistory;
-}
+export * from '../../../shared/outlook-types';
 
 /** `GET /api/outlooks/:id/expectation-methods?item=`: every candidate method side by side. */
 export interface MethodComparison {
@@ -115,8 +64,6 @@ export interface OutlookListRow {
   latestVersion: { id: number; version: number; publishedAt: string } | null;
 }
 
-export type ScenarioRule = 'margin' | 'uniform';
-
 /** `GET /api/outlooks/:id`. */
 export interface OutlookDraft {
   id: number;
@@ -147,135 +94,9 @@ export interface OutlookPatch {
   seed?: number;
 }
 
-/** Engine summary of a simulated quantity, positive (supply or demand), in item units. */
-export interface QuantitySummary {
-  /** At the estimated parameters, without residuals. */
-  point: number;
-  mean: number;
-  sd: number;
-  median: number;
-  p5: number;
-  p95: number;
-}
-
-export type ScenarioName = 'low' | 'base' | 'high';
-export const SCENARIO_NAMES: readonly ScenarioName[] = ['low', 'base', 'high'];
-
-export interface ItemProjection {
-  item: string;
-  name: string;
-  role: 'output' | 'input';
-  unit: string;
-  scenarios: Record<string, QuantitySummary>;
-  tonnes: { unit: string; scenarios: Record<string, QuantitySummary> } | null;
-}
-
-export interface History {
-  seasons: string[];
-  items: Record<string, (number | null)[]>;
-}
-
-export interface TotalBand {
-  point: number;
-  mean: number;
-  p5: number;
-  p95: number;
-}
-
-export interface CoopProjection {
-  items: ItemProjection[];
-  deliveries: { unit: 't'; items: string[]; scenarios: Record<string, TotalBand>; bandNote: string } | null;
-  capacity: {
-    storageCapacityT: number;
-    handlingCapacityTPerDay: number;
-    scenarios: Record<string, { storageShare: TotalBand | null; handlingDays: TotalBand | null }>;
-    note: string;
-  } | null;
-  history: History;
-}
-
-export interface FarmOutlook {
-  farmId: number;
-  code: string;
-  name: string;
-  region: string;
-  fixed: Record<string, number>;
-  fixedSource: string;
-  items: ItemProjection[];
-  history: History;
-}
-
-export interface ScenarioPrices {
-  name: string;
-  prices: Record<string, number>;
-  curvatureViolations: number;
-  curvatureViolationShare: number;
-}
-
-export interface ProjectionTables {
-  inputsHash: string;
-  computedAt: string;
-  season: { label: string; startYear: number };
-  modelRunId: number;
-  draws: number;
-  seed: number;
-  trendSeason: number | null;
-  scenarioRule: ScenarioRule;
-  scenarioRuleText: string;
-  scenarios: ScenarioPrices[];
-  coop: CoopProjection;
-  farms: FarmOutlook[];
-  cautions: string[];
-}
-
 /** `GET /api/outlooks/:id/projection`. */
 export interface ProjectionAnswer extends ProjectionState {
   result: ProjectionTables | null;
-}
-
-export interface ModelFacts {
-  runId: number;
-  modelId: number;
-  modelName: string;
-  form: string;
-  numeraire: string;
-  factors: string[];
-  dataHash: string;
-  softwareVersion: string;
-  observations: number;
-  sampleSeasons: { first: number; last: number };
-  fittedAt: string | null;
-}
-
-/** The co-op part of a published version: what every reader sees. */
-export interface OutlookSnapshot {
-  id: number;
-  outlookId: number;
-  version: number;
-  season: { label: string; startYear: number };
-  title: string;
-  commentary: string;
-  publishedAt: string;
-  publishedBy: string | null;
-  coopName: string;
-  currency: string;
-  model: ModelFacts;
-  expectations: ItemExpectation[];
-  scenarioRule: ScenarioRule;
-  scenarioRuleText: string;
-  scenarios: ScenarioPrices[];
-  projection: { draws: number; seed: number; trendSeason: number | null; computedAt: string; farmsProjected: number; coop: CoopProjection };
-  cautions: string[];
-}
-
-/** `GET /api/outlooks/versions/:versionId` (planner, treasurer, admin): every farm. */
-export interface FullVersion extends OutlookSnapshot {
-  farms: FarmOutlook[];
-}
-
-/** `GET /api/portal/outlook[/versions/:id]` (member): their own farm only. */
-export interface MemberVersion extends OutlookSnapshot {
-  farm: FarmOutlook | null;
 }
 
 export interface MemberVersionRow {
@@ -343,20 +164,6 @@ export interface FuturesQuoteInput {
   currency: string;
   quotedOn: string;
   source: string;
-}
-
-export interface Comparison {
-  item: string;
-  name: string;
-  unit: string;
-  role: 'output' | 'input';
-  projected: number;
-  p5: number | null;
-  p95: number | null;
-  actual: number | null;
-  error: number | null;
-  errorPct: number | null;
-  withinBand: boolean | null;
 }
 
 export interface AccountabilitySeason {
