@@ -3,7 +3,7 @@
  * Field names are also the column headers of our exports, so an exported file maps itself.
  */
 import type { ImportField, ImportKind, Lookups } from './import-types.js';
-import { headerParts } from './units.js';
+import { headerParts } from '../../shared/unit-names.js';
 
 export interface FieldDef extends ImportField {
   /** Header spellings (compared after `normalHeader`) suggested for this field. */

@@ -28,8 +28,8 @@ import type {
 import { ImportFileError } from './import-file-error.js';
 import { IMPORT_LIMITS, type ImportLimits } from './import-limits.js';
 import { columnLetter, FACTOR_NAME, fieldsFor, fixedFactorName, normalHeader, suggestMapping, type FieldDef } from './import-fields.js';
-import { parseCurrency, parseDecimal, parseIsoDate, parseSeason, quote, unescapeFormula, type Parsed, type SeasonRef } from './cell-parsers.js';
-import { headerParts, sameUnit } from './units.js';
+import { parseCurrency, parseDecimal, parseIsoDate, parseSeason, quote, unescapeFormula, type Parsed, type SeasonRef } from '../../shared/cell-parsers.js';
+import { headerParts, sameUnit } from '../../shared/unit-names.js';
 import { readTable, type TableMeta, type TableSink } from './table-reader.js';
 import { newBuiltWrites } from './packed-rows.js';
 

@@ -8,7 +8,7 @@ import type { Db } from '../db/client.js';
 import { users } from '../db/schema/index.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { getSettings } from '../settings/settings-service.js';
-import { mailPreferencesSchema, unsubscribeParamSchema } from './outlook-schemas.js';
+import { mailPreferencesSchema, unsubscribeParamSchema } from '../../shared/outlook-schemas.js';
 import { unsubscribeSecret, verifyUnsubscribe } from './unsubscribe-token.js';
 
 async function preferences(db: Db, userId: number) {

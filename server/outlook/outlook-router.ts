@@ -18,7 +18,7 @@ import {
   outlookPatchSchema,
   publishSchema,
   versionParamSchema,
-} from './outlook-schemas.js';
+} from '../../shared/outlook-schemas.js';
 import { compareMethods } from './expectations-service.js';
 import { accountability } from './accountability.js';
 import {

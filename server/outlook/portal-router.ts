@@ -2,7 +2,7 @@ import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
 import { listVersions, memberVersion } from './outlook-service.js';
-import { versionParamSchema } from './outlook-schemas.js';
+import { versionParamSchema } from '../../shared/outlook-schemas.js';
 
 /**
  * `/api/portal`: the member portal. Only published versions exist here, and of the farm figures

@@ -4,7 +4,7 @@
  * no mass here (diesel density varies by grade; common practice, no source), so they get none.
  * If a shared units module appears in shared/, this should move there.
  */
-import { normalUnit } from '../imports/units.js';
+import { normalUnit } from '../../shared/unit-names.js';
 
 export interface TonnesConversion {
   unit: string;

@@ -3,8 +3,8 @@ import type { PriceInput } from '../../../shared/data-schemas';
 import { priceSchema } from '../../../shared/data-schemas';
 // The import's own cell parsers and unit comparison (pure TypeScript, luxon only), so a pasted block
 // and an uploaded file are judged by the same rules in the same words.
-import { parseCurrency, parseDecimal, parseIsoDate, quote } from '../../../server/imports/cell-parsers';
-import { sameUnit } from '../../../server/imports/units';
+import { parseCurrency, parseDecimal, parseIsoDate, quote } from '../../../shared/cell-parsers';
+import { sameUnit } from '../../../shared/unit-names';
 import type { Lookups } from './reference-store';
 
 /** One problem of a pasted block: `row` counts the pasted lines from 1 (a header line included), `column` as headed. */

@@ -13,9 +13,9 @@ import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/m
 import { MatInput } from '@angular/material/input';
 import type { FarmSummary } from '../../../shared/api-types';
 import { farmSchema } from '../../../shared/data-schemas';
-import { ApiRequestError, errorMessage } from '../core/api-error';
 import { DataDeskApi, type FarmRow } from '../data-desk/data-desk-api';
-import { applyServerDetails, zodValidator } from '../shared/zod-validator';
+import { saveAndClose } from '../shared/dialog-save';
+import { zodValidator } from '../shared/zod-validator';
 
 export interface FarmDialogData {
   farm: FarmSummary | null;
@@ -128,16 +128,12 @@ export class FarmDialog {
     }
     const v = this.form.getRawValue();
     const body = { code: v.code.trim(), name: v.name.trim(), region: v.region.trim(), landHa: Number(v.landHa) };
-    this.failure.set(null);
-    this.saving.set(true);
-    try {
-      this.#dialogRef.close(this.farm ? await this.#api.updateFarm(this.farm.id, body) : await this.#api.createFarm(body));
-    } catch (error) {
-      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
-        this.failure.set(error instanceof ApiRequestError && error.status === 409 ? `A farm with the code “${body.code}” exists already.` : errorMessage(error));
-      }
-    } finally {
-      this.saving.set(false);
-    }
+    await saveAndClose(() => this.farm ? this.#api.updateFarm(this.farm.id, body) : this.#api.createFarm(body), {
+      ref: this.#dialogRef,
+      saving: this.saving,
+      failure: this.failure,
+      controls: this.form.controls,
+      conflict: `A farm with the code “${body.code}” exists already.`,
+    });
   }
 }

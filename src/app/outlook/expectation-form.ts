@@ -6,7 +6,7 @@ import { MatCheckbox } from '@angular/material/checkbox';
 import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
-import { bandSchema, methodSchema } from '../../../server/outlook/outlook-schemas';
+import { bandSchema, methodSchema } from '../../../shared/outlook-schemas';
 import type { BandRule, ExpectationKind, ExpectationMethod, ExpectationSetting } from './outlook-types';
 
 /** The methods in the order the planner meets them, with a line on what each does. */
@@ -125,7 +125,7 @@ const BAND_FIELD: Record<string, keyof ExpectationFormValue> = { k: 'bandK', pct
 export type SettingResult = { ok: true; setting: ExpectationSetting } | { ok: false; errors: Partial<Record<keyof ExpectationFormValue, string>> };
 
 /**
- * The form's value checked with the API's own schemas (server/outlook/outlook-schemas.ts), so the
+ * The form's value checked with the API's own schemas (shared/outlook-schemas.ts), so the
  * form says what the server would say, in the same words, before anything is sent.
  */
 export function settingFromForm(item: string, v: ExpectationFormValue): SettingResult {

@@ -10,7 +10,7 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { firstValueFrom } from 'rxjs';
 import type { Item, Season } from '../../../shared/api-types';
-import { futuresQuoteSchema } from '../../../server/outlook/outlook-schemas';
+import { futuresQuoteSchema } from '../../../shared/outlook-schemas';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
 import { applyServerDetails, zodValidator } from '../shared/zod-validator';

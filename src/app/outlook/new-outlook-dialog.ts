@@ -5,7 +5,7 @@ import { MAT_DIALOG_DATA, MatDialogActions, MatDialogClose, MatDialogContent, Ma
 import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
-import { seasonLabelSchema } from '../../../server/outlook/outlook-schemas';
+import { seasonLabelSchema } from '../../../shared/outlook-schemas';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { applyServerDetails, zodValidator } from '../shared/zod-validator';
 import { OutlookApi } from './outlook-api';

@@ -16,8 +16,8 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import { DateTime } from 'luxon';
 import type { PriceRow } from '../../../../shared/api-types';
 import { priceSchema } from '../../../../shared/data-schemas';
-import { ApiRequestError, errorMessage } from '../../core/api-error';
-import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+import { saveAndClose } from '../../shared/dialog-save';
+import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi } from '../data-desk-api';
 import type { Lookups } from '../reference-store';
 import { seasonSpan } from '../season-dates';
@@ -128,16 +128,13 @@ export class PriceDialog {
       this.failure.set(`${twin.itemName} at ${twin.deliveryPoint} on ${twin.observedOn} is already stored (${twin.price} ${twin.currency}); change that row in the grid instead.`);
       return;
     }
-    this.failure.set(null);
-    this.saving.set(true);
-    try {
-      this.#dialogRef.close(await this.#api.createPrices([body]));
-    } catch (error) {
+    await saveAndClose(() => this.#api.createPrices([body]), {
+      ref: this.#dialogRef,
+      saving: this.saving,
+      failure: this.failure,
+      controls: this.form.controls,
       // Field messages come back as body.rows.0.<field>.
-      const details = error instanceof ApiRequestError ? error.error.details?.map((d) => ({ ...d, path: d.path.replace(/^body\.rows\.0\./, '') })) : undefined;
-      if (!applyServerDetails(this.form.controls, details)) this.failure.set(errorMessage(error));
-    } finally {
-      this.saving.set(false);
-    }
+      detailPath: (path) => path.replace(/^body\.rows\.0\./, ''),
+    });
   }
 }

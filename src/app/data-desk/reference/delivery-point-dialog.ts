@@ -14,8 +14,8 @@ import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { DeliveryPoint } from '../../../../shared/api-types';
 import { deliveryPointSchema } from '../../../../shared/data-schemas';
-import { ApiRequestError, errorMessage } from '../../core/api-error';
-import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+import { saveAndClose } from '../../shared/dialog-save';
+import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi } from '../data-desk-api';
 
 /** Adds or edits a delivery point (an elevator, a store, a depot) or a price region. */
@@ -100,16 +100,12 @@ export class DeliveryPointDialog {
     }
     const v = this.form.getRawValue();
     const body = { name: v.name.trim(), kind: v.kind, region: v.region.trim() };
-    this.failure.set(null);
-    this.saving.set(true);
-    try {
-      this.#dialogRef.close(this.point ? await this.#api.updateDeliveryPoint(this.point.id, body) : await this.#api.createDeliveryPoint(body));
-    } catch (error) {
-      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
-        this.failure.set(error instanceof ApiRequestError && error.status === 409 ? `A delivery point named “${body.name}” exists already.` : errorMessage(error));
-      }
-    } finally {
-      this.saving.set(false);
-    }
+    await saveAndClose(() => this.point ? this.#api.updateDeliveryPoint(this.point.id, body) : this.#api.createDeliveryPoint(body), {
+      ref: this.#dialogRef,
+      saving: this.saving,
+      failure: this.failure,
+      controls: this.form.controls,
+      conflict: `A delivery point named “${body.name}” exists already.`,
+    });
   }
 }

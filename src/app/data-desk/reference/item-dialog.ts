@@ -15,8 +15,8 @@ import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { Item } from '../../../../shared/api-types';
 import { itemSchema } from '../../../../shared/data-schemas';
-import { ApiRequestError, errorMessage } from '../../core/api-error';
-import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+import { saveAndClose } from '../../shared/dialog-save';
+import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi, type ItemBody } from '../data-desk-api';
 
 export const CATEGORIES: { value: Item['category']; label: string }[] = [
@@ -119,17 +119,12 @@ export class ItemDialog {
       p2o5Pct: fert ? v.analysis.p2o5Pct : null,
       k2oPct: fert ? v.analysis.k2oPct : null,
     };
-    this.failure.set(null);
-    this.saving.set(true);
-    try {
-      this.#dialogRef.close(this.item ? await this.#api.updateItem(this.item.id, body) : await this.#api.createItem(body));
-    } catch (error) {
-      const controls = { ...this.form.controls, ...this.form.controls.analysis.controls } as Record<string, AbstractControl>;
-      if (!(error instanceof ApiRequestError && applyServerDetails(controls, error.error.details))) {
-        this.failure.set(error instanceof ApiRequestError && error.status === 409 ? `An item with the code “${body.code}” exists already.` : errorMessage(error));
-      }
-    } finally {
-      this.saving.set(false);
-    }
+    await saveAndClose(() => this.item ? this.#api.updateItem(this.item.id, body) : this.#api.createItem(body), {
+      ref: this.#dialogRef,
+      saving: this.saving,
+      failure: this.failure,
+      controls: { ...this.form.controls, ...this.form.controls.analysis.controls },
+      conflict: `An item with the code “${body.code}” exists already.`,
+    });
   }
 }

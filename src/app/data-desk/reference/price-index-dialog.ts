@@ -14,8 +14,8 @@ import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/for
 import { MatInput } from '@angular/material/input';
 import type { PriceIndex } from '../../../../shared/api-types';
 import { priceIndexSchema } from '../../../../shared/data-schemas';
-import { ApiRequestError, errorMessage } from '../../core/api-error';
-import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+import { saveAndClose } from '../../shared/dialog-save';
+import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi } from '../data-desk-api';
 import { parseTable, readIndexValues } from '../paste';
 import { ProblemList } from '../problem-list';
@@ -102,16 +102,12 @@ export class PriceIndexDialog {
     }
     const v = this.form.getRawValue();
     const body = { name: v.name.trim(), base: v.base.trim(), source: v.source.trim(), values: read.values };
-    this.failure.set(null);
-    this.saving.set(true);
-    try {
-      this.#dialogRef.close(await (this.editing ? this.#api.updatePriceIndex(this.editing.id, body) : this.#api.createPriceIndex(body)));
-    } catch (error) {
-      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
-        this.failure.set(error instanceof ApiRequestError && error.status === 409 ? `An index named “${body.name}” exists already.` : errorMessage(error));
-      }
-    } finally {
-      this.saving.set(false);
-    }
+    await saveAndClose(() => (this.editing ? this.#api.updatePriceIndex(this.editing.id, body) : this.#api.createPriceIndex(body)), {
+      ref: this.#dialogRef,
+      saving: this.saving,
+      failure: this.failure,
+      controls: this.form.controls,
+      conflict: `An index named “${body.name}” exists already.`,
+    });
   }
 }

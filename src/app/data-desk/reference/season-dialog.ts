@@ -15,8 +15,7 @@ import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { Season } from '../../../../shared/api-types';
 import { seasonSchema } from '../../../../shared/data-schemas';
-import { ApiRequestError, errorMessage } from '../../core/api-error';
-import { applyServerDetails } from '../../shared/zod-validator';
+import { saveAndClose } from '../../shared/dialog-save';
 import { DataDeskApi } from '../data-desk-api';
 import { MONTHS, seasonSpan, suggestedSeasonLabel } from '../season-dates';
 
@@ -103,16 +102,12 @@ export class SeasonDialog {
       this.failure.set(parsed.error.issues.map((i) => `${String(i.path[0])}: ${i.message}`).join('; '));
       return;
     }
-    this.failure.set(null);
-    this.saving.set(true);
-    try {
-      this.#dialogRef.close(this.season ? await this.#api.updateSeason(this.season.id, parsed.data) : await this.#api.createSeason(parsed.data));
-    } catch (error) {
-      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
-        this.failure.set(error instanceof ApiRequestError && error.status === 409 ? 'A season with this label or starting year exists already.' : errorMessage(error));
-      }
-    } finally {
-      this.saving.set(false);
-    }
+    await saveAndClose(() => this.season ? this.#api.updateSeason(this.season.id, parsed.data) : this.#api.createSeason(parsed.data), {
+      ref: this.#dialogRef,
+      saving: this.saving,
+      failure: this.failure,
+      controls: this.form.controls,
+      conflict: 'A season with this label or starting year exists already.',
+    });
   }
 }

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { parseCurrency, parseDecimal, parseIsoDate, parseSeason, unescapeFormula, type SeasonRef } from './cell-parsers.js';
-import { headerParts, normalUnit, sameUnit } from './units.js';
+import { headerParts, normalUnit, sameUnit } from './unit-names.js';
 
 describe('parseDecimal', () => {
   it('reads plain decimals with a point, a sign and an exponent', () => {
