@@ -68,7 +68,8 @@ export interface CoopSummary {
   farms: number;
   members: number;
   items: { outputs: number; inputs: number };
-  seasons: { count: number; first: string | null; last: string | null };
+  /** Seasons with any price or farm record; `opened`: later seasons set up (e.g. for an outlook) with no data yet. */
+  seasons: { count: number; first: string | null; last: string | null; opened: string[] };
   priceObservations: number;
   farmRecords: number;
   /** Seasons (labels) for which some farm has no record, newest first. */

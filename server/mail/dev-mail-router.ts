@@ -9,6 +9,8 @@ export function devMailRoutes(ctx: AppContext): RouteDef[] {
     return ctx.fakeSmtp;
   };
   return [
+    // Asked by the admin screens to decide whether to offer the mailbox page: answers in every mode.
+    { method: 'get', path: '/status', access: ['admin'], handler: (_req, res) => res.json({ available: ctx.config.dev && Boolean(ctx.fakeSmtp) }) },
     { method: 'get', path: '/', access: ['admin'], devOnly: true, handler: (_req, res) => res.json(smtp().messages().reverse()) },
     {
       method: 'delete',

@@ -86,9 +86,13 @@ export async function priceSeries(db: Db, itemIds: number[], deflatorId?: number
     const values = await db.select().from(priceIndexValues).where(eq(priceIndexValues.indexId, deflatorId));
     index = new Map(values.map((v) => [v.seasonId, v.value]));
   }
+  // The seasons from the first to the last with a price of these items (seasons opened ahead stay out).
+  const pricedSeasons = new Set(means.map((m) => m.seasonId));
+  const priced = seasonRows.map((s) => pricedSeasons.has(s.id));
+  const shown = seasonRows.slice(Math.max(0, priced.indexOf(true)), priced.lastIndexOf(true) + 1);
   return {
     deflator,
-    seasons: seasonRows.map((s) => s.label),
+    seasons: shown.map((s) => s.label),
     series: itemRows.map((it) => {
       const mine = means.filter((m) => m.itemId === it.id);
       return {
@@ -96,7 +100,7 @@ export async function priceSeries(db: Db, itemIds: number[], deflatorId?: number
         itemName: it.name,
         unit: it.unit,
         currency: mine[0]?.currency ?? '',
-        values: seasonRows.map((s) => {
+        values: shown.map((s) => {
           const m = mine.find((x) => x.seasonId === s.id);
           if (!m) return null;
           if (!deflatorId) return m.mean;

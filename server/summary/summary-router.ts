@@ -18,6 +18,9 @@ export async function coopSummary(db: Db): Promise<CoopSummary> {
     .from(farmRecords)
     .groupBy(farmRecords.seasonId);
   const withRecords = new Map(perSeason.map((r) => [r.seasonId, Number(r.farmsWithRecords)]));
+  const priced = new Set((await db.selectDistinct({ seasonId: priceObservations.seasonId }).from(priceObservations)).map((r) => r.seasonId));
+  const withData = seasonRows.filter((s) => priced.has(s.id) || withRecords.has(s.id));
+  const lastWithData = seasonRows.findIndex((s) => s.id === withData.at(-1)?.id);
   // Seasons after the newest one with any record have not been recorded yet: not gaps.
   const lastRecorded = seasonRows.reduce((last, s, i) => (withRecords.has(s.id) ? i : last), -1);
   const recordGaps = seasonRows
@@ -34,7 +37,12 @@ export async function coopSummary(db: Db): Promise<CoopSummary> {
       outputs: Number(roleCounts.find((r) => r.role === 'output')?.n ?? 0),
       inputs: Number(roleCounts.find((r) => r.role === 'input')?.n ?? 0),
     },
-    seasons: { count: seasonRows.length, first: seasonRows[0]?.label ?? null, last: seasonRows.at(-1)?.label ?? null },
+    seasons: {
+      count: withData.length,
+      first: withData[0]?.label ?? null,
+      last: withData.at(-1)?.label ?? null,
+      opened: seasonRows.slice(lastWithData + 1).map((s) => s.label),
+    },
     priceObservations: Number(prices),
     farmRecords: Number(records),
     recordGaps,

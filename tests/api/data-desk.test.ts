@@ -259,3 +259,21 @@ describe('exports', () => {
     expect(lines.every((l) => l.startsWith('F01,'))).toBe(true);
   });
 });
+
+describe('co-op summary', () => {
+  it('counts the seasons that hold data, and names a season opened ahead without data apart', async () => {
+    const planner = await plannerAgent();
+    const before = (await planner.get('/api/summary')).body as { seasons: { count: number; first: string; last: string; opened: string[] }; recordGaps: unknown[] };
+    // The demo co-op (seed/): 20 seasons of prices and farm records, 2006/07 to 2025/26.
+    expect(before.seasons).toEqual({ count: 20, first: '2006/07', last: '2025/26', opened: [] });
+    expect((await planner.post('/api/seasons').send({ label: '2031/32', startYear: 2031, startMonth: 7 })).status).toBe(201);
+    const after = (await planner.get('/api/summary')).body as typeof before;
+    expect(after.seasons).toEqual({ count: 20, first: '2006/07', last: '2025/26', opened: ['2031/32'] });
+    // A season without records after the last recorded one is not a gap.
+    expect(after.recordGaps).toEqual(before.recordGaps);
+    // Nor do the price series run on into it.
+    const series = (await planner.get('/api/prices/series')).body as { seasons: string[] };
+    expect(series.seasons).toHaveLength(20);
+    expect([series.seasons[0], series.seasons.at(-1)]).toEqual(['2006/07', '2025/26']);
+  });
+});

@@ -124,5 +124,11 @@ describe('development mail page', () => {
   it('is not mounted outside development mode', async () => {
     const admin = await signedIn(t.app, 'admin@example.org');
     expect((await admin.get('/api/dev/mail')).status).toBe(404);
+    // The screens ask first, so a production server never answers them 404.
+    const status = await admin.get('/api/dev/mail/status');
+    expect(status.status).toBe(200);
+    expect(status.body).toEqual({ available: false });
+    const planner = await signedIn(t.app, 'planner@example.org');
+    expect((await planner.get('/api/dev/mail/status')).status).toBe(403);
   });
 });

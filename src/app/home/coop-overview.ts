@@ -42,8 +42,9 @@ export class CoopOverview {
 
   protected readonly seasonsRange = computed(() => {
     const seasons = this.data()?.seasons;
-    if (!seasons || seasons.count === 0 || !seasons.first) return 'none yet';
-    return seasons.first === seasons.last ? seasons.first : `${seasons.first} – ${seasons.last}`;
+    if (!seasons || seasons.count === 0 || !seasons.first) return seasons?.opened.length ? `none with data yet (${seasons.opened.join(', ')} opened)` : 'none yet';
+    const range = seasons.first === seasons.last ? seasons.first : `${seasons.first} – ${seasons.last}`;
+    return seasons.opened.length ? `${range}; ${seasons.opened.join(', ')} opened, no data yet` : range;
   });
 
   protected readonly todos = computed<TodoItem[]>(() => {

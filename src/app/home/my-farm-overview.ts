@@ -6,18 +6,7 @@ import { RouterLink } from '@angular/router';
 import { MatCard, MatCardContent } from '@angular/material/card';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
-import {
-  MatCell,
-  MatCellDef,
-  MatColumnDef,
-  MatHeaderCell,
-  MatHeaderCellDef,
-  MatHeaderRow,
-  MatHeaderRowDef,
-  MatRow,
-  MatRowDef,
-  MatTable,
-} from '@angular/material/table';
+import { MatTableModule } from '@angular/material/table';
 import type { MyFarm } from '../../../shared/api-types';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { CautionNote } from '../shared/caution-note';
@@ -60,16 +49,7 @@ export function recordsBySeason(records: MyFarm['records']): { seasons: string[]
     MatAnchor,
     RouterLink,
     MatProgressBar,
-    MatTable,
-    MatColumnDef,
-    MatHeaderCellDef,
-    MatHeaderCell,
-    MatCellDef,
-    MatCell,
-    MatHeaderRowDef,
-    MatHeaderRow,
-    MatRowDef,
-    MatRow,
+    MatTableModule,
     CautionNote,
   ],
   templateUrl: './my-farm-overview.html',

@@ -49,12 +49,8 @@ describe('Shell', () => {
     // Requests keep the app unstable, so answer them before waiting for stability.
     TestBed.tick();
     http.expectOne('/api/settings').flush(settings);
-    if (devMail === 'on') http.expectOne('/api/dev/mail').flush([]);
-    if (devMail === 'off') {
-      http
-        .expectOne('/api/dev/mail')
-        .flush({ error: { code: 'not_found', message: 'Not found' } }, { status: 404, statusText: 'Not Found' });
-    }
+    if (devMail === 'on') http.expectOne('/api/dev/mail/status').flush({ available: true });
+    if (devMail === 'off') http.expectOne('/api/dev/mail/status').flush({ available: false });
     await fixture.whenStable();
   }
 

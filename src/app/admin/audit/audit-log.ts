@@ -7,19 +7,7 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import { Router } from '@angular/router';
 import { MatPaginator, type PageEvent } from '@angular/material/paginator';
 import { MatProgressBar } from '@angular/material/progress-bar';
-import {
-  MatCell,
-  MatCellDef,
-  MatColumnDef,
-  MatHeaderCell,
-  MatHeaderCellDef,
-  MatHeaderRow,
-  MatHeaderRowDef,
-  MatNoDataRow,
-  MatRow,
-  MatRowDef,
-  MatTable,
-} from '@angular/material/table';
+import { MatTableModule } from '@angular/material/table';
 import { errorMessage } from '../../core/api-error';
 
 /** One row of `GET /api/audit` (shape from the API contract; not yet in shared/api-types.ts). */
@@ -89,17 +77,7 @@ export const AUDIT_ENTITIES: { entity: string; label: string }[] = [
     MatOption,
     MatPaginator,
     MatProgressBar,
-    MatTable,
-    MatColumnDef,
-    MatHeaderCellDef,
-    MatHeaderCell,
-    MatCellDef,
-    MatCell,
-    MatHeaderRowDef,
-    MatHeaderRow,
-    MatNoDataRow,
-    MatRowDef,
-    MatRow,
+    MatTableModule,
   ],
   templateUrl: './audit-log.html',
   styleUrl: './audit-log.scss',

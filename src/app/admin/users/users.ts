@@ -11,19 +11,7 @@ import { MatIcon } from '@angular/material/icon';
 import { MatMenu, MatMenuContent, MatMenuItem, MatMenuTrigger } from '@angular/material/menu';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
-import {
-  MatCell,
-  MatCellDef,
-  MatColumnDef,
-  MatHeaderCell,
-  MatHeaderCellDef,
-  MatHeaderRow,
-  MatHeaderRowDef,
-  MatNoDataRow,
-  MatRow,
-  MatRowDef,
-  MatTable,
-} from '@angular/material/table';
+import { MatTableModule } from '@angular/material/table';
 import { firstValueFrom, map } from 'rxjs';
 import type { FarmSummary, UserStatus, UserSummary } from '../../../../shared/api-types';
 import { ROLE_LABELS } from '../../../../shared/roles';
@@ -62,17 +50,7 @@ interface UserRow extends UserSummary {
     MatMenuItem,
     MatMenuTrigger,
     MatProgressBar,
-    MatTable,
-    MatColumnDef,
-    MatHeaderCellDef,
-    MatHeaderCell,
-    MatCellDef,
-    MatCell,
-    MatHeaderRowDef,
-    MatHeaderRow,
-    MatNoDataRow,
-    MatRowDef,
-    MatRow,
+    MatTableModule,
   ],
   templateUrl: './users.html',
   styleUrl: './users.scss',

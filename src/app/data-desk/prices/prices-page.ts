@@ -94,8 +94,10 @@ export class PricesPage {
     const only = new Set(this.gridItems());
     return only.size === 0 ? this.rows() : this.rows().filter((r) => only.has(r.itemId));
   });
+  /** The seasons the stored prices span (a season opened ahead, without prices, is left out). */
   protected readonly seasonRange = computed(() => {
-    const s = this.ref.seasons();
+    const priced = new Set(this.rows().map((r) => r.seasonId));
+    const s = this.ref.seasons().filter((season) => priced.has(season.id));
     return s.length ? `${s[0].label} – ${s[s.length - 1].label}` : '';
   });
   protected readonly selectedCount = signal(0);
