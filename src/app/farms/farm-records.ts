@@ -36,6 +36,8 @@ import { FarmDialog, type FarmDialogData } from './farm-dialog';
 import { factorKey, itemKey, pivotRecords, recordCellProblem, type SeasonRow } from './records-pivot';
 
 const quantityFormat = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 2 });
+/** Tonnes with one decimal throughout a column (1,124.0 beside 1,184.1), other units as recorded. */
+const tonnesFormat = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 2 });
 const landFormat = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 });
 
 /** `/farms/:id`: one farm, its outputs, input use and land per season in one grid. Planners edit cells and paste blocks. */
@@ -113,7 +115,7 @@ export class FarmRecords {
       flex: 1,
       wrapHeaderText: true,
       autoHeaderHeight: true,
-      valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? quantityFormat.format(p.value) : '—'),
+      valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? (it.unit === 't' ? tonnesFormat : quantityFormat).format(p.value) : '—'),
       cellClassRules: { 'np-missing': (p) => p.value === null || p.value === undefined },
       cellEditor: 'agNumberCellEditor',
       cellEditorParams: { getValidationErrors: (p: IErrorValidationParams<SeasonRow>) => this.#validate('quantity', p) },

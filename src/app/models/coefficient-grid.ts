@@ -24,7 +24,7 @@ interface CoefficientRow {
   imports: [AgGridAngular, MatButton, MatFormField, MatLabel, MatPrefix, MatIcon, MatInput],
   template: `
     <p class="np-muted">
-      Coefficients of each netput equation (systemfit-style names, equation_regressor). The same structural parameter appears in
+      Coefficients of each netput equation, named equation_regressor (e.g. wheat_canola: the canola price in the wheat equation). The same structural parameter appears in
       several equations when symmetry ties them together. |t| below about 2 means the coefficient is not clearly different from zero.
     </p>
     <div class="toolbar">

@@ -7,7 +7,6 @@ import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/for
 import { MatInput } from '@angular/material/input';
 import { MatRadioButton, MatRadioGroup } from '@angular/material/radio';
 import { MatOption, MatSelect } from '@angular/material/select';
-import { MatSlideToggle } from '@angular/material/slide-toggle';
 import type { FarmSummary, Item, Season } from '../../../shared/api-types';
 import { modelDefinitionSchema, type ModelDefinition } from '../../../shared/model-schemas';
 import { ApiRequestError, errorMessage } from '../core/api-error';
@@ -38,7 +37,6 @@ export interface ModelSaved {
     MatOption,
     MatRadioGroup,
     MatRadioButton,
-    MatSlideToggle,
   ],
   templateUrl: './model-form.html',
   styleUrl: './model-form.scss',

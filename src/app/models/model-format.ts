@@ -83,7 +83,10 @@ export function factorLabel(factor: string): string {
   return FACTOR_LABELS[factor] ?? factor;
 }
 
-/** "2006/07 – 2025/26" from a definition (open ends read "first" and "last" season). */
+/** The sample's seasons in words: "2006/07 – 2025/26", "2010/11 onwards", "up to 2019/20" or "Every season with data". */
 export function sampleSeasons(def: ModelDefinition): string {
-  return `${def.fromSeason ?? 'first season'} – ${def.toSeason ?? 'last season'}`;
+  if (def.fromSeason && def.toSeason) return `${def.fromSeason} – ${def.toSeason}`;
+  if (def.fromSeason) return `${def.fromSeason} onwards`;
+  if (def.toSeason) return `up to ${def.toSeason}`;
+  return 'Every season with data';
 }

@@ -99,7 +99,10 @@ export class RunResult {
   );
 
   /** The engine's reason without its "long run:" prefix. */
-  protected readonly longRunReason = computed(() => (this.result()?.longRunError ?? '').replace(/^long run:\s*/i, ''));
+  /** The engine's reason, with the land factor's code (land_ha) in words. */
+  protected readonly longRunReason = computed(() =>
+    (this.result()?.longRunError ?? '').replace(/^long run:\s*/i, '').replace(/\bland_ha\b/g, 'land'),
+  );
 
   readonly #watched = computed<RunStatus[]>(() => {
     const d = this.detail();

@@ -70,10 +70,10 @@ export default async function models({ base, page }: Harness): Promise<void> {
     const definedA = await check('the planner defines model A (all 7 items, NQ, labour numeraire, land + trend) and runs it', async () => {
       modelA = await defineModel(page, base, 'A · all items, NQ, land + trend', async (p) => {
         const form = p.getByRole('form', { name: 'Define a model' });
-        assertEqual(await form.getByRole('checkbox').and(form.locator(':checked')).count(), 8, 'checked boxes (7 items + land)');
+        assertEqual(await form.getByRole('checkbox').and(form.locator(':checked')).count(), 9, 'checked boxes (7 items, land and trend)');
         assert((await form.getByRole('combobox', { name: 'Numeraire' }).innerText()).includes('Hired labour'), 'the numeraire is not hired labour');
         assert(await form.getByRole('radio', { name: /Normalised quadratic/ }).isChecked(), 'NQ is not the form');
-        assert((await form.getByRole('switch', { name: /Linear trend/ }).getAttribute('aria-checked')) === 'true', 'the trend is off');
+        assert(await form.getByRole('checkbox', { name: /Linear trend/ }).isChecked(), 'the trend is off');
       });
       await page.getByRole('heading', { level: 1, name: 'A · all items, NQ, land + trend' }).waitFor();
     });
@@ -91,7 +91,7 @@ export default async function models({ base, page }: Harness): Promise<void> {
         await form.getByRole('checkbox', { name: /Phosphate/ }).uncheck();
         await form.getByRole('checkbox', { name: /Potash/ }).uncheck();
         await form.getByRole('radio', { name: /Generalised Leontief/ }).check();
-        await form.getByRole('switch', { name: /Linear trend/ }).click();
+        await form.getByRole('checkbox', { name: /Linear trend/ }).uncheck();
       });
       await page.getByRole('heading', { level: 1, name: 'B · five items, GL, land, no trend' }).waitFor();
     });

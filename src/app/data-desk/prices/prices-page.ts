@@ -163,7 +163,7 @@ export class PricesPage {
       {
         field: 'itemId',
         headerName: 'Item',
-        minWidth: 130,
+        minWidth: 120,
         flex: 1,
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => itemName(p.value),
         filterValueGetter: (p) => itemName(p.data?.itemId),
@@ -175,7 +175,7 @@ export class PricesPage {
       {
         field: 'seasonId',
         headerName: 'Season',
-        width: 112,
+        width: 125,
         sort: 'desc',
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => seasonLabel(p.value),
         filterValueGetter: (p) => seasonLabel(p.data?.seasonId),
@@ -187,7 +187,7 @@ export class PricesPage {
       {
         field: 'deliveryPointId',
         headerName: 'Delivery point',
-        minWidth: 140,
+        minWidth: 130,
         flex: 1,
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => pointName(p.value),
         filterValueGetter: (p) => pointName(p.data?.deliveryPointId),
@@ -200,7 +200,7 @@ export class PricesPage {
         field: 'price',
         headerName: 'Price',
         type: 'numericColumn',
-        width: 110,
+        width: 105,
         filter: 'agNumberColumnFilter',
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => (typeof p.value === 'number' ? formatPrice(p.value) : ''),
         cellEditor: 'agNumberCellEditor',
@@ -209,7 +209,7 @@ export class PricesPage {
       {
         colId: 'per',
         headerName: 'Per',
-        width: 100,
+        width: 95,
         editable: false,
         filter: false,
         valueGetter: (p) => (p.data ? `${p.data.currency}/${ref.itemById.get(p.data.itemId)?.unit ?? p.data.unit}` : ''),
@@ -218,7 +218,7 @@ export class PricesPage {
       {
         field: 'currency',
         headerName: 'Currency',
-        width: 100,
+        width: 95,
         filter: false,
         cellEditor: 'agTextCellEditor',
         cellEditorParams: { maxLength: 3, ...validate('currency') },
@@ -226,7 +226,7 @@ export class PricesPage {
       {
         field: 'source',
         headerName: 'Source',
-        minWidth: 150,
+        minWidth: 120,
         flex: 1.5,
         tooltipField: 'source',
         cellEditor: 'agTextCellEditor',
@@ -235,7 +235,7 @@ export class PricesPage {
       {
         field: 'observedOn',
         headerName: 'Observed on',
-        width: 125,
+        width: 120,
         filter: false,
         cellEditor: 'agDateStringCellEditor',
         cellEditorParams: { ...validate('observedOn') },
