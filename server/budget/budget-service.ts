@@ -17,7 +17,7 @@ import { computeBudget, type BudgetResult, type ProductCopy, type ResolvedSource
 import { inUnits } from './budget-units.js';
 import { activeProducts, productsByIds } from './fertiliser-products.js';
 import { demandAt, farmPoints, modelDemand } from './model-demand.js';
-import { nutrientItemsOf } from './nutrient-items.js';
+import { nutrientItemsOf, priceItemsOf } from './nutrient-items.js';
 import { BudgetInputError, NUTRIENTS, type Nutrient } from './nutrients.js';
 import { resolveOutlook } from './outlook-source.js';
 
@@ -41,6 +41,7 @@ async function resolveModelRun(db: Db, source: Extract<BudgetSource, { kind: 'mo
   const md = modelDemand(fit, ds, { prices: source.prices, season: source.season, items: nutrientItems });
   const [model] = await db.select({ name: models.name }).from(models).where(eq(models.id, run.modelId));
   const points = farmPoints(fit, ds, md.season);
+  const priceItems = await priceItemsOf(db, Object.keys(md.prices));
   const nutrientPrices: Partial<Record<Nutrient, number>> = {};
   for (const n of NUTRIENTS) nutrientPrices[n] = md.prices[nutrientItems[n].code]! / nutrientItems[n].kgPerUnit;
   return {
@@ -59,6 +60,7 @@ async function resolveModelRun(db: Db, source: Extract<BudgetSource, { kind: 'mo
       seasonLabel: md.season === null ? null : `${md.season}/${String((md.season + 1) % 100).padStart(2, '0')}`,
       prices: md.prices,
       priceBasis: md.priceBasis,
+      priceItems,
       nutrientItems,
       farms: md.farms,
     },

@@ -40,3 +40,17 @@ export async function nutrientItemsOf(db: Db, fit: FitResult, named: Partial<Rec
   return out;
 }
 
+
+/**
+ * The name and unit of each item a source prices (`wheat` → Wheat, t), so the page can show
+ * "Wheat EUR 212.10/t" rather than a bare code and number. An item gone from the list keeps its code.
+ */
+export async function priceItemsOf(db: Db, codes: readonly string[]): Promise<Record<string, { name: string; unit: string }>> {
+  const rows = codes.length ? await db.select({ code: items.code, name: items.name, unit: items.unit }).from(items).where(inArray(items.code, [...codes])) : [];
+  return Object.fromEntries(
+    codes.map((code) => {
+      const row = rows.find((r) => r.code === code);
+      return [code, { name: row?.name ?? code, unit: row?.unit ?? '' }];
+    }),
+  );
+}

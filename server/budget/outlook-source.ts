@@ -17,7 +17,7 @@ import type { FitResult } from '../estimation/index.js';
 import type { BudgetSource } from './budget-schemas.js';
 import type { ResolvedSource } from './budget-compute.js';
 import { coopElasticities, demandAt } from './model-demand.js';
-import { nutrientItemsOf } from './nutrient-items.js';
+import { nutrientItemsOf, priceItemsOf } from './nutrient-items.js';
 import { BudgetInputError, NUTRIENTS, type Nutrient, type NutrientAmounts } from './nutrients.js';
 
 const quantitySchema = z.object({ point: z.number(), p5: z.number(), p95: z.number() });
@@ -67,6 +67,7 @@ export async function resolveOutlook(db: Db, source: Extract<BudgetSource, { kin
     .map((p) => ({ farm: p.data.code, season: snap.season.label, fixed: p.data.fixed }))
     .sort((a, b) => (a.farm < b.farm ? -1 : a.farm > b.farm ? 1 : 0));
   const prices = scenario.prices;
+  const priceItems = await priceItemsOf(db, Object.keys(prices));
   const warnings: string[] = [];
   const nutrientPrices: Partial<Record<Nutrient, number>> = {};
   for (const n of NUTRIENTS) if (prices[nutrientItems[n].code] !== undefined) nutrientPrices[n] = prices[nutrientItems[n].code]! / nutrientItems[n].kgPerUnit;
@@ -108,6 +109,7 @@ export async function resolveOutlook(db: Db, source: Extract<BudgetSource, { kin
       runId: snap.model.runId,
       modelName: snap.model.modelName ?? null,
       prices,
+      priceItems,
       bands,
       nutrientItems,
       farms,

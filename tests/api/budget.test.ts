@@ -108,7 +108,14 @@ describe('budgets', () => {
     const r = b.result;
     expect(r.scenarios.map((s: { name: string }) => s.name)).toEqual(['Base', 'N +20 %', 'N −20 %']);
     expect(r.cautions[0]).toMatch(/not an application recommendation/);
-    expect(r.cautions[1]).toMatch(/soil tests, local agronomic guidance and nutrient-management rules; a certified adviser/);
+    expect(r.cautions[1]).toBe('Application rates follow soil tests, local agronomic guidance and nutrient-management rules, and a certified adviser has the last word.');
+    // Plain words for treasurers: no national credential, no library name, no bare formula.
+    expect([...r.cautions, ...r.notes].join(' ')).not.toMatch(/Certified Crop Adviser|state-certified|javascript-lp-solver|x_i|e_ij/);
+    expect(r.notes[0]).toMatch(/^Product mix: the cheapest mix of the co-op’s products that meets every nutrient need, found by linear programming\./);
+    // The prices the model used, with the items' names and units to show them by (seed/technology.ts).
+    expect(r.source.detail.priceItems.nitrogen).toEqual({ name: 'Nitrogen (N)', unit: 'kg N' });
+    expect(r.source.detail.priceItems.wheat).toEqual({ name: 'Wheat', unit: 't' });
+    expect(Object.keys(r.source.detail.priceItems).sort()).toEqual(Object.keys(r.source.detail.prices).sort());
     expect(r.source.detail.season).toBe(2026);
     expect(r.source.detail.farms).toHaveLength(20);
 
@@ -336,6 +343,7 @@ describe('budgets', () => {
     const r = res.body.result;
     expect(r.source.kind).toBe('outlook');
     expect(r.source.detail).toMatchObject({ versionId: pub.body.id, version: 1, seasonLabel: '2026/27', scenario: 'base', runId });
+    expect(r.source.detail.priceItems.potash).toEqual({ name: 'Potash (K2O)', unit: 'kg K2O' });
     // The published figures, unchanged (demo items are in kg of nutrient).
     expect(r.demand.base.nitrogen).toBe(published('nitrogen').point);
     expect(r.demand.base.phosphate).toBe(published('phosphate').point);

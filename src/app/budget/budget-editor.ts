@@ -68,7 +68,7 @@ import { UnitSwitch } from './unit-switch';
 /** The cautions every budget carries, shown before the first result arrives (the server sends its own with each result). */
 const STANDING_CAUTIONS = [
   'A budget sizes the co-op’s fertiliser purchases; it is not an application recommendation for any field, farm or crop.',
-  'Application rates follow soil tests, local agronomic guidance and nutrient-management rules, and a certified adviser decides.',
+  'Application rates follow soil tests, local agronomic guidance and nutrient-management rules, and a certified adviser has the last word.',
 ];
 
 function blankValue(): BudgetFormValue {

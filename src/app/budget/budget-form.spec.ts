@@ -1,4 +1,4 @@
-import { bookingProblems, defaultBooking, formValueFromStored, toBudgetInput, whereOf } from './budget-form';
+import { bookingProblems, defaultBooking, formValueFromStored, scenarioName, toBudgetInput, whereOf } from './budget-form';
 import type { FertiliserProduct, ProductCopy, StoredInputs } from './budget-types';
 
 // The demo list's urea and DAP (grades: Cornell NRCCA CA4 PO26 and UNL PASSEL; prices invented for the demo).
@@ -99,5 +99,17 @@ describe('whereOf', () => {
     expect(whereOf('body.scenarios.0.name', products, scenarios)).toBe('Scenario “N +20 %”');
     expect(whereOf('source.prices.urea', products, scenarios)).toBe('Demand source, expected price of urea');
     expect(whereOf('options.referencePrices.phosphate', products, scenarios)).toBe('Reference nutrient prices');
+  });
+});
+
+describe('scenarioName', () => {
+  it('should name a scenario by its price changes, one name for the same change to every nutrient', () => {
+    expect(scenarioName({ nitrogen: 20, phosphate: null, potash: null })).toBe('N +20 %');
+    expect(scenarioName({ nitrogen: 10, phosphate: null, potash: -5 })).toBe('N +10 %, K2O −5 %');
+    // "All +10 %": one scenario, not a list that reads as three.
+    expect(scenarioName({ nitrogen: 10, phosphate: 10, potash: 10 })).toBe('All nutrients +10 %');
+    expect(scenarioName({ nitrogen: -15, phosphate: -15, potash: -15 })).toBe('All nutrients −15 %');
+    expect(scenarioName({ nitrogen: 10, phosphate: 10, potash: 5 })).toBe('N +10 %, P2O5 +10 %, K2O +5 %');
+    expect(scenarioName({ nitrogen: 0, phosphate: 0, potash: 0 })).toBe('No price change');
   });
 });

@@ -120,9 +120,11 @@ export function seasonStartYear(label: string | null | undefined): number | null
   return m ? Number(m[1]) : null;
 }
 
-/** A name for a scenario from its price changes: "N +20 %", "N +10 %, K2O −5 %". */
+/** A name for a scenario from its price changes: "N +20 %", "N +10 %, K2O −5 %", "All nutrients +10 %". */
 export function scenarioName(s: Pick<ScenarioValue, Nutrient>): string {
   const label: Record<Nutrient, string> = { nitrogen: 'N', phosphate: 'P2O5', potash: 'K2O' };
+  const all = s.nitrogen;
+  if (all !== null && all !== 0 && NUTRIENTS.every((n) => s[n] === all)) return `All nutrients ${all > 0 ? '+' : '−'}${Math.abs(all)} %`;
   const parts = NUTRIENTS.filter((n) => s[n] !== null && s[n] !== 0).map((n) => `${label[n]} ${s[n]! > 0 ? '+' : '−'}${Math.abs(s[n]!)} %`);
   return parts.length ? parts.join(', ') : 'No price change';
 }

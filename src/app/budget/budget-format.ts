@@ -21,9 +21,16 @@ function clean(s: string): string {
 
 const missing = (v: number | null | undefined): v is null | undefined => v == null || !Number.isFinite(v);
 
-/** Nutrient mass (kg or lb): whole units, "12,345". */
+const significant = (digits: number) =>
+  fmt(`s${digits}`, () => new Intl.NumberFormat('en', { maximumSignificantDigits: digits }));
+
+/**
+ * Nutrient mass (kg or lb): whole units below 10,000 ("9,876"), four significant figures above
+ * ("1,423,000" for 1,423,282), as projected tonnages carry no more; exports keep every digit.
+ */
 export function formatMass(v: number | null | undefined): string {
-  return missing(v) ? '—' : clean(fixed(0).format(v));
+  if (missing(v)) return '—';
+  return clean((Math.abs(v) < 10_000 ? fixed(0) : significant(4)).format(v));
 }
 
 /** Product mass (t or short tons): one decimal, "217.4"; three below 1. */
@@ -32,10 +39,10 @@ export function formatTonnes(v: number | null | undefined, digits = 1): string {
   return clean(fixed(Math.abs(v) > 0 && Math.abs(v) < 1 ? 3 : digits).format(v));
 }
 
-/** A lot size: as few decimals as it needs, up to three ("25", "27.558"), so lots × size reads true. */
+/** A lot size: as few decimals as it needs, up to two ("25", "27.56" short tons for 25 t). */
 export function formatLot(v: number | null | undefined): string {
   if (missing(v)) return '—';
-  return clean(fmt('lot', () => new Intl.NumberFormat('en', { maximumFractionDigits: 3 })).format(v));
+  return clean(fmt('lot', () => new Intl.NumberFormat('en', { maximumFractionDigits: 2 })).format(v));
 }
 
 /** A sum of money, whole units: "EUR 95,000". */
@@ -44,10 +51,19 @@ export function formatMoney(v: number | null | undefined, currency: string, digi
   return `${currency} ${clean(fixed(digits).format(v))}`;
 }
 
-/** Money per unit (per t, per kg): two decimals, three below 10: "EUR 475.00", "EUR 1.033". */
+/**
+ * Money per unit (per t, per kg): two decimals, three below 10: "EUR 475.00", "EUR 1.033". Every
+ * price on the budget pages goes through here, so one price reads the same wherever it shows.
+ */
 export function formatPrice(v: number | null | undefined, currency: string): string {
   if (missing(v)) return '—';
   return `${currency} ${clean(fixed(Math.abs(v) < 10 ? 3 : 2).format(v))}`;
+}
+
+/** A price per unit of an item, the unit named: "EUR 212.10/t", "EUR 1.322/kg N"; no unit, no slash. */
+export function formatPricePer(v: number | null | undefined, currency: string, unit: string): string {
+  const price = formatPrice(v, currency).trim();
+  return unit && !missing(v) ? `${price}/${unit}` : price;
 }
 
 /** A percentage; `signed` puts + before rises. */

@@ -4,19 +4,7 @@ import { ChangeDetectionStrategy, Component, computed, inject } from '@angular/c
 import { MatAnchor } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
-import {
-  MatCell,
-  MatCellDef,
-  MatColumnDef,
-  MatHeaderCell,
-  MatHeaderCellDef,
-  MatHeaderRow,
-  MatHeaderRowDef,
-  MatNoDataRow,
-  MatRow,
-  MatRowDef,
-  MatTable,
-} from '@angular/material/table';
+import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage } from '../core/api-error';
@@ -38,17 +26,7 @@ const SOURCE_LABEL: Record<SourceKind, string> = { outlook: 'Published outlook',
     MatAnchor,
     MatIcon,
     MatProgressBar,
-    MatTable,
-    MatColumnDef,
-    MatHeaderCellDef,
-    MatHeaderCell,
-    MatCellDef,
-    MatCell,
-    MatHeaderRowDef,
-    MatHeaderRow,
-    MatNoDataRow,
-    MatRowDef,
-    MatRow,
+    MatTableModule,
     CautionNote,
     UnitSwitch,
   ],
@@ -73,7 +51,8 @@ export class BudgetList {
       sourceLabel: SOURCE_LABEL[b.sourceKind],
       demand: NUTRIENTS.map((n) => formatMass(massToShown(b.baseDemand[n], system))).join(' · '),
       cash: formatMoney(b.baseCash, b.currency),
-      scenarios: b.scenarioNames.slice(1).join(', ') || 'base only',
+      // One entry per scenario (shown as chips): a name may itself hold a comma ("N +10 %, K2O −5 %").
+      scenarios: b.scenarioNames.slice(1),
     }));
   });
   protected readonly columns = ['name', 'source', 'demand', 'cash', 'scenarios', 'updated'];

@@ -1,4 +1,4 @@
-import type { BudgetResult as EngineBudgetResult, ElasticityMatrix, LotRule, Nutrient, NutrientAmounts, PriceChanges, ProductCopy, ProductForm, SourceKind } from '../../../shared/budget-types';
+import type { BudgetResult as EngineBudgetResult, ElasticityMatrix, LotRule, Nutrient, NutrientAmounts, PriceChanges, ProductCopy, SourceKind } from '../../../shared/budget-types';
 import type { UnitSystem } from '../../../shared/units';
 
 /**
@@ -28,19 +28,8 @@ export {
 } from '../../../shared/budget-types';
 
 /** `GET /api/fertiliser-products` rows. Prices per tonne of product, lots in tonnes (metric, as stored). */
-export interface FertiliserProduct {
+export interface FertiliserProduct extends Omit<ProductCopy, 'productId'> {
   id: number;
-  name: string;
-  nPct: number;
-  p2o5Pct: number;
-  k2oPct: number;
-  form: ProductForm;
-  pricePerT: number;
-  currency: string;
-  lotT: number;
-  supplier: string;
-  gradeSource: string;
-  priceNote: string;
   active: boolean;
   updatedAt: string;
 }
@@ -117,6 +106,8 @@ export interface SourceDetail {
   seasonLabel?: string | null;
   prices?: Record<string, number>;
   priceBasis?: Record<string, 'given' | 'last season'>;
+  /** Name and unit of each priced item (`wheat` → Wheat, t); absent in results saved before they came with them. */
+  priceItems?: Record<string, { name: string; unit: string }>;
   nutrientItems?: Record<Nutrient, { code: string; kgPerUnit: number }>;
   farms?: unknown[];
   // outlook

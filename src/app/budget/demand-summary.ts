@@ -1,7 +1,7 @@
 import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { RouterLink } from '@angular/router';
-import { formatMass, formatPrice, formatRatio } from './budget-format';
+import { formatMass, formatPrice, formatPricePer, formatRatio } from './budget-format';
 import { NUTRIENT_LABEL, NUTRIENTS, type BudgetResult, type Nutrient } from './budget-types';
 import { unitLabels } from './budget-units';
 
@@ -41,11 +41,20 @@ export class DemandSummary {
   protected readonly kind = computed(() => this.result().source.kind);
   protected readonly elasticitySource = computed(() => ELASTICITY_SOURCE[this.result().demand.elasticitySource]);
   protected readonly bands = computed(() => this.detail().bands ?? null);
-  /** "wheat 212.3 (last season); nitrogen 1.322 (given); ..." in the items' own price units. */
+  /**
+   * "Wheat EUR 212.10/t (last season); Nitrogen (N) EUR 1.322/kg N (given); ..." in the items' own
+   * units, formatted as the reference prices are (formatPrice), so one price reads the same on both lines.
+   * Results saved before item names came with them show the item codes.
+   */
   protected readonly prices = computed(() => {
     const d = this.detail();
+    const currency = this.result().currency;
     return Object.entries(d.prices ?? {})
-      .map(([code, value]) => `${code} ${value.toPrecision(4)}${d.priceBasis?.[code] ? ` (${d.priceBasis[code]})` : ''}`)
+      .map(([code, value]) => {
+        const item = d.priceItems?.[code];
+        const basis = d.priceBasis?.[code] ? ` (${d.priceBasis[code]})` : '';
+        return `${item?.name ?? code} ${formatPricePer(value, currency, item?.unit ?? '')}${basis}`;
+      })
       .join('; ');
   });
   protected readonly references = computed(() =>

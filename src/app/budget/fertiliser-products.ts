@@ -34,6 +34,18 @@ export function pricePerNutrient(p: FertiliserProduct, n: Nutrient): number | nu
   return p.pricePerT / (p[GRADE_FIELD[n]] * 10);
 }
 
+/** A product carrying `n` and another nutrient too (DAP, MAP): one price, no single nutrient to put it on. */
+export function isBlendCarrying(p: FertiliserProduct, n: Nutrient): boolean {
+  return p[GRADE_FIELD[n]] > 0 && NUTRIENTS.some((m) => m !== n && p[GRADE_FIELD[m]] > 0);
+}
+
+/** Why a blend has no price per kg of one nutrient, in the page's words ("N and P2O5"). */
+export function blendReason(p: FertiliserProduct): string {
+  const carried = NUTRIENTS.filter((m) => p[GRADE_FIELD[m]] > 0).map((m) => NUTRIENT_LABEL[m]);
+  const list = carried.length > 1 ? `${carried.slice(0, -1).join(', ')} and ${carried.at(-1)}` : carried.join('');
+  return `${p.name} carries ${list} together, so its price is not split per nutrient; budgets cost it on the mix, crediting every nutrient it carries.`;
+}
+
 /** `/budget/products`: the fertiliser products budgets plan with. Treasurers keep the list; others read it. */
 @Component({
   selector: 'np-fertiliser-products',
@@ -57,6 +69,13 @@ export class FertiliserProducts {
   protected readonly currency = computed(() => this.#settings.settings()?.currency ?? this.rows()[0]?.currency ?? '');
   protected readonly quickFilter = signal('');
   readonly #grid = signal<GridApi<FertiliserProduct> | null>(null);
+  /** The listed blends (DAP, MAP), for the note on their blank per-nutrient prices. */
+  protected readonly blends = computed(() => this.rows().filter((p) => NUTRIENTS.filter((n) => p[GRADE_FIELD[n]] > 0).length > 1));
+  protected readonly mass = computed(() => unitLabels(this.#units.system(), '').mass);
+  protected readonly blendNames = computed(() => {
+    const names = this.blends().map((p) => p.name);
+    return names.length > 1 ? `${names.slice(0, -1).join(', ')} and ${names.at(-1)}` : (names[0] ?? '');
+  });
 
   protected readonly theme = gridTheme;
   protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
@@ -94,6 +113,16 @@ export class FertiliserProducts {
           return perKg === null ? null : inUnitSystem(perKg, 'per kg', system).value;
         },
         valueFormatter: (p) => (p.value == null ? '' : formatPrice(p.value as number, p.data?.currency ?? '')),
+        // A blend shows "—" with its reason (also in the note under the grid) instead of a blank.
+        cellRenderer: (p: ICellRendererParams<FertiliserProduct>) => {
+          if (!p.data || !isBlendCarrying(p.data, n)) return p.valueFormatted ?? '';
+          const mark = document.createElement('span');
+          mark.className = 'blend';
+          mark.textContent = '—*';
+          mark.title = blendReason(p.data);
+          mark.setAttribute('aria-label', `Not split per nutrient: ${blendReason(p.data)}`);
+          return mark;
+        },
       })),
       { field: 'supplier', headerName: 'Supplier', minWidth: 180, flex: 1, filter: 'agTextColumnFilter' },
       { field: 'active', headerName: 'In budgets', width: 120, valueFormatter: (p) => (p.value ? 'Yes' : 'No (kept aside)') },

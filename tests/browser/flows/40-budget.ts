@@ -49,7 +49,8 @@ interface Result {
 const fixed = (v: number, digits: number) =>
   new Intl.NumberFormat('en', { minimumFractionDigits: digits, maximumFractionDigits: digits }).format(v).replace('-', '−');
 const tonnes = (v: number) => fixed(v, Math.abs(v) > 0 && Math.abs(v) < 1 ? 3 : 1);
-const mass = (v: number) => fixed(v, 0);
+const mass = (v: number) =>
+  Math.abs(v) < 10_000 ? fixed(v, 0) : new Intl.NumberFormat('en', { maximumSignificantDigits: 4 }).format(v).replace('-', '−');
 const money = (v: number, currency: string) => `${currency} ${fixed(v, 0)}`;
 
 /** The next answer of a budget computation (preview, save or read), as JSON. */
@@ -212,6 +213,7 @@ export default async function budget({ base, page }: Harness): Promise<void> {
       const urea = baseMetric!.mix.lines.find((l) => l.name === 'Urea')!;
       // 1 short ton = 2000 lb × 0.45359237 kg = 907.18474 kg exactly.
       assertEqual(await planCell(page, 'Urea', 'Bought'), tonnes((urea.tonnes * 1000) / 907.18474), 'urea short tons');
+      assertEqual(await planCell(page, 'Urea', 'Lots'), `${urea.lots} × 27.56`, 'urea lots (25 t = 27.56 short tons, to 0.01)');
       const demand = page.getByRole('table', { name: 'Base nutrient demand' });
       await demand.getByText(`${mass(baseMetric!.demand.nitrogen / 0.45359237)} lb N`).waitFor();
       await page.getByRole('table', { name: 'Cash by month, Base' }).getByRole('columnheader', { name: 'Booked, short tons' }).waitFor();
@@ -267,7 +269,10 @@ export default async function budget({ base, page }: Harness): Promise<void> {
     await check('the budget list shows the saved budget with its scenarios', async () => {
       await page.getByRole('link', { name: 'Fertiliser budgets' }).first().click();
       await page.waitForURL(/\/budget$/);
-      await page.getByRole('cell', { name: 'N +20 %, -10 % potash' }).waitFor();
+      // One chip per scenario, so a name holding a comma cannot read as two.
+      const chips = page.getByRole('list', { name: '2 scenarios beside the base' }).first();
+      await chips.waitFor();
+      assertEqual((await chips.getByRole('listitem').allInnerTexts()).map((t) => t.trim()), ['N +20 %', '-10 % potash'], 'scenario chips');
     });
     // Leave the next flows in the co-op's default units.
     await page.getByRole('radio', { name: 'Metric (kg, t)' }).click();
