@@ -145,7 +145,8 @@ export async function accountability(db: Db, which: 'latest' | 'first') {
     .sort((a, b) => a.code.localeCompare(b.code));
   return {
     version: which,
-    errorSign: 'errorPct = 100 × (projected − actual) / actual: positive when the outlook projected too much',
+    errorSign:
+      'The error is the gap between the outlook and what was recorded, as a share of the recorded figure: positive when the outlook projected (or expected a price) too high, negative when too low.',
     seasons: seasonsOut,
     summary: { items: summaryItems, prices: summaryPrices, farms: summaryFarms },
   };

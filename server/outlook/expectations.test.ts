@@ -6,6 +6,8 @@ import {
   errorHistory,
   ExpectationError,
   expectationAt,
+  fmtPct,
+  fmtPrice,
   scenarioPrices,
   type FuturesBySeason,
   type PricePoint,
@@ -136,5 +138,32 @@ describe('scenarios', () => {
     const [low, , high] = scenarioPrices(ex, 'uniform');
     expect(low!.prices).toEqual({ wheat: 180, nitrogen: 1 });
     expect(high!.prices).toEqual({ wheat: 220, nitrogen: 1.4 });
+  });
+});
+
+describe('numbers in the explanations read as the screens show them', () => {
+  // The client's formatPrice (src/app/outlook/outlook-format.ts) is Intl.NumberFormat('en-GB') with
+  // 2 decimals from 10 up and 3 below; the server must write the very same text.
+  const screen = (v: number) => new Intl.NumberFormat('en-GB', { minimumFractionDigits: Math.abs(v) >= 10 ? 2 : 3, maximumFractionDigits: Math.abs(v) >= 10 ? 2 : 3 }).format(v);
+
+  it('rounds a last digit of 5 up, as the screens do, although the binary value lies just below', () => {
+    // 1.3215 is stored as 1.32149999999999989…, 0.6685 as 0.66849999999999998…: toFixed(3) gave 1.321 and 0.668.
+    expect(fmtPrice(1.3215)).toBe('1.322');
+    expect(fmtPrice(0.6685)).toBe('0.669');
+    expect(fmtPrice(1.3215)).toBe(screen(1.3215));
+    expect(fmtPrice(0.6685)).toBe(screen(0.6685));
+  });
+
+  it('keeps the digits rule and groups thousands like the screens', () => {
+    for (const v of [0.5, 9.9995, 10, 178.925, 212.125, 1234.5, 25.855]) expect(fmtPrice(v)).toBe(screen(v));
+    expect(fmtPrice(1234.5)).toBe('1,234.50');
+    expect(fmtPrice(-0.25)).toBe('−0.250');
+    expect(fmtPct(19.05)).toBe('19.1 %');
+  });
+
+  it("writes last season's price in the explanation as the base price is shown", () => {
+    const c = computeExpectation({ item: 'nitrogen', method: { kind: 'last' } }, { history: series(2021, [1.2, 1.25, 1.3, 1.3215]), target: { season: '2025/26', year: 2025 }, futures: none, priceUnit: 'EUR/kg N' });
+    expect(c.explanation).toContain('last season: 1.322 EUR/kg N');
+    expect(c.explanation).not.toContain('1.321 ');
   });
 });

@@ -64,12 +64,24 @@ export const ERROR_WINDOW = 10;
 /** Fewest past errors that may size a band. */
 export const MIN_ERRORS_FOR_BAND = 3;
 
+// Numbers in the explanations read as the screens show them (src/app/outlook/outlook-format.ts
+// formatPrice, formatPercent): the same Intl formatter and digits rule. Intl rounds the shortest
+// decimal form of a number half away from zero (1.3215 → 1.322), where toFixed rounds the binary
+// value (1.32149999… → 1.321), so the two used to disagree on the same price.
+const nf = (digits: number) => new Intl.NumberFormat('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits });
+const nf1 = nf(1);
+const nf2 = nf(2);
+const nf3 = nf(3);
+const minus = (s: string) => s.replace('-', '−');
+
+/** A price: two decimals from 10 up (195.40), three below (1.152), grouped in thousands (1,234.50). */
 export function fmtPrice(x: number): string {
-  const abs = Math.abs(x);
-  const digits = abs >= 100 ? 2 : abs >= 10 ? 2 : 3;
-  return x.toFixed(digits);
+  return minus(Math.abs(x) >= 10 ? nf2.format(x) : nf3.format(x));
 }
-const fmtPct = (x: number) => `${x.toFixed(1)}%`;
+/** A percentage already in percent units, one decimal: "19.1 %". */
+export function fmtPct(x: number): string {
+  return `${minus(nf1.format(x))} %`;
+}
 const span = (pts: { season: string }[]) => (pts.length === 1 ? pts[0]!.season : `${pts[0]!.season}–${pts.at(-1)!.season}`);
 
 export function methodLabel(m: ExpectationMethod): string {
@@ -178,7 +190,7 @@ export function expectationAt(
       for (let j = 1; j < past.length; j++) value = value + lambda * (past[j]!.price - value);
       return {
         value,
-        explanation: `Adaptive expectation with weight λ = ${lambda}: each season the expectation moves ${lambda === 1 ? 'all the way' : `${Math.round(lambda * 100)}% of the way`} from the previous expectation to the price seen, starting at the ${past[0]!.season} price (${fmtPrice(past[0]!.price)}), over ${past.length} seasons to ${past.at(-1)!.season}: ${fmtPrice(value)} ${priceUnit}.`,
+        explanation: `Adaptive expectation with weight λ = ${lambda}: each season the expectation moves ${lambda === 1 ? 'all the way' : `${Math.round(lambda * 100)} % of the way`} from the previous expectation to the price seen, starting at the ${past[0]!.season} price (${fmtPrice(past[0]!.price)}), over ${past.length} seasons to ${past.at(-1)!.season}: ${fmtPrice(value)} ${priceUnit}.`,
         inputs: { seasons: past.map((p) => p.season), prices: past.map((p) => p.price), lambda },
       };
     }
@@ -241,7 +253,7 @@ export function bandAround(base: number, rule: BandRule, errors: ErrorHistory, p
   let why: string;
   if (rule.kind === 'percent') {
     share = rule.pct / 100;
-    why = `± ${rule.pct}% chosen by the planner`;
+    why = `± ${rule.pct} % chosen by the planner`;
   } else {
     if (methodIsManual) throw new ExpectationError('A manual figure has no history of errors; choose a percent band or set low and high', 'band');
     if (errors.rmsPct === null || errors.seasons.length < MIN_ERRORS_FOR_BAND)

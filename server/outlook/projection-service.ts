@@ -92,10 +92,11 @@ export async function gatherProjectionInputs(db: Db, o: OutlookRow): Promise<Pro
       const latest = landRows.filter((r) => r.farmId === f.id && r.factor === factor).sort((a, b) => b.startYear - a.startYear)[0];
       if (latest) {
         fixed[factor] = latest.value;
-        sources.push(`${factor} of ${latest.season}`);
+        // Plain words: the screens and the member portal show this text as it is.
+        sources.push(`${factor === 'land_ha' ? 'land' : factor.replace(/_/g, ' ')} recorded for ${latest.season}`);
       } else if (factor === 'land_ha') {
         fixed[factor] = f.landHa;
-        sources.push('land_ha from the farm register');
+        sources.push('land on the farm register');
       } else throw AppError.unprocessable(`Farm ${f.code} has no value of the fixed factor ${factor}`);
     }
     return { id: f.id, code: f.code, name: f.name, region: f.region, fixed, fixedSource: sources.join(', ') || 'no fixed factors' };

@@ -155,7 +155,7 @@ describe('price expectations', () => {
 
 describe('season projection', () => {
   let result: {
-    farms: { code: string; farmId: number; fixed: Record<string, number>; items: { item: string; scenarios: Record<string, { point: number; p5: number; median: number; p95: number }> }[] }[];
+    farms: { code: string; farmId: number; fixed: Record<string, number>; fixedSource: string; items: { item: string; scenarios: Record<string, { point: number; p5: number; median: number; p95: number }> }[] }[];
     coop: {
       items: { item: string; unit: string; scenarios: Record<string, { point: number; p5: number; median: number; p95: number }>; tonnes: { unit: string; scenarios: Record<string, { point: number }> } | null }[];
       deliveries: { items: string[]; scenarios: Record<string, { point: number; p5: number; p95: number }> };
@@ -183,6 +183,8 @@ describe('season projection', () => {
     const f01 = result.farms.find((f) => f.code === 'F01')!;
     const land = (await planner.get(`/api/records/land?farms=${f01.farmId}`)).body as { season: string; landHa: number }[];
     expect(f01.fixed).toEqual({ land_ha: land.find((l) => l.season === '2025/26')!.landHa, trend: 21 });
+    // Shown as it is on the farm panel and the member portal: plain words, no stored factor name.
+    expect(f01.fixedSource).toBe('land recorded for 2025/26');
     const q = Object.entries(base).map(([k, v]) => `${k}=${v}`).join(',');
     const ev = await planner.get(`/api/model-runs/${runId}/evaluate?prices=${q}&fixed=land_ha=${f01.fixed.land_ha},trend=21`);
     expect(ev.status).toBe(200);

@@ -12,7 +12,7 @@ import { errorMessage, errorStatus } from '../core/api-error';
 import { ExpectationsTable } from '../outlook/expectations-table';
 import { FanChart, fanInputFor } from '../outlook/fan-chart';
 import { OutlookCautions } from '../outlook/outlook-cautions';
-import { describeFixed, formatDate, formatQuantity, formatShare } from '../outlook/outlook-format';
+import { describeFixed, formatDate, formatQuantity, formatShare, landSentence } from '../outlook/outlook-format';
 import type { MemberVersion, MemberVersionRow } from '../outlook/outlook-types';
 import { SourceFacts } from '../outlook/source-facts';
 import { QuantityCards } from './quantity-cards';
@@ -68,17 +68,44 @@ export class PortalOutlook {
     const it = o?.projection.coop.items.find((i) => i.item === this.item());
     return o && it ? fanInputFor(it, o.projection.coop.history, o.season.label, { compact: this.narrow(), maxHistory: this.narrow() ? 8 : 12 }) : null;
   });
+  /** The base scenario's deliveries in one sentence: the figure at the estimates, its band and its share of storage. */
   protected readonly delivered = computed(() => {
     const c = this.o()?.projection.coop;
     const d = c?.deliveries?.scenarios['base'];
     if (!c || !d) return null;
-    return { point: d.point, p5: d.p5, p95: d.p95, storage: c.capacity?.scenarios['base']?.storageShare?.point ?? null, capacity: c.capacity?.storageCapacityT ?? null };
+    const storage = c.capacity?.scenarios['base']?.storageShare?.point ?? null;
+    const capacity = c.capacity?.storageCapacityT ?? null;
+    const band = `5–95 % band ${formatQuantity(d.p5)}–${formatQuantity(d.p95)} t`;
+    return {
+      point: formatQuantity(d.point),
+      rest: storage !== null && capacity ? `${band}; ${formatShare(storage)} of the co-op's ${formatQuantity(capacity)} t of storage` : band,
+    };
   });
+
+  /** What the cards' figures are; one wording for the farm and the co-op, as the staff pages use it. */
+  protected readonly statisticNote = computed(() => {
+    const draws = this.o()?.projection.draws;
+    const n = draws ? `${new Intl.NumberFormat('en-GB').format(draws)} ` : '';
+    return `Each figure is the projection at the estimates, the model's best-fit figure and the one in the outlook e-mail; the 5–95 % band holds 9 in 10 of ${n}simulated seasons; the low and high scenarios use the low and high expected prices below.`;
+  });
+
+  /** The member's plain account of where the numbers come from; the technical facts sit behind "How this was made". */
+  protected readonly plainSource = computed(() => {
+    const o = this.o();
+    if (!o) return '';
+    const by = o.publishedBy ? ` by ${o.publishedBy}` : '';
+    return `The co-op's planner made these figures from the member farms' records of ${o.model.sampleSeasons.first} to ${o.model.sampleSeasons.last} (${o.model.observations} farm seasons) and the expected prices above, and published them on ${formatDate(o.publishedAt)}${by}.`;
+  });
+
+  protected fanNote(season: string, recorded: string): string {
+    return `${recorded}, then ${season}: for each price scenario the median of the simulated seasons (dashed) inside its 5–95 % band. The cards show the figures at the estimates, which lie close to the median.`;
+  }
 
   protected readonly describeFixed = describeFixed;
   protected readonly formatDate = formatDate;
   protected readonly formatQuantity = formatQuantity;
   protected readonly formatShare = formatShare;
+  protected readonly landSentence = landSentence;
 
   protected chooseVersion(id: number): void {
     void this.#router.navigate(['/my-farm/outlook'], { queryParams: { version: id } });

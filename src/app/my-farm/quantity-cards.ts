@@ -4,7 +4,8 @@ import type { ItemProjection } from '../outlook/outlook-types';
 
 /**
  * Projected quantities as cards that read on a phone: the base scenario at the estimates (the figure
- * of the e-mail), its 5–95 % band, and the low and high scenarios.
+ * of the e-mail), its 5–95 % band of simulated seasons, and the low and high scenarios at the
+ * estimates, the same statistic the staff grid shows for each scenario.
  */
 @Component({
   selector: 'np-quantity-cards',
@@ -14,8 +15,8 @@ import type { ItemProjection } from '../outlook/outlook-types';
         <li class="card" [class.input]="it.role === 'input'">
           <span class="what">{{ it.name }} <span class="role">{{ it.role === 'output' ? 'supply' : 'demand' }}</span></span>
           <span class="value">{{ formatQuantity(it.scenarios['base']?.point) }} <span class="unit">{{ it.unit }}</span></span>
-          <span class="band">90 % band {{ formatBand(it.scenarios['base']) }}</span>
-          <span class="scen">Low {{ formatQuantity(it.scenarios['low']?.point) }} · high {{ formatQuantity(it.scenarios['high']?.point) }}</span>
+          <span class="band">5–95 % band {{ formatBand(it.scenarios['base']) }}</span>
+          <span class="scen">Low scenario {{ formatQuantity(it.scenarios['low']?.point) }} · high {{ formatQuantity(it.scenarios['high']?.point) }}</span>
         </li>
       }
     </ul>

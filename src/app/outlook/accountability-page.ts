@@ -89,6 +89,10 @@ export class AccountabilityPage {
     const a = this.a();
     return a ? errorChartOption(a) : null;
   });
+  /** Some season has a recorded quantity or price to set against its outlook; until then a short note stands in for the tables. */
+  protected readonly hasRecords = computed(() =>
+    (this.a()?.seasons ?? []).some((s) => s.items.some((i) => i.errorPct !== null) || s.prices.some((p) => p.errorPct !== null) || s.farms.some((f) => f.items.some((i) => i.errorPct !== null))),
+  );
   protected readonly seasons = computed(() => [...(this.a()?.seasons ?? [])].sort((x, y) => y.startYear - x.startYear));
   protected readonly priceSummary = computed(() => {
     const a = this.a();
@@ -137,9 +141,9 @@ export class AccountabilityPage {
       flex: 1,
       valueFormatter: (p) => (p.data?.farmsReported === 0 ? 'no records yet' : typeof p.value === 'number' ? formatQuantity(p.value) : '—'),
     },
-    { field: 'p5', headerName: '5 %', type: 'numericColumn', width: 110, valueFormatter: num(formatQuantity) },
-    { field: 'p95', headerName: '95 %', type: 'numericColumn', width: 110, valueFormatter: num(formatQuantity) },
-    { field: 'actual', headerName: 'Actual', type: 'numericColumn', minWidth: 120, flex: 1, valueFormatter: num(formatQuantity) },
+    { field: 'p5', headerName: '5 %', type: 'numericColumn', width: 124, valueFormatter: num(formatQuantity) },
+    { field: 'p95', headerName: '95 %', type: 'numericColumn', width: 124, valueFormatter: num(formatQuantity) },
+    { field: 'actual', headerName: 'Actual', type: 'numericColumn', minWidth: 130, flex: 1, valueFormatter: num(formatQuantity) },
     { field: 'errorPct', headerName: 'Error', type: 'numericColumn', width: 110, valueFormatter: num((v) => formatSignedPercent(v)) },
     { field: 'withinBand', headerName: 'In band', width: 100, valueFormatter: yesNo },
     { headerName: 'Farms reported', type: 'numericColumn', width: 140, valueGetter: (p) => (p.data ? `${p.data.farmsReported} of ${p.data.farmsProjected}` : '') },
@@ -159,8 +163,8 @@ export class AccountabilityPage {
     { field: 'code', headerName: 'Code', width: 90 },
     { field: 'farm', headerName: 'Farm', minWidth: 160, flex: 2, filter: 'agTextColumnFilter' },
     { field: 'name', headerName: 'Item', minWidth: 150, flex: 1, filter: 'agTextColumnFilter' },
-    { field: 'projected', headerName: 'Projected', type: 'numericColumn', width: 120, valueFormatter: num(formatQuantity) },
-    { field: 'actual', headerName: 'Actual', type: 'numericColumn', width: 120, valueFormatter: num(formatQuantity) },
+    { field: 'projected', headerName: 'Projected', type: 'numericColumn', width: 130, valueFormatter: num(formatQuantity) },
+    { field: 'actual', headerName: 'Actual', type: 'numericColumn', width: 130, valueFormatter: num(formatQuantity) },
     { field: 'unit', headerName: 'Unit', width: 90 },
     { field: 'errorPct', headerName: 'Error', type: 'numericColumn', width: 110, filter: 'agNumberColumnFilter', valueFormatter: num((v) => formatSignedPercent(v)) },
     { field: 'withinBand', headerName: 'In band', width: 100, valueFormatter: yesNo },

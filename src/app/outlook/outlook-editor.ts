@@ -22,7 +22,7 @@ import { ExpectationsTable, type MissingExpectation } from './expectations-table
 import { FuturesQuotes } from './futures-quotes';
 import { OutlookApi } from './outlook-api';
 import { OutlookCautions } from './outlook-cautions';
-import { formatDateTime } from './outlook-format';
+import { formatDateTime, formatPriceIn } from './outlook-format';
 import { PROJECTION_WORDS } from './outlook-list';
 import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookPatch, type ProjectionAnswer, type ProjectionState, type ScenarioRule } from './outlook-types';
 import { ProjectionReport } from './projection-report';
@@ -174,7 +174,7 @@ export class OutlookEditor {
         if (!saved) return;
         this.draft.set(saved);
         const x = saved.expectations.find((i) => i.item === code);
-        this.#snackBar.open(x ? `${x.name}: ${x.methodLabel}, base ${x.base.toFixed(x.base >= 10 ? 2 : 3)} ${x.priceUnit}.` : 'Expected prices saved.', 'OK');
+        this.#snackBar.open(x ? `${x.name}: ${x.methodLabel}, base ${formatPriceIn(x.base, x.priceUnit)}.` : 'Expected prices saved.', 'OK');
       });
   }
 

@@ -6,21 +6,35 @@ const one = nf(1);
 const two = nf(2);
 const three = nf(3);
 
+const fourFigures = new Intl.NumberFormat('en-GB', { maximumSignificantDigits: 4 });
+
 const minus = (s: string) => s.replace('-', '−');
 
 /**
- * A projected quantity with the precision of the outlook e-mail (server/mail/outlook-mail.ts
- * fmtQuantity): whole units from 100 up, one decimal below. Farm tonnes and co-op kilograms both read well.
+ * A projected quantity at the precision its ±2 % bands allow: four significant figures from
+ * 10,000 up (1,423,282 kg N → "1,423,000"), whole units from 100 up, one decimal below (18.8 days).
+ * Screens only: CSV exports carry the full value (csvCell).
  */
 export function formatQuantity(v: number | null | undefined): string {
   if (v == null || !Number.isFinite(v)) return '—';
-  return minus(Math.abs(v) >= 100 ? whole.format(v) : one.format(v));
+  const abs = Math.abs(v);
+  return minus(abs >= 10_000 ? fourFigures.format(v) : abs >= 100 ? whole.format(v) : one.format(v));
 }
 
-/** A price: two decimals from 10 up (195.40 EUR/t), three below (1.152 EUR/kg N), as in the e-mail. */
+/**
+ * A price: two decimals from 10 up (195.40 EUR/t), three below (1.152 EUR/kg N). The server writes
+ * the prices in its explanations with the same rule and the same Intl formatter
+ * (server/outlook/expectations.ts fmtPrice), so 1.3215 reads 1.322 in both places.
+ */
 export function formatPrice(v: number | null | undefined): string {
   if (v == null || !Number.isFinite(v)) return '—';
   return minus(Math.abs(v) >= 10 ? two.format(v) : three.format(v));
+}
+
+/** A price with its unit: "178.92 EUR/t", "1.740 EUR/kg N"; "—" when there is none. */
+export function formatPriceIn(v: number | null | undefined, unit: string | null | undefined): string {
+  const p = formatPrice(v);
+  return p === '—' || !unit ? p : `${p} ${unit}`;
 }
 
 /** A percentage already in percent units (12.3 → "12.3 %"). */
@@ -72,15 +86,52 @@ export function nextSeasonLabel(latestStartYear: number | null, now = new Date()
   return `${y}/${String((y + 1) % 100).padStart(2, '0')}`;
 }
 
+/** A fixed factor's stored name in plain words ("stock_lu" → "stock lu"); land has its own words. */
+const factorWords = (k: string) => (k === 'land_ha' ? 'land' : k.replace(/_/g, ' '));
+
 /** "262 ha of land, trend index 21": the fixed factors a farm was projected at, land first. */
 export function describeFixed(fixed: Record<string, number>): string {
   const parts: string[] = [];
   if (fixed['land_ha'] !== undefined) parts.push(`${formatQuantity(fixed['land_ha'])} ha of land`);
   for (const [k, v] of Object.entries(fixed)) {
     if (k === 'land_ha') continue;
-    parts.push(k === 'trend' ? `trend index ${Math.round(v)}` : `${k} ${formatQuantity(v)}`);
+    parts.push(k === 'trend' ? `trend index ${Math.round(v)}` : `${factorWords(k)} ${formatQuantity(v)}`);
   }
   return parts.join(', ');
+}
+
+/**
+ * Where a farm's fixed factors came from, in plain words. The server writes "land recorded for
+ * 2025/26"; versions published before it wrote the stored names ("land_ha of 2025/26", "land_ha
+ * from the farm register"), which read the same way here.
+ */
+export function describeFixedSource(source: string | null | undefined): string {
+  if (!source) return '';
+  return source
+    .split(', ')
+    .map((part) => {
+      const register = /^(\w+) from the farm register$/.exec(part);
+      if (register) return `${factorWords(register[1]!)} on the farm register`;
+      const recorded = /^(\w+) of (\S+)$/.exec(part);
+      if (recorded) return `${factorWords(recorded[1]!)} recorded for ${recorded[2]}`;
+      return part.replace(/\bland_ha\b/g, 'land');
+    })
+    .join(', ');
+}
+
+/**
+ * One sentence on which land figure a farm was projected at and why, for readers who also see the
+ * farm register's figure (the farm page), which can differ from the land recorded for a season.
+ */
+export function landSentence(f: { fixed: Record<string, number>; fixedSource: string }, yours = false): string {
+  const land = f.fixed['land_ha'];
+  if (land === undefined) return '';
+  const ha = `${formatQuantity(land)} ha`;
+  const season = /(?:land_ha of|land recorded for) (\S+)/.exec(f.fixedSource)?.[1];
+  const whose = yours ? 'your farm' : 'the farm';
+  if (season)
+    return `The projection uses the ${ha} of land recorded for ${season}, the latest season with records, because the model learnt from recorded seasons; the land on the farm register can differ (it may already hold next season's area) and is not used here.`;
+  return `No land is recorded for any season of ${whose}, so the projection uses the ${ha} on the farm register.`;
 }
 
 /**

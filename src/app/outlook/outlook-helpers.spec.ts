@@ -1,8 +1,8 @@
 import { ApiRequestError } from '../core/api-error';
 import { detailsForItem } from './expectation-dialog';
-import { describeFixed, formatPrice, formatQuantity, nextSeasonLabel } from './outlook-format';
+import { describeFixed, describeFixedSource, formatPrice, formatPriceIn, formatQuantity, landSentence, nextSeasonLabel } from './outlook-format';
 import { finishedRuns, type ItemProjection } from './outlook-types';
-import { projectionRows } from './projection-grid';
+import { numberWidth, projectionRows } from './projection-grid';
 
 // Invented figures: the shaping of API answers for the screens is under test.
 const q = (median: number) => ({ point: median + 5, mean: median, sd: 10, median, p5: median - 100, p95: median + 100 });
@@ -22,6 +22,18 @@ describe('projectionRows', () => {
     const [row] = projectionRows([nitrogen], false);
 
     expect(row).toMatchObject({ name: 'Nitrogen (N)', unit: 'kg N', point: 61_005, low_p5: 57_900, low_median: 58_000, base_median: 61_000, base_p95: 61_100, high_median: 64_000 });
+  });
+
+  it('should carry every scenario at the estimates, the figure the member portal shows for low and high', () => {
+    const [row] = projectionRows([nitrogen], false);
+
+    expect([row!['low_point'], row!.point, row!['high_point']]).toEqual([58_005, 61_005, 64_005]);
+  });
+
+  it('should size a column to show its widest number whole', () => {
+    // "1,423,000": 7 digits of about 8 px, 2 separators of about 4 px, 44 px of padding and sort arrow.
+    expect(numberWidth('1,423,000')).toBe(Math.ceil(7 * 8.2 + 2 * 4.2 + 44));
+    expect(numberWidth('1,423,000')).toBeGreaterThan(numberWidth('36,050'));
   });
 
   it('should switch items counted by mass to tonnes and leave litres as they are', () => {
@@ -69,9 +81,16 @@ describe('finishedRuns', () => {
 });
 
 describe('outlook formats', () => {
-  it('should follow the e-mail precision: whole units from 100, prices with 2 or 3 decimals', () => {
-    expect([formatQuantity(31_400.4), formatQuantity(12.34), formatQuantity(-3.21)]).toEqual(['31,400', '12.3', '−3.2']);
+  it('should show quantities at four significant figures from 10,000, whole units from 100, one decimal below', () => {
+    expect([formatQuantity(1_423_282), formatQuantity(1_393_108), formatQuantity(46_306), formatQuantity(9_999.4)]).toEqual(['1,423,000', '1,393,000', '46,310', '9,999']);
+    expect([formatQuantity(31_400.4), formatQuantity(444.4), formatQuantity(12.34), formatQuantity(-3.21)]).toEqual(['31,400', '444', '12.3', '−3.2']);
+  });
+
+  it('should write prices with 2 or 3 decimals, rounding a last 5 up as the server explanations do', () => {
     expect([formatPrice(212.125), formatPrice(1.2), formatPrice(null)]).toEqual(['212.13', '1.200', '—']);
+    // 1.3215 and 0.6685 lie just below in binary; server/outlook/expectations.test.ts checks the server's text of the same cases.
+    expect([formatPrice(1.3215), formatPrice(0.6685)]).toEqual(['1.322', '0.669']);
+    expect([formatPriceIn(178.92, 'EUR/t'), formatPriceIn(1.74, 'EUR/kg N'), formatPriceIn(null, 'EUR/t')]).toEqual(['178.92 EUR/t', '1.740 EUR/kg N', '—']);
   });
 
   it('should suggest the season after the latest one', () => {
@@ -81,5 +100,19 @@ describe('outlook formats', () => {
 
   it('should name the fixed factors a farm was projected at, land first', () => {
     expect(describeFixed({ trend: 21, land_ha: 262.4 })).toBe('262 ha of land, trend index 21');
+    expect(describeFixed({ land_ha: 262, stock_lu: 40 })).toBe('262 ha of land, stock lu 40.0');
+  });
+
+  it('should say where the land came from in plain words, also for versions published with the stored names', () => {
+    expect(describeFixedSource('land recorded for 2025/26')).toBe('land recorded for 2025/26');
+    expect(describeFixedSource('land_ha of 2025/26')).toBe('land recorded for 2025/26');
+    expect(describeFixedSource('land_ha from the farm register')).toBe('land on the farm register');
+  });
+
+  it('should explain in one sentence which land figure the projection used', () => {
+    expect(landSentence({ fixed: { land_ha: 262, trend: 21 }, fixedSource: 'land recorded for 2025/26' })).toContain('uses the 262 ha of land recorded for 2025/26, the latest season with records');
+    expect(landSentence({ fixed: { land_ha: 262 }, fixedSource: 'land_ha of 2025/26' })).toContain('the land on the farm register can differ');
+    expect(landSentence({ fixed: { land_ha: 271 }, fixedSource: 'land on the farm register' }, true)).toBe('No land is recorded for any season of your farm, so the projection uses the 271 ha on the farm register.');
+    expect(landSentence({ fixed: { trend: 21 }, fixedSource: '' })).toBe('');
   });
 });

@@ -2,12 +2,15 @@ import { ChangeDetectionStrategy, Component, computed, input, signal } from '@an
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { AgGridAngular } from 'ag-grid-angular';
-import type { ColDef, ColGroupDef, GridApi, GridReadyEvent } from 'ag-grid-community';
+import { ModuleRegistry, TooltipModule, type ColDef, type ColGroupDef, type GridApi, type GridReadyEvent } from 'ag-grid-community';
 import { gridTheme } from '../shared/grid';
 import { csvCell, formatQuantity } from './outlook-format';
 import { SCENARIO_NAMES, scenarioLabel, type ItemProjection, type QuantitySummary } from './outlook-types';
 
-/** One grid row: an item with each scenario's 5 %, median and 95 % points, in item units or tonnes. */
+/**
+ * One grid row: an item with each scenario's figure at the estimates (`point` for the base,
+ * `low_point`, `high_point`) and its 5 %, median and 95 % points, in item units or tonnes.
+ */
 export interface ProjectionRow {
   item: string;
   name: string;
@@ -34,6 +37,7 @@ export function projectionRows(items: readonly ItemProjection[], tonnes: boolean
     };
     for (const s of SCENARIO_NAMES) {
       const q = scenarios[s];
+      if (s !== 'base') row[`${s}_point`] = q?.point ?? null;
       row[`${s}_p5`] = q?.p5 ?? null;
       row[`${s}_median`] = q?.median ?? null;
       row[`${s}_p95`] = q?.p95 ?? null;
@@ -42,7 +46,43 @@ export function projectionRows(items: readonly ItemProjection[], tonnes: boolean
   });
 }
 
+// Header tooltips explain the short column names.
+ModuleRegistry.registerModules([TooltipModule]);
+
 const quantity = (p: { value: unknown }) => (typeof p.value === 'number' ? formatQuantity(p.value) : '—');
+
+/**
+ * Width in px that shows a formatted number whole: digits of the app font at 14 px are about 8 px
+ * wide, separators about 4 px, plus the cell's padding and a margin for the sort arrow.
+ */
+export function numberWidth(text: string): number {
+  const digits = (text.match(/[0-9−]/g) ?? []).length;
+  return Math.ceil(digits * 8.2 + (text.length - digits) * 4.2 + 44);
+}
+
+/** The columns of one scenario, each at least as wide as its widest formatted value and its header. */
+function scenarioColumns(rows: readonly ProjectionRow[]): ColGroupDef<ProjectionRow>[] {
+  const widest = (field: string, header: number) => Math.max(header, ...rows.map((r) => numberWidth(quantity({ value: r[field] }))));
+  return SCENARIO_NAMES.map((s) => ({
+    headerName: s === 'base' ? 'Base' : s === 'low' ? 'Low' : 'High',
+    headerTooltip: `${scenarioLabel(s)}${s === 'base' ? ': the expected prices' : ': see the prices of the scenarios'}. The arrow opens or closes its 5–95 % band.`,
+    openByDefault: s === 'base',
+    children: [
+      {
+        field: s === 'base' ? 'point' : `${s}_point`,
+        headerName: 'At estimates',
+        headerTooltip: 'At the estimates: the model at its fitted parameters, without chance variation (the figure of the e-mail and of the member portal)',
+        type: 'numericColumn',
+        minWidth: widest(s === 'base' ? 'point' : `${s}_point`, 96),
+        flex: 1,
+        valueFormatter: quantity,
+      },
+      { field: `${s}_p5`, headerName: '5 %', headerTooltip: '5 % of the simulated seasons fall below this', type: 'numericColumn', minWidth: widest(`${s}_p5`, 76), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
+      { field: `${s}_median`, headerName: 'Median', headerTooltip: 'Median of the simulated seasons', type: 'numericColumn', minWidth: widest(`${s}_median`, 96), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
+      { field: `${s}_p95`, headerName: '95 %', headerTooltip: '95 % of the simulated seasons fall below this', type: 'numericColumn', minWidth: widest(`${s}_p95`, 84), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
+    ],
+  }));
+}
 
 /** Supply and input demand of the co-op or one farm per price scenario, with 5–95 % bands (AG Grid). */
 @Component({
@@ -54,13 +94,18 @@ const quantity = (p: { value: unknown }) => (typeof p.value === 'number' ? forma
       [attr.aria-label]="label()"
       [theme]="theme"
       [rowData]="rows()"
-      [columnDefs]="columns"
+      [columnDefs]="columns()"
+      [tooltipShowDelay]="300"
       [defaultColDef]="defaultColDef"
       domLayout="autoHeight"
       (gridReady)="gridReady($event)"
     />
     <div class="under">
-      <span class="np-muted">Outputs are supply, inputs demand. Median and 5–95 % band of {{ draws() }} simulated seasons; “at estimates” is the base scenario at the fitted parameters, without noise (the figure of the e-mail). The arrows by a scenario open its band.</span>
+      <span class="np-muted"
+        >Outputs are supply, inputs demand. Each scenario's figure is “at estimates”: the model at its fitted parameters, without chance variation, as in
+        the e-mail and the member portal. Its 5 %, median and 95 % points come from {{ draws() ?? 'the' }} simulated seasons; the arrow by a scenario
+        opens or closes them. Export CSV keeps every figure unrounded.</span
+      >
       <button matButton type="button" (click)="exportCsv()"><mat-icon>download</mat-icon>Export CSV</button>
     </div>
   `,
@@ -93,25 +138,12 @@ export class ProjectionGrid {
   protected readonly rows = computed(() => projectionRows(this.items(), this.tonnes()));
   readonly #grid = signal<GridApi<ProjectionRow> | null>(null);
 
-  protected readonly columns: (ColDef<ProjectionRow> | ColGroupDef<ProjectionRow>)[] = [
-    { field: 'name', headerName: 'Item', pinned: 'left', minWidth: 160, flex: 2 },
-    { field: 'unit', headerName: 'Unit', width: 90 },
-    ...SCENARIO_NAMES.map(
-      (s): ColGroupDef<ProjectionRow> => ({
-        headerName: scenarioLabel(s),
-        openByDefault: s === 'base',
-        children: [
-          { field: `${s}_p5`, headerName: '5 %', type: 'numericColumn', minWidth: 88, flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
-          { field: `${s}_median`, headerName: 'Median', type: 'numericColumn', minWidth: s === 'base' ? 104 : 124, flex: 1, valueFormatter: quantity },
-          { field: `${s}_p95`, headerName: '95 %', type: 'numericColumn', minWidth: 88, flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
-          ...(s === 'base'
-            ? [{ field: 'point', headerName: 'At estimates', type: 'numericColumn', minWidth: 116, flex: 1, valueFormatter: quantity, columnGroupShow: 'open' } as ColDef<ProjectionRow>]
-            : []),
-        ],
-      }),
-    ),
-  ];
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
+  protected readonly columns = computed<(ColDef<ProjectionRow> | ColGroupDef<ProjectionRow>)[]>(() => [
+    { field: 'name', headerName: 'Item', pinned: 'left', minWidth: 140, flex: 2 },
+    { field: 'unit', headerName: 'Unit', width: 100 },
+    ...scenarioColumns(this.rows()),
+  ]);
+  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true, wrapHeaderText: true, autoHeaderHeight: true };
 
   protected gridReady(event: GridReadyEvent<ProjectionRow>): void {
     this.#grid.set(event.api);

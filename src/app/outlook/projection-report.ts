@@ -5,8 +5,8 @@ import { MatSlideToggle } from '@angular/material/slide-toggle';
 import { DeliveriesCapacity } from './deliveries-capacity';
 import { FanChart, fanInputFor } from './fan-chart';
 import { FarmsGrid } from './farms-grid';
-import { describeFixed, formatPrice, formatShare } from './outlook-format';
-import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type FarmOutlook, type ScenarioPrices } from './outlook-types';
+import { describeFixed, describeFixedSource, formatPrice, formatShare, landSentence } from './outlook-format';
+import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type FarmOutlook, type ItemExpectation, type ScenarioPrices } from './outlook-types';
 import { ProjectionGrid } from './projection-grid';
 
 /** Recorded seasons before the fan: enough to see the trend, few enough that the projected season stands out. */
@@ -32,6 +32,8 @@ export class ProjectionReport {
   readonly draws = input<number | null>(null);
   readonly scenarios = input<readonly ScenarioPrices[]>([]);
   readonly scenarioRuleText = input('');
+  /** The expected prices the scenarios were made from: they carry each item's price unit. */
+  readonly expectations = input<readonly ItemExpectation[]>([]);
   /** Prefix of exported file names, e.g. "netput-outlook-2026-27-v1". */
   readonly filePrefix = input('netput-outlook');
 
@@ -42,6 +44,8 @@ export class ProjectionReport {
   protected readonly farmId = linkedSignal(() => this.farms()[0]?.farmId ?? null);
   protected readonly farm = computed(() => this.farms().find((f) => f.farmId === this.farmId()) ?? null);
   protected readonly describeFixed = describeFixed;
+  protected readonly describeFixedSource = describeFixedSource;
+  protected readonly landSentence = landSentence;
 
   protected readonly coopFan = computed(() => {
     const it = this.coop().items.find((i) => i.item === this.item());
@@ -53,11 +57,13 @@ export class ProjectionReport {
     return f && it ? fanInputFor(it, f.history, this.season(), { maxHistory: FAN_HISTORY }) : null;
   });
 
-  /** Item × scenario prices the projection was made at, with the curvature check of each scenario. */
+  /** Item × scenario prices the projection was made at, each with its unit ("EUR/t", "EUR/kg N"). */
   protected readonly priceRows = computed(() => {
     const byName = new Map(this.scenarios().map((s) => [s.name, s]));
+    const unitOf = new Map(this.expectations().map((e) => [e.item, e.priceUnit]));
     return this.coop().items.map((it) => ({
       name: it.name,
+      unit: unitOf.get(it.item) ?? '',
       prices: SCENARIO_NAMES.map((n) => formatPrice(byName.get(n)?.prices[it.item])),
     }));
   });

@@ -34,7 +34,10 @@ interface ProjectionJson {
 }
 
 /** The page's own rounding of quantities and prices (src/app/outlook/outlook-format.ts), for comparing cells. */
-const quantity = (v: number) => new Intl.NumberFormat('en-GB', { maximumFractionDigits: Math.abs(v) >= 100 ? 0 : 1, minimumFractionDigits: Math.abs(v) >= 100 ? 0 : 1 }).format(v);
+const quantity = (v: number) =>
+  Math.abs(v) >= 10_000
+    ? new Intl.NumberFormat('en-GB', { maximumSignificantDigits: 4 }).format(v)
+    : new Intl.NumberFormat('en-GB', { maximumFractionDigits: Math.abs(v) >= 100 ? 0 : 1, minimumFractionDigits: Math.abs(v) >= 100 ? 0 : 1 }).format(v);
 const price = (v: number) => new Intl.NumberFormat('en-GB', { minimumFractionDigits: Math.abs(v) >= 10 ? 2 : 3, maximumFractionDigits: Math.abs(v) >= 10 ? 2 : 3 }).format(v);
 
 /** Rows of an AG Grid: a pinned column renders each row twice, so rows are counted by their index. */
@@ -213,7 +216,9 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
         await check('the accountability page lists the season as awaiting records', async () => {
           await page.goto(`${base}/outlook/accountability`);
           await page.getByRole('heading', { level: 1, name: 'Forecast against outcome' }).waitFor();
+          await page.getByRole('heading', { name: 'No records to compare yet' }).waitFor();
           await page.getByText('awaiting the season’s records').first().waitFor();
+          assertEqual(await page.locator('ag-grid-angular').count(), 0, 'grids before any season has records');
         });
       }
     }
