@@ -3,6 +3,7 @@
  * totals, the expected prices, the planner's commentary, the cautions, a link to the portal and a
  * one-click unsubscribe link. It only shows numbers it is given; it computes none.
  */
+import { quantityText } from '../../shared/number-format.js';
 
 export interface OutlookMailQuantity {
   name: string;
@@ -38,13 +39,11 @@ export interface OutlookMailInput {
 }
 
 const nf0 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 0 });
-const nf1 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 1, minimumFractionDigits: 1 });
 const nf2 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 2, minimumFractionDigits: 2 });
 const nf3 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 3, minimumFractionDigits: 3 });
 
-export function fmtQuantity(x: number): string {
-  return Math.abs(x) >= 100 ? nf0.format(x) : nf1.format(x);
-}
+/** As on the screens (shared/number-format.ts): four significant figures from 10,000 up. */
+export const fmtQuantity = quantityText;
 export function fmtMoney(x: number): string {
   return Math.abs(x) >= 10 ? nf2.format(x) : nf3.format(x);
 }
@@ -58,7 +57,7 @@ const band = (q: OutlookMailQuantity) => `${fmtQuantity(q.p5)}–${fmtQuantity(q
 function quantityLines(rows: OutlookMailQuantity[]): string[] {
   return rows.map(
     (q) =>
-      `  ${q.name}: ${fmtQuantity(q.point)} ${q.unit} (90% band ${band(q)}; low scenario ${fmtQuantity(q.low)}, high scenario ${fmtQuantity(q.high)})`,
+      `  ${q.name}: ${fmtQuantity(q.point)} ${q.unit} (5–95 % band ${band(q)}; low scenario ${fmtQuantity(q.low)}, high scenario ${fmtQuantity(q.high)})`,
   );
 }
 
@@ -67,7 +66,7 @@ function quantityTable(rows: OutlookMailQuantity[]): string {
   const td = 'style="padding:4px 8px;border-bottom:1px solid #e3e8e3"';
   const tdn = 'style="padding:4px 8px;border-bottom:1px solid #e3e8e3;text-align:right;white-space:nowrap"';
   return `<table style="border-collapse:collapse;font-size:14px">
-<tr><th ${th}>Item</th><th ${th}>Projected</th><th ${th}>90% band</th><th ${th}>Low scenario</th><th ${th}>High scenario</th></tr>
+<tr><th ${th}>Item</th><th ${th}>Projected</th><th ${th}>5–95 % band</th><th ${th}>Low scenario</th><th ${th}>High scenario</th></tr>
 ${rows
   .map(
     (q) =>

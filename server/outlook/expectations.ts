@@ -9,6 +9,7 @@
  *   manual             the planner's figure
  * Pure functions: prices in, numbers and plain-language explanations out.
  */
+import { minus, priceText } from '../../shared/number-format.js';
 import { linearRegression, linearRegressionLine } from 'simple-statistics';
 
 import type { BandRule, ComputedExpectation, ErrorHistory, ExpectationMethod, ExpectationSetting, PastError, ScenarioRule } from '../../shared/outlook-types.js';
@@ -68,16 +69,10 @@ export const MIN_ERRORS_FOR_BAND = 3;
 // formatPrice, formatPercent): the same Intl formatter and digits rule. Intl rounds the shortest
 // decimal form of a number half away from zero (1.3215 → 1.322), where toFixed rounds the binary
 // value (1.32149999… → 1.321), so the two used to disagree on the same price.
-const nf = (digits: number) => new Intl.NumberFormat('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits });
-const nf1 = nf(1);
-const nf2 = nf(2);
-const nf3 = nf(3);
-const minus = (s: string) => s.replace('-', '−');
+const nf1 = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 1, maximumFractionDigits: 1 });
 
 /** A price: two decimals from 10 up (195.40), three below (1.152), grouped in thousands (1,234.50). */
-export function fmtPrice(x: number): string {
-  return minus(Math.abs(x) >= 10 ? nf2.format(x) : nf3.format(x));
-}
+export const fmtPrice = priceText;
 /** A percentage already in percent units, one decimal: "19.1 %". */
 export function fmtPct(x: number): string {
   return `${minus(nf1.format(x))} %`;

@@ -64,6 +64,7 @@ import { DemandSummary } from './demand-summary';
 import { ProductPlan } from './product-plan';
 import { ScenarioComparison } from './scenario-comparison';
 import { UnitSwitch } from './unit-switch';
+import { scenarioLabel } from '../outlook/outlook-types';
 
 /** The cautions every budget carries, shown before the first result arrives (the server sends its own with each result). */
 const STANDING_CAUTIONS = [
@@ -205,6 +206,7 @@ export class BudgetEditor {
       .sort((a, b) => b.id - a.id)
       .map(({ id, label, finished }) => ({ id, label: `${label} · ${new Date(finished).toLocaleDateString('en-GB', { day: 'numeric', month: 'short', year: 'numeric' })}` }));
   });
+  protected readonly scenarioLabel = scenarioLabel;
   protected readonly outlookScenarios = computed(() => {
     const names = this.versionDetail.hasValue() ? this.versionDetail.value().scenarios.map((s) => s.name) : [];
     const current = this.form.controls.source.controls.outlookScenario.value;

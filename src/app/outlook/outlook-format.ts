@@ -1,14 +1,9 @@
 import type { QuantitySummary } from './outlook-types';
 
+import { minus, priceText, quantityText } from '../../../shared/number-format';
+
 const nf = (min: number, max = min) => new Intl.NumberFormat('en-GB', { minimumFractionDigits: min, maximumFractionDigits: max });
-const whole = nf(0);
-const one = nf(1);
-const two = nf(2);
-const three = nf(3);
 
-const fourFigures = new Intl.NumberFormat('en-GB', { maximumSignificantDigits: 4 });
-
-const minus = (s: string) => s.replace('-', '−');
 
 /**
  * A projected quantity at the precision its ±2 % bands allow: four significant figures from
@@ -17,8 +12,7 @@ const minus = (s: string) => s.replace('-', '−');
  */
 export function formatQuantity(v: number | null | undefined): string {
   if (v == null || !Number.isFinite(v)) return '—';
-  const abs = Math.abs(v);
-  return minus(abs >= 10_000 ? fourFigures.format(v) : abs >= 100 ? whole.format(v) : one.format(v));
+  return quantityText(v);
 }
 
 /**
@@ -28,7 +22,7 @@ export function formatQuantity(v: number | null | undefined): string {
  */
 export function formatPrice(v: number | null | undefined): string {
   if (v == null || !Number.isFinite(v)) return '—';
-  return minus(Math.abs(v) >= 10 ? two.format(v) : three.format(v));
+  return priceText(v);
 }
 
 /** A price with its unit: "178.92 EUR/t", "1.740 EUR/kg N"; "—" when there is none. */
@@ -52,12 +46,13 @@ export function formatSignedPercent(v: number | null | undefined, digits = 1): s
 /** A share 0..1 as a whole percentage ("87 %"). */
 export function formatShare(v: number | null | undefined): string {
   if (v == null || !Number.isFinite(v)) return '—';
-  return `${whole.format(v * 100)} %`;
+  return `${nf(0).format(v * 100)} %`;
 }
 
 /** "1,234–1,890" */
 export function formatBand(q: Pick<QuantitySummary, 'p5' | 'p95'> | null | undefined): string {
-  return q ? `${formatQuantity(q.p5)}–${formatQuantity(q.p95)}` : '—';
+  // Word joiners keep a narrow card from breaking the band at its dash.
+  return q ? `${formatQuantity(q.p5)}\u2060–\u2060${formatQuantity(q.p95)}` : '—';
 }
 
 /** "2026-12-02T10:15:00Z" → "2 Dec 2026, 10:15" in the reader's time zone. */
