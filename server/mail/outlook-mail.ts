@@ -3,7 +3,7 @@
  * totals, the expected prices, the planner's commentary, the cautions, a link to the portal and a
  * one-click unsubscribe link. It only shows numbers it is given; it computes none.
  */
-import { quantityText } from '../../shared/number-format.js';
+import { priceText, quantityText } from '../../shared/number-format.js';
 
 export interface OutlookMailQuantity {
   name: string;
@@ -39,14 +39,11 @@ export interface OutlookMailInput {
 }
 
 const nf0 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 0 });
-const nf2 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 2, minimumFractionDigits: 2 });
-const nf3 = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 3, minimumFractionDigits: 3 });
 
 /** As on the screens (shared/number-format.ts): four significant figures from 10,000 up. */
 export const fmtQuantity = quantityText;
-export function fmtMoney(x: number): string {
-  return Math.abs(x) >= 10 ? nf2.format(x) : nf3.format(x);
-}
+/** A price as on the screens (shared/number-format.ts). */
+export const fmtMoney = priceText;
 
 function escapeHtml(s: string): string {
   return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);

@@ -1,4 +1,5 @@
 /** Number words of the budget pages: sensible precision, units beside, a true minus sign. */
+import { priceText, quantityText } from '../../../shared/number-format';
 
 const MINUS = '−';
 const cache = new Map<string, Intl.NumberFormat>();
@@ -21,16 +22,13 @@ function clean(s: string): string {
 
 const missing = (v: number | null | undefined): v is null | undefined => v == null || !Number.isFinite(v);
 
-const significant = (digits: number) =>
-  fmt(`s${digits}`, () => new Intl.NumberFormat('en', { maximumSignificantDigits: digits }));
-
 /**
  * Nutrient mass (kg or lb): whole units below 10,000 ("9,876"), four significant figures above
  * ("1,423,000" for 1,423,282), as projected tonnages carry no more; exports keep every digit.
  */
 export function formatMass(v: number | null | undefined): string {
   if (missing(v)) return '—';
-  return clean((Math.abs(v) < 10_000 ? fixed(0) : significant(4)).format(v));
+  return Math.abs(v) < 10_000 ? clean(fixed(0).format(v)) : quantityText(v);
 }
 
 /** Product mass (t or short tons): one decimal, "217.4"; three below 1. */
@@ -53,11 +51,12 @@ export function formatMoney(v: number | null | undefined, currency: string, digi
 
 /**
  * Money per unit (per t, per kg): two decimals, three below 10: "EUR 475.00", "EUR 1.033". Every
- * price on the budget pages goes through here, so one price reads the same wherever it shows.
+ * price on the budget pages goes through here, with the rule of the outlook pages and e-mails
+ * (shared/number-format.ts), so one price reads the same wherever it shows.
  */
 export function formatPrice(v: number | null | undefined, currency: string): string {
   if (missing(v)) return '—';
-  return `${currency} ${clean(fixed(Math.abs(v) < 10 ? 3 : 2).format(v))}`;
+  return `${currency} ${priceText(v)}`;
 }
 
 /** A price per unit of an item, the unit named: "EUR 212.10/t", "EUR 1.322/kg N"; no unit, no slash. */

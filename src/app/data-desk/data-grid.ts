@@ -5,7 +5,6 @@ import {
   RowSelectionModule,
   SelectEditorModule,
   TextEditorModule,
-  TooltipModule,
   type ProcessCellForExportParams,
 } from 'ag-grid-community';
 // The shared registration (row model, filters, pagination, CSV export) and the theme.
@@ -13,7 +12,7 @@ export { gridTheme } from '../shared/grid';
 
 // The data desk's grids also edit in place (text, number, date and list editors, whose validation
 // messages show as tooltips) and select rows to delete. Registering modules is additive.
-ModuleRegistry.registerModules([TextEditorModule, NumberEditorModule, DateEditorModule, SelectEditorModule, RowSelectionModule, TooltipModule]);
+ModuleRegistry.registerModules([TextEditorModule, NumberEditorModule, DateEditorModule, SelectEditorModule, RowSelectionModule]);
 
 /**
  * A text cell a spreadsheet would run as a formula (it starts with =, +, -, @, a tab or a carriage

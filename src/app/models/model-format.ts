@@ -25,12 +25,6 @@ export function formatAmount(v: number | null | undefined): string {
   return f.format(v).replace('-', '−');
 }
 
-/** For sentences about estimates: large amounts to three significant figures (80,385 → 80,400), smaller ones as formatAmount. */
-export function formatRoughAmount(v: number | null | undefined): string {
-  if (v == null || !Number.isFinite(v) || Math.abs(v) < 10_000) return formatAmount(v);
-  return new Intl.NumberFormat('en-GB', { maximumSignificantDigits: 3 }).format(v).replace('-', '−');
-}
-
 /** Significant digits, for coefficients and standard errors of any size. */
 export function formatSignificant(v: number | null | undefined, digits = 4): string {
   if (v == null || !Number.isFinite(v)) return '—';

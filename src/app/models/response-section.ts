@@ -5,7 +5,8 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { errorMessage } from '../core/api-error';
 import { responseOption } from './chart-options';
-import { formatAmount, formatRoughAmount, ItemLabels } from './model-format';
+import { quantityText } from '../../../shared/number-format';
+import { formatAmount, ItemLabels } from './model-format';
 import type { FitRunResult } from './model-types';
 import { ModelsApi } from './models-api';
 
@@ -118,7 +119,7 @@ export class ResponseSection {
     return (
       `Every other price, the land and the trend stay at their sample means. ` +
       `From ${formatAmount(c.prices[0])} to ${formatAmount(c.prices.at(-1))} ${pu} (half to one and a half times the mean), ` +
-      `an average farm's quantity goes from about ${formatRoughAmount(c.quantities[0])} to ${formatRoughAmount(c.quantities.at(-1))} ${unit}.`
+      `an average farm's quantity goes from about ${quantityText(c.quantities[0])} to ${quantityText(c.quantities.at(-1)!)} ${unit}.`
     );
   });
 

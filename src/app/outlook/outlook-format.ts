@@ -1,9 +1,7 @@
+import { minus, priceText, quantityText } from '../../../shared/number-format';
 import type { QuantitySummary } from './outlook-types';
 
-import { minus, priceText, quantityText } from '../../../shared/number-format';
-
 const nf = (min: number, max = min) => new Intl.NumberFormat('en-GB', { minimumFractionDigits: min, maximumFractionDigits: max });
-
 
 /**
  * A projected quantity at the precision its ±2 % bands allow: four significant figures from
@@ -16,9 +14,8 @@ export function formatQuantity(v: number | null | undefined): string {
 }
 
 /**
- * A price: two decimals from 10 up (195.40 EUR/t), three below (1.152 EUR/kg N). The server writes
- * the prices in its explanations with the same rule and the same Intl formatter
- * (server/outlook/expectations.ts fmtPrice), so 1.3215 reads 1.322 in both places.
+ * A price: two decimals from 10 up (195.40 EUR/t), three below (1.152 EUR/kg N), by the rule the
+ * server's explanations and the e-mails use too (shared/number-format.ts): 1.3215 reads 1.322 everywhere.
  */
 export function formatPrice(v: number | null | undefined): string {
   if (v == null || !Number.isFinite(v)) return '—';

@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, computed, input, signal } from '@an
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { AgGridAngular } from 'ag-grid-angular';
-import { ModuleRegistry, TooltipModule, type ColDef, type ColGroupDef, type GridApi, type GridReadyEvent } from 'ag-grid-community';
+import type { ColDef, ColGroupDef, GridApi, GridReadyEvent } from 'ag-grid-community';
 import { gridTheme } from '../shared/grid';
 import { csvCell, formatQuantity } from './outlook-format';
 import { SCENARIO_NAMES, scenarioLabel, type ItemProjection, type QuantitySummary } from './outlook-types';
@@ -45,9 +45,6 @@ export function projectionRows(items: readonly ItemProjection[], tonnes: boolean
     return row;
   });
 }
-
-// Header tooltips explain the short column names.
-ModuleRegistry.registerModules([TooltipModule]);
 
 const quantity = (p: { value: unknown }) => (typeof p.value === 'number' ? formatQuantity(p.value) : '—');
 

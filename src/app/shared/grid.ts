@@ -8,6 +8,7 @@ import {
   PaginationModule,
   QuickFilterModule,
   TextFilterModule,
+  TooltipModule,
   ValidationModule,
   themeQuartz,
 } from 'ag-grid-community';
@@ -23,6 +24,8 @@ ModuleRegistry.registerModules([
   QuickFilterModule,
   PaginationModule,
   CsvExportModule,
+  // header and cell tooltips (headerTooltip, tooltipField)
+  TooltipModule,
   ...(isDevMode() ? [ValidationModule] : []),
 ]);
 
