@@ -12,7 +12,6 @@ import { BudgetInputError } from './nutrients.js';
 
 export type { BookingMonth, BookingPlan, CashMonth, CashSchedule, Tranche } from '../../shared/budget-types.js';
 
-
 export interface CashLine {
   productId: number;
   name: string;

@@ -1,8 +1,10 @@
 import { PROJECTION_CAUTION } from '../estimation/index.js';
 
 /**
- * Shown with every budget, on the page and as rows of every export (domain.md §3, "Usual cautions").
- * Worded for any country: no national credential or agency is named (common practice, no source).
+ * Shown with every budget, on the page and as rows of every export (domain.md §3, "Usual cautions";
+ * NRCS Conservation Practice Standard 590 asks for rates from soil tests and land-grant guidance,
+ * and for certified reviewers of nutrient-management plans). Worded for any country: the page names
+ * no national credential or agency.
  */
 export const BUDGET_CAUTIONS: readonly string[] = [
   'This budget sizes the co-op’s fertiliser purchases. It is not an application recommendation for any field, farm or crop.',

@@ -40,7 +40,6 @@ export async function nutrientItemsOf(db: Db, fit: FitResult, named: Partial<Rec
   return out;
 }
 
-
 /**
  * The name and unit of each item a source prices (`wheat` → Wheat, t), so the page can show
  * "Wheat EUR 212.10/t" rather than a bare code and number. An item gone from the list keeps its code.
