@@ -2,7 +2,7 @@
  * Units named in import headers ("price (EUR/t)", "quantity [kg N]") or unit columns, compared with
  * the item's unit in the items table. Spelling variants are common practice, no source; anything
  * else must match the item's unit exactly (ignoring case and spaces), so "kg" never passes for
- * "kg N": product kilograms and nutrient kilograms differ (see /work/shared/domain.md on units).
+ * "kg N": product kilograms and nutrient kilograms differ (see docs/fertiliser.md §1).
  */
 
 const ALIASES: Record<string, string> = {

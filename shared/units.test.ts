@@ -24,7 +24,7 @@ import {
 
 describe('mass and area definitions', () => {
   it('the pound is 0.45359237 kg exactly', () => {
-    // 1959 international yard and pound agreement (domain.md §2.10, units.wikia.com "Pound").
+    // 1959 international yard and pound agreement (docs/sources.md §6, units.wikia.com "Pound").
     expect(KG_PER_LB).toBe(0.45359237);
     expect(kgToLb(0.45359237)).toBe(1);
   });
@@ -44,7 +44,7 @@ describe('mass and area definitions', () => {
   });
 
   it('1 lb/ac is 1.12085115619 kg/ha', () => {
-    // Derived constant in domain.md §2.10 [C] (pound exact, international acre).
+    // Derived constant in docs/fertiliser.md §4 [C] (pound exact, international acre).
     expect(lbPerAcreInKgPerHa()).toBeCloseTo(1.12085115619, 10);
   });
 });
@@ -60,7 +60,7 @@ function lbPerAcreInKgPerHa() {
 
 describe('bushel weights', () => {
   it('uses the USDA official weights per bushel', () => {
-    // USDA official weight per bushel (domain.md §2.10: en.wikipedia.org/wiki/Test_weight; agriconverter.com citing USDA FSA).
+    // USDA official weight per bushel (docs/sources.md §6: en.wikipedia.org/wiki/Test_weight; agriconverter.com citing USDA FSA).
     expect(BUSHEL_WEIGHTS.wheat.lb).toBe(60);
     expect(BUSHEL_WEIGHTS.soybeans.lb).toBe(60);
     expect(BUSHEL_WEIGHTS.corn.lb).toBe(56);
@@ -77,7 +77,7 @@ describe('bushel weights', () => {
   });
 
   it('converts corn and wheat bushels to the exact derived masses', () => {
-    // domain.md §2.10 [C]: corn 56 × 0.45359237 = 25.40117272 kg (39.368261104 bu/t);
+    // docs/fertiliser.md §5 [C]: corn 56 × 0.45359237 = 25.40117272 kg (39.368261104 bu/t);
     // wheat/soybeans 60 × 0.45359237 = 27.2155422 kg (36.743710364 bu/t).
     expect(kgPerBushel('corn')).toBeCloseTo(25.40117272, 10);
     expect(tonnesToBushels(1, 'corn')).toBeCloseTo(39.368261104, 8);
@@ -94,7 +94,7 @@ describe('bushel weights', () => {
 
 describe('oxide and element factors from IUPAC atomic weights', () => {
   it('P2O5 → P is 0.4364 and K2O → K is 0.8301 at four decimals', () => {
-    // domain.md §2.9 table: P2O5→P 0.4364, K2O→K 0.8301 (K2O→K also Virginia Tech SPES-201).
+    // docs/sources.md §7: P2O5→P 0.4364, K2O→K 0.8301 (K2O→K also Virginia Tech SPES-201).
     // "At four decimals" means within one unit of the fourth decimal: K2O→K computes to
     // 0.8301513, which rounds to 0.8302, so the printed 0.8301 is a truncation.
     expect(fourDecimalGap(NUTRIENT_FACTORS.p2o5ToP, 0.4364)).toBeLessThan(1);
@@ -107,7 +107,7 @@ describe('oxide and element factors from IUPAC atomic weights', () => {
   });
 
   it('the reverse factors and NH3 → N match the published table', () => {
-    // domain.md §2.9: P→P2O5 2.2913, K→K2O 1.2046, NH3→N 0.8224 (computed column 2.291335, 1.204600, 0.822441).
+    // docs/fertiliser.md §2: P→P2O5 2.2913, K→K2O 1.2046, NH3→N 0.8224 (computed column 2.291335, 1.204600, 0.822441).
     expect(fourDecimalGap(NUTRIENT_FACTORS.pToP2o5, 2.2913)).toBeLessThan(1);
     expect(fourDecimalGap(NUTRIENT_FACTORS.kToK2o, 1.2046)).toBeLessThan(1);
     expect(fourDecimalGap(NUTRIENT_FACTORS.nh3ToN, 0.8224)).toBeLessThan(1);
@@ -118,7 +118,7 @@ describe('oxide and element factors from IUPAC atomic weights', () => {
 
   it('agrees with Virginia Tech SPES-201 to its rounding', () => {
     // SPES-201 "Conversion Factors Needed for Common Fertilizer Calculations": P2O5→P 0.4365,
-    // P→P2O5 2.2910, K2O→K 0.8301, K→K2O 1.2051, NH3→N 0.8225, N→NH3 1.2158 (domain.md §2.9).
+    // P→P2O5 2.2910, K2O→K 0.8301, K→K2O 1.2051, NH3→N 0.8225, N→NH3 1.2158 (docs/sources.md §7).
     expect(Math.abs(NUTRIENT_FACTORS.p2o5ToP - 0.4365)).toBeLessThan(2e-4);
     expect(Math.abs(NUTRIENT_FACTORS.pToP2o5 - 2.291)).toBeLessThan(5e-4);
     expect(Math.abs(NUTRIENT_FACTORS.kToK2o - 1.2051)).toBeLessThan(6e-4);
@@ -128,7 +128,7 @@ describe('oxide and element factors from IUPAC atomic weights', () => {
   });
 
   it('pure urea is 46.65 % N and pure KCl 63.2 % K2O-equivalent', () => {
-    // domain.md §2.9 [C from atomic weights]: the commercial grades 46-0-0 and 0-0-60 sit just below.
+    // docs/fertiliser.md §2 [C from atomic weights]: the commercial grades 46-0-0 and 0-0-60 sit just below.
     expect(PURE_COMPOUND.ureaNPct.toFixed(2)).toBe('46.65');
     expect(PURE_COMPOUND.kclK2oPct.toFixed(1)).toBe('63.2');
   });

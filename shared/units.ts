@@ -2,7 +2,7 @@
  * Units shared by server and client: exact mass and area conversions, bushel weights by crop,
  * nutrient oxide ↔ element factors, and the metric / US display switch.
  *
- * Every factor names its source. Provenance tags as in /work/shared/domain.md:
+ * Every factor names its source. Provenance tags as in docs/README.md:
  *   [S] confirmed from a cited source, [C] computed here from [S] values, [M] from memory,
  *   "common practice, no source" where the trade uses a value no stored source confirms.
  */
@@ -13,7 +13,7 @@
 
 /**
  * 1 lb (international avoirdupois pound) = 0.45359237 kg exactly, by the international yard and
- * pound agreement of 1959 (effective in the US on 1 July 1959). [S: domain.md §2.10, citing
+ * pound agreement of 1959 (effective in the US on 1 July 1959). [S: docs/sources.md §6, citing
  * units.wikia.com/wiki/Pound_(United_States_customary_avoirdupois)]
  */
 export const KG_PER_LB = 0.45359237;
@@ -34,7 +34,7 @@ export const M_PER_YARD = 0.9144;
 /**
  * 1 international acre = 4840 square yards = 4046.8564224 m² exactly [C from the yard]. The value
  * is also the UK statutory acre (Units of Measurement Regulations 1995) [S: secondary,
- * fixedreference.org "Acre"]; domain.md §2.10 tags the acre definition [M]. The US survey acre
+ * fixedreference.org "Acre"]; docs/fertiliser.md §4 derives it from the yard. The US survey acre
  * (4046.8726 m²) is a different, older unit and is not used here.
  */
 export const SQ_YARDS_PER_ACRE = 4840;
@@ -60,7 +60,7 @@ export interface BushelWeight {
 }
 
 const USDA =
-  "USDA official weight per bushel [S: domain.md §2.10 — en.wikipedia.org/wiki/Test_weight (\"USDA's official weight per bushel\"), agriconverter.com citing USDA FSA grain standards]";
+  "USDA official weight per bushel [S: docs/sources.md §6 — en.wikipedia.org/wiki/Test_weight (\"USDA's official weight per bushel\"), agriconverter.com citing USDA FSA grain standards]";
 
 /**
  * Pounds per bushel used to turn bushels into mass. Test weight affects grade, not this
@@ -131,7 +131,7 @@ export const acresToHa = (ac: number) => ac * HA_PER_ACRE;
 // ---------------------------------------------------------------------------------------------
 
 /**
- * IUPAC conventional / standard atomic weights, as domain.md §2.9 lists them for the computed
+ * IUPAC conventional / standard atomic weights, as docs/fertiliser.md §2 lists them for the computed
  * factors: P 30.973762, O 15.999, K 39.0983, N 14.007, H 1.008. Cl 35.45 and C 12.011 are the
  * IUPAC conventional values from memory [M]; they enter only the informational KCl and urea figures.
  */
@@ -143,7 +143,7 @@ const M_K2O = 2 * A.K + A.O;
 const M_NH3 = A.N + 3 * A.H;
 
 /**
- * Mass fractions [C from ATOMIC_WEIGHTS]. Published check values (domain.md §2.9 table; each within
+ * Mass fractions [C from ATOMIC_WEIGHTS]. Published check values (docs/sources.md §7; each within
  * one unit of the fourth decimal — K2O→K is 0.8301513, which rounds to 0.8302 but is printed 0.8301):
  * P2O5→P 0.4364 (VT SPES-201: 0.4365, the reciprocal of its rounded 2.2910), P→P2O5 2.2913,
  * K2O→K 0.8301 (SPES-201: 0.8301), K→K2O 1.2046 (SPES-201: 1.2051), NH3→N 0.8224 (SPES-201: 0.8225).

@@ -1,7 +1,7 @@
 import { PROJECTION_CAUTION } from '../estimation/index.js';
 
 /**
- * Shown with every budget, on the page and as rows of every export (domain.md §3, "Usual cautions";
+ * Shown with every budget, on the page and as rows of every export (docs/fertiliser.md §7;
  * NRCS Conservation Practice Standard 590 asks for rates from soil tests and land-grant guidance,
  * and for certified reviewers of nutrient-management plans). Worded for any country: the page names
  * no national credential or agency.

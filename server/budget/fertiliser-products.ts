@@ -13,7 +13,7 @@ const SPES = 'Virginia Tech SPES-201: MOP 60 % K2O (pubs.ext.vt.edu, SPES-201)';
 const INVENTED = 'Invented demo price (not a market quote)';
 
 /**
- * The seven example products of the demo co-op. Grades are the published ones (domain.md §2.9);
+ * The seven example products of the demo co-op. Grades are the published ones (docs/fertiliser.md §3);
  * prices, lots and suppliers are invented for the demo.
  */
 export const DEMO_FERTILISER_PRODUCTS: Omit<FertiliserProductInput, 'currency'>[] = [

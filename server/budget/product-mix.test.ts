@@ -5,7 +5,7 @@ import { leastCostTonnes, lotsFor, solveProductMix, type MixProduct } from './pr
 
 // Grades: Cornell NRCCA CA4 PO26 (anhydrous ammonia 82-0-0, urea 46-0-0, UAN 28-0-0 to 32-0-0);
 // UNL PASSEL (MAP 11-52-0, DAP 18-46-0); Virginia Tech SPES-201 (muriate of potash 0-0-60) —
-// as domain.md §2.9 gives them. Prices per tonne are invented for the tests.
+// as docs/fertiliser.md §3 gives them. Prices per tonne are invented for the tests.
 const product = (productId: number, name: string, grade: [number, number, number], pricePerT: number, lotT = 25): MixProduct => ({
   productId,
   name,
@@ -41,7 +41,7 @@ describe('least-cost product mix', () => {
   });
 
   it('100 t N as urea is 217.39 t of 46-0-0', () => {
-    // domain.md §2.9 [C]: product tonnes = nutrient tonnes / (grade % / 100).
+    // docs/fertiliser.md §1 [C]: product tonnes = nutrient tonnes / (grade % / 100).
     const r = leastCostTonnes(need(100_000), [urea()]);
     expect(r.tonnes[0]).toBeCloseTo(217.3913, 4);
   });

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { productPriceChangePct, referencePricesFromProducts, respondDemand, valueShares, type ElasticityMatrix } from './scenarios.js';
 
-// Grades as domain.md §2.9 gives them (Cornell NRCCA CA4 PO26; UNL PASSEL; Virginia Tech SPES-201);
+// Grades as docs/fertiliser.md §3 gives them (Cornell NRCCA CA4 PO26; UNL PASSEL; Virginia Tech SPES-201);
 // prices per tonne invented for the test.
 const g = (nPct: number, p2o5Pct: number, k2oPct: number, pricePerT: number) => ({ nPct, p2o5Pct, k2oPct, pricePerT });
 const urea = g(46, 0, 0, 475);

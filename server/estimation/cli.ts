@@ -1,5 +1,5 @@
 /**
- * The fit command (/work/shared/fit-contract.md):
+ * The fit command (docs/fit-command.md):
  *   npm run --silent fit -- --input FILE.csv [--numeraire ITEM] [--trend] [--form nq|gl]
  *                           [--prices item=value,...] [--fixed name=value,...]
  * Prints the contract JSON on stdout and exits 0. Bad input: one line on stderr naming the row and

@@ -7,7 +7,7 @@ import { elasticitiesAt } from './results.js';
 
 // Closed-form Cobb–Douglas technology y = A·x1^a1·x2^a2 (a = a1 + a2 < 1): profit, supply and
 // input demands (standard textbook derivation, e.g. Varian, Microeconomic Analysis, ch. 1–2;
-// re-derived in /work/shared/domain.md §2.4).
+// check points and formulas in docs/sources.md §3).
 interface Tech {
   a1: number;
   a2: number;
@@ -30,7 +30,7 @@ function expectRel(actual: number, expected: number, tol: number): void {
 }
 
 describe("Cobb–Douglas profit function: an exact Hotelling's-lemma check", () => {
-  // Check points: domain notes §2.4 table (rows 1–2 exact by hand; row 3 computed there).
+  // Check points: docs/sources.md §3 table (rows 1–2 exact by hand; row 3 computed there).
   const points: [Tech, number[], number[]][] = [
     [{ a1: 0.25, a2: 0.25, A: 1 }, [4, 1, 1], [2, 1, 1, 1]],
     [{ a1: 0.25, a2: 0.25, A: 1 }, [4, 1, 4], [1, 0.5, 0.5, 0.125]],

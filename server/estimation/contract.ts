@@ -1,5 +1,5 @@
 /**
- * The JSON document of the fit command (/work/shared/fit-contract.md), also returned by the API.
+ * The JSON document of the fit command (docs/fit-command.md §3), also returned by the API.
  */
 import type { FitResult } from './fit.js';
 import { elasticitiesAt, evaluateFit, shadowValues, type EvaluationPoint } from './results.js';

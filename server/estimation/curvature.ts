@@ -1,7 +1,7 @@
 /**
  * Convexity in prices: checking it, and imposing it by a Cholesky reparameterisation C = L L'
  * (Wiley, Schmidt & Bramble 1973; Lau 1978) of the block of parameters that decides it, solved
- * as nonlinear SUR with ml-levenberg-marquardt (domain notes §1.6–1.7).
+ * as nonlinear SUR with ml-levenberg-marquardt (docs/profit-functions.md §5, §7).
  *
  * With Σ̂ fixed the SUR objective in the structural parameters θ is the quadratic
  *   (y − X S θ)'(Σ̂⁻¹ ⊗ I)(y − X S θ) = ‖U (θ − θ̂_Σ)‖² + const,   U'U = S'X'(Σ̂⁻¹⊗I)X S,

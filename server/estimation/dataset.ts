@@ -1,5 +1,5 @@
 /**
- * The netput CSV layout (one row per observation; see /work/shared/fit-contract.md) parsed into a
+ * The netput CSV layout (one row per observation; see docs/fit-command.md §2) parsed into a
  * plain, serialisable dataset. Parsing is strict: the first bad cell stops it with an
  * EstimationInputError naming the row (the header is row 1, as a spreadsheet shows it) and column.
  */

@@ -1,5 +1,5 @@
 /**
- * Generalized Leontief (GL) profit function (domain notes §1.4), with fixed factors:
+ * Generalized Leontief (GL) profit function (docs/profit-functions.md §3), with fixed factors:
  *   π = Σ_i Σ_j b_ij √(p_i p_j) + Σ_i p_i (Σ_k c_ik z_k + ½ Σ_k Σ_l g_ikl z_k z_l),   b_ij = b_ji
  *   y_i = b_ii + Σ_{j≠i} b_ij √(p_j/p_i) + Σ_k c_ik z_k + ½ Σ_k Σ_l g_ikl z_k z_l
  * Linearly homogeneous by construction, so no numeraire is needed; symmetry b_ij = b_ji is the

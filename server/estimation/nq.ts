@@ -1,5 +1,5 @@
 /**
- * Normalized quadratic (NQ) profit function with a numeraire (domain notes §1.2):
+ * Normalized quadratic (NQ) profit function with a numeraire (docs/profit-functions.md §2):
  *   π/p_n = a0 + Σ a_i p̃_i + ½ Σ Σ b_ij p̃_i p̃_j + Σ Σ c_ik p̃_i z_k + Σ d_k z_k + ½ Σ Σ g_kl z_k z_l,
  * p̃_i = p_i/p_n, b and g symmetric, g only over the fixed factors (the trend enters linearly).
  * Hotelling's lemma gives one netput equation per item:

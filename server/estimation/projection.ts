@@ -1,7 +1,7 @@
 /**
  * Season projection: supply and input demand per farm and summed for the co-op at expected prices
  * (one point or several scenarios such as low/base/high), with Monte Carlo prediction intervals
- * from parameter and residual uncertainty (domain notes §1.12):
+ * from parameter and residual uncertainty (docs/forecasting.md §2.2):
  *   θ⁽ˢ⁾ ~ N(θ̂, V),  u⁽ˢ⁾_f ~ N(0, Σ̂) independently per farm,  y⁽ˢ⁾_f = y(p, z_f; θ⁽ˢ⁾) + u⁽ˢ⁾_f.
  * Parameter draws are shared by all farms and scenarios within a draw (they are one model), and
  * the same residual stream is reused across scenarios (common random numbers), so scenario

@@ -8,7 +8,7 @@ import { elasticitiesAt, evaluateFit } from './results.js';
 import { generateNqPanel, type SyntheticItem } from './synthetic.js';
 
 // Property tests (fast-check) of the identities every profit function must satisfy
-// (standard duality theory; /work/shared/domain.md §1.1): symmetry of the price Hessian,
+// (standard duality theory; docs/profit-functions.md §1): symmetry of the price Hessian,
 // homogeneity (H·p = 0, elasticity rows sum to zero), Hotelling's lemma (∂π/∂p_i = y_i) and the
 // shadow value ∂π/∂z. Profit is computed from each form's own formula here, independently of the
 // engine's netput code, and differentiated numerically.

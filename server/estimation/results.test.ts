@@ -15,7 +15,7 @@ const v = (name: string): number => fit.theta[fit.layout.parameterNames.indexOf(
 
 describe('evaluation, elasticities and shadow values', () => {
   it('NQ netputs, profit and shadow values follow the closed forms at a point', () => {
-    // NQ (domain notes §1.2): y_i = a_i + Σ b_ij p̃_j + Σ c_ik z_k; π = p_n·π̃; ∂π/∂land = Σ_i c_i p_i + p_n (d + g·land).
+    // NQ (docs/profit-functions.md §2): y_i = a_i + Σ b_ij p̃_j + Σ c_ik z_k; π = p_n·π̃; ∂π/∂land = Σ_i c_i p_i + p_n (d + g·land).
     const point = { prices: { wheat: 280, diesel: 95 }, fixed: { land: 650, trend: 17 } };
     const ev = evaluateFit(fit, point);
     const [p, z] = [ev.point.prices, ev.point.fixed];

@@ -35,7 +35,7 @@ function expectAllRel(actual: number[], expected: number[], tol: number): void {
 }
 
 // Reference values: R systemfit 1.1-28 (Debian r-cran-systemfit), full precision as recorded in
-// /work/shared/domain.md §2.5 and agreeing with systemfit's stored tests/test_sur.Rout.save printout.
+// docs/sources.md §5 and agreeing with systemfit's stored tests/test_sur.Rout.save printout.
 describe('general restricted SUR core against R systemfit on the Kmenta data', () => {
   it('fitsur1: one-step SUR, geomean Σ from OLS residuals', () => {
     const fit = fitSur(system1, { method: 'SUR' });

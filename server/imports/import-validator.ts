@@ -8,7 +8,7 @@
  *   price observation; natural key item + season + delivery point + observed date).
  * - records: farm, season, item, quantity, unit, land_ha (one row per farm, season and item; land_ha,
  *   repeated on the farm's rows of a season, goes to farm_season_factors; a row may carry land only).
- * - observations: the fit command's wide layout (/work/shared/fit-contract.md): season, farm,
+ * - observations: the fit command's wide layout (docs/fit-command.md §2): season, farm,
  *   price:<item>, output:<item> or input:<item>, fixed:<name>. Quantities and fixed factors become farm
  *   records and farm_season_factors. Prices are co-op level: one price per item and season, stored at
  *   one delivery point (the one chosen, else DEFAULT_DELIVERY_POINT), dated the season's first day,

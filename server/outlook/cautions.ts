@@ -1,5 +1,5 @@
 /**
- * The cautions every published outlook carries (domain notes §3, "Usual cautions"); they are copied
+ * The cautions every published outlook carries (docs/forecasting.md §8); they are copied
  * into each version's snapshot so a version reads the same years later.
  */
 import { PROJECTION_CAUTION } from '../estimation/index.js';

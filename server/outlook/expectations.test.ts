@@ -18,7 +18,7 @@ const none: FuturesBySeason = new Map();
 const at = (method: Parameters<typeof expectationAt>[0], history: PricePoint[], year: number, futures = none) =>
   expectationAt(method, history, { season: `${year}/xx`, year }, futures, 'EUR/t').value;
 
-describe('expectation rules (domain notes §1.11; values worked by hand)', () => {
+describe('expectation rules (docs/forecasting.md §1; values worked by hand)', () => {
   const h = series(2016, [100, 110, 120]);
 
   it('last season, moving average and Olympic average follow their definitions', () => {

@@ -1,5 +1,5 @@
 /**
- * Expected prices for the coming season (domain notes §1.11), one method per item, each with its
+ * Expected prices for the coming season (docs/forecasting.md §1), one method per item, each with its
  * history of past errors so the planner can compare methods and size the low/high band:
  *   last season        p^e_t = p_{t−1}
  *   moving average     p^e_t = (1/k) Σ_{j=1..k} p_{t−j}   ("Olympic": the highest and lowest of the k dropped)

@@ -1,9 +1,10 @@
 /**
- * The season projection of an outlook draft: the engine's projectSeason (Monte Carlo, domain notes
- * §1.12) run in the worker pool as a database-backed job, for every farm at its own fixed factors and
- * the trend of the outlook's season, at the low/base/high price scenarios; then the tables the
- * screens, the e-mails and the published snapshot show (quantities in item units and tonnes, the
- * co-op's deliveries against its storage and handling capacity, history for fan charts).
+ * The season projection of an outlook draft: the engine's projectSeason (Monte Carlo,
+ * docs/forecasting.md §2.2) run in the worker pool as a database-backed job, for every farm at its
+ * own fixed factors and the trend of the outlook's season, at the low/base/high price scenarios;
+ * then the tables the screens, the e-mails and the published snapshot show (quantities in item
+ * units and tonnes, the co-op's deliveries against its storage and handling capacity, history for
+ * fan charts).
  */
 import { and, asc, eq, inArray, lt } from 'drizzle-orm';
 import type { ModelDefinition } from '../../shared/model-schemas.js';

@@ -144,7 +144,7 @@ describe('budgets', () => {
       expect(l.cost).toBeCloseTo(l.tonnes * l.pricePerT, 6);
     }
     for (const n of ['nitrogen', 'phosphate', 'potash']) expect(base.mix.supply[n]).toBeGreaterThanOrEqual(d[n]);
-    // P and K as elements: P2O5 × 0.4364, K2O × 0.8301 (domain.md §2.9), to the 4-decimal factors.
+    // P and K as elements: P2O5 × 0.4364, K2O × 0.8301 (docs/fertiliser.md §2), to the 4-decimal factors.
     expect(base.demandElements.p / d.phosphate).toBeCloseTo(0.4364, 4);
     expect(base.demandElements.k / d.potash).toBeCloseTo(0.8301, 3);
 

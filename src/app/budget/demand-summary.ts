@@ -65,7 +65,7 @@ export class DemandSummary {
     })),
   );
   protected readonly farms = computed(() => this.detail().farms?.length ?? null);
-  /** The plain reading of nitrogen's own-price elasticity (domain notes §3: "a 10 % rise in N price..."). */
+  /** The plain reading of nitrogen's own-price elasticity (docs/profit-functions.md §9: "a 10 % rise in the nitrogen price..."). */
   protected readonly plainReading = computed(() => {
     const e = this.result().demand.elasticities?.nitrogen.nitrogen;
     if (e === undefined || !Number.isFinite(e)) return null;

@@ -10,7 +10,7 @@ import { UnitSwitch } from './unit-switch';
 
 /*
  * Check values: 1 lb = 0.45359237 kg exactly (international yard and pound agreement, 1959) and
- * 1 short ton = 2000 lb (US customary), as recorded in /work/shared/domain.md §2.10. Derived from
+ * 1 short ton = 2000 lb (US customary), as recorded in docs/fertiliser.md §4. Derived from
  * these definitions [C]: 1000 kg = 1000 / 0.45359237 = 2204.622621848776 lb; 1 short ton =
  * 907.18474 kg, so 25 t = 25000 / 907.18474 = 27.5577828 (rounded) short tons and EUR 475/t = EUR 430.9127515/short ton.
  */

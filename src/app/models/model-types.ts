@@ -86,7 +86,7 @@ export interface FitResult {
   warnings: string[];
 }
 
-/** The fit-contract document (server/estimation/contract.ts) stored with the run. */
+/** The fit command's document (docs/fit-command.md §3; server/estimation/contract.ts) stored with the run. */
 export interface FitSummary {
   form: FitResult['layout']['form'];
   numeraire: string;

@@ -4,7 +4,7 @@ import { readBacktest, readElasticities, readingCaution, readShadowValues, sizeI
 import { PlainReadingPanel } from './plain-reading-panel';
 
 // An elasticity e_ij is the % change of quantity i per 1 % change of price j (textbook definition;
-// see /work/shared/domain.md §1.1 and §3: "a 10% rise in N price is associated with about a 3% fall
+// see docs/profit-functions.md §9: "a 10% rise in N price is associated with about a 3% fall
 // in N use … when e = −0.3"). A 10 % rise is therefore read as about 10·e %.
 const nitrogen: ReadingItem = { code: 'nitrogen', name: 'Nitrogen', role: 'input' };
 const maize: ReadingItem = { code: 'maize', name: 'Maize', role: 'output' };
