@@ -1,5 +1,5 @@
 import { DateTime } from 'luxon';
-import { BASE_LAND_HA, buildTechnology, DEMO_ITEMS, MID_TREND, netputs } from './technology.js';
+import { buildTechnology, DEMO_ITEMS, MID_TREND, netputsPerHa, BASE_LAND_HA } from './technology.js';
 import { seededRandom } from './random.js';
 
 /**
@@ -76,6 +76,28 @@ const SHOCKS: Record<number, { grain?: number; fert?: number; fuel?: number }> =
   2023: { grain: -0.1, fert: -0.2, fuel: 0.05 },
 };
 
+const MIN_FARM_HA = 40;
+const MAX_FARM_HA = 900;
+
+/**
+ * Spread of the records around the technology, as shares of each item's per-hectare level at base
+ * prices (invented): `farm` = how much the farm's productivity moves the item, `weather` = the
+ * item's response to one standard deviation of the season's weather, `season` = the item's own
+ * season-wide shock, `own` = the farm's own error in a season.
+ */
+const NOISE: Record<string, { farm: number; weather: number; season: number; own: number }> = {
+  wheat: { farm: 1, weather: 0.09, season: 0.025, own: 0.07 },
+  canola: { farm: 1, weather: 0.12, season: 0.03, own: 0.1 },
+  nitrogen: { farm: 0.8, weather: 0.035, season: 0.02, own: 0.06 },
+  phosphate: { farm: 0.6, weather: 0.02, season: 0.025, own: 0.09 },
+  potash: { farm: 0.6, weather: 0.02, season: 0.025, own: 0.1 },
+  diesel: { farm: 0.5, weather: 0.04, season: 0.02, own: 0.06 },
+  labour: { farm: 0.4, weather: 0.05, season: 0.025, own: 0.08 },
+};
+
+/** Seasons whose weather the demo fixes (standard deviations; invented): a drought and a wet harvest. */
+const WEATHER_YEARS: Record<number, number> = { 2018: -2, 2012: -1.2 };
+
 export function buildDemoCoop(seed = 20261201): DemoCoop {
   const rnd = seededRandom(seed);
   const tech = buildTechnology();
@@ -135,32 +157,52 @@ export function buildDemoCoop(seed = 20261201): DemoCoop {
     }
   });
 
+  // Farm sizes spread evenly in logs from about 40 to 900 ha, in a shuffled order of the farm list.
+  const sizeRank = FARM_NAMES.map((_, i) => ({ i, key: rnd.next() })).sort((a, b) => a.key - b.key).map((r) => r.i);
   const farms = FARM_NAMES.map((name, i) => {
     const region = REGIONS[i % REGIONS.length];
-    const landHa = round(BASE_LAND_HA * Math.exp(0.45 * rnd.normal()), 0);
+    const share = (sizeRank.indexOf(i) + 0.2 + 0.6 * rnd.next()) / FARM_NAMES.length;
+    const landHa = round(Math.exp(Math.log(MIN_FARM_HA) + share * Math.log(MAX_FARM_HA / MIN_FARM_HA)), 0);
     const ownerName = OWNER_NAMES[i];
     const ownerEmail = i === 0 ? 'member@example.org' : `${ownerName.toLowerCase().replace(/[^a-z]+/g, '.')}@example.org`;
-    return { code: `F${String(i + 1).padStart(2, '0')}`, name, region, landHa: Math.min(1400, Math.max(120, landHa)), ownerEmail, ownerName };
+    return { code: `F${String(i + 1).padStart(2, '0')}`, name, region, landHa, ownerEmail, ownerName };
   });
   const dpOfRegion: Record<string, string> = { Riverlands: 'Larkfield terminal', 'North Wold': 'Ashby elevator', Clayvale: 'Millbrook store' };
 
+  // Per-hectare level of every item at base prices: the unit of the effects and errors below.
+  const unitHa = Object.fromEntries(DEMO_ITEMS.map((it) => [it.code, it.baseQuantity / BASE_LAND_HA]));
+  // Season-wide weather, shared by every farm: a good season raises all crops and the inputs with them.
+  const weather = seasons.map((s) => WEATHER_YEARS[s.startYear] ?? rnd.normal());
+  const seasonShock = seasons.map((_, k) =>
+    Object.fromEntries(DEMO_ITEMS.map((it) => [it.code, NOISE[it.code].weather * weather[k] + NOISE[it.code].season * rnd.normal()])),
+  );
   const records: DemoCoop['records'] = [];
   const land: DemoCoop['land'] = [];
   for (const farm of farms) {
+    // The farm's own productivity: one level for all its items, plus a little of each item's own.
+    const skill = 0.12 * rnd.normal();
+    const farmEffect = Object.fromEntries(DEMO_ITEMS.map((it) => [it.code, NOISE[it.code].farm * skill + 0.05 * rnd.normal()]));
+    // Land changes now and then (a field rented or given up); the register holds the latest.
+    let landHa = farm.landHa;
     seasons.forEach((s, k) => {
-      const landHa = round(farm.landHa * (1 + 0.03 * rnd.normal()), 1);
+      if (k > 0 && rnd.next() < 0.12) landHa = landHa * Math.exp(0.08 * rnd.normal());
+      landHa = round(landHa, 1);
       land.push({ farm: farm.code, season: s.label, landHa });
       const faced: Record<string, number> = {};
       for (const it of DEMO_ITEMS) {
         const obs = prices.filter((p) => p.item === it.code && p.season === s.label && (it.role === 'input' || p.deliveryPoint === dpOfRegion[farm.region]));
         faced[it.code] = obs.reduce((a, p) => a + p.price, 0) / obs.length;
       }
-      const y = netputs(tech, faced, landHa, k);
+      const perHa = netputsPerHa(tech, faced, k);
       for (const it of DEMO_ITEMS) {
-        const quantity = Math.max(0, Math.abs(y[it.code]) * (1 + 0.05 * rnd.normal()));
+        // Additive per hectare: the technology, the farm, the season, and the farm's own error (its
+        // spread per hectare is the same on every farm, so in tonnes it grows with the land).
+        const shock = farmEffect[it.code] + seasonShock[k][it.code] + NOISE[it.code].own * rnd.normal();
+        const quantity = Math.max(0, landHa * (Math.abs(perHa[it.code]) + unitHa[it.code] * shock));
         records.push({ farm: farm.code, season: s.label, item: it.code, quantity: round(quantity, it.unit === 't' ? 1 : 0) });
       }
     });
+    farm.landHa = round(landHa, 0);
   }
   const deflator = { name: 'Consumer prices (demo)', base: `${seasonLabel(FIRST_SEASON + MID_TREND)} = 100`, source: 'Invented for the demo co-op' };
   const deflatorValues = seasons.map((s) => ({ season: s.label, value: round(100 * Math.exp(0.015 * (s.startYear - FIRST_SEASON - MID_TREND)), 1) }));

@@ -1,0 +1,93 @@
+import { describe, expect, it } from 'vitest';
+import { elasticitiesAt, fitProfitFunction, type NetputDataset } from '../server/estimation/index.js';
+import { buildDemoCoop } from './demo-coop.js';
+import { buildTechnology, DEMO_ITEMS, netputs, NUMERAIRE, valueHessian } from './technology.js';
+
+const demo = buildDemoCoop();
+const order = [...DEMO_ITEMS.filter((i) => i.role === 'output'), ...DEMO_ITEMS.filter((i) => i.role === 'input')];
+const dpOfRegion: Record<string, string> = { Riverlands: 'Larkfield terminal', 'North Wold': 'Ashby elevator', Clayvale: 'Millbrook store' };
+
+/** The demo's records as the model sample sees them: prices faced per region, land per farm and season. */
+function demoDataset(): NetputDataset {
+  const rec = new Map(demo.records.map((r) => [`${r.farm}/${r.season}/${r.item}`, r.quantity]));
+  const land = new Map(demo.land.map((r) => [`${r.farm}/${r.season}`, r.landHa]));
+  const ds: NetputDataset = { items: order.map((i) => ({ name: i.code, role: i.role })), fixedFactors: ['land_ha'], seasons: [], seasonYears: [], farms: [], prices: order.map(() => []), quantities: order.map(() => []), fixed: [[]], rows: [] };
+  for (const s of demo.seasons)
+    for (const f of demo.farms) {
+      ds.seasons.push(s.label);
+      ds.seasonYears.push(s.startYear);
+      ds.farms!.push(f.code);
+      ds.rows.push(ds.rows.length + 2);
+      order.forEach((it, k) => {
+        const obs = demo.prices.filter((p) => p.item === it.code && p.season === s.label && (it.role === 'input' || p.deliveryPoint === dpOfRegion[f.region]));
+        ds.prices[k].push(obs.reduce((a, p) => a + p.price, 0) / obs.length);
+        ds.quantities[k].push(rec.get(`${f.code}/${s.label}/${it.code}`)!);
+      });
+      ds.fixed[0].push(land.get(`${f.code}/${s.label}`)!);
+    }
+  return ds;
+}
+
+describe('the demo co-op (invented data)', () => {
+  it('states the own-price elasticities its technology implies, the numeraire included', () => {
+    // Closed form of a profit function's price Hessian in value terms: e_ii = S_ii / (p_i y_i)
+    // (Diewert & Wales 1987, Econometrica 55(1): the NQ Hessian; homogeneity makes S's rows sum to zero).
+    const tech = buildTechnology();
+    const { codes, S } = valueHessian();
+    const base = Object.fromEntries(DEMO_ITEMS.map((i) => [i.code, i.basePrice]));
+    const y = netputs(tech, base, 400, 10);
+    for (const it of DEMO_ITEMS) {
+      const i = codes.indexOf(it.code);
+      expect(S[i].reduce((a, b) => a + b, 0)).toBeCloseTo(0, 9);
+      const closed = S[i][i] / (it.basePrice * y[it.code]);
+      const h = 1e-6;
+      const up = netputs(tech, { ...base, [it.code]: it.basePrice * (1 + h) }, 400, 10);
+      expect((up[it.code] - y[it.code]) / y[it.code] / h).toBeCloseTo(closed, 4);
+      expect(it.ownElasticity).toBeCloseTo(closed, 1); // stated to two digits
+      expect(Math.abs(y[it.code])).toBeCloseTo(it.baseQuantity, 6);
+    }
+    // Constant returns to land: twice the land, twice every netput (Lau 1978, homogeneity of degree one in the fixed factor).
+    const y2 = netputs(tech, base, 800, 10);
+    for (const it of DEMO_ITEMS) expect(y2[it.code] / y[it.code]).toBeCloseTo(2, 12);
+  });
+
+  it('has farms from about 40 to 900 ha and records for every farm, season and item', () => {
+    const sizes = demo.farms.map((f) => f.landHa);
+    expect(Math.min(...sizes)).toBeGreaterThanOrEqual(35);
+    expect(Math.min(...sizes)).toBeLessThan(60);
+    expect(Math.max(...sizes)).toBeGreaterThan(700);
+    expect(Math.max(...sizes)).toBeLessThanOrEqual(1000);
+    expect(demo.records).toHaveLength(demo.farms.length * demo.seasons.length * DEMO_ITEMS.length);
+    expect(demo.records.every((r) => r.quantity > 0)).toBe(true);
+    expect(demo.farms.every((f) => f.ownerEmail.endsWith('@example.org'))).toBe(true);
+  });
+
+  it('shares the weather of a season across farms and crops: season means of wheat and canola per hectare move together', () => {
+    const perHa = (item: string, season: string) => {
+      const rows = demo.records.filter((r) => r.item === item && r.season === season);
+      const land = new Map(demo.land.filter((l) => l.season === season).map((l) => [l.farm, l.landHa]));
+      return rows.reduce((a, r) => a + r.quantity / land.get(r.farm)!, 0) / rows.length;
+    };
+    const w = demo.seasons.map((s) => perHa('wheat', s.label));
+    const c = demo.seasons.map((s) => perHa('canola', s.label));
+    // Detrended by differences, so the technical-change trend does not make the correlation.
+    const dw = w.slice(1).map((v, k) => v - w[k]);
+    const dc = c.slice(1).map((v, k) => v - c[k]);
+    const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
+    const cov = (a: number[], b: number[]) => mean(a.map((v, k) => (v - mean(a)) * (b[k] - mean(b))));
+    expect(cov(dw, dc) / Math.sqrt(cov(dw, dw) * cov(dc, dc))).toBeGreaterThan(0.5);
+  });
+
+  it('gives back its hired-labour response when fitted: own-price elasticity near the design', () => {
+    const design = DEMO_ITEMS.find((i) => i.code === NUMERAIRE)!.ownElasticity;
+    const ds = demoDataset();
+    const k = ds.items.findIndex((i) => i.name === NUMERAIRE);
+    // Per hectare (every netput divided by the farm's land), the form the records were made with.
+    const perHa: NetputDataset = { ...ds, fixedFactors: [], fixed: [], quantities: ds.quantities.map((col) => col.map((q, i) => q / ds.fixed[0][i])) };
+    const e1 = elasticitiesAt(fitProfitFunction(perHa, { numeraire: NUMERAIRE, trend: true }));
+    expect(Math.abs(e1.elasticities[k][k] - design)).toBeLessThan(0.1);
+    // The pooled form in levels with a land term is misspecified for these farms but still lands near it.
+    const e2 = elasticitiesAt(fitProfitFunction(ds, { numeraire: NUMERAIRE, trend: true }));
+    expect(Math.abs(e2.elasticities[k][k] - design)).toBeLessThan(0.15);
+  });
+});
