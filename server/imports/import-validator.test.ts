@@ -283,7 +283,7 @@ describe('property: malformed text', () => {
           expect((err as Error).message.length).toBeGreaterThan(0);
         }
       }),
-      { numRuns: 400 },
+      { numRuns: 400, seed: 1204 }, // fixed seed; a failure prints { seed, path } to replay the case
     );
   });
 });

@@ -353,7 +353,7 @@ describe('property: malformed CSV through the API', () => {
         expect(c.status).toBe(409);
         expect(c.body.error.message).toMatch(/error\(s\)/);
       }),
-      { numRuns: 30 },
+      { numRuns: 30, seed: 1209 }, // fixed seed; a failure prints { seed, path } to replay the case
     );
     expect(await tableCounts()).toEqual({ ...before, imports: before.imports + staged });
   });
