@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { idSchema } from './ids.js';
 
 const code = z
   .string({ error: 'Enter a code' })
@@ -47,9 +48,9 @@ export const farmSchema = z.object({
 });
 
 export const priceSchema = z.object({
-  itemId: z.number().int().positive(),
-  seasonId: z.number().int().positive(),
-  deliveryPointId: z.number().int().positive(),
+  itemId: idSchema,
+  seasonId: idSchema,
+  deliveryPointId: idSchema,
   price: z.number({ error: 'Enter a price' }).positive('A price must be more than 0').max(1e9),
   currency: z.string().trim().regex(/^[A-Z]{3}$/, 'Use a three-letter ISO 4217 code such as EUR'),
   source: z.string().trim().min(1, 'Name the source').max(200),
@@ -58,9 +59,9 @@ export const priceSchema = z.object({
 export type PriceInput = z.infer<typeof priceSchema>;
 
 export const recordSchema = z.object({
-  farmId: z.number().int().positive(),
-  seasonId: z.number().int().positive(),
-  itemId: z.number().int().positive(),
+  farmId: idSchema,
+  seasonId: idSchema,
+  itemId: idSchema,
   quantity: z.number({ error: 'Enter a quantity' }).nonnegative('A quantity cannot be negative').max(1e12),
 });
 
@@ -72,16 +73,16 @@ export const factorNameSchema = z
 
 /** One farm's level of one fixed factor in one season (land in ha, irrigated area, machinery value, …). */
 export const factorValueSchema = z.object({
-  farmId: z.number().int().positive(),
-  seasonId: z.number().int().positive(),
+  farmId: idSchema,
+  seasonId: idSchema,
   factor: factorNameSchema,
   value: z.number().finite().min(0, 'A fixed factor cannot be negative').max(1e9),
 });
 export const factorKeySchema = factorValueSchema.pick({ farmId: true, seasonId: true, factor: true });
 
 export const landSchema = z.object({
-  farmId: z.number().int().positive(),
-  seasonId: z.number().int().positive(),
+  farmId: idSchema,
+  seasonId: idSchema,
   landHa: z.number().positive('Land must be more than 0 ha').max(1e6),
 });
 
@@ -89,5 +90,5 @@ export const priceIndexSchema = z.object({
   name,
   base: z.string().trim().min(1).max(60),
   source: z.string().trim().min(1).max(200),
-  values: z.array(z.object({ seasonId: z.number().int().positive(), value: z.number().positive() })).max(500),
+  values: z.array(z.object({ seasonId: idSchema, value: z.number().positive() })).max(500),
 });

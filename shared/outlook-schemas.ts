@@ -3,6 +3,7 @@
  * relative path; they could move to shared/ with the rest of the shared schemas.
  */
 import { z } from 'zod';
+import { idSchema, idTextSchema } from './ids.js';
 
 const itemCode = z.string().trim().min(1, 'Name the item').max(40);
 const positive = (what: string) => z.number({ error: `Enter ${what}` }).positive(`${what[0]!.toUpperCase()}${what.slice(1)} must be more than 0`).max(1e9);
@@ -58,13 +59,13 @@ export const expectationsBodySchema = z
 export const outlookCreateSchema = z.object({
   season: seasonLabelSchema,
   title: z.string().trim().min(1).max(160).optional(),
-  modelRunId: z.number().int().positive().nullable().optional(),
+  modelRunId: idSchema.nullable().optional(),
 });
 
 export const outlookPatchSchema = z
   .object({
     title: z.string().trim().min(1, 'Enter a title').max(160),
-    modelRunId: z.number().int().positive().nullable(),
+    modelRunId: idSchema.nullable(),
     commentary: z.string().max(20000, 'Keep the commentary under 20,000 characters'),
     scenarioRule: z.enum(['margin', 'uniform']),
     draws: z.number().int().min(500, 'Use at least 500 draws').max(20000, 'Use at most 20,000 draws'),
@@ -83,8 +84,8 @@ export const publishSchema = z.object({
 export const methodCompareQuerySchema = z.object({ item: itemCode });
 
 export const futuresQuoteSchema = z.object({
-  itemId: z.number().int().positive(),
-  seasonId: z.number().int().positive(),
+  itemId: idSchema,
+  seasonId: idSchema,
   contract: z.string({ error: 'Name the contract' }).trim().min(1, 'Name the contract').max(80),
   quote: positive('the quote'),
   currency: z.string().trim().regex(/^[A-Z]{3}$/, 'Use a three-letter ISO 4217 code such as EUR'),
@@ -93,13 +94,13 @@ export const futuresQuoteSchema = z.object({
 });
 
 export const futuresListQuerySchema = z.object({
-  itemId: z.coerce.number().int().positive().optional(),
-  seasonId: z.coerce.number().int().positive().optional(),
+  itemId: idTextSchema.optional(),
+  seasonId: idTextSchema.optional(),
 });
 
-export const versionParamSchema = z.object({ versionId: z.coerce.number().int().positive() });
-export const deliveriesQuerySchema = z.object({ version: z.coerce.number().int().positive().optional() });
-export const deliveryParamsSchema = z.object({ id: z.coerce.number().int().positive(), deliveryId: z.coerce.number().int().positive() });
+export const versionParamSchema = z.object({ versionId: idTextSchema });
+export const deliveriesQuerySchema = z.object({ version: idTextSchema.optional() });
+export const deliveryParamsSchema = z.object({ id: idTextSchema, deliveryId: idTextSchema });
 export const accountabilityQuerySchema = z.object({ version: z.enum(['latest', 'first']).default('latest') });
 
 export const mailPreferencesSchema = z.object({ outlookEmails: z.boolean({ error: 'Say true or false' }) });

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { ROLES } from './roles.js';
+import { idSchema } from './ids.js';
 
 /** Shortest password we accept (NIST SP 800-63B §5.1.1.2 asks for at least 8; we ask for 10). */
 export const PASSWORD_MIN_LENGTH = 10;
@@ -19,14 +20,14 @@ export const invitationSchema = z.object({
   email: emailSchema,
   name: z.string().trim().min(1, 'Enter a name').max(120),
   role: z.enum(ROLES),
-  farmId: z.number().int().positive().nullable().optional(),
+  farmId: idSchema.nullable().optional(),
 });
 
 export const userPatchSchema = z
   .object({
     name: z.string().trim().min(1).max(120),
     role: z.enum(ROLES),
-    farmId: z.number().int().positive().nullable(),
+    farmId: idSchema.nullable(),
     active: z.boolean(),
   })
   .partial()
@@ -43,4 +44,4 @@ export const settingsSchema = z.object({
   handlingCapacityTPerDay: z.number().nonnegative().max(1e7),
 });
 
-export const idParamSchema = z.object({ id: z.coerce.number().int().positive() });
+export { idParamSchema } from './ids.js';

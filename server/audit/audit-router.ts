@@ -6,7 +6,7 @@ import { listAudit } from './audit-repository.js';
 
 const querySchema = z.object({
   limit: z.coerce.number().int().min(1).max(500).default(100),
-  offset: z.coerce.number().int().min(0).default(0),
+  offset: z.coerce.number().int().min(0).max(1e9).default(0),
   /** Only entries about one kind of record, e.g. `price`, `farm-record` (the data pages link with it). */
   entity: z.string().regex(/^[a-z][a-z-]{0,39}$/, 'Name an entity such as price or farm-record').optional(),
 });

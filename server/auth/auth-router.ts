@@ -48,9 +48,10 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
       path: '/login',
       access: 'public',
       handler: async (req, res, next) => {
+        // Validated first, so the limiter's key (address and e-mail) is always storable text.
+        const body = parse(loginSchema, req.body, 'body');
         await new Promise<void>((resolve, reject) => loginLimiter(req, res, (err?: unknown) => (err ? reject(err) : resolve())));
         if (res.headersSent) return;
-        const body = parse(loginSchema, req.body, 'body');
         const userId = await checkCredentials(ctx.db, body.email, body.password);
         await endSession(ctx.db, req.sessionId);
         await startSession(ctx.db, res, userId, req.get('user-agent'), secure);

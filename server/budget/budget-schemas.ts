@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { idSchema } from '../../shared/ids.js';
 
 const pctChange = z.number().gt(-100, 'A price change must be above −100 %').max(500, 'A price change above +500 % is not plausible');
 const itemCode = z.string().trim().min(1).max(40);
@@ -19,7 +20,7 @@ export const elasticityMatrixSchema = nutrientRecord(nutrientRecord(z.number().m
 export const budgetSourceSchema = z.discriminatedUnion('kind', [
   z.strictObject({
     kind: z.literal('model-run'),
-    runId: z.number().int().positive(),
+    runId: idSchema,
     prices: z.record(itemCode, z.number().positive('An expected price must be above 0')).default({}),
     /** Season (first calendar year) projected; default the run's last season + 1. */
     season: z.number().int().min(1900).max(2200).optional(),
@@ -35,7 +36,7 @@ export const budgetSourceSchema = z.discriminatedUnion('kind', [
   }),
   z.strictObject({
     kind: z.literal('outlook'),
-    outlookVersionId: z.number().int().positive(),
+    outlookVersionId: idSchema,
     /** The outlook's price scenario to start from (low, base, high). */
     scenario: z.string().trim().min(1).max(40).default('base'),
     items: z.strictObject({ nitrogen: itemCode, phosphate: itemCode, potash: itemCode }).partial().optional(),
@@ -69,7 +70,7 @@ export const budgetOptionsSchema = z.strictObject({
 });
 
 export const budgetProductChoiceSchema = z.strictObject({
-  productId: z.number().int().positive(),
+  productId: idSchema,
   /** This budget's price per t (a quote), instead of the product list's. */
   pricePerT: z.number().positive().max(1e6).optional(),
   lotT: z.number().positive().max(1e5).optional(),

@@ -32,6 +32,12 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
           ? 'The request body is not valid JSON'
           : String(err.message ?? 'Bad request');
     body = { error: { code, message } };
+  } else if (err instanceof URIError || (err && typeof err === 'object' && typeof err.status === 'number' && err.status >= 400 && err.status < 500)) {
+    // The router's own refusals, e.g. a path segment whose percent-encoding is not valid UTF-8.
+    status = typeof err.status === 'number' ? err.status : 400;
+    const decoding = err instanceof URIError || /decode/i.test(String(err.message));
+    const message = decoding ? 'The address contains characters that are not valid (broken percent-encoding); check the link' : String(err.message || 'Bad request');
+    body = { error: { code: 'invalid', message } };
   }
   if (status >= 500) req.log?.error({ err }, 'request failed');
   if (res.headersSent) return;

@@ -1,5 +1,6 @@
 import { eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
+import { idListSchema, idSchema, idTextSchema } from '../../shared/ids.js';
 import { priceIndexSchema, priceSchema } from '../../shared/data-schemas.js';
 import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
@@ -14,17 +15,12 @@ import { exportFormatSchema, PRICE_COLUMNS, priceExportRows, sendSpreadsheet } f
 const READ = ['admin', 'planner', 'treasurer'] as const;
 const WRITE = ['planner'] as const;
 
-const idList = z
-  .string()
-  .regex(/^\d+(,\d+)*$/, 'Use comma-separated ids such as 1,2,3')
-  .transform((s) => s.split(',').map(Number))
-  .optional();
-const listQuery = z.object({ items: idList, seasons: idList, deliveryPoints: idList });
-const seriesQuery = z.object({ items: idList, deflator: z.coerce.number().int().positive().optional() });
+const listQuery = z.object({ items: idListSchema, seasons: idListSchema, deliveryPoints: idListSchema });
+const seriesQuery = z.object({ items: idListSchema, deflator: idTextSchema.optional() });
 const blockSchema = z.object({ rows: z.array(priceSchema).min(1, 'Send at least one row').max(5000, 'Paste at most 5,000 rows at once') });
 const deleteBlockSchema = z.object({
   ids: z
-    .array(z.number().int().positive())
+    .array(idSchema)
     .min(1, 'Choose at least one price')
     .max(5000, 'Delete at most 5,000 prices at once')
     .refine((ids) => new Set(ids).size === ids.length, 'A price is listed twice'),

@@ -1,5 +1,6 @@
 import { and, asc, countDistinct, eq, inArray, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
+import { idListSchema } from '../../shared/ids.js';
 import type { FarmRecordRow } from '../../shared/api-types.js';
 import { factorKeySchema, factorValueSchema, landSchema, recordSchema } from '../../shared/data-schemas.js';
 import type { RouteDef } from '../core/routes.js';
@@ -12,12 +13,7 @@ import { recordAudit } from '../audit/audit-repository.js';
 import type { SessionUser } from '../auth/session.js';
 import { exportFormatSchema, RECORD_COLUMNS, recordExportRows, sendSpreadsheet } from '../exports/data-exports.js';
 
-const idList = z
-  .string()
-  .regex(/^\d+(,\d+)*$/, 'Use comma-separated ids such as 1,2,3')
-  .transform((s) => s.split(',').map(Number))
-  .optional();
-const listQuery = z.object({ farms: idList, seasons: idList });
+const listQuery = z.object({ farms: idListSchema, seasons: idListSchema });
 const blockSchema = z.object({ rows: z.array(recordSchema).min(1).max(5000, 'Send at most 5,000 rows at once') });
 const keySchema = recordSchema.pick({ farmId: true, seasonId: true, itemId: true });
 
@@ -162,7 +158,7 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       access: 'signed-in',
       handler: async (req, res) => {
         // `?farms=3` narrows a planner's export to those farms (the farm page downloads its own).
-        const { format, farms: only } = parse(exportFormatSchema.extend({ farms: idList }), req.query, 'query');
+        const { format, farms: only } = parse(exportFormatSchema.extend({ farms: idListSchema }), req.query, 'query');
         await sendSpreadsheet(res, format, await recordExportRows(ctx.db, farmScope(req.user!, only)), RECORD_COLUMNS, 'farm-records');
       },
     },
