@@ -147,6 +147,8 @@ const M_NH3 = A.N + 3 * A.H;
  * one unit of the fourth decimal — K2O→K is 0.8301513, which rounds to 0.8302 but is printed 0.8301):
  * P2O5→P 0.4364 (VT SPES-201: 0.4365, the reciprocal of its rounded 2.2910), P→P2O5 2.2913,
  * K2O→K 0.8301 (SPES-201: 0.8301), K→K2O 1.2046 (SPES-201: 1.2051), NH3→N 0.8224 (SPES-201: 0.8225).
+ * The computed K→K2O 1.2046 is the right one; SPES-201's 1.2051 is what rounded weights (K 39.0,
+ * O 16.0) give (docs/fertiliser.md §2).
  */
 export const NUTRIENT_FACTORS = {
   p2o5ToP: (2 * A.P) / M_P2O5,
