@@ -154,28 +154,7 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
   const maxIterations = options.maxIterations ?? 500;
   const warnings: string[] = [];
 
-  // Stacked coefficient positions, the representative (first) slot of every θ, and R·β = 0 ties.
-  const offsets: number[] = [];
-  let K = 0;
-  for (const eq of equations) {
-    offsets.push(K);
-    K += eq.regressors.length;
-  }
-  const rep = new Array<number>(k).fill(-1);
-  const ties: [number, number][] = [];
-  slots.forEach((sl, i) =>
-    sl.forEach((theta, r) => {
-      const pos = offsets[i]! + r;
-      if (rep[theta]! < 0) rep[theta] = pos;
-      else ties.push([rep[theta]!, pos]);
-    }),
-  );
-  const R = ties.map(([a, b]) => {
-    const row = new Array<number>(K).fill(0);
-    row[a] = 1;
-    row[b] = -1;
-    return row;
-  });
+  const { rep, R } = symmetryRestrictions(equations, slots, k);
   let sur;
   try {
     sur = fitSur(equations, {
@@ -322,6 +301,36 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
     monotonicityViolationShare: anyWrong / T,
     warnings,
   };
+}
+
+/**
+ * Stacked coefficient positions of a netput system and the restrictions R·β = 0 that tie every
+ * structural parameter's copies together (the cross-equation symmetry restrictions): rep[θ] is the
+ * stacked position of θ's first copy.
+ */
+export function symmetryRestrictions(equations: SurEquationInput[], slots: number[][], k: number): { rep: number[]; R: number[][]; offsets: number[] } {
+  const offsets: number[] = [];
+  let K = 0;
+  for (const eq of equations) {
+    offsets.push(K);
+    K += eq.regressors.length;
+  }
+  const rep = new Array<number>(k).fill(-1);
+  const ties: [number, number][] = [];
+  slots.forEach((sl, i) =>
+    sl.forEach((theta, r) => {
+      const pos = offsets[i]! + r;
+      if (rep[theta]! < 0) rep[theta] = pos;
+      else ties.push([rep[theta]!, pos]);
+    }),
+  );
+  const R = ties.map(([a, b]) => {
+    const row = new Array<number>(K).fill(0);
+    row[a] = 1;
+    row[b] = -1;
+    return row;
+  });
+  return { rep, R, offsets };
 }
 
 function mean(v: ArrayLike<number>): number {

@@ -9,6 +9,11 @@
  *   const doc = fitToContractJson(fit, { prices: { wheat: 260 } });
  *   const outlook = projectSeason(fit, { scenarios, farms, draws: 10000, seed: 1 });
  *
+ * Forecasting (per-hectare model with farm and season effects, predictive bands, back-test):
+ *   const model = fitForecastModel(dataset, { trend: true });     // per hectare when land is recorded
+ *   const proj = projectForecast(model, { farms, prices, draws: 10000, seed: 1 });
+ *   const bt = backTestForecast(dataset, { trend: true }); describeBackTest(bt);
+ *
  * Bad input throws EstimationInputError {message, row?, column?}: map it to HTTP 422.
  */
 export { EstimationInputError, isEstimationInputError, type EstimationInputErrorDetails } from './errors.js';
@@ -54,3 +59,15 @@ export { FIT_CAUTION, fitToContractJson, type FitContractJson } from './contract
 export { fitSur, type SurEquationInput, type SurOptions, type SurResult } from './sur.js';
 export { ols, type OlsResult } from './ols.js';
 export { datasetToCsv, DEMO_ITEMS, generateNqPanel, type SyntheticItem, type SyntheticPanel, type SyntheticSpec } from './synthetic.js';
+export {
+  fitForecastModel,
+  landFactorIndex,
+  type ErrorScale,
+  type FarmEffects,
+  type ForecastModel,
+  type ForecastModelOptions,
+  type ForecastSpec,
+  type SeasonEffects,
+} from './panel.js';
+export { projectForecast, type FarmForecast, type ForecastFarm, type ForecastOptions, type ForecastProjection, type ForecastQuantity } from './forecast.js';
+export { generateForecastPanel, PER_HECTARE_ITEMS, type ForecastPanel, type ForecastPanelSpec } from './synthetic-panel.js';

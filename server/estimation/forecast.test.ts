@@ -1,0 +1,72 @@
+import { describe, expect, it } from 'vitest';
+import { projectForecast } from './forecast.js';
+import { fitForecastModel } from './panel.js';
+import { generateForecastPanel, PER_HECTARE_ITEMS } from './synthetic-panel.js';
+
+// Synthetic panel with known truth (invented data, server/estimation/synthetic-panel.ts): farm
+// effects 15 %, season shocks 8 %, residual 10 % of the mean netput per ha, residual variance per ha
+// ∝ land^−0.6. Method: docs/forecasting.md §1–§4.
+const panel = generateForecastPanel({ items: PER_HECTARE_ITEMS, farms: 120, seasons: 8, firstSeason: 2010, seed: 11 });
+const model = fitForecastModel(panel.dataset);
+
+describe('per-hectare forecasting model on a panel with known truth', () => {
+  it('is the default when land and farms are recorded, and says so in words', () => {
+    expect(model.spec).toBe('per-hectare');
+    expect(model.landFactor).toBe('land');
+    expect(model.fit.layout.factors).toEqual([]);
+    expect(model.specification).toMatch(/per hectare/);
+  });
+
+  it('recovers the size exponent of the residual variance (truth −0.6; ±0.3 for 960 observations)', () => {
+    for (const d of model.errorScale!.exponent) expect(Math.abs(d - -0.6)).toBeLessThan(0.3);
+  });
+
+  it('recovers the between-farm spread of the farm effects (truth 15 % of the mean netput; ±40 %)', () => {
+    PER_HECTARE_ITEMS.forEach((it, i) => {
+      const tau = Math.sqrt(model.farmEffects!.tau2[model.fit.layout.items.findIndex((x) => x.name === it.name)]!);
+      expect(Math.abs(tau / (0.15 * it.quantity) - 1), it.name).toBeLessThan(0.4);
+      void i;
+    });
+  });
+
+  it('shrinks farm effects toward zero (|shrunk| ≤ |farm mean|) and keeps the season effects centred', () => {
+    for (const eff of model.seasonEffects!.effects) expect(Math.abs(eff.reduce((a, v) => a + v, 0))).toBeLessThan(1e-9 * (1 + Math.max(...eff.map(Math.abs))));
+    expect(model.seasonEffects!.df).toBeGreaterThanOrEqual(2);
+    expect(model.seasonEffects!.df).toBeLessThanOrEqual(7);
+  });
+});
+
+describe('projectForecast', () => {
+  const farms = model.farmEffects!.farms.slice(0, 30).map((farm, j) => ({ farm, fixed: { land: model.farmEffects!.lastLand[j]! } }));
+  farms.push({ farm: 'NEW', fixed: { land: 200 } });
+  const prices = { wheat: 260, canola: 500, nitrogen: 1250, diesel: 1.2, other: 100 };
+  const proj = projectForecast(model, { farms, prices, draws: 2000, seed: 3 });
+
+  it('gives 0 ≤ lower ≤ point ≤ upper for every farm, item and the co-op', () => {
+    for (const f of proj.farms)
+      for (const q of Object.values(f.quantities)) {
+        expect(q.lower).toBeGreaterThanOrEqual(0);
+        expect(q.lower).toBeLessThanOrEqual(q.point);
+        expect(q.point).toBeLessThanOrEqual(q.upper);
+      }
+    for (const q of Object.values(proj.coop)) expect(q.lower <= q.point && q.point <= q.upper).toBe(true);
+  });
+
+  it('gives a new farm a wider band per hectare than a known farm of the same size', () => {
+    const newFarm = proj.farms.at(-1)!;
+    expect(newFarm.known).toBe(false);
+    const known = projectForecast(model, { farms: [{ farm: farms[0]!.farm, fixed: { land: 200 } }], prices, draws: 2000, seed: 3 }).farms[0]!;
+    expect(newFarm.quantities.wheat!.upper - newFarm.quantities.wheat!.lower).toBeGreaterThan(known.quantities.wheat!.upper - known.quantities.wheat!.lower);
+  });
+
+  it('is the same document for the same seed', () => {
+    expect(projectForecast(model, { farms, prices, draws: 2000, seed: 3 })).toEqual(proj);
+  });
+
+  it('co-op band is wider than independent farm errors would give (the season shock is shared)', () => {
+    const w = proj.coop.wheat!;
+    const farmSds = proj.farms.map((f) => f.quantities.wheat!.sd);
+    const independent = Math.sqrt(farmSds.reduce((a, s) => a + s * s, 0));
+    expect(w.sd).toBeGreaterThan(1.5 * independent);
+  });
+});

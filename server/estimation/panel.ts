@@ -1,0 +1,863 @@
+/**
+ * The forecasting model of a farm panel (docs/forecasting.md §1–§3).
+ *
+ * 'per-hectare' (the default when land and farms are recorded): with constant returns to the
+ * quasi-fixed land, π(p, L, z) = L·π(p, 1, z/L), so every netput per hectare is a function of prices,
+ * the other fixed factors per hectare and the trend alone (Lau 1978). The per-hectare netput system
+ * of the chosen form (NQ or GL, symmetry imposed, homogeneity by normalisation) is estimated with
+ *   y_ift / L_ft = x_ift'β + μ_if + λ_it + ε_ift,   Var(ε_ift) = σ_i² (L_ft / L̄)^δ_i,
+ * where μ_if is farm f's own level in equation i, shrunk toward the population by empirical Bayes
+ * (w = τ²/(τ² + σ²/T_f); Efron & Morris 1975), λ_it a season effect shared by every farm (its
+ * covariance across items estimated from the season means of the residuals; Baltagi 1980 for the
+ * two-way error components), and δ_i the slope of log squared residuals on log land.
+ * Estimation alternates (backfitting, as in Henderson's mixed-model equations): iterated SUR with
+ * the symmetry restrictions on the farm-adjusted, size-weighted data, then the farm and season
+ * effects and the variance scaling from its residuals, until β and the effects settle. Convexity is
+ * imposed (curvature.ts) when the estimate violates it.
+ *
+ * Parameter covariance: a sandwich P(B_farm + B_season)P with P the restricted GLS covariance,
+ * B_farm clustered by farm and B_season the model-based part of the season shocks; the projection
+ * draws the season part with the same Student t scale as the new season's shock.
+ *
+ * 'pooled': the profit function of fit.ts in levels (land an ordinary fixed factor), bands from
+ * parameter and residual uncertainty only; kept for comparison.
+ */
+import type { CurvatureReport, EquationFit } from '../../shared/estimation-types.js';
+import type { ForecastSpec } from '../../shared/forecast-types.js';
+import { checkConvexity, imposeConvexity, leadingBlock } from './curvature.js';
+import type { NetputDataset } from './dataset.js';
+import { EstimationInputError } from './errors.js';
+import { fitProfitFunction, prepareModel, symmetryRestrictions, type FitResult, type MonotonicityReport } from './fit.js';
+import { formOf } from './forms.js';
+import { covarianceToCorrelation, inverse, jacobiEigenvalues, symmetricEigen, type Mat } from './linalg.js';
+import type { FormName } from './model.js';
+import { fitSur, type SurEquationInput } from './sur.js';
+
+export type { ForecastSpec } from '../../shared/forecast-types.js';
+
+export interface ForecastModelOptions {
+  /** Default: 'per-hectare' when the data have farms and a land column, else 'pooled'. */
+  spec?: ForecastSpec;
+  form?: 'nq' | 'gl' | FormName;
+  numeraire?: string;
+  trend?: boolean;
+  /** Name of the land factor (default: the fixed factor called land or land_ha, any case). */
+  land?: string;
+  /** As in fitProfitFunction (default 'auto': impose convexity when the estimate violates it). */
+  curvature?: 'auto' | 'impose' | 'check';
+  /** Per-hectare only: farm effects (default true), season effects (true), size-scaled errors (true). */
+  farmEffects?: boolean;
+  seasonEffects?: boolean;
+  sizeScaledErrors?: boolean;
+}
+
+export interface FarmEffects {
+  farms: string[];
+  /** effects[i][f]: farm f's shrunk own level in equation i (netput per hectare). */
+  effects: number[][];
+  /** Posterior variance of each effect (w·σ²/T_f). */
+  variance: number[][];
+  /** Between-farm variance τ_i² (a new farm's effect has mean 0 and this variance). */
+  tau2: number[];
+  /** Seasons each farm was observed in. */
+  seasons: number[];
+  /** Each farm's land in its last recorded season (ha). */
+  lastLand: number[];
+}
+
+export interface SeasonEffects {
+  seasons: string[];
+  years: number[];
+  /** effects[i][s]: season s's shared effect in equation i (netput per hectare). */
+  effects: number[][];
+  /** Covariance of a new season's effect across items (per hectare), scale of the t predictive. */
+  covariance: Mat;
+  /** Degrees of freedom of the t predictive (seasons less what the fit absorbs; at least 2). */
+  df: number;
+}
+
+export interface ErrorScale {
+  /** Land (ha) at which the variances apply (geometric mean of the panel's land). */
+  referenceLand: number;
+  /** δ_i: per-hectare residual variance ∝ (land / referenceLand)^δ_i. */
+  exponent: number[];
+  /** σ_i² at the reference land (per hectare, squared). */
+  variance: number[];
+}
+
+/** A fitted forecasting model: plain JSON, safe to post to a worker thread or store. */
+export interface ForecastModel {
+  spec: ForecastSpec;
+  /** One line in words. */
+  specification: string;
+  /**
+   * The profit function: per hectare for 'per-hectare' (netputs and profit per ha, fixed factors
+   * other than land per ha, land not a factor), in levels for 'pooled'.
+   */
+  fit: FitResult;
+  landFactor: string | null;
+  /** Parameter covariance split: the part from farm-level noise and the season-shock part. */
+  parameterCovariance: { idiosyncratic: Mat; season: Mat };
+  farmEffects: FarmEffects | null;
+  seasonEffects: SeasonEffects | null;
+  errorScale: ErrorScale | null;
+  /** Seasons of the history, in order (labels and years). */
+  seasons: { labels: string[]; years: number[] };
+  outerIterations: number;
+}
+
+const LAND_NAMES = ['land', 'land_ha'];
+
+/** Index of the land factor, or −1. */
+export function landFactorIndex(ds: NetputDataset, name?: string): number {
+  if (name !== undefined) {
+    const k = ds.fixedFactors.indexOf(name);
+    if (k < 0) throw new EstimationInputError(`land factor "${name}" is not a fixed factor of the data (fixed:${name} is missing)`);
+    return k;
+  }
+  return ds.fixedFactors.findIndex((f) => LAND_NAMES.includes(f.toLowerCase()));
+}
+
+/**
+ * Fit the forecasting model. Pure and deterministic.
+ * @throws EstimationInputError for unusable data or options
+ */
+export function fitForecastModel(ds: NetputDataset, options: ForecastModelOptions = {}): ForecastModel {
+  const landIdx = landFactorIndex(ds, options.land);
+  const spec: ForecastSpec = options.spec ?? (landIdx >= 0 && ds.farms ? 'per-hectare' : 'pooled');
+  const seasons = seasonList(ds);
+  if (spec === 'pooled') {
+    const fit = fitProfitFunction(ds, {
+      ...(options.form ? { form: options.form } : {}),
+      ...(options.numeraire !== undefined ? { numeraire: options.numeraire } : {}),
+      trend: options.trend ?? false,
+      curvature: options.curvature ?? 'auto',
+    });
+    const k = fit.theta.length;
+    return {
+      spec,
+      specification: `${formWords(fit.layout.form)} profit function in levels, one technology and one error variance for every farm${options.trend ? ', with a trend' : ''}`,
+      fit,
+      landFactor: landIdx >= 0 ? ds.fixedFactors[landIdx]! : null,
+      parameterCovariance: { idiosyncratic: fit.covariance, season: Array.from({ length: k }, () => new Array<number>(k).fill(0)) },
+      farmEffects: null,
+      seasonEffects: null,
+      errorScale: null,
+      seasons,
+      outerIterations: 0,
+    };
+  }
+  if (landIdx < 0) throw new EstimationInputError('the per-hectare model needs land: add a fixed:land column (hectares) or use the pooled model');
+  if (!ds.farms) throw new EstimationInputError('the per-hectare model needs a farm column (one row per farm and season)');
+  return fitPerHectare(ds, landIdx, options, seasons);
+}
+
+function formWords(f: FormName): string {
+  return f === 'normalized-quadratic' ? 'Normalized quadratic' : 'Generalized Leontief';
+}
+
+function seasonList(ds: NetputDataset): { labels: string[]; years: number[] } {
+  const byYear = new Map<number, string>();
+  ds.seasonYears.forEach((y, o) => {
+    if (!byYear.has(y)) byYear.set(y, ds.seasons[o]!);
+  });
+  const years = [...byYear.keys()].sort((a, b) => a - b);
+  return { years, labels: years.map((y) => byYear.get(y)!) };
+}
+
+function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastModelOptions, seasons: { labels: string[]; years: number[] }): ForecastModel {
+  const N = ds.rows.length;
+  const landName = ds.fixedFactors[landIdx]!;
+  const land = Float64Array.from(ds.fixed[landIdx]!);
+  for (let o = 0; o < N; o++)
+    if (!(land[o]! > 0))
+      throw new EstimationInputError(`row ${ds.rows[o]}, column fixed:${landName}: land must be more than 0 ha for the per-hectare model, got ${land[o]}`, {
+        row: ds.rows[o]!,
+        column: `fixed:${landName}`,
+      });
+  // Per-hectare dataset: quantities and other fixed factors divided by land; land itself leaves.
+  const dsHa: NetputDataset = {
+    ...ds,
+    fixedFactors: ds.fixedFactors.filter((_, k) => k !== landIdx),
+    quantities: ds.quantities.map((q) => q.map((v, o) => v / land[o]!)),
+    fixed: ds.fixed.filter((_, k) => k !== landIdx).map((z) => z.map((v, o) => v / land[o]!)),
+  };
+  const prepared = prepareModel(dsHa, {
+    ...(options.form ? { form: options.form } : {}),
+    ...(options.numeraire !== undefined ? { numeraire: options.numeraire } : {}),
+    trend: options.trend ?? false,
+  });
+  const { layout, data, equations, slots } = prepared;
+  const form = formOf(layout.form);
+  const n = layout.items.length;
+  const k = layout.parameterNames.length;
+  const useFarm = options.farmEffects ?? true;
+  const useSeason = options.seasonEffects ?? true;
+  const useScale = options.sizeScaledErrors ?? true;
+  const warnings: string[] = [];
+
+  // Farm and season indices.
+  const farmNames: string[] = [];
+  const farmOf = new Int32Array(N);
+  const farmIndex = new Map<string, number>();
+  ds.farms!.forEach((f, o) => {
+    let id = farmIndex.get(f);
+    if (id === undefined) {
+      id = farmNames.length;
+      farmIndex.set(f, id);
+      farmNames.push(f);
+    }
+    farmOf[o] = id;
+  });
+  const F = farmNames.length;
+  const S = seasons.years.length;
+  const seasonIndex = new Map(seasons.years.map((y, s) => [y, s]));
+  const seasonOf = Int32Array.from(ds.seasonYears, (y) => seasonIndex.get(y)!);
+  const Tf = new Int32Array(F);
+  for (let o = 0; o < N; o++) Tf[farmOf[o]!]!++;
+  const lastLand = new Float64Array(F);
+  const lastYear = new Int32Array(F).fill(-1);
+  for (let o = 0; o < N; o++) {
+    const f = farmOf[o]!;
+    if (ds.seasonYears[o]! >= lastYear[f]!) {
+      lastYear[f] = ds.seasonYears[o]!;
+      lastLand[f] = land[o]!;
+    }
+  }
+  let logSum = 0;
+  for (let o = 0; o < N; o++) logSum += Math.log(land[o]!);
+  const Lref = Math.exp(logSum / N);
+  const logL = Float64Array.from(land, (v) => Math.log(v / Lref));
+  let sxx = 0;
+  for (let o = 0; o < N; o++) sxx += logL[o]! ** 2;
+  const landVaries = sxx / N > 1e-6;
+
+  const { rep, R } = symmetryRestrictions(equations, slots, k);
+  const y = equations.map((e) => e.y as Float64Array);
+
+  // State.
+  const delta = new Float64Array(n); // per-item variance exponents
+  let deltaW = 0; // common exponent used for the SUR weights
+  const mu = Array.from({ length: n }, () => new Float64Array(F));
+  const muVar = Array.from({ length: n }, () => new Float64Array(F));
+  const lambda = Array.from({ length: n }, () => new Float64Array(S));
+  const tau2 = new Array<number>(n).fill(0);
+  const sigma2 = new Array<number>(n).fill(0);
+  const resid = Array.from({ length: n }, () => new Float64Array(N));
+  let theta = new Array<number>(k).fill(0);
+  let sur: ReturnType<typeof fitSur> | null = null;
+  let w = new Float64Array(N).fill(1);
+  let sqw = new Float64Array(N).fill(1);
+  let weightedCols = new Map<ArrayLike<number>, Float64Array>();
+
+  const weightedEquations = (): SurEquationInput[] =>
+    equations.map((eq, i) => {
+      const yi = y[i]!;
+      const mi = mu[i]!;
+      const yw = new Float64Array(N);
+      for (let o = 0; o < N; o++) yw[o] = sqw[o]! * (yi[o]! - mi[farmOf[o]!]!);
+      return {
+        name: eq.name,
+        y: yw,
+        regressors: eq.regressors.map((r) => {
+          let c = weightedCols.get(r.values);
+          if (!c) {
+            c = new Float64Array(N);
+            const v = r.values;
+            for (let o = 0; o < N; o++) c[o] = sqw[o]! * v[o]!;
+            weightedCols.set(r.values, c);
+          }
+          return { name: r.name, values: c };
+        }),
+      };
+    });
+  const setWeights = (d: number): void => {
+    deltaW = d;
+    w = Float64Array.from(logL, (x) => Math.exp(-d * x));
+    sqw = Float64Array.from(w, Math.sqrt);
+    weightedCols = new Map();
+  };
+  const residualsAt = (th: number[]): void => {
+    equations.forEach((eq, i) => {
+      const e = resid[i]!;
+      e.set(y[i]!);
+      eq.regressors.forEach((reg, r) => {
+        const b = th[slots[i]![r]!]!;
+        const v = reg.values;
+        for (let o = 0; o < N; o++) e[o]! -= b * v[o]!;
+      });
+    });
+  };
+
+  /** Farm and season effects, variances and exponents from the current raw residuals. */
+  const updateEffects = (): void => {
+    for (let i = 0; i < n; i++) {
+      const r = resid[i]!;
+      const wi = Float64Array.from(logL, (x) => Math.exp(-delta[i]! * x));
+      const m = mu[i]!;
+      const lam = lambda[i]!;
+      // season effects: weighted season means of r − μ
+      if (useSeason) {
+        const num = new Float64Array(S);
+        const den = new Float64Array(S);
+        for (let o = 0; o < N; o++) {
+          const s = seasonOf[o]!;
+          num[s]! += wi[o]! * (r[o]! - m[farmOf[o]!]!);
+          den[s]! += wi[o]!;
+        }
+        let lm = 0;
+        for (let s = 0; s < S; s++) {
+          lam[s] = den[s]! > 0 ? num[s]! / den[s]! : 0;
+          lm += lam[s]!;
+        }
+        // the intercept carries the average season; effects are deviations from it
+        lm /= S;
+        for (let s = 0; s < S; s++) lam[s]! -= lm;
+      }
+      // farm means of r − λ (weighted) and the within-farm residuals
+      const fm = new Float64Array(F);
+      const fw = new Float64Array(F);
+      for (let o = 0; o < N; o++) {
+        const f = farmOf[o]!;
+        fm[f]! += wi[o]! * (r[o]! - lam[seasonOf[o]!]!);
+        fw[f]! += wi[o]!;
+      }
+      for (let f = 0; f < F; f++) fm[f] = fw[f]! > 0 ? fm[f]! / fw[f]! : 0;
+      // σ_i² at the reference land from the within-farm residuals (degrees of freedom T_f − 1)
+      let ss = 0;
+      let dof = 0;
+      const e2 = new Float64Array(N);
+      for (let o = 0; o < N; o++) {
+        const f = farmOf[o]!;
+        const e = r[o]! - lam[seasonOf[o]!]! - (useFarm ? fm[f]! : 0);
+        const c = useFarm ? (Tf[f]! > 1 ? Tf[f]! / (Tf[f]! - 1) : 0) : 1;
+        e2[o] = e * e * c;
+        ss += wi[o]! * e * e;
+      }
+      for (let f = 0; f < F; f++) dof += useFarm ? Tf[f]! - 1 : Tf[f]!;
+      dof -= useSeason ? S : 0;
+      const s2 = ss / Math.max(dof, 1);
+      sigma2[i] = s2 > 0 ? s2 : 1e-300;
+      // τ_i² by moments: spread of farm means less their sampling variance
+      if (useFarm) {
+        // effects are deviations from the population level, which the intercept carries
+        let mbar = 0;
+        let wsum = 0;
+        for (let f = 0; f < F; f++) {
+          mbar += fw[f]! * fm[f]!;
+          wsum += fw[f]!;
+        }
+        mbar /= wsum;
+        for (let f = 0; f < F; f++) fm[f]! -= mbar;
+        let between = 0;
+        let noise = 0;
+        for (let f = 0; f < F; f++) {
+          between += fm[f]! ** 2;
+          noise += sigma2[i]! / fw[f]!;
+        }
+        const t2 = F > 1 ? (between - ((F - 1) / F) * noise) / (F - 1) : 0;
+        tau2[i] = Math.max(t2, 1e-6 * sigma2[i]!);
+        for (let f = 0; f < F; f++) {
+          const nv = sigma2[i]! / fw[f]!;
+          const B = tau2[i]! / (tau2[i]! + nv);
+          m[f] = B * fm[f]!;
+          muVar[i]![f] = B * nv;
+        }
+      }
+      // δ_i: slope of log squared within-farm residuals on log land
+      if (useScale && landVaries) {
+        let sx = 0;
+        let sy = 0;
+        let sxy = 0;
+        let sxx2 = 0;
+        let cnt = 0;
+        for (let o = 0; o < N; o++) {
+          if (useFarm && Tf[farmOf[o]!]! < 2) continue;
+          const ly = Math.log(e2[o]! + 1e-12 * sigma2[i]!);
+          const lx = logL[o]!;
+          sx += lx;
+          sy += ly;
+          sxy += lx * ly;
+          sxx2 += lx * lx;
+          cnt++;
+        }
+        const vx = sxx2 - (sx * sx) / Math.max(cnt, 1);
+        const d = cnt > 2 && vx > 1e-9 * cnt ? (sxy - (sx * sy) / cnt) / vx : 0;
+        delta[i] = Math.min(Math.max(d, -2), 1);
+      }
+    }
+  };
+
+  const maxOuter = 30;
+  let outer = 0;
+  let converged = false;
+  let surIterations = 0;
+  const solveTheta = (last: boolean): number[] => {
+    const eqW = weightedEquations();
+    try {
+      sur = fitSur(eqW, {
+        method: 'SUR',
+        maxIterations: last ? 200 : 1,
+        tolerance: 1e-8,
+        residualCovariance: 'noDfCor',
+        ...(R.length ? { restrictions: { matrix: R } } : {}),
+      });
+    } catch (e) {
+      if (e instanceof Error && /singular/.test(e.message))
+        throw new EstimationInputError('the per-hectare netput system cannot be estimated: its normal equations are singular (check for items whose quantities or prices never vary)');
+      throw e;
+    }
+    surIterations = sur.iterations;
+    return rep.map((pos) => sur!.coefficients[pos]!);
+  };
+  for (outer = 1; outer <= maxOuter; outer++) {
+    const prev = theta;
+    const prevDelta = Array.from(delta);
+    theta = solveTheta(false);
+    residualsAt(theta);
+    updateEffects();
+    let num = 0;
+    let den = 0;
+    for (let j = 0; j < k; j++) {
+      num += (theta[j]! - prev[j]!) ** 2;
+      den += prev[j]! ** 2;
+    }
+    const dd = prevDelta.reduce((a, v, i) => Math.max(a, Math.abs(v - delta[i]!)), 0);
+    const newW = useScale ? delta.reduce((a, v) => a + v, 0) / n : 0;
+    if (Math.abs(newW - deltaW) > 1e-4) setWeights(newW);
+    if (outer > 1 && Math.sqrt(num / Math.max(den, 1e-300)) < 1e-6 && dd < 1e-4) {
+      converged = true;
+      break;
+    }
+  }
+  if (!converged) warnings.push(`the farm and season effects did not settle in ${maxOuter} rounds`);
+  outer = Math.min(outer, maxOuter);
+  // Final iterated SUR at the settled effects and weights.
+  theta = solveTheta(true);
+  residualsAt(theta);
+  updateEffects();
+
+  // Convexity.
+  const means = { prices: data.prices.map(meanOf), fixed: data.factors.map(meanOf) };
+  const block = form.curvatureBlock(layout, means.prices);
+  const unrestricted = checkConvexity(block.toMatrix(theta));
+  const mode = options.curvature ?? 'auto';
+  const impose = mode === 'impose' || (mode === 'auto' && !unrestricted.convex);
+  let curvatureExtra: Pick<CurvatureReport, 'binding' | 'iterations' | 'converged' | 'optimality'> = {};
+  let imposedCov: Mat | null = null;
+  if (impose) {
+    for (let round = 0; round < 4; round++) {
+      const eqW = weightedEquations();
+      const imposed = imposeConvexity({
+        equations: eqW,
+        slots,
+        parameterCount: k,
+        theta0: theta,
+        sigma0: sur!.sigmaUsed,
+        block,
+        maxIterations: 500,
+        tolerance: 1e-8,
+      });
+      theta = imposed.theta;
+      imposedCov = imposed.covariance;
+      curvatureExtra = { binding: imposed.binding, iterations: imposed.iterations, converged: imposed.converged, optimality: imposed.optimality };
+      residualsAt(theta);
+      updateEffects();
+      if (!imposed.converged) warnings.push('the convexity-constrained fit did not converge');
+    }
+    if (curvatureExtra.binding) warnings.push('convexity binds: the constrained price Hessian is singular (estimates on the boundary)');
+    if (!block.global) warnings.push('for the generalized Leontief form convexity is imposed at the sample-mean prices only');
+  }
+
+  // Season-shock covariance and its t degrees of freedom (the season-level residual df).
+  const sigmaInv = inverse(sur!.sigmaUsed);
+  const seasonSums = equations.map((eq) => {
+    // g[s][a] = Σ_{o∈s} w_o x_oa (raw regressors, common weights)
+    const K = eq.regressors.length;
+    const g = Array.from({ length: S }, () => new Float64Array(K));
+    eq.regressors.forEach((reg, a) => {
+      const v = reg.values;
+      for (let o = 0; o < N; o++) g[seasonOf[o]!]![a]! += w[o]! * v[o]!;
+    });
+    return g;
+  });
+  const seasonW = new Float64Array(S);
+  for (let o = 0; o < N; o++) seasonW[seasonOf[o]!]! += w[o]!;
+  let seasonCov: Mat = zerosMat(n);
+  let df = Infinity;
+  const P = sur!.covariance;
+  const K = P.length;
+  const offsets: number[] = [];
+  {
+    let acc = 0;
+    for (const eq of equations) {
+      offsets.push(acc);
+      acc += eq.regressors.length;
+    }
+  }
+  if (useSeason) {
+    const noise = sigma2.map((s2, i) => {
+      const wi = new Float64Array(S);
+      for (let o = 0; o < N; o++) wi[seasonOf[o]!]! += Math.exp(-delta[i]! * logL[o]!);
+      return Array.from(wi, (v) => s2 / v);
+    });
+    const est = seasonShockCovariance(lambda, P, sigmaInv, seasonSums, seasonW, offsets, noise);
+    seasonCov = est.covariance;
+    df = Math.max(2, est.df);
+  }
+
+  // Parameter covariance: P (B_farm + B_season) P, mapped to θ.
+  const Bf = zerosMat(K);
+  {
+    const h = Array.from({ length: F }, () => new Float64Array(K));
+    const eo = new Float64Array(n);
+    const uo = new Float64Array(n);
+    for (let o = 0; o < N; o++) {
+      const f = farmOf[o]!;
+      const s = seasonOf[o]!;
+      for (let i = 0; i < n; i++) eo[i] = sqw[o]! * (resid[i]![o]! - lambda[i]![s]! - mu[i]![f]!);
+      for (let i = 0; i < n; i++) {
+        let acc = 0;
+        for (let j = 0; j < n; j++) acc += sigmaInv[i]![j]! * eo[j]!;
+        uo[i] = acc;
+      }
+      const hf = h[f]!;
+      for (let i = 0; i < n; i++) {
+        const regs = equations[i]!.regressors;
+        const base = offsets[i]!;
+        const u = uo[i]! * sqw[o]!;
+        for (let a = 0; a < regs.length; a++) hf[base + a]! += regs[a]!.values[o]! * u;
+      }
+    }
+    for (let f = 0; f < F; f++) {
+      const hf = h[f]!;
+      for (let a = 0; a < K; a++) {
+        const ha = hf[a]!;
+        if (ha === 0) continue;
+        const row = Bf[a]!;
+        for (let b = 0; b < K; b++) row[b]! += ha * hf[b]!;
+      }
+    }
+  }
+  const Bs = zerosMat(K);
+  if (useSeason) {
+    const M = matMulSmall(matMulSmall(sigmaInv, seasonCov), sigmaInv);
+    for (let s = 0; s < S; s++)
+      for (let i = 0; i < n; i++)
+        for (let j = 0; j < n; j++) {
+          const mij = M[i]![j]!;
+          if (mij === 0) continue;
+          const gi = seasonSums[i]![s]!;
+          const gj = seasonSums[j]![s]!;
+          for (let a = 0; a < gi.length; a++) for (let b = 0; b < gj.length; b++) Bs[offsets[i]! + a]![offsets[j]! + b]! += gi[a]! * gj[b]! * mij;
+        }
+  }
+  const toTheta = (V: Mat): Mat => rep.map((a) => rep.map((b) => V[a]![b]!));
+  const PBfP = toTheta(matMulSmall(matMulSmall(P, Bf), P));
+  const PBsP = toTheta(matMulSmall(matMulSmall(P, Bs), P));
+  const idio = imposedCov ?? PBfP;
+  const covariance = idio.map((row, a) => row.map((v, b) => v + PBsP[a]![b]!));
+
+  // Equation statistics (per hectare, raw residuals less the effects) and the FitResult.
+  const eqFits: EquationFit[] = equations.map((eq, i) => {
+    let ssr = 0;
+    for (let o = 0; o < N; o++) {
+      const e = resid[i]![o]! - lambda[i]![seasonOf[o]!]! - mu[i]![farmOf[o]!]!;
+      ssr += e * e;
+    }
+    const ym = meanOf(eq.y);
+    let sst = 0;
+    for (let o = 0; o < N; o++) sst += (eq.y[o]! - ym) ** 2;
+    const se = covariance.map((row, a) => Math.sqrt(Math.max(row[a]!, 0)));
+    return {
+      item: layout.items[i]!.name,
+      role: layout.items[i]!.role,
+      r2: 1 - ssr / sst,
+      rmse: Math.sqrt(ssr / N),
+      ssr,
+      coefficients: eq.regressors.map((reg, r) => {
+        const th = slots[i]![r]!;
+        return { name: `${eq.name}_${reg.name}`, parameter: layout.parameterNames[th]!, estimate: theta[th]!, standardError: se[th]! };
+      }),
+    };
+  });
+  const sigmaEps = residualCovarianceOf(resid, lambda, mu, seasonOf, farmOf, sigma2);
+  const standardErrors = covariance.map((row, a) => Math.sqrt(Math.max(row[a]!, 0)));
+  // Gaussian log-likelihood of the weighted SUR (an approximation that ignores the effects' variance).
+  let logDet = 0;
+  const ch = jacobiEigenvalues(sur!.sigmaUsed);
+  for (const v of ch) logDet += Math.log(Math.max(v, 1e-300));
+  let logW = 0;
+  for (let o = 0; o < N; o++) logW += Math.log(w[o]!);
+  const logLikelihood = (-N / 2) * (n * Math.log(2 * Math.PI) + logDet + n) + (n / 2) * logW;
+  const finalCheck = checkConvexity(block.toMatrix(theta));
+  let violating = 0;
+  if (block.global) violating = finalCheck.convex ? 0 : N;
+  else {
+    const p = new Array<number>(n);
+    for (let o = 0; o < N; o++) {
+      for (let i = 0; i < n; i++) p[i] = data.prices[i]![o]!;
+      const eig = jacobiEigenvalues(leadingBlock(form.priceHessian(layout, theta, p)));
+      const maxAbs = eig.reduce((acc, v) => Math.max(acc, Math.abs(v)), 0);
+      if (eig[0]! < -1e-9 * maxAbs) violating++;
+    }
+  }
+  const wrong = new Array<number>(n).fill(0);
+  let anyWrong = 0;
+  for (let o = 0; o < N; o++) {
+    let bad = false;
+    for (let i = 0; i < n; i++) {
+      const fitted = y[i]![o]! - resid[i]![o]!;
+      const ok = layout.items[i]!.role === 'output' ? fitted > 0 : fitted < 0;
+      if (!ok) {
+        wrong[i]!++;
+        bad = true;
+      }
+    }
+    if (bad) anyWrong++;
+  }
+  const monotonicity: MonotonicityReport[] = layout.items.map((it, i) => ({ item: it.name, role: it.role, violations: wrong[i]!, share: wrong[i]! / N }));
+  const fit: FitResult = {
+    layout,
+    observations: N,
+    theta,
+    covariance,
+    standardErrors,
+    sigma: sigmaEps,
+    residualCorrelation: covarianceToCorrelation(sigmaEps),
+    equations: eqFits,
+    logLikelihood,
+    parameterCount: k,
+    aic: -2 * logLikelihood + 2 * k,
+    bic: -2 * logLikelihood + k * Math.log(N),
+    iterations: surIterations,
+    converged,
+    seasonYears: { first: seasons.years[0]!, last: seasons.years[S - 1]! },
+    means,
+    referencePrices: means.prices,
+    curvature: {
+      global: block.global,
+      unrestrictedEigenvalues: unrestricted.eigenvalues,
+      unrestrictedConvex: unrestricted.convex,
+      imposed: impose,
+      eigenvalues: finalCheck.eigenvalues,
+      convexAtMeans: finalCheck.convex,
+      violatingObservations: violating,
+      violationShare: violating / N,
+      ...curvatureExtra,
+    },
+    monotonicity,
+    monotonicityViolationShare: anyWrong / N,
+    warnings,
+  };
+  const parts = [
+    `${formWords(layout.form)} profit function per hectare of land (constant returns to land)`,
+    useFarm ? "each farm's own level shrunk toward all farms" : null,
+    useSeason ? `a season shock shared by all farms (t with ${df.toFixed(1)} df)` : null,
+    useScale ? 'error variance scaled by farm size' : null,
+    options.trend ? 'a trend' : null,
+  ].filter((x): x is string => x !== null);
+  return {
+    spec: 'per-hectare',
+    specification: parts.join(', '),
+    fit,
+    landFactor: landName,
+    parameterCovariance: { idiosyncratic: idio, season: PBsP },
+    farmEffects: useFarm
+      ? {
+          farms: farmNames,
+          effects: mu.map((m) => Array.from(m)),
+          variance: muVar.map((m) => Array.from(m)),
+          tau2,
+          seasons: Array.from(Tf),
+          lastLand: Array.from(lastLand),
+        }
+      : {
+          farms: farmNames,
+          effects: mu.map(() => new Array<number>(F).fill(0)),
+          variance: mu.map(() => new Array<number>(F).fill(0)),
+          tau2: new Array<number>(n).fill(0),
+          seasons: Array.from(Tf),
+          lastLand: Array.from(lastLand),
+        },
+    seasonEffects: useSeason ? { seasons: seasons.labels, years: seasons.years, effects: lambda.map((l) => Array.from(l)), covariance: seasonCov, df } : null,
+    errorScale: { referenceLand: Lref, exponent: Array.from(delta), variance: sigma2.slice() },
+    seasons,
+    outerIterations: outer,
+  };
+}
+
+/**
+ * Covariance across items of the season shocks, and the degrees of freedom of its estimate, from the
+ * season means of the residuals λ̂ (centred). The fitted coefficients absorb part of every season
+ * shock (prices move with the seasons), so λ̂ = M λ with M = C(I − Q): Q maps a shock in (item a,
+ * season s) through the restricted GLS estimator P·X'Σ⁻¹ into the fitted season means
+ * (Q_(i,t),(a,s) = x̄_it'·[P g_(a,s)]_i, g the weighted regressor sums of season s) and C centres over
+ * seasons. Then E[Σ_t λ̂_it λ̂_jt] = Σ_ab Σ_λ,ab·c^ij_ab + noise_ij with c^ij_ab = Σ_t Σ_s M_(i,t),(a,s)
+ * M_(j,t),(b,s): a linear system in Σ_λ, solved and projected onto the positive semidefinite cone.
+ * The degrees of freedom are the average own-term c^ii_ii (seasons less what the fit absorbs).
+ */
+function seasonShockCovariance(
+  lambda: Float64Array[],
+  P: Mat,
+  sigmaInv: Mat,
+  seasonSums: Float64Array[][],
+  seasonW: Float64Array,
+  offsets: number[],
+  noise: number[][],
+): { covariance: Mat; df: number } {
+  const n = lambda.length;
+  const S = lambda[0]!.length;
+  const K = P.length;
+  const NS = n * S;
+  // M = C (I − Q), rows and columns indexed (item, season) → item·S + season
+  const Q = Array.from({ length: NS }, () => new Float64Array(NS));
+  const g = new Float64Array(K);
+  for (let a = 0; a < n; a++)
+    for (let s = 0; s < S; s++) {
+      g.fill(0);
+      for (let j = 0; j < n; j++) {
+        const c = sigmaInv[j]![a]!;
+        if (c === 0) continue;
+        const gs = seasonSums[j]![s]!;
+        for (let b = 0; b < gs.length; b++) g[offsets[j]! + b] = gs[b]! * c;
+      }
+      const db = new Float64Array(K);
+      for (let r = 0; r < K; r++) {
+        let acc = 0;
+        const row = P[r]!;
+        for (let c = 0; c < K; c++) acc += row[c]! * g[c]!;
+        db[r] = acc;
+      }
+      const col = a * S + s;
+      for (let i = 0; i < n; i++)
+        for (let t = 0; t < S; t++) {
+          const gt = seasonSums[i]![t]!;
+          let acc = 0;
+          for (let b = 0; b < gt.length; b++) acc += (gt[b]! / seasonW[t]!) * db[offsets[i]! + b]!;
+          Q[i * S + t]![col] = acc;
+        }
+    }
+  const M = Array.from({ length: NS }, (_, r) => Float64Array.from(Q[r]!, (q, c) => (r === c ? 1 : 0) - q));
+  // centre over seasons within each item
+  for (let i = 0; i < n; i++)
+    for (let c = 0; c < NS; c++) {
+      let m = 0;
+      for (let t = 0; t < S; t++) m += M[i * S + t]![c]!;
+      m /= S;
+      for (let t = 0; t < S; t++) M[i * S + t]![c]! -= m;
+    }
+  // c^ij_ab for the pairs (i ≤ j), unknowns Σ_ab (a ≤ b)
+  const pairs: [number, number][] = [];
+  for (let i = 0; i < n; i++) for (let j = i; j < n; j++) pairs.push([i, j]);
+  const np = pairs.length;
+  const A = Array.from({ length: np }, () => new Array<number>(np).fill(0));
+  const rhs = new Array<number>(np).fill(0);
+  const coef = (i: number, j: number, a: number, b: number): number => {
+    let acc = 0;
+    for (let t = 0; t < S; t++) {
+      const ri = M[i * S + t]!;
+      const rj = M[j * S + t]!;
+      for (let s = 0; s < S; s++) acc += ri[a * S + s]! * rj[b * S + s]!;
+    }
+    return acc;
+  };
+  pairs.forEach(([i, j], r) => {
+    pairs.forEach(([a, b], c) => {
+      A[r]![c] = a === b ? coef(i, j, a, a) : coef(i, j, a, b) + coef(i, j, b, a);
+    });
+    let acc = 0;
+    for (let t = 0; t < S; t++) acc += lambda[i]![t]! * lambda[j]![t]!;
+    if (i === j) for (let t = 0; t < S; t++) acc -= noise[i]![t]! * (1 - 1 / S);
+    rhs[r] = acc;
+  });
+  let sol: number[];
+  try {
+    sol = solveSmall(A, rhs);
+  } catch {
+    sol = pairs.map(([i, j], r) => (i === j ? rhs[r]! / Math.max(S - 1, 1) : 0));
+  }
+  const cov = zerosMat(n);
+  pairs.forEach(([i, j], r) => {
+    cov[i]![j] = sol[r]!;
+    cov[j]![i] = sol[r]!;
+  });
+  let df = 0;
+  for (let i = 0; i < n; i++) df += coef(i, i, i, i);
+  df /= n;
+  return { covariance: clipPsd(cov), df };
+}
+
+function solveSmall(A: Mat, b: number[]): number[] {
+  const n = b.length;
+  const M = A.map((row, i) => [...row, b[i]!]);
+  for (let c = 0; c < n; c++) {
+    let piv = c;
+    for (let r = c + 1; r < n; r++) if (Math.abs(M[r]![c]!) > Math.abs(M[piv]![c]!)) piv = r;
+    if (Math.abs(M[piv]![c]!) < 1e-300) throw new Error('singular');
+    [M[c], M[piv]] = [M[piv]!, M[c]!];
+    for (let r = 0; r < n; r++) {
+      if (r === c) continue;
+      const f = M[r]![c]! / M[c]![c]!;
+      if (f === 0) continue;
+      for (let k = c; k <= n; k++) M[r]![k]! -= f * M[c]![k]!;
+    }
+  }
+  return M.map((row, i) => row[n]! / row[i]!);
+}
+
+/** Nearest positive semidefinite matrix (negative eigenvalues set to zero). */
+function clipPsd(a: Mat): Mat {
+  const { values, vectors } = symmetricEigen(a);
+  const n = a.length;
+  const out = zerosMat(n);
+  for (let l = 0; l < n; l++) {
+    const v = Math.max(values[l]!, 0);
+    if (v === 0) continue;
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[i]![j]! += vectors[i]![l]! * v * vectors[j]![l]!;
+  }
+  return out;
+}
+
+function residualCovarianceOf(resid: Float64Array[], lambda: Float64Array[], mu: Float64Array[], seasonOf: Int32Array, farmOf: Int32Array, sigma2: number[]): Mat {
+  const n = resid.length;
+  const N = resid[0]!.length;
+  const e = resid.map((r, i) => Float64Array.from(r, (v, o) => v - lambda[i]![seasonOf[o]!]! - mu[i]![farmOf[o]!]!));
+  const g = e.map((a) => e.map((b) => dotF(a, b)));
+  return g.map((row, i) => row.map((v, j) => (v / Math.sqrt(g[i]![i]! * g[j]![j]! || 1)) * Math.sqrt(sigma2[i]! * sigma2[j]!) * (N > 0 ? 1 : 0)));
+}
+
+function meanOf(v: ArrayLike<number>): number {
+  let s = 0;
+  for (let i = 0; i < v.length; i++) s += v[i]!;
+  return s / v.length;
+}
+
+function dotF(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  let s = 0;
+  for (let i = 0; i < a.length; i++) s += a[i]! * b[i]!;
+  return s;
+}
+
+function zerosMat(n: number): Mat {
+  return Array.from({ length: n }, () => new Array<number>(n).fill(0));
+}
+
+function matMulSmall(a: Mat, b: Mat): Mat {
+  const n = a.length;
+  const m = b[0]?.length ?? 0;
+  const kk = b.length;
+  const out = Array.from({ length: n }, () => new Array<number>(m).fill(0));
+  for (let i = 0; i < n; i++) {
+    const ai = a[i]!;
+    const oi = out[i]!;
+    for (let l = 0; l < kk; l++) {
+      const v = ai[l]!;
+      if (v === 0) continue;
+      const bl = b[l]!;
+      for (let j = 0; j < m; j++) oi[j]! += v * bl[j]!;
+    }
+  }
+  return out;
+}
+

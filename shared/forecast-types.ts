@@ -1,0 +1,112 @@
+/**
+ * Result shapes of the forecasting engine (server/estimation/forecast.ts, backtest.ts): per-farm and
+ * co-op predictive bands and the rolling-origin back-test. Plain data shared by the server and the
+ * screens.
+ */
+import type { QuantitySummary } from './estimation-types.js';
+
+/** Specification of a forecasting model. */
+export type ForecastSpec = 'per-hectare' | 'pooled';
+
+/**
+ * A projected quantity (supply for an output, use for an input; never negative). Compatible with
+ * QuantitySummary: p5/p95 are always the 5 % and 95 % points; lower/upper are the band at the
+ * projection's level ((1 − level)/2 and (1 + level)/2 quantiles), the same as p5/p95 at level 0.9.
+ */
+export interface ForecastQuantity extends QuantitySummary {
+  lower: number;
+  upper: number;
+}
+
+export interface FarmForecast {
+  farm: string;
+  /** True when the farm has records in the history the model was fitted to. */
+  known: boolean;
+  /** Land used (ha), when the model is per hectare. */
+  land: number | null;
+  quantities: Record<string, ForecastQuantity>;
+}
+
+export interface ForecastProjection {
+  spec: ForecastSpec;
+  /** Season year projected (trend and labels). */
+  season: number;
+  level: number;
+  draws: number;
+  seed: number;
+  items: { name: string; role: 'output' | 'input' }[];
+  /** Prices the farms face when all farms face the same prices (null when they differ). */
+  prices: Record<string, number> | null;
+  farms: FarmForecast[];
+  /** Band of the sum over the farms, per draw (the season shock is shared by every farm). */
+  coop: Record<string, ForecastQuantity>;
+  /** True when draws include the expectation method's past relative price errors. */
+  priceRisk: boolean;
+  /** Degrees of freedom of the Student t predictive of the season shock (null: no season shock). */
+  seasonShockDf: number | null;
+  /** Parameter draws whose price Hessian is not positive semidefinite. */
+  curvatureViolationShare: number;
+  caution: string;
+}
+
+export interface ErrorSummary {
+  /** Median absolute percentage error over farm outcomes with a positive actual (%). */
+  mdape: number | null;
+  /** Root mean squared error of farm quantities (item units). */
+  rmse: number | null;
+  /** Mean absolute percentage error of the co-op total over the back-tested seasons (%). */
+  coopError: number | null;
+  /** Farm outcomes compared. */
+  count: number;
+}
+
+export interface CoverageCount {
+  held: number;
+  total: number;
+  /** held / total (null when total is 0). */
+  share: number | null;
+}
+
+export interface BackTestItem {
+  item: string;
+  role: 'output' | 'input';
+  model: ErrorSummary;
+  rules: {
+    /** Last season's quantity of the farm. */
+    lastSeason: ErrorSummary;
+    /** The farm's own average quantity per hectare in past seasons × its land (null without land). */
+    perHectare: ErrorSummary | null;
+  };
+  /** Model error over rule error (MdAPE and RMSE; below 1: the model is closer). */
+  ratios: {
+    lastSeason: { mdape: number | null; rmse: number | null };
+    perHectare: { mdape: number | null; rmse: number | null } | null;
+  };
+  coverage: {
+    /** Smallest, middle and largest third of farms by land (by the item's own quantity without land). */
+    byThird: [CoverageCount, CoverageCount, CoverageCount];
+    farms: CoverageCount;
+    coop: CoverageCount;
+  };
+  /** True when the model's MdAPE is no worse than the per-hectare rule (or, without land, last season's). */
+  beatsRule: boolean;
+}
+
+export interface BackTestOrigin {
+  /** Last season of the fit and the season projected. */
+  fittedThrough: string;
+  season: string;
+  farms: number;
+  /** The co-op totals: projected point, band, actual. */
+  coop: Record<string, { point: number; lower: number; upper: number; actual: number }>;
+  error: string | null;
+}
+
+export interface BackTestResult {
+  spec: ForecastSpec;
+  level: number;
+  /** Land-tercile boundaries (ha) used for the thirds, or of the item's quantity without land. */
+  thirds: { by: 'land' | 'quantity'; cuts: [number, number] | null };
+  origins: BackTestOrigin[];
+  items: BackTestItem[];
+}
