@@ -22,6 +22,7 @@ function percentile(sorted: number[], p: number) {
   return sorted[Math.min(sorted.length - 1, Math.floor((p / 100) * sorted.length))];
 }
 
+const loadAtStart = os.loadavg().map((x) => Math.round(x * 100) / 100);
 const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'netput-bench-'));
 const server = await startServerProcess({ DATA_DIR: dataDir });
 try {
@@ -80,7 +81,7 @@ try {
   const report = {
     benchmark: 'read endpoints at 100 connections while two fits run',
     at: new Date().toISOString(),
-    machine: { cpus: os.cpus().length, node: process.version },
+    machine: { cpus: os.cpus().length, node: process.version, loadAverageAtStart: loadAtStart, loadAverageAtEnd: os.loadavg().map((x) => Math.round(x * 100) / 100) },
     seconds,
     connections,
     endpoints: paths,

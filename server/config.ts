@@ -10,9 +10,9 @@ export interface Config {
   mailFrom: string;
   /** Base URL used in links sent by e-mail. */
   publicUrl: string;
-  /** Development mode: the received-mail page is on, cookies are not `Secure`. */
+  /** Development mode (`--dev` or NODE_ENV=development): the received-mail page at /admin/mail is on. */
   dev: boolean;
-  /** Set the `Secure` flag on cookies (serve over HTTPS). */
+  /** Set the `Secure` flag on cookies (serve over HTTPS): COOKIE_SECURE=true|false, else whether PUBLIC_URL is https. */
   secureCookies: boolean;
   logLevel: string;
   /** Folder with the built Angular app, served with an SPA fallback when it exists. */

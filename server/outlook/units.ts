@@ -2,7 +2,7 @@
  * Quantities in tonnes for the capacity comparison: items counted in t stay as they are; items in
  * kilograms of a nutrient or product become tonnes of it (1 t = 1000 kg, SI). Litres and hours have
  * no mass here (diesel density varies by grade; common practice, no source), so they get none.
- * If a shared units module appears in shared/, this should move there.
+ * The exact mass and area factors live in shared/units.ts; this only maps an item's unit name to tonnes.
  */
 import { normalUnit } from '../../shared/unit-names.js';
 
