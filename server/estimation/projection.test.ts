@@ -112,6 +112,8 @@ describe('Monte Carlo building blocks', () => {
   });
 
   it('summarise gives R type-7 quantiles exactly (normal and skewed samples)', () => {
+    // Reference: the type-7 definition written out below, h = (N − 1)·p with linear interpolation
+    // (Hyndman & Fan 1996, The American Statistician 50:361–365, from memory; R's default quantile).
     const rng = new SeededRandom(9);
     for (const [N, skewed] of [[100, false], [1001, false], [10000, false], [10000, true], [999, true]] as const) {
       const x = Float64Array.from({ length: N }, () => (skewed ? Math.exp(1.5 * rng.normal()) : rng.normal() * 3 + 10));
