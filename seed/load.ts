@@ -9,7 +9,11 @@ import { DEMO_ACCOUNTS, DEMO_PASSWORD } from './demo-coop.js';
 
 const config = loadConfig();
 const reset = process.argv.includes('--reset');
-const database = await openDatabase({ databaseUrl: config.databaseUrl, dataDir: `${config.dataDir}/pglite` });
+const database = await openDatabase({ databaseUrl: config.databaseUrl, dataDir: `${config.dataDir}/pglite`, purpose: 'seed' }).catch((err: Error) => {
+  // One plain line (e.g. the data folder is in use by the server), not a stack trace.
+  console.error(`Could not load the demo co-op: ${err.message}`);
+  process.exit(1);
+});
 try {
   if (reset) await clearDatabase(database.db);
   if (!(await isDatabaseEmpty(database.db))) {

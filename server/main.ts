@@ -7,13 +7,32 @@ import { purgeExpiredSessions } from './auth/session.js';
 import { startBackgroundWork } from './jobs/background.js';
 import { importCommitsIdle } from './imports/imports-service.js';
 import { seedDemoIfEmpty } from '../seed/load-demo.js';
+import { startBackupSocket, type BackupSocket } from './db/backup-socket.js';
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from '../seed/demo-coop.js';
 
 const config = loadConfig();
 
 async function main() {
-  const database = await openDatabase({ databaseUrl: config.databaseUrl, dataDir: `${config.dataDir}/pglite` });
-  const seeded = await seedDemoIfEmpty(database.db);
+  let seeded = false;
+  // On a PostgreSQL server, migrations and the demo load run under one advisory lock (instances
+  // starting together take turns); a PGlite folder is locked to this process (a second one is refused).
+  const database = await openDatabase({
+    databaseUrl: config.databaseUrl,
+    dataDir: `${config.dataDir}/pglite`,
+    purpose: 'server',
+    setup: async (db) => {
+      seeded = await seedDemoIfEmpty(db);
+    },
+  });
+  // `npm run backup` while the server runs asks this process for a consistent snapshot.
+  let backupSocket: BackupSocket | undefined;
+  if (database.lock && database.snapshot) {
+    try {
+      backupSocket = await startBackupSocket(database.lock, database.snapshot, (m) => console.log(m));
+    } catch (err) {
+      console.warn(`Live backups are off (the local backup socket could not be opened: ${(err as Error).message}); npm run backup will ask to stop the server`);
+    }
+  }
   await purgeExpiredSessions(database.db);
 
   let fakeSmtp: FakeSmtp | undefined;
@@ -51,6 +70,7 @@ async function main() {
     // Let a running import commit finish (or roll back) before the database closes.
     await importCommitsIdle();
     await background.stop();
+    await backupSocket?.close();
     mailer.close();
     await fakeSmtp?.close();
     await database.close();

@@ -1,6 +1,7 @@
 /**
- * `npm run backup -- [FILE]` and `npm run restore -- FILE`. Stop the server first when it uses the
- * embedded database (one process per data folder).
+ * `npm run backup -- [FILE]` and `npm run restore -- FILE`. With the embedded database a backup
+ * works while the server runs (the server takes it and sends it over its local backup socket);
+ * a restore needs the server stopped and says so, naming the process, when it is not.
  */
 import path from 'node:path';
 import { loadConfig } from '../config.js';
@@ -13,9 +14,10 @@ const file = fileArg ?? path.join(config.dataDir, `backup-${stamp}${config.datab
 const dataDir = `${config.dataDir}/pglite`;
 try {
   if (command === 'backup') {
+    let how = 'offline';
     if (config.databaseUrl) backupPostgres(config.databaseUrl, file);
-    else await backupPglite(dataDir, file);
-    console.log(`Backup written to ${file}`);
+    else how = await backupPglite(dataDir, file);
+    console.log(`Backup written to ${file}${how === 'offline' ? '' : ` (${how})`}`);
   } else if (command === 'restore') {
     if (!fileArg) throw new Error('Name the backup file: npm run restore -- FILE');
     if (config.databaseUrl) restorePostgres(file, config.databaseUrl);

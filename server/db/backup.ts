@@ -1,28 +1,79 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { spawnSync } from 'node:child_process';
+import zlib from 'node:zlib';
 import { PGlite } from '@electric-sql/pglite';
+import { folderHolder, lockDataFolder } from './folder-lock.js';
+import { snapshotThroughServer } from './backup-socket.js';
 
 /**
  * Backups: the embedded database's data folder as a gzipped tarball (PGlite's own dump), or
  * `pg_dump --format=custom` when a PostgreSQL server is used. Restore puts either back.
  */
-export async function backupPglite(dataDir: string, file: string) {
+export async function backupPglite(dataDir: string, file: string): Promise<'offline' | 'through the running server'> {
   if (!fs.existsSync(dataDir)) throw new Error(`No embedded database at ${dataDir}`);
-  const db = new PGlite(dataDir);
+  // A running server holds the folder: it takes the snapshot itself, consistently, and sends it.
+  const holder = folderHolder(dataDir);
+  if (holder?.backupSocket) {
+    await snapshotThroughServer(holder.backupSocket, file);
+    return 'through the running server';
+  }
+  const lock = lockDataFolder(dataDir, 'backup'); // refused (naming the holder) when another command has it
   try {
-    // dumpDataDir never settles when called before the database is ready.
-    await db.waitReady;
-    const blob = await db.dumpDataDir('gzip');
-    fs.writeFileSync(file, Buffer.from(await blob.arrayBuffer()));
+    const db = new PGlite(dataDir);
+    try {
+      // dumpDataDir never settles when called before the database is ready.
+      await db.waitReady;
+      const blob = await db.dumpDataDir('gzip');
+      const tmp = `${file}.partial`;
+      fs.writeFileSync(tmp, Buffer.from(await blob.arrayBuffer()));
+      fs.renameSync(tmp, file);
+    } finally {
+      await db.close();
+    }
   } finally {
-    await db.close();
+    lock.release();
+  }
+  return 'offline';
+}
+
+/**
+ * Checks that `bytes` is a whole gzipped tar of a PGlite data folder before anything is touched;
+ * throws one plain sentence naming the file otherwise.
+ */
+export function checkBackupFile(file: string, bytes: Uint8Array) {
+  let tar: Buffer;
+  try {
+    tar = zlib.gunzipSync(bytes);
+  } catch (err) {
+    const why = (err as NodeJS.ErrnoException).code === 'Z_BUF_ERROR' ? 'it is cut short' : 'it is not a gzip file or is damaged';
+    throw new Error(`${file} is not a usable Netput backup: ${why}. Nothing was changed.`);
+  }
+  // A tar archive: "ustar" at byte 257 of its first header, and a PG_VERSION file somewhere in it.
+  if (tar.length < 512 || tar.subarray(257, 262).toString('latin1') !== 'ustar' || !tar.includes(Buffer.from('PG_VERSION'))) {
+    throw new Error(`${file} is not a usable Netput backup: it holds no embedded database folder. Nothing was changed.`);
   }
 }
 
 /** Restores into `dataDir`; an existing folder is kept beside it as `<dataDir>.before-restore-<time>`. */
 export async function restorePglite(file: string, dataDir: string): Promise<string | null> {
-  const bytes = fs.readFileSync(file);
+  let bytes: Uint8Array<ArrayBuffer>;
+  try {
+    bytes = fs.readFileSync(file);
+  } catch (err) {
+    throw new Error(`${file} cannot be read: ${(err as NodeJS.ErrnoException).code === 'ENOENT' ? 'no such file' : (err as Error).message}`);
+  }
+  checkBackupFile(file, bytes);
+  // Refused, naming the process, while a server or another command has the folder open.
+  const lock = lockDataFolder(dataDir, 'restore');
+  try {
+    return await restoreLocked(bytes, dataDir);
+  } finally {
+    lock.release();
+  }
+}
+
+async function restoreLocked(bytes: Uint8Array<ArrayBuffer>, dataDir: string): Promise<string | null> {
   let kept: string | null = null;
   if (fs.existsSync(dataDir)) {
     kept = `${dataDir}.before-restore-${new Date().toISOString().replace(/[:.]/g, '-')}`;
@@ -37,7 +88,7 @@ export async function restorePglite(file: string, dataDir: string): Promise<stri
   } catch (err) {
     fs.rmSync(dataDir, { recursive: true, force: true });
     if (kept) fs.renameSync(kept, dataDir);
-    throw new Error(`The backup could not be restored (the database was left as it was): ${(err as Error).message}`);
+    throw new Error(`The backup could not be restored (the database was left as it was): ${firstLine(err)}`);
   }
   return kept;
 }
@@ -54,4 +105,8 @@ export function backupPostgres(databaseUrl: string, file: string) {
 
 export function restorePostgres(file: string, databaseUrl: string) {
   run('pg_restore', ['--clean', '--if-exists', '--no-owner', '--single-transaction', `--dbname=${databaseUrl}`, file]);
+}
+
+function firstLine(err: unknown): string {
+  return String((err as Error)?.message ?? err).split('\n')[0]!;
 }

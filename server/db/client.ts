@@ -10,6 +10,7 @@ import { migrate as migratePg } from 'drizzle-orm/node-postgres/migrator';
 import pg from 'pg';
 import * as schema from './schema/index.js';
 import { ChangeTracker, classify } from './change-tracker.js';
+import { lockDataFolder, type FolderLock } from './folder-lock.js';
 
 export type Schema = typeof schema;
 /** The one database type the rest of the server sees: PGlite or a PostgreSQL server behind it. */
@@ -21,6 +22,13 @@ export interface Database {
   /** Writes seen by this process (PGlite only: a PostgreSQL server has other writers). */
   changes: ChangeTracker | null;
   close(): Promise<void>;
+  /** The data folder's lock (PGlite on a folder only): one process per folder. */
+  lock?: FolderLock;
+  /**
+   * PGlite only: the data folder as a gzipped tarball, taken while no transaction is open (other
+   * transactions wait for it) right after a checkpoint, so it restores to exactly the committed rows.
+   */
+  snapshot?: () => Promise<Blob>;
 }
 
 export const MIGRATIONS_DIR = path.join(path.dirname(fileURLToPath(import.meta.url)), 'migrations');
@@ -30,7 +38,18 @@ export interface OpenOptions {
   databaseUrl?: string;
   /** Folder for PGlite's data; `memory://` (or undefined with no URL) keeps it in memory. */
   dataDir?: string;
+  /** What this process is, for the data folder's lock (`server`, `seed`, …); named to a second opener. */
+  purpose?: string;
+  /**
+   * Runs once the migrations are applied, before any other instance starting at the same time gets
+   * past its own migrations (on a PostgreSQL server, under the same advisory lock): e.g. loading the
+   * demo co-op into an empty database.
+   */
+  setup?: (db: Db) => Promise<void>;
 }
+
+/** The advisory lock key that serialises migrations (and `setup`) across instances on one server. */
+export const MIGRATION_LOCK_KEY = 0x4e50_4d49_4752n; // "NPMIGR"
 
 /**
  * PGlite runs PostgreSQL inside the server's own process, so its buffer cache is the server's
@@ -47,23 +66,73 @@ export async function openDatabase(options: OpenOptions): Promise<Database> {
     // An idle client cut off by the server (restart, dropped database) must not crash the process.
     pool.on('error', () => {});
     const db = drizzlePg(pool, { schema }) as unknown as Db;
-    await migratePg(drizzlePg(pool), { migrationsFolder: MIGRATIONS_DIR });
+    try {
+      // Two instances starting together on an empty database would both apply the migrations (and
+      // one die on the other's tables): a session-level advisory lock on one connection serialises them.
+      const conn = await pool.connect();
+      try {
+        await conn.query('select pg_advisory_lock($1)', [MIGRATION_LOCK_KEY.toString()]);
+        try {
+          await migratePg(drizzlePg(conn), { migrationsFolder: MIGRATIONS_DIR });
+          await options.setup?.(db);
+        } finally {
+          await conn.query('select pg_advisory_unlock($1)', [MIGRATION_LOCK_KEY.toString()]);
+        }
+      } finally {
+        conn.release();
+      }
+    } catch (err) {
+      await pool.end().catch(() => {});
+      throw err;
+    }
     return { db, kind: 'postgres', changes: null, close: () => pool.end() };
   }
   let client: PGlite;
+  let lock: FolderLock | undefined;
   if (!options.dataDir || options.dataDir.startsWith('memory://')) {
     client = new PGlite(PGLITE_OPTIONS);
   } else {
+    // One process per data folder: refused here, before PGlite touches the folder.
+    lock = lockDataFolder(options.dataDir, options.purpose ?? 'a Netput command');
     // PGlite creates its folder with a non-recursive mkdir.
     fs.mkdirSync(path.dirname(path.resolve(options.dataDir)), { recursive: true });
     client = new PGlite(options.dataDir, PGLITE_OPTIONS);
   }
-  await client.waitReady;
+  try {
+    await client.waitReady;
+  } catch (err) {
+    lock?.release();
+    throw err;
+  }
   const changes = new ChangeTracker();
   watchWrites(client, changes);
   const db = drizzlePglite(client, { schema }) as unknown as Db;
-  await migratePglite(drizzlePglite(client), { migrationsFolder: MIGRATIONS_DIR });
-  return { db, kind: 'pglite', changes, close: () => client.close() };
+  try {
+    await migratePglite(drizzlePglite(client), { migrationsFolder: MIGRATIONS_DIR });
+    await options.setup?.(db);
+  } catch (err) {
+    await client.close().catch(() => {});
+    lock?.release();
+    throw err;
+  }
+  return {
+    db,
+    kind: 'pglite',
+    changes,
+    lock,
+    snapshot: () =>
+      client.transaction(async (tx) => {
+        await tx.exec('checkpoint');
+        return client.dumpDataDir('gzip');
+      }),
+    close: async () => {
+      try {
+        await client.close();
+      } finally {
+        lock?.release();
+      }
+    },
+  };
 }
 
 type Queryable = Pick<PGlite, 'query' | 'exec'>;

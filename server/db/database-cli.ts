@@ -15,7 +15,11 @@ if ((command !== 'export' && command !== 'import') || !file) {
   process.exit(2);
 }
 const config = loadConfig();
-const database = await openDatabase({ databaseUrl: config.databaseUrl, dataDir: `${config.dataDir}/pglite` });
+const database = await openDatabase({ databaseUrl: config.databaseUrl, dataDir: `${config.dataDir}/pglite`, purpose: `db:${command}` }).catch((err: Error) => {
+  // One plain line (e.g. the data folder is in use by the server), not a stack trace.
+  console.error(`db:${command} failed: ${err.message}`);
+  process.exit(1);
+});
 try {
   if (command === 'export') {
     const dump = await exportDatabase(database.db);

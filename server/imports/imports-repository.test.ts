@@ -1,6 +1,7 @@
 import { asc, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { openDatabase, type Database } from '../db/client.js';
+import type { Database } from '../db/client.js';
+import { openTestDatabase } from '../../tests/api/test-db.js';
 import { deliveryPoints, items, priceObservations, seasons } from '../db/schema/index.js';
 import type { PriceWrite } from './import-types.js';
 import { arrayLiteral, ReferenceGoneError, writeRows } from './imports-repository.js';
@@ -8,7 +9,8 @@ import { arrayLiteral, ReferenceGoneError, writeRows } from './imports-repositor
 let database: Database;
 let ids: { item: number; season: number; dp: number };
 beforeAll(async () => {
-  database = await openDatabase({ dataDir: 'memory://' });
+  // A fresh in-memory PGlite, or a database of its own on the PostgreSQL suite's server.
+  database = await openTestDatabase();
   const db = database.db;
   const [item] = await db.insert(items).values({ code: 'wheat', name: 'Wheat', role: 'output', category: 'grain', unit: 't' }).returning();
   const [season] = await db.insert(seasons).values({ label: '2024/25', startYear: 2024, startMonth: 7, startsOn: '2024-07-01' }).returning();

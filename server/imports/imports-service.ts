@@ -330,7 +330,8 @@ export async function startCommit(
 }
 
 async function runCommit(ctx: AppContext, jobs: ImportJobs, meta: ImportMeta, view: ImportView, onExisting: OnExisting, userId: number, log: (err: unknown) => void) {
-  let result = { ...(meta.result as ImportResult), onExisting, commitStartedAt: view.commitStartedAt };
+  // `failure: null`: this attempt starts clean; the note of an earlier attempt that stopped (a crash) is not carried into it.
+  let result: ImportResult = { ...(meta.result as ImportResult), onExisting, commitStartedAt: view.commitStartedAt, failure: null };
   try {
     // The rows checked for the preview serve if the reference data is unchanged; otherwise the file is
     // read and checked again against the database as it is now.

@@ -1,11 +1,12 @@
-import { and, eq, sql } from 'drizzle-orm';
-import { hostname } from 'node:os';
+import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { jobs } from '../db/schema/index.js';
+import { ownerIsGone, ownerTag } from '../core/process-identity.js';
 
 export type JobRow = typeof jobs.$inferSelect;
 
-export const INSTANCE_ID = `${hostname()}:${process.pid}`;
+/** `host:pid:start`: precise enough that a restarted server knows its earlier incarnation is gone. */
+export const INSTANCE_ID = ownerTag();
 /** A claimed job whose instance stopped renewing its lease is handed to another instance. */
 const LEASE_MS = 60_000;
 
@@ -40,6 +41,23 @@ export async function claimJob(db: Db, kinds: string[], instance = INSTANCE_ID):
   if (!rows?.length) return null;
   const [row] = await db.select().from(jobs).where(eq(jobs.id, Number(rows[0].id)));
   return row ?? null;
+}
+
+/**
+ * Running jobs whose instance is known to have stopped (same host, process gone: a crash, a kill, a
+ * restart) get their lease ended now instead of when it lapses, so a restarted server picks its
+ * fits up at once. Jobs held by live processes or by other hosts are left to their lease.
+ */
+export async function releaseDeadLeases(db: Db, isGone: (owner: string) => boolean = ownerIsGone): Promise<number> {
+  const rows = await db.select({ id: jobs.id, lockedBy: jobs.lockedBy }).from(jobs).where(eq(jobs.status, 'running'));
+  const dead = rows.filter((r) => r.lockedBy && isGone(r.lockedBy)).map((r) => r.id);
+  if (dead.length) {
+    await db
+      .update(jobs)
+      .set({ lockedUntil: sql`now() - interval '1 second'` })
+      .where(and(inArray(jobs.id, dead), eq(jobs.status, 'running')));
+  }
+  return dead.length;
 }
 
 export async function renewLease(db: Db, id: number, instance = INSTANCE_ID) {

@@ -1,5 +1,5 @@
 import type { Db } from '../db/client.js';
-import { claimJob, finishJob, INSTANCE_ID, isCancelRequested, renewLease, retryJob, type JobRow } from './job-queue.js';
+import { claimJob, finishJob, INSTANCE_ID, isCancelRequested, releaseDeadLeases, renewLease, retryJob, type JobRow } from './job-queue.js';
 
 export interface JobContext {
   /** Aborted when a cancel is requested for the job (checked about once a second). */
@@ -36,7 +36,13 @@ export class JobRunner {
 
   start() {
     this.stopped = false;
-    this.schedule(0);
+    // Jobs left running by a process that is gone (this server before a crash or restart) are
+    // claimable at once, not after their lease lapses.
+    void releaseDeadLeases(this.db)
+      .catch(() => 0)
+      .then(() => {
+        if (!this.stopped) this.schedule(0);
+      });
     return this;
   }
 

@@ -104,12 +104,15 @@ describe('an import commit interrupted by a crash', () => {
 
     const again = await planner.request('POST', `/api/imports/${staged.body.id}/commit`, { onExisting: 'skip' });
     expect(again.status, JSON.stringify(again.body)).toBe(202);
-    let final: { status: string; counts: { inserted: number; skipped: number } | null } | undefined;
+    let final: { status: string; failure: string | null; counts: { inserted: number; skipped: number } | null } | undefined;
     for (const end = Date.now() + 120_000; Date.now() < end; await sleep(200)) {
       final = (await planner.request('GET', `/api/imports/${staged.body.id}`)).body;
       if (final!.status !== 'committing') break;
     }
     expect(final!.status).toBe('committed');
+    // The stopped attempt's note does not stay on the committed import.
+    expect(final!.failure).toBeNull();
+    expect((await planner.request('GET', `/api/imports/${staged.body.id}`)).body.failure).toBeNull();
     // A few generated dates may coincide with the demo's own quotes: those rows exist and are skipped.
     expect(final!.counts!.inserted + final!.counts!.skipped).toBe(ROWS);
     expect(final!.counts!.inserted).toBeGreaterThan(ROWS * 0.99);

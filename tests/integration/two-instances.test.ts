@@ -1,6 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { randomBytes } from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
 import pg from 'pg';
+import { MIGRATIONS_DIR } from '../../server/db/client.js';
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
 import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
 
@@ -27,10 +30,24 @@ describe.runIf(serverUrl)('two instances on one PostgreSQL database', () => {
     u.pathname = `/${name}`;
     dbUrl = u.toString();
     smtp = await startFakeSmtp();
-    // The first instance migrates and loads the demo; the second finds both done.
-    a = await startServerProcess({ DATABASE_URL: dbUrl, SMTP_URL: smtp.url });
-    b = await startServerProcess({ DATABASE_URL: dbUrl, SMTP_URL: smtp.url });
+    // Both start together on the empty database: one migrates and loads the demo under the migration
+    // advisory lock, the other waits for it and finds both done (neither dies on the other's tables).
+    [a, b] = await Promise.all([startServerProcess({ DATABASE_URL: dbUrl, SMTP_URL: smtp.url }), startServerProcess({ DATABASE_URL: dbUrl, SMTP_URL: smtp.url })]);
   }, 240_000);
+
+  it('two instances started together on an empty database both run, with the demo loaded once', async () => {
+    const c = new pg.Client({ connectionString: dbUrl });
+    await c.connect();
+    const { rows } = await c.query<{ n: string; emails: string }>(`select count(*) as n, count(distinct email) as emails from users`);
+    const migrations = await c.query<{ n: string }>(`select count(*) as n from drizzle.__drizzle_migrations`);
+    await c.end();
+    expect(Number(rows[0]!.n)).toBeGreaterThan(0);
+    expect(rows[0]!.n).toBe(rows[0]!.emails);
+    const journal = JSON.parse(fs.readFileSync(path.join(MIGRATIONS_DIR, 'meta', '_journal.json'), 'utf8')) as { entries: unknown[] };
+    expect(Number(migrations.rows[0]!.n)).toBe(journal.entries.length);
+    expect((await fetch(`${a.url}/api/health`)).ok).toBe(true);
+    expect((await fetch(`${b.url}/api/health`)).ok).toBe(true);
+  });
 
   afterAll(async () => {
     await a?.stop();
