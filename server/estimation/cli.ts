@@ -1,7 +1,9 @@
 /**
  * The fit command (docs/fit-command.md):
  *   npm run --silent fit -- --input FILE.csv [--numeraire ITEM] [--trend] [--form nq|gl]
- *                           [--prices item=value,...] [--fixed name=value,...]
+ *                           [--prices item=value,...] [--fixed name=value,...] [--spec pooled|per-hectare]
+ * `--spec per-hectare` fits the forecasting model of docs/forecasting.md (netputs per hectare of land,
+ * farm and season effects) and reports it in the same keys, in levels at the evaluation point's land.
  * Prints the contract JSON on stdout and exits 0. Bad input: one line on stderr naming the row and
  * column or the cause, exit code 2, never a stack trace.
  */
@@ -9,13 +11,14 @@ import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import { parseArgs } from 'node:util';
 import { fitToContractJson } from './contract.js';
-import { parseNetputCsv } from './dataset.js';
+import { parseNetputCsv, type NetputDataset } from './dataset.js';
 import { isEstimationInputError } from './errors.js';
 import { fitProfitFunction } from './fit.js';
+import { fitForecastModel, type ForecastModel } from './panel.js';
 
 class UsageError extends Error {}
 
-const USAGE = 'usage: fit --input FILE.csv [--numeraire ITEM] [--trend] [--form nq|gl] [--prices item=value,...] [--fixed name=value,...]';
+const USAGE = 'usage: fit --input FILE.csv [--numeraire ITEM] [--trend] [--form nq|gl] [--prices item=value,...] [--fixed name=value,...] [--spec pooled|per-hectare]';
 
 function parsePairs(option: string, text: string | undefined): Record<string, number> {
   const out: Record<string, number> = {};
@@ -43,6 +46,7 @@ export function runFitCli(argv: string[]): { code: number; stdout: string; stder
         form: { type: 'string' },
         prices: { type: 'string' },
         fixed: { type: 'string' },
+        spec: { type: 'string' },
         help: { type: 'boolean' },
       },
       strict: true,
@@ -51,6 +55,7 @@ export function runFitCli(argv: string[]): { code: number; stdout: string; stder
     if (values.help) return { code: 0, stdout: USAGE + '\n', stderr: '' };
     if (!values.input) throw new UsageError(`--input FILE.csv is required (${USAGE})`);
     if (values.form !== undefined && values.form !== 'nq' && values.form !== 'gl') throw new UsageError(`--form must be nq or gl, not "${values.form}"`);
+    if (values.spec !== undefined && values.spec !== 'pooled' && values.spec !== 'per-hectare') throw new UsageError(`--spec must be pooled or per-hectare, not "${values.spec}"`);
     const prices = parsePairs('prices', values.prices);
     const fixed = parsePairs('fixed', values.fixed);
     label = basename(values.input);
@@ -62,11 +67,16 @@ export function runFitCli(argv: string[]): { code: number; stdout: string; stder
       throw new UsageError(`${label}: cannot read the file (${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (code ?? 'read error')})`);
     }
     const dataset = parseNetputCsv(text);
-    const fit = fitProfitFunction(dataset, {
+    const options = {
       ...(values.form ? { form: values.form as 'nq' | 'gl' } : {}),
       ...(values.numeraire !== undefined ? { numeraire: values.numeraire } : {}),
       trend: values.trend ?? false,
-    });
+    };
+    if (values.spec === 'per-hectare') {
+      const json = perHectareContractJson(fitForecastModel(dataset, { ...options, spec: 'per-hectare' }), dataset, prices, fixed);
+      return { code: 0, stdout: JSON.stringify(json, null, 2) + '\n', stderr: '' };
+    }
+    const fit = fitProfitFunction(dataset, options);
     const json = fitToContractJson(fit, { prices, fixed });
     return { code: 0, stdout: JSON.stringify(json, null, 2) + '\n', stderr: '' };
   } catch (e) {
@@ -78,7 +88,36 @@ export function runFitCli(argv: string[]): { code: number; stdout: string; stder
   }
 }
 
-const isMain = process.argv[1] !== undefined && /cli\.(ts|js)$/.test(process.argv[1]);
+/**
+ * The contract keys for the per-hectare model, in levels: the per-hectare fit is evaluated at the
+ * point's other factors per hectare and its netputs and profit scaled by the land (default: the
+ * sample mean). Elasticities are the same per hectare and in levels (constant returns to land).
+ */
+function perHectareContractJson(model: ForecastModel, ds: NetputDataset, prices: Record<string, number>, fixed: Record<string, number>) {
+  const landName = model.landFactor!;
+  const k = ds.fixedFactors.indexOf(landName);
+  const land = fixed[landName] ?? ds.fixed[k]!.reduce((a, v) => a + v, 0) / ds.fixed[k]!.length;
+  if (!(land > 0)) throw new UsageError(`--fixed: ${landName} must be more than 0 ha`);
+  const perHa = Object.fromEntries(Object.entries(fixed).filter(([f]) => f !== landName).map(([f, v]) => [f, f === 'trend' ? v : v / land]));
+  const json = fitToContractJson(model.fit, { prices, fixed: perHa });
+  const scale = (r: Record<string, number>): Record<string, number> => Object.fromEntries(Object.entries(r).map(([f, v]) => [f, v * land]));
+  const levels = Object.fromEntries(Object.entries(json.evaluatedAt.fixed).map(([f, v]) => [f, f === 'trend' ? v : v * land]));
+  return {
+    ...json,
+    evaluatedAt: { prices: json.evaluatedAt.prices, fixed: { [landName]: land, ...levels } },
+    netputs: scale(json.netputs),
+    profit: json.profit * land,
+    specification: model.specification,
+    perHectare: {
+      note: 'netputs and profit above are per-hectare values × the land at the evaluation point; equations, coefficients and residual covariance are per hectare',
+      land,
+      netputs: json.netputs,
+      profit: json.profit,
+    },
+  };
+}
+
+const isMain = process.argv[1] !== undefined && /(^|[/\\])cli\.(ts|js)$/.test(process.argv[1]);
 if (isMain) {
   const r = runFitCli(process.argv.slice(2));
   if (r.stdout) process.stdout.write(r.stdout);

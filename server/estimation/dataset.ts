@@ -35,10 +35,10 @@ export interface NetputDataset {
 }
 
 const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/;
-const SEASON = /^(\d{4})(?:\s*[/-]\s*(\d{2}|\d{4}))?$/;
+export const SEASON = /^(\d{4})(?:\s*[/-]\s*(\d{2}|\d{4}))?$/;
 
 /** Parse one numeric cell or throw an error naming its row and column. */
-function numberCell(raw: string | undefined, row: number, column: string): number {
+export function numberCell(raw: string | undefined, row: number, column: string): number {
   const s = (raw ?? '').trim();
   if (s === '') throw new EstimationInputError(`row ${row}, column ${column}: empty cell`, { row, column });
   if (!NUMBER.test(s)) throw new EstimationInputError(`row ${row}, column ${column}: "${s}" is not a number`, { row, column });

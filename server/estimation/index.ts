@@ -71,3 +71,4 @@ export {
 } from './panel.js';
 export { projectForecast, type FarmForecast, type ForecastFarm, type ForecastOptions, type ForecastProjection, type ForecastQuantity } from './forecast.js';
 export { generateForecastPanel, PER_HECTARE_ITEMS, type ForecastPanel, type ForecastPanelSpec } from './synthetic-panel.js';
+export { backTestForecast, describeBackTest, subset, type BackTestItem, type BackTestOptions, type BackTestOrigin, type BackTestResult, type CoverageCount, type ErrorSummary } from './backtest.js';

@@ -1,0 +1,56 @@
+import { describe, expect, it } from 'vitest';
+import { backTestForecast, describeBackTest } from './backtest.js';
+import { generateForecastPanel, PER_HECTARE_ITEMS } from './synthetic-panel.js';
+
+// Rolling-origin back-test (docs/forecasting.md §6; Tashman 2000) on an invented panel with known
+// truth: 60 farms × 7 seasons with farm effects, size-scaled errors and season shocks.
+const { dataset } = generateForecastPanel({ items: PER_HECTARE_ITEMS, farms: 60, seasons: 7, firstSeason: 2015, seed: 77 });
+const result = backTestForecast(dataset, { draws: 500, seed: 2 });
+
+describe('backTestForecast', () => {
+  it('projects every season after the first three from the seasons before it', () => {
+    expect(result.spec).toBe('per-hectare');
+    expect(result.origins.map((o) => [o.fittedThrough, o.season])).toEqual([
+      ['2017', '2018'],
+      ['2018', '2019'],
+      ['2019', '2020'],
+      ['2020', '2021'],
+    ]);
+    for (const o of result.origins) {
+      expect(o.error).toBeNull();
+      expect(o.farms).toBe(60);
+    }
+  });
+
+  it('counts every farm outcome once in the thirds and once per origin for the co-op', () => {
+    for (const it of result.items) {
+      expect(it.coverage.farms.total).toBe(240);
+      expect(it.coverage.byThird.reduce((a, t) => a + t.total, 0)).toBe(240);
+      for (const t of it.coverage.byThird) expect(t.total).toBe(80);
+      expect(it.coverage.coop.total).toBe(4);
+      expect(it.model.count).toBe(240);
+    }
+  });
+
+  it('the per-hectare model is closer than last season’s figures for every item (farm effects and prices known)', () => {
+    for (const it of result.items) expect(it.ratios.lastSeason.mdape!, it.item).toBeLessThan(1);
+  });
+
+  it('its 90 % farm bands hold between 80 % and 97 % of outcomes (240 outcomes: ±2 binomial SE is ±4 %, plus model error)', () => {
+    for (const it of result.items) {
+      expect(it.coverage.farms.share!, it.item).toBeGreaterThan(0.8);
+      expect(it.coverage.farms.share!, it.item).toBeLessThan(0.97);
+    }
+  });
+
+  it('says it in plain sentences', () => {
+    const lines = describeBackTest(result);
+    expect(lines).toHaveLength(PER_HECTARE_ITEMS.length + 1);
+    expect(lines[0]).toMatch(/^wheat: this model's farm projections were \d+ % (closer than|further off than) last season's figures and .*; its 90 % bands held \d+ % of farm outcomes \(smallest third of farms \d+ %, middle \d+ %, largest \d+ %\) and \d of 4 co-op totals\.$/);
+    expect(lines.at(-1)).toMatch(/^Tested on 4 past seasons/);
+  });
+
+  it('is deterministic for a seed', () => {
+    expect(backTestForecast(dataset, { draws: 500, seed: 2 })).toEqual(result);
+  });
+});
