@@ -63,9 +63,10 @@ try {
     ]);
     const land = 150 + ((i * 37) % 700);
     const { rows: farm } = await db.query<{ id: number }>(
-      `insert into farms (code, name, region, land_ha, owner_user_id) values ($1, $2, 'Riverlands', $3, $4) returning id`,
-      [`B${String(i).padStart(3, '0')}`, `Bench Farm ${i}`, land, rows[0].id],
+      `insert into farms (code, name, region, land_ha) values ($1, $2, 'Riverlands', $3) returning id`,
+      [`B${String(i).padStart(3, '0')}`, `Bench Farm ${i}`, land],
     );
+    await db.query(`update users set farm_id = $1 where id = $2`, [farm[0].id, rows[0].id]);
     await db.query(`insert into farm_season_factors (farm_id, season_id, factor, value) values ($1, $2, 'land_ha', $3)`, [farm[0].id, season[0].id, land]);
   }
 

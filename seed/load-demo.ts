@@ -1,4 +1,4 @@
-import { count } from 'drizzle-orm';
+import { count, eq } from 'drizzle-orm';
 import type { Db } from '../server/db/client.js';
 import {
   deliveryPoints,
@@ -78,9 +78,10 @@ export async function loadDemoCoop(db: Db) {
     const dpId = new Map(dpRows.map((r) => [r.name, r.id]));
     const farmRows = await tx
       .insert(farms)
-      .values(demo.farms.map((f) => ({ code: f.code, name: f.name, region: f.region, landHa: f.landHa, ownerUserId: userId.get(f.ownerEmail)! })))
+      .values(demo.farms.map((f) => ({ code: f.code, name: f.name, region: f.region, landHa: f.landHa })))
       .returning({ id: farms.id, code: farms.code });
     const farmId = new Map(farmRows.map((r) => [r.code, r.id]));
+    for (const f of demo.farms) await tx.update(users).set({ farmId: farmId.get(f.code)! }).where(eq(users.id, userId.get(f.ownerEmail)!));
     for (const part of chunks(demo.prices)) {
       await tx.insert(priceObservations).values(
         part.map((p) => ({

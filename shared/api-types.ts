@@ -49,8 +49,18 @@ export interface FarmSummary {
   name: string;
   region: string;
   landHa: number;
-  ownerUserId: number | null;
-  ownerName: string | null;
+  /** The member accounts linked to the farm (a family farm may have several), by name. */
+  members: FarmMember[];
+}
+
+export interface FarmMember {
+  id: number;
+  name: string;
+}
+
+/** "Ann Ash, Ben Ash", or "no account linked". */
+export function farmMemberNames(members: readonly FarmMember[]): string {
+  return members.length ? members.map((m) => m.name).join(', ') : 'no account linked';
 }
 
 /** `GET /api/settings` (everyone signed in reads; admin writes). */

@@ -5,20 +5,12 @@ import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
-import { passwordResetMail } from '../mail/templates.js';
-import { getSettings } from '../settings/settings-service.js';
-import { checkCredentials, findUserByEmail, issueToken, meOf, redeemToken, RESET_HOURS, tokenInfo } from './auth-service.js';
+import { checkCredentials, findUserByEmail, meOf, redeemToken, tokenInfo } from './auth-service.js';
+import { mailOneTimeLink } from './link-mail.js';
 import { endSession, SESSION_COOKIE, startSession } from './session.js';
 import { DatabaseRateLimitStore } from './rate-limit-store.js';
 
 const tokenParams = z.object({ token: z.string().min(20).max(100).regex(/^[A-Za-z0-9_-]+$/, 'Not a valid link') });
-
-/** Sends a reset link when the account exists; callers answer the same either way. */
-export async function sendPasswordReset(ctx: AppContext, userId: number, email: string, name: string) {
-  const token = await issueToken(ctx.db, userId, 'reset');
-  const { coopName } = await getSettings(ctx.db);
-  await ctx.mailer.send(passwordResetMail(email, name, `${ctx.config.publicUrl}/reset/${token}`, coopName, RESET_HOURS));
-}
 
 export function authRoutes(ctx: AppContext): RouteDef[] {
   // Per client address and e-mail: 10 attempts in 15 minutes (the account lockout covers spread-out guessing).
@@ -78,9 +70,9 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
         if (res.headersSent) return;
         const { email } = parse(passwordResetRequestSchema, req.body, 'body');
         const user = await findUserByEmail(ctx.db, email);
-        if (user?.active) {
-          await sendPasswordReset(ctx, user.id, user.email, user.name).catch((err: unknown) => req.log?.error({ err }, 'reset mail failed'));
-        }
+        // The answer is the same whether or not the account exists (or the mail went out), so it
+        // tells nobody which addresses have accounts; a failed message is logged for the admin.
+        if (user?.active) await mailOneTimeLink(ctx, user, 'reset').catch((err: unknown) => req.log?.error({ err }, 'reset mail failed'));
         res.status(202).json({ message: 'If an account exists for this address, a link to choose a new password is on its way.' });
       },
     },

@@ -1,7 +1,7 @@
-import { and, eq, isNull, sql } from 'drizzle-orm';
+import { and, eq, isNull, ne, sql } from 'drizzle-orm';
 import type { Me, TokenInfo } from '../../shared/api-types.js';
 import type { Db } from '../db/client.js';
-import { farms, oneTimeTokens, sessions, users } from '../db/schema/index.js';
+import { oneTimeTokens, sessions, users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { newToken, sha256 } from '../core/ids.js';
 import { recordAudit } from '../audit/audit-repository.js';
@@ -15,9 +15,8 @@ export const RESET_HOURS = 2;
 
 export async function meOf(db: Db, userId: number): Promise<Me> {
   const [row] = await db
-    .select({ id: users.id, email: users.email, name: users.name, role: users.role, farmId: farms.id })
+    .select({ id: users.id, email: users.email, name: users.name, role: users.role, farmId: users.farmId })
     .from(users)
-    .leftJoin(farms, eq(farms.ownerUserId, users.id))
     .where(eq(users.id, userId));
   if (!row) throw AppError.notFound('The account');
   return { ...row, farmId: row.farmId ?? null };
@@ -53,16 +52,32 @@ export async function checkCredentials(db: Db, email: string, password: string):
   return user.id;
 }
 
-/** Issues a one-time link token; earlier unused tokens of the same purpose stop working. */
-export async function issueToken(db: Db, userId: number, purpose: 'invite' | 'reset'): Promise<string> {
+/**
+ * Stores a new one-time link token. Earlier unused tokens of the same purpose keep working until
+ * `retireOtherTokens`, which the caller runs once the new link has been handed to the mail service,
+ * so a message that could not be sent takes no working link away.
+ */
+export async function createToken(db: Db, userId: number, purpose: 'invite' | 'reset'): Promise<{ id: number; token: string }> {
   const token = newToken();
   const ms = purpose === 'invite' ? INVITE_DAYS * 86400_000 : RESET_HOURS * 3600_000;
+  const [row] = await db
+    .insert(oneTimeTokens)
+    .values({ tokenHash: sha256(token), userId, purpose, expiresAt: new Date(Date.now() + ms) })
+    .returning({ id: oneTimeTokens.id });
+  return { id: row!.id, token };
+}
+
+/** Ends every unused token of the account and purpose except `keepId`. */
+export async function retireOtherTokens(db: Db, userId: number, purpose: 'invite' | 'reset', keepId: number) {
   await db
     .update(oneTimeTokens)
     .set({ usedAt: new Date() })
-    .where(and(eq(oneTimeTokens.userId, userId), eq(oneTimeTokens.purpose, purpose), isNull(oneTimeTokens.usedAt)));
-  await db.insert(oneTimeTokens).values({ tokenHash: sha256(token), userId, purpose, expiresAt: new Date(Date.now() + ms) });
-  return token;
+    .where(and(eq(oneTimeTokens.userId, userId), eq(oneTimeTokens.purpose, purpose), isNull(oneTimeTokens.usedAt), ne(oneTimeTokens.id, keepId)));
+}
+
+/** Removes a token whose message was never sent. */
+export async function dropToken(db: Db, id: number) {
+  await db.delete(oneTimeTokens).where(eq(oneTimeTokens.id, id));
 }
 
 async function findToken(db: Db, token: string) {
@@ -120,7 +135,7 @@ export async function redeemToken(db: Db, token: string, password: string): Prom
 
 export async function findUserByEmail(db: Db, email: string) {
   const [user] = await db
-    .select({ id: users.id, name: users.name, email: users.email, active: users.active })
+    .select({ id: users.id, name: users.name, email: users.email, role: users.role, active: users.active })
     .from(users)
     .where(eq(sql`lower(${users.email})`, email.toLowerCase()));
   return user;

@@ -2,7 +2,7 @@ import type { CookieOptions, RequestHandler, Response } from 'express';
 import { and, eq, gt, lt } from 'drizzle-orm';
 import type { Role } from '../../shared/roles.js';
 import type { Db } from '../db/client.js';
-import { farms, sessions, users } from '../db/schema/index.js';
+import { sessions, users } from '../db/schema/index.js';
 import { newToken, sha256 } from '../core/ids.js';
 import type { ChangeTracker } from '../db/change-tracker.js';
 
@@ -90,11 +90,10 @@ export function loadSession(db: Db, changes: ChangeTracker | null = null): Reque
           name: users.name,
           role: users.role,
           active: users.active,
-          farmId: farms.id,
+          farmId: users.farmId,
         })
         .from(sessions)
         .innerJoin(users, eq(users.id, sessions.userId))
-        .leftJoin(farms, eq(farms.ownerUserId, users.id))
         .where(and(eq(sessions.id, id), gt(sessions.expiresAt, now)));
     const recorded = changes ? changes.recordReads(lookup) : { tables: new Set<string>(), result: lookup() };
     const [row] = await recorded.result;

@@ -1,5 +1,5 @@
-import { asc, eq } from 'drizzle-orm';
-import type { FarmSummary, MyFarm } from '../../shared/api-types.js';
+import { asc, eq, isNotNull } from 'drizzle-orm';
+import type { FarmMember, FarmSummary, MyFarm } from '../../shared/api-types.js';
 import type { Db } from '../db/client.js';
 import { farmRecords, farms, items, seasons, users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
@@ -10,16 +10,21 @@ const columns = {
   name: farms.name,
   region: farms.region,
   landHa: farms.landHa,
-  ownerUserId: farms.ownerUserId,
-  ownerName: users.name,
 };
 
 /** Every farm, or only `onlyFarmId` (a member sees their own farm and nothing else). */
 export async function listFarms(db: Db, onlyFarmId?: number | null): Promise<FarmSummary[]> {
-  const q = db.select(columns).from(farms).leftJoin(users, eq(users.id, farms.ownerUserId));
   if (onlyFarmId === null) return [];
+  const q = db.select(columns).from(farms);
   const rows = onlyFarmId === undefined ? await q.orderBy(asc(farms.code)) : await q.where(eq(farms.id, onlyFarmId));
-  return rows;
+  const memberRows = await db
+    .select({ id: users.id, name: users.name, farmId: users.farmId })
+    .from(users)
+    .where(onlyFarmId === undefined ? isNotNull(users.farmId) : eq(users.farmId, onlyFarmId))
+    .orderBy(asc(users.name));
+  const members = new Map<number, FarmMember[]>();
+  for (const m of memberRows) members.set(m.farmId!, [...(members.get(m.farmId!) ?? []), { id: m.id, name: m.name }]);
+  return rows.map((r) => ({ ...r, members: members.get(r.id) ?? [] }));
 }
 
 export async function myFarm(db: Db, farmId: number | null): Promise<MyFarm> {

@@ -17,7 +17,9 @@ export interface Mailer {
 
 /** Sends through nodemailer to `smtpUrl` (a hosted service, or the local fake in development and tests). */
 export function createMailer(smtpUrl: string, from: string): Mailer {
-  const transport = nodemailer.createTransport(smtpUrl);
+  // Give up on an unreachable mail service within seconds (nodemailer waits 2 minutes by default), so
+  // a request that sends mail answers with a clear message instead of hanging.
+  const transport = nodemailer.createTransport({ url: smtpUrl, connectionTimeout: 10_000, greetingTimeout: 10_000, socketTimeout: 30_000 });
   return {
     async send(mail) {
       const info = await transport.sendMail({ from, ...mail });

@@ -328,9 +328,8 @@ export async function publishOutlook(db: Db, config: Pick<Config, 'publicUrl' | 
 
 async function queueOutlookMails(tx: Db, config: Pick<Config, 'publicUrl' | 'mailFrom'>, s: OutlookSnapshot, versionId: number, farmParts: FarmOutlook[]) {
   const members = await tx
-    .select({ id: users.id, email: users.email, name: users.name, active: users.active, optOut: users.mailOptOut, passwordHash: users.passwordHash, farmId: farms.id })
+    .select({ id: users.id, email: users.email, name: users.name, active: users.active, optOut: users.mailOptOut, passwordHash: users.passwordHash, farmId: users.farmId })
     .from(users)
-    .leftJoin(farms, eq(farms.ownerUserId, users.id))
     .where(and(eq(users.role, 'member'), eq(users.active, true)))
     .orderBy(asc(users.id));
   const secret = await unsubscribeSecret(tx);

@@ -1,10 +1,8 @@
 import { idParamSchema, invitationSchema, userPatchSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
-import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
-import { sendPasswordReset } from '../auth/auth-router.js';
-import { getUser, inviteUser, listUsers, updateUser } from './users-service.js';
+import { inviteUser, listUsers, resendInvitation, sendResetLink, updateUser } from './users-service.js';
 
 export function usersRoutes(ctx: AppContext): RouteDef[] {
   return [
@@ -34,10 +32,16 @@ export function usersRoutes(ctx: AppContext): RouteDef[] {
       access: ['admin'],
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
-        const user = await getUser(ctx.db, id);
-        if (user.status === 'deactivated') throw AppError.conflict('Reactivate the account before sending a reset link');
-        await sendPasswordReset(ctx, user.id, user.email, user.name);
-        res.status(202).json({ message: `A reset link was sent to ${user.email}` });
+        res.status(202).json(await sendResetLink(ctx, id, req.user!.id));
+      },
+    },
+    {
+      method: 'post',
+      path: '/:id/invitation',
+      access: ['admin'],
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        res.status(202).json(await resendInvitation(ctx, id, req.user!.id));
       },
     },
   ];

@@ -1,14 +1,12 @@
-import { asc, eq } from 'drizzle-orm';
+import { and, asc, eq, isNull } from 'drizzle-orm';
 import type { UserStatus, UserSummary } from '../../shared/api-types.js';
-import { ROLE_LABELS, type Role } from '../../shared/roles.js';
+import type { Role } from '../../shared/roles.js';
 import type { Db } from '../db/client.js';
 import { farms, sessions, users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
-import { INVITE_DAYS, issueToken } from '../auth/auth-service.js';
 import type { AppContext } from '../context.js';
-import { invitationMail } from '../mail/templates.js';
-import { getSettings } from '../settings/settings-service.js';
+import { mailOneTimeLink, MailNotSent } from '../auth/link-mail.js';
 
 function statusOf(u: { active: boolean; passwordHash: string | null }): UserStatus {
   if (!u.active) return 'deactivated';
@@ -54,26 +52,24 @@ function toSummary(r: {
 }
 
 export async function listUsers(db: Db): Promise<UserSummary[]> {
-  const rows = await db.select(summaryColumns).from(users).leftJoin(farms, eq(farms.ownerUserId, users.id)).orderBy(asc(users.name));
+  const rows = await db.select(summaryColumns).from(users).leftJoin(farms, eq(farms.id, users.farmId)).orderBy(asc(users.name));
   return rows.map(toSummary);
 }
 
 export async function getUser(db: Db, id: number): Promise<UserSummary> {
-  const [row] = await db.select(summaryColumns).from(users).leftJoin(farms, eq(farms.ownerUserId, users.id)).where(eq(users.id, id));
+  const [row] = await db.select(summaryColumns).from(users).leftJoin(farms, eq(farms.id, users.farmId)).where(eq(users.id, id));
   if (!row) throw AppError.notFound('The user');
   return toSummary(row);
 }
 
+/** Links a member to a farm (several members may share one, e.g. a family farm), or unlinks with null. */
 async function assignFarm(db: Db, userId: number, farmId: number | null | undefined) {
   if (farmId === undefined) return;
-  await db.update(farms).set({ ownerUserId: null }).where(eq(farms.ownerUserId, userId));
-  if (farmId === null) return;
-  const [farm] = await db.select({ id: farms.id, owner: farms.ownerUserId }).from(farms).where(eq(farms.id, farmId));
-  if (!farm) throw AppError.invalid('The farm does not exist', [{ path: 'body.farmId', message: 'No farm has this id' }]);
-  if (farm.owner !== null && farm.owner !== userId) {
-    throw AppError.conflict('This farm already belongs to another member; unassign it first');
+  if (farmId !== null) {
+    const [farm] = await db.select({ id: farms.id }).from(farms).where(eq(farms.id, farmId));
+    if (!farm) throw AppError.invalid('The farm does not exist', [{ path: 'body.farmId', message: 'No farm has this id' }]);
   }
-  await db.update(farms).set({ ownerUserId: userId }).where(eq(farms.id, farmId));
+  await db.update(users).set({ farmId }).where(eq(users.id, userId));
 }
 
 export interface Invitation {
@@ -83,25 +79,73 @@ export interface Invitation {
   farmId?: number | null;
 }
 
-/** Creates the account (no password yet) and e-mails a one-time link; all in one transaction. */
+function mailDown(message: string, err: MailNotSent) {
+  const e = new AppError(503, 'mail_unavailable', message);
+  e.cause = err;
+  return e;
+}
+
+/**
+ * Creates the account (no password yet) and e-mails a one-time link, all or nothing: when the mail
+ * service cannot take the invitation, the account is removed again and the answer is a 503 that
+ * says so, so the same invitation can simply be sent again later.
+ */
 export async function inviteUser(ctx: AppContext, inv: Invitation, actorUserId: number): Promise<UserSummary> {
   if (inv.farmId && inv.role !== 'member') {
-    throw AppError.invalid('Only members own a farm', [{ path: 'body.farmId', message: 'Leave empty unless the role is member' }]);
+    throw AppError.invalid('Only members belong to a farm', [{ path: 'body.farmId', message: 'Leave empty unless the role is member' }]);
   }
-  const { id, token } = await ctx.db.transaction(async (tx) => {
+  const id = await ctx.db.transaction(async (tx) => {
     const [existing] = await tx.select({ id: users.id }).from(users).where(eq(users.email, inv.email));
     if (existing) throw AppError.conflict(`An account for ${inv.email} already exists`);
     const [created] = await tx.insert(users).values({ email: inv.email, name: inv.name, role: inv.role }).returning({ id: users.id });
-    await assignFarm(tx, created.id, inv.farmId ?? undefined);
-    const token = await issueToken(tx, created.id, 'invite');
-    await recordAudit(tx, { actorUserId, action: 'user.invite', entity: 'user', entityId: created.id, after: inv });
-    return { id: created.id, token };
+    await assignFarm(tx, created!.id, inv.farmId ?? undefined);
+    return created!.id;
   });
-  const { coopName } = await getSettings(ctx.db);
-  await ctx.mailer.send(
-    invitationMail(inv.email, inv.name, ROLE_LABELS[inv.role].toLowerCase(), `${ctx.config.publicUrl}/invite/${token}`, coopName, INVITE_DAYS),
-  );
+  try {
+    await mailOneTimeLink(ctx, { id, email: inv.email, name: inv.name, role: inv.role }, 'invite');
+  } catch (err) {
+    // Its only token went with the failed message; the account has done nothing yet.
+    await ctx.db.delete(users).where(and(eq(users.id, id), isNull(users.passwordHash)));
+    if (err instanceof MailNotSent) {
+      throw mailDown(`The mail service could not be reached, so the invitation to ${inv.email} was not sent and no account was created. Try again in a few minutes.`, err);
+    }
+    throw err;
+  }
+  await recordAudit(ctx.db, { actorUserId, action: 'user.invite', entity: 'user', entityId: id, after: inv });
   return getUser(ctx.db, id);
+}
+
+/** Sends a new invitation link to an account that has not accepted yet; the earlier link stops working. */
+export async function resendInvitation(ctx: AppContext, id: number, actorUserId: number): Promise<{ message: string }> {
+  const user = await getUser(ctx.db, id);
+  if (user.status === 'active') throw AppError.conflict(`${user.name} has already accepted the invitation; send a reset link if they cannot sign in`);
+  if (user.status === 'deactivated') throw AppError.conflict('Reactivate the account before inviting again');
+  try {
+    await mailOneTimeLink(ctx, user, 'invite');
+  } catch (err) {
+    if (err instanceof MailNotSent) {
+      throw mailDown(`The mail service could not be reached, so the invitation was not sent again. The earlier link to ${user.email} still works until it expires. Try again in a few minutes.`, err);
+    }
+    throw err;
+  }
+  await recordAudit(ctx.db, { actorUserId, action: 'user.resend-invitation', entity: 'user', entityId: id, after: { email: user.email } });
+  return { message: `A new invitation was sent to ${user.email}; the earlier link no longer works.` };
+}
+
+/** The admin's "send reset link": a 503 with the reason when the mail service cannot take it. */
+export async function sendResetLink(ctx: AppContext, id: number, actorUserId: number): Promise<{ message: string }> {
+  const user = await getUser(ctx.db, id);
+  if (user.status === 'deactivated') throw AppError.conflict('Reactivate the account before sending a reset link');
+  try {
+    await mailOneTimeLink(ctx, user, 'reset');
+  } catch (err) {
+    if (err instanceof MailNotSent) {
+      throw mailDown(`The mail service could not be reached, so no reset link was sent to ${user.email}. Links sent earlier still work until they expire. Try again in a few minutes.`, err);
+    }
+    throw err;
+  }
+  await recordAudit(ctx.db, { actorUserId, action: 'user.send-reset-link', entity: 'user', entityId: id, after: { email: user.email } });
+  return { message: `A reset link was sent to ${user.email}` };
 }
 
 export interface UserPatch {
@@ -119,7 +163,7 @@ export async function updateUser(db: Db, id: number, patch: UserPatch, actorUser
     const before = await getUser(tx, id);
     const role = patch.role ?? before.role;
     if (patch.farmId && role !== 'member') {
-      throw AppError.invalid('Only members own a farm', [{ path: 'body.farmId', message: 'Leave empty unless the role is member' }]);
+      throw AppError.invalid('Only members belong to a farm', [{ path: 'body.farmId', message: 'Leave empty unless the role is member' }]);
     }
     const set: Partial<typeof users.$inferInsert> = {};
     if (patch.name !== undefined) set.name = patch.name;

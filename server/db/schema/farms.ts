@@ -1,5 +1,4 @@
 import { doublePrecision, integer, pgTable, primaryKey, text } from 'drizzle-orm/pg-core';
-import { users } from './users.js';
 import { seasons } from './seasons.js';
 
 export const farms = pgTable('farms', {
@@ -10,9 +9,6 @@ export const farms = pgTable('farms', {
   region: text('region').notNull(),
   /** Land farmed now, in hectares; per-season land is in farm_season_factors. */
   landHa: doublePrecision('land_ha').notNull(),
-  ownerUserId: integer('owner_user_id')
-    .unique()
-    .references(() => users.id, { onDelete: 'set null' }),
 });
 
 /** Quasi-fixed factors per farm and season (land in ha, and any others the co-op records). */

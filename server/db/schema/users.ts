@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
-import { boolean, check, integer, pgTable, text, timestamp } from 'drizzle-orm/pg-core';
+import { boolean, check, index, integer, pgTable, text, timestamp, type AnyPgColumn } from 'drizzle-orm/pg-core';
+import { farms } from './farms.js';
 
 export const users = pgTable(
   'users',
@@ -13,10 +14,12 @@ export const users = pgTable(
     active: boolean('active').notNull().default(true),
     /** Members may opt out of outlook e-mails. */
     mailOptOut: boolean('mail_opt_out').notNull().default(false),
+    /** A member's farm; several members may share one (a family farm). Null for staff. */
+    farmId: integer('farm_id').references((): AnyPgColumn => farms.id, { onDelete: 'set null' }),
     failedSignIns: integer('failed_sign_ins').notNull().default(0),
     lockedUntil: timestamp('locked_until', { withTimezone: true }),
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
     lastSignInAt: timestamp('last_sign_in_at', { withTimezone: true }),
   },
-  (t) => [check('users_role_check', sql`${t.role} in ('admin','planner','treasurer','member')`)],
+  (t) => [check('users_role_check', sql`${t.role} in ('admin','planner','treasurer','member')`), index('users_farm_id_idx').on(t.farmId)],
 );

@@ -13,10 +13,9 @@ export interface FarmBody {
   region: string;
   landHa: number;
 }
-/** A farm as the farm routes answer it (the list with owners is GET /api/farms). */
+/** A farm as the farm routes answer it (the list with members is GET /api/farms). */
 export interface FarmRow extends FarmBody {
   id: number;
-  ownerUserId: number | null;
 }
 export interface PriceIndexBody {
   name: string;

@@ -11,7 +11,7 @@ import {
 } from '@angular/material/dialog';
 import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
-import type { FarmSummary } from '../../../shared/api-types';
+import { farmMemberNames, type FarmSummary } from '../../../shared/api-types';
 import { farmSchema } from '../../../shared/data-schemas';
 import { DataDeskApi, type FarmRow } from '../data-desk/data-desk-api';
 import { saveAndClose } from '../shared/dialog-save';
@@ -23,7 +23,7 @@ export interface FarmDialogData {
   regions: string[];
 }
 
-/** Adds or edits a farm: code, name, region and the land it farms now. The owning member is linked under Users. */
+/** Adds or edits a farm: code, name, region and the land it farms now. Members are linked under Users. */
 @Component({
   selector: 'np-farm-dialog',
   imports: [
@@ -91,8 +91,7 @@ export interface FarmDialogData {
           }
         </mat-form-field>
         <p class="info np-muted">
-          Owning member:
-          {{ farm?.ownerName ?? 'none linked' }}. An administrator links a member's account to the farm under Users.
+          Members: {{ memberNames() }}. An administrator links members' accounts to the farm under Users.
         </p>
         @if (failure(); as message) {
           <p class="problem" role="alert">{{ message }}</p>
@@ -112,6 +111,7 @@ export class FarmDialog {
   readonly #dialogRef = inject<MatDialogRef<FarmDialog, FarmRow>>(MatDialogRef);
   protected readonly data = inject<FarmDialogData>(MAT_DIALOG_DATA);
   protected readonly farm = this.data.farm;
+  protected readonly memberNames = () => farmMemberNames(this.farm?.members ?? []);
   protected readonly form = inject(NonNullableFormBuilder).group({
     code: [this.farm?.code ?? '', [Validators.required, zodValidator(farmSchema.shape.code)]],
     name: [this.farm?.name ?? '', [Validators.required, zodValidator(farmSchema.shape.name)]],

@@ -21,7 +21,7 @@ import type {
   ValueFormatterParams,
 } from 'ag-grid-community';
 import { firstValueFrom } from 'rxjs';
-import type { FarmRecordRow, FarmSummary, Item } from '../../../shared/api-types';
+import { farmMemberNames, type FarmRecordRow, type FarmSummary, type Item } from '../../../shared/api-types';
 import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
@@ -59,6 +59,7 @@ export class FarmRecords {
   /** The route's `:id`. */
   readonly id = input.required<string>();
   protected readonly farmId = computed(() => Number(this.id()));
+  protected readonly memberNames = (farm: FarmSummary) => farmMemberNames(farm.members);
   protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
   protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
 

@@ -11,7 +11,7 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
 import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, GridApi, GridReadyEvent, ICellRendererParams, RowClickedEvent } from 'ag-grid-community';
-import type { FarmSummary } from '../../../shared/api-types';
+import { farmMemberNames, type FarmSummary } from '../../../shared/api-types';
 import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
@@ -78,12 +78,12 @@ export class FarmsList {
       valueFormatter: (p) => (p.value == null ? '' : landFormat.format(p.value as number)),
     },
     {
-      field: 'ownerName',
-      headerName: 'Member',
+      colId: 'members',
+      headerName: 'Members',
       flex: 1,
       minWidth: 160,
       filter: 'agTextColumnFilter',
-      valueFormatter: (p) => (p.value as string | null) ?? 'no account linked',
+      valueGetter: (p) => farmMemberNames(p.data?.members ?? []),
     },
   ];
   protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };

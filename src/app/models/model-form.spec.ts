@@ -30,7 +30,7 @@ const seasons: Season[] = [
   { id: 1, label: '2020/21', startYear: 2020, startMonth: 7, startsOn: '2020-07-01' },
   { id: 2, label: '2021/22', startYear: 2021, startMonth: 7, startsOn: '2021-07-01' },
 ];
-const farms: FarmSummary[] = [{ id: 1, code: 'F01', name: 'Hollybrook Farm', region: 'Riverlands', landHa: 271, ownerUserId: null, ownerName: null }];
+const farms: FarmSummary[] = [{ id: 1, code: 'F01', name: 'Hollybrook Farm', region: 'Riverlands', landHa: 271, members: [] }];
 
 describe('ModelForm', () => {
   let fixture: ComponentFixture<ModelForm>;

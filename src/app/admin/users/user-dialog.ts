@@ -86,16 +86,15 @@ export class UserDialog {
   });
   protected readonly role = toSignal(this.form.controls.role.valueChanges, { initialValue: this.form.controls.role.value });
   protected readonly needsFarm = computed(() => this.role() === 'member');
-  /** Farms another account already owns cannot be given to this one. */
+  /** Several members may share a farm (a family farm): each option names the others already linked. */
   protected readonly farmOptions = computed(() =>
     [...this.data.farms]
       .sort((a, b) => a.name.localeCompare(b.name))
-      .map((farm) => ({
-        farm,
-        takenBy: farm.ownerUserId !== null && farm.ownerUserId !== this.data.user?.id ? farm.ownerName : null,
-      })),
+      .map((farm) => {
+        const others = farm.members.filter((m) => m.id !== this.data.user?.id).map((m) => m.name);
+        return { farm, alsoLinked: others.length ? others.join(', ') : null };
+      }),
   );
-  protected readonly noFreeFarm = computed(() => this.farmOptions().every((option) => option.takenBy !== null));
   protected readonly saving = signal(false);
   protected readonly failure = signal<string | null>(null);
 

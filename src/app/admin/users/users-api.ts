@@ -31,6 +31,10 @@ export class UsersApi {
     return firstValueFrom(this.#http.patch<UserSummary>(`/api/users/${id}`, patch));
   }
 
+  resendInvitation(id: number): Promise<{ message: string }> {
+    return firstValueFrom(this.#http.post<{ message: string }>(`/api/users/${id}/invitation`, null));
+  }
+
   sendPasswordReset(id: number): Promise<unknown> {
     return firstValueFrom(this.#http.post(`/api/users/${id}/password-reset`, null, { responseType: 'text' }));
   }

@@ -136,6 +136,16 @@ export class Users {
     }
   }
 
+  /** A new link for someone who has not accepted yet; the earlier link stops working once it is sent. */
+  protected async resendInvitation(user: UserSummary): Promise<void> {
+    try {
+      const { message } = await this.#api.resendInvitation(user.id);
+      this.#snackBar.open(message, 'OK');
+    } catch (error) {
+      this.#snackBar.open(errorMessage(error), 'Dismiss');
+    }
+  }
+
   protected async sendReset(user: UserSummary): Promise<void> {
     try {
       await this.#api.sendPasswordReset(user.id);
