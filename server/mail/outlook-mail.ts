@@ -4,6 +4,7 @@
  * one-click unsubscribe link. It only shows numbers it is given; it computes none.
  */
 import { priceText, quantityText } from '../../shared/number-format.js';
+import { MAIL_STYLE } from './mail-style.js';
 
 export interface OutlookMailQuantity {
   name: string;
@@ -59,9 +60,9 @@ function quantityLines(rows: OutlookMailQuantity[]): string[] {
 }
 
 function quantityTable(rows: OutlookMailQuantity[]): string {
-  const th = 'style="text-align:left;padding:4px 8px;border-bottom:1px solid #c9d3ca"';
-  const td = 'style="padding:4px 8px;border-bottom:1px solid #e3e8e3"';
-  const tdn = 'style="padding:4px 8px;border-bottom:1px solid #e3e8e3;text-align:right;white-space:nowrap"';
+  const th = `style="${MAIL_STYLE.th}"`;
+  const td = `style="${MAIL_STYLE.td}"`;
+  const tdn = `style="${MAIL_STYLE.tdNumber}"`;
   return `<table style="border-collapse:collapse;font-size:14px">
 <tr><th ${th}>Item</th><th ${th}>Projected</th><th ${th}>5–95 % band</th><th ${th}>Low scenario</th><th ${th}>High scenario</th></tr>
 ${rows
@@ -100,26 +101,26 @@ export function outlookMail(m: OutlookMailInput): { to: string; subject: string;
     .join('\n\n');
 
   const p = (s: string) => `<p>${escapeHtml(s)}</p>`;
-  const html = `<!doctype html><html><body style="font-family:Roboto,Arial,sans-serif;color:#1d2a1f;max-width:640px">
-<h1 style="font-size:20px">${escapeHtml(`Season outlook ${m.season}${updated}`)}</h1>
+  const html = `<!doctype html><html><body style="${MAIL_STYLE.body};max-width:640px">
+<h1 style="${MAIL_STYLE.h1}">${escapeHtml(`Season outlook ${m.season}${updated}`)}</h1>
 ${p(`Hello ${m.recipientName},`)}
 ${p(`${m.coopName} has published its outlook for the ${m.season} season: “${m.title}” (${m.publishedOn}).`)}
 ${
   m.farm
-    ? `<h2 style="font-size:16px">Your farm: ${escapeHtml(`${m.farm.name} (${m.farm.code})`)}</h2>${p(`${m.farm.fixed}; figures at the expected prices.`)}${quantityTable(m.farm.items)}`
+    ? `<h2 style="${MAIL_STYLE.h2}">Your farm: ${escapeHtml(`${m.farm.name} (${m.farm.code})`)}</h2>${p(`${m.farm.fixed}; figures at the expected prices.`)}${quantityTable(m.farm.items)}`
     : p('No farm is linked to your account, so this message shows the co-op totals only.')
 }
-<h2 style="font-size:16px">The co-op in total</h2>
+<h2 style="${MAIL_STYLE.h2}">The co-op in total</h2>
 ${quantityTable(m.coop)}
 ${deliveries ? p(deliveries) : ''}
-<h2 style="font-size:16px">Expected prices</h2>
+<h2 style="${MAIL_STYLE.h2}">Expected prices</h2>
 <ul>${m.prices.map((x) => `<li>${escapeHtml(`${x.name}: ${fmtMoney(x.base)} ${x.priceUnit} (low ${fmtMoney(x.low)}, high ${fmtMoney(x.high)}; ${x.method})`)}</li>`).join('')}</ul>
 ${p(m.scenarioRule)}
-${m.commentary.trim() ? `<h2 style="font-size:16px">From the planner</h2>${m.commentary.trim().split(/\n{2,}/).map(p).join('\n')}` : ''}
-<h2 style="font-size:16px">Please note</h2>
-<ul style="font-size:13px;color:#3c4a3e">${m.cautions.map((c) => `<li>${escapeHtml(c)}</li>`).join('')}</ul>
-<p><a href="${escapeHtml(m.portalUrl)}" style="background:#2f6b3a;color:#fff;padding:10px 16px;border-radius:18px;text-decoration:none">Open the outlook</a></p>
-<p style="color:#5b665c;font-size:12px">${escapeHtml(`You receive this because you are a member of ${m.coopName}.`)} <a href="${escapeHtml(m.unsubscribeUrl)}">Stop outlook e-mails</a> · sent by Netput</p>
+${m.commentary.trim() ? `<h2 style="${MAIL_STYLE.h2}">From the planner</h2>${m.commentary.trim().split(/\n{2,}/).map(p).join('\n')}` : ''}
+<h2 style="${MAIL_STYLE.h2}">Please note</h2>
+<ul style="${MAIL_STYLE.note}">${m.cautions.map((c) => `<li>${escapeHtml(c)}</li>`).join('')}</ul>
+<p><a href="${escapeHtml(m.portalUrl)}" style="${MAIL_STYLE.button}">Open the outlook</a></p>
+<p style="${MAIL_STYLE.footer}">${escapeHtml(`You receive this because you are a member of ${m.coopName}.`)} <a href="${escapeHtml(m.unsubscribeUrl)}">Stop outlook e-mails</a> · sent by Netput</p>
 </body></html>`;
   return { to: m.to, subject, text, html };
 }

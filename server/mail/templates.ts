@@ -1,3 +1,4 @@
+import { MAIL_STYLE } from './mail-style.js';
 import type { OutgoingMail } from './mailer.js';
 
 function escapeHtml(s: string): string {
@@ -5,11 +6,11 @@ function escapeHtml(s: string): string {
 }
 
 function layout(title: string, paragraphs: string[], link: { href: string; label: string }, coopName: string): string {
-  return `<!doctype html><html><body style="font-family:Roboto,Arial,sans-serif;color:#1d2a1f;max-width:560px">
-<h1 style="font-size:20px">${escapeHtml(title)}</h1>
+  return `<!doctype html><html><body style="${MAIL_STYLE.body};max-width:560px">
+<h1 style="${MAIL_STYLE.h1}">${escapeHtml(title)}</h1>
 ${paragraphs.map((p) => `<p>${escapeHtml(p)}</p>`).join('\n')}
-<p><a href="${escapeHtml(link.href)}" style="background:#2f6b3a;color:#fff;padding:10px 16px;border-radius:18px;text-decoration:none">${escapeHtml(link.label)}</a></p>
-<p style="color:#5b665c;font-size:12px">${escapeHtml(coopName)} · sent by Netput. If you did not expect this message, you can ignore it.</p>
+<p><a href="${escapeHtml(link.href)}" style="${MAIL_STYLE.button}">${escapeHtml(link.label)}</a></p>
+<p style="${MAIL_STYLE.footer}">${escapeHtml(coopName)} · sent by Netput. If you did not expect this message, you can ignore it.</p>
 </body></html>`;
 }
 

@@ -10,6 +10,7 @@ import { recordAudit } from '../audit/audit-repository.js';
 import { getSettings } from '../settings/settings-service.js';
 import { mailPreferencesSchema, unsubscribeParamSchema } from '../../shared/outlook-schemas.js';
 import { unsubscribeSecret, verifyUnsubscribe } from './unsubscribe-token.js';
+import { MAIL_STYLE } from '../mail/mail-style.js';
 
 async function preferences(db: Db, userId: number) {
   const [u] = await db.select({ email: users.email, optOut: users.mailOptOut }).from(users).where(eq(users.id, userId));
@@ -49,8 +50,8 @@ function escapeHtml(s: string): string {
 
 function page(title: string, lines: string[]) {
   return `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width,initial-scale=1"><title>${escapeHtml(title)}</title></head>
-<body style="font-family:Roboto,Arial,sans-serif;color:#1d2a1f;max-width:560px;margin:48px auto;padding:0 16px">
-<h1 style="font-size:20px">${escapeHtml(title)}</h1>${lines.map((l) => `<p>${escapeHtml(l)}</p>`).join('')}</body></html>`;
+<body style="${MAIL_STYLE.body};max-width:560px;margin:48px auto">
+<h1 style="${MAIL_STYLE.h1}">${escapeHtml(title)}</h1>${lines.map((l) => `<p>${escapeHtml(l)}</p>`).join('')}</body></html>`;
 }
 
 /**

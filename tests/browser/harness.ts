@@ -126,7 +126,7 @@ export async function navHrefs(page: Page): Promise<string[]> {
 }
 
 export async function navTitles(page: Page): Promise<string[]> {
-  return (await mainNav(page).locator('.mat-mdc-list-item-title').allTextContents()).map(
+  return (await mainNav(page).locator('.nav-label').allTextContents()).map(
     (t) => t.trim(),
   );
 }

@@ -1,5 +1,5 @@
 import type { CanDeactivateFn, Routes } from '@angular/router';
-import { provideEchartsCore } from 'ngx-echarts';
+import { provideCharts } from '../shared/charts';
 import { ACCESS } from '../core/access';
 import { roleGuard } from '../core/auth-guards';
 import type { BudgetEditor } from './budget-editor';
@@ -12,7 +12,7 @@ const budgetRoutes: Routes = [
   {
     path: '',
     // ECharts is loaded only when the cash chart first draws.
-    providers: [provideEchartsCore({ echarts: () => import('../shared/echarts-setup').then((m) => m.echarts) })],
+    providers: [provideCharts()],
     children: [
       { path: '', pathMatch: 'full', title: 'Fertiliser budgets', loadComponent: () => import('./budget-list').then((m) => m.BudgetList) },
       { path: 'products', title: 'Fertiliser products', loadComponent: () => import('./fertiliser-products').then((m) => m.FertiliserProducts) },

@@ -3,11 +3,13 @@ import type { EChartsCoreOption } from 'echarts/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { formatMoney, formatMonth } from './budget-format';
 import type { CashMonth } from './budget-types';
+import { COLOUR } from '../../../shared/design-tokens';
+import { CHART_TEXT } from '../shared/chart-theme';
 
-/** Our own colours: prepaid in field olive, on terms in grain ochre, the running total in slate teal. */
-export const CASH_COLOURS = { prepaid: '#4f6427', onTerms: '#b0772a', cumulative: '#2f6f86', compare: '#7a776c', axis: '#6d6a5f', grid: '#e4e1d8' } as const;
+/** Colours from the design tokens: prepaid in field olive, on terms in grain ochre, the running total in river blue. */
+export const CASH_COLOURS = { prepaid: COLOUR.field, onTerms: COLOUR.grain, cumulative: COLOUR.river, compare: COLOUR.loamSoft, axis: COLOUR.loamSoft, grid: COLOUR.furrow } as const;
 
-const TEXT = { color: '#3b3a33', fontFamily: 'Roboto, system-ui, sans-serif' };
+const TEXT = CHART_TEXT;
 
 /** Short money for axis labels: 950k, 1.2M. */
 function axisMoney(v: number): string {

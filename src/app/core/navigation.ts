@@ -10,20 +10,31 @@ export interface NavItem {
   readonly roles: readonly Role[];
   /** Where the entry sits: the work pages (default), under "Administration", or last with the person's own pages. */
   readonly group?: 'admin' | 'personal';
+  /** The step of the season's work the page belongs to; the navigation draws the steps in this order. */
+  readonly stage?: SeasonStage;
   /** Shown only while the server runs in development mode (GET /api/dev/mail answers 200). */
   readonly devOnly?: boolean;
 }
 
+/** The season's work in the order it is done: records, then the model, the outlook and the budget. */
+export const SEASON_STAGES = [
+  { key: 'records', label: 'Records', hint: 'prices, farms and imports' },
+  { key: 'model', label: 'Model', hint: 'fit and compare' },
+  { key: 'outlook', label: 'Outlook', hint: 'project and publish' },
+  { key: 'budget', label: 'Budget', hint: 'fertiliser and cash' },
+] as const;
+export type SeasonStage = (typeof SEASON_STAGES)[number]['key'];
+
 export const NAV_ITEMS: readonly NavItem[] = [
   { path: '/', label: 'Home', icon: 'home', roles: ACCESS.everyone },
   { path: '/my-farm/outlook', label: 'Season outlook', icon: 'wb_sunny', roles: ACCESS.myFarm },
-  { path: '/prices', label: 'Prices', icon: 'price_change', roles: ACCESS.prices },
-  { path: '/farms', label: 'Farms', icon: 'agriculture', roles: ACCESS.farms },
-  { path: '/imports', label: 'Imports', icon: 'upload_file', roles: ACCESS.imports },
-  { path: '/reference', label: 'Reference data', icon: 'dataset', roles: ACCESS.reference },
-  { path: '/models', label: 'Models', icon: 'query_stats', roles: ACCESS.models },
-  { path: '/outlook', label: 'Outlook', icon: 'insights', roles: ACCESS.outlook },
-  { path: '/budget', label: 'Budget', icon: 'request_quote', roles: ACCESS.budget },
+  { path: '/prices', label: 'Prices', icon: 'price_change', roles: ACCESS.prices, stage: 'records' },
+  { path: '/farms', label: 'Farms', icon: 'agriculture', roles: ACCESS.farms, stage: 'records' },
+  { path: '/imports', label: 'Imports', icon: 'upload_file', roles: ACCESS.imports, stage: 'records' },
+  { path: '/reference', label: 'Reference data', icon: 'dataset', roles: ACCESS.reference, stage: 'records' },
+  { path: '/models', label: 'Models', icon: 'query_stats', roles: ACCESS.models, stage: 'model' },
+  { path: '/outlook', label: 'Outlook', icon: 'insights', roles: ACCESS.outlook, stage: 'outlook' },
+  { path: '/budget', label: 'Budget', icon: 'request_quote', roles: ACCESS.budget, stage: 'budget' },
   { path: '/admin/users', label: 'Users', icon: 'group', roles: ACCESS.users, group: 'admin' },
   { path: '/admin/settings', label: 'Co-op settings', icon: 'tune', roles: ACCESS.settings, group: 'admin' },
   { path: '/admin/audit', label: 'Audit log', icon: 'fact_check', roles: ACCESS.audit, group: 'admin' },

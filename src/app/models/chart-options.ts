@@ -1,14 +1,16 @@
 import type { EChartsCoreOption } from 'echarts/core';
 import { formatAmount } from './model-format';
+import { COLOUR } from '../../../shared/design-tokens';
+import { CHART_TEXT } from '../shared/chart-theme';
 
-/** Series colours of the model charts (our own): observed figures dark, the model's in ochre, errors in clay. */
+/** Series colours of the model charts, from the design tokens: observed figures in field green, the model's in ochre, errors in clay. */
 export const CHART_COLOURS = {
-  actual: '#33481c',
-  model: '#b26d12',
-  second: '#2f7a86',
-  error: '#b25a2c',
-  axis: '#6d6a5f',
-  grid: '#e4e1d8',
+  actual: COLOUR.fieldDeep,
+  model: COLOUR.grain,
+  second: COLOUR.river,
+  error: COLOUR.clay,
+  axis: COLOUR.loamSoft,
+  grid: COLOUR.furrow,
 } as const;
 
 /** Axis ticks: whole numbers from 10 up, up to three decimals below (ticks are round already). */
@@ -17,7 +19,7 @@ function axisNumber(v: number): string {
   return new Intl.NumberFormat('en', { maximumFractionDigits: a >= 10 || a === 0 ? 0 : 3 }).format(v).replace('-', '−');
 }
 
-const TEXT = { color: '#3b3a33', fontFamily: 'Roboto, system-ui, sans-serif' };
+const TEXT = CHART_TEXT;
 
 function axisName(name: string) {
   return { name, nameLocation: 'middle' as const, nameTextStyle: { ...TEXT, fontSize: 12 } };

@@ -1,12 +1,12 @@
 import type { Routes } from '@angular/router';
-import { provideEchartsCore } from 'ngx-echarts';
+import { provideCharts } from '../shared/charts';
 
 /** The model workspace: list and define, one model with its runs, a run's result, two runs side by side. */
 const modelsRoutes: Routes = [
   {
     path: '',
     // ECharts is loaded only when a chart first draws.
-    providers: [provideEchartsCore({ echarts: () => import('../shared/echarts-setup').then((m) => m.echarts) })],
+    providers: [provideCharts()],
     children: [
       { path: '', pathMatch: 'full', title: 'Models', loadComponent: () => import('./models-list').then((m) => m.ModelsList) },
       { path: 'compare', title: 'Compare runs', loadComponent: () => import('./run-compare').then((m) => m.RunCompare) },

@@ -15,15 +15,17 @@ import { FAN_COLOURS } from './fan-chart';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, formatPercent, formatPrice, formatQuantity, formatShare, formatSignedPercent } from './outlook-format';
 import type { Accountability, AccountabilitySeason, Comparison } from './outlook-types';
+import { SERIES } from '../../../shared/design-tokens';
+import { CHART_TEXT } from '../shared/chart-theme';
 
-const SERIES_COLOURS = [FAN_COLOURS.base, FAN_COLOURS.low, FAN_COLOURS.high, '#8a6d1f', '#6b4f7a', '#3f7f5f', '#7a776c', '#b0772a'];
+const SERIES_COLOURS: readonly string[] = SERIES;
 
 /** The co-op's error per item, season after season: one line per item, a point per season with records. */
 export function errorChartOption(acc: Accountability): EChartsCoreOption | null {
   const seasons = acc.seasons.filter((s) => s.items.some((i) => i.errorPct !== null));
   if (!seasons.length) return null;
   const codes = [...new Map(seasons.flatMap((s) => s.items.map((i) => [i.item, i.name] as const))).entries()];
-  const text = { color: '#3b3a33', fontFamily: 'Roboto, system-ui, sans-serif' };
+  const text = CHART_TEXT;
   return {
     animation: false,
     aria: { enabled: true },

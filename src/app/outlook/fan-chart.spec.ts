@@ -1,6 +1,6 @@
 import { provideZonelessChangeDetection } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
-import { provideEchartsCore } from 'ngx-echarts';
+import { provideCharts } from '../shared/charts';
 import { FanChart, fanChartDescription, fanChartOption, fanInputFor, fanWindow, type FanChartInput } from './fan-chart';
 import type { ItemProjection } from './outlook-types';
 
@@ -150,7 +150,7 @@ describe('fanInputFor', () => {
 describe('FanChart', () => {
   it('should draw the chart as SVG with the band areas and the lines', async () => {
     TestBed.configureTestingModule({
-      providers: [provideZonelessChangeDetection(), provideEchartsCore({ echarts: () => import('../shared/echarts-setup').then((m) => m.echarts) })],
+      providers: [provideZonelessChangeDetection(), provideCharts()],
     });
     const fixture = TestBed.createComponent(FanChart);
     const host = fixture.nativeElement as HTMLElement;

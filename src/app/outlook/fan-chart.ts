@@ -3,11 +3,13 @@ import type { EChartsCoreOption } from 'echarts/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { formatQuantity } from './outlook-format';
 import { SCENARIO_NAMES, scenarioLabel, type History, type ItemProjection, type QuantitySummary } from './outlook-types';
+import { COLOUR } from '../../../shared/design-tokens';
+import { CHART_TEXT } from '../shared/chart-theme';
 
-/** Our own colours: recorded seasons in dark loam, the scenarios in rust, field olive and slate teal. */
-export const FAN_COLOURS = { recorded: '#3b3a33', low: '#a4532b', base: '#4f6427', high: '#2f6f86', other: '#7a776c', axis: '#6d6a5f', grid: '#e4e1d8' } as const;
+/** Colours from the design tokens: recorded seasons in dark loam, the scenarios in clay, field olive and river blue. */
+export const FAN_COLOURS = { recorded: COLOUR.loam, low: COLOUR.clay, base: COLOUR.field, high: COLOUR.river, other: COLOUR.loamSoft, axis: COLOUR.loamSoft, grid: COLOUR.furrow } as const;
 
-const TEXT = { color: '#3b3a33', fontFamily: 'Roboto, system-ui, sans-serif' };
+const TEXT = CHART_TEXT;
 
 export interface FanScenario {
   /** low, base or high */

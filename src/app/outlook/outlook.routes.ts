@@ -1,5 +1,5 @@
 import type { Routes } from '@angular/router';
-import { provideEchartsCore } from 'ngx-echarts';
+import { provideCharts } from '../shared/charts';
 import { ACCESS } from '../core/access';
 import { roleGuard } from '../core/auth-guards';
 
@@ -8,7 +8,7 @@ const outlookRoutes: Routes = [
   {
     path: '',
     // ECharts is loaded only when a fan chart first draws.
-    providers: [provideEchartsCore({ echarts: () => import('../shared/echarts-setup').then((m) => m.echarts) })],
+    providers: [provideCharts()],
     children: [
       { path: '', pathMatch: 'full', title: 'Season outlooks', loadComponent: () => import('./outlook-list').then((m) => m.OutlookList) },
       { path: 'accountability', title: 'Forecast against outcome', loadComponent: () => import('./accountability-page').then((m) => m.AccountabilityPage) },

@@ -1,7 +1,7 @@
-// The one place ECharts is assembled from its parts, shared by every chart of the app and by the
-// specs (stack notes, gotcha 8). Charts load it lazily:
-//   providers: [provideEchartsCore({ echarts: () => import('../shared/echarts-setup').then((m) => m.echarts) })]
-// and draw with `[initOpts]="{ renderer: 'svg' }"`. Add the chart types and components you need
+// The one place ECharts is assembled from its parts and Netput's chart theme is registered, shared by
+// every chart of the app and by the specs (stack notes, gotcha 8). Features load it lazily with
+//   providers: [provideCharts()]   (src/app/shared/charts.ts, which also makes the theme the default)
+// and charts draw with `[initOpts]="{ renderer: 'svg' }"`. Add the chart types and components you need
 // below (one list, kept sorted), never a second `echarts.use` elsewhere.
 import { BarChart, LineChart, ScatterChart } from 'echarts/charts';
 import {
@@ -14,6 +14,7 @@ import {
 } from 'echarts/components';
 import * as echarts from 'echarts/core';
 import { SVGRenderer } from 'echarts/renderers';
+import { CHART_THEME, chartTheme } from './chart-theme';
 
 echarts.use([
   // charts
@@ -31,5 +32,7 @@ echarts.use([
   // renderer: SVG only (inspectable in the DOM, works in jsdom)
   SVGRenderer,
 ]);
+
+echarts.registerTheme(CHART_THEME, chartTheme);
 
 export { echarts };

@@ -25,7 +25,7 @@ describe('Shell', () => {
   let http: HttpTestingController;
   let fixture: ComponentFixture<Shell>;
 
-  async function render(role: Role, devMail: 'on' | 'off' | 'not-asked' = 'not-asked'): Promise<void> {
+  async function render(role: Role, devMail: 'on' | 'off' | 'not-asked' = 'not-asked', outlooks: unknown[] = []): Promise<void> {
     const user = signal<Me | null>(person(role));
     TestBed.configureTestingModule({
       providers: [
@@ -49,6 +49,8 @@ describe('Shell', () => {
     // Requests keep the app unstable, so answer them before waiting for stability.
     TestBed.tick();
     http.expectOne('/api/settings').flush(settings);
+    // The header's season: staff read the outlook list, members their published versions.
+    for (const request of http.match((r) => r.url === '/api/outlooks' || r.url === '/api/portal/outlook/versions')) request.flush(outlooks);
     if (devMail === 'on') http.expectOne('/api/dev/mail/status').flush({ available: true });
     if (devMail === 'off') http.expectOne('/api/dev/mail/status').flush({ available: false });
     await fixture.whenStable();
@@ -113,11 +115,28 @@ describe('Shell', () => {
     expect(navPaths()).toContain('/admin/users');
   });
 
-  it("should show the co-op's name from the settings and the person's name in the toolbar", async () => {
+  it("should show the co-op's name from the settings and the person's name in the header", async () => {
     await render('planner');
 
-    const toolbar = (fixture.nativeElement as HTMLElement).querySelector('mat-toolbar');
+    const toolbar = (fixture.nativeElement as HTMLElement).querySelector('header.band');
     expect(toolbar?.textContent).toContain('Vale Grain Co-operative');
     expect(toolbar?.textContent).toContain('Test planner');
+  });
+
+  it('should carry the season being planned and its outlook state in the header', async () => {
+    const draft = { id: 4, season: '2026/27', startYear: 2026, title: 'Outlook', modelRunId: 2, projectionStatus: 'succeeded', updatedAt: '2026-12-01T10:00:00Z', versions: 0, latestVersion: null };
+    await render('planner', 'not-asked', [draft]);
+
+    const season = (fixture.nativeElement as HTMLElement).querySelector('header.band .season');
+    expect(season?.textContent?.replace(/\s+/g, ' ').trim()).toBe('Season 2026/27 outlook in draft');
+  });
+
+  it("should draw the planner's work pages as the season's steps: records, model, outlook, budget", async () => {
+    await render('planner');
+
+    const steps = [...(fixture.nativeElement as HTMLElement).querySelectorAll('nav[aria-label=Main] ol.path > li')].map((li) =>
+      [...li.querySelectorAll('.nav-label')].map((label) => label.textContent?.trim()).join(', '),
+    );
+    expect(steps).toEqual(['Prices, Farms, Imports, Reference data', 'Models', 'Outlook', 'Budget']);
   });
 });

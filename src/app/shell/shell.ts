@@ -14,18 +14,17 @@ import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
 import { MatButton, MatIconButton } from '@angular/material/button';
 import { MatDivider } from '@angular/material/divider';
 import { MatIcon } from '@angular/material/icon';
-import { MatListItem, MatListItemIcon, MatListItemTitle, MatListSubheaderCssMatStyler, MatNavList } from '@angular/material/list';
 import { MatMenu, MatMenuItem, MatMenuTrigger } from '@angular/material/menu';
 import { MatSidenav, MatSidenavContainer, MatSidenavContent } from '@angular/material/sidenav';
 import { MatSnackBar } from '@angular/material/snack-bar';
-import { MatToolbar } from '@angular/material/toolbar';
 import { NavigationEnd, Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
 import { filter, map, skip } from 'rxjs';
 import { ROLE_LABELS } from '../../../shared/roles';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { DevMailAvailability } from '../core/dev-mail-availability';
-import { navItemsFor } from '../core/navigation';
+import { navItemsFor, SEASON_STAGES } from '../core/navigation';
+import { SeasonStatus } from '../core/season-status';
 import { SettingsStore } from '../core/settings-store';
 
 /** Side navigation is docked from this width up; below it, it slides over the page. */
@@ -38,7 +37,6 @@ export const WIDE_LAYOUT_QUERY = '(min-width: 960px)';
     RouterOutlet,
     RouterLink,
     RouterLinkActive,
-    MatToolbar,
     MatIcon,
     MatIconButton,
     MatButton,
@@ -49,11 +47,6 @@ export const WIDE_LAYOUT_QUERY = '(min-width: 960px)';
     MatSidenav,
     MatSidenavContainer,
     MatSidenavContent,
-    MatNavList,
-    MatListItem,
-    MatListItemIcon,
-    MatListItemTitle,
-    MatListSubheaderCssMatStyler,
   ],
   templateUrl: './shell.html',
   styleUrl: './shell.scss',
@@ -67,6 +60,7 @@ export class Shell {
   readonly #router = inject(Router);
   readonly #snackBar = inject(MatSnackBar);
   readonly #injector = inject(Injector);
+  readonly #season = inject(SeasonStatus);
 
   protected readonly sidenav = viewChild.required(MatSidenav);
   private readonly content = viewChild.required(MatSidenavContent);
@@ -78,6 +72,15 @@ export class Shell {
     return role ? ROLE_LABELS[role] : '';
   });
   protected readonly coopName = this.#settings.coopName;
+  protected readonly season = this.#season.current;
+  protected readonly initials = computed(() =>
+    (this.user()?.name ?? '')
+      .split(/\s+/)
+      .filter(Boolean)
+      .slice(0, 2)
+      .map((part) => part[0]!.toUpperCase())
+      .join(''),
+  );
   protected readonly isWide = toSignal(
     inject(BreakpointObserver)
       .observe(WIDE_LAYOUT_QUERY)
@@ -88,7 +91,12 @@ export class Shell {
   protected readonly navItems = computed(() =>
     navItemsFor(this.#auth.role(), { devMail: this.#devMail.available() }),
   );
-  protected readonly mainItems = computed(() => this.navItems().filter((item) => item.group === undefined));
+  /** Home and the pages outside the season's steps (a member's outlook). */
+  protected readonly topItems = computed(() => this.navItems().filter((item) => item.group === undefined && item.stage === undefined));
+  /** The season's work, step by step, with the pages of each step this role may open. */
+  protected readonly stages = computed(() =>
+    SEASON_STAGES.map((stage) => ({ ...stage, items: this.navItems().filter((item) => item.stage === stage.key) })).filter((stage) => stage.items.length > 0),
+  );
   protected readonly adminItems = computed(() => this.navItems().filter((item) => item.group === 'admin'));
   protected readonly personalItems = computed(() => this.navItems().filter((item) => item.group === 'personal'));
 
@@ -103,6 +111,7 @@ export class Shell {
       )
       .subscribe(() => {
         if (!this.isWide()) void this.sidenav().close();
+        this.#season.refresh();
         // The page scrolls inside the sidenav content, not the window, so the router cannot reset it.
         this.content().scrollTo({ top: 0 });
         afterNextRender(() => this.main().nativeElement.focus({ preventScroll: true }), { injector: this.#injector });

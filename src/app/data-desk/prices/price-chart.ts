@@ -1,10 +1,12 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import type { EChartsCoreOption } from 'echarts/core';
-import { NgxEchartsDirective, provideEchartsCore } from 'ngx-echarts';
+import { NgxEchartsDirective } from 'ngx-echarts';
+import { provideCharts } from '../../shared/charts';
 import type { PriceSeries } from '../../../../shared/api-types';
+import { SERIES } from '../../../../shared/design-tokens';
 
-/** Line colours: Netput's olive and ochre first, then hues that stay apart for common colour-vision deficiencies. */
-const PALETTE = ['#516528', '#b0772a', '#2f6f9f', '#8a3b8f', '#c2452d', '#2a8a7a', '#6b6b6b', '#9a8a1f'];
+/** Line colours: the chart series of the design tokens (olive and ochre first). */
+const PALETTE: readonly string[] = SERIES;
 
 const PANEL_HEIGHT = 200;
 const PANEL_GAP = 64;
@@ -111,7 +113,7 @@ export function priceChartOption(data: PriceSeries): EChartsCoreOption {
 @Component({
   selector: 'np-price-chart',
   imports: [NgxEchartsDirective],
-  providers: [provideEchartsCore({ echarts: () => import('../../shared/echarts-setup').then((m) => m.echarts) })],
+  providers: [provideCharts()],
   template: `
     @if (option(); as option) {
       <div
