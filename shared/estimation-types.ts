@@ -3,13 +3,31 @@
  * screens read: plain data, no Node imports, so the client and the server share one declaration.
  */
 
+/**
+ * First-order (Karush–Kuhn–Tucker) conditions of the convexity-constrained maximum likelihood
+ * problem, min f = −ℓ over θ subject to C ⪰ 0, at the reported estimate (docs/profit-functions.md,
+ * "Imposing convexity"). Measures are in log-likelihood units per standard error, so 1e-6 means a
+ * one-standard-error move changes the log-likelihood by about 1e-6 at first order.
+ */
 export interface OptimalityCheck {
-  /** max_j |∂f/∂θ_j|·SE_j over the parameters outside C (0 at a stationary point; objective units). */
+  /** max_j |∂f/∂θ_j|·SE_j over the parameters outside C (0 at a stationary point). */
   stationarity: number;
-  /** Smallest eigenvalue of the multiplier Λ = ∂f/∂C over its largest |eigenvalue| (≥ 0 at a KKT point). */
+  /**
+   * Smallest eigenvalue of the multiplier Λ = ∂f/∂C rescaled by D = diag(standard errors of the
+   * C_aa), Λ̃ = DΛD (≥ 0 at a KKT point: dual feasibility).
+   */
   dualMinEigenvalue: number;
-  /** tr(ΛC)/(‖Λ‖·‖C‖) (0 at a KKT point: the multiplier acts only on the binding directions). */
+  /**
+   * Complementary slackness Λ C = 0: the gradient along the face of C's rank (C = L L′, Λ L = 0),
+   * as a Newton decrement √(g′ I⁺ g) in the coordinates of L (0 at a KKT point).
+   */
   complementarity: number;
+  /** Smallest eigenvalue of C̃ = D⁻¹CD⁻¹ over max(1, ‖C̃‖) (≥ 0: primal feasibility). */
+  primalMinEigenvalue?: number;
+  /** Bound every measure must meet. */
+  tolerance?: number;
+  /** All four conditions hold within the tolerance; when false the fit did not converge. */
+  satisfied?: boolean;
 }
 
 export interface CoefficientEstimate {

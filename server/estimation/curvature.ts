@@ -1,19 +1,12 @@
 /**
- * Convexity in prices: checking it, and imposing it by a Cholesky reparameterisation C = L L'
- * (Wiley, Schmidt & Bramble 1973; Lau 1978) of the block of parameters that decides it, solved
- * as nonlinear SUR with ml-levenberg-marquardt (docs/profit-functions.md §5, §7).
- *
- * With Σ̂ fixed the SUR objective in the structural parameters θ is the quadratic
- *   (y − X S θ)'(Σ̂⁻¹ ⊗ I)(y − X S θ) = ‖U (θ − θ̂_Σ)‖² + const,   U'U = S'X'(Σ̂⁻¹⊗I)X S,
- * where θ̂_Σ is the (symmetry-restricted) GLS estimate for that Σ̂. So each Σ̂ step minimises
- * ‖U(θ(ψ) − θ̂_Σ)‖² over ψ (the same objective as the whitened stacked residuals, on K instead of
- * n·T points); Σ̂ is then re-estimated from the residuals and the two steps alternate until the
- * relative change of θ is below the tolerance, converging to the Gaussian ML estimate under
- * convexity.
+ * Convexity in prices: checking it, and imposing it by maximum likelihood subject to a positive
+ * semidefinite curvature block C (docs/profit-functions.md, "Imposing convexity"). C ⪰ 0 is the
+ * condition that B = L L′ for some L (Lau 1978; Diewert & Wales 1987); the optimum is often on the
+ * boundary, with C of reduced rank, and the solver below reaches it there too and checks the
+ * Karush–Kuhn–Tucker conditions at the end.
  */
 import type { OptimalityCheck } from '../../shared/estimation-types.js';
-import { choleskyLower, jacobiEigenvalues, matMul, pinvSymmetric, solve, symmetricEigen, transpose, zeros, type Mat } from './linalg.js';
-import { fitLeastSquares } from './lm.js';
+import { jacobiEigenvalues, matMul, pinvSymmetric, symmetricEigen, zeros, type Mat } from './linalg.js';
 import type { CurvatureBlock } from './model.js';
 import { systemCrossProducts, type SurEquationInput } from './sur.js';
 
@@ -40,12 +33,21 @@ export function leadingBlock(h: Mat): Mat {
   return h.slice(0, k).map((row) => row.slice(0, k));
 }
 
+/**
+ * Whether the first-order (Karush–Kuhn–Tucker) conditions hold: every measure within this, in
+ * log-likelihood units per standard error (see OptimalityCheck). A measure of 1e-6 means that a
+ * move of one standard error in the worst direction changes the log-likelihood by about 1e-6 at
+ * first order, so what a further step could gain is of order 1e-12.
+ */
+export const KKT_TOLERANCE = 1e-6;
+
 export interface ImposedFit {
   theta: number[];
   covariance: Mat;
   /** Σ̂ used in the last step (divisor T). */
   sigmaUsed: Mat;
   iterations: number;
+  /** The iterations settled and the optimality conditions hold (`optimality.satisfied`). */
   converged: boolean;
   /** True when C ends on the boundary (a zero eigenvalue): the constraint binds. */
   binding: boolean;
@@ -53,7 +55,10 @@ export interface ImposedFit {
   rank: number;
   /** Rank of the coefficient covariance (below the parameter count on the boundary). */
   covarianceRank: number;
-  /** First-order (KKT) conditions of min ‖U(θ − θ̂)‖² s.t. C ⪰ 0 at the last Σ̂. */
+  /**
+   * First-order (KKT) conditions of the constrained maximum likelihood problem at the returned θ:
+   * min f(θ) = −ℓ(θ) (Σ̂ concentrated out) subject to C(θ) ⪰ 0.
+   */
   optimality: OptimalityCheck;
 }
 
@@ -72,6 +77,23 @@ export interface ImposeArgs {
   tolerance: number;
 }
 
+/** One entry (row, column, value) of a basis matrix of C. */
+type Entry = [number, number, number];
+
+/**
+ * Maximum likelihood of the netput system subject to C ⪰ 0 (docs/profit-functions.md, "Imposing
+ * convexity").
+ *
+ * With Σ̂ fixed the Gaussian objective in θ is the quadratic (θ − θ̂_Σ)'A(θ − θ̂_Σ) + const, with
+ * A = S'X'(Σ̂⁻¹⊗I)X S and θ̂_Σ the symmetry-restricted GLS estimate. The parameters outside C are
+ * concentrated out (Schur complement), leaving a convex quadratic in C over the cone of positive
+ * semidefinite matrices; it is solved to its global minimum by a log-barrier (interior point)
+ * method and then exactly on the face of the rank it identifies (the reduced-rank form: C = V S V′
+ * with V the n−1 × r range and S ⪰ 0). Σ̂ is then re-estimated from the residuals; each of the
+ * two steps raises the likelihood, and the alternation stops when θ settles and the KKT
+ * conditions of the whole problem hold at the final θ. Every linear solve is guarded
+ * (pseudo-inverse when a matrix is singular), so a rank-deficient optimum cannot stop it.
+ */
 export function imposeConvexity(args: ImposeArgs): ImposedFit {
   const { equations, slots, parameterCount: k, block } = args;
   const nEq = equations.length;
@@ -80,10 +102,26 @@ export function imposeConvexity(args: ImposeArgs): ImposedFit {
   const bi = block.indices;
   const nb = bi.length;
   const size = block.size;
-  const inBlock = new Map<number, number>(bi.map((g, e) => [g, e]));
+  const inBlock = new Set<number>(bi);
   const nonBlock = [...Array(k).keys()].filter((j) => !inBlock.has(j));
+  // C = Σ_e c_e E_e with c = θ[bi]: the basis matrices, sparse.
+  const basis: Entry[][] = bi.map((j) => {
+    const th = new Array<number>(k).fill(0);
+    th[j] = 1;
+    const E = block.toMatrix(th);
+    const out: Entry[] = [];
+    for (let a = 0; a < size; a++) for (let c = 0; c < size; c++) if (E[a]![c]! !== 0) out.push([a, c, E[a]![c]!]);
+    return out;
+  });
+  const matrixOf = (c: ArrayLike<number>): Mat => {
+    const C = zeros(size, size);
+    basis.forEach((entries, e) => {
+      for (const [a, b, v] of entries) C[a]![b]! += v * c[e]!;
+    });
+    return C;
+  };
 
-  const thetaGls = (sigmaInv: Mat): { A: Mat; b: number[] } => {
+  const gls = (sigmaInv: Mat): { A: Mat; b: number[] } => {
     const A = zeros(k, k);
     const b = new Array<number>(k).fill(0);
     for (let i = 0; i < nEq; i++)
@@ -121,177 +159,164 @@ export function imposeConvexity(args: ImposeArgs): ImposedFit {
     return S;
   };
 
-  // L patterns: the active columns J of a lower-triangular L, entries (i, j) with j ∈ J, i ≥ j.
-  // All columns give C = LL' of full rank; fewer columns give the boundary of rank |J| without
-  // the vanishing gradients a full L has there.
-  type Pattern = [number, number][];
-  const patternFor = (cols: number[]): Pattern => cols.flatMap((j) => Array.from({ length: size - j }, (_, d) => [j + d, j] as [number, number]));
-  const lOf = (pattern: Pattern, v: ArrayLike<number>): Mat => {
-    const L = zeros(size, size);
-    pattern.forEach(([a, c], e) => (L[a]![c] = v[e]!));
-    return L;
-  };
-  const blockOf = (pattern: Pattern, v: ArrayLike<number>): number[] => {
-    const L = lOf(pattern, v);
-    return block.fromMatrix(matMul(L, transpose(L)));
-  };
-  /** ∂θ_block/∂v (nb × |pattern|). */
-  const blockJac = (pattern: Pattern, v: ArrayLike<number>): Mat => {
-    const L = lOf(pattern, v);
-    const cols = pattern.map(([a, c]) => {
-      const dC = zeros(size, size);
-      for (let j = 0; j < size; j++) {
-        dC[a]![j]! += L[j]![c]!;
-        dC[j]![a]! += L[j]![c]!;
-      }
-      return block.fromMatrix(dC);
-    });
-    return Array.from({ length: nb }, (_, r) => cols.map((col) => col[r]!));
-  };
-  /** Semidefinite Cholesky without pivoting: columns with a pivot below tol are dropped. */
-  const psdCholesky = (C: Mat, tol: number): { L: Mat; cols: number[] } => {
-    const L = zeros(size, size);
-    const cols: number[] = [];
-    const scale = Math.max(...C.map((r, i) => Math.abs(r[i]!)), 1e-300);
-    for (let j = 0; j < size; j++) {
-      let d = C[j]![j]!;
-      for (let c = 0; c < j; c++) d -= L[j]![c]! ** 2;
-      if (d <= tol * scale) continue;
-      const ljj = Math.sqrt(d);
-      L[j]![j] = ljj;
-      for (let i = j + 1; i < size; i++) {
-        let acc = C[i]![j]!;
-        for (let c = 0; c < j; c++) acc -= L[i]![c]! * L[j]![c]!;
-        L[i]![j] = acc / ljj;
-      }
-      cols.push(j);
+  /** One Σ̂ step: the global minimum of the quadratic over C ⪰ 0 and the implied θ. */
+  let warm: Mat | null = null;
+  const step = (sigma: Mat): { A: Mat; theta: number[]; rank: number } => {
+    const { A, b } = gls(inverseSymmetric(sigma));
+    const thetaHat = solveSymmetric(A, b);
+    // Concentrate the parameters outside C out of the quadratic (Schur complement).
+    const Ann = nonBlock.map((a) => nonBlock.map((c) => A[a]![c]!));
+    const AnnInv = inverseSymmetric(Ann);
+    const AnnInvAnb = nonBlock.map((_, x) => bi.map((c) => nonBlock.reduce((acc, n, y) => acc + AnnInv[x]![y]! * A[n]![c]!, 0)));
+    const M = bi.map((a) => bi.map((c, e) => A[a]![c]! - nonBlock.reduce((acc, n, x) => acc + A[a]![n]! * AnnInvAnb[x]![e]!, 0)));
+    const thetaHatB = bi.map((j) => thetaHat[j]!);
+    // Warm start: follow the previous solution's face by Newton on C = L L′ (L of its rank); keep
+    // it when the KKT conditions of this step's problem hold, else solve from scratch.
+    let sol: { c: number[]; rank: number } | null = null;
+    if (warm) {
+      const face = faceNewton(M, thetaHatB, warm, size, block.fromMatrix);
+      if (face?.settled && coneKkt(M, thetaHatB, face.c, basis, size, matrixOf, block.fromMatrix)) sol = face;
     }
-    return { L, cols };
-  };
-  const truncate = (C: Mat, rank: number, floor: number): Mat => {
-    const { values, vectors } = symmetricEigen(C);
-    const kept = values.map((v, i) => (i >= size - rank ? Math.max(v, floor) : 0));
-    return Array.from({ length: size }, (_, a) =>
-      Array.from({ length: size }, (_, c) => kept.reduce((acc, lam, l) => acc + vectors[a]![l]! * lam * vectors[c]![l]!, 0)),
-    );
+    sol ??= coneQuadratic(M, thetaHatB, basis, size, matrixOf, block.fromMatrix);
+    warm = factorOf(matrixOf(sol.c), sol.rank);
+    const next = thetaHat.slice();
+    bi.forEach((j, e) => (next[j] = sol.c[e]!));
+    nonBlock.forEach((j, x) => {
+      let adj = 0;
+      for (let e = 0; e < nb; e++) adj += AnnInvAnb[x]![e]! * (sol.c[e]! - thetaHatB[e]!);
+      next[j] = thetaHat[j]! - adj;
+    });
+    return { A, theta: next, rank: sol.rank };
   };
 
-  /** min over C ⪰ 0 of (θ_b(C) − θ̂_b)' M (θ_b(C) − θ̂_b), by LM on the L entries, several patterns. */
-  const solveBlock = (M: Mat, thetaHatB: number[], startC: Mat): { thetaB: number[]; pattern: Pattern; v: number[] } => {
-    const Lm = choleskyLower(M);
-    if (!Lm) throw new Error('curvature: the concentrated normal matrix is not positive definite');
-    const U = transpose(Lm);
-    const target = matVecDense(U, thetaHatB);
-    const objective = (tb: number[]): number => {
-      const r = matVecDense(U, tb);
-      let acc = 0;
-      for (let i = 0; i < r.length; i++) acc += (r[i]! - target[i]!) ** 2;
-      return acc;
+  /** KKT conditions of min −ℓ(θ) s.t. C ⪰ 0, with Σ̂ = Σ(θ) concentrated out. */
+  const optimalityAt = (theta: number[], sigmaTheta: Mat): OptimalityCheck => {
+    // ∇(−ℓ) = Σ_t ∂e_t'Σ⁻¹e_t = Aθ − b at Σ = Σ(θ) (half the gradient of the GLS objective).
+    const { A, b } = gls(inverseSymmetric(sigmaTheta));
+    const g = A.map((row, j) => row.reduce((s, v, c) => s + v * theta[c]!, 0) - b[j]!);
+    const Ainv = inverseSymmetric(A);
+    let stationarity = 0;
+    for (const j of nonBlock) stationarity = Math.max(stationarity, Math.abs(g[j]!) * Math.sqrt(Math.max(Ainv[j]![j]!, 0)));
+    const gb = bi.map((j) => g[j]!);
+    const Lam = multiplierOf(gb, size, block.fromMatrix);
+    // Standard-error units: D = diag(SE of C_aa), Λ̃ = DΛD, C̃ = D⁻¹CD⁻¹.
+    const Vb = bi.map((j) => bi.map((l) => Ainv[j]![l]!));
+    const D = seDiagonal(Vb, basis, size);
+    const C = block.toMatrix(theta);
+    const Lt = Lam.map((row, a) => row.map((v, c) => v * D[a]! * D[c]!));
+    const Ct = C.map((row, a) => row.map((v, c) => v / (D[a]! * D[c]!)));
+    const dual = size ? jacobiEigenvalues(Lt)[0]! : 0;
+    const primalEig = size ? jacobiEigenvalues(Ct) : [];
+    const normC = Math.sqrt(Ct.reduce((s, row) => s + row.reduce((t, v) => t + v * v, 0), 0));
+    const primal = size ? primalEig[0]! / Math.max(1, normC) : 0;
+    // Complementarity Λ C = 0 ⟺ Λ L = 0 for C = L L′: the gradient along the face of C's rank,
+    // as a Newton decrement √(g_L′ I_L⁺ g_L) with I_L = J′ M J the information of L (M = the
+    // Schur complement of A for C's coordinates). Invariant to the units of C.
+    const eigC = size ? jacobiEigenvalues(C) : [];
+    const r = eigC.filter((v) => v > 1e-9 * Math.max(...eigC.map(Math.abs))).length;
+    let complementarity = 0;
+    if (r > 0) {
+      const L = factorOf(C, r);
+      const J: number[][] = [];
+      for (let a = 0; a < size; a++)
+        for (let l = 0; l < r; l++) {
+          const dC = zeros(size, size);
+          for (let j = 0; j < size; j++) {
+            dC[a]![j]! += L[j]![l]!;
+            dC[j]![a]! += L[j]![l]!;
+          }
+          J.push(block.fromMatrix(dC));
+        }
+      const Mb = inverseSymmetric(Vb);
+      const gL = J.map((col) => col.reduce((s, v, e) => s + v * gb[e]!, 0));
+      const MJ = J.map((col) => Mb.map((row) => row.reduce((s, v, e) => s + v * col[e]!, 0)));
+      const I = J.map((colA) => MJ.map((colB) => colA.reduce((s, v, e) => s + v * colB[e]!, 0)));
+      const x = solveSymmetric(I, gL);
+      complementarity = Math.sqrt(Math.max(0, gL.reduce((s, v, p) => s + v * x[p]!, 0)));
+    }
+    const tol = KKT_TOLERANCE;
+    return {
+      stationarity,
+      dualMinEigenvalue: dual,
+      complementarity,
+      primalMinEigenvalue: primal,
+      tolerance: tol,
+      satisfied: [stationarity, dual, complementarity, primal].every(Number.isFinite) && stationarity <= tol && dual >= -tol && complementarity <= tol && primal >= -tol,
     };
-    const run = (pattern: Pattern, start: number[]): { v: number[]; obj: number } => {
-      const model = (v: number[]): Float64Array => matVecDense(U, blockOf(pattern, v));
-      const jac = (v: number[]): Mat => matMul(U, blockJac(pattern, v));
-      let best = start;
-      let bestObj = objective(blockOf(pattern, start));
-      for (let round = 0; round < 8; round++) {
-        const J0 = jac(best);
-        const scales = pattern.map((_, j) => {
-          let ss = 0;
-          for (const row of J0) ss += row[j]! ** 2;
-          return ss > 0 ? 1 / Math.sqrt(ss) : 1;
-        });
-        const fit = fitLeastSquares({ target, model, jacobian: jac }, best, { damping: 1e-2, maxIterations: 200, errorTolerance: 0, scales });
-        if (fit.rss < bestObj * (1 - 1e-13)) {
-          best = fit.parameters;
-          bestObj = fit.rss;
-        } else break;
-      }
-      return { v: best, obj: bestObj };
-    };
-    const { values } = symmetricEigen(startC);
-    const maxAbs = Math.max(...values.map(Math.abs), 1e-300);
-    const candidates: { pattern: Pattern; v: number[]; obj: number }[] = [];
-    const tryFrom = (C: Mat, tol: number): void => {
-      const { L, cols } = psdCholesky(C, tol);
-      const pattern = patternFor(cols);
-      const r = run(
-        pattern,
-        pattern.map(([a, c]) => L[a]![c]!),
-      );
-      candidates.push({ pattern, ...r });
-    };
-    // full rank from the clipped start, then the ranks suggested by the start and by that fit
-    tryFrom(truncate(startC, size, 1e-6 * maxAbs), 0);
-    const ranks = new Set<number>();
-    ranks.add(values.filter((v) => v > 1e-8 * maxAbs).length);
-    const fullC = matMul(lOf(candidates[0]!.pattern, candidates[0]!.v), transpose(lOf(candidates[0]!.pattern, candidates[0]!.v)));
-    const fv = symmetricEigen(fullC).values;
-    const fmax = Math.max(...fv.map(Math.abs), 1e-300);
-    ranks.add(fv.filter((v) => v > 1e-4 * fmax).length);
-    for (const r of ranks) if (r < size && r > 0) tryFrom(truncate(r === ranks.values().next().value ? startC : fullC, r, 0), 1e-10);
-    if (ranks.has(0)) candidates.push({ pattern: [], v: [], obj: objective(blockOf([], [])) });
-    const best = candidates.reduce((a, c) => (c.obj < a.obj ? c : a));
-    return { thetaB: blockOf(best.pattern, best.v), pattern: best.pattern, v: best.v };
   };
 
   let sigma = args.sigma0;
   let theta = args.theta0.slice();
-  let C = block.toMatrix(theta);
   let iterations = 0;
   let converged = false;
-  let last: { A: Mat; thetaHat: number[]; pattern: Pattern; v: number[] } | null = null;
+  let optimality: OptimalityCheck | null = null;
+  let last: { A: Mat; rank: number } | null = null;
   while (iterations < args.maxIterations) {
     iterations++;
-    const { A, b } = thetaGls(invertSym(sigma));
-    const thetaHat = solve(A, b);
-    // Concentrate the parameters outside C out of the quadratic objective (Schur complement).
-    const Ann = nonBlock.map((a) => nonBlock.map((c) => A[a]![c]!));
-    const Anb = nonBlock.map((a) => bi.map((c) => A[a]![c]!));
-    const AnnInvAnb = nonBlock.length ? transpose(bi.map((_, e) => solve(Ann, Anb.map((row) => row[e]!)))) : [];
-    const M = bi.map((a) => bi.map((c, e) => A[a]![c]! - nonBlock.reduce((acc, n, x) => acc + A[a]![n]! * AnnInvAnb[x]![e]!, 0)));
-    const thetaHatB = bi.map((j) => thetaHat[j]!);
-    const sol = solveBlock(M, thetaHatB, C);
-    const next = thetaHat.slice();
-    bi.forEach((j, e) => (next[j] = sol.thetaB[e]!));
-    nonBlock.forEach((j, x) => {
-      let adj = 0;
-      for (let e = 0; e < nb; e++) adj += AnnInvAnb[x]![e]! * (sol.thetaB[e]! - thetaHatB[e]!);
-      next[j] = thetaHat[j]! - adj;
-    });
+    const s = step(sigma);
     let num = 0;
     let den = 0;
     for (let j = 0; j < k; j++) {
-      num += (next[j]! - theta[j]!) ** 2;
+      num += (s.theta[j]! - theta[j]!) ** 2;
       den += theta[j]! ** 2;
     }
-    theta = next;
-    C = block.toMatrix(theta);
-    last = { A, thetaHat, pattern: sol.pattern, v: sol.v };
-    if (iterations > 1 && Math.sqrt(num / den) <= args.tolerance) {
-      converged = true;
-      break;
+    theta = s.theta;
+    last = { A: s.A, rank: s.rank };
+    const sigmaNext = residualSigma(theta);
+    if (iterations > 1 && Math.sqrt(num / Math.max(den, 1e-300)) <= args.tolerance) {
+      // θ has settled; finish only where the optimality conditions hold, else keep iterating.
+      optimality = optimalityAt(theta, sigmaNext);
+      if (optimality.satisfied) {
+        converged = true;
+        break;
+      }
     }
-    sigma = residualSigma(theta);
+    if (iterations === args.maxIterations) break;
+    sigma = sigmaNext;
   }
-  const { A, thetaHat, pattern, v } = last!;
-  // Covariance: (J'J)⁻¹ in ψ = (L entries of the pattern, parameters outside C), pseudo-inverse
-  // on the boundary, mapped to θ by the delta method.
-  const Jb = blockJac(pattern, v);
-  const q = pattern.length + nonBlock.length;
-  const G = zeros(k, q);
-  bi.forEach((j, r) => pattern.forEach((_, c) => (G[j]![c] = Jb[r]![c]!)));
-  nonBlock.forEach((j, x) => (G[j]![pattern.length + x] = 1));
-  const JtJ = matMul(transpose(G), matMul(A, G));
-  // Equilibrate before the pseudo-inverse so that its cut-off is not driven by parameter units.
-  const dsc = JtJ.map((row, i) => (row[i]! > 0 ? 1 / Math.sqrt(row[i]!) : 1));
-  const scaled = JtJ.map((row, i) => row.map((val, j) => val * dsc[i]! * dsc[j]!));
-  const { inverse: Vs, rank: covarianceRank } = pinvSymmetric(scaled, 1e-10);
-  const Vpsi = Vs.map((row, i) => row.map((val, j) => val * dsc[i]! * dsc[j]!));
-  const covariance = matMul(G, matMul(Vpsi, transpose(G)));
-  const optimality = kktCheck(A, thetaHat, theta, block, inBlock);
-  const cCheck = checkConvexity(C);
-  const maxEig = Math.max(...cCheck.eigenvalues.map(Math.abs), 0);
-  const rank = cCheck.eigenvalues.filter((val) => val > 1e-6 * maxEig).length;
+  optimality ??= optimalityAt(theta, residualSigma(theta));
+  if (!converged) optimality = optimalityAt(theta, residualSigma(theta));
+  const { A, rank } = last!;
+
+  // Covariance: the inverse information on the face C = L L′, L of size (n−1) × rank (pseudo-
+  // inverse: rotations L → LQ leave C unchanged), mapped to θ by the delta method. In the
+  // interior (full rank) this is A⁻¹, the covariance of the unrestricted ML estimate.
+  let covariance: Mat;
+  let covarianceRank: number;
+  if (rank === size) {
+    covariance = inverseSymmetric(A);
+    covarianceRank = k;
+  } else {
+    const C = block.toMatrix(theta);
+    const { values, vectors } = symmetricEigen(C);
+    const L = zeros(size, rank);
+    for (let c = 0; c < rank; c++) {
+      const col = size - rank + c;
+      const r = Math.sqrt(Math.max(values[col]!, 0));
+      for (let a = 0; a < size; a++) L[a]![c] = vectors[a]![col]! * r;
+    }
+    // ∂c/∂L_ac: dC = E_ac L′ + L E_ca.
+    const q = size * rank + nonBlock.length;
+    const G = zeros(k, q);
+    for (let a = 0; a < size; a++)
+      for (let c = 0; c < rank; c++) {
+        const dC = zeros(size, size);
+        for (let j = 0; j < size; j++) {
+          dC[a]![j]! += L[j]![c]!;
+          dC[j]![a]! += L[j]![c]!;
+        }
+        const dc = block.fromMatrix(dC);
+        bi.forEach((j, e) => (G[j]![a * rank + c] = dc[e]!));
+      }
+    nonBlock.forEach((j, x) => (G[j]![size * rank + x] = 1));
+    const GtAG = matMulT(G, matMul(A, G));
+    const dsc = GtAG.map((row, i) => (row[i]! > 0 ? 1 / Math.sqrt(row[i]!) : 1));
+    const scaled = GtAG.map((row, i) => row.map((val, j) => val * dsc[i]! * dsc[j]!));
+    const pinv = pinvSymmetric(scaled, 1e-10);
+    covarianceRank = pinv.rank;
+    const Vpsi = pinv.inverse.map((row, i) => row.map((val, j) => val * dsc[i]! * dsc[j]!));
+    covariance = matMul(G, matMulT(Vpsi, G));
+  }
   return {
     theta,
     covariance,
@@ -305,67 +330,360 @@ export function imposeConvexity(args: ImposeArgs): ImposedFit {
   };
 }
 
-function kktCheck(A: Mat, thetaHat: number[], theta: number[], block: CurvatureBlock, inBlock: Map<number, number>): OptimalityCheck {
-  const k = theta.length;
-  const diff = theta.map((v, j) => v - thetaHat[j]!);
-  const g = A.map((row) => 2 * row.reduce((s, v, j) => s + v * diff[j]!, 0));
-  const { inverse: Ainv } = pinvSymmetric(A, 1e-14);
-  let stationarity = 0;
-  for (let j = 0; j < k; j++) if (!inBlock.has(j)) stationarity = Math.max(stationarity, Math.abs(g[j]!) * Math.sqrt(Math.max(Ainv[j]![j]!, 0)));
-  const size = block.size;
-  const gb = block.indices.map((j) => g[j]!);
-  const df = (dC: Mat): number => block.fromMatrix(dC).reduce((s, v, e) => s + v * gb[e]!, 0);
-  const Lam = zeros(size, size);
-  for (let a = 0; a < size; a++)
-    for (let c = a; c < size; c++) {
-      const dC = zeros(size, size);
-      dC[a]![c] = 1;
-      dC[c]![a] = 1;
-      // dC = E_ac + E_ca gives df = tr(Λ dC) = 2Λ_ac; for a = c, dC = E_aa gives Λ_aa.
-      const v = a === c ? df(dC) : df(dC) / 2;
-      Lam[a]![c] = v;
-      Lam[c]![a] = v;
-    }
-  const lamEig = jacobiEigenvalues(Lam);
-  const lamMax = Math.max(...lamEig.map(Math.abs), 1e-300);
-  const C = block.toMatrix(theta);
-  let tr = 0;
-  let nl = 0;
-  let nc = 0;
-  for (let a = 0; a < size; a++)
-    for (let c = 0; c < size; c++) {
-      tr += Lam[a]![c]! * C[a]![c]!;
-      nl += Lam[a]![c]! ** 2;
-      nc += C[a]![c]! ** 2;
-    }
-  return {
-    stationarity,
-    dualMinEigenvalue: lamEig[0]! / lamMax,
-    complementarity: nl > 0 && nc > 0 ? tr / Math.sqrt(nl * nc) : 0,
-  };
+/** L (n−1 × r) with L L′ the rank-r part of C (leading eigenvectors × √eigenvalue). */
+function factorOf(C: Mat, r: number): Mat {
+  const size = C.length;
+  const { values, vectors } = symmetricEigen(C);
+  return Array.from({ length: size }, (_, a) =>
+    Array.from({ length: r }, (_, col) => vectors[a]![size - r + col]! * Math.sqrt(Math.max(values[size - r + col]!, 0))),
+  );
 }
 
-function invertSym(s: Mat): Mat {
-  const L = choleskyLower(s);
-  if (!L) throw new Error('curvature: residual covariance is not positive definite');
-  const n = s.length;
+/** q(c) = (c − ĉ)'M(c − ĉ) and its gradient 2M(c − ĉ). */
+function quadratic(M: Mat, chat: number[], c: ArrayLike<number>): { q: number; g: number[] } {
+  const nb = chat.length;
+  const g = new Array<number>(nb);
+  let q = 0;
+  for (let a = 0; a < nb; a++) {
+    let r = 0;
+    for (let b = 0; b < nb; b++) r += M[a]![b]! * (c[b]! - chat[b]!);
+    g[a] = 2 * r;
+    q += (c[a]! - chat[a]!) * r;
+  }
+  return { q, g };
+}
+
+/** The symmetric Λ with tr(Λ dC) = g·c(dC) for every symmetric dC (c = fromMatrix, linear). */
+function multiplierOf(g: number[], size: number, fromMatrix: (C: Mat) => number[]): Mat {
+  const Lam = zeros(size, size);
+  for (let a = 0; a < size; a++)
+    for (let b = a; b < size; b++) {
+      const dC = zeros(size, size);
+      dC[a]![b] = 1;
+      dC[b]![a] = 1;
+      const df = fromMatrix(dC).reduce((s, v, e) => s + v * g[e]!, 0);
+      const v = a === b ? df : df / 2;
+      Lam[a]![b] = v;
+      Lam[b]![a] = v;
+    }
+  return Lam;
+}
+
+/**
+ * The rest of the KKT conditions of min q over C ⪰ 0 at a point that is stationary on its face
+ * (there Λ C = 0 already): the multiplier Λ = ∂q/∂C is positive semidefinite in standard-error
+ * units of C (D from M⁻¹), to 1e-8, and C is.
+ */
+function coneKkt(M: Mat, chat: number[], c: number[], basis: Entry[][], size: number, matrixOf: (c: ArrayLike<number>) => Mat, fromMatrix: (C: Mat) => number[]): boolean {
+  const { g } = quadratic(M, chat, c);
+  const Lam = multiplierOf(g, size, fromMatrix);
+  const D = seDiagonal(inverseSymmetric(M), basis, size);
+  const C = matrixOf(c);
+  const Lt = Lam.map((row, a) => row.map((v, b) => v * D[a]! * D[b]!));
+  const Ct = C.map((row, a) => row.map((v, b) => v / (D[a]! * D[b]!)));
+  const normC = Math.sqrt(Ct.reduce((s, row) => s + row.reduce((t, v) => t + v * v, 0), 0));
+  const tol = 1e-8;
+  return jacobiEigenvalues(Lt)[0]! >= -tol && jacobiEigenvalues(Ct)[0]! >= -tol * Math.max(1, normC);
+}
+
+/** Standard errors of the diagonal entries C_aa, from the covariance V of the block coordinates. */
+function seDiagonal(V: Mat, basis: Entry[][], size: number): number[] {
+  return Array.from({ length: size }, (_, a) => {
+    const w = basis.map((entries) => entries.reduce((s, [r, col, v]) => (r === a && col === a ? s + v : s), 0));
+    let v = 0;
+    for (let e = 0; e < w.length; e++) for (let f = 0; f < w.length; f++) v += w[e]! * V[e]![f]! * w[f]!;
+    return v > 0 ? Math.sqrt(v) : 1;
+  });
+}
+
+/**
+ * min over L (n−1 × r) of q(c(L L′)) by Newton's method with a line search, from L0: the minimum
+ * on the face of rank-r matrices near L0 L0′. The Hessian is 2(J′MJ + Λ ⊗ I) (J = ∂c/∂L); where
+ * it is not positive definite the Gauss–Newton part alone is used. Singular systems (rotations
+ * L → LQ leave C unchanged) are solved by the pseudo-inverse.
+ */
+function faceNewton(M: Mat, chat: number[], L0: Mat, size: number, fromMatrix: (C: Mat) => number[]): { c: number[]; rank: number; settled: boolean } | null {
+  const r = L0[0]?.length ?? 0;
+  const cOf = (L: Mat): number[] => {
+    const C = zeros(size, size);
+    for (let a = 0; a < size; a++)
+      for (let b = 0; b < size; b++) {
+        let s = 0;
+        for (let l = 0; l < r; l++) s += L[a]![l]! * L[b]![l]!;
+        C[a]![b] = s;
+      }
+    return fromMatrix(C);
+  };
+  let L = L0.map((row) => row.slice());
+  let c = cOf(L);
+  if (r === 0) return { c, rank: 0, settled: true };
+  let settled = false;
+  for (let it = 0; it < 30; it++) {
+    const { q, g: gc } = quadratic(M, chat, c);
+    // J: ∂c/∂L_{a,l} from dC = E_al L′ + L E_la.
+    const J: number[][] = [];
+    for (let a = 0; a < size; a++)
+      for (let l = 0; l < r; l++) {
+        const dC = zeros(size, size);
+        for (let j = 0; j < size; j++) {
+          dC[a]![j]! += L[j]![l]!;
+          dC[j]![a]! += L[j]![l]!;
+        }
+        J.push(fromMatrix(dC));
+      }
+    const grad = J.map((col) => col.reduce((s, v, e) => s + v * gc[e]!, 0));
+    const MJ = J.map((col) => M.map((row) => row.reduce((s, v, e) => s + v * col[e]!, 0)));
+    const gn = J.map((colA) => MJ.map((colB) => 2 * colA.reduce((s, v, e) => s + v * colB[e]!, 0)));
+    const Lam = multiplierOf(gc, size, fromMatrix);
+    const H = gn.map((row, p) => row.map((v, p2) => (p % r === p2 % r ? v + 2 * Lam[Math.floor(p / r)]![Math.floor(p2 / r)]! : v)));
+    let d = solveSymmetric(H, grad).map((v) => -v);
+    let slope = grad.reduce((s, v, p) => s + v * d[p]!, 0);
+    if (!(slope < 0)) {
+      d = solveSymmetric(gn, grad).map((v) => -v);
+      slope = grad.reduce((s, v, p) => s + v * d[p]!, 0);
+    }
+    // Newton decrement: what a further step could still lower q by (≈ −slope/2).
+    if (-slope <= 1e-14 * (1 + q)) settled = true;
+    if (!(slope < 0) || -slope <= 1e-28 * (1 + q)) break;
+    // Armijo line search; near the minimum the predicted decrease is below the rounding of q,
+    // so a step that does not raise q beyond that rounding is taken (the gradient still shrinks).
+    const rounding = 1e-15 * (1 + Math.abs(q));
+    let t = 1;
+    let moved = false;
+    for (let ls = 0; ls < 40; ls++, t /= 2) {
+      const Ln = L.map((row, a) => row.map((v, l) => v + t * d[a * r + l]!));
+      const cn = cOf(Ln);
+      if (quadratic(M, chat, cn).q <= q + 1e-4 * t * slope + (-slope < 1e3 * rounding ? rounding : 0)) {
+        L = Ln;
+        c = cn;
+        moved = true;
+        break;
+      }
+    }
+    if (!moved) break;
+  }
+  return c.every(Number.isFinite) ? { c, rank: r, settled } : null;
+}
+
+/**
+ * min over C ⪰ 0 of q(c) = (c − ĉ)'M(c − ĉ), c the coordinates of C in `basis` (M positive
+ * definite). Log-barrier method: Newton on q(c) − μ·ln det C(c) for μ decreasing tenfold until
+ * the duality gap bound μ·(n−1) is below 1e-10 (Boyd & Vandenberghe, Convex Optimization, §11.3);
+ * then the exact minimum on each face C = V_r S V_r′ (V_r the r leading eigenvectors of the
+ * barrier solution, S ⪰ 0 solved by least squares), keeping the best feasible point. The barrier
+ * point is itself feasible, so the result is never worse than it.
+ */
+function coneQuadratic(
+  M: Mat,
+  chat: number[],
+  basis: Entry[][],
+  size: number,
+  matrixOf: (c: ArrayLike<number>) => Mat,
+  fromMatrix: (C: Mat) => number[],
+): { c: number[]; rank: number } {
+  const nb = chat.length;
+  if (size === 0) return { c: [], rank: 0 };
+  const q = (c: ArrayLike<number>): number => {
+    let s = 0;
+    for (let a = 0; a < nb; a++) {
+      let r = 0;
+      for (let b = 0; b < nb; b++) r += M[a]![b]! * (c[b]! - chat[b]!);
+      s += (c[a]! - chat[a]!) * r;
+    }
+    return s;
+  };
+  // Start: the unconstrained C with its eigenvalues made positive.
+  const start = symmetricEigen(matrixOf(chat));
+  const scale = Math.max(...start.values.map(Math.abs)) || 1;
+  const C0 = fromEigen(start.vectors, start.values.map((v) => Math.max(Math.abs(v), 1e-2 * scale)));
+  let c = fromMatrix(C0);
+  let mu = Math.max(q(c), 1e-8) / size;
+  const gapTolerance = 1e-10;
+  for (let stage = 0; stage < 40; stage++) {
+    for (let it = 0; it < 100; it++) {
+      const Lc = choleskyOf(matrixOf(c));
+      if (!Lc) break;
+      const W = inverseFromCholesky(Lc);
+      const grad = new Array<number>(nb);
+      const H = zeros(nb, nb);
+      for (let e = 0; e < nb; e++) {
+        let r = 0;
+        for (let f = 0; f < nb; f++) r += M[e]![f]! * (c[f]! - chat[f]!);
+        let t = 0;
+        for (const [a, b, v] of basis[e]!) t += v * W[b]![a]!;
+        grad[e] = 2 * r - mu * t;
+        for (let f = e; f < nb; f++) {
+          let h = 0;
+          for (const [a, b, v] of basis[e]!) for (const [a2, b2, v2] of basis[f]!) h += v * v2 * W[b]![a2]! * W[b2]![a]!;
+          H[e]![f] = 2 * M[e]![f]! + mu * h;
+          H[f]![e] = H[e]![f]!;
+        }
+      }
+      const d = solveSymmetric(H, grad).map((v) => -v);
+      const slope = grad.reduce((s, g, e) => s + g * d[e]!, 0);
+      if (!(slope < 0) || -slope / 2 <= 1e-13) break;
+      const phi = (cc: number[], L: Mat): number => q(cc) - 2 * mu * L.reduce((s, row, i) => s + Math.log(row[i]!), 0);
+      const phi0 = phi(c, Lc);
+      let t = 1;
+      let moved = false;
+      for (let ls = 0; ls < 60; ls++, t /= 2) {
+        const cn = c.map((v, e) => v + t * d[e]!);
+        const Ln = choleskyOf(matrixOf(cn));
+        if (Ln && phi(cn, Ln) <= phi0 + 0.25 * t * slope) {
+          c = cn;
+          moved = true;
+          break;
+        }
+      }
+      if (!moved) break;
+    }
+    if (mu * size <= gapTolerance) break;
+    mu /= 10;
+  }
+  // Faces: C = V_r S V_r′ for each rank r, S by least squares; keep the best feasible point.
+  const { values, vectors } = symmetricEigen(matrixOf(c));
+  const maxEig = Math.max(...values, 0);
+  let best = { c, rank: values.filter((v) => v > 1e-9 * maxEig).length, q: q(c) };
+  for (let r = 0; r <= size; r++) {
+    const cols = Array.from({ length: r }, (_, i) => size - r + i);
+    const pairs: [number, number][] = [];
+    for (let x = 0; x < r; x++) for (let y = x; y < r; y++) pairs.push([x, y]);
+    const F = pairs.map(([x, y]) => {
+      const C = zeros(size, size);
+      for (let a = 0; a < size; a++)
+        for (let b = 0; b < size; b++) {
+          const va = vectors[a]!;
+          const vb = vectors[b]!;
+          C[a]![b] = va[cols[x]!]! * vb[cols[y]!]! + (x === y ? 0 : va[cols[y]!]! * vb[cols[x]!]!);
+        }
+      return fromMatrix(C);
+    });
+    let s: number[] = [];
+    if (pairs.length) {
+      const MF = F.map((col) => M.map((row) => row.reduce((acc, v, b) => acc + v * col[b]!, 0)));
+      const N = F.map((colA) => MF.map((colB) => colA.reduce((acc, v, b) => acc + v * colB[b]!, 0)));
+      const rhs = MF.map((col) => col.reduce((acc, v, b) => acc + v * chat[b]!, 0));
+      s = solveSymmetric(N, rhs);
+    }
+    const S = zeros(r, r);
+    pairs.forEach(([x, y], p) => {
+      S[x]![y] = s[p]!;
+      S[y]![x] = s[p]!;
+    });
+    const sEig = r ? jacobiEigenvalues(S) : [];
+    if (r && !(sEig[0]! >= -1e-12 * Math.max(...sEig.map(Math.abs)))) continue;
+    const cc = new Array<number>(nb).fill(0);
+    F.forEach((col, p) => col.forEach((v, e) => (cc[e]! += v * s[p]!)));
+    const qq = q(cc);
+    if (!Number.isFinite(qq)) continue;
+    // Prefer the lower rank when it is as good to rounding.
+    if (qq < best.q - 1e-12 * (1 + Math.abs(best.q)) || (r < best.rank && qq <= best.q + 1e-12 * (1 + Math.abs(best.q)))) best = { c: cc, rank: r, q: qq };
+  }
+  return { c: best.c, rank: best.rank };
+}
+
+function fromEigen(vectors: Mat, values: number[]): Mat {
+  const n = values.length;
+  const out = zeros(n, n);
+  for (let a = 0; a < n; a++)
+    for (let b = 0; b < n; b++) {
+      let s = 0;
+      for (let l = 0; l < n; l++) s += vectors[a]![l]! * values[l]! * vectors[b]![l]!;
+      out[a]![b] = s;
+    }
+  return out;
+}
+
+/** Lower Cholesky factor, or null when the matrix is not (numerically) positive definite. */
+function choleskyOf(a: Mat): Mat | null {
+  const n = a.length;
+  const L = zeros(n, n);
+  for (let j = 0; j < n; j++) {
+    let d = a[j]![j]!;
+    for (let c = 0; c < j; c++) d -= L[j]![c]! ** 2;
+    if (!(d > 0)) return null;
+    const ljj = Math.sqrt(d);
+    L[j]![j] = ljj;
+    for (let i = j + 1; i < n; i++) {
+      let s = 0.5 * (a[i]![j]! + a[j]![i]!);
+      for (let c = 0; c < j; c++) s -= L[i]![c]! * L[j]![c]!;
+      L[i]![j] = s / ljj;
+    }
+  }
+  return L;
+}
+
+function inverseFromCholesky(L: Mat): Mat {
+  const n = L.length;
   const out = zeros(n, n);
   for (let j = 0; j < n; j++) {
     const e = new Array<number>(n).fill(0);
     e[j] = 1;
-    const col = solve(s, e);
-    for (let i = 0; i < n; i++) out[i]![j] = col[i]!;
+    const x = choleskySolve(L, e);
+    for (let i = 0; i < n; i++) out[i]![j] = x[i]!;
   }
   return out;
 }
 
-function matVecDense(a: Mat, x: ArrayLike<number>): Float64Array {
-  const out = new Float64Array(a.length);
-  for (let i = 0; i < a.length; i++) {
-    const row = a[i]!;
-    let s = 0;
-    for (let j = 0; j < row.length; j++) s += row[j]! * x[j]!;
-    out[i] = s;
+function choleskySolve(L: Mat, b: ArrayLike<number>): number[] {
+  const n = L.length;
+  const y = new Array<number>(n);
+  for (let i = 0; i < n; i++) {
+    let s = b[i]!;
+    for (let c = 0; c < i; c++) s -= L[i]![c]! * y[c]!;
+    y[i] = s / L[i]![i]!;
   }
-  return out;
+  for (let i = n - 1; i >= 0; i--) {
+    let s = y[i]!;
+    for (let c = i + 1; c < n; c++) s -= L[c]![i]! * y[c]!;
+    y[i] = s / L[i]![i]!;
+  }
+  return y;
+}
+
+/**
+ * Solve A x = b for a symmetric positive semidefinite A, guarded: Cholesky of the equilibrated
+ * matrix when it is well conditioned, otherwise the minimum-norm solution by the pseudo-inverse.
+ * Never throws on a singular A.
+ */
+function solveSymmetric(a: Mat, b: ArrayLike<number>): number[] {
+  const n = a.length;
+  if (n === 0) return [];
+  const d = a.map((row, i) => (row[i]! > 0 && Number.isFinite(row[i]!) ? 1 / Math.sqrt(row[i]!) : 1));
+  const s = a.map((row, i) => row.map((v, j) => v * d[i]! * d[j]!));
+  const bs = d.map((di, i) => di * b[i]!);
+  const L = choleskyOf(s);
+  let x: number[];
+  if (L && wellConditioned(L)) x = choleskySolve(L, bs);
+  else {
+    const { inverse } = pinvSymmetric(s, 1e-13);
+    x = inverse.map((row) => row.reduce((acc, v, j) => acc + v * bs[j]!, 0));
+  }
+  return x.map((v, i) => v * d[i]!);
+}
+
+/** Inverse of a symmetric positive semidefinite matrix, guarded like solveSymmetric. */
+function inverseSymmetric(a: Mat): Mat {
+  const n = a.length;
+  if (n === 0) return [];
+  const d = a.map((row, i) => (row[i]! > 0 && Number.isFinite(row[i]!) ? 1 / Math.sqrt(row[i]!) : 1));
+  const s = a.map((row, i) => row.map((v, j) => v * d[i]! * d[j]!));
+  const L = choleskyOf(s);
+  const inv = L && wellConditioned(L) ? inverseFromCholesky(L) : pinvSymmetric(s, 1e-13).inverse;
+  return inv.map((row, i) => row.map((v, j) => v * d[i]! * d[j]!));
+}
+
+function wellConditioned(L: Mat): boolean {
+  let lo = Infinity;
+  let hi = 0;
+  L.forEach((row, i) => {
+    lo = Math.min(lo, row[i]!);
+    hi = Math.max(hi, row[i]!);
+  });
+  return lo > 1e-7 * hi;
+}
+
+/** A · Bᵀ. */
+function matMulT(a: Mat, b: Mat): Mat {
+  return a.map((row) => b.map((rowB) => row.reduce((s, v, j) => s + v * rowB[j]!, 0)));
 }

@@ -200,7 +200,12 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
     iterations = imposed.iterations;
     converged = imposed.converged;
     curvatureExtra = { binding: imposed.binding, iterations: imposed.iterations, converged: imposed.converged, optimality: imposed.optimality };
-    if (!imposed.converged) warnings.push(`the convexity-constrained fit did not converge in ${maxIterations} iterations`);
+    if (!imposed.converged)
+      warnings.push(
+        imposed.optimality.satisfied === false
+          ? `the convexity-constrained fit did not converge: after ${imposed.iterations} iterations its optimality (Karush–Kuhn–Tucker) conditions do not hold, so the estimates are not the constrained maximum`
+          : `the convexity-constrained fit did not converge in ${maxIterations} iterations`,
+      );
     if (imposed.binding) warnings.push('convexity binds: the constrained price Hessian is singular (estimates on the boundary; their standard errors are conditional on it)');
     if (!block.global) warnings.push('for the generalized Leontief form convexity is imposed at the sample-mean prices only');
   }

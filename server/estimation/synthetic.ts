@@ -198,3 +198,82 @@ export function datasetToCsv(ds: NetputDataset): string {
   }
   return lines.join('\n') + '\n';
 }
+
+export interface RankDeficientSpec {
+  /** Items, the last one the numeraire of the true technology; mean prices and quantities. */
+  items: SyntheticItem[];
+  /** Columns of the true factor F (B = F F′, (n−1)×r): r < n−1 makes the true B singular. */
+  factor: Mat;
+  /** Observations (seasons of one farm, one per year). */
+  seasons: number;
+  firstSeason: number;
+  /** Log price standard deviation (default 0.25). */
+  priceSd?: number;
+  /** Residual standard deviation as a share of |mean netput| (default 0.05). */
+  noise?: number;
+  /** Quantity change per season as a share of the mean (default 0: no trend in the truth). */
+  trendShare?: number;
+  seed: number;
+}
+
+/**
+ * One farm's netput history from a normalized quadratic technology whose price Hessian B = F F′
+ * has rank below n − 1 (a technology on the boundary of convexity). With sampling noise the
+ * unrestricted estimate of B is then usually not positive semidefinite and the convexity-
+ * constrained optimum is rank-deficient: the case the constrained fit must handle
+ * (docs/profit-functions.md §"Imposing convexity"). Invented data, for tests only.
+ */
+export function generateRankDeficientPanel(spec: RankDeficientSpec): NetputDataset {
+  const rng = new SeededRandom(spec.seed);
+  const items = spec.items;
+  const n = items.length;
+  const nn = n - 1;
+  const F = spec.factor;
+  const B: Mat = Array.from({ length: nn }, (_, i) => Array.from({ length: nn }, (_, j) => F[i]!.reduce((s, f, c) => s + f * F[j]![c]!, 0)));
+  const pn = items[nn]!.price;
+  const ptBar = items.slice(0, nn).map((it) => it.price / pn);
+  const ybar = items.map((it) => (it.role === 'output' ? it.quantity : -it.quantity));
+  const priceSd = spec.priceSd ?? 0.25;
+  const noise = spec.noise ?? 0.05;
+  const trendShare = spec.trendShare ?? 0;
+  const tMean = (spec.seasons + 1) / 2;
+  const a = ybar.slice(0, nn).map((y, i) => y - B[i]!.reduce((s, b, j) => s + b * ptBar[j]!, 0));
+  let a0 = ybar[nn]!;
+  for (let i = 0; i < nn; i++) for (let j = 0; j < nn; j++) a0 += 0.5 * B[i]![j]! * ptBar[i]! * ptBar[j]!;
+  const T = spec.seasons;
+  const ds: NetputDataset = {
+    items: items.map(({ name, role }) => ({ name, role })),
+    fixedFactors: [],
+    seasons: [],
+    seasonYears: [],
+    farms: null,
+    prices: items.map(() => new Array<number>(T)),
+    quantities: items.map(() => new Array<number>(T)),
+    fixed: [],
+    rows: [],
+  };
+  for (let t = 0; t < T; t++) {
+    const p = items.map((it) => round(it.price * Math.exp(priceSd * rng.normal() - 0.5 * priceSd * priceSd), 4));
+    const pt = p.slice(0, nn).map((v) => v / p[nn]!);
+    const trend = t + 1 - tMean;
+    const y = items.map((_, i) => {
+      let v: number;
+      if (i < nn) v = a[i]! + B[i]!.reduce((s, b, j) => s + b * pt[j]!, 0);
+      else {
+        v = a0;
+        for (let k = 0; k < nn; k++) for (let l = 0; l < nn; l++) v -= 0.5 * B[k]![l]! * pt[k]! * pt[l]!;
+      }
+      return v + trendShare * ybar[i]! * trend + noise * Math.abs(ybar[i]!) * rng.normal();
+    });
+    items.forEach((it, i) => {
+      const q = it.role === 'output' ? y[i]! : -y[i]!;
+      if (!(q > 0)) throw new Error(`synthetic: a ${it.role} quantity came out non-positive; lower the noise or the price spread`);
+      ds.prices[i]![t] = p[i]!;
+      ds.quantities[i]![t] = round(q, 3);
+    });
+    ds.seasons.push(String(spec.firstSeason + t));
+    ds.seasonYears.push(spec.firstSeason + t);
+    ds.rows.push(t + 2);
+  }
+  return ds;
+}
