@@ -245,38 +245,62 @@ export function imposeConvexity(args: ImposeArgs): ImposedFit {
     };
   };
 
-  let sigma = args.sigma0;
-  let theta = args.theta0.slice();
-  let iterations = 0;
-  let converged = false;
-  let optimality: OptimalityCheck | null = null;
-  let last: { A: Mat; rank: number } | null = null;
-  while (iterations < args.maxIterations) {
-    iterations++;
-    const s = step(sigma);
-    let num = 0;
-    let den = 0;
-    for (let j = 0; j < k; j++) {
-      num += (s.theta[j]! - theta[j]!) ** 2;
-      den += theta[j]! ** 2;
-    }
-    theta = s.theta;
-    last = { A: s.A, rank: s.rank };
-    const sigmaNext = residualSigma(theta);
-    if (iterations > 1 && Math.sqrt(num / Math.max(den, 1e-300)) <= args.tolerance) {
-      // θ has settled; finish only where the optimality conditions hold, else keep iterating.
-      optimality = optimalityAt(theta, sigmaNext);
-      if (optimality.satisfied) {
-        converged = true;
-        break;
-      }
-    }
-    if (iterations === args.maxIterations) break;
-    sigma = sigmaNext;
+  interface Run {
+    theta: number[];
+    sigma: Mat;
+    iterations: number;
+    converged: boolean;
+    optimality: OptimalityCheck;
+    A: Mat;
+    rank: number;
+    /** ln|Σ̂(θ)|: the log-likelihood is −T/2 of it up to a constant. */
+    logDet: number;
   }
-  optimality ??= optimalityAt(theta, residualSigma(theta));
-  if (!converged) optimality = optimalityAt(theta, residualSigma(theta));
-  const { A, rank } = last!;
+  const run = (sigmaStart: Mat): Run => {
+    warm = null;
+    let sigma = sigmaStart;
+    let theta = args.theta0.slice();
+    let iterations = 0;
+    let converged = false;
+    let optimality: OptimalityCheck | null = null;
+    let last: { A: Mat; rank: number } | null = null;
+    let sigmaNext = sigma;
+    while (iterations < args.maxIterations) {
+      iterations++;
+      const s = step(sigma);
+      let num = 0;
+      let den = 0;
+      for (let j = 0; j < k; j++) {
+        num += (s.theta[j]! - theta[j]!) ** 2;
+        den += theta[j]! ** 2;
+      }
+      theta = s.theta;
+      last = { A: s.A, rank: s.rank };
+      sigmaNext = residualSigma(theta);
+      if (iterations > 1 && Math.sqrt(num / Math.max(den, 1e-300)) <= args.tolerance) {
+        // θ has settled; finish only where the optimality conditions hold, else keep iterating.
+        optimality = optimalityAt(theta, sigmaNext);
+        if (optimality.satisfied) {
+          converged = true;
+          break;
+        }
+      }
+      if (iterations === args.maxIterations) break;
+      sigma = sigmaNext;
+    }
+    if (!converged) optimality = optimalityAt(theta, sigmaNext);
+    return { theta, sigma, iterations, converged, optimality: optimality!, A: last!.A, rank: last!.rank, logDet: logDetOf(sigmaNext) };
+  };
+  // The likelihood need not have one maximum (the numeraire equation is quadratic in prices), so
+  // two starts: the given Σ̂, and one that weights the last (numeraire) equation a hundredfold,
+  // which leads into the basin where B is fitted to it first. The best likelihood is kept,
+  // preferring a start that converged.
+  const runs = [run(args.sigma0)];
+  const n0 = args.sigma0.length;
+  runs.push(run(args.sigma0.map((row, i) => row.map((v, j) => (i !== j ? 0 : i === n0 - 1 ? v / 100 : v)))));
+  const chosen = runs.reduce((a, b) => (b.converged !== a.converged ? (b.converged ? b : a) : b.logDet < a.logDet - 1e-12 * Math.abs(a.logDet) ? b : a));
+  const { theta, sigma, converged, optimality, A, rank } = chosen;
+  const iterations = runs.reduce((s, r) => s + r.iterations, 0);
 
   // Covariance: the inverse information on the face C = L L′, L of size (n−1) × rank (pseudo-
   // inverse: rotations L → LQ leave C unchanged), mapped to θ by the delta method. In the
@@ -328,6 +352,12 @@ export function imposeConvexity(args: ImposeArgs): ImposedFit {
     covarianceRank,
     optimality,
   };
+}
+
+function logDetOf(S: Mat): number {
+  const L = choleskyOf(S);
+  if (!L) return Infinity;
+  return 2 * L.reduce((s, row, i) => s + Math.log(row[i]!), 0);
 }
 
 /** L (n−1 × r) with L L′ the rank-r part of C (leading eigenvectors × √eigenvalue). */
