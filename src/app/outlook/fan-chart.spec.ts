@@ -80,12 +80,15 @@ describe('fanChartOption', () => {
     expect(new Set(seriesOf(input).map((s) => s.stack).filter(Boolean))).toEqual(new Set(['fan-low', 'fan-base', 'fan-high']));
   });
 
-  it('should open the fan at the latest season that has a record when the last one has none', () => {
+  it('should open the fan at the latest season that has a record when the last one has none, widening across the gap', () => {
     const gap: FanChartInput = { ...input, history: { seasons: input.history.seasons, values: [28_000, 30_500, 29_250, null] } };
 
     expect(fanWindow(gap).anchor).toBe(2);
-    expect(byId(gap, 'base-p5').data).toEqual([null, null, 29_250, null, 28_500]);
-    expect(byId(gap, 'base-band').data).toEqual([null, null, 0, null, 6_100]);
+    // Halfway between the last record and the outlook season: halfway along the 5 % point and the band's width,
+    // so no stacked point is empty and the band never falls to the axis.
+    expect(byId(gap, 'base-p5').data).toEqual([null, null, 29_250, (29_250 + 28_500) / 2, 28_500]);
+    expect(byId(gap, 'base-band').data).toEqual([null, null, 0, 6_100 / 2, 6_100]);
+    expect(byId(gap, 'base-median').data).toEqual([null, null, 29_250, (29_250 + 31_400) / 2, 31_400]);
   });
 
   it('should start the fan at the outlook season alone when nothing was recorded', () => {

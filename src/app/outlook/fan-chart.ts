@@ -70,6 +70,13 @@ export function fanChartOption(input: FanChartInput): EChartsCoreOption {
   const last = categories.length - 1;
   const at = (fill: (i: number) => number | null) => categories.map((_, i) => fill(i));
   const anchorValue = anchor !== null ? values[anchor]! : null;
+  // The fan opens at the last recorded season and widens in a straight line to the outlook season,
+  // across any season in between that has no record yet: every point of a stacked series in that
+  // stretch has a value, so the band never drops to the axis.
+  const share = (i: number) => (anchor === null || last === anchor ? 1 : (i - anchor) / (last - anchor));
+  const inFan = (i: number) => i === last || (anchor !== null && i >= anchor);
+  const along = (i: number, end: number) => (!inFan(i) ? null : anchorValue === null ? (i === last ? end : null) : anchorValue + (end - anchorValue) * share(i));
+  const widthAt = (i: number, width: number) => (!inFan(i) ? null : anchorValue === null ? (i === last ? width : null) : width * share(i));
 
   const series: Record<string, unknown>[] = [
     {
@@ -93,7 +100,7 @@ export function fanChartOption(input: FanChartInput): EChartsCoreOption {
         name: s.label,
         type: 'line',
         stack,
-        data: at((i) => (i === last ? s.q.p5 : i === anchor ? anchorValue : null)),
+        data: at((i) => along(i, s.q.p5)),
         color: colour,
         lineStyle: { opacity: 0 },
         symbol: 'none',
@@ -106,7 +113,7 @@ export function fanChartOption(input: FanChartInput): EChartsCoreOption {
         name: s.label,
         type: 'line',
         stack,
-        data: at((i) => (i === last ? s.q.p95 - s.q.p5 : i === anchor ? 0 : null)),
+        data: at((i) => widthAt(i, s.q.p95 - s.q.p5)),
         color: colour,
         lineStyle: { opacity: 0 },
         areaStyle: { color: colour, opacity: 0.18 },
@@ -119,7 +126,7 @@ export function fanChartOption(input: FanChartInput): EChartsCoreOption {
         id: `${s.name}-median`,
         name: s.label,
         type: 'line',
-        data: at((i) => (i === last ? s.q.median : i === anchor ? anchorValue : null)),
+        data: at((i) => along(i, s.q.median)),
         color: colour,
         lineStyle: { width: 2, type: 'dashed' },
         symbol: 'circle',
