@@ -79,6 +79,8 @@ export const publishSchema = z.object({
   commentary: z.string().max(20000).optional(),
   /** false: publish without e-mailing members (e.g. an outlook entered after its season). */
   notifyMembers: z.boolean().default(true),
+  /** The planner publishes although the model did not beat the plain per-hectare rule for some item (the warning is kept). */
+  acceptWeakSkill: z.boolean().default(false),
 });
 
 export const methodCompareQuerySchema = z.object({ item: itemCode });

@@ -2,6 +2,7 @@
  * Season-outlook shapes shared by the API (server/outlook) and the screens: price expectations,
  * the projection tables and the published snapshot. Plain data, no Node imports.
  */
+import type { BandFacts } from './band-words.js';
 import type { QuantitySummary } from './estimation-types.js';
 
 export type { QuantitySummary } from './estimation-types.js';
@@ -149,6 +150,8 @@ export interface ProjectionTables {
   coop: CoopProjection;
   farms: FarmOutlook[];
   cautions: string[];
+  /** What the bands cover (absent in projections made before it was recorded). */
+  band?: BandFacts & { words: string };
 }
 
 /** Where a published outlook's numbers come from. */
@@ -182,8 +185,10 @@ export interface OutlookSnapshot {
   scenarioRule: ScenarioRule;
   scenarioRuleText: string;
   scenarios: ScenarioPrices[];
-  projection: { draws: number; seed: number; trendSeason: number | null; computedAt: string; farmsProjected: number; coop: CoopProjection };
+  projection: { draws: number; seed: number; trendSeason: number | null; computedAt: string; farmsProjected: number; coop: CoopProjection; band?: BandFacts & { words: string } };
   cautions: string[];
+  /** The model's back-test in words at publishing, and the items it did not beat the plain rule for (published anyway). */
+  skill?: { text: string; weakItems: { item: string; name: string; sentence: string }[] } | null;
 }
 
 /** `GET /api/outlooks/versions/:versionId` (planner, treasurer, admin): every farm. */

@@ -1,6 +1,8 @@
 import type { MessagePort } from 'node:worker_threads';
 import {
+  backTestForecast,
   elasticitiesAt,
+  fitForecastModel,
   evaluateFit,
   fitProfitFunction,
   fitToContractJson,
@@ -8,6 +10,9 @@ import {
   shadowValues,
   type FitOptions,
   type FitResult,
+  type BackTestResult,
+  type ForecastModel,
+  type ForecastSpec,
   type NetputDataset,
 } from '../estimation/index.js';
 import { lowerWorkerPriority } from './worker-priority.js';
@@ -18,6 +23,8 @@ lowerWorkerPriority();
 export interface FitTask {
   dataset: NetputDataset;
   options: FitOptions;
+  /** The forecasting model's specification (the outlook projects with it; the back-test tests it). */
+  spec: ForecastSpec;
   backtestSeasons: number;
   progressPort?: MessagePort;
 }
@@ -52,6 +59,12 @@ export interface FitRunResult {
   /** Each netput against its own price, other prices at their means. */
   responseCurves: { item: string; prices: number[]; quantities: number[] }[];
   backtest: { seasons: BacktestSeason[]; items: BacktestItem[]; error: string | null };
+  /** The forecasting model of the chosen specification, fitted on every season (null when it failed: see forecastError). */
+  spec: ForecastSpec;
+  forecast: ForecastModel | null;
+  forecastError: string | null;
+  /** The rolling-origin back-test of the forecasting model against the plain rules, with band coverage. */
+  skill: BackTestResult | null;
 }
 
 type Progress = (share: number, stage: string) => void;
@@ -73,20 +86,6 @@ function fittedAt(ds: NetputDataset, fit: FitResult, obs: number): Record<string
   return out;
 }
 
-function subset(ds: NetputDataset, keep: (obs: number) => boolean): NetputDataset {
-  const idx = ds.seasons.map((_, i) => i).filter(keep);
-  return {
-    ...ds,
-    seasons: idx.map((i) => ds.seasons[i]),
-    seasonYears: idx.map((i) => ds.seasonYears[i]),
-    farms: ds.farms ? idx.map((i) => ds.farms![i]) : null,
-    prices: ds.prices.map((col) => idx.map((i) => col[i])),
-    quantities: ds.quantities.map((col) => idx.map((i) => col[i])),
-    fixed: ds.fixed.map((col) => idx.map((i) => col[i])),
-    rows: idx.map((i) => ds.rows[i]),
-  };
-}
-
 function seasonTotals(ds: NetputDataset, season: string, values: (obs: number) => Record<string, number>) {
   const total: Record<string, number> = {};
   ds.seasons.forEach((s, obs) => {
@@ -102,38 +101,45 @@ function actualAt(ds: NetputDataset, obs: number) {
   return out;
 }
 
-/** Rolling origin: fit on the seasons before t, project t at the prices seen, compare with what happened. */
-export function backtest(ds: NetputDataset, options: FitOptions, k: number, progress: Progress): FitRunResult['backtest'] {
-  const years = [...new Set(ds.seasonYears)].sort((a, b) => a - b);
-  const targets = years.slice(Math.max(1, years.length - k));
-  const seasons: BacktestSeason[] = [];
-  let error: string | null = null;
-  targets.forEach((year, n) => {
-    progress(0.3 + (0.6 * n) / targets.length, `Back-testing ${n + 1} of ${targets.length}`);
-    const train = subset(ds, (i) => ds.seasonYears[i] < year);
-    const test = subset(ds, (i) => ds.seasonYears[i] === year);
-    try {
-      const fit = fitProfitFunction(train, options);
-      const season = test.seasons[0];
-      seasons.push({
-        season,
-        predicted: seasonTotals(test, season, (obs) => fittedAt(test, fit, obs)),
-        actual: seasonTotals(test, season, (obs) => actualAt(test, obs)),
-        fittedOn: { first: train.seasons[0], last: train.seasons.at(-1)!, observations: train.seasons.length },
-      });
-    } catch (err) {
-      error ??= `Back-test of ${year} could not be fitted: ${(err as Error).message}`;
-    }
-  });
+/**
+ * Rolling origin (docs/forecasting.md §7): the engine refits the forecasting model on the seasons
+ * before each of the last k seasons, projects that season at the prices actually seen and sets it
+ * against what happened, per farm against the two plain rules and for the co-op total, with the
+ * coverage of the 90 % bands. The co-op rows also make the season-by-season table of the page.
+ */
+export function backtest(ds: NetputDataset, options: FitOptions, spec: ForecastSpec, k: number, progress: Progress): { skill: BackTestResult | null; table: FitRunResult['backtest'] } {
+  progress(0.3, `Back-testing the last ${k} seasons`);
+  let skill: BackTestResult;
+  try {
+    skill = backTestForecast(ds, {
+      ...options,
+      spec,
+      maxOrigins: k,
+      level: 0.9,
+      onProgress: (share, stage) => progress(0.3 + 0.6 * share, stage),
+    });
+  } catch (err) {
+    return { skill: null, table: { seasons: [], items: [], error: `The back-test could not be run: ${(err as Error).message}` } };
+  }
+  const years = new Map(ds.seasons.map((s, i) => [s, ds.seasonYears[i]!]));
+  const first = ds.seasons[ds.seasonYears.indexOf(Math.min(...ds.seasonYears))]!;
+  const good = skill.origins.filter((o) => !o.error);
+  const seasons: BacktestSeason[] = good.map((o) => ({
+    season: o.season,
+    predicted: Object.fromEntries(Object.entries(o.coop).map(([k, v]) => [k, v.point])),
+    actual: Object.fromEntries(Object.entries(o.coop).map(([k, v]) => [k, v.actual])),
+    fittedOn: { first, last: o.fittedThrough, observations: ds.seasonYears.filter((y) => y <= (years.get(o.fittedThrough) ?? -Infinity)).length },
+  }));
   const items = ds.items.map((it) => {
-    const pct = seasons.filter((s) => s.actual[it.name] > 0).map((s) => (s.predicted[it.name] - s.actual[it.name]) / s.actual[it.name]);
+    const pct = seasons.filter((s) => s.actual[it.name]! > 0).map((s) => (s.predicted[it.name]! - s.actual[it.name]!) / s.actual[it.name]!);
     return {
       item: it.name,
       mape: pct.length ? (100 * pct.reduce((a, b) => a + Math.abs(b), 0)) / pct.length : NaN,
       bias: pct.length ? (100 * pct.reduce((a, b) => a + b, 0)) / pct.length : NaN,
     };
   });
-  return { seasons, items, error };
+  const failed = skill.origins.find((o) => o.error);
+  return { skill, table: { seasons, items, error: failed ? `Back-test of ${failed.season} could not be fitted: ${failed.error}` : null } };
 }
 
 export function runFit(task: Omit<FitTask, 'progressPort'>, progress: Progress = () => {}): FitRunResult {
@@ -178,9 +184,32 @@ export function runFit(task: Omit<FitTask, 'progressPort'>, progress: Progress =
     });
     return { item: it.name, prices, quantities };
   });
-  const bt = task.backtestSeasons > 0 ? backtest(ds, options, task.backtestSeasons, progress) : { seasons: [], items: [], error: null };
+  progress(0.25, task.spec === 'per-hectare' ? 'Fitting the per-hectare model with farm and season effects' : 'Fitting the forecasting model');
+  let forecast: ForecastModel | null = null;
+  let forecastError: string | null = null;
+  try {
+    forecast = fitForecastModel(ds, { ...options, spec: task.spec });
+  } catch (err) {
+    forecastError = (err as Error).message;
+  }
+  const bt = task.backtestSeasons > 0 ? backtest(ds, options, task.spec, task.backtestSeasons, progress) : { skill: null, table: { seasons: [], items: [], error: null } };
   progress(0.95, 'Storing the run');
-  return { fit, summary, elasticities, shadowValues: shadow, longRun, longRunError, fittedBySeason, residuals, responseCurves, backtest: bt };
+  return {
+    fit,
+    summary,
+    elasticities,
+    shadowValues: shadow,
+    longRun,
+    longRunError,
+    fittedBySeason,
+    residuals,
+    responseCurves,
+    backtest: bt.table,
+    spec: task.spec,
+    forecast,
+    forecastError,
+    skill: bt.skill,
+  };
 }
 
 /** Worker entry (piscina): progress goes back through the port. */

@@ -3,8 +3,7 @@ import { MessageChannel } from 'node:worker_threads';
 import { Piscina } from 'piscina';
 import { workerBundle } from '../core/worker-bundle.js';
 import type { FitRunResult, FitTask } from './fit-task.js';
-import type { ProjectionResult } from '../estimation/index.js';
-import type { ProjectionTask } from '../outlook/projection-task.js';
+import type { OutlookProjectionResult, ProjectionTask } from '../outlook/projection-task.js';
 
 /**
  * Worker threads for CPU-heavy work, so the request thread stays responsive. Workers run the
@@ -33,8 +32,8 @@ export class WorkerPool {
   }
 
   /** A season projection (server/outlook/projection-task.ts) on the same threads. */
-  runProjection(task: ProjectionTask, signal?: AbortSignal): Promise<ProjectionResult> {
-    return this.pool.run(task, { filename: workerBundle(new URL('../outlook/projection-task.ts', import.meta.url)), signal }) as Promise<ProjectionResult>;
+  runProjection(task: ProjectionTask, signal?: AbortSignal): Promise<OutlookProjectionResult> {
+    return this.pool.run(task, { filename: workerBundle(new URL('../outlook/projection-task.ts', import.meta.url)), signal }) as Promise<OutlookProjectionResult>;
   }
 
   get threads() {

@@ -1,5 +1,5 @@
 import { and, desc, eq, inArray } from 'drizzle-orm';
-import type { ModelDefinition } from '../../shared/model-schemas.js';
+import { modelDefinitionSchema, specOf, type ModelDefinition } from '../../shared/model-schemas.js';
 import type { Db } from '../db/client.js';
 import { models, modelRuns } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
@@ -88,7 +88,8 @@ async function insertRun(
 /** Snapshots the data desk for the model's definition and queues the fit. */
 export async function startRun(db: Db, modelId: number, actorUserId: number) {
   const model = await getModel(db, modelId);
-  const definition = model.definition as ModelDefinition;
+  // Read through the schema: a definition stored before a choice existed gets today's default.
+  const definition = modelDefinitionSchema.parse(model.definition);
   const { dataset, excluded } = await buildDataset(db, definition);
   return insertRun(db, modelId, definition, dataset, excluded, actorUserId, null);
 }
@@ -133,7 +134,7 @@ export function fitJobHandler(db: Db, pool: WorkerPool): JobHandler {
     const def = run.definition as ModelDefinition;
     try {
       const result = await pool.runFit(
-        { dataset: run.dataset as NetputDataset, options: fitOptionsOf(def), backtestSeasons: def.backtestSeasons },
+        { dataset: run.dataset as NetputDataset, options: fitOptionsOf(def), spec: specOf(def), backtestSeasons: def.backtestSeasons },
         (share, stage) => {
           const now = Date.now();
           if (now - lastWrite < 300) return;

@@ -21,6 +21,7 @@ import {
 } from '../../shared/outlook-schemas.js';
 import { compareMethods } from './expectations-service.js';
 import { accountability } from './accountability.js';
+import { runChoiceView } from './run-choice.js';
 import {
   createOutlook,
   deliveries,
@@ -60,6 +61,8 @@ export function outlookRoutes(ctx: AppContext): RouteDef[] {
       access: OUTLOOK_READ,
       handler: async (req, res) => res.json(await accountability(ctx.db, parse(accountabilityQuerySchema, req.query, 'query').version)),
     },
+    // The finished runs with their back-tests in words, and the one the back-test favours.
+    { method: 'get', path: '/run-choice', access: OUTLOOK_READ, cache: true, handler: async (_req, res) => res.json(await runChoiceView(ctx.db)) },
     { method: 'get', path: '/versions', access: OUTLOOK_READ, handler: async (_req, res) => res.json(await listVersions(ctx.db)) },
     {
       method: 'get',

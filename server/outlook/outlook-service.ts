@@ -1,4 +1,5 @@
 import { and, asc, desc, eq, getTableColumns, sql } from 'drizzle-orm';
+import { skillOfRun } from './run-choice.js';
 import type { Config } from '../config.js';
 import type { Db } from '../db/client.js';
 import { farms, futuresQuotes, mailOutbox, outlooks, outlookVersionFarms, outlookVersions, seasons, users } from '../db/schema/index.js';
@@ -125,11 +126,29 @@ export async function listOutlooks(db: Db) {
   });
 }
 
+/**
+ * Whether the draft as it stands is what its latest version published: the same projection inputs,
+ * an up-to-date projection and the same commentary. The page's badge says "Published" then, and
+ * "Draft" once anything changed since.
+ */
+async function publishedState(db: Db, o: OutlookRow, upToDate: boolean) {
+  const [latest] = await db
+    .select({ version: outlookVersions.version, inputsHash: outlookVersions.inputsHash, commentary: sql<string | null>`${outlookVersions.snapshot}->>'commentary'`, publishedAt: outlookVersions.publishedAt })
+    .from(outlookVersions)
+    .where(eq(outlookVersions.outlookId, o.id))
+    .orderBy(desc(outlookVersions.version))
+    .limit(1);
+  if (!latest) return { version: null, publishedAt: null, unchangedSince: false };
+  const unchangedSince = upToDate && latest.inputsHash === o.projectionInputsHash && (latest.commentary ?? '') === (o.commentary ?? '');
+  return { version: latest.version, publishedAt: latest.publishedAt, unchangedSince };
+}
+
 export async function getOutlook(db: Db, id: number) {
   const o = await draftRow(db, id);
   const [season] = await db.select().from(seasons).where(eq(seasons.id, o.seasonId));
   const versions = await listVersions(db, id);
   const hash = draftInputsHash(o);
+  const upToDate = o.projectionStatus === 'succeeded' && o.projectionInputsHash === hash;
   return {
     id: o.id,
     season: season!.label,
@@ -149,9 +168,11 @@ export async function getOutlook(db: Db, id: number) {
       stage: o.projectionStage,
       error: o.projectionError,
       projectedAt: o.projectedAt,
-      upToDate: o.projectionStatus === 'succeeded' && o.projectionInputsHash === hash,
+      upToDate,
     },
     versions,
+    published: await publishedState(db, o, upToDate),
+    skill: await skillOfRun(db, o.modelRunId),
     cautions: OUTLOOK_CAUTIONS,
     createdAt: o.createdAt,
     updatedAt: o.updatedAt,
@@ -266,7 +287,7 @@ function fixedText(f: FarmOutlook): string {
  * Publishes the draft as the next version: the immutable snapshot, each farm's part, and — unless
  * told not to — one personal e-mail per subscribed member in the outbox, all in one transaction.
  */
-export async function publishOutlook(db: Db, config: Pick<Config, 'publicUrl' | 'mailFrom'>, id: number, body: { commentary?: string; notifyMembers: boolean }, actor: { id: number; name: string }) {
+export async function publishOutlook(db: Db, config: Pick<Config, 'publicUrl' | 'mailFrom'>, id: number, body: { commentary?: string; notifyMembers: boolean; acceptWeakSkill?: boolean }, actor: { id: number; name: string }) {
   return db.transaction(async (tx) => {
     let o = await draftRow(tx, id, true);
     if (body.commentary !== undefined && body.commentary !== o.commentary) {
@@ -277,6 +298,16 @@ export async function publishOutlook(db: Db, config: Pick<Config, 'publicUrl' | 
     if (o.projectionInputsHash !== draftInputsHash(o)) throw AppError.conflict('The draft has changed since it was projected; project it again before publishing');
     const tables = o.projection as ProjectionTables;
     const run = await succeededRun(tx, o.modelRunId!);
+    // Before publishing: the items for which the model did not beat the plain per-hectare rule in its
+    // back-test. The planner may publish anyway, and the warning is kept with the version.
+    const skill = await skillOfRun(tx, run.id);
+    if (skill?.weakItems.length && !body.acceptWeakSkill)
+      throw new AppError(
+        409,
+        'weak_skill',
+        `In its back-test the model did not beat the plain per-hectare rule for ${skill.weakItems.map((w) => w.name).join(', ')}; publish anyway only if you accept that`,
+        skill.weakItems.map((w) => ({ path: `items.${w.item}`, message: w.sentence })),
+      );
     const coop = await getSettings(tx);
     const [{ max }] = await tx.select({ max: sql<number | null>`max(${outlookVersions.version})` }).from(outlookVersions).where(eq(outlookVersions.outlookId, id));
     const version = (max === null ? 0 : Number(max)) + 1;
@@ -309,8 +340,9 @@ export async function publishOutlook(db: Db, config: Pick<Config, 'publicUrl' | 
       scenarioRule: tables.scenarioRule,
       scenarioRuleText: tables.scenarioRuleText,
       scenarios: tables.scenarios,
-      projection: { draws: tables.draws, seed: tables.seed, trendSeason: tables.trendSeason, computedAt: tables.computedAt, farmsProjected: tables.farms.length, coop: tables.coop },
+      projection: { draws: tables.draws, seed: tables.seed, trendSeason: tables.trendSeason, computedAt: tables.computedAt, farmsProjected: tables.farms.length, coop: tables.coop, ...(tables.band ? { band: tables.band } : {}) },
       cautions: [...OUTLOOK_CAUTIONS, ...tables.cautions],
+      skill: skill ? { text: skill.text, weakItems: skill.weakItems } : null,
     };
     const [row] = await tx
       .insert(outlookVersions)
@@ -321,7 +353,7 @@ export async function publishOutlook(db: Db, config: Pick<Config, 'publicUrl' | 
 
     let mails = { queued: 0, skipped: 0 };
     if (body.notifyMembers) mails = await queueOutlookMails(tx, config, snapshot, versionId, tables.farms);
-    await recordAudit(tx, { actorUserId: actor.id, action: 'outlook.publish', entity: 'outlook', entityId: id, after: { versionId, version, inputsHash: tables.inputsHash, mails } });
+    await recordAudit(tx, { actorUserId: actor.id, action: 'outlook.publish', entity: 'outlook', entityId: id, after: { versionId, version, inputsHash: tables.inputsHash, mails, ...(skill?.weakItems.length ? { publishedDespite: skill.weakItems.map((w) => w.sentence) } : {}) } });
     return { id: versionId, outlookId: id, version, season: tables.season.label, publishedAt, mails };
   });
 }

@@ -14,7 +14,9 @@ import { AppError } from '../core/app-error.js';
 import type { JobHandler } from '../jobs/job-runner.js';
 import type { WorkerPool } from '../jobs/worker-pool.js';
 import type { FitRunResult } from '../jobs/fit-task.js';
-import type { FitResult, ProjectionResult, QuantitySummary } from '../estimation/index.js';
+import type { FitResult, ForecastModel, QuantitySummary } from '../estimation/index.js';
+import type { OutlookProjectionResult, ProjectionTask } from './projection-task.js';
+import { bandCoverWords } from '../../shared/band-words.js';
 import type { ByScenario, CapacityComparison, CoopProjection, FarmOutlook, History, ItemProjection, ProjectionTables, ScenarioName, TotalBand } from '../../shared/outlook-types.js';
 import { hashOf } from '../models/model-data.js';
 import { getSettings } from '../settings/settings-service.js';
@@ -49,6 +51,10 @@ interface ProjectionInputs {
   outlook: OutlookRow;
   season: { label: string; startYear: number };
   fit: FitResult;
+  /** The run's forecasting model (null for runs stored before it existed: the profit function alone projects). */
+  forecast: ForecastModel | null;
+  /** The expectation methods' past relative price errors, one entry per past season (null: too few). */
+  priceErrors: { errors: Record<string, number[]>; seasons: string[] } | null;
   itemRows: (typeof items.$inferSelect)[];
   scenarios: { name: string; prices: Record<string, number> }[];
   farms: { id: number; code: string; name: string; region: string; fixed: Record<string, number>; fixedSource: string }[];
@@ -102,7 +108,54 @@ export async function gatherProjectionInputs(db: Db, o: OutlookRow): Promise<Pro
     }
     return { id: f.id, code: f.code, name: f.name, region: f.region, fixed, fixedSource: sources.join(', ') || 'no fixed factors' };
   });
-  return { outlook: o, season: { label: season!.label, startYear: season!.startYear }, fit, itemRows, scenarios, farms: farmInputs, inputsHash: draftInputsHash(o) };
+  return {
+    outlook: o,
+    season: { label: season!.label, startYear: season!.startYear },
+    fit,
+    forecast: run.result.forecast ?? null,
+    priceErrors: priceErrorsOf(expectations),
+    itemRows,
+    scenarios,
+    farms: farmInputs,
+    inputsHash: draftInputsHash(o),
+  };
+}
+
+/** Fewest past seasons of price errors that make a price risk (as for a band from errors). */
+export const MIN_PRICE_ERROR_SEASONS = 3;
+
+/**
+ * The price risk of the chosen expectation methods: each past season in which every item's method
+ * has an error, that season's relative errors (actual − expected) / expected by item, drawn
+ * together so that prices that missed together in the past miss together in the draws.
+ */
+export function priceErrorsOf(expectations: ItemExpectation[]): { errors: Record<string, number[]>; seasons: string[] } | null {
+  const withErrors = expectations.filter((e) => e.errors.seasons.length > 0);
+  if (!withErrors.length) return null;
+  const common = withErrors[0]!.errors.seasons.map((s) => s.season).filter((season) => withErrors.every((e) => e.errors.seasons.some((x) => x.season === season)));
+  if (common.length < MIN_PRICE_ERROR_SEASONS) return null;
+  const errors = Object.fromEntries(withErrors.map((e) => [e.item, common.map((season) => e.errors.seasons.find((x) => x.season === season)!.errorPct / 100)]));
+  return { errors, seasons: common };
+}
+
+/** The worker's task: the forecasting model of the run when it has one. */
+export function projectionTask(inputs: ProjectionInputs, o: { draws: number; seed: number }): ProjectionTask {
+  if (inputs.forecast)
+    return {
+      kind: 'forecast',
+      model: inputs.forecast,
+      scenarios: inputs.scenarios,
+      farms: inputs.farms.map((f) => ({ farm: f.code, fixed: f.fixed })),
+      draws: o.draws,
+      seed: o.seed,
+      season: inputs.season.startYear,
+      priceErrors: inputs.priceErrors?.errors ?? null,
+    };
+  return {
+    kind: 'fit',
+    fit: inputs.fit,
+    options: { scenarios: inputs.scenarios, farms: inputs.farms.map((f) => ({ id: f.code, fixed: f.fixed })), draws: o.draws, seed: o.seed, season: inputs.season.startYear },
+  };
 }
 
 const scale = (q: QuantitySummary, f: number): QuantitySummary => ({ point: q.point * f, mean: q.mean * f, sd: q.sd * f, median: q.median * f, p5: q.p5 * f, p95: q.p95 * f });
@@ -130,10 +183,10 @@ async function histories(db: Db, farmIds: number[], itemRows: ProjectionInputs['
   return { coop, perFarm };
 }
 
-export async function buildTables(db: Db, result: ProjectionResult, inputs: ProjectionInputs): Promise<ProjectionTables> {
+export async function buildTables(db: Db, result: OutlookProjectionResult, inputs: ProjectionInputs): Promise<ProjectionTables> {
   const settings = await getSettings(db);
   const byCode = new Map(inputs.itemRows.map((i) => [i.code, i]));
-  const itemProjection = (pick: (sc: ProjectionResult['scenarios'][number]) => Record<string, QuantitySummary>): ItemProjection[] =>
+  const itemProjection = (pick: (sc: OutlookProjectionResult['scenarios'][number]) => Record<string, QuantitySummary>): ItemProjection[] =>
     result.items.map((it) => {
       const row = byCode.get(it.name)!;
       const scenarios = Object.fromEntries(result.scenarios.map((sc) => [sc.name, pick(sc)[it.name]!]));
@@ -178,7 +231,7 @@ export async function buildTables(db: Db, result: ProjectionResult, inputs: Proj
     : null;
   const { coop: coopHistory, perFarm } = await histories(db, inputs.farms.map((f) => f.id), inputs.itemRows, inputs.season.startYear);
   const farmsOut: FarmOutlook[] = inputs.farms.map((f, k) => {
-    const pf = (sc: ProjectionResult['scenarios'][number]) => sc.farms[k]!.quantities;
+    const pf = (sc: OutlookProjectionResult['scenarios'][number]) => sc.farms[k]!.quantities;
     return {
       farmId: f.id,
       code: f.code,
@@ -191,6 +244,12 @@ export async function buildTables(db: Db, result: ProjectionResult, inputs: Proj
     };
   });
   const worst = Math.max(...result.scenarios.map((s) => s.curvatureViolationShare));
+  const band = {
+    spec: result.spec,
+    priceRisk: result.priceRisk,
+    priceRiskSeasons: result.priceRisk ? (inputs.priceErrors?.seasons.length ?? 0) : 0,
+    seasonShockDf: result.seasonShockDf,
+  };
   const cc = curvatureCaution(worst);
   return {
     inputsHash: inputs.inputsHash,
@@ -206,6 +265,7 @@ export async function buildTables(db: Db, result: ProjectionResult, inputs: Proj
     coop: { items: coopItems, deliveries, capacity, history: coopHistory },
     farms: farmsOut,
     cautions: cc ? [cc] : [],
+    band: { ...band, words: bandCoverWords(band) },
   };
 }
 
@@ -224,19 +284,7 @@ export function projectionJobHandler(db: Db, pool: WorkerPool): JobHandler {
     try {
       const inputs = await gatherProjectionInputs(db, o);
       await set({ projectionProgress: 0.15, projectionStage: `Simulating ${o.draws} draws for ${inputs.farms.length} farms and 3 price scenarios` });
-      const result = await pool.runProjection(
-        {
-          fit: inputs.fit,
-          options: {
-            scenarios: inputs.scenarios,
-            farms: inputs.farms.map((f) => ({ id: f.code, fixed: f.fixed })),
-            draws: o.draws,
-            seed: o.seed,
-            season: inputs.season.startYear,
-          },
-        },
-        signal,
-      );
+      const result = await pool.runProjection(projectionTask(inputs, o), signal);
       await set({ projectionProgress: 0.9, projectionStage: 'Building the tables' });
       const tables = await buildTables(db, result, inputs);
       await set({ projectionStatus: 'succeeded', projectionProgress: 1, projectionStage: 'Done', projection: tables, projectionInputsHash: inputs.inputsHash, projectedAt: new Date() });

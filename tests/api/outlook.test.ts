@@ -3,6 +3,7 @@ import supertest from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mailOutbox, outlookVersionFarms, outlookVersions, users } from '../../server/db/schema/index.js';
 import { buildDemoCoop } from '../../seed/demo-coop.js';
+import { projectForecast } from '../../server/estimation/index.js';
 import { agent, signedIn, startTestApp, type TestApp } from './test-app.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
@@ -163,6 +164,7 @@ describe('season projection', () => {
       history: { seasons: string[]; items: Record<string, (number | null)[]> };
     };
     scenarios: { name: string; prices: Record<string, number> }[];
+    band?: { words: string };
     trendSeason: number;
     draws: number;
   };
@@ -179,19 +181,18 @@ describe('season projection', () => {
     expect(low.wheat).toBeCloseTo(ex.find((e) => e.item === 'wheat')!.low, 9); // output at its low price
     expect(low.nitrogen).toBeCloseTo(ex.find((e) => e.item === 'nitrogen')!.high, 9); // input at its high price (margin rule)
 
-    // F01 at its 2025/26 land and the 2026/27 trend (2026 − 2006 + 1 = 21), through the model's own evaluate route.
+    // F01 at its 2025/26 land and the 2026/27 trend (2026 − 2006 + 1 = 21), through the engine's own
+    // projection of the run's forecasting model (per hectare with farm and season effects, the default with land).
     const f01 = result.farms.find((f) => f.code === 'F01')!;
     const land = (await planner.get(`/api/records/land?farms=${f01.farmId}`)).body as { season: string; landHa: number }[];
     expect(f01.fixed).toEqual({ land_ha: land.find((l) => l.season === '2025/26')!.landHa, trend: 21 });
     // Shown as it is on the farm panel and the member portal: plain words, no stored factor name.
     expect(f01.fixedSource).toBe('land recorded for 2025/26');
-    const q = Object.entries(base).map(([k, v]) => `${k}=${v}`).join(',');
-    const ev = await planner.get(`/api/model-runs/${runId}/evaluate?prices=${q}&fixed=land_ha=${f01.fixed.land_ha},trend=21`);
-    expect(ev.status).toBe(200);
-    ev.body.items.forEach((it: { name: string; role: string }, i: number) => {
-      const point = it.role === 'output' ? ev.body.netputs[i] : -ev.body.netputs[i];
-      expect(f01.items.find((x) => x.item === it.name)!.scenarios.base!.point).toBeCloseTo(point, 6);
-    });
+    const stored = (await planner.get(`/api/model-runs/${runId}`)).body.result;
+    expect(stored.forecast.spec).toBe('per-hectare');
+    const direct = projectForecast(stored.forecast, { farms: [{ farm: 'F01', fixed: { land_ha: f01.fixed.land_ha! } }], prices: base, season: 2026, draws: 200, seed: 1 });
+    for (const it of f01.items) expect(it.scenarios.base!.point).toBeCloseTo(direct.farms[0]!.quantities[it.item]!.point, 6);
+    expect(result.band?.words).toContain('9 in 10');
 
     for (const item of result.coop.items) {
       const sum = result.farms.reduce((a, f) => a + f.items.find((x) => x.item === item.item)!.scenarios.base!.point, 0);

@@ -8,6 +8,7 @@ import { gridTheme } from '../shared/grid';
 import { backtestOption } from './chart-options';
 import { formatAmount, formatPercent, ItemLabels } from './model-format';
 import type { FitRunResult } from './model-types';
+import { SkillSection } from './skill-section';
 
 interface ItemRow {
   item: string;
@@ -34,7 +35,7 @@ interface SeasonRow {
  */
 @Component({
   selector: 'np-backtest-section',
-  imports: [AgGridAngular, MatButton, MatIcon, NgxEchartsDirective],
+  imports: [AgGridAngular, MatButton, MatIcon, NgxEchartsDirective, SkillSection],
   templateUrl: './backtest-section.html',
   styles: `
     :host { display: flex; flex-direction: column; gap: 12px; }
@@ -43,6 +44,7 @@ interface SeasonRow {
     p { margin: 0; max-width: 90ch; }
     .toolbar { display: flex; flex-wrap: wrap; gap: 8px; align-items: center; }
     h3 { font: var(--mat-sys-title-small); flex: 1 1 auto; }
+    h3.sub { margin: 8px 0 0; }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
@@ -55,6 +57,8 @@ export class BacktestSection {
   readonly #seasonGrid = signal<GridApi<SeasonRow> | null>(null);
 
   protected readonly backtest = computed(() => this.result().backtest);
+  /** The forecasting model's back-test against the plain rules (runs stored before it have none). */
+  protected readonly skill = computed(() => this.result().skill ?? null);
   protected readonly itemRows = computed<ItemRow[]>(() =>
     this.backtest().items.map((r) => ({ ...r, name: this.labels().name(r.item), unit: this.labels().unit(r.item) })),
   );

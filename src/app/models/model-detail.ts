@@ -9,6 +9,7 @@ import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
 import { firstValueFrom } from 'rxjs';
 import type { Item } from '../../../shared/api-types';
+import { SPEC_WORDS, specOf } from '../../../shared/model-schemas';
 import { ACCESS } from '../core/access';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
@@ -45,6 +46,8 @@ export class ModelDetail {
   protected readonly labels = computed(() => new ItemLabels(this.items.hasValue() ? this.items.value() : []));
   protected readonly canWrite = computed(() => this.#auth.hasRole(ACCESS.modelsWrite));
   protected readonly formLabels = FORM_LABELS;
+  protected readonly specWords = SPEC_WORDS;
+  protected readonly specOf = specOf;
   protected readonly curvatureLabels = CURVATURE_LABELS;
   protected readonly sampleSeasons = sampleSeasons;
   protected readonly shortHash = shortHash;

@@ -86,11 +86,30 @@ describe('ModelForm', () => {
         toSeason: null,
         farms: null,
         backtestSeasons: 5,
+        // Per hectare with farm and season effects: the default when land is chosen.
+        spec: 'per-hectare',
       },
     });
     req.flush({ id: 9, name: 'All items, NQ, land + trend', definition: req.request.body.definition, createdBy: 2, createdAt: '2026-01-01T00:00:00Z', runs: [] });
     await fixture.whenStable();
     expect(saved.map((s) => [s.model.id, s.run])).toEqual([[9, true]]);
+  });
+
+  it('should forecast per hectare by default, and fall back to the pooled form without land', async () => {
+    const radios = () => [...el().querySelectorAll('mat-radio-group[formcontrolname="spec"] mat-radio-button')];
+    expect(radios().map((r) => r.textContent?.trim().split(' —')[0])).toEqual(['Per hectare, with farm and season effects', 'One equation for all farms (pooled)']);
+    const land = [...el().querySelectorAll('mat-checkbox')].find((c) => c.textContent?.includes('Land farmed (ha)'))!;
+    (land.querySelector('input') as HTMLInputElement).click();
+    await fixture.whenStable();
+    expect(radios()[0]!.querySelector('input')!.disabled).toBe(true);
+    await typeName('No land');
+    button('Save and run').click();
+    await fixture.whenStable();
+    const req = http.expectOne('/api/models');
+    expect(req.request.body.definition.fixedFactors).toEqual([]);
+    expect(req.request.body.definition.spec).toBe('pooled');
+    req.flush({ id: 10, name: 'No land', definition: req.request.body.definition, createdBy: 2, createdAt: '2026-01-01T00:00:00Z', runs: [] });
+    await fixture.whenStable();
   });
 
   it('should offer the other recorded fixed factors and send a chosen one after land', async () => {

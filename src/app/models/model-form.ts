@@ -8,7 +8,7 @@ import { MatInput } from '@angular/material/input';
 import { MatRadioButton, MatRadioGroup } from '@angular/material/radio';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { FarmSummary, Item, Season } from '../../../shared/api-types';
-import { modelDefinitionSchema, type ModelDefinition } from '../../../shared/model-schemas';
+import { FORECAST_SPECS, modelDefinitionSchema, SPEC_WORDS, type ForecastSpecName, type ModelDefinition } from '../../../shared/model-schemas';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { applyServerDetails } from '../shared/zod-validator';
 import { CURVATURE_LABELS } from './model-types';
@@ -58,6 +58,8 @@ export class ModelForm {
 
   protected readonly curvatureLabels = CURVATURE_LABELS;
   protected readonly curvatureChoices = Object.keys(CURVATURE_LABELS) as ModelDefinition['curvature'][];
+  protected readonly specWords = SPEC_WORDS;
+  protected readonly specChoices = FORECAST_SPECS;
 
   protected readonly form = inject(NonNullableFormBuilder).group({
     name: ['', [Validators.required, Validators.maxLength(120)]],
@@ -74,6 +76,8 @@ export class ModelForm {
     allFarms: [true],
     farms: [[] as string[]],
     backtestSeasons: [5, [Validators.required, Validators.min(0), Validators.max(10)]],
+    /** Per hectare by default; pooled when the planner chooses it or land is left out. */
+    spec: ['per-hectare' as ForecastSpecName],
   });
 
   readonly #value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
@@ -82,6 +86,7 @@ export class ModelForm {
   protected readonly inputs = computed(() => this.items().filter((i) => i.role === 'input'));
   protected readonly numeraireChoices = computed(() => this.items().filter((i) => this.chosen().includes(i.code)));
   protected readonly allFarms = computed(() => this.#value().allFarms ?? true);
+  protected readonly landChosen = computed(() => this.#value().land ?? true);
   protected readonly saving = signal<'run' | 'save' | null>(null);
   protected readonly failure = signal<string | null>(null);
   /** The items control has no form field of its own; its message shows under the checkboxes. */
@@ -97,6 +102,8 @@ export class ModelForm {
       this.form.controls.items.setValue(items.map((i) => i.code));
       this.#keepNumeraire();
     });
+    // Without land there is no per-hectare model: fall back to pooled, and back when land returns.
+    this.form.controls.land.valueChanges.subscribe((land) => this.form.controls.spec.setValue(land ? 'per-hectare' : 'pooled'));
   }
 
   protected isFactorChosen(name: string): boolean {
@@ -153,6 +160,7 @@ export class ModelForm {
       toSeason: v.toSeason || null,
       farms: v.allFarms ? null : v.farms,
       backtestSeasons: v.backtestSeasons,
+      spec: v.spec,
     });
     if (parsed.success) return parsed.data;
     for (const issue of parsed.error.issues) this.#showProblem(String(issue.path[0] ?? ''), issue.message);
@@ -183,6 +191,7 @@ export class ModelForm {
       toSeason: c.toSeason,
       farms: c.farms,
       backtestSeasons: c.backtestSeasons,
+      spec: c.spec,
     };
     return map[field] ?? null;
   }
@@ -203,7 +212,7 @@ export class ModelForm {
     } catch (error) {
       const details = error instanceof ApiRequestError ? error.error.details : undefined;
       const controls: Record<string, (typeof this.form.controls)[keyof typeof this.form.controls]> = { name: this.form.controls.name };
-      for (const key of ['numeraire', 'fixedFactors', 'fromSeason', 'toSeason', 'farms', 'backtestSeasons']) {
+      for (const key of ['numeraire', 'fixedFactors', 'fromSeason', 'toSeason', 'farms', 'backtestSeasons', 'spec']) {
         const control = this.#controlFor(key);
         if (control) controls[`definition.${key}`] = control;
       }

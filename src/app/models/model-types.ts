@@ -1,5 +1,6 @@
 import type { CurvatureReport, EquationFit } from '../../../shared/estimation-types';
-import type { ModelDefinition } from '../../../shared/model-schemas';
+import type { ForecastSpecName, ModelDefinition } from '../../../shared/model-schemas';
+import type { BackTestResult } from '../../../shared/forecast-types';
 
 export type { CoefficientEstimate, CurvatureReport, EquationFit } from '../../../shared/estimation-types';
 
@@ -138,6 +139,11 @@ export interface FitRunResult {
   residuals: { season: string; farm: string | null; fitted: Record<string, number>; residual: Record<string, number> }[];
   responseCurves: { item: string; prices: number[]; quantities: number[] }[];
   backtest: { seasons: BacktestSeason[]; items: BacktestItem[]; error: string | null };
+  /** Absent in runs stored before forecasting models existed. */
+  spec?: ForecastSpecName;
+  forecastError?: string | null;
+  /** The forecasting model's rolling-origin back-test against the plain rules (absent or null: none). */
+  skill?: BackTestResult | null;
 }
 
 /** `GET /api/model-runs/:id` (the snapshot itself is left out; `observations` counts it). */

@@ -16,6 +16,7 @@ import { describeFixed, formatDate, formatQuantity, formatShare, landSentence } 
 import type { MemberVersion, MemberVersionRow } from '../outlook/outlook-types';
 import { SourceFacts } from '../outlook/source-facts';
 import { QuantityCards } from './quantity-cards';
+import { bandCoverWords } from '../../../shared/band-words';
 
 /**
  * `/my-farm/outlook`: the member's portal. The published outlook (co-op part) and the member's own
@@ -84,9 +85,8 @@ export class PortalOutlook {
 
   /** What the cards' figures are; one wording for the farm and the co-op, as the staff pages use it. */
   protected readonly statisticNote = computed(() => {
-    const draws = this.o()?.projection.draws;
-    const n = draws ? `${new Intl.NumberFormat('en-GB').format(draws)} ` : '';
-    return `Each figure is the projection at the estimates, the model's best-fit figure and the one in the outlook e-mail; the 5–95 % band holds 9 in 10 of ${n}simulated seasons; the low and high scenarios use the low and high expected prices below.`;
+    const band = bandCoverWords(this.o()?.projection.band ?? null);
+    return `Each figure is the projection at the estimates, the model's best-fit figure and the one in the outlook e-mail. ${band} The low and high scenarios use the low and high expected prices below.`;
   });
 
   /** The member's plain account of where the numbers come from; the technical facts sit behind "How this was made". */
@@ -98,7 +98,7 @@ export class PortalOutlook {
   });
 
   protected fanNote(season: string, recorded: string): string {
-    return `${recorded}, then ${season}: for each price scenario the median of the simulated seasons (dashed) inside its 5–95 % band. The cards show the figures at the estimates, which lie close to the median.`;
+    return `${recorded}, then ${season}: for each price scenario the median (dashed) inside its band, where 9 in 10 outcomes should fall. The cards show the figures at the estimates, which lie close to the median.`;
   }
 
   protected readonly describeFixed = describeFixed;

@@ -22,6 +22,8 @@ export interface NewOutlookDialogData {
   runs: RunChoice[];
   /** Seasons that already have an outlook. */
   taken: string[];
+  /** The run the back-test favours, and why; chosen at the start. */
+  favoured: { runId: number; reason: string } | null;
 }
 
 /** Opens the draft outlook of a season with a finished model run. */
@@ -51,7 +53,7 @@ export interface NewOutlookDialogData {
           <mat-label>Model run</mat-label>
           <mat-select formControlName="modelRunId">
             @for (r of data.runs; track r.id) {
-              <mat-option [value]="r.id">{{ r.label }}</mat-option>
+              <mat-option [value]="r.id">{{ r.label }}{{ data.favoured?.runId === r.id ? ' · favoured by the back-test' : '' }}</mat-option>
             }
           </mat-select>
           <mat-hint>{{ data.runs.length ? 'Each item of the model starts at last season’s price' : 'No model run has finished yet: fit one under Models first' }}</mat-hint>
@@ -59,6 +61,9 @@ export interface NewOutlookDialogData {
             <mat-error>Choose a finished model run</mat-error>
           }
         </mat-form-field>
+        @if (data.favoured; as f) {
+          <p class="favoured">{{ f.reason }}</p>
+        }
         @if (failure(); as message) {
           <p class="np-error-text" role="alert">{{ message }}</p>
         }
@@ -77,6 +82,12 @@ export interface NewOutlookDialogData {
       min-width: min(420px, 80vw);
       padding-top: 4px;
     }
+    .favoured {
+      margin: 0;
+      max-width: 60ch;
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
+    }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
@@ -89,7 +100,8 @@ export class NewOutlookDialog {
   protected readonly form = inject(NonNullableFormBuilder).group({
     season: [this.data.season, [zodValidator(seasonLabelSchema)]],
     title: [''],
-    modelRunId: [(this.data.runs[0]?.id ?? null) as number | null, [Validators.required]],
+    // The run the back-test favours, else the newest.
+    modelRunId: [(this.data.runs.find((r) => r.id === this.data.favoured?.runId)?.id ?? this.data.runs[0]?.id ?? null) as number | null, [Validators.required]],
   });
   protected readonly saving = signal(false);
   protected readonly failure = signal<string | null>(null);

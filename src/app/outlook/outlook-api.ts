@@ -38,7 +38,7 @@ export class OutlookApi {
     return (await firstValueFrom(this.#http.get<OutlookDraft>(`/api/outlooks/${id}`))).projection;
   }
 
-  publish(id: number, body: { commentary?: string; notifyMembers: boolean }): Promise<PublishAnswer> {
+  publish(id: number, body: { commentary?: string; notifyMembers: boolean; acceptWeakSkill?: boolean }): Promise<PublishAnswer> {
     return firstValueFrom(this.#http.post<PublishAnswer>(`/api/outlooks/${id}/publish`, body));
   }
 

@@ -24,7 +24,7 @@ import { OutlookApi } from './outlook-api';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, formatPriceIn } from './outlook-format';
 import { PROJECTION_WORDS } from './outlook-list';
-import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookPatch, type ProjectionAnswer, type ProjectionState, type ScenarioRule } from './outlook-types';
+import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookPatch, type ProjectionAnswer, type ProjectionState, type RunChoiceAnswer, type ScenarioRule } from './outlook-types';
 import { ProjectionReport } from './projection-report';
 import { PublishDialog, type PublishChoice, type PublishDialogData } from './publish-dialog';
 
@@ -82,6 +82,8 @@ export class OutlookEditor {
   protected readonly draft = httpResource<OutlookDraft>(() => `/api/outlooks/${encodeURIComponent(this.id())}`);
   protected readonly projection = httpResource<ProjectionAnswer>(() => `/api/outlooks/${encodeURIComponent(this.id())}/projection`);
   protected readonly models = httpResource<ModelListRow[]>(() => '/api/models');
+  /** Every finished run's back-test in words and the run it favours. */
+  protected readonly choice = httpResource<RunChoiceAnswer>(() => '/api/outlooks/run-choice');
   protected readonly items = httpResource<Item[]>(() => '/api/items');
   protected readonly seasons = httpResource<Season[]>(() => '/api/seasons');
 
@@ -94,6 +96,7 @@ export class OutlookEditor {
 
   protected readonly runs = computed(() => finishedRuns(this.models.hasValue() ? this.models.value() : []));
   protected readonly run = computed(() => this.runs().find((r) => r.id === this.d()?.modelRunId) ?? null);
+  protected readonly favoured = computed(() => (this.choice.hasValue() ? this.choice.value().favoured : null));
   /** The items of the draft's model (as codes); the expected prices must cover them all. */
   protected readonly modelItems = computed<Item[]>(() => {
     const all = this.items.hasValue() ? this.items.value() : [];
@@ -230,7 +233,7 @@ export class OutlookEditor {
   protected publish(): void {
     const d = this.d();
     if (!d) return;
-    const data: PublishDialogData = { season: d.season, version: this.nextVersion(), hasCommentary: this.commentary().trim().length > 0 };
+    const data: PublishDialogData = { season: d.season, version: this.nextVersion(), hasCommentary: this.commentary().trim().length > 0, weakItems: d.skill?.weakItems ?? [] };
     this.#dialog
       .open<PublishDialog, PublishDialogData, PublishChoice>(PublishDialog, { data })
       .afterClosed()
@@ -238,7 +241,7 @@ export class OutlookEditor {
         if (!choice) return;
         this.busy.set('publishing');
         try {
-          const done = await this.#api.publish(d.id, { commentary: this.commentary(), notifyMembers: choice.notifyMembers });
+          const done = await this.#api.publish(d.id, { commentary: this.commentary(), notifyMembers: choice.notifyMembers, acceptWeakSkill: choice.acceptWeakSkill });
           const mails = choice.notifyMembers ? ` ${done.mails.queued} e-mails queued, ${done.mails.skipped} members skipped.` : ' No e-mails sent.';
           this.#snackBar.open(`Version ${done.version} of ${done.season} is published.${mails}`, 'OK');
           this.draft.reload();

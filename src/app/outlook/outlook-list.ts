@@ -12,7 +12,7 @@ import { AuthStore } from '../core/auth-store';
 import { NewOutlookDialog, type NewOutlookDialogData } from './new-outlook-dialog';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, nextSeasonLabel } from './outlook-format';
-import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookListRow, type ProjectionStatus } from './outlook-types';
+import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookListRow, type ProjectionStatus, type RunChoiceAnswer } from './outlook-types';
 
 export const PROJECTION_WORDS: Record<ProjectionStatus, string> = {
   none: 'not projected',
@@ -43,6 +43,7 @@ export class OutlookList {
   protected readonly canReadLog = computed(() => this.#auth.hasRole(ACCESS.outlookLog));
   readonly #models = httpResource<ModelListRow[]>(() => (this.canWrite() ? '/api/models' : undefined));
   readonly #seasons = httpResource<Season[]>(() => (this.canWrite() ? '/api/seasons' : undefined));
+  readonly #choice = httpResource<RunChoiceAnswer>(() => (this.canWrite() ? '/api/outlooks/run-choice' : undefined));
   protected readonly words = PROJECTION_WORDS;
   protected readonly formatDateTime = formatDateTime;
 
@@ -53,6 +54,7 @@ export class OutlookList {
       season: nextSeasonLabel(latest),
       runs: finishedRuns(this.#models.hasValue() ? this.#models.value() : []),
       taken: this.rows().map((r) => r.season),
+      favoured: this.#choice.hasValue() ? this.#choice.value().favoured : null,
     };
     this.#dialog
       .open<NewOutlookDialog, NewOutlookDialogData, OutlookDraft>(NewOutlookDialog, { data, autoFocus: 'first-tabbable' })

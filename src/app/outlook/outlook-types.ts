@@ -51,6 +51,27 @@ export interface VersionSummary {
   publishedBy: string | null;
 }
 
+/** A finished run's back-test in words (server/outlook/run-choice.ts `skillView`). */
+export interface RunSkillView {
+  runId: number;
+  modelId: number;
+  modelName: string;
+  spec: 'per-hectare' | 'pooled';
+  specLabel: string;
+  hasBacktest: boolean;
+  text: string;
+  items: { item: string; name: string; sentence: string; beatsRule: boolean }[];
+  weakItems: { item: string; name: string; sentence: string }[];
+  itemsBeatingRule: number;
+  itemCount: number;
+}
+
+/** `GET /api/outlooks/run-choice`: every finished run's back-test and the one it favours. */
+export interface RunChoiceAnswer {
+  favoured: { runId: number; reason: string } | null;
+  runs: RunSkillView[];
+}
+
 /** `GET /api/outlooks` rows. */
 export interface OutlookListRow {
   id: number;
@@ -80,6 +101,10 @@ export interface OutlookDraft {
   commentary: string;
   projection: ProjectionState;
   versions: VersionSummary[];
+  /** The back-test of the draft's run in words (null: no run chosen). */
+  skill: RunSkillView | null;
+  /** The latest version, and whether the draft is still exactly what it published. */
+  published: { version: number | null; publishedAt: string | null; unchangedSince: boolean };
   cautions: string[];
   createdAt: string;
   updatedAt: string;

@@ -74,9 +74,9 @@ function scenarioColumns(rows: readonly ProjectionRow[]): ColGroupDef<Projection
         flex: 1,
         valueFormatter: quantity,
       },
-      { field: `${s}_p5`, headerName: '5 %', headerTooltip: '5 % of the simulated seasons fall below this', type: 'numericColumn', minWidth: widest(`${s}_p5`, 76), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
-      { field: `${s}_median`, headerName: 'Median', headerTooltip: 'Median of the simulated seasons', type: 'numericColumn', minWidth: widest(`${s}_median`, 96), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
-      { field: `${s}_p95`, headerName: '95 %', headerTooltip: '95 % of the simulated seasons fall below this', type: 'numericColumn', minWidth: widest(`${s}_p95`, 84), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
+      { field: `${s}_p5`, headerName: '5 %', headerTooltip: '5 % of the simulated outcomes fall below this', type: 'numericColumn', minWidth: widest(`${s}_p5`, 76), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
+      { field: `${s}_median`, headerName: 'Median', headerTooltip: 'Median of the simulated outcomes', type: 'numericColumn', minWidth: widest(`${s}_median`, 96), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
+      { field: `${s}_p95`, headerName: '95 %', headerTooltip: '95 % of the simulated outcomes fall below this', type: 'numericColumn', minWidth: widest(`${s}_p95`, 84), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
     ],
   }));
 }
@@ -100,8 +100,8 @@ function scenarioColumns(rows: readonly ProjectionRow[]): ColGroupDef<Projection
     <div class="under">
       <span class="np-muted"
         >Outputs are supply, inputs demand. Each scenario's figure is “at estimates”: the model at its fitted parameters, without chance variation, as in
-        the e-mail and the member portal. Its 5 %, median and 95 % points come from {{ draws() ?? 'the' }} simulated seasons; the arrow by a scenario
-        opens or closes them. Export CSV keeps every figure unrounded.</span
+        the e-mail and the member portal. Its 5 % and 95 % points bound the band where 9 in 10 outcomes should fall, from {{ draws() ?? 'the' }} simulated
+        outcomes (what the band allows for is said with the chart); the arrow by a scenario opens or closes them. Export CSV keeps every figure unrounded.</span
       >
       <button matButton type="button" (click)="exportCsv()"><mat-icon>download</mat-icon>Export CSV</button>
     </div>

@@ -30,6 +30,8 @@ export class ProjectionReport {
   readonly farms = input<readonly FarmOutlook[]>([]);
   readonly season = input.required<string>();
   readonly draws = input<number | null>(null);
+  /** What the band covers, in words (null for projections made before it was recorded). */
+  readonly bandWords = input<string | null>(null);
   readonly scenarios = input<readonly ScenarioPrices[]>([]);
   readonly scenarioRuleText = input('');
   /** The expected prices the scenarios were made from: they carry each item's price unit. */
