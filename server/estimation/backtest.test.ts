@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { backTestForecast, describeBackTest } from './backtest.js';
 import { generateForecastPanel, PER_HECTARE_ITEMS } from './synthetic-panel.js';
 
-// Rolling-origin back-test (docs/forecasting.md §6; Tashman 2000) on an invented panel with known
+// Rolling-origin back-test (docs/forecasting.md §7; Tashman 2000) on an invented panel with known
 // truth: 60 farms × 7 seasons with farm effects, size-scaled errors and season shocks.
 const { dataset } = generateForecastPanel({ items: PER_HECTARE_ITEMS, farms: 60, seasons: 7, firstSeason: 2015, seed: 77 });
 const result = backTestForecast(dataset, { draws: 500, seed: 2 });

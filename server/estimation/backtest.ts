@@ -1,5 +1,5 @@
 /**
- * Rolling-origin back-test of the forecasting model (docs/forecasting.md §6; Tashman 2000): for
+ * Rolling-origin back-test of the forecasting model (docs/forecasting.md §7; Tashman 2000): for
  * every season t with enough history, fit on the seasons up to t and project season t + 1 for the
  * farms recorded in it, at the prices they actually faced and their actual land, then compare with
  * what happened and with two plain rules — last season's quantity, and the farm's own average

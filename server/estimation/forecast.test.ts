@@ -5,7 +5,7 @@ import { generateForecastPanel, PER_HECTARE_ITEMS } from './synthetic-panel.js';
 
 // Synthetic panel with known truth (invented data, server/estimation/synthetic-panel.ts): farm
 // effects 15 %, season shocks 8 %, residual 10 % of the mean netput per ha, residual variance per ha
-// ∝ land^−0.6. Method: docs/forecasting.md §1–§4.
+// ∝ land^−0.6. Method: docs/forecasting.md §4–§6.
 const panel = generateForecastPanel({ items: PER_HECTARE_ITEMS, farms: 120, seasons: 8, firstSeason: 2010, seed: 11 });
 const model = fitForecastModel(panel.dataset);
 

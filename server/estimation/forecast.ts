@@ -1,6 +1,6 @@
 /**
  * Predictive distributions of next season's supply and input use, per farm and for the co-op, by
- * simulation (docs/forecasting.md §4). Each draw s carries
+ * simulation (docs/forecasting.md §6). Each draw s carries
  *   θ_s = θ̂ + C_f ε_s + √v_s C_λ ε'_s        parameter uncertainty (farm-level and season parts)
  *   λ_s = √v_s Σ_λ^{1/2} z_s                  the season shock, shared by every farm, joint across items
  *   v_s = ν / χ²_ν                            the Student t scale of both season parts (ν ≈ seasons − 1)
@@ -14,8 +14,8 @@
  * from one seeded pool at distinct cyclic offsets: every farm's draws are exactly N(0, 1) and
  * independent of the shared parts, and within a draw no two farms share a normal (as long as the
  * pool is at least as long as the farm list), so the co-op sum of the idiosyncratic parts has the
- * right distribution in every draw. Farm quantiles come from a histogram of 2048 bins spanning a
- * pilot range, interpolated within the bin (error below 1/500 of the band, well under the Monte
+ * right distribution in every draw. Farm quantiles come from a histogram of 1024 bins spanning a
+ * pilot range, interpolated within the bin (error below 1/250 of the band, well under the Monte
  * Carlo error); co-op quantiles are exact order statistics.
  * Projections are estimates, not advice.
  */
@@ -239,6 +239,9 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
   const coop = new Float64Array(S);
   const counts = new Int32Array(HIST_BINS + 2);
   const pilot = new Float64Array(PILOT);
+  const gridEta = new Float64Array(S);
+  rng.fillNormals(gridEta);
+  const gridBuf = new Float64Array(S);
   const farmQuantities = farms.map(() => ({}) as Record<string, ForecastQuantity>);
   const coopOut: Record<string, ForecastQuantity> = {};
   const fx = model.farmEffects;
@@ -258,6 +261,9 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
     coop.fill(0);
     let coopPoint = 0;
     const shift = Math.floor((i * P) / n);
+    const muF = new Float64Array(F);
+    const aF = new Float64Array(F);
+    const pointF = new Float64Array(F);
     for (let f = 0; f < F; f++) {
       const pos = farmPos.get(farms[f]!.farm);
       let mu = 0;
@@ -270,16 +276,40 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
       }
       const L = landOf[f]!;
       const resVar = perHa && scale ? scale.variance[i]! * Math.exp(scale.exponent[i]! * Math.log(L / scale.referenceLand)) : fit.sigma[i]![i]!;
-      const a = Math.sqrt(varFarm + resVar);
+      muF[f] = mu;
+      aF[f] = Math.sqrt(varFarm + resVar);
       // point: θ̂, no shocks, the farm's own level, at the stated prices
       let yp = mu;
       const pv = pointSet.values[i]!;
       for (let r = 0; r < sl.length; r++) yp += pv[r]![f]! * fit.theta[sl[r]!]!;
-      const point = Math.max(0, sign[i]! * L * yp);
-      coopPoint += point;
-      const off = (perm[f]! + shift) % P;
-      const stats = farmKernel(out, coop, base, varying, sl, sets, scenarioOf, thetaDraws, k, i, f, mu, a, sign[i]! * L, pool, off, P, pilot, counts);
-      farmQuantities[f]![layout.items[i]!.name] = summarise(out, point, probs, level, stats, counts);
+      pointF[f] = Math.max(0, sign[i]! * L * yp);
+      coopPoint += pointF[f]!;
+    }
+    const name = layout.items[i]!.name;
+    if (varying.length === 0) {
+      // Every farm's per-hectare draw is base_s + μ_f + a_f·η: its quantiles are μ_f plus those of
+      // base + a·η, found once on a grid of a (log-spaced, common random numbers, interpolated
+      // in log a), and a farm's quantity is the monotone map L·max(0, ±·) of it. The per-farm loop
+      // then only adds the farm to the co-op sum of every draw and keeps the farm's moments.
+      const grid = quantileGrid(base, gridEta, aF, probs, gridBuf);
+      for (let f = 0; f < F; f++) {
+        const L = landOf[f]!;
+        const off = (perm[f]! + shift) % P;
+        const m = coopLoop(base, pool, coop, muF[f]!, aF[f]!, sign[i]! * L, off, P, S);
+        const q = new Map<number, number>();
+        for (const pr of probs) {
+          // inputs are −netput: the quantity's p-quantile is the netput's (1 − p)-quantile
+          const v = sign[i]! > 0 ? muF[f]! + grid.at(aF[f]!, pr) : -(muF[f]! + grid.at(aF[f]!, 1 - pr));
+          q.set(pr, Math.max(0, L * v));
+        }
+        farmQuantities[f]![name] = shape(pointF[f]!, m[0]!, m[1]!, q, level);
+      }
+    } else {
+      for (let f = 0; f < F; f++) {
+        const off = (perm[f]! + shift) % P;
+        const stats = farmKernel(out, coop, base, varying, sl, sets, scenarioOf, thetaDraws, k, i, f, muF[f]!, aF[f]!, sign[i]! * landOf[f]!, pool, off, P, pilot, counts);
+        farmQuantities[f]![name] = summarise(out, pointF[f]!, probs, level, stats, counts);
+      }
     }
     coopOut[layout.items[i]!.name] = summariseExact(coop, coopPoint, probs, level);
   }
@@ -300,7 +330,7 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
   };
 }
 
-const HIST_BINS = 2048;
+const HIST_BINS = 1024;
 const PILOT = 64;
 
 interface KernelStats {
@@ -310,6 +340,8 @@ interface KernelStats {
   shift: number;
   lo: number;
   width: number;
+  /** Writes the values into the output array when the kernel did not keep them. */
+  fill: (() => void) | null;
 }
 
 /**
@@ -359,23 +391,66 @@ function farmKernel(
   const width = (hi - lo) / HIST_BINS;
   const inv = 1 / width;
   counts.fill(0);
+  const shift = pilot[PILOT >> 1]!;
+  if (varying.length === 0) {
+    // the usual case (no regressor differs between farms): a tight loop that keeps no copy of the
+    // values; summarise() recomputes them in the rare case it needs an exact sort
+    const acc = fastLoop(base, pool, coop, counts, mu, a, scaleSign, off, P, S, lo, inv, shift);
+    return { zeros: acc[0]!, sum: acc[1]!, sumSq: acc[2]!, shift, lo, width, fill: () => { for (let s = 0; s < S; s++) out[s] = value(s); } };
+  }
   let zeros = 0;
   let s1 = 0;
   let s2 = 0;
-  const shift = pilot[PILOT >> 1]!;
-  const fast = varying.length === 0;
+  for (let s = 0; s < S; s++) {
+    const v = value(s);
+    out[s] = v;
+    coop[s]! += v;
+    const d = v - shift;
+    s1 += d;
+    s2 += d * d;
+    if (v === 0) {
+      zeros++;
+      continue;
+    }
+    let b = ((v - lo) * inv + 1) | 0;
+    b = b < 0 ? 0 : b > HIST_BINS + 1 ? HIST_BINS + 1 : b;
+    counts[b]!++;
+  }
+  return { zeros, sum: s1, sumSq: s2, shift, lo, width, fill: null };
+}
+
+const fastAcc = new Float64Array(3);
+
+/** v_s = max(0, scaleSign·(base_s + μ + a·η_(s+off) mod P)) for every draw: co-op sums, moments, histogram. */
+function fastLoop(
+  base: Float64Array,
+  pool: Float64Array,
+  coop: Float64Array,
+  counts: Int32Array,
+  mu: number,
+  a: number,
+  scaleSign: number,
+  off: number,
+  P: number,
+  S: number,
+  lo: number,
+  inv: number,
+  shift: number,
+): Float64Array {
+  let zeros = 0;
+  let s1 = 0;
+  let s2 = 0;
+  const top = HIST_BINS + 1;
+  const c0 = scaleSign * mu;
+  const ca = scaleSign * a;
   // two segments so the pool index needs no modulo
   let s = 0;
   for (let seg = 0; seg < 2; seg++) {
     const end = seg === 0 ? Math.min(S, P - off) : S;
     let idx = seg === 0 ? off : 0;
     for (; s < end; s++, idx++) {
-      let v: number;
-      if (fast) {
-        v = scaleSign * (base[s]! + mu + a * pool[idx]!);
-        if (!(v > 0)) v = 0;
-      } else v = value(s);
-      out[s] = v;
+      let v = scaleSign * base[s]! + c0 + ca * pool[idx]!;
+      if (!(v > 0)) v = 0;
       coop[s]! += v;
       const d = v - shift;
       s1 += d;
@@ -385,11 +460,78 @@ function farmKernel(
         continue;
       }
       let b = ((v - lo) * inv + 1) | 0;
-      b = b < 0 ? 0 : b > HIST_BINS + 1 ? HIST_BINS + 1 : b;
+      b = b < 0 ? 0 : b > top ? top : b;
       counts[b]!++;
     }
   }
-  return { zeros, sum: s1, sumSq: s2, shift, lo, width };
+  fastAcc[0] = zeros;
+  fastAcc[1] = s1;
+  fastAcc[2] = s2;
+  return fastAcc;
+}
+
+const GRID = 48;
+const coopAcc = new Float64Array(2);
+
+/** Adds one farm's quantity to the co-op sum of every draw; returns the farm's mean and sd. */
+function coopLoop(base: Float64Array, pool: Float64Array, coop: Float64Array, mu: number, a: number, scaleSign: number, off: number, P: number, S: number): Float64Array {
+  const c0 = scaleSign * mu;
+  const ca = scaleSign * a;
+  let s1 = 0;
+  let s2 = 0;
+  let s = 0;
+  for (let seg = 0; seg < 2; seg++) {
+    const end = seg === 0 ? Math.min(S, P - off) : S;
+    let idx = seg === 0 ? off : 0;
+    for (; s < end; s++, idx++) {
+      let v = scaleSign * base[s]! + c0 + ca * pool[idx]!;
+      if (!(v > 0)) v = 0;
+      coop[s]! += v;
+      s1 += v;
+      s2 += v * v;
+    }
+  }
+  const mean = s1 / S;
+  coopAcc[0] = mean;
+  coopAcc[1] = S > 1 ? Math.sqrt(Math.max(s2 - S * mean * mean, 0) / (S - 1)) : 0;
+  return coopAcc;
+}
+
+interface QuantileGrid {
+  /** p-quantile of base + a·η (type 7), interpolated in log a between grid points. */
+  at(a: number, p: number): number;
+}
+
+/** Quantiles of base_s + a·η_s at every p and 1 − p, on a log-spaced grid of a over the farms' range. */
+function quantileGrid(base: Float64Array, eta: Float64Array, aF: Float64Array, probs: number[], buf: Float64Array): QuantileGrid {
+  const S = base.length;
+  let aMin = Infinity;
+  let aMax = 0;
+  for (const v of aF) {
+    if (v < aMin) aMin = v;
+    if (v > aMax) aMax = v;
+  }
+  const ps = [...new Set([...probs, ...probs.map((p) => 1 - p)])];
+  const G = aMax > aMin * (1 + 1e-12) ? GRID : 1;
+  const la = Math.log(Math.max(aMin, 1e-300));
+  const step = G > 1 ? (Math.log(aMax) - la) / (G - 1) : 0;
+  const table = new Map<number, Float64Array>(ps.map((p) => [p, new Float64Array(G)]));
+  for (let g = 0; g < G; g++) {
+    const a = G > 1 ? Math.exp(la + g * step) : aMin;
+    for (let s = 0; s < S; s++) buf[s] = base[s]! + a * eta[s]!;
+    buf.sort();
+    for (const p of ps) table.get(p)![g] = typeQuantile(buf, p);
+  }
+  return {
+    at(a: number, p: number): number {
+      const row = table.get(p) ?? table.get(ps.reduce((best, x) => (Math.abs(x - p) < Math.abs(best - p) ? x : best)))!;
+      if (G === 1) return row[0]!;
+      const x = Math.min(Math.max((Math.log(a) - la) / step, 0), G - 1);
+      const g = Math.min(Math.floor(x), G - 2);
+      const t = x - g;
+      return row[g]! + t * (row[g + 1]! - row[g]!);
+    },
+  };
 }
 
 function quantileProbs(level: number): number[] {
@@ -404,19 +546,25 @@ function summarise(x: Float64Array, point: number, probs: number[], level: numbe
   const sd = N > 1 ? Math.sqrt(Math.max(st.sumSq - (st.sum * st.sum) / N, 0) / (N - 1)) : 0;
   const q = new Map<number, number>();
   let exact: Float64Array | null = null;
+  const under = st.zeros + counts[0]!;
+  const overStart = N - counts[HIST_BINS + 1]!;
+  // probs ascend, so one walk over the bins serves them all
+  let b = 1;
+  let cum = under;
   for (const p of probs) {
     const target = p * N; // rank (continuous) of the quantile
     if (target < st.zeros) {
       q.set(p, 0);
       continue;
     }
-    let cum = st.zeros + counts[0]!;
-    if (target < cum || (counts[HIST_BINS + 1]! > 0 && target >= N - counts[HIST_BINS + 1]!)) {
-      exact ??= Float64Array.from(x).sort();
+    if (target < under || (counts[HIST_BINS + 1]! > 0 && target >= overStart)) {
+      if (!exact) {
+        st.fill?.();
+        exact = Float64Array.from(x).sort();
+      }
       q.set(p, typeQuantile(exact, p));
       continue;
     }
-    let b = 1;
     for (; b <= HIST_BINS; b++) {
       const c = counts[b]!;
       if (cum + c > target) break;

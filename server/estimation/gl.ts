@@ -7,7 +7,7 @@
  */
 import type { NetputItem } from './dataset.js';
 import { zeros, type Mat } from './linalg.js';
-import type { CurvatureBlock, ModelData, ModelLayout, NetputDecomposition, ProfitForm } from './model.js';
+import { column, type CurvatureBlock, type ModelData, type ModelLayout, type NetputDecomposition, type ProfitForm } from './model.js';
 import type { SurEquationInput } from './sur.js';
 
 interface GlIndex {
@@ -105,8 +105,8 @@ export const generalizedLeontief: ProfitForm = {
         const zl = data.factors[l]!;
         quadCols.push(
           k === l
-            ? { name: `hz_${f[k]}`, values: Float64Array.from(zk, (v) => 0.5 * v * v), k, l }
-            : { name: `hz_${f[k]}_${f[l]}`, values: Float64Array.from(zk, (v, t) => v * zl[t]!), k, l },
+            ? { name: `hz_${f[k]}`, values: column(data.T, (t) => 0.5 * zk[t]! * zk[t]!), k, l }
+            : { name: `hz_${f[k]}_${f[l]}`, values: column(data.T, (t) => zk[t]! * zl[t]!), k, l },
         );
       }
     const equations: SurEquationInput[] = [];
@@ -118,7 +118,7 @@ export const generalizedLeontief: ProfitForm = {
       for (let j = 0; j < n; j++) {
         if (j === i) continue;
         const pj = data.prices[j]!;
-        regs.push({ name: `s_${it[j]}`, values: Float64Array.from(pi, (v, t) => Math.sqrt(pj[t]! / v)) });
+        regs.push({ name: `s_${it[j]}`, values: column(data.T, (t) => Math.sqrt(pj[t]! / pi[t]!)) });
         sl.push(ix.b(i, j));
       }
       for (let k = 0; k < m; k++) {

@@ -109,3 +109,10 @@ export function factorHessian(d: NetputDecomposition, prices: ArrayLike<number>)
   const m = d.linear[0]?.length ?? 0;
   return Array.from({ length: m }, (_, k) => Array.from({ length: m }, (_, l) => d.quadratic.reduce((s, Q, i) => s + prices[i]! * Q[k]![l]!, 0)));
 }
+
+/** A data column of length T from its values by index (a plain loop; Float64Array.from with a map function is slow on long panels). */
+export function column(T: number, f: (t: number) => number): Float64Array {
+  const out = new Float64Array(T);
+  for (let t = 0; t < T; t++) out[t] = f(t);
+  return out;
+}

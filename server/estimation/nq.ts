@@ -9,7 +9,7 @@
  */
 import type { NetputItem } from './dataset.js';
 import { zeros, type Mat } from './linalg.js';
-import type { CurvatureBlock, ModelData, ModelLayout, NetputDecomposition, ProfitForm } from './model.js';
+import { column, type CurvatureBlock, type ModelData, type ModelLayout, type NetputDecomposition, type ProfitForm } from './model.js';
 import type { SurEquationInput } from './sur.js';
 
 interface NqIndex {
@@ -132,7 +132,7 @@ export const normalizedQuadratic: ProfitForm = {
     const it = layout.items.map((x) => x.name);
     const f = layout.factors;
     const pn = data.prices[nn]!;
-    const pt = Array.from({ length: nn }, (_, j) => Float64Array.from(data.prices[j]!, (v, t) => v / pn[t]!));
+    const pt = Array.from({ length: nn }, (_, j) => column(T, (t) => data.prices[j]![t]! / pn[t]!));
     const one = new Float64Array(T).fill(1);
     const equations: SurEquationInput[] = [];
     const slots: number[][] = [];
@@ -162,8 +162,8 @@ export const normalizedQuadratic: ProfitForm = {
         const zl = data.factors[l]!;
         regs.push(
           k === l
-            ? { name: `hz_${f[k]}`, values: Float64Array.from(zk, (v) => 0.5 * v * v) }
-            : { name: `hz_${f[k]}_${f[l]}`, values: Float64Array.from(zk, (v, t) => v * zl[t]!) },
+            ? { name: `hz_${f[k]}`, values: column(T, (t) => 0.5 * zk[t]! * zk[t]!) }
+            : { name: `hz_${f[k]}_${f[l]}`, values: column(T, (t) => zk[t]! * zl[t]!) },
         );
         sl.push(ix.g(k, l));
       }
@@ -173,8 +173,8 @@ export const normalizedQuadratic: ProfitForm = {
         const pj = pt[j]!;
         regs.push(
           i === j
-            ? { name: `hp_${it[i]}`, values: Float64Array.from(pi, (v) => -0.5 * v * v) }
-            : { name: `hp_${it[i]}_${it[j]}`, values: Float64Array.from(pi, (v, t) => -v * pj[t]!) },
+            ? { name: `hp_${it[i]}`, values: column(T, (t) => -0.5 * pi[t]! * pi[t]!) }
+            : { name: `hp_${it[i]}_${it[j]}`, values: column(T, (t) => -pi[t]! * pj[t]!) },
         );
         sl.push(ix.b(i, j));
       }

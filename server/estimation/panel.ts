@@ -1,5 +1,5 @@
 /**
- * The forecasting model of a farm panel (docs/forecasting.md §1–§3).
+ * The forecasting model of a farm panel (docs/forecasting.md §4–§5).
  *
  * 'per-hectare' (the default when land and farms are recorded): with constant returns to the
  * quasi-fixed land, π(p, L, z) = L·π(p, 1, z/L), so every netput per hectare is a function of prices,
@@ -31,7 +31,7 @@ import { fitProfitFunction, prepareModel, symmetryRestrictions, type FitResult, 
 import { formOf } from './forms.js';
 import { covarianceToCorrelation, inverse, jacobiEigenvalues, symmetricEigen, type Mat } from './linalg.js';
 import type { FormName } from './model.js';
-import { fitSur, type SurEquationInput } from './sur.js';
+import { fitSur, type CrossProductCache, type SurEquationInput } from './sur.js';
 
 export type { ForecastSpec } from '../../shared/forecast-types.js';
 
@@ -227,7 +227,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   let logSum = 0;
   for (let o = 0; o < N; o++) logSum += Math.log(land[o]!);
   const Lref = Math.exp(logSum / N);
-  const logL = Float64Array.from(land, (v) => Math.log(v / Lref));
+  const logL = mapF(land, (v) => Math.log(v / Lref));
   let sxx = 0;
   for (let o = 0; o < N; o++) sxx += logL[o]! ** 2;
   const landVaries = sxx / N > 1e-6;
@@ -249,6 +249,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   let w = new Float64Array(N).fill(1);
   let sqw = new Float64Array(N).fill(1);
   let weightedCols = new Map<ArrayLike<number>, Float64Array>();
+  let gramCache: CrossProductCache = new WeakMap();
 
   const weightedEquations = (): SurEquationInput[] =>
     equations.map((eq, i) => {
@@ -273,9 +274,10 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     });
   const setWeights = (d: number): void => {
     deltaW = d;
-    w = Float64Array.from(logL, (x) => Math.exp(-d * x));
-    sqw = Float64Array.from(w, Math.sqrt);
+    w = mapF(logL, (x) => Math.exp(-d * x));
+    sqw = mapF(w, Math.sqrt);
     weightedCols = new Map();
+    gramCache = new WeakMap();
   };
   const residualsAt = (th: number[]): void => {
     equations.forEach((eq, i) => {
@@ -293,7 +295,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const updateEffects = (): void => {
     for (let i = 0; i < n; i++) {
       const r = resid[i]!;
-      const wi = Float64Array.from(logL, (x) => Math.exp(-delta[i]! * x));
+      const wi = mapF(logL, (x) => Math.exp(-delta[i]! * x));
       const m = mu[i]!;
       const lam = lambda[i]!;
       // season effects: weighted season means of r − μ
@@ -398,8 +400,10 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       sur = fitSur(eqW, {
         method: 'SUR',
         maxIterations: last ? 200 : 1,
-        tolerance: 1e-8,
+        tolerance: 1e-7,
         residualCovariance: 'noDfCor',
+        crossProductCache: gramCache,
+        residualsFromCrossProducts: true,
         ...(R.length ? { restrictions: { matrix: R } } : {}),
       });
     } catch (e) {
@@ -424,7 +428,9 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     }
     const dd = prevDelta.reduce((a, v, i) => Math.max(a, Math.abs(v - delta[i]!)), 0);
     const newW = useScale ? delta.reduce((a, v) => a + v, 0) / n : 0;
-    if (Math.abs(newW - deltaW) > 1e-4) setWeights(newW);
+    // the weights only make the estimate efficient: they settle after three rounds, so that later
+    // rounds reuse the regressors' cross products
+    if (outer <= 3 && Math.abs(newW - deltaW) > 1e-4) setWeights(newW);
     if (outer > 1 && Math.sqrt(num / Math.max(den, 1e-300)) < 1e-6 && dd < 1e-4) {
       converged = true;
       break;
@@ -822,9 +828,22 @@ function clipPsd(a: Mat): Mat {
 function residualCovarianceOf(resid: Float64Array[], lambda: Float64Array[], mu: Float64Array[], seasonOf: Int32Array, farmOf: Int32Array, sigma2: number[]): Mat {
   const n = resid.length;
   const N = resid[0]!.length;
-  const e = resid.map((r, i) => Float64Array.from(r, (v, o) => v - lambda[i]![seasonOf[o]!]! - mu[i]![farmOf[o]!]!));
+  const e = resid.map((r, i) => {
+    const out = new Float64Array(N);
+    const lam = lambda[i]!;
+    const m = mu[i]!;
+    for (let o = 0; o < N; o++) out[o] = r[o]! - lam[seasonOf[o]!]! - m[farmOf[o]!]!;
+    return out;
+  });
   const g = e.map((a) => e.map((b) => dotF(a, b)));
   return g.map((row, i) => row.map((v, j) => (v / Math.sqrt(g[i]![i]! * g[j]![j]! || 1)) * Math.sqrt(sigma2[i]! * sigma2[j]!) * (N > 0 ? 1 : 0)));
+}
+
+/** Element-wise map into a new Float64Array (a plain loop: Float64Array.from with a map function is slow). */
+function mapF(a: Float64Array, f: (v: number) => number): Float64Array<ArrayBuffer> {
+  const out = new Float64Array(a.length);
+  for (let o = 0; o < a.length; o++) out[o] = f(a[o]!);
+  return out;
 }
 
 function meanOf(v: ArrayLike<number>): number {

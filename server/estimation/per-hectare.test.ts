@@ -8,7 +8,7 @@ import { elasticitiesAt, evaluateFit } from './results.js';
 // Cobb–Douglas with constant returns in land: y = x1^a1·x2^a2·L^(1−a1−a2). With land fixed, profit is
 // L times the decreasing-returns Cobb–Douglas profit of one hectare (Lau 1978; the closed forms are
 // the textbook derivation, Varian, Microeconomic Analysis, ch. 1–2), so supply and demands are
-// exactly proportional to land at given prices (docs/forecasting.md §1). Check row: a1 = 0.3,
+// exactly proportional to land at given prices (docs/forecasting.md §4). Check row: a1 = 0.3,
 // a2 = 0.5, A = 1, p = 10, w1 = 1, w2 = 2 gives per hectare y* = 51.34898976610932,
 // x1* = 154.0469692983280, x2* = 128.3724744152733, π = 102.6979795322186 (docs/sources.md §3, row 3).
 const a1 = 0.3;

@@ -29,7 +29,22 @@ export interface SurOptions {
   /** Stop when √(Σ(Δβ)² / Σβ_old²) ≤ tolerance. Default 1e-5, as in systemfit. */
   tolerance?: number;
   residualCovariance?: ResidualCovarianceMethod;
+  /**
+   * Cross products kept between calls, for a caller that refits with some of the same column
+   * objects (e.g. the same regressors, a new dependent variable). The caller must not change a
+   * column's values while it is in the cache.
+   */
+  crossProductCache?: CrossProductCache;
+  /**
+   * Compute each iteration's Σ̂ from the cross products instead of the residuals (no pass over
+   * the data per iteration; loses digits to cancellation when the fit is nearly exact, so it is
+   * for long panels whose Σ̂ only weights the equations, not for reproducing a reference library).
+   */
+  residualsFromCrossProducts?: boolean;
 }
+
+/** Cross products of pairs of column objects (see SurOptions.crossProductCache). */
+export type CrossProductCache = WeakMap<object, WeakMap<object, number>>;
 
 export interface SurEquationResult {
   name: string;
@@ -85,7 +100,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
     K += k;
   }
 
-  const { xx: xxBlocks, xy: xyBlocks } = systemCrossProducts(equations);
+  const { xx: xxBlocks, xy: xyBlocks, yy } = systemCrossProducts(equations, options.crossProductCache);
 
   const R = options.restrictions?.matrix;
   const q = options.restrictions?.rhs ?? (R ? new Array<number>(R.length).fill(0) : []);
@@ -137,7 +152,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
 
   const residualsOf = (coef: number[]): Float64Array[] =>
     equations.map((eq, i) => {
-      const e = Float64Array.from(eq.y as ArrayLike<number>);
+      const e = new Float64Array(eq.y as ArrayLike<number>);
       eq.regressors.forEach((reg, a) => {
         const bcoef = coef[offsets[i]! + a]!;
         const v = reg.values;
@@ -146,6 +161,24 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
       return e;
     });
 
+  /** The same Σ̂ from the cross products: e_i'e_j = y_i'y_j − b_i'X_i'y_j − b_j'X_j'y_i + b_i'X_i'X_j b_j. */
+  const residCovFromCrossProducts = (coef: number[]): Mat => {
+    const S = zeros(nEq, nEq);
+    for (let i = 0; i < nEq; i++)
+      for (let j = i; j < nEq; j++) {
+        const bi = coef.slice(offsets[i]!, offsets[i]! + kEq[i]!);
+        const bj = coef.slice(offsets[j]!, offsets[j]! + kEq[j]!);
+        let s = yy[i]![j]!;
+        for (let a = 0; a < bi.length; a++) s -= bi[a]! * xyBlocks[i]![j]![a]!;
+        for (let b = 0; b < bj.length; b++) s -= bj[b]! * xyBlocks[j]![i]![b]!;
+        const blk = xxBlocks[i]![j]!;
+        for (let a = 0; a < bi.length; a++) for (let b = 0; b < bj.length; b++) s += bi[a]! * blk[a]![b]! * bj[b]!;
+        const d = covMethod === 'noDfCor' ? T : covMethod === 'geomean' ? Math.sqrt((T - kLi[i]!) * (T - kLi[j]!)) : T - Math.max(kLi[i]!, kLi[j]!);
+        S[i]![j] = s / d;
+        S[j]![i] = s / d;
+      }
+    return S;
+  };
   const residCov = (res: Float64Array[]): Mat => {
     const S = zeros(nEq, nEq);
     for (let i = 0; i < nEq; i++)
@@ -174,7 +207,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
     while (coefDiffRel > tolerance && iterations < maxIterations) {
       iterations++;
       const old = coef;
-      sigmaUsed = residCov(residualsOf(coef));
+      sigmaUsed = options.residualsFromCrossProducts ? residCovFromCrossProducts(coef) : residCov(residualsOf(coef));
       coef = gls(inverse(sigmaUsed), false).coef;
       let num = 0;
       let den = 0;
@@ -233,7 +266,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
  * Cross-products X_i'X_j and X_i'y_j of a system's equations. Columns shared between equations
  * (the same array object) are multiplied once, which matters for long panels.
  */
-export function systemCrossProducts(equations: SurEquationInput[]): { xx: Mat[][]; xy: number[][][]; yy: Mat } {
+export function systemCrossProducts(equations: SurEquationInput[], cache?: CrossProductCache): { xx: Mat[][]; xy: number[][][]; yy: Mat } {
   const T = equations[0]!.y.length;
   const columnIndex = new Map<Column, number>();
   const columns: Column[] = [];
@@ -248,7 +281,7 @@ export function systemCrossProducts(equations: SurEquationInput[]): { xx: Mat[][
   };
   const xIds = equations.map((e) => e.regressors.map((r) => idOf(r.values)));
   const yIds = equations.map((e) => idOf(e.y));
-  const gram = crossProducts(columns, T);
+  const gram = crossProducts(columns, T, cache);
   const nEq = equations.length;
   const xx: Mat[][] = [];
   const xy: number[][][] = [];
@@ -265,18 +298,67 @@ export function systemCrossProducts(equations: SurEquationInput[]): { xx: Mat[][
 }
 
 /** Gram matrix of columns (upper triangle computed, mirrored). */
-export function crossProducts(columns: Column[], T: number): Mat {
+export function crossProducts(columns: Column[], T: number, cache?: CrossProductCache): Mat {
   const U = columns.length;
   const g = zeros(U, U);
   const arrs = columns.map((c) => (c instanceof Float64Array ? c : Float64Array.from(c as ArrayLike<number>)));
+  const store = (a: number, b: number, s: number): void => {
+    g[a]![b] = s;
+    g[b]![a] = s;
+    if (cache) {
+      for (const [x, y] of [
+        [columns[a], columns[b]],
+        [columns[b], columns[a]],
+      ] as [object, object][]) {
+        let inner = cache.get(x);
+        if (!inner) cache.set(x, (inner = new WeakMap()));
+        inner.set(y, s);
+      }
+    }
+  };
   for (let a = 0; a < U; a++) {
     const ca = arrs[a]!;
+    // the pairs (a, b ≥ a) not cached yet, four columns per pass over ca (each sum in the same order)
+    const todo: number[] = [];
     for (let b = a; b < U; b++) {
+      const hit = cache?.get(columns[a] as object)?.get(columns[b] as object);
+      if (hit !== undefined) {
+        g[a]![b] = hit;
+        g[b]![a] = hit;
+      } else todo.push(b);
+    }
+    let j = 0;
+    for (; j + 4 <= todo.length; j += 4) {
+      const b0 = todo[j]!;
+      const b1 = todo[j + 1]!;
+      const b2 = todo[j + 2]!;
+      const b3 = todo[j + 3]!;
+      const c0 = arrs[b0]!;
+      const c1 = arrs[b1]!;
+      const c2 = arrs[b2]!;
+      const c3 = arrs[b3]!;
+      let s0 = 0;
+      let s1 = 0;
+      let s2 = 0;
+      let s3 = 0;
+      for (let t = 0; t < T; t++) {
+        const v = ca[t]!;
+        s0 += v * c0[t]!;
+        s1 += v * c1[t]!;
+        s2 += v * c2[t]!;
+        s3 += v * c3[t]!;
+      }
+      store(a, b0, s0);
+      store(a, b1, s1);
+      store(a, b2, s2);
+      store(a, b3, s3);
+    }
+    for (; j < todo.length; j++) {
+      const b = todo[j]!;
       const cb = arrs[b]!;
       let s = 0;
       for (let t = 0; t < T; t++) s += ca[t]! * cb[t]!;
-      g[a]![b] = s;
-      g[b]![a] = s;
+      store(a, b, s);
     }
   }
   return g;
