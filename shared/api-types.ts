@@ -68,6 +68,8 @@ export interface CoopSettings {
   coopName: string;
   currency: string;
   unitSystem: 'metric' | 'us';
+  /** How numbers are written in grids, pasted blocks and imports: 1234.5 (`point`) or 1234,5 (`comma`). */
+  decimalMark: 'point' | 'comma';
   storageCapacityT: number;
   handlingCapacityTPerDay: number;
 }

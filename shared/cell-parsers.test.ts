@@ -1,36 +1,65 @@
 import { describe, expect, it } from 'vitest';
-import { parseCurrency, parseDecimal, parseIsoDate, parseSeason, unescapeFormula, type SeasonRef } from './cell-parsers.js';
+import { guessDelimiter, parseCurrency, parseDecimal, parseNumber, parseIsoDate, parseSeason, unescapeFormula, type SeasonRef } from './cell-parsers.js';
 import { headerParts, normalUnit, sameUnit } from './unit-names.js';
 
-describe('parseDecimal', () => {
-  it('reads plain decimals with a point, a sign and an exponent', () => {
+describe('parseNumber', () => {
+  const otherMark = (s: string, other: string, mine: string) =>
+    `"${s}" is written with ${other}, but this co-op writes numbers with ${mine}; it was not read (change the number format if the source uses the other one)`;
+  const POINT = 'a decimal point (1234.5)';
+  const COMMA = 'a decimal comma (1234,5)';
+
+  it('reads plain decimals with a point, a sign and an exponent under a point', () => {
+    expect(parseNumber('1234.5', 'point')).toEqual({ ok: true, value: 1234.5 });
+    expect(parseNumber(' -0.25 ', 'point')).toEqual({ ok: true, value: -0.25 });
+    expect(parseNumber('.5', 'point')).toEqual({ ok: true, value: 0.5 });
+    expect(parseNumber('1e3', 'point')).toEqual({ ok: true, value: 1000 });
+    expect(parseNumber('+7', 'point')).toEqual({ ok: true, value: 7 });
     expect(parseDecimal('1234.5')).toEqual({ ok: true, value: 1234.5 });
-    expect(parseDecimal(' -0.25 ')).toEqual({ ok: true, value: -0.25 });
-    expect(parseDecimal('.5')).toEqual({ ok: true, value: 0.5 });
-    expect(parseDecimal('1e3')).toEqual({ ok: true, value: 1000 });
-    expect(parseDecimal('+7')).toEqual({ ok: true, value: 7 });
   });
 
-  it('refuses a decimal comma and says how to write it', () => {
-    expect(parseDecimal('12,5')).toEqual({ ok: false, message: '"12,5" uses a comma for decimals: write 12.5' });
+  it('reads decimal commas under a comma', () => {
+    expect(parseNumber('204,5', 'comma')).toEqual({ ok: true, value: 204.5 });
+    expect(parseNumber('-0,25', 'comma')).toEqual({ ok: true, value: -0.25 });
+    expect(parseNumber('1,5e3', 'comma')).toEqual({ ok: true, value: 1500 });
+    expect(parseNumber('1214', 'comma')).toEqual({ ok: true, value: 1214 });
   });
 
-  it('refuses thousands separators as ambiguous', () => {
-    const ambiguous = 'is ambiguous: write numbers with a point for decimals and no thousands separators (e.g. 1234.5)';
-    expect(parseDecimal('1 234,5')).toEqual({ ok: false, message: `"1 234,5" ${ambiguous}` });
-    // 1,234 is 1234 in one convention and 1.234 in another.
-    expect(parseDecimal('1,234')).toEqual({ ok: false, message: `"1,234" ${ambiguous}` });
-    expect(parseDecimal('1.234.567')).toEqual({ ok: false, message: `"1.234.567" ${ambiguous}` });
-    expect(parseDecimal("1'234.5")).toEqual({ ok: false, message: `"1'234.5" ${ambiguous}` });
+  it('reads thousands grouped by spaces, or by the convention\'s own separator before a decimal part', () => {
+    expect(parseNumber('1 234 567,5', 'comma')).toEqual({ ok: true, value: 1234567.5 });
+    expect(parseNumber('1\u00a0234.5', 'point')).toEqual({ ok: true, value: 1234.5 });
+    expect(parseNumber('1.234,5', 'comma')).toEqual({ ok: true, value: 1234.5 });
+    expect(parseNumber('1,234.5', 'point')).toEqual({ ok: true, value: 1234.5 });
+  });
+
+  it('refuses "204,5" under a point instead of reading 2045 (issue 15)', () => {
+    expect(parseNumber('204,5', 'point')).toEqual({ ok: false, message: otherMark('204,5', COMMA, POINT) });
+    expect(parseDecimal('12,5')).toEqual({ ok: false, message: otherMark('12,5', COMMA, POINT) });
+  });
+
+  it('refuses "2O4,5" with a letter O instead of reading 245 (issue 15), under either mark', () => {
+    for (const mark of ['point', 'comma'] as const) {
+      expect(parseNumber('2O4,5', mark)).toEqual({ ok: false, message: '"2O4,5" is not a number: it has the letter "O" in it' });
+    }
+  });
+
+  it('refuses "1.234,5" under a point and "1,234.5" under a comma (issue 15)', () => {
+    expect(parseNumber('1.234,5', 'point')).toEqual({ ok: false, message: otherMark('1.234,5', COMMA, POINT) });
+    expect(parseNumber('1,234.5', 'comma')).toEqual({ ok: false, message: otherMark('1,234.5', POINT, COMMA) });
+    expect(parseNumber('204.5', 'comma')).toEqual({ ok: false, message: otherMark('204.5', POINT, COMMA) });
+  });
+
+  it('refuses thousands grouped by the convention\'s separator with no decimals, which the other convention reads as decimals', () => {
+    expect(parseNumber('1,234', 'point')).toEqual({ ok: false, message: '"1,234" is ambiguous: with a decimal point (1234.5) write thousands without commas (1234), so they cannot be misread as decimals' });
+    expect(parseNumber('1.234', 'comma')).toEqual({ ok: false, message: '"1.234" is ambiguous: with a decimal comma (1234,5) write thousands without points (1234), so they cannot be misread as decimals' });
   });
 
   it('names text that is not a number', () => {
-    expect(parseDecimal('12,5x')).toEqual({ ok: false, message: '"12,5x" is not a number' });
-    expect(parseDecimal('€195')).toEqual({ ok: false, message: '"€195" is not a number' });
-    expect(parseDecimal('NaN')).toEqual({ ok: false, message: '"NaN" is not a number' });
-    expect(parseDecimal('Infinity')).toEqual({ ok: false, message: '"Infinity" is not a number' });
-    expect(parseDecimal('1e999')).toEqual({ ok: false, message: '"1e999" is too large' });
-    expect(parseDecimal('')).toEqual({ ok: false, message: 'empty cell' });
+    expect(parseNumber('12,5x', 'comma')).toEqual({ ok: false, message: '"12,5x" is not a number: it has the letter "x" in it' });
+    expect(parseNumber('€195', 'point')).toEqual({ ok: false, message: '"€195" is not a number: it has the character "€" in it' });
+    expect(parseNumber('NaN', 'point')).toEqual({ ok: false, message: '"NaN" is not a number: it has the letter "N" in it' });
+    expect(parseNumber("1'234.5", 'point')).toEqual({ ok: false, message: '"1\'234.5" is not a clean number: write it with a decimal point (1234.5) and no thousands separators' });
+    expect(parseNumber('1e999', 'point')).toEqual({ ok: false, message: '"1e999" is too large' });
+    expect(parseNumber('', 'comma')).toEqual({ ok: false, message: 'empty cell' });
   });
 });
 
@@ -39,6 +68,14 @@ describe('parseIsoDate', () => {
     expect(parseIsoDate('2024-02-29')).toEqual({ ok: true, value: '2024-02-29' });
     // 2023 is not a leap year (Gregorian rule).
     expect(parseIsoDate('2023-02-29')).toEqual({ ok: false, message: '"2023-02-29" is not a date in the calendar' });
+  });
+
+  it('reads a day and month that cannot be swapped: 14/08/2026 is the 14th of August in either order (issue 15)', () => {
+    expect(parseIsoDate('14/08/2026')).toEqual({ ok: true, value: '2026-08-14' });
+    expect(parseIsoDate('08/14/2026')).toEqual({ ok: true, value: '2026-08-14' });
+    expect(parseIsoDate('14.8.2026')).toEqual({ ok: true, value: '2026-08-14' });
+    expect(parseIsoDate('05/05/2026')).toEqual({ ok: true, value: '2026-05-05' });
+    expect(parseIsoDate('31/02/2026')).toEqual({ ok: false, message: '"31/02/2026" is not a date in the calendar' });
   });
 
   it('refuses day/month orders as ambiguous and suggests the ISO spelling where it can', () => {
@@ -104,5 +141,14 @@ describe('units', () => {
     expect(headerParts('price (per t)')).toEqual({ base: 'price', currency: null, unit: 't' });
     expect(headerParts('price (€/t)')).toEqual({ base: 'price', currency: null, unit: 't' });
     expect(headerParts('price')).toEqual({ base: 'price', currency: null, unit: null });
+  });
+});
+
+describe('guessDelimiter', () => {
+  it('takes the header line: a semicolon file with decimal commas is semicolon separated (issue 15)', () => {
+    expect(guessDelimiter('item;season;price\nwheat;2024/25;204,5\nwheat;2024/25;1,2\n')).toBe(';');
+    expect(guessDelimiter('\n\nitem,season,"a;b"\nwheat,2024/25,1')).toBe(',');
+    expect(guessDelimiter('item\tseason\nwheat\t2024')).toBe('\t');
+    expect(guessDelimiter('price\n204,5')).toBeNull();
   });
 });

@@ -3,6 +3,8 @@
  * file has, and what the API answers about an import. Plain data, no Node imports.
  */
 
+import type { DecimalMark } from './cell-parsers.js';
+
 /** Limits on what an import reads; each one answers a clear message when exceeded. */
 export const IMPORT_LIMITS = {
   /** Upload size (413 above it). */
@@ -82,6 +84,13 @@ export interface ImportReport {
   errorCount: number;
   /** The first MAX_LISTED_ERRORS errors, in file order. */
   errors: ImportError[];
+  /** Values that may be right but are asked about (a price far from its item's history); the commit needs them accepted. */
+  warningCount: number;
+  warnings: ImportError[];
+  /** Seasons the file names that are not set up yet (well-formed), offered for creation in the preview. */
+  unknownSeasons: { label: string; startYear: number; row: number; rows: number }[];
+  /** How the file's numbers were read: 1234.5 (`point`) or 1234,5 (`comma`). */
+  decimalMark: DecimalMark;
   /** How the file was read where a choice was made (delivery point, averaged prices, other worksheets). */
   notes: string[];
 }

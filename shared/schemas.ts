@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { ROLES } from './roles.js';
 import { idSchema } from './ids.js';
+import { DECIMAL_MARKS } from './cell-parsers.js';
 
 /** Shortest password we accept (NIST SP 800-63B §5.1.1.2 asks for at least 8; we ask for 10). */
 export const PASSWORD_MIN_LENGTH = 10;
@@ -40,6 +41,8 @@ export const settingsSchema = z.object({
   coopName: z.string().trim().min(1).max(120),
   currency: z.string().trim().regex(/^[A-Z]{3}$/, 'Use a three-letter ISO 4217 code such as EUR'),
   unitSystem: z.enum(['metric', 'us']),
+  /** How the co-op writes decimals in the grids, pasted blocks and imported files (1234.5 or 1234,5). */
+  decimalMark: z.enum(DECIMAL_MARKS).default('point'),
   storageCapacityT: z.number().nonnegative().max(1e9),
   handlingCapacityTPerDay: z.number().nonnegative().max(1e7),
 });

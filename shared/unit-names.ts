@@ -54,3 +54,16 @@ export function headerParts(header: string): HeaderParts {
   if (symbol) return { base: m[1].trim(), currency: null, unit: symbol[1].trim() };
   return { base: m[1].trim(), currency: null, unit: inner.trim().replace(/^per\s+/i, '') || null };
 }
+
+/**
+ * A unit cell of a price table: "t", "per t", or with the currency as the prices grid shows it,
+ * "EUR/t" or "€/t". The currency is null where the cell names none (or only a symbol).
+ */
+export function priceUnitParts(cell: string): { unit: string; currency: string | null } {
+  const s = cell.trim();
+  const coded = /^([A-Za-z]{3})\s*\/\s*(.+)$/.exec(s);
+  if (coded) return { currency: coded[1].toUpperCase(), unit: coded[2].trim() };
+  const symbol = /^[^\w\s]\s*\/\s*(.+)$/.exec(s);
+  if (symbol) return { currency: null, unit: symbol[1].trim() };
+  return { currency: null, unit: s };
+}

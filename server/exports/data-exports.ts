@@ -11,22 +11,19 @@ import { DateTime } from 'luxon';
 import { z } from 'zod';
 import type { Db } from '../db/client.js';
 import { deliveryPoints, farmRecords, farms, farmSeasonFactors, items, priceObservations, seasons } from '../db/schema/index.js';
+import { PRICE_COLUMNS as SHARED_PRICE_COLUMNS } from '../../shared/price-columns.js';
 import { toCsv, toXlsx, type SheetColumn, type SheetRow } from './spreadsheet-writers.js';
 
 export const exportFormatSchema = z.object({ format: z.enum(['csv', 'xlsx'], { error: 'Choose format=csv or format=xlsx' }).default('csv') });
 export type ExportFormat = z.infer<typeof exportFormatSchema>['format'];
 
-/** The prices import's fields, in order (server/imports/import-fields.ts PRICE_FIELDS). */
-export const PRICE_COLUMNS: SheetColumn[] = [
-  { key: 'item', header: 'item', width: 12 },
-  { key: 'season', header: 'season', width: 10 },
-  { key: 'deliveryPoint', header: 'delivery_point', width: 20 },
-  { key: 'price', header: 'price', type: 'number', width: 12 },
-  { key: 'unit', header: 'unit', width: 10 },
-  { key: 'currency', header: 'currency', width: 10 },
-  { key: 'source', header: 'source', width: 40 },
-  { key: 'observedOn', header: 'observed_on', type: 'date', width: 12 },
-];
+/** The price table's columns (shared/price-columns.ts), keyed as priceExportRows names them. */
+export const PRICE_COLUMNS: SheetColumn[] = SHARED_PRICE_COLUMNS.map((c) => ({
+  key: c.field.replace(/_(\w)/g, (_m, ch: string) => ch.toUpperCase()),
+  header: c.field,
+  type: c.type,
+  width: c.width,
+}));
 
 /** The records import's fields (RECORD_FIELDS): land_ha repeats on each row of a farm and season. */
 export const RECORD_COLUMNS: SheetColumn[] = [

@@ -4,6 +4,7 @@
  */
 import type { ImportField, ImportKind, Lookups } from './import-types.js';
 import { headerParts } from '../../shared/unit-names.js';
+import { PRICE_COLUMNS } from '../../shared/price-columns.js';
 
 export interface FieldDef extends ImportField {
   /** Header spellings (compared after `normalHeader`) suggested for this field. */
@@ -12,16 +13,8 @@ export interface FieldDef extends ImportField {
 
 const f = (field: string, label: string, required: boolean, synonyms: string[]): FieldDef => ({ field, label, required, synonyms: [field, ...synonyms].map(normalHeader) });
 
-export const PRICE_FIELDS: FieldDef[] = [
-  f('item', 'Item', true, ['item code', 'product', 'commodity']),
-  f('season', 'Season', true, ['crop year', 'marketing year', 'year']),
-  f('delivery_point', 'Delivery point', true, ['delivery point', 'point', 'location', 'depot', 'site']),
-  f('price', 'Price', true, ['unit price']),
-  f('unit', 'Unit', false, ['units', 'uom', 'price unit']),
-  f('currency', 'Currency', false, ['ccy']),
-  f('source', 'Source', false, ['price source']),
-  f('observed_on', 'Observed on', true, ['observed on', 'observed date', 'observed', 'date', 'price date']),
-];
+/** The price table's columns, declared in shared/price-columns.ts. */
+export const PRICE_FIELDS: FieldDef[] = PRICE_COLUMNS.map((c) => f(c.field, c.label, c.required, [...c.synonyms]));
 
 export const RECORD_FIELDS: FieldDef[] = [
   f('farm', 'Farm', true, ['farm code', 'farm id']),

@@ -4,6 +4,8 @@
  */
 import type { ImportFormat, ImportKind, ImportReport, TableName } from '../../shared/import-types.js';
 import type { BuiltWrites } from './packed-rows.js';
+import type { DecimalMark } from '../../shared/cell-parsers.js';
+import type { SeasonPrices } from '../../shared/plausibility.js';
 
 export { IMPORT_KINDS, IMPORT_STATUSES } from '../../shared/import-types.js';
 export type {
@@ -31,6 +33,10 @@ export interface Lookups {
   deliveryPoints: { id: number; name: string }[];
   /** The co-op's currency (settings): the default for prices that name none. */
   currency: string;
+  /** How the co-op writes decimals (settings); an import may choose otherwise. */
+  decimalMark: DecimalMark;
+  /** Each item's median price season by season, by item id, for the plausibility warnings. */
+  priceHistory?: Record<number, SeasonPrices>;
 }
 
 export interface ValidationOptions {
@@ -40,6 +46,8 @@ export interface ValidationOptions {
   mapping?: Record<string, string | null>;
   /** Delivery point for prices that name none (observation files; price files without the column). */
   deliveryPoint?: string;
+  /** How the file writes decimals, when the planner chose for this import; else the co-op's setting. */
+  decimalMark?: DecimalMark;
 }
 
 export interface PriceWrite {

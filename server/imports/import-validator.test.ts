@@ -23,6 +23,7 @@ function demoLookups(): Lookups {
     farms: demo.farms.map((f, i) => ({ id: i + 1, code: f.code })),
     deliveryPoints: demo.deliveryPoints.map((d, i) => ({ id: i + 1, name: d.name })),
     currency: 'EUR',
+    decimalMark: 'point',
   };
 }
 const lookups = demoLookups();
@@ -54,11 +55,15 @@ describe('prices', () => {
     });
     expect(out.ignoredColumns).toEqual(['Notes']);
     expect(out.errors).toEqual([
-      { row: 4, column: 'Price', message: '"12,5x" is not a number' },
+      { row: 4, column: 'Price', message: '"12,5x" is not a number: it has the letter "x" in it' },
       { row: 5, column: 'Item', message: 'unknown item "barley" (items: wheat, canola, nitrogen, phosphate, potash, diesel, labour)' },
       { row: 6, column: 'Unit', message: 'unit "kg" is not nitrogen\'s unit "kg N"; nitrogen prices are per kg N' },
       { row: 8, column: 'Season', message: 'unknown season "2031/32" (seasons run from 2006/07 to 2025/26)' },
-      { row: 9, column: 'Price', message: '"1 234,5" is ambiguous: write numbers with a point for decimals and no thousands separators (e.g. 1234.5)' },
+      {
+        row: 9,
+        column: 'Price',
+        message: '"1 234,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (change the number format if the source uses the other one)',
+      },
       { row: 10, column: 'Delivery point', message: 'unknown delivery point "Dover quay" (delivery points: Larkfield terminal, Ashby elevator, Millbrook store, Co-op input depot)' },
       { row: 11, column: 'Observed date', message: '"01/10/2024" is ambiguous (day/month or month/day?): write dates as YYYY-MM-DD' },
       { row: 12, column: null, message: 'the row repeats row 2 (same item, season, delivery point and observed date)' },
@@ -125,18 +130,103 @@ describe('prices', () => {
   });
 });
 
+describe('prices from a decimal-comma spreadsheet (issue 15)', () => {
+  const comma: Lookups = { ...lookups, decimalMark: 'comma' };
+  const history: Lookups['priceHistory'] = {
+    [id.item('wheat')]: [
+      { startYear: 2022, median: 231.2, count: 4 },
+      { startYear: 2023, median: 204.1, count: 4 },
+      { startYear: 2024, median: 198.5, count: 4 },
+    ],
+    [id.item('nitrogen')]: [{ startYear: 2023, median: 1.21, count: 9 }],
+  };
+  const runComma = (text: string, extra: Partial<Lookups> = {}) => validateImport(Buffer.from(text), { fileName: 'prices.csv', kind: 'prices' }, { ...comma, ...extra });
+
+  it('reads a semicolon-separated file with decimal commas, the unit as EUR/t and a date 14/08/2026', async () => {
+    const text = ['item;season;delivery point;price;unit;observed on', 'wheat;2024/25;Larkfield terminal;204,5;EUR/t;14/08/2024', 'nitrogen;2024/25;Co-op input depot;1,18;€/kg N;2024-10-01'].join('\r\n');
+    const out = await runComma(text);
+    expect(out.delimiter).toBe(';');
+    expect(out.errors).toEqual([]);
+    expect(all(out.writes.prices).map((p) => [p.price, p.currency, p.observedOn])).toEqual([
+      [204.5, 'EUR', '2024-08-14'],
+      [1.18, 'EUR', '2024-10-01'],
+    ]);
+  });
+
+  it('refuses 204,5 under a point and 2O4,5 under a comma instead of reading 2045 or 245', async () => {
+    const text = 'item,season,delivery point,price,observed on\nwheat,2024/25,Larkfield terminal,"204,5",2024-08-14\n';
+    const point = await run(text, { kind: 'prices' });
+    expect(point.errors.map((e) => [e.row, e.column])).toEqual([[2, 'price']]);
+    expect(point.errors[0].message).toMatch(/^"204,5" is written with a decimal comma/);
+    const letter = await runComma('item;season;delivery point;price;observed on\nwheat;2024/25;Larkfield terminal;2O4,5;2024-08-14\n');
+    expect(letter.errors).toEqual([{ row: 2, column: 'price', message: '"2O4,5" is not a number: it has the letter "O" in it' }]);
+  });
+
+  it('lists every problem in one pass, a repeated row included, and offers an unknown season for creation', async () => {
+    const text = [
+      'item;season;delivery point;price;unit;observed on',
+      'wheat;2024/25;Larkfield terminal;abc;EUR/t;2024-08-14',
+      'wheat;2024/25;Larkfield terminal;204,5;EUR/t;2024-08-14',
+      'wheat;2027/28;Larkfield terminal;210;EUR/t;2027-08-14',
+      'wheat;2027;Ashby elevator;211;EUR/t;2027-08-14',
+    ].join('\n');
+    const out = await runComma(text);
+    expect(out.errors.map((e) => [e.row, e.column, e.message.split(' (')[0]])).toEqual([
+      [2, 'price', '"abc" is not a number: it has the letter "a" in it'],
+      [3, null, 'the row repeats row 2'],
+      [4, 'season', 'unknown season "2027/28"'],
+      [5, 'season', 'unknown season "2027"'],
+    ]);
+    expect(out.unknownSeasons).toEqual([{ label: '2027/28', startYear: 2027, row: 4, rows: 2 }]);
+  });
+
+  it('warns about nitrogen at 1,214 EUR/kg N and wheat at 20.41 EUR/t, and not about prices near their history', async () => {
+    const text = [
+      'item;season;delivery point;price;unit;observed on',
+      'nitrogen;2024/25;Co-op input depot;1214;EUR/kg N;2024-10-01',
+      'wheat;2024/25;Larkfield terminal;20,41;EUR/t;2024-08-14',
+      'wheat;2024/25;Ashby elevator;215,8;EUR/t;2024-08-14',
+    ].join('\n');
+    const out = await runComma(text, { priceHistory: history });
+    expect(out.errors).toEqual([]);
+    expect(out.warningCount).toBe(2);
+    expect(out.warnings).toEqual([
+      {
+        row: 2,
+        column: 'price',
+        message: "1,214 EUR/kg N is 1,003.31 times Nitrogen (N)'s recent median of 1.21 EUR/kg N (over 9 prices); is it a price per tonne entered per kg N?",
+      },
+      { row: 3, column: 'price', message: "20.41 EUR/t is 1/10 of Wheat's recent median of 204.1 EUR/t (over 12 prices); is the decimal mark in the right place?" },
+    ]);
+    // The warned rows are still rows to write: the planner may accept them.
+    expect(all(out.writes.prices)).toHaveLength(3);
+  });
+});
+
 describe('records', () => {
   it('reads a semicolon file and names the bad cells', async () => {
     const out = await run(fixture('records-semicolon.csv'), { kind: 'records' });
     expect(out.delimiter).toBe(';');
     expect(out.errors).toEqual([
-      { row: 2, column: 'quantity (t)', message: '"1520,5" uses a comma for decimals: write 1520.5' },
+      {
+        row: 2,
+        column: 'quantity (t)',
+        message: '"1520,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (change the number format if the source uses the other one)',
+      },
       { row: 4, column: 'quantity (t)', message: 'empty cell: quantity is required' },
       { row: 5, column: 'farm', message: 'unknown farm "F99": no farm has this code' },
     ]);
     expect(all(out.writes.records)).toEqual([{ row: 3, farmId: id.farm('F02'), seasonId: id.season('2025/26'), itemId: id.item('canola'), quantity: 410 }]);
   });
 
+  it('reads decimal commas when the import says so', async () => {
+    const out = await run('farm;season;item;quantity (t)\nF01;2025/26;wheat;1520,5\nF02;2025/26;wheat;1.520\n', { kind: 'records', decimalMark: 'comma' });
+    expect(out.decimalMark).toBe('comma');
+    expect(out.errors).toEqual([
+      { row: 3, column: 'quantity (t)', message: '"1.520" is ambiguous: with a decimal comma (1234,5) write thousands without points (1520), so they cannot be misread as decimals' },
+    ]);
+    expect(all(out.writes.records)).toEqual([{ row: 2, farmId: id.farm('F01'), seasonId: id.season('2025/26'), itemId: id.item('wheat'), quantity: 1520.5 }]);
+  });
   it('writes land once per farm and season and refuses two different values', async () => {
     const csv = 'farm,season,item,quantity,land_ha\nF01,2025/26,wheat,1500,405\nF01,2025/26,canola,500,405\nF01,2025/26,diesel,30000,410\nF02,2025/26,,,260\n';
     const out = await run(csv, { kind: 'records' });

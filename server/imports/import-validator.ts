@@ -28,8 +28,9 @@ import type {
 import { ImportFileError } from './import-file-error.js';
 import { IMPORT_LIMITS, type ImportLimits } from './import-limits.js';
 import { columnLetter, FACTOR_NAME, fieldsFor, fixedFactorName, normalHeader, suggestMapping, type FieldDef } from './import-fields.js';
-import { parseCurrency, parseDecimal, parseIsoDate, parseSeason, quote, unescapeFormula, type Parsed, type SeasonRef } from '../../shared/cell-parsers.js';
-import { headerParts, sameUnit } from '../../shared/unit-names.js';
+import { markName, parseCurrency, parseIsoDate, parseNumber, parseSeason, quote, unescapeFormula, type DecimalMark, type Parsed, type SeasonRef } from '../../shared/cell-parsers.js';
+import { historyAt, implausiblePrice } from '../../shared/plausibility.js';
+import { headerParts, priceUnitParts, sameUnit } from '../../shared/unit-names.js';
 import { readTable, type TableMeta, type TableSink } from './table-reader.js';
 import { newBuiltWrites } from './packed-rows.js';
 
@@ -60,6 +61,11 @@ class Validator implements TableSink {
   private validRows = 0;
   private errorCount = 0;
   private errors: ImportError[] = [];
+  private warningCount = 0;
+  private warnings: ImportError[] = [];
+  /** Seasons the file names that are well-formed but not set up yet, with the first row naming each. */
+  private readonly unknownSeasons = new Map<number, { label: string; startYear: number; row: number; rows: number }>();
+  private readonly mark: DecimalMark;
   private rowHasError = false;
   /** The row the reader reported a problem for (before handing it over). */
   private problemRow: number | null = null;
@@ -106,6 +112,7 @@ class Validator implements TableSink {
     for (const fm of lookups.farms) this.farmByCode.set(fm.code.toUpperCase(), fm);
     for (const dp of lookups.deliveryPoints) this.dpByName.set(normalName(dp.name), dp);
     this.defaultSource = `Import of ${options.fileName}`.slice(0, MAX_SOURCE_CHARS);
+    this.mark = options.decimalMark ?? lookups.decimalMark ?? 'point';
     if (options.deliveryPoint !== undefined) {
       const dp = this.dpByName.get(normalName(options.deliveryPoint));
       if (!dp) {
@@ -123,6 +130,12 @@ class Validator implements TableSink {
     this.errorCount++;
     if (row !== null && row !== this.headerRow) this.rowHasError = true;
     if (this.errors.length < this.limits.maxListedErrors) this.errors.push({ row, column, message });
+  }
+
+  /** A value that may be right but is asked about: the commit needs the planner to accept the warnings. */
+  private warning(row: number, column: string | null, message: string) {
+    this.warningCount++;
+    if (this.warnings.length < this.limits.maxListedErrors) this.warnings.push({ row, column, message });
   }
 
   problem(e: ImportError) {
@@ -383,6 +396,20 @@ class Validator implements TableSink {
 
   private season = (s: string): Parsed<SeasonRef> => this.cached('season', s, () => parseSeason(s, this.lookups.seasons, this.seasonByLabel, this.seasonByYear));
 
+  /** The season of a row; a well-formed season that is not set up yet is remembered, to be offered for creation. */
+  private seasonOf(n: number, s: string | undefined): SeasonRef | null {
+    const season = this.required(n, 'season', s, this.season);
+    if (season || !s) return season;
+    const m = /^(\d{4})(?:\s*[/-]\s*(\d{2}|\d{4}))?$/.exec(s.trim());
+    if (m && /^unknown season/.test((this.season(s) as { message: string }).message)) {
+      const startYear = Number(m[1]);
+      const known = this.unknownSeasons.get(startYear);
+      if (known) known.rows++;
+      else this.unknownSeasons.set(startYear, { label: `${startYear}/${String((startYear + 1) % 100).padStart(2, '0')}`, startYear, row: n, rows: 1 });
+    }
+    return null;
+  }
+
   private farm = (s: string): Parsed<{ id: number; code: string }> =>
     this.cached('farm', s, () => {
       const fm = this.farmByCode.get(s.toUpperCase());
@@ -398,7 +425,7 @@ class Validator implements TableSink {
     });
 
   private numberIn(n: number, column: string, s: string, rule: 'price' | 'quantity' | 'land' | 'factor'): number | null {
-    const r = parseDecimal(s);
+    const r = this.cached('number', s, () => parseNumber(s, this.mark));
     if (!r.ok) {
       this.error(n, column, r.message);
       return null;
@@ -419,7 +446,7 @@ class Validator implements TableSink {
     if (this.headerUnit && !this.unitMatches(this.headerUnit, item.unit)) {
       this.error(n, this.columnOf(valueField), `the column's unit ${quote(this.headerUnit)} is not ${item.code}'s unit ${quote(item.unit)}`);
     }
-    if (cellUnit && !this.unitMatches(cellUnit, item.unit)) {
+    if (cellUnit && !this.unitMatches(priceUnitParts(cellUnit).unit, item.unit)) {
       const per = valueField === 'price' ? `; ${item.code} prices are per ${item.unit}` : `; ${item.code} is recorded in ${item.unit}`;
       this.error(n, this.columnOf('unit'), `unit ${quote(cellUnit)} is not ${item.code}'s unit ${quote(item.unit)}${per}`);
     }
@@ -439,7 +466,7 @@ class Validator implements TableSink {
 
   private priceRow(n: number, raw: string[]) {
     const item = this.required(n, 'item', this.text(raw, 'item'), this.item);
-    const season = this.required(n, 'season', this.text(raw, 'season'), this.season);
+    const season = this.seasonOf(n, this.text(raw, 'season'));
     const dpText = this.text(raw, 'delivery_point');
     const dp = dpText === undefined || (dpText === '' && this.defaultDp) ? this.defaultDp : this.required(n, 'delivery_point', dpText, this.deliveryPoint);
     const priceText = this.text(raw, 'price') ?? '';
@@ -447,13 +474,20 @@ class Validator implements TableSink {
     const observedOn = this.required(n, 'observed_on', this.text(raw, 'observed_on'), (s) => this.cached('date', s, () => parseIsoDate(s)));
     const unitText = this.text(raw, 'unit');
     if (item) this.checkUnit(n, item, unitText || undefined, 'price');
-    let currency = this.headerCurrency ?? this.lookups.currency;
+    // "EUR/t", as the prices grid shows the unit, names the currency as well.
+    const unitCurrency = unitText ? priceUnitParts(unitText).currency : null;
+    const fileCurrency = this.headerCurrency ?? unitCurrency;
+    if (this.headerCurrency && unitCurrency && unitCurrency !== this.headerCurrency) {
+      this.error(n, this.columnOf('unit'), `${unitCurrency} differs from the currency in the column ${quote(this.columnOf('price'))} (${this.headerCurrency})`);
+    }
+    let currency = fileCurrency ?? this.lookups.currency;
     const currencyText = this.text(raw, 'currency');
     if (currencyText) {
       const c = this.cached('currency', currencyText, () => parseCurrency(currencyText));
       if (!c.ok) this.error(n, this.columnOf('currency'), c.message);
-      else if (this.headerCurrency && c.value !== this.headerCurrency) {
-        this.error(n, this.columnOf('currency'), `${c.value} differs from the currency in the column ${quote(this.columnOf('price'))} (${this.headerCurrency})`);
+      else if (fileCurrency && c.value !== fileCurrency) {
+        const where = this.headerCurrency ? `the column ${quote(this.columnOf('price'))}` : `the unit ${quote(unitText ?? '')}`;
+        this.error(n, this.columnOf('currency'), `${c.value} differs from the currency in ${where} (${fileCurrency})`);
       } else currency = c.value;
     }
     let source = this.text(raw, 'source') || this.defaultSource;
@@ -461,15 +495,20 @@ class Validator implements TableSink {
       this.error(n, this.columnOf('source'), `the source is ${source.length} characters long; at most ${MAX_SOURCE_CHARS} are kept`);
       source = '';
     }
-    if (this.rowHasError || !item || !season || !dp || price === null || !observedOn) return;
-    if (!this.firstTime(`${item.id}|${season.id}|${dp.id}|${observedOn}`, n, 'item, season, delivery point and observed date')) return;
+    // A repeated row is named even when the row (or the one it repeats) has other problems, so one
+    // pass lists every problem of the file.
+    const key = item && season && dp && observedOn ? `${item.id}|${season.id}|${dp.id}|${observedOn}` : null;
+    const repeated = key !== null && !this.firstTime(key, n, 'item, season, delivery point and observed date');
+    if (this.rowHasError || repeated || !item || !season || !dp || price === null || !observedOn) return;
+    const doubt = implausiblePrice(price, item, currency, historyAt(this.lookups.priceHistory?.[item.id], season.startYear));
+    if (doubt) this.warning(n, this.columnOf('price'), doubt);
     const w: PriceWrite = { row: n, itemId: item.id, seasonId: season.id, deliveryPointId: dp.id, price, currency, source, observedOn };
     this.writes.prices.push(w);
   }
 
   private recordRow(n: number, raw: string[]) {
     const farm = this.required(n, 'farm', this.text(raw, 'farm'), this.farm);
-    const season = this.required(n, 'season', this.text(raw, 'season'), this.season);
+    const season = this.seasonOf(n, this.text(raw, 'season'));
     const itemText = this.text(raw, 'item');
     const qtyText = this.text(raw, 'quantity');
     const landText = this.text(raw, 'land_ha') ?? '';
@@ -484,9 +523,9 @@ class Validator implements TableSink {
     }
     const land = landText === '' ? null : this.numberIn(n, this.columnOf('land_ha'), landText, 'land');
     if ((itemText ?? '') === '' && (qtyText ?? '') === '' && landText === '') this.error(n, null, 'the row has no item, quantity or land_ha');
-    if (this.rowHasError || !farm || !season) return;
+    const repeated = Boolean(farm && season && item) && !this.firstTime(`${farm!.id}|${season!.id}|${item!.id}`, n, 'farm, season and item');
+    if (this.rowHasError || repeated || !farm || !season) return;
     if (item && quantity !== null) {
-      if (!this.firstTime(`${farm.id}|${season.id}|${item.id}`, n, 'farm, season and item')) return;
       this.writes.records.push({ row: n, farmId: farm.id, seasonId: season.id, itemId: item.id, quantity });
     }
     if (land !== null) this.addFactor(n, farm.id, season.id, 'land_ha', land, this.columnOf('land_ha'));
@@ -506,7 +545,7 @@ class Validator implements TableSink {
 
   private observationRow(n: number, raw: string[]) {
     const wide = this.wide!;
-    const season = this.required(n, 'season', this.text(raw, 'season'), this.season);
+    const season = this.seasonOf(n, this.text(raw, 'season'));
     const farmText = this.text(raw, 'farm') ?? '';
     const farm = farmText === '' ? null : this.required(n, 'farm', farmText, this.farm);
     const prices: { item: Item; value: number }[] = [];
@@ -538,8 +577,9 @@ class Validator implements TableSink {
       const v = this.numberIn(n, this.columns[col], s, factor === 'land_ha' ? 'land' : 'factor');
       if (v !== null) fixed.push({ factor, value: v, column: this.columns[col] });
     }
-    if (this.rowHasError || !season || (farmText !== '' && !farm)) return;
-    if (!this.firstTime(`${farm?.id ?? '-'}|${season.id}`, n, farm ? 'farm and season' : 'season, with no farm')) return;
+    const keyed = Boolean(season) && (farmText === '' || Boolean(farm));
+    const repeated = keyed && !this.firstTime(`${farm?.id ?? '-'}|${season!.id}`, n, farm ? 'farm and season' : 'season, with no farm');
+    if (this.rowHasError || repeated || !season || (farmText !== '' && !farm)) return;
     for (const p of prices) {
       const key = `${p.item.id}|${season.id}`;
       const acc = this.priceSums.get(key);
@@ -581,6 +621,10 @@ class Validator implements TableSink {
       validRows: this.validRows,
       errorCount: this.errorCount,
       errors: this.errors,
+      warningCount: this.warningCount,
+      warnings: this.warnings,
+      unknownSeasons: [...this.unknownSeasons.values()].sort((a, b) => a.startYear - b.startYear),
+      decimalMark: this.mark,
       notes: [...meta.notes, ...this.notes],
       writes: this.writes,
     };

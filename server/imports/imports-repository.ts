@@ -4,6 +4,7 @@ import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { deliveryPoints, farmRecords, farms, farmSeasonFactors, imports, items, priceObservations, seasons, users } from '../db/schema/index.js';
 import { getSettings } from '../settings/settings-service.js';
+import { priceHistories } from '../prices/price-history.js';
 import type { CommitCounts, FactorWrite, Lookups, OnExisting, PriceWrite, RecordWrite, TableCounts, TableName } from './import-types.js';
 import { forEachRow, type RowSource, type WriteSet } from './packed-rows.js';
 
@@ -23,7 +24,16 @@ export async function loadLookups(db: Db): Promise<Lookups> {
     db.select({ id: deliveryPoints.id, name: deliveryPoints.name }).from(deliveryPoints).orderBy(asc(deliveryPoints.name)),
     getSettings(db),
   ]);
-  return { items: itemRows, seasons: seasonRows, farms: farmRows, deliveryPoints: dpRows, currency: settings.currency };
+  const history = await priceHistories(db);
+  return {
+    items: itemRows,
+    seasons: seasonRows,
+    farms: farmRows,
+    deliveryPoints: dpRows,
+    currency: settings.currency,
+    decimalMark: settings.decimalMark,
+    priceHistory: Object.fromEntries(history),
+  };
 }
 
 const metaColumns = {
@@ -122,6 +132,21 @@ export async function existingKeys(db: Db, writes: WriteSet): Promise<Record<Tab
       .where(and(inArray(farmSeasonFactors.farmId, distinct(writes.factors, (r) => r.farmId)), inArray(farmSeasonFactors.seasonId, distinct(writes.factors, (r) => r.seasonId))));
     for (const r of rows) out.factors.add(`${r.f}|${r.s}|${r.k}`);
   }
+  return out;
+}
+
+/** The file rows whose price is already stored, unchanged, under the same key (a re-imported export). */
+export async function unchangedPriceRows(db: Db, writes: WriteSet): Promise<Set<number>> {
+  const out = new Set<number>();
+  if (!writes.prices.length) return out;
+  const rows = await db
+    .select({ i: priceObservations.itemId, s: priceObservations.seasonId, d: priceObservations.deliveryPointId, o: priceObservations.observedOn, p: priceObservations.price })
+    .from(priceObservations)
+    .where(and(inArray(priceObservations.itemId, distinct(writes.prices, (p) => p.itemId)), inArray(priceObservations.seasonId, distinct(writes.prices, (p) => p.seasonId))));
+  const stored = new Map(rows.map((r) => [`${r.i}|${r.s}|${r.d}|${r.o}`, r.p]));
+  forEachRow(writes.prices, (w) => {
+    if (stored.get(keyOf.prices(w)) === w.price) out.add(w.row);
+  });
   return out;
 }
 

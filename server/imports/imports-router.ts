@@ -2,6 +2,7 @@ import type { Request, Response } from 'express';
 import multer from 'multer';
 import { z } from 'zod';
 import { idParamSchema } from '../../shared/schemas.js';
+import { DECIMAL_MARKS } from '../../shared/cell-parsers.js';
 import { AppError } from '../core/app-error.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
@@ -12,6 +13,7 @@ import { getImport, ImportJobs, listImports, revalidateImport, stageImport, star
 
 const mappingSchema = z.record(z.string().max(200), z.string().max(500).nullable(), { error: 'Send the mapping as an object { field: column }' });
 const deliveryPointSchema = z.string().trim().min(1, 'Name a delivery point').max(120);
+const decimalMarkSchema = z.enum(DECIMAL_MARKS, { error: 'Choose how the file writes decimals: point (1234.5) or comma (1234,5)' });
 
 /** The multipart form's text fields (the file itself is `file`). */
 const uploadSchema = z.object({
@@ -31,9 +33,14 @@ const uploadSchema = z.object({
     })
     .pipe(mappingSchema.optional()),
   deliveryPoint: deliveryPointSchema.optional(),
+  decimalMark: decimalMarkSchema.optional(),
 });
-const validateSchema = z.object({ mapping: mappingSchema.optional(), deliveryPoint: deliveryPointSchema.nullable().optional() });
-const commitSchema = z.object({ onExisting: z.enum(['update', 'skip'], { error: 'Choose what to do with rows that already exist: update or skip' }) });
+const validateSchema = z.object({ mapping: mappingSchema.optional(), deliveryPoint: deliveryPointSchema.nullable().optional(), decimalMark: decimalMarkSchema.optional() });
+const commitSchema = z.object({
+  onExisting: z.enum(['update', 'skip'], { error: 'Choose what to do with rows that already exist: update or skip' }),
+  /** The planner has seen the warnings (prices far from their history) and accepts them. */
+  acceptWarnings: z.boolean().optional(),
+});
 const listQuery = z.object({ limit: z.coerce.number().int().min(1).max(200).default(50) });
 
 const mb = (n: number) => `${n / 1024 / 1024} MB`;
@@ -90,7 +97,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
         const view = await stageImport(
           ctx,
           jobs,
-          { bytes: req.file.buffer, fileName: req.file.originalname, kind: body.kind, mapping: body.mapping, deliveryPoint: body.deliveryPoint },
+          { bytes: req.file.buffer, fileName: req.file.originalname, kind: body.kind, mapping: body.mapping, deliveryPoint: body.deliveryPoint, decimalMark: body.decimalMark },
           req.user!.id,
         );
         res.status(201).json(view);
@@ -121,9 +128,9 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
       access: ['planner'],
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
-        const { onExisting } = parse(commitSchema, req.body, 'body');
+        const { onExisting, acceptWarnings } = parse(commitSchema, req.body, 'body');
         const log = (err: unknown) => req.log?.error({ err, importId: id }, 'import commit failed');
-        const view = await startCommit(ctx, jobs, id, onExisting, req.user!.id, log);
+        const view = await startCommit(ctx, jobs, id, onExisting, req.user!.id, log, acceptWarnings ?? false);
         res.status(202).json({ id: view.id, status: view.status, progress: view.progress });
       },
     },

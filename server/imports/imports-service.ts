@@ -9,6 +9,7 @@ import type pg from 'pg';
 import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
 import type { Db } from '../db/client.js';
+import type { DecimalMark } from '../../shared/cell-parsers.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import type {
   CommitCounts,
@@ -34,6 +35,7 @@ import {
   listImportMeta,
   loadLookups,
   ReferenceGoneError,
+  unchangedPriceRows,
   updateImport,
   writeRows,
   type ImportMeta,
@@ -190,18 +192,25 @@ function toResult(outcome: CheckedFile, existing: TableCounts, deliveryPoint: st
 }
 
 /** What the checked rows depend on besides the file: the reference data, the kind, the mapping and the delivery point. */
-function writesKey(lookups: Lookups, kind: ImportKind, mapping: Record<string, string>, deliveryPoint: string | null): string {
+function writesKey(lookups: Lookups, kind: ImportKind, mapping: Record<string, string>, deliveryPoint: string | null, decimalMark: DecimalMark): string {
   // Sorted: jsonb does not keep the key order of the mapping it stores.
   const fields = Object.entries(mapping).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
-  return createHash('sha256').update(JSON.stringify([lookups, kind, fields, deliveryPoint])).digest('hex');
+  return createHash('sha256').update(JSON.stringify([lookups, kind, fields, deliveryPoint, decimalMark])).digest('hex');
 }
 
 /** Reads and checks the bytes (worker thread), then counts the rows already in the database. */
 async function evaluate(db: Db, bytes: Uint8Array, options: ValidationOptions) {
   const lookups = await loadLookups(db);
   const outcome = await validateInWorker(bytes, options, lookups, IMPORT_LIMITS);
+  if (outcome.warningCount > 0) {
+    // A price already stored as it is (an export uploaded again) was confirmed when it was stored.
+    const unchanged = await unchangedPriceRows(db, outcome.writes);
+    const kept = outcome.warnings.filter((w) => w.row === null || !unchanged.has(w.row));
+    outcome.warningCount -= outcome.warnings.length - kept.length;
+    outcome.warnings = kept;
+  }
   const existing = countExisting(outcome.writes, await existingKeys(db, outcome.writes));
-  const key = writesKey(lookups, options.kind, outcome.mapping, options.deliveryPoint ?? null);
+  const key = writesKey(lookups, options.kind, outcome.mapping, options.deliveryPoint ?? null, outcome.decimalMark);
   return { outcome, key, result: toResult(outcome, existing, options.deliveryPoint ?? null) };
 }
 
@@ -235,12 +244,13 @@ export interface StageInput {
   kind: ImportKind;
   mapping?: Record<string, string | null>;
   deliveryPoint?: string;
+  decimalMark?: DecimalMark;
 }
 
 /** Checks an uploaded file and stores it with its preview; an unreadable file is refused and not stored. */
 export async function stageImport(ctx: AppContext, jobs: ImportJobs, input: StageInput, userId: number): Promise<ImportView> {
   const fileName = cleanFileName(input.fileName);
-  const { outcome, key, result } = await evaluate(ctx.db, input.bytes, { kind: input.kind, fileName, mapping: input.mapping, deliveryPoint: input.deliveryPoint });
+  const { outcome, key, result } = await evaluate(ctx.db, input.bytes, { kind: input.kind, fileName, mapping: input.mapping, deliveryPoint: input.deliveryPoint, decimalMark: input.decimalMark });
   const id = await insertImport(ctx.db, {
     kind: input.kind,
     fileName,
@@ -268,7 +278,7 @@ export async function revalidateImport(
   ctx: AppContext,
   jobs: ImportJobs,
   id: number,
-  body: { mapping?: Record<string, string | null>; deliveryPoint?: string | null },
+  body: { mapping?: Record<string, string | null>; deliveryPoint?: string | null; decimalMark?: DecimalMark },
 ): Promise<ImportView> {
   const meta = await metaOrThrow(ctx.db, id);
   if (jobs.get(id) || meta.status === 'committing') throw AppError.conflict('This import is being committed; wait until it has finished');
@@ -276,7 +286,9 @@ export async function revalidateImport(
   const bytes = (await getImportContent(ctx.db, id))!;
   const deliveryPoint = body.deliveryPoint === undefined ? (meta.deliveryPoint ?? undefined) : (body.deliveryPoint ?? undefined);
   const mapping = body.mapping ?? meta.mapping;
-  const { outcome, key, result } = await evaluate(ctx.db, bytes, { kind: meta.kind, fileName: meta.fileName, mapping, deliveryPoint });
+  // The decimal mark chosen for this file stays with it (the last validation's), unless chosen anew.
+  const decimalMark = body.decimalMark ?? (meta.result as ImportResult).decimalMark;
+  const { outcome, key, result } = await evaluate(ctx.db, bytes, { kind: meta.kind, fileName: meta.fileName, mapping, deliveryPoint, decimalMark });
   await updateImport(ctx.db, id, { mapping: outcome.mapping, deliveryPoint: deliveryPoint ?? null, status: 'validated', result });
   if (outcome.errorCount === 0) jobs.remember(id, key, outcome.writes);
   return viewOf({ ...meta, status: 'validated', deliveryPoint: deliveryPoint ?? null }, result);
@@ -308,6 +320,7 @@ export async function startCommit(
   onExisting: OnExisting,
   userId: number,
   log: (err: unknown) => void,
+  acceptWarnings = false,
 ): Promise<ImportView> {
   let meta = await metaOrThrow(ctx.db, id);
   if (await commitIsDead(ctx, jobs, meta)) meta = await settleDeadCommit(ctx, meta);
@@ -316,6 +329,13 @@ export async function startCommit(
   if (meta.status === 'committed') throw AppError.conflict(`This import was committed on ${meta.committedAt?.toISOString().slice(0, 10)}; upload the file again to import it anew`);
   if (result.errorCount > 0) {
     throw AppError.conflict(`The file has ${result.errorCount.toLocaleString('en-GB')} error(s); fix them (or the column mapping) and validate again before committing`);
+  }
+  if (result.warningCount > 0 && !acceptWarnings) {
+    throw new AppError(
+      409,
+      'needs_confirmation',
+      `The file has ${result.warningCount.toLocaleString('en-GB')} warning(s) (values far from their history); check them and accept them to commit`,
+    );
   }
   const started: ImportResult = { ...result, onExisting, failure: null, commitStartedAt: new Date().toISOString(), commitProcess: PROCESS_ID };
   const lock = ctx.dbKind === 'postgres' ? await takeCommitLock(ctx, id) : null;
@@ -336,10 +356,11 @@ async function runCommit(ctx: AppContext, jobs: ImportJobs, meta: ImportMeta, vi
     // The rows checked for the preview serve if the reference data is unchanged; otherwise the file is
     // read and checked again against the database as it is now.
     const lookups = await loadLookups(ctx.db);
-    let writes = jobs.recall(meta.id, writesKey(lookups, meta.kind, meta.mapping, meta.deliveryPoint));
+    const decimalMark = (meta.result as ImportResult).decimalMark;
+    let writes = jobs.recall(meta.id, writesKey(lookups, meta.kind, meta.mapping, meta.deliveryPoint, decimalMark));
     if (!writes) {
       const bytes = (await getImportContent(ctx.db, meta.id))!;
-      const options: ValidationOptions = { kind: meta.kind, fileName: meta.fileName, mapping: meta.mapping, deliveryPoint: meta.deliveryPoint ?? undefined };
+      const options: ValidationOptions = { kind: meta.kind, fileName: meta.fileName, mapping: meta.mapping, deliveryPoint: meta.deliveryPoint ?? undefined, decimalMark };
       const outcome = await validateInWorker(bytes, options, lookups, IMPORT_LIMITS);
       if (outcome.errorCount > 0) {
         result = { ...toResult(outcome, result.existing, meta.deliveryPoint), onExisting, commitStartedAt: result.commitStartedAt };
@@ -367,6 +388,24 @@ async function runCommit(ctx: AppContext, jobs: ImportJobs, meta: ImportMeta, vi
         entityId: meta.id,
         after: { kind: meta.kind, fileName: meta.fileName, onExisting, counts, byTable },
       });
+      // Prices → Change history lists imported prices too: one compact entry per import and table,
+      // not one per row (a file may hold 200,000 prices; the file itself is kept with the import).
+      const entries: [TableName, string][] = [
+        ['prices', 'price'],
+        ['records', 'farm-record'],
+        ['factors', 'farm-land'],
+      ];
+      for (const [table, entity] of entries) {
+        const c = byTable[table];
+        if (c.inserted + c.updated === 0) continue;
+        await recordAudit(tx, {
+          actorUserId: userId,
+          action: `${entity}.import`,
+          entity,
+          entityId: `import ${meta.id}`,
+          after: { import: meta.id, fileName: meta.fileName, inserted: c.inserted, updated: c.updated, skipped: c.skipped, onExisting },
+        });
+      }
       await updateImport(tx, meta.id, { status: 'committed', committedAt: new Date(), result });
     });
     Object.assign(view, result, { status: 'committed', committedAt: new Date().toISOString() });

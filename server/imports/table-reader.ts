@@ -8,6 +8,7 @@ import type ExcelJS from 'exceljs';
 import Papa from 'papaparse';
 import type { ImportError, ImportFormat } from './import-types.js';
 import { ImportFileError } from './import-file-error.js';
+import { guessDelimiter } from '../../shared/cell-parsers.js';
 import type { ImportLimits } from './import-limits.js';
 import { checkWorkbookZip, isOldExcel, isZip } from './zip-guard.js';
 
@@ -57,6 +58,7 @@ function readCsv(bytes: Uint8Array, sink: TableSink): TableMeta {
   let failure: unknown = null;
   let delimiter: string | null = null;
   Papa.parse<string[]>(text, {
+    delimiter: guessDelimiter(text) ?? '',
     delimitersToGuess: [',', ';', '\t', '|'],
     skipEmptyLines: false,
     step: (res, parser) => {

@@ -9,6 +9,7 @@ export const DEFAULT_SETTINGS: CoopSettings = {
   coopName: 'Your co-operative',
   currency: 'EUR',
   unitSystem: 'metric',
+  decimalMark: 'point',
   storageCapacityT: 0,
   handlingCapacityTPerDay: 0,
 };

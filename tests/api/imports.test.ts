@@ -36,8 +36,8 @@ function upload(a: Agent, kind: string, file: Buffer | string, fileName: string,
 }
 
 /** Commits and waits for the background work to end; answers the final GET. */
-async function commit(id: number, onExisting: 'update' | 'skip') {
-  const started = await planner.post(`/api/imports/${id}/commit`).send({ onExisting });
+async function commit(id: number, onExisting: 'update' | 'skip', acceptWarnings = false) {
+  const started = await planner.post(`/api/imports/${id}/commit`).send({ onExisting, acceptWarnings });
   expect(started.status).toBe(202);
   expect(started.body).toMatchObject({ id, status: 'committing', progress: { done: 0 } });
   for (let i = 0; i < 600; i++) {
@@ -83,11 +83,11 @@ describe('POST /api/imports (upload and preview)', () => {
     expect(res.body).toMatchObject({ kind: 'prices', fileName: 'messy-prices.csv', format: 'csv', status: 'validated', totalRows: 13, validRows: 4, errorCount: 9, errorsNotShown: 0 });
     expect(res.body.columns).toEqual(['Item', 'Season', 'Delivery point', 'Price', 'Unit', 'Currency', 'Source', 'Observed date', 'Notes']);
     expect(res.body.errors).toEqual([
-      { row: 4, column: 'Price', message: '"12,5x" is not a number' },
+      { row: 4, column: 'Price', message: '"12,5x" is not a number: it has the letter "x" in it' },
       { row: 5, column: 'Item', message: 'unknown item "barley" (items: wheat, canola, nitrogen, phosphate, potash, diesel, labour)' },
       { row: 6, column: 'Unit', message: 'unit "kg" is not nitrogen\'s unit "kg N"; nitrogen prices are per kg N' },
       { row: 8, column: 'Season', message: 'unknown season "2031/32" (seasons run from 2006/07 to 2025/26)' },
-      { row: 9, column: 'Price', message: '"1 234,5" is ambiguous: write numbers with a point for decimals and no thousands separators (e.g. 1234.5)' },
+      { row: 9, column: 'Price', message: '"1 234,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (change the number format if the source uses the other one)' },
       { row: 10, column: 'Delivery point', message: 'unknown delivery point "Dover quay" (delivery points: Ashby elevator, Co-op input depot, Larkfield terminal, Millbrook store)' },
       { row: 11, column: 'Observed date', message: '"01/10/2024" is ambiguous (day/month or month/day?): write dates as YYYY-MM-DD' },
       { row: 12, column: null, message: 'the row repeats row 2 (same item, season, delivery point and observed date)' },
@@ -112,12 +112,39 @@ describe('POST /api/imports (upload and preview)', () => {
     expect(await priceOf('canola', '2024/25', 'Larkfield terminal', '2024-09-02')).toBe(461.25);
     const after = await tableCounts();
     expect(after.price_observations - before.price_observations).toBe(7);
-    expect(after.audit_log - before.audit_log).toBe(1);
-    const audit = await rows(sql`select action, entity, entity_id, after from audit_log order by id desc limit 1`);
-    expect(audit[0]).toMatchObject({ action: 'import.commit', entity: 'import', entity_id: String(res.body.id) });
-    expect((audit[0].after as { counts: unknown }).counts).toEqual({ inserted: 7, updated: 5, skipped: 0 });
+    // One entry for the import, and one compact entry in the prices' own change history.
+    expect(after.audit_log - before.audit_log).toBe(2);
+    const audit = await rows(sql`select action, entity, entity_id, after from audit_log order by id desc limit 2`);
+    expect(audit[1]).toMatchObject({ action: 'import.commit', entity: 'import', entity_id: String(res.body.id) });
+    expect((audit[1].after as { counts: unknown }).counts).toEqual({ inserted: 7, updated: 5, skipped: 0 });
+    expect(audit[0]).toMatchObject({ action: 'price.import', entity: 'price', entity_id: `import ${res.body.id}` });
+    expect(audit[0].after).toMatchObject({ import: res.body.id, fileName: 'messy-prices-fixed.csv', inserted: 7, updated: 5, skipped: 0 });
+    const history = await planner.get('/api/audit?entity=price');
+    expect(history.body.rows[0]).toMatchObject({ action: 'price.import', entity: 'price' });
     const again = await planner.post(`/api/imports/${res.body.id}/commit`).send({ onExisting: 'update' });
     expect(again.status).toBe(409);
+  });
+
+  it('a price far from its history is a warning the planner accepts before the commit (issue 15)', async () => {
+    const text = ['item;season;delivery point;price;unit;observed on', 'nitrogen;2025/26;Co-op input depot;1214;EUR/kg N;14/11/2025', 'wheat;2025/26;Larkfield terminal;20,41;EUR/t;14/08/2025'].join('\n');
+    const res = await upload(planner, 'prices', text, 'slips.csv', { decimalMark: 'comma' });
+    expect(res.status).toBe(201);
+    expect(res.body).toMatchObject({ errorCount: 0, warningCount: 2, decimalMark: 'comma', delimiter: ';' });
+    expect(res.body.warnings.map((w: { row: number; message: string }) => [w.row, w.message.split(' is ')[0]])).toEqual([
+      [2, '1,214 EUR/kg N'],
+      [3, '20.41 EUR/t'],
+    ]);
+    const refused = await planner.post(`/api/imports/${res.body.id}/commit`).send({ onExisting: 'skip' });
+    expect(refused.status).toBe(409);
+    expect(refused.body.error).toMatchObject({ code: 'needs_confirmation' });
+    expect(await priceOf('nitrogen', '2025/26', 'Co-op input depot', '2025-11-14')).toBeNull();
+    const started = await planner.post(`/api/imports/${res.body.id}/commit`).send({ onExisting: 'skip', acceptWarnings: true });
+    expect(started.status).toBe(202);
+    for (let i = 0; i < 200 && (await planner.get(`/api/imports/${res.body.id}`)).body.status === 'committing'; i++) await new Promise((r) => setTimeout(r, 25));
+    expect(await priceOf('nitrogen', '2025/26', 'Co-op input depot', '2025-11-14')).toBe(1214);
+    expect(await priceOf('wheat', '2025/26', 'Larkfield terminal', '2025-08-14')).toBe(20.41);
+    // The later tests re-import the whole table; they should not meet these two.
+    await t.database.db.execute(sql`delete from price_observations where price in (1214, 20.41)`);
   });
 
   it('rows that already exist are skipped or updated, as the planner chooses', async () => {
@@ -279,14 +306,15 @@ describe('a failed commit', () => {
       expect(res.body).toMatchObject({ errorCount: 0, totalRows: 4500, existingRows: 320 });
       const before = await tableCounts();
       const [{ total: priceSum }] = await rows(sql`select sum(price)::text as total from price_observations`);
-      const done = await commit(res.body.id, 'update');
+      // Inputs priced at 0.6 EUR/kg re-keyed at +1 are beyond 3× their history: accepted here.
+      const done = await commit(res.body.id, 'update', true);
       expect(done.body.status).toBe('failed');
       expect(done.body.counts).toBeNull();
       expect(done.body.failure).toMatch(/^The database refused the prices from file rows 2002–4001: .*test_refuse_999.*\. Nothing was written\.$/);
       expect(await tableCounts()).toEqual(before);
       expect((await rows(sql`select sum(price)::text as total from price_observations`))[0].total).toBe(priceSum);
       await t.database.db.execute(sql`alter table price_observations drop constraint test_refuse_999`);
-      const retried = await commit(res.body.id, 'update');
+      const retried = await commit(res.body.id, 'update', true);
       expect(retried.body).toMatchObject({ status: 'committed', counts: { inserted: 4180, updated: 320, skipped: 0 } });
       expect(await priceOf('wheat', '2010/11', 'Larkfield terminal', '2010-09-01')).toBe(200);
     } finally {

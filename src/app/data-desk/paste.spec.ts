@@ -44,6 +44,13 @@ describe('readPastedPrices', () => {
     ]);
   });
 
+  it('should read decimal commas and the unit as the grid shows it (EUR/t) in a decimal-comma co-op, and refuse 2O4,5', () => {
+    const text = ['item;season;delivery point;price;unit;observed on', 'wheat;2024/25;Larkfield terminal;204,5;EUR/t;14/08/2024', 'wheat;2024/25;Larkfield terminal;2O4,5;EUR/t;2024-08-15'].join('\n');
+    const read = readPastedPrices(parseTable(text), testLookups(), { currency: 'EUR', source: 'Bids', decimalMark: 'comma' });
+    expect(read.validRows).toEqual([{ itemId: 1, seasonId: 19, deliveryPointId: 1, price: 204.5, currency: 'EUR', source: 'Bids', observedOn: '2024-08-14' }]);
+    expect(read.problems).toEqual([{ row: 3, column: 'Price', message: '"2O4,5" is not a number: it has the letter "O" in it' }]);
+  });
+
   it('should list every bad cell with its line and column, in the words of the import', () => {
     const text = [
       'item\tseason\tdelivery point\tprice\tunit\tcurrency\tsource\tobserved on',
@@ -56,7 +63,11 @@ describe('readPastedPrices', () => {
     const read = readPastedPrices(parseTable(text), testLookups(), defaults);
     expect(read.validRows).toEqual([]);
     expect(read.problems).toEqual([
-      { row: 2, column: 'Price', message: '"12,5" uses a comma for decimals: write 12.5' },
+      {
+        row: 2,
+        column: 'Price',
+        message: '"12,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (change the number format if the source uses the other one)',
+      },
       { row: 3, column: 'Item', message: 'unknown item "barley" (items: wheat, nitrogen, diesel)' },
       { row: 3, column: 'Season', message: 'unknown season "2031/32"' },
       { row: 3, column: 'Delivery point', message: 'unknown delivery point "Dover quay" (delivery points: Larkfield terminal, Co-op input depot)' },

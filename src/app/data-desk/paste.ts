@@ -3,8 +3,9 @@ import type { PriceInput } from '../../../shared/data-schemas';
 import { priceSchema } from '../../../shared/data-schemas';
 // The import's own cell parsers and unit comparison (pure TypeScript, luxon only), so a pasted block
 // and an uploaded file are judged by the same rules in the same words.
-import { parseCurrency, parseDecimal, parseIsoDate, quote } from '../../../shared/cell-parsers';
-import { sameUnit } from '../../../shared/unit-names';
+import { guessDelimiter, parseCurrency, parseDecimal, parseIsoDate, parseNumber, quote, type DecimalMark } from '../../../shared/cell-parsers';
+import { PRICE_COLUMNS, PRICE_HEADER_NAMES, normalColumnName, type PriceColumnField } from '../../../shared/price-columns';
+import { priceUnitParts, sameUnit } from '../../../shared/unit-names';
 import type { Lookups } from './reference-store';
 
 /** One problem of a pasted block: `row` counts the pasted lines from 1 (a header line included), `column` as headed. */
@@ -22,59 +23,20 @@ export interface PasteProblem {
 export function parseTable(text: string): string[][] {
   const clean = text.replace(/^\uFEFF/, '').replace(/\r\n?/g, '\n');
   if (clean.trim() === '') return [];
-  const delimiter = clean.includes('\t') ? '\t' : '';
+  const delimiter = clean.includes('\t') ? '\t' : (guessDelimiter(clean) ?? '');
   const result = Papa.parse<string[]>(clean, { delimiter, delimitersToGuess: [',', ';', '|'], skipEmptyLines: 'greedy' });
   return result.data.map((row) => row.map((cell) => cell.trim()));
 }
 
-/** The columns of a pasted block of prices, in the order assumed when the block has no header line. */
-export const PRICE_PASTE_COLUMNS = ['item', 'season', 'delivery_point', 'price', 'currency', 'source', 'observed_on'] as const;
-export type PricePasteColumn = (typeof PRICE_PASTE_COLUMNS)[number] | 'unit';
+/** The columns of a pasted block of prices, in the order assumed when the block has no header line (the export's order without the unit). */
+export const PRICE_PASTE_COLUMNS = PRICE_COLUMNS.map((c) => c.field).filter((f) => f !== 'unit') as Exclude<PriceColumnField, 'unit'>[];
+export type PricePasteColumn = PriceColumnField;
 
-const COLUMN_LABEL: Record<PricePasteColumn, string> = {
-  item: 'Item',
-  season: 'Season',
-  delivery_point: 'Delivery point',
-  price: 'Price',
-  unit: 'Unit',
-  currency: 'Currency',
-  source: 'Source',
-  observed_on: 'Observed on',
-};
+const COLUMN_LABEL = Object.fromEntries(PRICE_COLUMNS.map((c) => [c.field, c.label])) as Record<PricePasteColumn, string>;
 
-/** Header spellings understood in a pasted block (the same names as the import's and the export's columns). */
-const HEADER_NAMES: Record<string, PricePasteColumn> = {
-  item: 'item',
-  'item code': 'item',
-  product: 'item',
-  commodity: 'item',
-  season: 'season',
-  'crop year': 'season',
-  'marketing year': 'season',
-  year: 'season',
-  'delivery point': 'delivery_point',
-  point: 'delivery_point',
-  location: 'delivery_point',
-  depot: 'delivery_point',
-  price: 'price',
-  'unit price': 'price',
-  unit: 'unit',
-  currency: 'currency',
-  ccy: 'currency',
-  source: 'source',
-  'observed on': 'observed_on',
-  observed: 'observed_on',
-  date: 'observed_on',
-  'price date': 'observed_on',
-};
-
+/** The header spellings of the import and the export (shared/price-columns.ts), after the bracketed unit is dropped. */
 function headerKey(cell: string): PricePasteColumn | undefined {
-  const base = cell
-    .replace(/\s*[([].*[)\]]\s*$/, '')
-    .toLowerCase()
-    .replace(/[\s_-]+/g, ' ')
-    .trim();
-  return HEADER_NAMES[base];
+  return PRICE_HEADER_NAMES.get(normalColumnName(cell.replace(/\s*[([].*[)\]]\s*$/, '')));
 }
 
 export interface PastedPriceRow {
@@ -100,6 +62,8 @@ export interface PasteDefaults {
   currency: string;
   /** Source for rows that name none; rows need one, so a block without the column needs this. */
   source: string;
+  /** How the co-op writes decimals (settings); a number written otherwise is refused. */
+  decimalMark?: DecimalMark;
 }
 
 /**
@@ -165,17 +129,19 @@ export function readPastedPrices(table: string[][], lookups: Lookups, defaults: 
     let price: number | null = null;
     const priceText = need('price');
     if (priceText !== null) {
-      const parsed = parseDecimal(priceText);
+      const parsed = parseNumber(priceText, defaults.decimalMark ?? 'point');
       if (!parsed.ok) problem('price', parsed.message);
       else price = parsed.value;
     }
-    if (item && cells.unit !== '' && !sameUnit(cells.unit, item.unit)) {
+    const unitCell = cells.unit === '' ? null : priceUnitParts(cells.unit);
+    if (item && unitCell && !sameUnit(unitCell.unit, item.unit)) {
       problem('unit', `unit ${quote(cells.unit)} is not ${item.code}'s unit ${quote(item.unit)}; ${item.code} prices are per ${item.unit}`);
     }
-    let currency = defaults.currency;
+    let currency = unitCell?.currency ?? defaults.currency;
     if (cells.currency !== '') {
       const parsed = parseCurrency(cells.currency);
       if (!parsed.ok) problem('currency', parsed.message);
+      else if (unitCell?.currency && parsed.value !== unitCell.currency) problem('currency', `${parsed.value} differs from the currency in the unit ${quote(cells.unit)}`);
       else currency = parsed.value;
     }
     const source = cells.source !== '' ? cells.source : defaults.source.trim();
