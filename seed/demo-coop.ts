@@ -18,6 +18,7 @@ export const DEMO_SETTINGS = {
   coopName: 'Larkfield Grain & Supply Co-operative',
   currency: 'EUR',
   unitSystem: 'metric' as const,
+  decimalMark: 'point' as const,
   storageCapacityT: 60000,
   handlingCapacityTPerDay: 2500,
 };

@@ -15,7 +15,7 @@ import { UnitSwitch } from './unit-switch';
  * 907.18474 kg, so 25 t = 25000 / 907.18474 = 27.5577828 (rounded) short tons and EUR 475/t = EUR 430.9127515/short ton.
  */
 
-const settings: CoopSettings = { coopName: 'Demo', currency: 'EUR', unitSystem: 'metric', storageCapacityT: 1, handlingCapacityTPerDay: 1 };
+const settings: CoopSettings = { coopName: 'Demo', currency: 'EUR', unitSystem: 'metric', decimalMark: 'point', storageCapacityT: 1, handlingCapacityTPerDay: 1 };
 
 describe('UnitSwitch', () => {
   beforeEach(() => {

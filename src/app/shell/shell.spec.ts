@@ -13,6 +13,7 @@ const settings: CoopSettings = {
   coopName: 'Vale Grain Co-operative',
   currency: 'EUR',
   unitSystem: 'metric',
+  decimalMark: 'point',
   storageCapacityT: 12000,
   handlingCapacityTPerDay: 400,
 };

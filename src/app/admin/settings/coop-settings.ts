@@ -42,6 +42,7 @@ export class CoopSettingsPage {
     coopName: ['', [Validators.required, zodValidator(settingsSchema.shape.coopName)]],
     currency: ['', [Validators.required, zodValidator(settingsSchema.shape.currency)]],
     unitSystem: ['metric' as CoopSettings['unitSystem'], Validators.required],
+    decimalMark: ['point' as CoopSettings['decimalMark'], Validators.required],
     storageCapacityT: [0, [Validators.required, zodValidator(settingsSchema.shape.storageCapacityT)]],
     handlingCapacityTPerDay: [0, [Validators.required, zodValidator(settingsSchema.shape.handlingCapacityTPerDay)]],
   });
