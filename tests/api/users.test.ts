@@ -109,7 +109,7 @@ describe('password reset', () => {
 describe('settings', () => {
   it('the admin saves settings and every role reads them; others may not write', async () => {
     const admin = await signedIn(t.app, 'admin@example.org');
-    const body = { coopName: 'Larkfield Co-op', currency: 'EUR', unitSystem: 'metric', storageCapacityT: 61000, handlingCapacityTPerDay: 2400 };
+    const body = { coopName: 'Larkfield Co-op', currency: 'EUR', unitSystem: 'metric', decimalMark: 'comma', storageCapacityT: 61000, handlingCapacityTPerDay: 2400 };
     expect((await admin.put('/api/settings').send(body)).status).toBe(200);
     const planner = await signedIn(t.app, 'planner@example.org');
     expect((await planner.get('/api/settings')).body).toEqual(body);
