@@ -6,8 +6,8 @@ import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { nextSeasonLabel, runProjectCli } from './project-cli.js';
 
-// Contract test of the project command (/work/shared/project-contract.md, documented in README.md
-// "The project command"): fixtures from tests/fixtures/estimation/make-forecast-panel.ts (invented).
+// Contract test of the project command (docs/project-command.md): fixtures from
+// tests/fixtures/estimation/make-forecast-panel.ts (invented).
 const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const fixtures = join(root, 'tests', 'fixtures', 'estimation');
 const history = join(fixtures, 'forecast-history.csv');

@@ -1,5 +1,5 @@
 /**
- * The project command (/work/shared/project-contract.md):
+ * The project command (docs/project-command.md):
  *   npm run --silent project -- --input HISTORY.csv --at NEXT.csv [--numeraire ITEM] [--trend]
  *                               [--form nq|gl] [--level 0.9] [--draws 10000] [--seed 1] [--spec per-hectare|pooled]
  * Fits the default forecasting model (per hectare with farm and season effects when HISTORY.csv
