@@ -72,17 +72,30 @@ function series(label: string, cmd: string, argv: string[], runs: number): Recor
   return out;
 }
 
+/** A fixed yardstick for the machine's state: 30 million streaming multiply-adds (CPU ms), as in bench/estimation-bench.ts. */
+const yardstick = (): number => {
+  const a = new Float64Array(10000).map((_, i) => i * 1e-4);
+  const b = new Float64Array(10000).fill(0.5);
+  const o = new Float64Array(10000);
+  const c0 = process.cpuUsage();
+  for (let k = 0; k < 3000; k++) for (let s = 0; s < 10000; s++) o[s]! += a[s]! * 1.5 + b[s]!;
+  const c = process.cpuUsage(c0);
+  return Math.round((c.user + c.system) / 100) / 10;
+};
+
 const loadStart = loadavg();
+const yardStart = yardstick();
 const results = [
   series('npm run --silent fit -- --input FILE --trend', 'npm', ['run', '--silent', 'fit', '--', ...args], 7),
   series('node scripts/cli.mjs fit --input FILE --trend', process.execPath, [join(root, 'scripts', 'cli.mjs'), 'fit', ...args], 7),
   series('tsx server/estimation/cli.ts --input FILE --trend (old start, for comparison)', join(root, 'node_modules', '.bin', 'tsx'), [join(root, 'server', 'estimation', 'cli.ts'), ...args], 3),
 ];
 const loadEnd = loadavg();
+const yardEnd = yardstick();
 rmSync(work, { recursive: true, force: true });
 const doc = {
   measuredAt: new Date().toISOString(),
-  machine: { cpus: cpus().length, model: cpus()[0]?.model ?? '', node: process.version, loadAverageStart: loadStart.map((v) => Math.round(v * 100) / 100), loadAverageEnd: loadEnd.map((v) => Math.round(v * 100) / 100) },
+  machine: { cpus: cpus().length, model: cpus()[0]?.model ?? '', node: process.version, loadAverageStart: loadStart.map((v) => Math.round(v * 100) / 100), loadAverageEnd: loadEnd.map((v) => Math.round(v * 100) / 100), yardstickCpuMs: { start: yardStart, end: yardEnd, what: '30 million streaming multiply-adds on Float64Array (about 100 ms on an idle machine here)' } },
   input: { observations: dataset.rows.length, items: items.length, fixed: ['land'], trend: true },
   targetMs: 1000,
   note: 'Wall time of the whole process, each run a fresh process. Under a high load average the wall time is dominated by waiting for a CPU; the CPU time is the steadier figure.',

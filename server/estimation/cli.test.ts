@@ -92,11 +92,15 @@ describe('fit command: bad input gets one clear line and exit code 2', () => {
 
   it('as a process: exit code 2, one line on stderr, no stack trace', () => {
     const f = writeCsv('proc.csv', withCell(5, 'output:canola', '12,5'.replace(',', ';')));
-    const r = spawnSync(join(root, 'node_modules', '.bin', 'tsx'), [join(root, 'server', 'estimation', 'cli.ts'), '--input', f], { cwd: root, encoding: 'utf8' });
+    // as npm run fit starts it: the bundled JavaScript of scripts/cli.mjs
+    const r = spawnSync(process.execPath, [join(root, 'scripts', 'cli.mjs'), 'fit', '--input', f], { cwd: root, encoding: 'utf8' });
     expect(r.status).toBe(2);
     expect(r.stdout).toBe('');
     expect(r.stderr).toBe('proc.csv: row 5, column output:canola: "12;5" is not a number\n');
-    expect(r.stderr).not.toMatch(/\bat .*\.ts:\d+/);
+    expect(r.stderr).not.toMatch(/\bat .*\.(ts|mjs):\d+/);
+    const unknown = spawnSync(process.execPath, [join(root, 'scripts', 'cli.mjs'), 'fitt'], { cwd: root, encoding: 'utf8' });
+    expect(unknown.status).toBe(2);
+    expect(unknown.stderr).toBe('cli: unknown command "fitt" (commands: fit, project)\n');
   }, 30000);
 });
 
