@@ -5,8 +5,8 @@
 
 /**
  * First-order (Karush–Kuhn–Tucker) conditions of the convexity-constrained maximum likelihood
- * problem, min f = −ℓ over θ subject to C ⪰ 0, at the reported estimate (docs/profit-functions.md,
- * "Imposing convexity"). Measures are in log-likelihood units per standard error, so 1e-6 means a
+ * problem, min f = −ℓ over θ subject to C ⪰ 0, at the reported estimate (docs/profit-functions.md
+ * §7.3). Measures are in log-likelihood units per standard error, so 1e-6 means a
  * one-standard-error move changes the log-likelihood by about 1e-6 at first order.
  */
 export interface OptimalityCheck {

@@ -1,6 +1,6 @@
 /**
  * Convexity in prices: checking it, and imposing it by maximum likelihood subject to a positive
- * semidefinite curvature block C (docs/profit-functions.md, "Imposing convexity"). C ⪰ 0 is the
+ * semidefinite curvature block C (docs/profit-functions.md §7.2–7.3). C ⪰ 0 is the
  * condition that B = L L′ for some L (Lau 1978; Diewert & Wales 1987); the optimum is often on the
  * boundary, with C of reduced rank, and the solver below reaches it there too and checks the
  * Karush–Kuhn–Tucker conditions at the end.
@@ -81,8 +81,7 @@ export interface ImposeArgs {
 type Entry = [number, number, number];
 
 /**
- * Maximum likelihood of the netput system subject to C ⪰ 0 (docs/profit-functions.md, "Imposing
- * convexity").
+ * Maximum likelihood of the netput system subject to C ⪰ 0 (docs/profit-functions.md §7.2–7.3).
  *
  * With Σ̂ fixed the Gaussian objective in θ is the quadratic (θ − θ̂_Σ)'A(θ − θ̂_Σ) + const, with
  * A = S'X'(Σ̂⁻¹⊗I)X S and θ̂_Σ the symmetry-restricted GLS estimate. The parameters outside C are
