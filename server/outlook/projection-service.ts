@@ -1,7 +1,8 @@
 /**
- * The season projection of an outlook draft: the engine's projectSeason (Monte Carlo,
- * docs/forecasting.md §2.2) run in the worker pool as a database-backed job, for every farm at its
- * own fixed factors and the trend of the outlook's season, at the low/base/high price scenarios;
+ * The season projection of an outlook draft: the run's forecasting model (projectForecast,
+ * docs/forecasting.md §6, §9; projectSeason, §2.2, for a run stored without one) run in the worker
+ * pool as a database-backed job, for every farm at its own fixed factors and the trend of the
+ * outlook's season, at the low/base/high price scenarios;
  * then the tables the screens, the e-mails and the published snapshot show (quantities in item
  * units and tonnes, the co-op's deliveries against its storage and handling capacity, history for
  * fan charts).
