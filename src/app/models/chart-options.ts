@@ -42,9 +42,10 @@ const base = {
 };
 
 /** Co-op totals by season: what members delivered or bought, and what the model fits. */
-export function fittedOption(seasons: string[], actual: number[], fitted: number[], quantityLabel: string): EChartsCoreOption {
+export function fittedOption(seasons: string[], actual: number[], fitted: number[], quantityLabel: string, unit = ''): EChartsCoreOption {
   return {
     ...base,
+    tooltip: { trigger: 'axis', valueFormatter: (v: unknown) => (typeof v === 'number' ? `${formatAmount(v)}${unit ? ` ${unit}` : ''}` : String(v)) },
     grid: { left: 72, right: 16, top: 40, bottom: 56 },
     xAxis: {
       type: 'category',
@@ -61,31 +62,37 @@ export function fittedOption(seasons: string[], actual: number[], fitted: number
 }
 
 export interface ResidualPoint {
-  fitted: number;
+  season: string;
   residual: number;
   label: string;
 }
 
-/** Farm-season residuals (actual − fitted) against the fitted quantity, with the zero line. */
-export function residualOption(points: ResidualPoint[], quantityLabel: string): EChartsCoreOption {
+/**
+ * Each farm's miss (actual − fitted) in each season, seasons along the bottom and the zero line
+ * across: a season where the dots sit above or below zero is one the model did not see coming
+ * (weather, a policy change), a widening spread a change in the farms.
+ */
+export function missesBySeasonOption(points: ResidualPoint[], seasons: string[], unit: string): EChartsCoreOption {
+  const index = new Map(seasons.map((s, k) => [s, k]));
+  const withUnit = (v: number) => `${formatAmount(v)}${unit ? ` ${unit}` : ''}`;
   return {
     ...base,
     tooltip: {
       trigger: 'item',
-      formatter: (p: { data: [number, number, string] }) => `${p.data[2]}<br>fitted ${formatAmount(p.data[0])}, residual ${formatAmount(p.data[1])}`,
+      formatter: (p: { data: [number, number, string] }) => `${p.data[2]}<br>actual − fitted: ${withUnit(p.data[1])}`,
     },
-    grid: { left: 72, right: 16, top: 40, bottom: 48 },
-    xAxis: { ...valueAxis, ...axisName(`Fitted ${quantityLabel}`), nameGap: 28 },
-    yAxis: { ...valueAxis, scale: false, ...axisName('Actual − fitted'), nameGap: 60 },
+    grid: { left: 72, right: 16, top: 40, bottom: 56 },
+    xAxis: { type: 'category', data: seasons, axisLabel: { ...TEXT, rotate: 45 }, boundaryGap: true },
+    yAxis: { ...valueAxis, scale: false, ...axisName(`Actual − fitted${unit ? `, ${unit}` : ''}`), nameGap: 60 },
     series: [
       {
-        name: 'Farm-seasons',
+        name: 'Farm in a season',
         type: 'scatter',
-        symbolSize: 5,
-        data: points.map((p) => [p.fitted, p.residual, p.label]),
+        symbolSize: 6,
+        data: points.filter((p) => index.has(p.season)).map((p) => [index.get(p.season)!, p.residual, p.label]),
         color: CHART_COLOURS.second,
-        itemStyle: { opacity: 0.7 },
-        markLine: { silent: true, symbol: 'none', data: [{ yAxis: 0 }], lineStyle: { color: CHART_COLOURS.error, type: 'solid' }, label: { show: false } },
+        itemStyle: { opacity: 0.6 },
+        markLine: { silent: true, symbol: 'none', data: [{ yAxis: 0 }], lineStyle: { color: CHART_COLOURS.error, type: 'solid', width: 2 }, label: { show: false } },
       },
     ],
   };

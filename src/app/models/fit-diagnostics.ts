@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import { formatAmount, formatPercent, formatRatio, formatSignificant, ItemLabels } from './model-format';
 import type { FitRunResult } from './model-types';
 
-/** The curvature and monotonicity report of a fit, and its overall statistics. */
+/** The curvature and monotonicity report of a fit, and the figures for weighing it against another model. */
 @Component({
   selector: 'np-fit-diagnostics',
   templateUrl: './fit-diagnostics.html',
@@ -66,8 +66,4 @@ export class FitDiagnostics {
       '.'
     );
   });
-
-  protected readonly equations = computed(() =>
-    this.result().fit.equations.map((e) => ({ ...e, name: this.labels().name(e.item), unit: this.labels().unit(e.item) })),
-  );
 }

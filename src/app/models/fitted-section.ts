@@ -46,6 +46,7 @@ export class FittedSection {
       rows.map((r) => r.actual[code] ?? NaN),
       rows.map((r) => r.fitted[code] ?? NaN),
       this.labels().withUnit(code),
+      this.labels().unit(code),
     );
   });
 }

@@ -2,11 +2,11 @@ import { ChangeDetectionStrategy, Component, computed, input, linkedSignal } fro
 import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { NgxEchartsDirective } from 'ngx-echarts';
-import { residualOption } from './chart-options';
+import { missesBySeasonOption } from './chart-options';
 import { formatAmount, ItemLabels } from './model-format';
 import type { FitRunResult } from './model-types';
 
-/** Farm-season residuals of one netput against its fitted value: a pattern means the model misses something. */
+/** Each farm's miss on one netput, season by season: a season off the zero line is one the model did not see coming. */
 @Component({
   selector: 'np-residual-section',
   imports: [MatFormField, MatLabel, MatSelect, MatOption, NgxEchartsDirective],
@@ -21,9 +21,9 @@ import type { FitRunResult } from './model-types';
     </mat-form-field>
     <div class="chart" echarts [options]="options()" [initOpts]="{ renderer: 'svg' }" role="img" [attr.aria-label]="caption()"></div>
     <p class="np-muted">
-      {{ caption() }}: each dot is one farm in one season (actual − fitted, {{ labels().unit(item()) || 'item units' }}).
-      Dots should scatter evenly around zero; a funnel or a curve means the model misses something.
-      Root mean square error {{ rmse() }} {{ labels().unit(item()) }}.
+      {{ caption() }}: each dot is one farm in one season, what it actually {{ verb() }} less what the model gives it
+      ({{ labels().unit(item()) || 'item units' }}). Dots spread evenly either side of zero in every season are what a sound model leaves;
+      a season sitting above or below the line is one the model did not see coming. A typical miss is {{ rmse() }} {{ labels().unit(item()) }}.
     </p>
   `,
   styles: `
@@ -41,15 +41,18 @@ export class ResidualSection {
 
   protected readonly codes = computed(() => this.result().summary.items.map((i) => i.name));
   protected readonly item = linkedSignal(() => this.codes()[0] ?? '');
-  protected readonly caption = computed(() => `Residuals of ${this.labels().name(this.item())} against fitted values`);
+  protected readonly caption = computed(() => `How far each farm's ${this.labels().name(this.item()).toLowerCase()} ${this.verb() === 'delivered' ? 'supply' : 'use'} was from the model, by season`);
+  protected readonly verb = computed(() => (this.result().summary.items.find((i) => i.name === this.item())?.role === 'input' ? 'used' : 'delivered'));
   protected readonly rmse = computed(() => formatAmount(this.result().fit.equations.find((e) => e.item === this.item())?.rmse));
   protected readonly options = computed(() => {
     const code = this.item();
-    const points = this.result().residuals.map((r) => ({
-      fitted: r.fitted[code] ?? NaN,
+    const residuals = this.result().residuals;
+    const points = residuals.map((r) => ({
+      season: String(r.season),
       residual: r.residual[code] ?? NaN,
       label: `${r.farm ?? 'co-op'} · ${r.season}`,
     }));
-    return residualOption(points, this.labels().withUnit(code));
+    const seasons = [...new Set(points.map((p) => p.season))].sort();
+    return missesBySeasonOption(points, seasons, this.labels().unit(code));
   });
 }

@@ -13,7 +13,7 @@ import { AuthStore } from '../core/auth-store';
 import { SettingsStore } from '../core/settings-store';
 import { CautionNote } from '../shared/caution-note';
 import { BacktestSection } from './backtest-section';
-import { CoefficientGrid } from './coefficient-grid';
+import { CoefficientSheets } from './coefficient-sheets';
 import { ElasticityTable, type MatrixItem } from './elasticity-table';
 import { FitDiagnostics } from './fit-diagnostics';
 import { FittedSection } from './fitted-section';
@@ -39,7 +39,7 @@ import { pollRunStatuses } from './run-status-poller';
     MatProgressBar,
     CautionNote,
     BacktestSection,
-    CoefficientGrid,
+    CoefficientSheets,
     ElasticityTable,
     FitDiagnostics,
     FittedSection,

@@ -16,7 +16,7 @@ interface RunJson {
   id: number;
   dataHash: string;
   createdByName: string | null;
-  result: { summary: { items: { name: string }[]; elasticities: number[][] } };
+  result: { summary: { items: { name: string }[]; elasticities: number[][] }; fit: { equations: { coefficients: unknown[] }[] } };
 }
 
 /** The same rounding the page uses for quantities (model-format.ts formatAmount), for comparing cells. */
@@ -166,8 +166,14 @@ export default async function models({ base, page }: Harness): Promise<void> {
         await provenance.getByText(/20 seasons \(2006\/07 – 2025\/26\), 20 farms, 400 farm-seasons/).waitFor();
         assertEqual(run.createdByName, 'Priya Planner', 'createdByName from the API');
         await provenance.getByText('Started by Priya Planner', { exact: false }).waitFor();
-        await page.locator('#coefficients .ag-row').first().waitFor();
-        assert((await page.locator('#coefficients .ag-row').count()) >= 20, 'the coefficient grid shows fewer than 20 rows');
+        // One sheet per netput equation, each coefficient in plain words with its 95 % range; no program's labels.
+        await page.locator('#coefficients .sheet').first().waitFor();
+        assertEqual(await page.locator('#coefficients .sheet').count(), run.result.fit.equations.length, 'coefficient sheets (one per equation)');
+        const lines = await page.locator('#coefficients li.line:not(.head)').count();
+        assertEqual(lines, run.result.fit.equations.reduce((n, e) => n + e.coefficients.length, 0), 'coefficient lines');
+        await page.locator('#coefficients').getByText('Base level, before prices, land and trend').first().waitFor();
+        const coefText = await page.locator('#coefficients').innerText();
+        for (const stock of ['(Intercept)', 't value', 'Std. error']) assert(!coefText.includes(stock), `the coefficients still say "${stock}"`);
         await page.getByRole('table', { name: 'Wrong-signed fitted quantities by item' }).waitFor();
       });
       await shot(page, 'models-result-1280');
