@@ -146,6 +146,8 @@ export interface PriceRow {
   currency: string;
   source: string;
   observedOn: string;
+  /** Raised by every change; PUT sends it back and a stale one is refused (409 `stale`). */
+  version: number;
 }
 
 /** `GET /api/prices/series`: one mean price per item and season (deflated when an index is named). */
@@ -166,6 +168,8 @@ export interface FarmRecordRow {
   role: 'output' | 'input';
   unit: string;
   quantity: number;
+  /** Raised by every change; a grid edit sends it back and a stale one is refused (409 `stale`). */
+  version: number;
 }
 
 export interface PriceIndex {

@@ -25,6 +25,17 @@ export class AppError extends Error {
   static conflict(message: string) {
     return new AppError(409, 'conflict', message);
   }
+  /**
+   * 409 `stale`: the save named a version that is no longer the stored one; `current` is what is
+   * stored now, answered with the error so the client can show it.
+   */
+  static stale(message: string, current: unknown) {
+    return Object.assign(new AppError(409, 'stale', message), { current });
+  }
+  /** 422 `needs_confirmation`: values that may be slips; the same request with the confirm flag stores them. */
+  static needsConfirmation(message: string, details: { path: string; message: string }[]) {
+    return new AppError(422, 'needs_confirmation', message, details);
+  }
   static gone(message: string) {
     return new AppError(410, 'gone', message);
   }

@@ -20,7 +20,8 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     body = { error: { code: 'conflict', message: 'A record with the same key already exists' } };
   } else if (err instanceof AppError) {
     status = err.status;
-    body = { error: { code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}) } };
+    const current = (err as AppError & { current?: unknown }).current;
+    body = { error: { code: err.code, message: err.message, ...(err.details ? { details: err.details } : {}), ...(current !== undefined ? { current } : {}) } };
   } else if (err && typeof err === 'object' && 'type' in err && typeof err.status === 'number' && err.status < 500) {
     // body-parser errors: entity.too.large, entity.parse.failed, ...
     status = err.status;

@@ -349,7 +349,7 @@ export async function writeRows(
         select * from unnest(${ints(c.map((p) => p.itemId))}, ${ints(c.map((p) => p.seasonId))}, ${ints(c.map((p) => p.deliveryPointId))},
           ${floats(c.map((p) => p.price))}, ${texts(c.map((p) => p.currency))}, ${texts(c.map((p) => p.source))}, ${dates(c.map((p) => p.observedOn))})
         on conflict (item_id, season_id, delivery_point_id, observed_on)
-        ${onConflict(conflict, sql`price = excluded.price, currency = excluded.currency, source = excluded.source`)}`),
+        ${onConflict(conflict, sql`price = excluded.price, currency = excluded.currency, source = excluded.source, version = ${priceObservations}.version + 1`)}`),
   );
   await run(
     'records',
@@ -360,7 +360,7 @@ export async function writeRows(
       tx.execute(sql`
         insert into ${farmRecords} (farm_id, season_id, item_id, quantity)
         select * from unnest(${ints(c.map((r) => r.farmId))}, ${ints(c.map((r) => r.seasonId))}, ${ints(c.map((r) => r.itemId))}, ${floats(c.map((r) => r.quantity))})
-        on conflict (farm_id, season_id, item_id) ${onConflict(conflict, sql`quantity = excluded.quantity`)}`),
+        on conflict (farm_id, season_id, item_id) ${onConflict(conflict, sql`quantity = excluded.quantity, version = ${farmRecords}.version + 1`)}`),
   );
   await run(
     'factors',

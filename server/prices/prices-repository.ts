@@ -26,6 +26,7 @@ const rowColumns = {
   currency: priceObservations.currency,
   source: priceObservations.source,
   observedOn: priceObservations.observedOn,
+  version: priceObservations.version,
 };
 
 function where(f: PriceFilter): SQL | undefined {

@@ -10,6 +10,8 @@ import type { AppContext } from '../context.js';
 import { priceIndexes, priceIndexValues, priceObservations, seasons } from '../db/schema/index.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { getPrice, listPrices, priceSeries } from './prices-repository.js';
+import { createPrices, updatePrice } from './prices-service.js';
+import { CONFIRM_FLAG } from '../../shared/plausibility.js';
 import { exportFormatSchema, PRICE_COLUMNS, priceExportRows, sendSpreadsheet } from '../exports/data-exports.js';
 
 const READ = ['admin', 'planner', 'treasurer'] as const;
@@ -17,7 +19,15 @@ const WRITE = ['planner'] as const;
 
 const listQuery = z.object({ items: idListSchema, seasons: idListSchema, deliveryPoints: idListSchema });
 const seriesQuery = z.object({ items: idListSchema, deflator: idTextSchema.optional() });
-const blockSchema = z.object({ rows: z.array(priceSchema).min(1, 'Send at least one row').max(5000, 'Paste at most 5,000 rows at once') });
+const confirmSchema = z.boolean({ error: 'Send confirmImplausible as true or false' }).optional();
+const blockSchema = z.object({
+  rows: z.array(priceSchema).min(1, 'Send at least one row').max(5000, 'Paste at most 5,000 rows at once'),
+  [CONFIRM_FLAG]: confirmSchema,
+});
+const updateSchema = priceSchema.extend({
+  version: z.number({ error: 'Send the version of the price you edited (from GET /api/prices)' }).int().positive(),
+  [CONFIRM_FLAG]: confirmSchema,
+});
 const deleteBlockSchema = z.object({
   ids: z
     .array(idSchema)
@@ -64,13 +74,8 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       path: '/',
       access: WRITE,
       handler: async (req, res) => {
-        const { rows } = parse(blockSchema, req.body, 'body');
-        const created = await ctx.db.transaction(async (tx) => {
-          const out = await tx.insert(priceObservations).values(rows).returning({ id: priceObservations.id });
-          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.create', entity: 'price', entityId: out.map((o) => o.id).join(','), after: rows });
-          return out;
-        });
-        res.status(201).json(await listPrices(ctx.db).then((all) => all.filter((r) => created.some((c) => c.id === r.id))));
+        const body = parse(blockSchema, req.body, 'body');
+        res.status(201).json(await createPrices(ctx.db, body.rows, req.user!.id, body[CONFIRM_FLAG] === true));
       },
     },
     {
@@ -79,15 +84,8 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       access: WRITE,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
-        const body = parse(priceSchema, req.body, 'body');
-        await ctx.db.transaction(async (tx) => {
-          const before = await getPrice(tx, id);
-          await tx.update(priceObservations).set(body).where(eq(priceObservations.id, id));
-          // Both sides in the same joined shape, so the audit page shows only what changed.
-          const after = await getPrice(tx, id);
-          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.update', entity: 'price', entityId: id, before, after });
-        });
-        res.json(await getPrice(ctx.db, id));
+        const { version, [CONFIRM_FLAG]: confirmed, ...body } = parse(updateSchema, req.body, 'body');
+        res.json(await updatePrice(ctx.db, id, body, version, req.user!.id, confirmed === true));
       },
     },
     {

@@ -1,4 +1,4 @@
-import { and, asc, countDistinct, eq, inArray, type SQL } from 'drizzle-orm';
+import { and, asc, countDistinct, eq, inArray, sql, type SQL } from 'drizzle-orm';
 import { z } from 'zod';
 import { idListSchema } from '../../shared/ids.js';
 import type { FarmRecordRow } from '../../shared/api-types.js';
@@ -14,7 +14,13 @@ import type { SessionUser } from '../auth/session.js';
 import { exportFormatSchema, RECORD_COLUMNS, recordExportRows, sendSpreadsheet } from '../exports/data-exports.js';
 
 const listQuery = z.object({ farms: idListSchema, seasons: idListSchema });
-const blockSchema = z.object({ rows: z.array(recordSchema).min(1).max(5000, 'Send at most 5,000 rows at once') });
+/**
+ * `version`: the version of the stored quantity the edit started from (GET /api/records), or null
+ * when the cell was empty; a save whose version is no longer the stored one is refused (409 `stale`).
+ * Left out, the row is written whatever is stored (pasted blocks of new seasons).
+ */
+const versionedRecordSchema = recordSchema.extend({ version: z.number().int().positive().nullable().optional() });
+const blockSchema = z.object({ rows: z.array(versionedRecordSchema).min(1).max(5000, 'Send at most 5,000 rows at once') });
 const keySchema = recordSchema.pick({ farmId: true, seasonId: true, itemId: true });
 
 /** Members are held to their own farm whatever filter they send. */
@@ -41,6 +47,7 @@ export async function listRecords(db: Db, farmIds?: number[], seasonIds?: number
       role: items.role,
       unit: items.unit,
       quantity: farmRecords.quantity,
+      version: farmRecords.version,
     })
     .from(farmRecords)
     .innerJoin(farms, eq(farms.id, farmRecords.farmId))
@@ -180,13 +187,19 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => {
         const { rows } = parse(blockSchema, req.body, 'body');
         await ctx.db.transaction(async (tx) => {
-          for (const row of rows) {
+          for (const { version, ...row } of rows) {
             const key = and(eq(farmRecords.farmId, row.farmId), eq(farmRecords.seasonId, row.seasonId), eq(farmRecords.itemId, row.itemId));
-            const [before] = await tx.select().from(farmRecords).where(key);
+            // Locked before it is read: the audit's "before" is the value this write replaces.
+            const [before] = await tx.select().from(farmRecords).where(key).for('update');
+            if (version !== undefined && (before?.version ?? null) !== version) {
+              const [current] = before ? await listRecords(tx, [row.farmId], [row.seasonId]).then((all) => all.filter((r) => r.itemId === row.itemId)) : [null];
+              const now = current ? `now ${current.quantity} ${current.unit}` : 'it has been deleted';
+              throw AppError.stale(`Someone else changed this farm record meanwhile (${now}); keep yours or take theirs`, current);
+            }
             await tx
               .insert(farmRecords)
               .values(row)
-              .onConflictDoUpdate({ target: [farmRecords.farmId, farmRecords.seasonId, farmRecords.itemId], set: { quantity: row.quantity } });
+              .onConflictDoUpdate({ target: [farmRecords.farmId, farmRecords.seasonId, farmRecords.itemId], set: { quantity: row.quantity, version: sql`${farmRecords.version} + 1` } });
             await recordAudit(tx, {
               actorUserId: req.user!.id,
               action: before ? 'record.update' : 'record.create',

@@ -72,6 +72,7 @@ describe('prices', () => {
       currency: full.currency,
       source: full.source,
       observedOn: full.observedOn,
+      version: full.version,
     });
     expect(put.status).toBe(200);
     expect(put.body.price).toBe(target.price + 30);

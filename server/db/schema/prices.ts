@@ -27,6 +27,8 @@ export const priceObservations = pgTable(
     currency: text('currency').notNull(),
     source: text('source').notNull(),
     observedOn: date('observed_on').notNull(),
+    /** Raised by every change; a save names the version it edited, so a stale save is refused (409). */
+    version: integer('version').notNull().default(1),
   },
   (t) => [
     uniqueIndex('price_obs_unique').on(t.itemId, t.seasonId, t.deliveryPointId, t.observedOn),

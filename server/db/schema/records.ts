@@ -17,6 +17,8 @@ export const farmRecords = pgTable(
       .notNull()
       .references(() => items.id, { onDelete: 'restrict' }),
     quantity: doublePrecision('quantity').notNull(),
+    /** Raised by every change; a save names the version it edited, so a stale save is refused (409). */
+    version: integer('version').notNull().default(1),
   },
   (t) => [primaryKey({ columns: [t.farmId, t.seasonId, t.itemId] })],
 );
