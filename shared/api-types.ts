@@ -103,6 +103,8 @@ export interface StoredMail {
   subject: string;
   text: string;
   html: string | null;
+  /** The Message-ID header as sent (the outbox sets one per message; retries keep it). */
+  messageId?: string | null;
 }
 
 export interface Item {

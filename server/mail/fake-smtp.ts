@@ -37,6 +37,7 @@ export async function startFakeSmtp(port = 0): Promise<FakeSmtp> {
             subject: mail.subject ?? '',
             text: mail.text ?? '',
             html: typeof mail.html === 'string' ? mail.html : null,
+            messageId: mail.messageId ?? null,
           });
           waiters.splice(0).forEach((w) => w());
           callback();
