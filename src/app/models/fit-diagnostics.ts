@@ -40,9 +40,17 @@ export class FitDiagnostics {
       );
     }
     if (c.imposed) {
+      const top = Math.max(0, ...c.eigenvalues);
+      const flat = c.eigenvalues.filter((v) => v <= 1e-6 * top).length;
+      const flatWords = flat === 1 ? 'one flat curvature direction' : `${flat} flat curvature directions`;
       lines.push(
-        `The unrestricted estimate was not convex, so convexity was imposed (B = LL′)${c.binding ? '; the restriction binds, leaving one flat curvature direction' : ''}. Imposing it changes the estimates.`,
+        `The unrestricted estimate was not convex, so convexity was imposed (B = LL′)${c.binding ? `; the restriction binds, leaving ${flatWords}` : ''}. Imposing it changes the estimates.`,
       );
+      if (c.optimality?.satisfied === false || c.converged === false)
+        lines.push(
+          'The convexity-constrained fit did not converge: its optimality conditions do not hold, so these are not the best convex estimates. Read them with caution and try another numeraire or trend setting.',
+        );
+      else if (c.optimality?.satisfied) lines.push('The constrained fit passed its optimality check (the Karush–Kuhn–Tucker conditions): no nearby convex estimate fits the data better.');
     } else if (!c.unrestrictedConvex) {
       lines.push('The estimate breaks convexity and it was not imposed (the definition asks only to check).');
     }

@@ -144,7 +144,7 @@ export class RunCompare {
       { label: 'Log-likelihood (higher fits closer)', a: formatAmount(ra.fit.logLikelihood), b: formatAmount(rb.fit.logLikelihood) },
       { label: 'Akaike information criterion (lower is better)', a: formatAmount(ra.fit.aic), b: formatAmount(rb.fit.aic) },
       { label: 'Bayesian information criterion (lower is better)', a: formatAmount(ra.fit.bic), b: formatAmount(rb.fit.bic) },
-      { label: 'Estimation', a: ra.fit.converged ? `settled after ${ra.fit.iterations} rounds` : 'did not settle', b: rb.fit.converged ? `settled after ${rb.fit.iterations} rounds` : 'did not settle' },
+      { label: 'Estimation', a: ra.fit.converged ? `settled after ${ra.fit.iterations} rounds` : 'did not converge', b: rb.fit.converged ? `settled after ${rb.fit.iterations} rounds` : 'did not converge' },
       { label: 'Curvature', a: curvature(a.run), b: curvature(b.run) },
       {
         label: 'Wrong-signed fitted quantities',
