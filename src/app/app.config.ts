@@ -16,6 +16,8 @@ import { apiErrorInterceptor } from './core/api-error-interceptor';
 import { AppErrorHandler } from './core/app-error-handler';
 import { AuthStore } from './core/auth-store';
 import { PageTitleStrategy } from './core/page-title-strategy';
+import { MatPaginatorIntl } from '@angular/material/paginator';
+import { PaginatorWords } from './core/paginator-words';
 
 export const appConfig: ApplicationConfig = {
   providers: [
@@ -33,5 +35,6 @@ export const appConfig: ApplicationConfig = {
     { provide: MAT_ICON_DEFAULT_OPTIONS, useValue: { fontSet: 'material-symbols-outlined' } },
     { provide: MAT_FORM_FIELD_DEFAULT_OPTIONS, useValue: { appearance: 'outline', subscriptSizing: 'dynamic' } },
     { provide: MAT_SNACK_BAR_DEFAULT_OPTIONS, useValue: { duration: 6000 } },
+    { provide: MatPaginatorIntl, useClass: PaginatorWords },
   ],
 };
