@@ -14,9 +14,10 @@
  * from one seeded pool at distinct cyclic offsets: every farm's draws are exactly N(0, 1) and
  * independent of the shared parts, and within a draw no two farms share a normal (as long as the
  * pool is at least as long as the farm list), so the co-op sum of the idiosyncratic parts has the
- * right distribution in every draw. Farm quantiles come from a histogram of 1024 bins spanning a
- * pilot range, interpolated within the bin (error below 1/250 of the band, well under the Monte
- * Carlo error); co-op quantiles are exact order statistics.
+ * right distribution in every draw. When no regressor differs between farms, a farm's quantiles
+ * are its own level plus those of (shared part + a·η), computed once per item on a grid of a and
+ * interpolated; otherwise they come from a histogram of the farm's draws over a pilot range.
+ * Co-op quantiles are exact order statistics.
  * Projections are estimates, not advice.
  */
 import type { ForecastProjection, ForecastQuantity } from '../../shared/forecast-types.js';

@@ -699,9 +699,10 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
  * shock (prices move with the seasons), so λ̂ = M λ with M = C(I − Q): Q maps a shock in (item a,
  * season s) through the restricted GLS estimator P·X'Σ⁻¹ into the fitted season means
  * (Q_(i,t),(a,s) = x̄_it'·[P g_(a,s)]_i, g the weighted regressor sums of season s) and C centres over
- * seasons. Then E[Σ_t λ̂_it λ̂_jt] = Σ_ab Σ_λ,ab·c^ij_ab + noise_ij with c^ij_ab = Σ_t Σ_s M_(i,t),(a,s)
- * M_(j,t),(b,s): a linear system in Σ_λ, solved and projected onto the positive semidefinite cone.
- * The degrees of freedom are the average own-term c^ii_ii (seasons less what the fit absorbs).
+ * seasons. Then E[Σ_t λ̂_it²] ≈ σ_λi²·c_i + noise_i with c_i = Σ_t Σ_s M_(i,t),(i,s)² (the leakage of
+ * other items' shocks is left out: small, and unstable when estimated); the correlations across
+ * items are those of the λ̂.
+ * The degrees of freedom are the average c_i (seasons less what the fit absorbs).
  */
 function seasonShockCovariance(
   lambda: Float64Array[],
@@ -753,63 +754,27 @@ function seasonShockCovariance(
       m /= S;
       for (let t = 0; t < S; t++) M[i * S + t]![c]! -= m;
     }
-  // c^ij_ab for the pairs (i ≤ j), unknowns Σ_ab (a ≤ b)
-  const pairs: [number, number][] = [];
-  for (let i = 0; i < n; i++) for (let j = i; j < n; j++) pairs.push([i, j]);
-  const np = pairs.length;
-  const A = Array.from({ length: np }, () => new Array<number>(np).fill(0));
-  const rhs = new Array<number>(np).fill(0);
-  const coef = (i: number, j: number, a: number, b: number): number => {
+  const coef = (i: number, a: number): number => {
     let acc = 0;
     for (let t = 0; t < S; t++) {
       const ri = M[i * S + t]!;
-      const rj = M[j * S + t]!;
-      for (let s = 0; s < S; s++) acc += ri[a * S + s]! * rj[b * S + s]!;
+      for (let s = 0; s < S; s++) acc += ri[a * S + s]! ** 2;
     }
     return acc;
   };
-  pairs.forEach(([i, j], r) => {
-    pairs.forEach(([a, b], c) => {
-      A[r]![c] = a === b ? coef(i, j, a, a) : coef(i, j, a, b) + coef(i, j, b, a);
-    });
-    let acc = 0;
-    for (let t = 0; t < S; t++) acc += lambda[i]![t]! * lambda[j]![t]!;
-    if (i === j) for (let t = 0; t < S; t++) acc -= noise[i]![t]! * (1 - 1 / S);
-    rhs[r] = acc;
+  // Each item's variance from its own term E[Σ_t λ̂_it²] ≈ σ_λi²·c_ii + noise (the leakage of other
+  // items' shocks through the cross-equation restrictions is small and, estimated, unstable);
+  // correlations across items from the λ̂ themselves.
+  const own = lambda.map((_, i) => coef(i, i));
+  const sd = lambda.map((l, i) => {
+    let ss = 0;
+    for (let t = 0; t < S; t++) ss += l[t]! ** 2 - noise[i]![t]! * (1 - 1 / S);
+    return Math.sqrt(Math.max(ss / Math.max(own[i]!, 1e-9), 0));
   });
-  let sol: number[];
-  try {
-    sol = solveSmall(A, rhs);
-  } catch {
-    sol = pairs.map(([i, j], r) => (i === j ? rhs[r]! / Math.max(S - 1, 1) : 0));
-  }
-  const cov = zerosMat(n);
-  pairs.forEach(([i, j], r) => {
-    cov[i]![j] = sol[r]!;
-    cov[j]![i] = sol[r]!;
-  });
-  let df = 0;
-  for (let i = 0; i < n; i++) df += coef(i, i, i, i);
-  df /= n;
+  const gram = lambda.map((a) => lambda.map((b) => dotF(a, b)));
+  const cov = gram.map((row, i) => row.map((v, j) => (i === j ? sd[i]! ** 2 : (v / Math.sqrt(gram[i]![i]! * gram[j]![j]! || 1)) * sd[i]! * sd[j]!)));
+  const df = own.reduce((a, v) => a + v, 0) / n;
   return { covariance: clipPsd(cov), df };
-}
-
-function solveSmall(A: Mat, b: number[]): number[] {
-  const n = b.length;
-  const M = A.map((row, i) => [...row, b[i]!]);
-  for (let c = 0; c < n; c++) {
-    let piv = c;
-    for (let r = c + 1; r < n; r++) if (Math.abs(M[r]![c]!) > Math.abs(M[piv]![c]!)) piv = r;
-    if (Math.abs(M[piv]![c]!) < 1e-300) throw new Error('singular');
-    [M[c], M[piv]] = [M[piv]!, M[c]!];
-    for (let r = 0; r < n; r++) {
-      if (r === c) continue;
-      const f = M[r]![c]! / M[c]![c]!;
-      if (f === 0) continue;
-      for (let k = c; k <= n; k++) M[r]![k]! -= f * M[c]![k]!;
-    }
-  }
-  return M.map((row, i) => row[n]! / row[i]!);
 }
 
 /** Nearest positive semidefinite matrix (negative eigenvalues set to zero). */
