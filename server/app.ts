@@ -3,10 +3,9 @@ import path from 'node:path';
 import cookieParser from 'cookie-parser';
 import express, { Router } from 'express';
 import helmet from 'helmet';
-import { pinoHttp } from 'pino-http';
-import { pino } from 'pino';
 import type { AppContext } from './context.js';
 import { errorHandler, notFoundHandler } from './core/error-handler.js';
+import { requestLogging } from './core/logging.js';
 import { ReadCache } from './core/read-cache.js';
 import { mountRoutes, type MountedRoute, type RouteDef } from './core/routes.js';
 import { csrfProtection } from './auth/csrf.js';
@@ -44,13 +43,7 @@ export function createApp(ctx: AppContext): NetputApp {
   app.disable('x-powered-by');
   app.set('trust proxy', process.env.TRUST_PROXY ?? 'loopback');
 
-  app.use(
-    pinoHttp({
-      logger: pino({ level: ctx.config.logLevel }),
-      autoLogging: { ignore: (req) => !req.url?.startsWith('/api') },
-      redact: ['req.headers.cookie', 'res.headers["set-cookie"]'],
-    }),
-  );
+  app.use(requestLogging(ctx.config.logLevel, ctx.logDestination));
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -73,7 +66,7 @@ export function createApp(ctx: AppContext): NetputApp {
   api.use(express.json({ limit: '1mb' }));
   api.use(cookieParser());
   api.use(loadSession(ctx.db, ctx.changes ?? null));
-  api.use(csrfProtection(ctx.config.secureCookies));
+  api.use(csrfProtection(ctx.db, ctx.config.secureCookies));
 
   const readCache = ctx.changes ? new ReadCache(ctx.changes) : null;
   app.readCache = readCache;
@@ -119,6 +112,8 @@ export function createApp(ctx: AppContext): NetputApp {
   mount('/futures-quotes', futuresRoutes(ctx));
   mount('/portal', portalRoutes(ctx));
   mount('/account', accountMailRoutes(ctx));
+  // The unsubscribe page's button and RFC 8058's one-click POST send a form, not JSON.
+  api.use('/unsubscribe', express.urlencoded({ extended: false, limit: '2kb' }));
   mount('/unsubscribe', unsubscribeRoutes(ctx));
   mount('/dev/mail', devMailRoutes(ctx));
   api.use(notFoundHandler);

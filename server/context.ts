@@ -1,3 +1,4 @@
+import type { DestinationStream } from 'pino';
 import type { Config } from './config.js';
 import type { ChangeTracker } from './db/change-tracker.js';
 import type { Db } from './db/client.js';
@@ -17,4 +18,6 @@ export interface AppContext {
   fakeSmtp?: FakeSmtp;
   /** The background job runner of this instance, when it runs one. */
   jobs?: JobRunner;
+  /** Where the request log goes (default: standard output); tests read it from a stream. */
+  logDestination?: DestinationStream;
 }

@@ -8,6 +8,7 @@ import type { AppContext } from '../context.js';
 import { checkCredentials, findUserByEmail, meOf, redeemToken, tokenInfo } from './auth-service.js';
 import { mailOneTimeLink } from './link-mail.js';
 import { endSession, SESSION_COOKIE, startSession } from './session.js';
+import { issuePreSessionCsrfToken } from './csrf.js';
 import { DatabaseRateLimitStore } from './rate-limit-store.js';
 
 const tokenParams = z.object({ token: z.string().min(20).max(100).regex(/^[A-Za-z0-9_-]+$/, 'Not a valid link') });
@@ -57,6 +58,7 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => {
         await endSession(ctx.db, req.sessionId);
         res.clearCookie(SESSION_COOKIE, { path: '/' });
+        await issuePreSessionCsrfToken(ctx.db, req, res, secure);
         res.status(204).end();
       },
     },

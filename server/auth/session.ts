@@ -5,6 +5,7 @@ import type { Db } from '../db/client.js';
 import { sessions, users } from '../db/schema/index.js';
 import { newToken, sha256 } from '../core/ids.js';
 import type { ChangeTracker } from '../db/change-tracker.js';
+import { issueSessionCsrfToken } from './csrf.js';
 
 export const SESSION_COOKIE = 'netput_sid';
 /** Sessions end after 12 hours without use, and after 7 days in any case. */
@@ -33,16 +34,22 @@ export function sessionCookieOptions(secure: boolean): CookieOptions {
   return { httpOnly: true, sameSite: 'lax', secure, path: '/', maxAge: ABSOLUTE_MS };
 }
 
-/** Starts a fresh session (a new id every sign-in) and sets its cookie. */
-export async function startSession(db: Db, res: Response, userId: number, userAgent: string | undefined, secure: boolean) {
+/**
+ * Starts a fresh session (a new id every sign-in), sets its cookie and a CSRF token bound to it.
+ * Returns the session's stored id.
+ */
+export async function startSession(db: Db, res: Response, userId: number, userAgent: string | undefined, secure: boolean): Promise<string> {
   const token = newToken();
+  const id = sha256(token);
   await db.insert(sessions).values({
-    id: sha256(token),
+    id,
     userId,
     expiresAt: new Date(Date.now() + ABSOLUTE_MS),
     userAgent: userAgent?.slice(0, 300),
   });
   res.cookie(SESSION_COOKIE, token, sessionCookieOptions(secure));
+  await issueSessionCsrfToken(db, res, id, secure);
+  return id;
 }
 
 export async function endSession(db: Db, sessionId: string | undefined) {

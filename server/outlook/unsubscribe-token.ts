@@ -5,27 +5,14 @@
  * one-click address keeps working). Anyone holding the link can only turn that member's outlook
  * e-mails off.
  */
-import { createHmac, randomBytes, timingSafeEqual } from 'node:crypto';
-import { eq } from 'drizzle-orm';
+import { createHmac, timingSafeEqual } from 'node:crypto';
 import type { Db } from '../db/client.js';
-import { settings } from '../db/schema/index.js';
+import { storedSecret } from '../core/secrets.js';
 
 export const UNSUBSCRIBE_SECRET_KEY = 'mail.unsubscribe-secret';
 
-export async function unsubscribeSecret(db: Db): Promise<Buffer> {
-  const read = async () => {
-    const [row] = await db.select().from(settings).where(eq(settings.key, UNSUBSCRIBE_SECRET_KEY));
-    const v = row?.value as { secret?: unknown } | undefined;
-    return typeof v?.secret === 'string' ? Buffer.from(v.secret, 'base64url') : null;
-  };
-  const existing = await read();
-  if (existing) return existing;
-  // Two first uses at once: one insert wins, both read the winner.
-  await db
-    .insert(settings)
-    .values({ key: UNSUBSCRIBE_SECRET_KEY, value: { secret: randomBytes(32).toString('base64url'), createdAt: new Date().toISOString() } })
-    .onConflictDoNothing({ target: settings.key });
-  return (await read())!;
+export function unsubscribeSecret(db: Db): Promise<Buffer> {
+  return storedSecret(db, UNSUBSCRIBE_SECRET_KEY);
 }
 
 function mac(secret: Buffer, userId: number): Buffer {

@@ -94,3 +94,56 @@ describe('password policy', () => {
     expect(res.body.error.details[0]).toEqual({ path: 'body.password', message: 'Use at least 10 characters' });
   });
 });
+
+describe('CSRF tokens are bound to the session (issue 15, item 11)', () => {
+  const cookieOf = (res: { headers: Record<string, unknown> }, name: string) =>
+    ([] as string[]).concat((res.headers['set-cookie'] as string[] | undefined) ?? []).find((c) => c.startsWith(`${name}=`))?.split(';')[0]!.slice(name.length + 1);
+  const sidOf = (res: { headers: Record<string, unknown> }) => cookieOf(res, 'netput_sid');
+
+  it('a self-chosen cookie and header pair is refused, signed out and signed in', async () => {
+    const chosen = 'a'.repeat(43);
+    const anon = await supertest(t.app).post('/api/auth/login').set('Cookie', `XSRF-TOKEN=${chosen}`).set('X-XSRF-TOKEN', chosen).send({ email: 'planner@example.org', password: 'netput-demo' });
+    expect(anon.status).toBe(403);
+    expect(anon.body.error.code).toBe('csrf');
+
+    const login = await (await agent(t.app)).post('/api/auth/login').send({ email: 'planner@example.org', password: 'netput-demo' });
+    const sid = sidOf(login)!;
+    const forged = `${'b'.repeat(22)}.${'c'.repeat(43)}`;
+    const res = await supertest(t.app).post('/api/models').set('Cookie', `netput_sid=${sid}; XSRF-TOKEN=${forged}`).set('X-XSRF-TOKEN', forged).send({});
+    expect(res.status).toBe(403);
+    expect(res.body.error.message).toBe('The security token does not belong to this session; reload the page and try again');
+  });
+
+  it("another session's token, or the signed-out token after sign-in, does not pass; the token issued at sign-in does", async () => {
+    const a = await agent(t.app);
+    const before = cookieOf(await supertest(t.app).get('/api/auth/csrf'), 'XSRF-TOKEN');
+    const login = await a.post('/api/auth/login').send({ email: 'planner@example.org', password: 'netput-demo' });
+    expect(login.status).toBe(200);
+    const sid = sidOf(login)!;
+    const issued = decodeURIComponent(cookieOf(login, 'XSRF-TOKEN')!);
+    const other = decodeURIComponent(cookieOf(await (await agent(t.app)).post('/api/auth/login').send({ email: 'treasurer@example.org', password: 'netput-demo' }), 'XSRF-TOKEN')!);
+    const post = (token: string) => supertest(t.app).post('/api/models').set('Cookie', `netput_sid=${sid}; XSRF-TOKEN=${encodeURIComponent(token)}`).set('X-XSRF-TOKEN', token).send({ name: '' });
+    expect((await post(other)).status).toBe(403);
+    expect((await post(decodeURIComponent(before!))).status).toBe(403);
+    // Past the CSRF check: the body's own validation answers.
+    expect((await post(issued)).status).toBe(400);
+  });
+
+  it('a signed-out token is bound to the pre-session cookie; sign-out hands out a new signed-out token', async () => {
+    const a = await agent(t.app);
+    expect((await a.post('/api/auth/password-reset').send({ email: 'nobody@example.org' })).status).toBe(202);
+    // The same token with another browser's pre-session value does not pass.
+    const first = await supertest(t.app).get('/api/auth/csrf');
+    const token = decodeURIComponent(cookieOf(first, 'XSRF-TOKEN')!);
+    expect(cookieOf(first, 'netput_pre')).toMatch(/^[A-Za-z0-9_-]{43}$/);
+    const elsewhere = await supertest(t.app).post('/api/auth/password-reset').set('Cookie', `netput_pre=${'z'.repeat(43)}; XSRF-TOKEN=${encodeURIComponent(token)}`).set('X-XSRF-TOKEN', token).send({ email: 'nobody@example.org' });
+    expect(elsewhere.status).toBe(403);
+
+    await a.post('/api/auth/login').send({ email: 'admin@example.org', password: 'netput-demo' });
+    const out = await a.post('/api/auth/logout').send({});
+    expect(out.status).toBe(204);
+    expect(cookieOf(out, 'XSRF-TOKEN')).toBeTruthy();
+    // Signed out again, the agent's new token works for the next sign-in.
+    expect((await a.post('/api/auth/login').send({ email: 'admin@example.org', password: 'netput-demo' })).status).toBe(200);
+  });
+});

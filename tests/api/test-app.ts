@@ -1,5 +1,6 @@
 import os from 'node:os';
 import path from 'node:path';
+import type { DestinationStream } from 'pino';
 import supertest from 'supertest';
 import { loadConfig } from '../../server/config.js';
 import type { Database } from '../../server/db/client.js';
@@ -18,16 +19,16 @@ export interface TestApp {
 }
 
 /** A real app on a fresh in-memory PGlite (migrated, optionally with the demo co-op) and a fake SMTP server. */
-export async function startTestApp(options: { demo?: boolean; dev?: boolean; jobs?: boolean } = {}): Promise<TestApp> {
+export async function startTestApp(options: { demo?: boolean; dev?: boolean; jobs?: boolean; logDestination?: DestinationStream } = {}): Promise<TestApp> {
   const database = await openTestDatabase();
   if (options.demo !== false) await loadDemoCoop(database.db);
   const smtp = await startFakeSmtp();
   const config = {
-    ...loadConfig({ LOG_LEVEL: process.env.TEST_LOG_LEVEL ?? 'silent', PUBLIC_URL: 'http://netput.test', APP_DIR: path.join(os.tmpdir(), 'netput-no-app') }, options.dev ? ['--dev'] : []),
+    ...loadConfig({ LOG_LEVEL: options.logDestination ? 'info' : (process.env.TEST_LOG_LEVEL ?? 'silent'), PUBLIC_URL: 'http://netput.test', APP_DIR: path.join(os.tmpdir(), 'netput-no-app') }, options.dev ? ['--dev'] : []),
   };
   const mailer = createMailer(smtp.url, config.mailFrom);
   const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50, mailer }) : undefined;
-  const app = createApp({ db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp: smtp, jobs: background?.runner });
+  const app = createApp({ db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp: smtp, jobs: background?.runner, logDestination: options.logDestination });
   return {
     app,
     database,
@@ -41,13 +42,30 @@ export async function startTestApp(options: { demo?: boolean; dev?: boolean; job
   };
 }
 
-/** A supertest agent that keeps cookies and sends the XSRF header the way Angular does. */
+/**
+ * A supertest agent that keeps cookies and sends the XSRF header the way Angular does: the current
+ * `XSRF-TOKEN` cookie, read again before every request (the token changes at sign-in and sign-out).
+ */
 export async function agent(app: NetputApp) {
   const a = supertest.agent(app);
-  const res = await a.get('/api/auth/csrf');
-  const cookie = ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('XSRF-TOKEN='));
-  const xsrf = cookie ? decodeURIComponent(cookie.split(';')[0].split('=')[1]) : '';
-  a.set('X-XSRF-TOKEN', xsrf);
+  type Inner = {
+    _setDefaults(req: { set(name: string, value: string): unknown }): void;
+    _saveCookies(res: { headers: Record<string, string | string[] | undefined> }): void;
+  };
+  const inner = a as unknown as Inner;
+  const setDefaults = inner._setDefaults.bind(a);
+  const saveCookies = inner._saveCookies.bind(a);
+  let xsrf = '';
+  inner._saveCookies = (res) => {
+    saveCookies(res);
+    const cookie = ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith('XSRF-TOKEN='));
+    if (cookie) xsrf = decodeURIComponent(cookie.split(';')[0]!.slice('XSRF-TOKEN='.length));
+  };
+  inner._setDefaults = (req) => {
+    setDefaults(req);
+    if (xsrf) req.set('X-XSRF-TOKEN', xsrf);
+  };
+  await a.get('/api/auth/csrf');
   return a;
 }
 
