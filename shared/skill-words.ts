@@ -126,7 +126,7 @@ export function skillSummary(bt: BackTestResult, nameOf: (code: string) => strin
       const it = bt.items.find((x) => x.item === i.item)!;
       const rule = it.rules.perHectare ?? it.rules.lastSeason;
       const ruleName = it.rules.perHectare ? 'the plain per-hectare rule (the farm’s own average per hectare times its land)' : 'last season’s figures';
-      const errs = it.model.mdape !== null && rule.mdape !== null ? ` (median farm error ${Math.round(it.model.mdape)} % against ${Math.round(rule.mdape)} %)` : '';
+      const errs = it.model.mdape !== null && rule.mdape !== null ? ` (median farm error ${it.model.mdape.toFixed(1)} % against ${rule.mdape.toFixed(1)} %)` : '';
       return { item: i.item, name: i.name, sentence: `For ${i.name} the model did not beat ${ruleName}${errs}.` };
     });
   return { level, seasons, skill, coverage, text: [skill, coverage].filter(Boolean).join(' '), items, weakItems, farmCoverage, coopCoverage, byThird };

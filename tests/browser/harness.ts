@@ -148,6 +148,11 @@ export async function signOut(page: Page): Promise<void> {
   await page.waitForURL(/\/sign-in/);
 }
 
+/** Where a screenshot of that name goes (for a screenshot of one element). */
+export function shotPath(name: string): string {
+  return join(SHOTS, `${name}.png`);
+}
+
 export async function shot(page: Page, name: string): Promise<void> {
   await page.screenshot({ path: join(SHOTS, `${name}.png`), fullPage: true });
 }

@@ -17,7 +17,8 @@ interface Row {
   coop: string;
 }
 
-const pct = (v: number | null | undefined) => (v == null || !Number.isFinite(v) ? '—' : `${Math.round(v)} %`);
+/** Errors to one decimal: medians of a few per cent differ in the decimal. */
+const pct = (v: number | null | undefined) => (v == null || !Number.isFinite(v) ? '—' : `${v.toFixed(1)} %`);
 const share = (c: CoverageCount) => (c.share === null ? '—' : `${Math.round(c.share * 100)} %`);
 
 /**
@@ -40,12 +41,11 @@ const share = (c: CoverageCount) => (c.share === null ? '—' : `${Math.round(c.
         <p>An outlook from this run warns about these items before it is published.</p>
       </div>
     }
+    <p class="caption" id="skill-caption">
+      Median farm error in the back-tested seasons ({{ specLabel() }}), and the share of outcomes inside the {{ level() }} % bands
+    </p>
     <div class="scroll" tabindex="0" role="region" aria-label="Back-test against the plain rules, per item">
-      <table>
-        <caption>
-          Median farm error in the back-tested seasons ({{ specLabel() }}), and the share of outcomes inside the
-          {{ level() }} % bands
-        </caption>
+      <table aria-describedby="skill-caption">
         <thead>
           <tr>
             <th scope="col" rowspan="2">Item</th>
@@ -97,9 +97,9 @@ const share = (c: CoverageCount) => (c.share === null ? '—' : `${Math.round(c.
     .warn ul { margin: 4px 0; padding-left: 20px; }
     .scroll { overflow-x: auto; max-width: 100%; }
     table { border-collapse: collapse; font: var(--mat-sys-body-medium); min-width: 100%; }
-    caption { text-align: left; font: var(--mat-sys-label-large); color: var(--mat-sys-on-surface-variant); padding-bottom: 6px; }
-    th, td { padding: 6px 10px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: left; white-space: nowrap; }
-    thead th { font: var(--mat-sys-label-medium); color: var(--mat-sys-on-surface-variant); vertical-align: bottom; }
+    .caption { font: var(--mat-sys-label-large); color: var(--mat-sys-on-surface-variant); }
+    th, td { padding: 6px 8px; border-bottom: 1px solid var(--mat-sys-outline-variant); text-align: left; white-space: nowrap; }
+    thead th { font: var(--mat-sys-label-medium); color: var(--mat-sys-on-surface-variant); vertical-align: bottom; white-space: normal; min-width: 64px; }
     .num { text-align: right; font-variant-numeric: tabular-nums; }
     th[scope='colgroup'] { text-align: center; }
     .bad { color: var(--mat-sys-error); font-weight: 500; }

@@ -16,6 +16,7 @@ import type { Item, Season } from '../../../shared/api-types';
 import { ACCESS } from '../core/access';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
+import { SeasonStatus } from '../core/season-status';
 import { SettingsStore } from '../core/settings-store';
 import { ExpectationDialog, type ExpectationDialogData } from './expectation-dialog';
 import { ExpectationsTable, type MissingExpectation } from './expectations-table';
@@ -74,6 +75,7 @@ export class OutlookEditor {
   readonly #dialog = inject(MatDialog);
   readonly #snackBar = inject(MatSnackBar);
   readonly #settings = inject(SettingsStore);
+  readonly #seasonStatus = inject(SeasonStatus);
 
   // inputs
   /** Route parameter. */
@@ -245,6 +247,8 @@ export class OutlookEditor {
           const mails = choice.notifyMembers ? ` ${done.mails.queued} e-mails queued, ${done.mails.skipped} members skipped.` : ' No e-mails sent.';
           this.#snackBar.open(`Version ${done.version} of ${done.season} is published.${mails}`, 'OK');
           this.draft.reload();
+          // The frame's header says "published" at once, not after the next navigation.
+          this.#seasonStatus.refresh();
         } catch (error) {
           this.#snackBar.open(errorMessage(error), 'Dismiss');
         } finally {

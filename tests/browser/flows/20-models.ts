@@ -1,6 +1,6 @@
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
-import { assert, assertEqual, check, mainNav, shot, signIn, signOut } from '../harness.js';
+import { assert, assertEqual, check, mainNav, shot, shotPath, signIn, signOut } from '../harness.js';
 
 /** A fit takes seconds on the demo co-op, longer while other fits share the two cores. */
 const RUN_TIMEOUT_MS = 180_000;
@@ -74,8 +74,11 @@ export default async function models({ base, page }: Harness): Promise<void> {
         assert((await form.getByRole('combobox', { name: 'Numeraire' }).innerText()).includes('Hired labour'), 'the numeraire is not hired labour');
         assert(await form.getByRole('radio', { name: /Normalised quadratic/ }).isChecked(), 'NQ is not the form');
         assert(await form.getByRole('checkbox', { name: /Linear trend/ }).isChecked(), 'the trend is off');
+        // With land chosen, farms are forecast per hectare with farm and season effects unless the planner says otherwise.
+        assert(await form.getByRole('radio', { name: /Per hectare, with farm and season effects/ }).isChecked(), 'the per-hectare form is not the default');
       });
       await page.getByRole('heading', { level: 1, name: 'A · all items, NQ, land + trend' }).waitFor();
+      await page.getByText('Per hectare, with farm and season effects', { exact: true }).waitFor();
     });
 
     await check("the page shows A's run waiting or running, with its progress", async () => {
@@ -177,6 +180,35 @@ export default async function models({ base, page }: Harness): Promise<void> {
         await page.getByRole('table', { name: 'Wrong-signed fitted quantities by item' }).waitFor();
       });
       await shot(page, 'models-result-1280');
+
+      await check("the back-test says in words how much closer A came than the plain rules and how often its bands held, with a row per item", async () => {
+        const run = (await page.evaluate((id) => fetch(`/api/model-runs/${id}`).then((r) => r.json()), runA)) as {
+          result: { skill: { items: { item: string; beatsRule: boolean; coverage: { coop: { held: number; total: number } } }[] } };
+        };
+        const section = page.locator('#backtest');
+        const lead = section.locator('np-skill-section p.lead');
+        await lead.waitFor();
+        const text = await lead.innerText();
+        assert(/farm projections were \d+ % (closer|further off) than last season’s figures/.test(text), `no comparison with last season's figures: ${text}`);
+        assert(/the farm’s own average per hectare times its land/.test(text), `no comparison with the per-hectare rule: ${text}`);
+        const coop = run.result.skill.items.reduce((a, it) => [a[0]! + it.coverage.coop.held, a[1]! + it.coverage.coop.total], [0, 0]);
+        assert(text.includes(`${coop[0]} of ${coop[1]} co-op totals`), `the co-op coverage is not ${coop[0]} of ${coop[1]}: ${text}`);
+        const table = section.getByRole('region', { name: 'Back-test against the plain rules, per item' }).locator('table');
+        assertEqual(await table.locator('tbody tr').count(), 7, 'back-test rows');
+        await table.getByRole('columnheader', { name: 'Smallest third' }).waitFor();
+        const weak = run.result.skill.items.filter((i) => !i.beatsRule).length;
+        assertEqual(await section.getByText('Not better than a plain rule:').count(), weak ? 1 : 0, 'warning about weak items');
+        // The section as a reader scrolls to it: its heading at the top of the screen, below the toolbar.
+        const view = async (name: string) => {
+          await page.locator('#bt-heading').evaluate((el) => el.scrollIntoView({ block: 'start' }));
+          await page.evaluate(() => window.scrollBy(0, -80));
+          await page.screenshot({ path: shotPath(name) });
+        };
+        await view('models-backtest-1280');
+        await page.setViewportSize({ width: 390, height: 844 });
+        await view('models-backtest-390');
+        await page.setViewportSize({ width: 1280, height: 860 });
+      });
 
       await check('the planner compares A and B side by side, with projections at the same prices', async () => {
         await page.getByRole('link', { name: 'Compare with…' }).click();

@@ -1,6 +1,6 @@
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
-import { assert, assertEqual, check, ensureFittedRun, mainNav, shot, signIn, signOut } from '../harness.js';
+import { assert, assertEqual, check, ensureFittedRun, mainNav, shot, shotPath, signIn, signOut } from '../harness.js';
 
 /** A fit and a projection take seconds on the demo co-op, longer while other work shares the two cores. */
 const JOB_TIMEOUT_MS = 180_000;
@@ -15,11 +15,14 @@ const DEFINITION = {
   fromSeason: null,
   toSeason: null,
   farms: null,
-  backtestSeasons: 0,
+  // A short back-test, so the outlook can say how well the run forecast and warn before publishing.
+  backtestSeasons: 3,
 };
 
 interface Draft {
   id: number;
+  skill: { runId: number; text: string; weakItems: { item: string; sentence: string }[] } | null;
+  published: { version: number | null; unchangedSince: boolean };
   expectations: { item: string; name: string; methodLabel: string; base: number; low: number; high: number }[];
   projection: { status: string; progress: number; upToDate: boolean };
 }
@@ -44,6 +47,13 @@ const price = (v: number) => new Intl.NumberFormat('en-GB', { minimumFractionDig
 async function gridRows(grid: ReturnType<Page['locator']>): Promise<number> {
   const indexes = await grid.locator('.ag-row[row-index]').evaluateAll((rows) => rows.map((r) => r.getAttribute('row-index')));
   return new Set(indexes).size;
+}
+
+/** A screenshot of the screen as a reader scrolled to `selector` (the page scrolls inside the shell, so fullPage shows only the top). */
+async function shotAt(page: Page, selector: string, name: string): Promise<void> {
+  await page.locator(selector).first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
+  await page.evaluate(() => window.scrollBy(0, -80));
+  await page.screenshot({ path: shotPath(name) });
 }
 
 const getJson = <T>(page: Page, url: string) => page.evaluate((u) => fetch(u).then((r) => r.json()), url) as Promise<T>;
@@ -83,6 +93,11 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
       await page.getByRole('button', { name: 'Open a season outlook' }).click();
       const dialog = page.getByRole('dialog');
       assertEqual(await dialog.getByRole('textbox', { name: 'Season', exact: true }).inputValue(), SEASON, 'suggested season');
+      // The dialog starts at the run the back-test favours and says why.
+      const choice = await getJson<{ favoured: { runId: number; reason: string } | null }>(page, '/api/outlooks/run-choice');
+      assert(choice.favoured, 'no run is favoured although one has finished');
+      await dialog.getByText(choice.favoured.reason).waitFor();
+      assert((await dialog.getByRole('combobox', { name: 'Model run' }).innerText()).includes(`run #${choice.favoured.runId}`), 'the dialog does not start at the favoured run');
       await dialog.getByRole('combobox', { name: 'Model run' }).click();
       await page.getByRole('option', { name: new RegExp(`run #${runId}(,|$)`) }).click();
       await dialog.getByRole('button', { name: 'Open the draft' }).click();
@@ -95,6 +110,9 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
       assert(draft.expectations.every((e) => e.methodLabel === "Last season's price"), 'the draft does not start at last season’s price');
       await page.getByText('not financial advice').first().waitFor();
       await page.getByText('certified adviser').first().waitFor();
+      // Which run the back-test favours, and why, beside the run picker.
+      await page.locator('.favoured').getByText(/is favoured by its back-test|no run has a back-test/).waitFor();
+      if (draft.skill) await page.locator('.skill').getByText(draft.skill.text, { exact: false }).waitFor();
     });
 
     if (created) {
@@ -174,8 +192,18 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
           await paths.first().waitFor({ state: 'attached' });
           assert((await paths.count()) > 6, 'the co-op fan chart has too few SVG paths');
           await page.locator('ag-grid-angular[aria-label="Farms, base scenario"] .ag-row').first().waitFor();
+          // What the band covers, in words, not "simulated seasons".
+          await page.getByText('The band is where 9 in 10 outcomes should fall', { exact: false }).first().waitFor();
+          assertEqual(await page.getByText('simulated seasons', { exact: false }).count(), 0, 'mentions of "simulated seasons"');
         });
         await shot(page, 'outlook-projection-1280');
+        await shotAt(page, '#setup-heading', 'outlook-model-1280');
+        await shotAt(page, 'np-fan-chart.coop-fan', 'outlook-band-1280');
+        await page.setViewportSize({ width: 390, height: 844 });
+        await page.getByRole('heading', { level: 1, name: `Season outlook ${SEASON}` }).waitFor();
+        await shotAt(page, '#setup-heading', 'outlook-model-390');
+        await shotAt(page, 'np-fan-chart.coop-fan', 'outlook-band-390');
+        await page.setViewportSize({ width: 1280, height: 860 });
 
         await check('the planner writes the commentary and publishes version 1', async () => {
           await page.getByLabel('Your commentary for the members').fill('Wheat area looks steady; book nitrogen early, prices are firm.');
@@ -183,9 +211,22 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
           const dialog = page.getByRole('dialog');
           await dialog.getByRole('checkbox', { name: /E-mail each member/ }).waitFor();
           assert(await dialog.getByRole('checkbox', { name: /E-mail each member/ }).isChecked(), 'e-mails are not on by default');
+          const draft = await getJson<Draft>(page, `/api/outlooks/${outlookId}`);
+          const weak = draft.skill?.weakItems ?? [];
+          if (weak.length) {
+            // The model did not beat the plain rule for some item: the dialog says so and asks before publishing.
+            for (const w of weak) await dialog.getByText(w.sentence).waitFor();
+            assert(await dialog.getByRole('button', { name: 'Publish version 1' }).isDisabled(), 'publishing is not held back by the warning');
+            await dialog.getByRole('checkbox', { name: /Publish anyway/ }).check();
+          }
           await dialog.getByRole('button', { name: 'Publish version 1' }).click();
           await page.getByText(`Version 1 of ${SEASON} is published.`, { exact: false }).waitFor();
           await page.getByRole('link', { name: 'Version 1', exact: true }).waitFor();
+          // The badge follows: published while the draft is what version 1 published.
+          await page.getByText(`Published · version 1 · ${SEASON}`).waitFor();
+          assertEqual(await page.getByText(`Draft · ${SEASON}`).count(), 0, 'a "Draft" badge after publishing');
+          await page.getByText('outlook published · version 1', { exact: false }).first().waitFor();
+          await shotAt(page, 'h1', 'outlook-published-1280');
         });
 
         await check('the delivery log lists one row per member', async () => {
@@ -227,8 +268,8 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
   await check('the planner signs out', () => signOut(page));
 
   // --- the demo member, on a phone-sized screen --------------------------------------------------
-  await page.setViewportSize({ width: 375, height: 780 });
-  const memberIn = await check('the member signs in on a 375 px screen', () => signIn(page, base, 'member@example.org'));
+  await page.setViewportSize({ width: 390, height: 844 });
+  const memberIn = await check('the member signs in on a 390 px screen', () => signIn(page, base, 'member@example.org'));
   if (memberIn && outlookId) {
     await check('the member opens the portal from the navigation and reads the published outlook with only Hollybrook Farm', async () => {
       await page.getByRole('button', { name: 'Open navigation' }).click();
@@ -241,7 +282,9 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
       await page.locator('np-fan-chart svg path').first().waitFor({ state: 'attached' });
       await page.getByText('not financial advice').first().waitFor();
       await page.getByText('certified adviser').first().waitFor();
+      await page.getByText('The band is where 9 in 10 outcomes should fall', { exact: false }).first().waitFor();
       const text = await page.locator('body').innerText();
+      assert(!text.includes('simulated seasons'), 'the member page speaks of "simulated seasons"');
       const html = await page.content();
       for (const other of ['Ashcombe Fields', 'Bramble End', 'Stonybrook']) {
         assert(!text.includes(other) && !html.includes(other), `"${other}" is on the member's page`);
@@ -249,14 +292,15 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
       const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
       assert(overflow <= 0, `the page is ${overflow}px wider than the screen`);
     });
-    await shot(page, 'member-outlook-375');
+    await shot(page, 'member-outlook-390');
+    await shotAt(page, 'np-fan-chart', 'member-band-390');
     await check("the member's account page offers the outlook e-mail toggle", async () => {
       await page.goto(`${base}/account`);
       const toggle = page.getByRole('switch', { name: /E-mail me the season outlook/ });
       await toggle.waitFor();
       assertEqual(await toggle.getAttribute('aria-checked'), 'true', 'outlook e-mails on');
     });
-    await shot(page, 'member-account-375');
+    await shot(page, 'member-account-390');
   }
   if (memberIn) await check('the member signs out', () => signOut(page));
   await page.setViewportSize({ width: 1280, height: 860 });
