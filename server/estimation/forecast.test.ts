@@ -70,3 +70,45 @@ describe('projectForecast', () => {
     expect(w.sd).toBeGreaterThan(1.5 * independent);
   });
 });
+
+describe('projectForecast options', () => {
+  const farms = model.farmEffects!.farms.slice(0, 20).map((farm, j) => ({ farm, fixed: { land: model.farmEffects!.lastLand[j]! } }));
+  const prices = { wheat: 260, canola: 500, nitrogen: 1250, diesel: 1.2, other: 100 };
+
+  it('price risk (past relative errors of the expected prices) widens the bands but not the point', () => {
+    const plain = projectForecast(model, { farms, prices, draws: 2000, seed: 5 });
+    const risky = projectForecast(model, {
+      farms,
+      prices,
+      draws: 2000,
+      seed: 5,
+      priceErrors: { wheat: [0.2, -0.15, 0.1, -0.25, 0.05], canola: [0.1, -0.2, 0.15, -0.1, 0] },
+    });
+    expect(risky.priceRisk).toBe(true);
+    expect(risky.coop.wheat!.point).toBe(plain.coop.wheat!.point);
+    expect(risky.coop.wheat!.upper - risky.coop.wheat!.lower).toBeGreaterThan(plain.coop.wheat!.upper - plain.coop.wheat!.lower);
+  });
+
+  it('bands at a lower level are narrower and nested', () => {
+    const p90 = projectForecast(model, { farms, prices, draws: 2000, seed: 5 }).coop.canola!;
+    const p50 = projectForecast(model, { farms, prices, draws: 2000, seed: 5, level: 0.5 }).coop.canola!;
+    expect(p50.lower).toBeGreaterThan(p90.lower);
+    expect(p50.upper).toBeLessThan(p90.upper);
+    expect(p90.lower).toBe(p90.p5);
+  });
+
+  it('the pooled specification projects in levels with land as an ordinary factor', () => {
+    const pooled = fitForecastModel(panel.dataset, { spec: 'pooled' });
+    expect(pooled.spec).toBe('pooled');
+    expect(pooled.fit.layout.factors).toEqual(['land']);
+    const proj = projectForecast(pooled, { farms, prices, draws: 500, seed: 1 });
+    expect(proj.seasonShockDf).toBeNull();
+    for (const f of proj.farms) for (const q of Object.values(f.quantities)) expect(0 <= q.lower && q.lower <= q.point && q.point <= q.upper).toBe(true);
+  });
+
+  it('names what is wrong with bad options', () => {
+    expect(() => projectForecast(model, { farms: [{ farm: 'X', fixed: {} }], draws: 500 })).toThrow(/land \(land\) must be given/);
+    expect(() => projectForecast(model, { farms, priceErrors: { wheat: [0.1], canola: [0.1, 0.2] }, draws: 500 })).toThrow(/same number of past seasons/);
+    expect(() => projectForecast(model, { farms, level: 1.2 })).toThrow(/level must lie between 0 and 1/);
+  });
+});

@@ -101,3 +101,28 @@ describe('npm run project (contract)', () => {
     expect(nextSeasonLabel('2099/2100')).toBe('2100/2101');
   });
 });
+
+describe('npm run fit --spec per-hectare', () => {
+  it('keeps the contract keys and reports levels at the chosen land (per-hectare values × land)', async () => {
+    const { runFitCli } = await import('./cli.js');
+    const r = runFitCli(['--input', history, '--spec', 'per-hectare', '--fixed', 'land=200']);
+    expect(r.stderr).toBe('');
+    expect(r.code).toBe(0);
+    const doc = JSON.parse(r.stdout) as {
+      netputs: Record<string, number>;
+      profit: number;
+      evaluatedAt: { fixed: Record<string, number> };
+      elasticities: number[][];
+      specification: string;
+      perHectare: { netputs: Record<string, number>; profit: number };
+    };
+    expect(doc.evaluatedAt.fixed.land).toBe(200);
+    for (const [item, v] of Object.entries(doc.perHectare.netputs)) expect(doc.netputs[item]).toBeCloseTo(200 * v, 9);
+    expect(doc.profit).toBeCloseTo(200 * doc.perHectare.profit, 6);
+    expect(doc.specification).toMatch(/per hectare/);
+    // homogeneity of degree zero: every elasticity row sums to zero (docs/profit-functions.md)
+    for (const row of doc.elasticities) expect(Math.abs(row.reduce((a, v) => a + v, 0))).toBeLessThan(1e-9);
+    const bad = runFitCli(['--input', history, '--spec', 'hectare']);
+    expect(bad.code).toBe(2);
+  });
+});
