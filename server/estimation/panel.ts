@@ -292,10 +292,18 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   };
 
   /** Farm and season effects, variances and exponents from the current raw residuals. */
-  const updateEffects = (): void => {
+  // per-item weights (L/L̄)^−δ_i, recomputed when δ_i has moved by more than 1e-3
+  const itemW = Array.from({ length: n }, () => new Float64Array(N).fill(1));
+  const itemWDelta = new Float64Array(n);
+  /** `estimateDelta`: re-estimate the size exponents (every round until the weights settle, and at the end). */
+  const updateEffects = (estimateDelta = true): void => {
     for (let i = 0; i < n; i++) {
       const r = resid[i]!;
-      const wi = mapF(logL, (x) => Math.exp(-delta[i]! * x));
+      if (Math.abs(delta[i]! - itemWDelta[i]!) > 1e-3) {
+        itemW[i] = mapF(logL, (x) => Math.exp(-delta[i]! * x));
+        itemWDelta[i] = delta[i]!;
+      }
+      const wi = itemW[i]!;
       const m = mu[i]!;
       const lam = lambda[i]!;
       // season effects: weighted season means of r − μ
@@ -367,7 +375,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
         }
       }
       // δ_i: slope of log squared within-farm residuals on log land
-      if (useScale && landVaries) {
+      if (useScale && landVaries && estimateDelta) {
         let sx = 0;
         let sy = 0;
         let sxy = 0;
@@ -419,7 +427,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     const prevDelta = Array.from(delta);
     theta = solveTheta(false);
     residualsAt(theta);
-    updateEffects();
+    updateEffects(outer <= 3);
     let num = 0;
     let den = 0;
     for (let j = 0; j < k; j++) {
