@@ -9,13 +9,15 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { Router, RouterLink } from '@angular/router';
 import type { Item } from '../../../shared/api-types';
+import { SPEC_WORDS } from '../../../shared/model-schemas';
+import { skillSummary } from '../../../shared/skill-words';
 import { errorMessage } from '../core/api-error';
 import { SettingsStore } from '../core/settings-store';
 import { CautionNote } from '../shared/caution-note';
 import { elasticityScaleLimit } from './colour-scale';
 import { ElasticityTable, type MatrixItem } from './elasticity-table';
 import { formatAmount, formatPercent, formatRatio, ItemLabels, shortHash } from './model-format';
-import { FORM_LABELS, type Evaluation, type ModelSummary, type RunDetail } from './model-types';
+import { FORM_LABELS, type Evaluation, type FitRunResult, type ModelSummary, type RunDetail } from './model-types';
 import { ModelsApi } from './models-api';
 
 /** B against A in %, signed ("+1.2 %"), or a dash when either is missing or A is zero. */
@@ -36,6 +38,15 @@ interface Point {
 }
 
 /** `/models/compare?a=&b=`: two finished runs side by side: fit, elasticities and projections at the same prices. */
+/** One run's back-test against the plain rules in a line: items beaten, farm coverage, co-op totals held. */
+function skillLine(r: FitRunResult): string {
+  if (!r.skill?.items.length) return 'none (run stored before forecasting models, or back-test off)';
+  const s = skillSummary(r.skill, (c) => c);
+  const beat = s.items.filter((i) => i.beatsRule).length;
+  const cov = s.farmCoverage.share === null ? '' : `; ${Math.round(s.level * 100)} % bands held ${Math.round(s.farmCoverage.share * 100)} % of farm outcomes and ${s.coopCoverage.held} of ${s.coopCoverage.total} co-op totals`;
+  return `beat the per-hectare rule for ${beat} of ${s.items.length} items${cov}`;
+}
+
 @Component({
   selector: 'np-run-compare',
   imports: [
@@ -151,6 +162,8 @@ export class RunCompare {
         a: formatPercent(100 * ra.fit.monotonicityViolationShare),
         b: formatPercent(100 * rb.fit.monotonicityViolationShare),
       },
+      { label: 'Farms forecast', a: SPEC_WORDS[ra.spec ?? 'pooled'].label, b: SPEC_WORDS[rb.spec ?? 'pooled'].label },
+      { label: 'Back-test against the plain rules', a: skillLine(ra), b: skillLine(rb) },
       {
         label: 'Back-test: mean absolute error',
         a: `${formatPercent(mean(ra.backtest.items))} over ${ra.backtest.seasons.length} seasons`,

@@ -219,6 +219,9 @@ export default async function models({ base, page }: Harness): Promise<void> {
         const stats = page.getByRole('table', { name: 'Fit statistics of run A and run B' });
         await stats.waitFor();
         await stats.getByRole('row', { name: /Functional form Normalised quadratic Generalised Leontief/ }).waitFor();
+        // Both keep land, so both forecast per hectare; each says how it did against the plain rules.
+        await stats.getByRole('row', { name: /Farms forecast Per hectare, with farm and season effects Per hectare, with farm and season effects/ }).waitFor();
+        await stats.getByRole('row', { name: /Back-test against the plain rules beat the per-hectare rule for \d of 7 items.* beat the per-hectare rule for \d of 5 items/ }).waitFor();
         await page.getByRole('table', { name: 'A · run #' + runA }).waitFor();
         await page.getByRole('table', { name: 'B · run #' + runB }).waitFor();
 
