@@ -68,7 +68,7 @@ export function comparisonRows(r: BudgetResult): ComparisonRow[] {
 @Component({
   selector: 'np-scenario-comparison',
   template: `
-    <div class="np-table-scroll">
+    <div class="np-table-scroll" tabindex="0">
       <table class="numbers" aria-label="Scenarios side by side">
         <thead>
           <tr>

@@ -14,7 +14,7 @@ import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type ItemProjection
         }
         entered in the co-op settings.
       </p>
-      <div class="np-table-scroll">
+      <div class="np-table-scroll" tabindex="0">
         <table aria-label="Deliveries against capacity">
           <thead>
             <tr>

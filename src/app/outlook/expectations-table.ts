@@ -15,7 +15,7 @@ export interface MissingExpectation {
   selector: 'np-expectations-table',
   imports: [MatButton, MatIcon],
   template: `
-    <div class="np-table-scroll">
+    <div class="np-table-scroll" tabindex="0">
       <table [attr.aria-label]="label()">
         <thead>
           <tr>
