@@ -26,7 +26,7 @@ import { unitLabels } from './budget-units';
       In all {{ tonnes(total().tonnes) }} {{ labels().productPlural }} of product for {{ money(scenario().mix.cost) }}; the continuous
       least-cost mix would cost {{ money(scenario().mix.lpCost) }}, so whole lots add {{ money(scenario().mix.cost - scenario().mix.lpCost) }}.
     </p>
-    <div class="np-table-scroll balance">
+    <div class="np-table-scroll balance" tabindex="0">
       <table class="numbers" [attr.aria-label]="'Nutrients needed and supplied, ' + scenario().name">
         <thead>
           <tr>
