@@ -59,7 +59,8 @@ export function implausiblePrice(price: number, item: PriceItemRef, currency: st
   const ratio = price / history.median;
   if (ratio <= PLAUSIBLE_FACTOR && ratio >= 1 / PLAUSIBLE_FACTOR) return null;
   const per = `${currency}/${item.unit}`;
-  const base = `${fmt(price)} ${per} is ${ratio > 1 ? `${fmt(ratio)} times` : `1/${fmt(1 / ratio)} of`} ${item.name}'s recent median of ${fmt(history.median)} ${per} (over ${history.count} prices)`;
+  const times = (x: number) => x.toLocaleString('en-GB', { maximumSignificantDigits: 2 });
+  const base = `${fmt(price)} ${per} is ${ratio > 1 ? `about ${times(ratio)} times` : `about 1/${times(1 / ratio)} of`} ${item.name}'s recent median of ${fmt(history.median)} ${per} (over ${history.count} prices)`;
   const hint = slipHint(ratio, item.unit);
   return `${base}${hint ? `; ${hint}` : ''}`;
 }

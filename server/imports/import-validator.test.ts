@@ -194,9 +194,9 @@ describe('prices from a decimal-comma spreadsheet (issue 15)', () => {
       {
         row: 2,
         column: 'price',
-        message: "1,214 EUR/kg N is 1,003.31 times Nitrogen (N)'s recent median of 1.21 EUR/kg N (over 9 prices); is it a price per tonne entered per kg N?",
+        message: "1,214 EUR/kg N is about 1,000 times Nitrogen (N)'s recent median of 1.21 EUR/kg N (over 9 prices); is it a price per tonne entered per kg N?",
       },
-      { row: 3, column: 'price', message: "20.41 EUR/t is 1/10 of Wheat's recent median of 204.1 EUR/t (over 12 prices); is the decimal mark in the right place?" },
+      { row: 3, column: 'price', message: "20.41 EUR/t is about 1/10 of Wheat's recent median of 204.1 EUR/t (over 12 prices); is the decimal mark in the right place?" },
     ]);
     // The warned rows are still rows to write: the planner may accept them.
     expect(all(out.writes.prices)).toHaveLength(3);

@@ -334,6 +334,10 @@ export async function writeRows(
       await attempt(existing, () => upsert(existing, 'update'));
       done += chunk.length;
       onProgress(done);
+      // PGlite runs in this process and its promises settle as microtasks: without a macrotask
+      // between chunks a 200,000-row commit would hold every request (issue 15 item 10). The
+      // transaction stays one: the pause is inside it.
+      await new Promise((r) => setImmediate(r));
       if (CHUNK_DELAY_MS) await new Promise((r) => setTimeout(r, CHUNK_DELAY_MS));
     }
   };

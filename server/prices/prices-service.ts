@@ -40,7 +40,8 @@ export async function implausibleRows(db: Db, rows: readonly PriceInput[], pathO
 function needsConfirmation(doubts: { path: string; message: string }[]): AppError {
   const first = doubts[0].message;
   const more = doubts.length > 1 ? ` (and ${doubts.length - 1} more)` : '';
-  return AppError.needsConfirmation(`Check before saving: ${first}${more}. Send the same request with "confirmImplausible": true to store it.`, doubts);
+  // The API flag that confirms is `confirmImplausible: true` (screens: "save anyway").
+  return AppError.needsConfirmation(`Check before saving: ${first}${more}. Save again to store it as it is`, doubts);
 }
 
 /** Inserts a block of prices, all or none. */

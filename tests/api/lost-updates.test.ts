@@ -110,8 +110,8 @@ describe('prices far from their history need confirmation, also from a script', 
     expect(refused.status).toBe(422);
     expect(refused.body.error.code).toBe('needs_confirmation');
     expect(refused.body.error.details.map((d: { path: string }) => d.path)).toEqual(['body.rows.0.price', 'body.rows.1.price']);
-    expect(refused.body.error.details[0].message).toMatch(/^1,214 EUR\/kg N is .* times .*; is it a price per tonne entered per kg N\?$/);
-    expect(refused.body.error.details[1].message).toMatch(/^20\.41 EUR\/t is 1\/\d+(\.\d+)? of .*; is the decimal mark in the right place\?$/);
+    expect(refused.body.error.details[0].message).toMatch(/^1,214 EUR\/kg N is about .* times .*; is it a price per tonne entered per kg N\?$/);
+    expect(refused.body.error.details[1].message).toMatch(/^20\.41 EUR\/t is about 1\/\d+(\.\d+)? of .*; is the decimal mark in the right place\?$/);
     expect(((await planner.get('/api/prices')).body as unknown[]).length).toBe(count);
     const confirmed = await planner.post('/api/prices').send({ rows: block, confirmImplausible: true });
     expect(confirmed.status).toBe(201);

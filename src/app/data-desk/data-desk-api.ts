@@ -30,6 +30,8 @@ export interface RecordKey {
 }
 export interface RecordBody extends RecordKey {
   quantity: number;
+  /** The version the edit started from (null: no record yet); left out, the row is written whatever is stored. */
+  version?: number | null;
 }
 /** One farm's level of one fixed factor in one season (GET /api/records/factors). */
 export interface FactorRow {
@@ -99,11 +101,12 @@ export class DataDeskApi {
 
   // --- prices ---
   /** One row or a pasted block; the server writes all rows or none. */
-  createPrices(rows: PriceInput[]): Promise<PriceRow[]> {
-    return firstValueFrom(this.#http.post<PriceRow[]>('/api/prices', { rows }));
+  createPrices(rows: PriceInput[], confirmImplausible = false): Promise<PriceRow[]> {
+    return firstValueFrom(this.#http.post<PriceRow[]>('/api/prices', { rows, ...(confirmImplausible ? { confirmImplausible } : {}) }));
   }
-  updatePrice(id: number, body: PriceInput): Promise<PriceRow> {
-    return firstValueFrom(this.#http.put<PriceRow>(`/api/prices/${id}`, body));
+  /** `version`: the version the edit started from; a stale one answers 409 `stale` with the stored row. */
+  updatePrice(id: number, body: PriceInput, version: number, confirmImplausible = false): Promise<PriceRow> {
+    return firstValueFrom(this.#http.put<PriceRow>(`/api/prices/${id}`, { ...body, version, ...(confirmImplausible ? { confirmImplausible } : {}) }));
   }
   /** Deletes the chosen prices in one transaction: all of them or, if any is gone, none. */
   deletePrices(ids: number[]): Promise<{ deleted: number }> {

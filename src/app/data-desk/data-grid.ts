@@ -5,8 +5,12 @@ import {
   RowSelectionModule,
   SelectEditorModule,
   TextEditorModule,
+  type ColDef,
+  type IErrorValidationParams,
   type ProcessCellForExportParams,
+  type ValueParserParams,
 } from 'ag-grid-community';
+import { numberInMark, parseNumber, type DecimalMark } from '../../../shared/cell-parsers';
 // The shared registration (row model, filters, pagination, CSV export) and the theme.
 export { gridTheme } from '../shared/grid';
 
@@ -29,4 +33,39 @@ export function safeCsvCell(params: ProcessCellForExportParams): string {
   if (params.value === null || params.value === undefined) return '';
   if (typeof params.value === 'number') return String(params.value);
   return String(spreadsheetSafe(params.formatValue ? params.formatValue(params.value) : params.value));
+}
+
+/**
+ * A numeric column's editing in the co-op's decimal convention: the editor starts from the stored
+ * value written that way (204,5 under a comma) and typed text is read by the shared parser; text it
+ * cannot read stays text, which the column's validation refuses with the cell and the value, so
+ * nothing typed is ever reinterpreted (AG Grid's number editor would drop the letter of "2O4,5").
+ * `getValidationErrors` is the column's check of the edited value (a number or refused text).
+ */
+export function numberEditing<T>(
+  mark: DecimalMark,
+  getValidationErrors: (p: IErrorValidationParams<T>) => string[] | null,
+): Pick<ColDef<T>, 'cellEditor' | 'cellEditorParams' | 'valueParser'> {
+  return {
+    cellEditor: 'agTextCellEditor',
+    cellEditorParams: {
+      useFormatter: true,
+      formatValue: (v: unknown) => (typeof v === 'number' ? numberInMark(v, mark) : (v ?? '')),
+      maxLength: 40,
+      getValidationErrors,
+    },
+    valueParser: (p: ValueParserParams<T>) => {
+      const text = String(p.newValue ?? '').trim();
+      if (text === '') return null;
+      const parsed = parseNumber(text, mark);
+      return parsed.ok ? parsed.value : text;
+    },
+  };
+}
+
+/** The problem of an edited numeric cell that is still text (the parser refused it), or null. */
+export function numberTextProblem(value: unknown, mark: DecimalMark): string | null {
+  if (typeof value !== 'string' || value.trim() === '') return null;
+  const parsed = parseNumber(value, mark);
+  return parsed.ok ? null : parsed.message;
 }

@@ -27,7 +27,9 @@ import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { factorNameSchema } from '../../../shared/data-schemas';
 import { DataDeskApi, type FactorRow, type FarmRow, type LandRow, type RecordBody } from '../data-desk/data-desk-api';
-import { gridTheme, safeCsvCell } from '../data-desk/data-grid';
+import { gridTheme, numberEditing, numberTextProblem, safeCsvCell } from '../data-desk/data-grid';
+import { SettingsStore } from '../core/settings-store';
+import type { DecimalMark } from '../../../shared/cell-parsers';
 import { parseTable } from '../data-desk/paste';
 import { ReferenceStore } from '../data-desk/reference-store';
 import { CautionNote } from '../shared/caution-note';
@@ -55,6 +57,9 @@ export class FarmRecords {
   readonly #router = inject(Router);
   readonly #snackBar = inject(MatSnackBar);
   protected readonly ref = inject(ReferenceStore);
+  readonly #settings = inject(SettingsStore);
+  /** How the co-op writes decimals: the grid's cells are typed that way. */
+  protected readonly decimalMark = computed<DecimalMark>(() => this.#settings.settings()?.decimalMark ?? 'point');
 
   /** The route's `:id`. */
   readonly id = input.required<string>();
@@ -106,6 +111,7 @@ export class FarmRecords {
   protected readonly defaultColDef: ColDef<SeasonRow> = { sortable: false, resizable: true, editable: () => this.canEdit() };
   protected readonly columns = computed<(ColDef<SeasonRow> | ColGroupDef<SeasonRow>)[]>(() => {
     const items = this.ref.items();
+    const mark = this.decimalMark();
     const itemColumn = (it: Item): ColDef<SeasonRow> => ({
       colId: itemKey(it.id),
       field: itemKey(it.id),
@@ -118,8 +124,7 @@ export class FarmRecords {
       autoHeaderHeight: true,
       valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? (it.unit === 't' ? tonnesFormat : quantityFormat).format(p.value) : '—'),
       cellClassRules: { 'np-missing': (p) => p.value === null || p.value === undefined },
-      cellEditor: 'agNumberCellEditor',
-      cellEditorParams: { getValidationErrors: (p: IErrorValidationParams<SeasonRow>) => this.#validate('quantity', p) },
+      ...numberEditing<SeasonRow>(mark, (p) => this.#validate('quantity', p)),
     });
     return [
       { field: 'season', headerName: 'Season', pinned: 'left', width: 110, editable: false },
@@ -130,8 +135,7 @@ export class FarmRecords {
         width: 120,
         valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? landFormat.format(p.value) : '—'),
         cellClassRules: { 'np-missing': (p) => p.value === null || p.value === undefined },
-        cellEditor: 'agNumberCellEditor',
-        cellEditorParams: { getValidationErrors: (p: IErrorValidationParams<SeasonRow>) => this.#validate('land', p) },
+        ...numberEditing<SeasonRow>(mark, (p) => this.#validate('land', p)),
       },
       ...(this.otherFactors().length
         ? [
@@ -149,8 +153,7 @@ export class FarmRecords {
                   autoHeaderHeight: true,
                   valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? quantityFormat.format(p.value) : '—'),
                   cellClassRules: { 'np-missing': (p) => p.value === null || p.value === undefined },
-                  cellEditor: 'agNumberCellEditor',
-                  cellEditorParams: { getValidationErrors: (p: IErrorValidationParams<SeasonRow>) => this.#validate('factor', p) },
+                  ...numberEditing<SeasonRow>(mark, (p) => this.#validate('factor', p)),
                 }),
               ),
             },
@@ -183,7 +186,7 @@ export class FarmRecords {
   }
 
   #validate(kind: 'quantity' | 'land' | 'factor', p: IErrorValidationParams<SeasonRow>): string[] | null {
-    const problem = recordCellProblem(kind, p.value);
+    const problem = numberTextProblem(p.value, this.decimalMark()) ?? recordCellProblem(kind, p.value);
     if (problem) this.status.set({ ok: false, text: `${p.cellEditorParams.data.season}: ${problem}` });
     return problem ? [problem] : null;
   }
@@ -223,7 +226,9 @@ export class FarmRecords {
           await this.#api.deleteRecord({ farmId, seasonId: row.seasonId, itemId: item.id });
           this.status.set({ ok: true, text: `Removed: ${item.name} in ${row.season}.` });
         } else {
-          await this.#api.putRecords([{ farmId, seasonId: row.seasonId, itemId: item.id, quantity: Number(event.newValue) }]);
+          // The version the edit started from (null: the cell was empty); a stale one is refused with 409.
+          const stored = this.records.hasValue() ? this.records.value().find((r) => r.seasonId === row.seasonId && r.itemId === item.id) : undefined;
+          await this.#api.putRecords([{ farmId, seasonId: row.seasonId, itemId: item.id, quantity: Number(event.newValue), version: stored?.version ?? null }]);
           this.status.set({ ok: true, text: `Saved: ${item.name} in ${row.season} is ${quantityFormat.format(Number(event.newValue))} ${item.unit}.` });
         }
       }

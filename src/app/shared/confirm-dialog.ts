@@ -12,6 +12,8 @@ export interface ConfirmDialogData {
   title: string;
   message: string;
   confirmLabel: string;
+  /** The other button's words (closes with `false`); "Cancel" when absent. */
+  cancelLabel?: string;
   /** Colours the confirm button as a warning, for actions that take something away. */
   destructive?: boolean;
 }
@@ -26,7 +28,7 @@ export interface ConfirmDialogData {
       <p>{{ data.message }}</p>
     </mat-dialog-content>
     <mat-dialog-actions align="end">
-      <button matButton type="button" [mat-dialog-close]="false">Cancel</button>
+      <button matButton type="button" [mat-dialog-close]="false">{{ data.cancelLabel ?? 'Cancel' }}</button>
       <button
         matButton="filled"
         type="button"

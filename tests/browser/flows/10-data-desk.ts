@@ -109,7 +109,7 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     await page.getByRole('region', { name: /Rows to fix before anything is written/ }).waitFor({ timeout: 30_000 });
     assertEqual(await problemRows(page), MESSY_ERRORS, 'rows and columns of the problem list');
     const list = page.getByRole('region', { name: /Rows to fix/ });
-    await list.getByText('"231,8" uses a comma for decimals').waitFor();
+    await list.getByText('"231,8" is written with a decimal comma').waitFor();
     await list.getByText('unknown item "barley"').waitFor();
     await list.getByText(`unit "kg" is not nitrogen's unit "kg N"`).waitFor();
     await list.getByText('7 problems in 7 rows').waitFor();
@@ -170,6 +170,52 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     // The grid puts the cell back asynchronously after the editor closes.
     for (let i = 0; i < 50 && (await priceCell.innerText()).trim() !== '228.40'; i++) await page.waitForTimeout(100);
     assertEqual((await priceCell.innerText()).trim(), '228.40', 'price after Escape');
+  });
+
+  /** A screenshot at 1280 px and one at 390 px (a phone), of the page as it is now. */
+  const shotBoth = async (name: string) => {
+    const size = page.viewportSize();
+    await shot(page, `${name}-1280`);
+    await page.setViewportSize({ width: 390, height: 844 });
+    await page.waitForTimeout(400);
+    await shot(page, `${name}-390`);
+    if (size) await page.setViewportSize(size);
+    await page.waitForTimeout(400);
+  };
+
+  await check('issue 15: a decimal comma (204,5) and a letter O (2O4.5) are refused in the cell, naming the value, never read as 2045 or 245', async () => {
+    for (const [typed, words] of [
+      ['204,5', '"204,5" is written with a decimal comma'],
+      ['2O4.5', '"2O4.5" is not a number: it has the letter "O" in it'],
+    ] as const) {
+      await priceCell.dblclick();
+      const editor = priceCell.locator('input');
+      await editor.fill(typed);
+      await editor.press('Enter');
+      await page.getByRole('status').getByText(words).waitFor();
+      assertEqual(await editor.count(), 1, `the editor stays open on ${typed}`);
+      if (typed === '204,5') await shotBoth('data-desk-prices-refused');
+      await editor.press('Escape');
+      for (let i = 0; i < 50 && (await priceCell.innerText()).trim() !== '228.40'; i++) await page.waitForTimeout(100);
+      assertEqual((await priceCell.innerText()).trim(), '228.40', `price after ${typed} and Escape`);
+    }
+  });
+
+  await check('issue 15: a price far from its history (22.84 for 228.40, a slipped decimal mark) asks before saving', async () => {
+    await priceCell.dblclick();
+    const editor = priceCell.locator('input');
+    await editor.fill('22.84');
+    await editor.press('Enter');
+    const dialog = page.getByRole('dialog');
+    await dialog.getByRole('heading', { name: 'Is this price right?' }).waitFor();
+    await dialog.getByText('is the decimal mark in the right place?').waitFor();
+    await page.waitForTimeout(600); // the dialog's opening animation
+    await shotBoth('data-desk-prices-plausibility');
+    await dialog.getByRole('button', { name: 'Go back' }).click();
+    for (let i = 0; i < 50 && (await priceCell.innerText()).trim() !== '228.40'; i++) await page.waitForTimeout(100);
+    assertEqual((await priceCell.innerText()).trim(), '228.40', 'price after going back');
+    const stored = (await page.evaluate(() => fetch('/api/prices?items=1').then((r) => r.json()))) as { observedOn: string; deliveryPoint: string; price: number }[];
+    assert(!stored.some((p) => p.price === 22.84), 'the doubted price was stored');
   });
 
   await check('a price edited in the grid is saved and the chart redraws', async () => {

@@ -1,3 +1,4 @@
+import type { DecimalMark } from '../../../../shared/cell-parsers';
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
@@ -24,21 +25,23 @@ export const IMPORT_FILE_LIMITS = { maxBytes: IMPORT_LIMITS.maxFileBytes, maxRow
 export class ImportsApi {
   readonly #http = inject(HttpClient);
 
-  upload(file: File, kind: ImportKind, options: { mapping?: Record<string, string | null>; deliveryPoint?: string | null } = {}): Promise<ImportView> {
+  upload(file: File, kind: ImportKind, options: { mapping?: Record<string, string | null>; deliveryPoint?: string | null; decimalMark?: DecimalMark | null } = {}): Promise<ImportView> {
     const form = new FormData();
     form.append('kind', kind);
+    if (options.decimalMark) form.append('decimalMark', options.decimalMark);
     if (options.mapping) form.append('mapping', JSON.stringify(options.mapping));
     if (options.deliveryPoint) form.append('deliveryPoint', options.deliveryPoint);
     form.append('file', file, file.name);
     return firstValueFrom(this.#http.post<ImportView>('/api/imports', form));
   }
 
-  validate(id: number, body: { mapping?: Record<string, string | null>; deliveryPoint?: string | null }): Promise<ImportView> {
+  validate(id: number, body: { mapping?: Record<string, string | null>; deliveryPoint?: string | null; decimalMark?: DecimalMark }): Promise<ImportView> {
     return firstValueFrom(this.#http.post<ImportView>(`/api/imports/${id}/validate`, body));
   }
 
-  commit(id: number, onExisting: OnExisting): Promise<Pick<ImportView, 'id' | 'status' | 'progress'>> {
-    return firstValueFrom(this.#http.post<Pick<ImportView, 'id' | 'status' | 'progress'>>(`/api/imports/${id}/commit`, { onExisting }));
+  /** `acceptWarnings`: the planner has checked the values far from their history. */
+  commit(id: number, onExisting: OnExisting, acceptWarnings = false): Promise<Pick<ImportView, 'id' | 'status' | 'progress'>> {
+    return firstValueFrom(this.#http.post<Pick<ImportView, 'id' | 'status' | 'progress'>>(`/api/imports/${id}/commit`, { onExisting, acceptWarnings }));
   }
 
   get(id: number): Promise<ImportView> {

@@ -19,6 +19,9 @@ import { AuthStore } from '../../core/auth-store';
 import { CautionNote } from '../../shared/caution-note';
 import { ProblemList } from '../problem-list';
 import { ReferenceStore } from '../reference-store';
+import { DataDeskApi } from '../data-desk-api';
+import type { DecimalMark } from '../../../../shared/cell-parsers';
+import { MatCheckbox } from '@angular/material/checkbox';
 import { IMPORT_FILE_LIMITS, ImportsApi, type ImportKind, type ImportSummary, type ImportView, type OnExisting } from './imports-api';
 
 export const KIND_INFO: Record<ImportKind, { label: string; about: string; columns: string }> = {
@@ -75,6 +78,7 @@ export function fileProblem(file: { name: string; size: number }): string | null
     MatOption,
     CautionNote,
     ProblemList,
+    MatCheckbox,
   ],
   templateUrl: './imports-page.html',
   styleUrl: './imports-page.scss',
@@ -85,6 +89,7 @@ export class ImportsPage {
   readonly #auth = inject(AuthStore);
   readonly #host = inject<ElementRef<HTMLElement>>(ElementRef);
   protected readonly ref = inject(ReferenceStore);
+  readonly #dataDesk = inject(DataDeskApi);
   #stopped = false;
 
   constructor() {
@@ -105,6 +110,8 @@ export class ImportsPage {
   );
 
   protected readonly kind = signal<ImportKind>('prices');
+  /** The planner has checked the values far from their history and accepts them. */
+  protected readonly acceptWarnings = signal(false);
   protected readonly deliveryPoint = signal<string | null>(null);
   protected readonly file = signal<File | null>(null);
   protected readonly dragging = signal(false);
@@ -217,11 +224,35 @@ export class ImportsPage {
     this.failure.set(null);
     this.busy.set(`Checking ${v.fileName} again…`);
     try {
-      this.view.set(await this.#api.validate(v.id, { mapping, deliveryPoint: this.deliveryPoint() }));
+      this.view.set(await this.#api.validate(v.id, { mapping, deliveryPoint: this.deliveryPoint(), decimalMark: this.view()?.decimalMark }));
+      this.acceptWarnings.set(false);
     } catch (error) {
       this.failure.set(`Not checked again: ${errorMessage(error)}`);
     } finally {
       this.busy.set(null);
+    }
+  }
+
+  /** Reads the file again with the other decimal mark (1234.5 or 1234,5), for this import only. */
+  protected async setDecimalMark(mark: DecimalMark): Promise<void> {
+    const v = this.view();
+    if (!v || v.status === 'committed' || v.decimalMark === mark) return;
+    this.view.set({ ...v, decimalMark: mark });
+    await this.checkAgain();
+  }
+
+  /** Creates a season the file names but the co-op has not set up, then checks the file again. */
+  protected async createSeason(season: { label: string; startYear: number }): Promise<void> {
+    // The month the co-op's seasons usually start in (July when none is set up).
+    const months = this.ref.seasons().map((s) => s.startMonth);
+    const startMonth = months.length ? months.sort((a, b) => months.filter((m) => m === b).length - months.filter((m) => m === a).length)[0] : 7;
+    this.failure.set(null);
+    try {
+      await this.#dataDesk.createSeason({ label: season.label, startYear: season.startYear, startMonth });
+      this.ref.reloadAll();
+      await this.checkAgain();
+    } catch (error) {
+      this.failure.set(`Season ${season.label} was not created: ${errorMessage(error)}`);
     }
   }
 
@@ -235,7 +266,7 @@ export class ImportsPage {
     if (!v || v.errorCount > 0) return;
     this.failure.set(null);
     try {
-      const started = await this.#api.commit(v.id, this.onExisting());
+      const started = await this.#api.commit(v.id, this.onExisting(), this.acceptWarnings());
       this.view.set({ ...v, status: started.status, progress: started.progress, failure: null });
       await this.#follow(v.id);
     } catch (error) {

@@ -18,12 +18,15 @@ import { ApiRequestError, errorMessage } from '../../core/api-error';
 import { DataDeskApi } from '../data-desk-api';
 import { PASTE_COLUMN_LABEL, PRICE_PASTE_COLUMNS, parseTable, problemsFromServer, readPastedPrices, type PasteProblem } from '../paste';
 import { ProblemList } from '../problem-list';
+import type { DecimalMark } from '../../../../shared/cell-parsers';
 import type { Lookups } from '../reference-store';
 
 export interface PasteDialogData {
   text: string;
   lookups: Lookups;
   currency: string;
+  /** How the co-op writes decimals (settings). */
+  decimalMark: DecimalMark;
   /** Prices already stored, so a line that would clash with one is named before sending. */
   existing: readonly PriceRow[];
 }
@@ -66,7 +69,7 @@ export class PasteDialog {
   protected readonly labels = PASTE_COLUMN_LABEL;
 
   protected readonly parsed = computed(() => {
-    const result = readPastedPrices(parseTable(this.#text()), this.data.lookups, { currency: this.data.currency, source: this.#source() });
+    const result = readPastedPrices(parseTable(this.#text()), this.data.lookups, { currency: this.data.currency, source: this.#source(), decimalMark: this.data.decimalMark });
     // A line that matches a stored price would be refused by the database as a whole block: say which.
     const clashes: PasteProblem[] = [];
     for (const row of result.rows) {
@@ -94,18 +97,28 @@ export class PasteDialog {
   protected readonly sending = signal(false);
   protected readonly serverProblems = signal<PasteProblem[]>([]);
   protected readonly failure = signal<string | null>(null);
+  /** The lines the server asked about (prices far from their history), for the block as it was sent. */
+  protected readonly doubts = signal<{ text: string; problems: PasteProblem[] } | null>(null);
+  protected readonly askingToConfirm = computed(() => this.doubts()?.text === this.#text());
 
   protected async send(): Promise<void> {
     const parsed = this.parsed();
     if (!this.canSend()) return;
+    const confirmed = this.askingToConfirm();
     this.sending.set(true);
     this.failure.set(null);
     this.serverProblems.set([]);
     try {
-      const created = await this.#api.createPrices(parsed.validRows);
+      const created = await this.#api.createPrices(parsed.validRows, confirmed);
       this.#dialogRef.close(created);
     } catch (error) {
       const mapped = error instanceof ApiRequestError ? problemsFromServer(error.error.details, parsed.rows) : [];
+      if (error instanceof ApiRequestError && error.error.code === 'needs_confirmation') {
+        // Far from the item's history: shown line by line; sending the same block again stores it.
+        this.doubts.set({ text: this.#text(), problems: mapped });
+        this.failure.set('Nothing was added yet: check the lines below; if they are right, add them anyway.');
+        return;
+      }
       if (mapped.length) this.serverProblems.set(mapped);
       this.failure.set(`Nothing was added: ${errorMessage(error)}`);
     } finally {

@@ -1,3 +1,4 @@
+import { ApiRequestError } from '../../core/api-error';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
 import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
@@ -105,6 +106,8 @@ export class PriceDialog {
   });
   protected readonly saving = signal(false);
   protected readonly failure = signal<string | null>(null);
+  /** The body the server last asked about (422 needs_confirmation). */
+  #doubted: string | null = null;
 
   protected async save(): Promise<void> {
     if (this.form.invalid) {
@@ -128,7 +131,17 @@ export class PriceDialog {
       this.failure.set(`${twin.itemName} at ${twin.deliveryPoint} on ${twin.observedOn} is already stored (${twin.price} ${twin.currency}); change that row in the grid instead.`);
       return;
     }
-    await saveAndClose(() => this.#api.createPrices([body]), {
+    // A price far from its history is answered with the reason; saving the same price again confirms it.
+    const key = JSON.stringify(body);
+    const confirmed = this.#doubted === key;
+    await saveAndClose(async () => {
+      try {
+        return await this.#api.createPrices([body], confirmed);
+      } catch (error) {
+        if (error instanceof ApiRequestError && error.error.code === 'needs_confirmation') this.#doubted = key;
+        throw error;
+      }
+    }, {
       ref: this.#dialogRef,
       saving: this.saving,
       failure: this.failure,

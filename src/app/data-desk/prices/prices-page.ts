@@ -33,12 +33,19 @@ import { SettingsStore } from '../../core/settings-store';
 import { CautionNote } from '../../shared/caution-note';
 import { ConfirmDialog, type ConfirmDialogData } from '../../shared/confirm-dialog';
 import { DataDeskApi } from '../data-desk-api';
-import { gridTheme, safeCsvCell, spreadsheetSafe } from '../data-grid';
+import { gridTheme, numberEditing, safeCsvCell, spreadsheetSafe } from '../data-grid';
 import { ReferenceStore } from '../reference-store';
 import { PasteDialog, type PasteDialogData } from './paste-dialog';
 import { PriceChart, formatPrice } from './price-chart';
 import { PriceDialog, type PriceDialogData } from './price-dialog';
 import { PRICE_FIELD_LABEL, priceEditProblems, withEdit, type PriceField } from './price-validation';
+import { savePriceEdit } from './price-save';
+import { parseNumber, type DecimalMark } from '../../../../shared/cell-parsers';
+
+/** A number formatted with a decimal point and comma groups (1,234.50), written in the co-op's convention. */
+function inMark(text: string, mark: DecimalMark): string {
+  return mark === 'comma' ? text.replace(/[.,]/g, (c) => (c === '.' ? ',' : '.')) : text;
+}
 
 /** Most items the chart draws at once (more lines than this cannot be told apart). */
 const MAX_CHART_ITEMS = 8;
@@ -82,6 +89,8 @@ export class PricesPage {
   protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
   protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
   protected readonly currency = computed(() => this.#settings.settings()?.currency ?? 'EUR');
+  /** How the co-op writes decimals: the price cells show and read numbers that way. */
+  protected readonly decimalMark = computed<DecimalMark>(() => this.#settings.settings()?.decimalMark ?? 'point');
 
   // --- the price rows ---
   protected readonly prices = httpResource<PriceRow[]>(() => '/api/prices');
@@ -159,6 +168,7 @@ export class PricesPage {
     const validate = (field: PriceField) => ({
       getValidationErrors: (p: IErrorValidationParams<PriceRow>) => this.#validate(p, field),
     });
+    const mark = this.decimalMark();
     return [
       {
         field: 'itemId',
@@ -202,9 +212,8 @@ export class PricesPage {
         type: 'numericColumn',
         width: 105,
         filter: 'agNumberColumnFilter',
-        valueFormatter: (p: ValueFormatterParams<PriceRow>) => (typeof p.value === 'number' ? formatPrice(p.value) : ''),
-        cellEditor: 'agNumberCellEditor',
-        cellEditorParams: { ...validate('price') },
+        valueFormatter: (p: ValueFormatterParams<PriceRow>) => (typeof p.value === 'number' ? inMark(formatPrice(p.value), mark) : ''),
+        ...numberEditing<PriceRow>(mark, validate('price').getValidationErrors),
       },
       {
         colId: 'per',
@@ -254,8 +263,13 @@ export class PricesPage {
   #validate(p: IErrorValidationParams<PriceRow>, field: PriceField): string[] | null {
     const row = p.cellEditorParams.data;
     let value: unknown = p.value;
-    if (field === 'price' && typeof value === 'string') value = value.trim() === '' ? null : Number(value);
-    const problems = priceEditProblems(row, field, value, this.rows());
+    let problems: string[] | null = null;
+    if (field === 'price' && typeof value === 'string') {
+      const parsed = value.trim() === '' ? null : parseNumber(value, this.decimalMark());
+      if (parsed && !parsed.ok) problems = [parsed.message];
+      value = parsed?.ok ? parsed.value : null;
+    }
+    problems ??= priceEditProblems(row, field, value, this.rows());
     if (problems) this.editStatus.set({ ok: false, text: `${describe(row)}, ${PRICE_FIELD_LABEL[field].toLowerCase()}: ${problems.join('; ')}` });
     else if (this.editStatus()?.ok === false) this.editStatus.set(null);
     return problems;
@@ -268,8 +282,16 @@ export class PricesPage {
     const original = { ...event.data, [field]: event.oldValue } as PriceRow;
     const body = withEdit(original, field, event.newValue);
     try {
-      const saved = await this.#api.updatePrice(original.id, body);
+      const outcome = await savePriceEdit(this.#api, this.#dialog, original, body);
+      if ('kept' in outcome) {
+        this.rows.update((rows) => rows.map((r) => (r.id === original.id ? outcome.kept : r)));
+        event.api.applyTransaction({ update: [outcome.kept] });
+        this.editStatus.set({ ok: false, text: `${describe(original)}, ${PRICE_FIELD_LABEL[field].toLowerCase()}: ${outcome.reason}.` });
+        return;
+      }
+      const saved = outcome.saved;
       this.rows.update((rows) => rows.map((r) => (r.id === saved.id ? saved : r)));
+      event.api.applyTransaction({ update: [saved] });
       this.series.reload();
       const was = field === 'price' ? ` (was ${formatPrice(original.price)})` : '';
       const shown = field === 'price' ? `${formatPrice(saved.price)} ${saved.currency}/${saved.unit}` : String(saved[field]);
@@ -290,7 +312,7 @@ export class PricesPage {
   }
 
   protected pasteRows(text = ''): void {
-    const data: PasteDialogData = { text, lookups: this.ref.lookups(), currency: this.currency(), existing: this.rows() };
+    const data: PasteDialogData = { text, lookups: this.ref.lookups(), currency: this.currency(), decimalMark: this.decimalMark(), existing: this.rows() };
     this.#dialog
       .open<PasteDialog, PasteDialogData, PriceRow[]>(PasteDialog, { data, autoFocus: 'first-tabbable', maxWidth: '96vw' })
       .afterClosed()

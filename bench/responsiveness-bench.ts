@@ -1,0 +1,183 @@
+/**
+ * Responsiveness benchmark (run on demand; not a test): `npm run bench:responsiveness`.
+ * Starts the real server (`tsx server/main.ts`) on a fresh temporary data folder holding the demo
+ * co-op and measures how long `/api/health` takes to answer, probed every 20 ms from this process,
+ *   A. while a 200,000-row price import commits (upload and check first, then POST …/commit until
+ *      the import is `committed`), and
+ *   B. while five clients read the largest table at once (GET /api/prices, the price table then
+ *      holding the import's rows too), three rounds.
+ * Target (issue 15 item 10): p99 under 200 ms in both. Writes bench/results/responsiveness.json and
+ * .md with the machine's load (os.loadavg) before and after.
+ */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { DateTime } from 'luxon';
+import { buildDemoCoop } from '../seed/demo-coop.js';
+import { HttpSession, startServerProcess } from '../tests/integration/server-process.js';
+
+const ROWS = Number(process.env.BENCH_ROWS ?? 200_000);
+const READERS = 5;
+const ROUNDS = 3;
+const PROBE_MS = 20;
+const root = path.join(path.dirname(fileURLToPath(import.meta.url)), '..');
+const load = () => os.loadavg().map((x) => Math.round(x * 100) / 100);
+
+/** Invented prices for the demo co-op's items at every delivery point, one a day, near each item's demo level. */
+function priceCsv(rows: number): Buffer {
+  const demo = buildDemoCoop();
+  const level = new Map<string, number>();
+  for (const p of demo.prices) level.set(p.item, p.price);
+  const lines = ['item,season,delivery_point,price,currency,source,observed_on'];
+  outer: for (let day = 0; day < 366; day++) {
+    for (const s of demo.seasons) {
+      const date = DateTime.utc(s.startYear, 7, 1).plus({ days: day }).toISODate();
+      for (const it of demo.items) {
+        for (const dp of demo.deliveryPoints) {
+          if (lines.length > rows) break outer;
+          const base = level.get(it.code) ?? 100;
+          lines.push(`${it.code},${s.label},${dp.name},${(base * (0.9 + ((day * 7 + lines.length) % 20) / 100)).toFixed(3)},EUR,Bench daily quote,${date}`);
+        }
+      }
+    }
+  }
+  return Buffer.from(`${lines.join('\n')}\n`);
+}
+
+interface Figures {
+  samples: number;
+  p50: number;
+  p95: number;
+  p99: number;
+  max: number;
+  failures: number;
+  durationMs: number;
+}
+
+function figures(ms: number[], failures: number, durationMs: number): Figures {
+  const s = [...ms].sort((a, b) => a - b);
+  const q = (p: number) => (s.length ? s[Math.min(s.length - 1, Math.ceil(p * s.length) - 1)] : NaN);
+  const r = (x: number) => Math.round(x * 10) / 10;
+  return { samples: s.length, p50: r(q(0.5)), p95: r(q(0.95)), p99: r(q(0.99)), max: r(s[s.length - 1] ?? NaN), failures, durationMs: Math.round(durationMs) };
+}
+
+/** Probes /api/health every PROBE_MS until `work` settles; one request at a time, timed from send to answer. */
+async function probeDuring(url: string, work: () => Promise<unknown>): Promise<Figures> {
+  const latencies: number[] = [];
+  let failures = 0;
+  let done = false;
+  const started = performance.now();
+  const probe = (async () => {
+    while (!done) {
+      const t0 = performance.now();
+      try {
+        const res = await fetch(`${url}/api/health`);
+        await res.arrayBuffer();
+        if (res.ok) latencies.push(performance.now() - t0);
+        else failures++;
+      } catch {
+        failures++;
+      }
+      const wait = PROBE_MS - (performance.now() - t0);
+      if (wait > 0) await new Promise((r) => setTimeout(r, wait));
+    }
+  })();
+  try {
+    await work();
+  } finally {
+    done = true;
+    await probe;
+  }
+  return figures(latencies, failures, performance.now() - started);
+}
+
+async function main() {
+  const loadBefore = load();
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'netput-responsiveness-'));
+  const server = await startServerProcess({ DATA_DIR: dataDir, LOG_LEVEL: 'error' }, 300_000);
+  try {
+    const planner = new HttpSession(server.url);
+    const login = await planner.request('POST', '/api/auth/login', { email: 'planner@example.org', password: 'netput-demo' });
+    if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`);
+    const file = priceCsv(ROWS);
+    const staged = await planner.upload('/api/imports', { kind: 'prices' }, { name: 'bench-prices.csv', bytes: file });
+    if (staged.status !== 201 || staged.body.errorCount) throw new Error(`upload failed: ${staged.status} ${JSON.stringify(staged.body).slice(0, 500)}`);
+    const id = staged.body.id as number;
+
+    let commitMs = 0;
+    const duringCommit = await probeDuring(server.url, async () => {
+      const t0 = performance.now();
+      const started = await planner.request('POST', `/api/imports/${id}/commit`, { onExisting: 'skip', acceptWarnings: true });
+      if (started.status !== 202) throw new Error(`commit refused: ${started.status} ${JSON.stringify(started.body)}`);
+      for (;;) {
+        const res = await planner.request('GET', `/api/imports/${id}`);
+        if (res.body.status === 'committed') break;
+        if (res.body.status !== 'committing') throw new Error(`commit ended ${res.body.status}: ${res.body.failure}`);
+        await new Promise((r) => setTimeout(r, 100));
+      }
+      commitMs = performance.now() - t0;
+    });
+
+    const readers = Array.from({ length: READERS }, () => planner.at(server.url));
+    let answerBytes = 0;
+    let tableRows = 0;
+    const duringReads = await probeDuring(server.url, async () => {
+      for (let round = 0; round < ROUNDS; round++) {
+        await Promise.all(
+          readers.map(async (r, k) => {
+            // Different query strings, so the in-memory read cache answers none of them.
+            const res = await fetch(`${server.url}/api/prices?bench=${round}-${k}`, { headers: { cookie: r.cookieHeader() } });
+            const body = await res.arrayBuffer();
+            if (!res.ok) throw new Error(`GET /api/prices answered ${res.status}`);
+            answerBytes = body.byteLength;
+            tableRows = Number(res.headers.get('x-total-count') ?? JSON.parse(Buffer.from(body).toString()).length);
+          }),
+        );
+      }
+    });
+
+    const result = {
+      date: new Date().toISOString(),
+      node: process.version,
+      cpus: os.cpus().length,
+      loadBefore,
+      loadAfter: load(),
+      target: 'GET /api/health p99 < 200 ms',
+      importRows: ROWS,
+      commitMs: Math.round(commitMs),
+      healthDuringCommit: duringCommit,
+      readers: READERS,
+      rounds: ROUNDS,
+      priceTableRows: tableRows,
+      bytesPerPriceAnswer: answerBytes,
+      healthDuringReads: duringReads,
+    };
+    fs.mkdirSync(path.join(root, 'bench/results'), { recursive: true });
+    fs.writeFileSync(path.join(root, 'bench/results/responsiveness.json'), `${JSON.stringify(result, null, 2)}\n`);
+    const row = (name: string, f: Figures) => `| ${name} | ${f.samples} | ${f.p50} | ${f.p95} | ${f.p99} | ${f.max} | ${f.failures} | ${f.p99 < 200 ? 'met' : 'NOT met'} |`;
+    const md = [
+      '# /api/health during big work',
+      '',
+      `${result.date}, Node ${result.node}, ${result.cpus} CPUs, load average ${loadBefore.join(' / ')} before and ${result.loadAfter.join(' / ')} after (1 / 5 / 15 min).`,
+      '',
+      `Import of ${ROWS.toLocaleString('en-GB')} price rows committed in ${(commitMs / 1000).toFixed(1)} s. Reads: ${READERS} clients × ${ROUNDS} rounds of GET /api/prices (${tableRows.toLocaleString('en-GB')} rows in the table, ${(answerBytes / 1e6).toFixed(1)} MB per answer).`,
+      '',
+      '| during | probes | p50 ms | p95 ms | p99 ms | max ms | failed | p99 < 200 ms |',
+      '|---|---|---|---|---|---|---|---|',
+      row('200,000-row import commit', duringCommit),
+      row(`${READERS} concurrent reads of the price table`, duringReads),
+      '',
+    ].join('\n');
+    fs.writeFileSync(path.join(root, 'bench/results/responsiveness.md'), md);
+    console.log(md);
+  } finally {
+    await server.stop();
+    fs.rmSync(dataDir, { recursive: true, force: true });
+  }
+}
+
+main().catch((err) => {
+  console.error(err);
+  process.exit(1);
+});
