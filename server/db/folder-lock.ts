@@ -1,4 +1,5 @@
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import { isGone, SELF, type ProcessIdentity } from '../core/process-identity.js';
 
@@ -109,10 +110,20 @@ export function lockDataFolder(folder: string, purpose: string): FolderLock {
       fs.rmSync(claimPath(dir, mine), { force: true });
       continue;
     }
-    for (const n of all) fs.rmSync(claimPath(dir, n), { force: true });
+    for (const n of all) {
+      // A dead server's backup socket folder (it could not remove it itself) goes with its claim.
+      const dead = readClaim(dir, n);
+      if (dead && dead !== 'vanished' && dead.backupSocket) removeSocketFolder(dead.backupSocket);
+      fs.rmSync(claimPath(dir, n), { force: true });
+    }
     return makeLock(abs, dir, mine, me);
   }
   throw new Error(`Could not take the lock of ${abs}: its lock folder ${dir} keeps changing`);
+}
+
+function removeSocketFolder(socket: string) {
+  const folder = path.dirname(socket);
+  if (path.dirname(folder) === path.resolve(os.tmpdir()) && path.basename(folder).startsWith('netput-backup-')) fs.rmSync(folder, { recursive: true, force: true });
 }
 
 function makeLock(folder: string, dir: string, n: number, holder: LockHolder): FolderLock {

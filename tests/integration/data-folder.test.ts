@@ -50,7 +50,7 @@ function command(script: string, ...args: string[]) {
 }
 
 /** The claim file of the folder's lock: the process that holds it. */
-function holder(): { pid: number; command: string } {
+function holder(): { pid: number; command: string; backupSocket?: string } {
   const dir = `${pgliteDir}.lock`;
   const top = fs.readdirSync(dir).filter((n) => /^\d+\.json$/.test(n)).sort().at(-1)!;
   return JSON.parse(fs.readFileSync(path.join(dir, top), 'utf8'));
@@ -127,12 +127,15 @@ describe.skipIf(process.env.NETPUT_TEST_DB === 'postgres')('one process per data
     const backup = command('server/db/backup-cli.ts', 'backup', file);
     expect(backup.stderr).toBe('');
     expect(backup.stdout).toBe(`Backup written to ${file} (through the running server)`);
+    const socketFolder = path.dirname(holder().backupSocket!);
+    expect(fs.existsSync(socketFolder)).toBe(true);
     await a.stop('SIGKILL');
 
     // The dead server's lock is taken over; the folder and the backup hold identical rows.
     const after = await openDatabase({ dataDir: pgliteDir, purpose: 'test' });
     const live = await exportDatabase(after.db);
     await after.close();
+    expect(fs.existsSync(socketFolder), 'the dead server’s backup socket folder is gone with its lock').toBe(false);
     const restoredDir = path.join(tmp, 'restored', 'pglite');
     expect(await restorePglite(file, restoredDir)).toBeNull();
     const restored = await openDatabase({ dataDir: restoredDir, purpose: 'test' });
