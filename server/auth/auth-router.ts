@@ -63,6 +63,9 @@ export function authRoutes(ctx: AppContext): RouteDef[] {
       },
     },
     { method: 'get', path: '/me', access: 'signed-in', cache: true, handler: async (req, res) => res.json(await meOf(ctx.db, req.user!.id)) },
+    // The app's start-up probe: being signed out is a normal state, so it answers 200 `{ user: null }`
+    // rather than the 401 of /me, which a browser would log on every signed-out page.
+    { method: 'get', path: '/session', access: 'public', cache: true, handler: async (req, res) => res.json({ user: req.user ? await meOf(ctx.db, req.user.id) : null }) },
     {
       method: 'post',
       path: '/password-reset',

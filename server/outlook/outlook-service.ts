@@ -433,6 +433,12 @@ export async function fullVersion(db: Db, versionId: number): Promise<FullVersio
  * farm comes from the session (never from the request), and the query itself is held to it.
  * Without an id: the newest version of the latest season that has one.
  */
+/** The newest published version for a member, or null while nothing is published (an empty state, not an error). */
+export async function latestMemberVersion(db: Db, farmId: number | null): Promise<MemberVersion | null> {
+  const [any] = await db.select({ id: outlookVersions.id }).from(outlookVersions).limit(1);
+  return any ? memberVersion(db, farmId) : null;
+}
+
 export async function memberVersion(db: Db, farmId: number | null, versionId?: number): Promise<MemberVersion> {
   let row: typeof outlookVersions.$inferSelect | undefined;
   if (versionId) row = await versionRow(db, versionId);

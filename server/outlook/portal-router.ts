@@ -1,7 +1,7 @@
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
-import { listVersions, memberVersion } from './outlook-service.js';
+import { latestMemberVersion, listVersions, memberVersion } from './outlook-service.js';
 import { versionParamSchema } from '../../shared/outlook-schemas.js';
 
 /**
@@ -10,7 +10,18 @@ import { versionParamSchema } from '../../shared/outlook-schemas.js';
  */
 export function portalRoutes(ctx: AppContext): RouteDef[] {
   return [
-    { method: 'get', path: '/outlook', access: ['member'], cache: true, handler: async (req, res) => res.json(await memberVersion(ctx.db, req.user!.farmId)) },
+    {
+      method: 'get',
+      path: '/outlook',
+      access: ['member'],
+      cache: true,
+      // Nothing published yet is a normal state: 204 No Content, not a 404 for the browser to log.
+      handler: async (req, res) => {
+        const latest = await latestMemberVersion(ctx.db, req.user!.farmId);
+        if (latest) res.json(latest);
+        else res.status(204).end();
+      },
+    },
     {
       method: 'get',
       path: '/outlook/versions',

@@ -150,3 +150,18 @@ describe('sign-in rate limit', () => {
     expect((rows as unknown as { rows: { hits: number }[] }).rows[0].hits).toBe(11);
   });
 });
+
+describe('GET /api/auth/session', () => {
+  it('answers 200 with { user: null } when signed out, and the account when signed in', async () => {
+    const a = await agent(t.app);
+    const out = await a.get('/api/auth/session');
+    expect(out.status).toBe(200);
+    expect(out.body).toEqual({ user: null });
+    await a.post('/api/auth/login').send({ email: 'planner@example.org', password: 'netput-demo' });
+    const signedIn = await a.get('/api/auth/session');
+    expect(signedIn.status).toBe(200);
+    expect(signedIn.body.user).toMatchObject({ email: 'planner@example.org', role: 'planner', farmId: null });
+    await a.post('/api/auth/logout').send({});
+    expect((await a.get('/api/auth/session')).body).toEqual({ user: null });
+  });
+});

@@ -5,7 +5,7 @@ import type { Me } from '../../../shared/api-types';
 import type { Role } from '../../../shared/roles';
 import { ApiRequestError, errorMessage } from './api-error';
 
-/** Who is signed in. Loaded once at start-up (`GET /api/auth/me`) and kept current by sign-in, sign-out and one-time links. */
+/** Who is signed in. Loaded once at start-up (`GET /api/auth/session`) and kept current by sign-in, sign-out and one-time links. */
 @Injectable({ providedIn: 'root' })
 export class AuthStore {
   // services
@@ -25,7 +25,9 @@ export class AuthStore {
   /** Start-up probe; never rejects, so a server that is down still leaves a usable sign-in page. */
   async load(): Promise<void> {
     try {
-      this.#user.set(await firstValueFrom(this.#http.get<Me>('/api/auth/me')));
+      // 200 `{ user: null }` when signed out: nothing for the browser to log as an error.
+      const { user } = await firstValueFrom(this.#http.get<{ user: Me | null }>('/api/auth/session'));
+      this.#user.set(user);
       this.#startupProblem.set(null);
     } catch (error) {
       this.#user.set(null);

@@ -37,12 +37,13 @@ export class PortalOutlook {
   readonly version = input<string | undefined>(undefined);
 
   protected readonly versions = httpResource<MemberVersionRow[]>(() => '/api/portal/outlook/versions');
-  protected readonly outlook = httpResource<MemberVersion>(() => {
+  /** null (a 204 from the server) while nothing is published. */
+  protected readonly outlook = httpResource<MemberVersion | null>(() => {
     const v = this.version();
     return v ? `/api/portal/outlook/versions/${encodeURIComponent(v)}` : '/api/portal/outlook';
   });
   protected readonly o = computed(() => (this.outlook.hasValue() ? this.outlook.value() : null));
-  protected readonly nothing = computed(() => errorStatus(this.outlook.error()) === 404);
+  protected readonly nothing = computed(() => (this.outlook.hasValue() && this.outlook.value() === null) || errorStatus(this.outlook.error()) === 404);
   protected readonly problem = computed(() => (this.outlook.error() && !this.nothing() ? errorMessage(this.outlook.error()) : null));
   protected readonly versionList = computed(() => (this.versions.hasValue() ? this.versions.value() : []));
 

@@ -10,44 +10,29 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import { errorMessage } from '../../core/api-error';
 
-/** One row of `GET /api/audit` (shape from the API contract; not yet in shared/api-types.ts). */
+/** One changed field of an audit entry, in words (the server's describer, server/audit/audit-describe.ts). */
+export interface AuditChange {
+  label: string;
+  before: string;
+  after: string;
+}
+
+/** One row of `GET /api/audit`: the stored entry plus its sentence and changed fields in words. */
 export interface AuditEntry {
   id: number;
   at: string;
   actorEmail: string | null;
+  actorName: string | null;
   action: string;
   entity: string;
   entityId: string | number | null;
-  before: unknown;
-  after: unknown;
+  sentence: string;
+  changes: AuditChange[];
 }
 
 export interface AuditPage {
   rows: AuditEntry[];
   total: number;
-}
-
-export interface FieldChange {
-  field: string;
-  before: string;
-  after: string;
-}
-
-function show(value: unknown): string {
-  if (value === undefined) return '(none)';
-  if (typeof value === 'string') return value;
-  return JSON.stringify(value);
-}
-
-/** The fields that differ between an entry's before and after states, in readable form. */
-export function changedFields(entry: Pick<AuditEntry, 'before' | 'after'>): FieldChange[] {
-  const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
-  const before = isObject(entry.before) ? entry.before : {};
-  const after = isObject(entry.after) ? entry.after : {};
-  const fields = [...new Set([...Object.keys(before), ...Object.keys(after)])];
-  return fields
-    .filter((field) => JSON.stringify(before[field]) !== JSON.stringify(after[field]))
-    .map((field) => ({ field, before: show(before[field]), after: show(after[field]) }));
 }
 
 /** The kinds of record the audit log names (`entity`), in words, for the filter. */
@@ -62,6 +47,10 @@ export const AUDIT_ENTITIES: { entity: string; label: string }[] = [
   { entity: 'delivery-point', label: 'Delivery points' },
   { entity: 'import', label: 'Imports' },
   { entity: 'user', label: 'Users' },
+  { entity: 'budget', label: 'Budgets' },
+  { entity: 'fertiliser-product', label: 'Fertiliser products' },
+  { entity: 'model', label: 'Models' },
+  { entity: 'outlook', label: 'Outlooks' },
   { entity: 'settings', label: 'Settings' },
 ];
 
@@ -103,9 +92,9 @@ export class AuditLog {
     },
   }));
   protected readonly page = computed<AuditPage>(() => (this.audit.hasValue() ? this.audit.value() : { rows: [], total: 0 }));
-  protected readonly rows = computed(() => this.page().rows.map((row) => ({ ...row, changes: changedFields(row) })));
+  protected readonly rows = computed(() => this.page().rows);
   protected readonly problem = computed(() => (this.audit.error() ? errorMessage(this.audit.error()) : null));
-  protected readonly columns = ['at', 'actor', 'action', 'entity', 'changes'];
+  protected readonly columns = ['at', 'what'];
 
   protected chooseEntity(entity: string): void {
     this.shownEntity.set(entity);
