@@ -6,7 +6,7 @@
  *
  * Co-op elasticities are those of the summed demand: e_ij = Σ_f ∂y_fi/∂p_j · p_j / Σ_f y_fi.
  */
-import { evaluateFit, priceHessianAt, type FitResult, type NetputDataset } from '../estimation/index.js';
+import { evaluateFit, priceHessianAt, projectForecast, type FitResult, type ForecastModel, type NetputDataset } from '../estimation/index.js';
 import { BudgetInputError, NUTRIENTS, zeroAmounts, type Nutrient, type NutrientAmounts } from './nutrients.js';
 import type { ElasticityMatrix } from './scenarios.js';
 
@@ -103,6 +103,32 @@ export function demandAt<P extends Pick<FarmPoint, 'fixed'>>(fit: FitResult, poi
     const demand = zeroAmounts();
     for (const n of NUTRIENTS) {
       demand[n] = -ev.netputs[idx[n]]! * items[n].kgPerUnit;
+      total[n] += demand[n];
+    }
+    return { ...pt, demand };
+  });
+  return { total, farms };
+}
+
+/**
+ * Co-op nutrient demand (kg) from a run's forecasting model (per hectare with each farm's own level,
+ * or pooled), at its point (θ̂, no shocks): the figures an outlook projected with that model publishes.
+ */
+export function forecastDemandAt<P extends Pick<FarmPoint, 'farm' | 'fixed'>>(
+  model: ForecastModel,
+  points: P[],
+  prices: Record<string, number>,
+  items: Record<Nutrient, NutrientItem>,
+  season: number,
+): { total: NutrientAmounts; farms: (P & { demand: NutrientAmounts })[] } {
+  const withoutTrend = (f: Record<string, number>) => Object.fromEntries(Object.entries(f).filter(([k]) => k !== 'trend'));
+  // The point needs no draws; the engine's smallest simulation keeps this cheap.
+  const proj = projectForecast(model, { farms: points.map((p) => ({ farm: p.farm, fixed: withoutTrend(p.fixed) })), prices, season, draws: 100, seed: 1 });
+  const total = zeroAmounts();
+  const farms = points.map((pt, k) => {
+    const demand = zeroAmounts();
+    for (const n of NUTRIENTS) {
+      demand[n] = (proj.farms[k]!.quantities[items[n].code]?.point ?? 0) * items[n].kgPerUnit;
       total[n] += demand[n];
     }
     return { ...pt, demand };

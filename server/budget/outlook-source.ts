@@ -13,10 +13,10 @@ import type { Db } from '../db/client.js';
 import { outlookVersionFarms, outlookVersions } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { getRun } from '../models/models-service.js';
-import type { FitResult } from '../estimation/index.js';
+import type { FitResult, ForecastModel } from '../estimation/index.js';
 import type { BudgetSource } from './budget-schemas.js';
 import type { ResolvedSource } from './budget-compute.js';
-import { coopElasticities, demandAt } from './model-demand.js';
+import { coopElasticities, demandAt, forecastDemandAt } from './model-demand.js';
 import { nutrientItemsOf, priceItemsOf } from './nutrient-items.js';
 import { BudgetInputError, NUTRIENTS, type Nutrient, type NutrientAmounts } from './nutrients.js';
 
@@ -31,6 +31,8 @@ const snapshotSchema = z.object({
   scenarios: z.array(z.object({ name: z.string(), prices: z.record(z.string(), z.number()) })).min(1),
   projection: z.object({
     trendSeason: z.number().nullable().optional(),
+    /** Present when the outlook projected with the run's forecasting model (spec) rather than its profit function alone (null). */
+    band: z.object({ spec: z.string().nullable() }).optional(),
     coop: z.object({ items: z.array(z.object({ item: z.string(), unit: z.string(), scenarios: z.record(z.string(), quantitySchema) })) }),
   }),
 });
@@ -76,12 +78,18 @@ export async function resolveOutlook(db: Db, source: Extract<BudgetSource, { kin
   let exactDemandAt: ResolvedSource['exactDemandAt'];
   if (points.length) {
     elasticities = coopElasticities(fit, points, prices, nutrientItems);
-    const check = demandAt(fit, points, prices, nutrientItems);
+    // The check re-evaluates the model the outlook projected with: the run's forecasting model when the
+    // version says so (its farm levels and per-hectare technology), else the profit function.
+    const forecast = (run.result as { forecast?: ForecastModel | null }).forecast ?? null;
+    const projectedWithForecast = !!forecast && !!snap.projection.band?.spec;
+    const check = projectedWithForecast ? forecastDemandAt(forecast!, points, prices, nutrientItems, snap.season.startYear) : demandAt(fit, points, prices, nutrientItems);
     farms = check.farms;
+    // Price scenarios move demand by the profit function's response, set on the published level below.
+    const base = projectedWithForecast ? demandAt(fit, points, prices, nutrientItems).total : check.total;
     for (const n of NUTRIENTS)
       if (Math.abs(check.total[n] / demand[n] - 1) > 1e-6)
         warnings.push(`The model re-evaluated at the outlook's farms gives ${Math.round(check.total[n])} kg ${n}, the published projection ${Math.round(demand[n])} kg; the budget uses the published figure`);
-    const scale = Object.fromEntries(NUTRIENTS.map((n) => [n, demand[n] / check.total[n]])) as NutrientAmounts;
+    const scale = Object.fromEntries(NUTRIENTS.map((n) => [n, demand[n] / base[n]])) as NutrientAmounts;
     exactDemandAt = (changes) => {
       const p = { ...prices };
       for (const n of NUTRIENTS) p[nutrientItems[n].code] = p[nutrientItems[n].code]! * (1 + (changes[n] ?? 0) / 100);
