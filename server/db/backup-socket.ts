@@ -5,8 +5,8 @@ import path from 'node:path';
 import type { FolderLock } from './folder-lock.js';
 
 /**
- * Live backups of the embedded database: the server listens on a Unix socket in a private folder of
- * its own (mode 0700, so only the server's own user can connect) and answers `POST /snapshot` with
+ * Live backups of the embedded database: the server listens on a Unix socket (mode 0600, so only
+ * the server's own user can connect) in the data folder's lock folder and answers `POST /snapshot` with
  * a consistent gzipped tarball of its data folder (Database.snapshot). The socket's path is written
  * into the data folder's lock, where `npm run backup` finds it while the server runs: the backup is
  * taken by the one process that has the folder open, instead of by a second process opening it.
@@ -17,8 +17,15 @@ export interface BackupSocket {
 }
 
 export async function startBackupSocket(lock: FolderLock, snapshot: () => Promise<Blob>, log: (msg: string) => void = () => {}): Promise<BackupSocket> {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'netput-backup-'));
-  const socketPath = path.join(dir, 'backup.sock');
+  // Beside the lock claims, so it goes when the data folder goes; in a private temporary folder when
+  // that path is too long for a Unix socket (about 107 bytes).
+  let dir: string | null = null;
+  let socketPath = path.join(lock.dir, `backup-${process.pid}.sock`);
+  if (Buffer.byteLength(socketPath) < 100) fs.rmSync(socketPath, { force: true });
+  else {
+    dir = fs.mkdtempSync(path.join(os.tmpdir(), 'netput-backup-'));
+    socketPath = path.join(dir, 'backup.sock');
+  }
   const server = http.createServer((req, res) => {
     if (req.method !== 'POST' || req.url !== '/snapshot') {
       res.writeHead(404).end();
@@ -48,7 +55,7 @@ export async function startBackupSocket(lock: FolderLock, snapshot: () => Promis
     close: () =>
       new Promise<void>((resolve) => {
         server.close(() => {
-          fs.rmSync(dir, { recursive: true, force: true });
+          fs.rmSync(dir ?? socketPath, { recursive: true, force: true });
           resolve();
         });
         server.closeAllConnections();

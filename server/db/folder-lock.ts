@@ -40,6 +40,8 @@ export class FolderInUseError extends Error {
 
 export interface FolderLock {
   readonly folder: string;
+  /** The lock folder (`<folder>.lock`). */
+  readonly dir: string;
   readonly holder: LockHolder;
   /** Adds facts to this process's claim (e.g. the backup socket once it listens). */
   update(extra: Partial<Pick<LockHolder, 'backupSocket'>>): void;
@@ -85,7 +87,7 @@ function defaultCommand(): string {
 export function lockDataFolder(folder: string, purpose: string): FolderLock {
   const abs = path.resolve(folder);
   const dir = `${abs}.lock`;
-  fs.mkdirSync(dir, { recursive: true });
+  fs.mkdirSync(dir, { recursive: true, mode: 0o700 });
   const me: LockHolder = { ...SELF, command: `${purpose}: ${defaultCommand()}`, since: new Date().toISOString() };
   for (let attempt = 0; attempt < 20; attempt++) {
     const all = claims(dir);
@@ -113,7 +115,7 @@ export function lockDataFolder(folder: string, purpose: string): FolderLock {
     for (const n of all) {
       // A dead server's backup socket folder (it could not remove it itself) goes with its claim.
       const dead = readClaim(dir, n);
-      if (dead && dead !== 'vanished' && dead.backupSocket) removeSocketFolder(dead.backupSocket);
+      if (dead && dead !== 'vanished' && dead.backupSocket) removeDeadSocket(dead.backupSocket, dir);
       fs.rmSync(claimPath(dir, n), { force: true });
     }
     return makeLock(abs, dir, mine, me);
@@ -121,9 +123,10 @@ export function lockDataFolder(folder: string, purpose: string): FolderLock {
   throw new Error(`Could not take the lock of ${abs}: its lock folder ${dir} keeps changing`);
 }
 
-function removeSocketFolder(socket: string) {
+function removeDeadSocket(socket: string, lockDir: string) {
   const folder = path.dirname(socket);
-  if (path.dirname(folder) === path.resolve(os.tmpdir()) && path.basename(folder).startsWith('netput-backup-')) fs.rmSync(folder, { recursive: true, force: true });
+  if (folder === lockDir) fs.rmSync(socket, { force: true });
+  else if (path.dirname(folder) === path.resolve(os.tmpdir()) && path.basename(folder).startsWith('netput-backup-')) fs.rmSync(folder, { recursive: true, force: true });
 }
 
 function makeLock(folder: string, dir: string, n: number, holder: LockHolder): FolderLock {
@@ -144,6 +147,7 @@ function makeLock(folder: string, dir: string, n: number, holder: LockHolder): F
   process.on('exit', onExit);
   return {
     folder,
+    dir,
     holder,
     update(extra) {
       Object.assign(holder, extra);

@@ -127,15 +127,16 @@ describe.skipIf(process.env.NETPUT_TEST_DB === 'postgres')('one process per data
     const backup = command('server/db/backup-cli.ts', 'backup', file);
     expect(backup.stderr).toBe('');
     expect(backup.stdout).toBe(`Backup written to ${file} (through the running server)`);
-    const socketFolder = path.dirname(holder().backupSocket!);
-    expect(fs.existsSync(socketFolder)).toBe(true);
+    const socket = holder().backupSocket!;
+    expect(path.dirname(socket)).toBe(`${pgliteDir}.lock`);
+    expect(fs.statSync(socket).isSocket()).toBe(true);
     await a.stop('SIGKILL');
 
     // The dead server's lock is taken over; the folder and the backup hold identical rows.
     const after = await openDatabase({ dataDir: pgliteDir, purpose: 'test' });
     const live = await exportDatabase(after.db);
     await after.close();
-    expect(fs.existsSync(socketFolder), 'the dead server’s backup socket folder is gone with its lock').toBe(false);
+    expect(fs.existsSync(socket), 'the dead server’s backup socket is gone with its lock').toBe(false);
     const restoredDir = path.join(tmp, 'restored', 'pglite');
     expect(await restorePglite(file, restoredDir)).toBeNull();
     const restored = await openDatabase({ dataDir: restoredDir, purpose: 'test' });
