@@ -5,7 +5,7 @@
  *   A. while a 200,000-row price import commits (upload and check first, then POST …/commit until
  *      the import is `committed`), and
  *   B. while five clients read the largest table at once (GET /api/prices, the price table then
- *      holding the import's rows too), three rounds.
+ *      holding the import's rows too), one round.
  * Target (issue 15 item 10): p99 under 200 ms in both. Writes bench/results/responsiveness.json and
  * .md with the machine's load (os.loadavg) before and after.
  */
@@ -19,7 +19,7 @@ import { HttpSession, startServerProcess } from '../tests/integration/server-pro
 
 const ROWS = Number(process.env.BENCH_ROWS ?? 200_000);
 const READERS = 5;
-const ROUNDS = 3;
+const ROUNDS = 1;
 const PROBE_MS = 20;
 const root = path.join(path.dirname(fileURLToPath(import.meta.url)), '..');
 const load = () => os.loadavg().map((x) => Math.round(x * 100) / 100);

@@ -4,7 +4,7 @@ import { headerParts, normalUnit, sameUnit } from './unit-names.js';
 
 describe('parseNumber', () => {
   const otherMark = (s: string, other: string, mine: string) =>
-    `"${s}" is written with ${other}, but this co-op writes numbers with ${mine}; it was not read (change the number format if the source uses the other one)`;
+    `"${s}" is written with ${other}, but this co-op writes numbers with ${mine}; it was not read (the decimal mark is a co-op setting, and an import can choose its own)`;
   const POINT = 'a decimal point (1234.5)';
   const COMMA = 'a decimal comma (1234,5)';
 

@@ -84,7 +84,7 @@ export function parseNumber(raw: string, mark: DecimalMark): Parsed<number> {
     return fail(`${quote(s)} is ambiguous: with ${markName(mark)} write thousands without ${sep} (${s.split(group).join('')}), so they cannot be misread as decimals`);
   }
   if (PATTERNS[other].plain.test(s) || PATTERNS[other].grouped.test(s) || PATTERNS[other].spaced.test(s)) {
-    return fail(`${quote(s)} is written with ${markName(other)}, but this co-op writes numbers with ${markName(mark)}; it was not read (change the number format if the source uses the other one)`);
+    return fail(`${quote(s)} is written with ${markName(other)}, but this co-op writes numbers with ${markName(mark)}; it was not read (the decimal mark is a co-op setting, and an import can choose its own)`);
   }
   return fail(`${quote(s)} is not a clean number: write it with ${markName(mark)} and no thousands separators`);
 }

@@ -62,7 +62,7 @@ describe('prices', () => {
       {
         row: 9,
         column: 'Price',
-        message: '"1 234,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (change the number format if the source uses the other one)',
+        message: '"1 234,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (the decimal mark is a co-op setting, and an import can choose its own)',
       },
       { row: 10, column: 'Delivery point', message: 'unknown delivery point "Dover quay" (delivery points: Larkfield terminal, Ashby elevator, Millbrook store, Co-op input depot)' },
       { row: 11, column: 'Observed date', message: '"01/10/2024" is ambiguous (day/month or month/day?): write dates as YYYY-MM-DD' },
@@ -211,7 +211,7 @@ describe('records', () => {
       {
         row: 2,
         column: 'quantity (t)',
-        message: '"1520,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (change the number format if the source uses the other one)',
+        message: '"1520,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (the decimal mark is a co-op setting, and an import can choose its own)',
       },
       { row: 4, column: 'quantity (t)', message: 'empty cell: quantity is required' },
       { row: 5, column: 'farm', message: 'unknown farm "F99": no farm has this code' },

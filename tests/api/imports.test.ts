@@ -87,7 +87,7 @@ describe('POST /api/imports (upload and preview)', () => {
       { row: 5, column: 'Item', message: 'unknown item "barley" (items: wheat, canola, nitrogen, phosphate, potash, diesel, labour)' },
       { row: 6, column: 'Unit', message: 'unit "kg" is not nitrogen\'s unit "kg N"; nitrogen prices are per kg N' },
       { row: 8, column: 'Season', message: 'unknown season "2031/32" (seasons run from 2006/07 to 2025/26)' },
-      { row: 9, column: 'Price', message: '"1 234,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (change the number format if the source uses the other one)' },
+      { row: 9, column: 'Price', message: '"1 234,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (the decimal mark is a co-op setting, and an import can choose its own)' },
       { row: 10, column: 'Delivery point', message: 'unknown delivery point "Dover quay" (delivery points: Ashby elevator, Co-op input depot, Larkfield terminal, Millbrook store)' },
       { row: 11, column: 'Observed date', message: '"01/10/2024" is ambiguous (day/month or month/day?): write dates as YYYY-MM-DD' },
       { row: 12, column: null, message: 'the row repeats row 2 (same item, season, delivery point and observed date)' },

@@ -66,7 +66,7 @@ describe('readPastedPrices', () => {
       {
         row: 2,
         column: 'Price',
-        message: '"12,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (change the number format if the source uses the other one)',
+        message: '"12,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (the decimal mark is a co-op setting, and an import can choose its own)',
       },
       { row: 3, column: 'Item', message: 'unknown item "barley" (items: wheat, nitrogen, diesel)' },
       { row: 3, column: 'Season', message: 'unknown season "2031/32"' },
