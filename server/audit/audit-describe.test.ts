@@ -66,3 +66,19 @@ describe('describeAudit', () => {
     expect(describeAudit({ actorName: null, action: 'job.sweep', entity: 'job', entityId: null, before: null, after: null }, names).sentence).toBe('The system did “sweep” to a job.');
   });
 });
+
+describe('describeAudit, new records', () => {
+  it('an invitation names the person and lists the new values without a before column', () => {
+    const d = describeAudit(
+      { actorName: 'Ada Admin', action: 'user.invite', entity: 'user', entityId: '24', before: null, after: { email: 'sam.second@example.org', name: 'Sam Second', role: 'member', farmId: 3 } },
+      names,
+    );
+    expect(d.sentence).toBe('Ada Admin invited Sam Second.');
+    expect(d.changes).toEqual([
+      { label: 'email', before: '', after: 'sam.second@example.org' },
+      { label: 'name', before: '', after: 'Sam Second' },
+      { label: 'role', before: '', after: 'Member' },
+      { label: 'farm', before: '', after: 'Hollybrook Farm' },
+    ]);
+  });
+});

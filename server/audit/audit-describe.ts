@@ -247,7 +247,10 @@ function recordWords(row: AuditRowInput, names: AuditNames): string {
     : row.entity === 'outlook' ? byId(names.outlooks)
     : undefined;
   const name = own ?? (['name', 'title', 'label', 'code'].map((k) => snapshot[k]).find((v) => typeof v === 'string') as string | undefined);
-  if (row.entity === 'user') return `the account of ${name ?? `a removed account (#${id})`}`;
+  if (row.entity === 'user') {
+    const person = name ?? `a removed account (#${id})`;
+    return /\.(update|accept-invitation|reset-password)$/.test(row.action) ? `the account of ${person}` : person;
+  }
   if (row.entity === 'settings') return 'the co-op settings';
   if (row.entity === 'mail') return name ? `${name}'s outlook e-mails` : 'outlook e-mails';
   if (row.entity === 'price' || row.entity === 'farm-record' || row.entity === 'farm-land' || row.entity === 'farm-factor') {
@@ -263,6 +266,8 @@ export function describeAudit(row: AuditRowInput, names: AuditNames): DescribedA
   const verb = VERBS[verbKey] ?? `did “${verbKey.replace(/-/g, ' ')}” to`;
   const subject = recordWords(row, names);
   const sentence = `${who} ${verb} ${subject}.`;
-  const changes = row.action.endsWith('.delete') ? [] : describeChanges(row.before, row.after, names);
+  const created = row.before === null || row.before === undefined;
+  // A new record lists its values, with no "before" column of dashes.
+  const changes = row.action.endsWith('.delete') ? [] : describeChanges(row.before, row.after, names).map((c) => (created ? { ...c, before: '' } : c));
   return { sentence: sentence.charAt(0).toUpperCase() + sentence.slice(1), changes };
 }
