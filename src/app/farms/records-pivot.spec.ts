@@ -4,6 +4,7 @@ import { pivotRecords, recordCellProblem } from './records-pivot';
 
 const record = (seasonId: number, itemId: number, quantity: number): FarmRecordRow => ({
   farmId: 1,
+  version: 1,
   farmCode: 'F01',
   seasonId,
   season: TEST_SEASONS.find((s) => s.id === seasonId)!.label,

@@ -182,7 +182,7 @@ describe('ImportsPage', () => {
     [...root.querySelectorAll('button')].find((b) => b.textContent!.includes('Commit 3 rows'))!.click();
 
     const commit = http.expectOne({ method: 'POST', url: '/api/imports/41/commit' });
-    expect(commit.request.body).toEqual({ onExisting: 'skip' });
+    expect(commit.request.body).toEqual({ onExisting: 'skip', acceptWarnings: false });
     commit.flush({ id: 41, status: 'committing', progress: { done: 0, total: 3 } });
     await new Promise((r) => setTimeout(r, 300));
     http.expectOne('/api/imports/41').flush(view({ errorCount: 0, errors: [], status: 'committing', progress: { done: 2, total: 3 } }));

@@ -3,6 +3,7 @@ import { priceEditProblems, withEdit } from './price-validation';
 
 const row: PriceRow = {
   id: 7,
+  version: 1,
   itemId: 1,
   itemCode: 'wheat',
   itemName: 'Wheat',
