@@ -282,7 +282,7 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
   await check('the audit log shows the edit as old value → new value, filtered to prices', async () => {
     await page.getByRole('link', { name: 'Change history' }).click();
     await page.waitForURL(/\/admin\/audit\?entity=price$/);
-    const first = page.getByRole('table', { name: 'Audit log' }).locator('tr.mat-mdc-row').filter({ hasText: 'price.update' }).first();
+    const first = page.getByRole('table', { name: 'Audit log' }).locator('tr.mat-mdc-row').filter({ hasText: /changed/ }).filter({ hasText: '228.4' }).first();
     await first.waitFor();
     assert((await first.innerText()).includes('228.4') && (await first.innerText()).includes('320'), `audit row: ${await first.innerText()}`);
   });
