@@ -3,14 +3,14 @@
  * so a downloaded file can be edited and uploaded again. Mounted by the prices and records routers:
  *
  *   GET /api/prices/export?format=csv|xlsx   → sendSpreadsheet(res, format, await priceExportRows(db), PRICE_COLUMNS, 'prices')
- *   GET /api/records/export?format=csv|xlsx  → ... recordExportRows(db, farmIds) ..., RECORD_COLUMNS, 'farm-records'
+ *   GET /api/records/export?format=csv|xlsx  → ... recordExportRows(db, reader, farmIds) (records-repository.ts) ..., RECORD_COLUMNS, 'farm-records'
  */
 import type { Response } from 'express';
-import { and, asc, eq, inArray } from 'drizzle-orm';
+import { asc, eq } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { z } from 'zod';
 import type { Db } from '../db/client.js';
-import { deliveryPoints, farmRecords, farms, farmSeasonFactors, items, priceObservations, seasons } from '../db/schema/index.js';
+import { deliveryPoints, items, priceObservations, seasons } from '../db/schema/index.js';
 import { PRICE_COLUMNS as SHARED_PRICE_COLUMNS } from '../../shared/price-columns.js';
 import { toCsv, toXlsx, type SheetColumn, type SheetRow } from './spreadsheet-writers.js';
 
@@ -52,36 +52,6 @@ export async function priceExportRows(db: Db): Promise<SheetRow[]> {
     .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
     .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
     .orderBy(asc(seasons.startYear), asc(items.id), asc(deliveryPoints.name), asc(priceObservations.observedOn));
-}
-
-/**
- * Farm records with each farm's land of the season; a farm and season with land but no records gets
- * a row of its own (item and quantity empty). `farmIds` limits the rows (a member's own farm).
- */
-export async function recordExportRows(db: Db, farmIds?: number[]): Promise<SheetRow[]> {
-  if (farmIds && farmIds.length === 0) return [];
-  const records = await db
-    .select({ farmId: farmRecords.farmId, farm: farms.code, seasonId: farmRecords.seasonId, season: seasons.label, year: seasons.startYear, itemId: items.id, item: items.code, quantity: farmRecords.quantity, unit: items.unit })
-    .from(farmRecords)
-    .innerJoin(farms, eq(farms.id, farmRecords.farmId))
-    .innerJoin(seasons, eq(seasons.id, farmRecords.seasonId))
-    .innerJoin(items, eq(items.id, farmRecords.itemId))
-    .where(farmIds ? inArray(farmRecords.farmId, farmIds) : undefined);
-  const land = await db
-    .select({ farmId: farmSeasonFactors.farmId, farm: farms.code, seasonId: farmSeasonFactors.seasonId, season: seasons.label, year: seasons.startYear, value: farmSeasonFactors.value })
-    .from(farmSeasonFactors)
-    .innerJoin(farms, eq(farms.id, farmSeasonFactors.farmId))
-    .innerJoin(seasons, eq(seasons.id, farmSeasonFactors.seasonId))
-    .where(and(eq(farmSeasonFactors.factor, 'land_ha'), farmIds ? inArray(farmSeasonFactors.farmId, farmIds) : undefined));
-  const landOf = new Map(land.map((l) => [`${l.farmId}|${l.seasonId}`, l]));
-  type Out = SheetRow & { farm: string; year: number; itemId: number };
-  const out: Out[] = records.map((r) => ({ farm: r.farm, season: r.season, year: r.year, itemId: r.itemId, item: r.item, quantity: r.quantity, unit: r.unit, landHa: landOf.get(`${r.farmId}|${r.seasonId}`)?.value ?? null }));
-  const withRecords = new Set(records.map((r) => `${r.farmId}|${r.seasonId}`));
-  for (const l of land) {
-    if (!withRecords.has(`${l.farmId}|${l.seasonId}`)) out.push({ farm: l.farm, season: l.season, year: l.year, itemId: 0, item: null, quantity: null, unit: null, landHa: l.value });
-  }
-  out.sort((a, b) => a.farm.localeCompare(b.farm) || a.year - b.year || a.itemId - b.itemId);
-  return out.map(({ year: _y, itemId: _i, ...r }) => r);
 }
 
 const MEDIA_TYPE: Record<ExportFormat, string> = {

@@ -3,6 +3,7 @@ import type { FarmMember, FarmSummary, MyFarm } from '../../shared/api-types.js'
 import type { Db } from '../db/client.js';
 import { farmRecords, farms, items, seasons, users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
+import { readableFarmIds, type Reader } from '../core/farm-scope.js';
 
 const columns = {
   id: farms.id,
@@ -12,9 +13,11 @@ const columns = {
   landHa: farms.landHa,
 };
 
-/** Every farm, or only `onlyFarmId` (a member sees their own farm and nothing else). */
-export async function listFarms(db: Db, onlyFarmId?: number | null): Promise<FarmSummary[]> {
-  if (onlyFarmId === null) return [];
+/** Every farm `reader` may see: all of them, or a member's own farm and nothing else. */
+export async function listFarms(db: Db, reader: Reader): Promise<FarmSummary[]> {
+  const scope = readableFarmIds(reader);
+  if (scope && scope.length === 0) return [];
+  const onlyFarmId = scope?.[0];
   const q = db.select(columns).from(farms);
   const rows = onlyFarmId === undefined ? await q.orderBy(asc(farms.code)) : await q.where(eq(farms.id, onlyFarmId));
   const memberRows = await db
@@ -29,7 +32,7 @@ export async function listFarms(db: Db, onlyFarmId?: number | null): Promise<Far
 
 export async function myFarm(db: Db, farmId: number | null): Promise<MyFarm> {
   if (farmId === null) throw AppError.notFound('A farm linked to your account');
-  const [farm] = await listFarms(db, farmId);
+  const [farm] = await listFarms(db, { role: 'member', farmId });
   if (!farm) throw AppError.notFound('Your farm');
   const records = await db
     .select({ season: seasons.label, item: items.name, role: items.role, unit: items.unit, quantity: farmRecords.quantity })

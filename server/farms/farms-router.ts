@@ -9,10 +9,7 @@ export function farmsRoutes(ctx: AppContext): RouteDef[] {
       path: '/farms',
       access: 'signed-in',
       cache: true,
-      handler: async (req, res) => {
-        const user = req.user!;
-        res.json(await listFarms(ctx.db, user.role === 'member' ? user.farmId : undefined));
-      },
+      handler: async (req, res) => res.json(await listFarms(ctx.db, req.user!)),
     },
     { method: 'get', path: '/my-farm', access: ['member'], cache: true, handler: async (req, res) => res.json(await myFarm(ctx.db, req.user!.farmId)) },
   ];

@@ -7,7 +7,8 @@ import fc from 'fast-check';
 import { DateTime } from 'luxon';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { buildDemoCoop } from '../../seed/demo-coop.js';
-import { PRICE_COLUMNS, priceExportRows, RECORD_COLUMNS, recordExportRows } from '../../server/exports/data-exports.js';
+import { PRICE_COLUMNS, priceExportRows, RECORD_COLUMNS } from '../../server/exports/data-exports.js';
+import { recordExportRows } from '../../server/records/records-repository.js';
 import { toCsv, toXlsx } from '../../server/exports/spreadsheet-writers.js';
 import { closeValidationPool } from '../../server/imports/validation-pool.js';
 import { inflatingSheet, replaceParts } from '../fixtures/imports/zip-tools.js';
@@ -339,12 +340,12 @@ describe('exports re-import cleanly', () => {
       expect(done.body.counts).toEqual({ inserted: 0, updated: prices.length, skipped: 0 });
       expect(await priceExportRows(t.database.db)).toEqual(prices);
     }
-    const records = await recordExportRows(t.database.db);
+    const records = await recordExportRows(t.database.db, { role: 'planner', farmId: null });
     const res = await upload(planner, 'records', toCsv(records, RECORD_COLUMNS), 'records.csv');
     expect(res.body).toMatchObject({ errorCount: 0, toWrite: { records: 2800, factors: 400 }, existingRows: 3200 });
     const done = await commit(res.body.id, 'update');
     expect(done.body.counts).toEqual({ inserted: 0, updated: 3200, skipped: 0 });
-    expect(await recordExportRows(t.database.db)).toEqual(records);
+    expect(await recordExportRows(t.database.db, { role: 'planner', farmId: null })).toEqual(records);
   });
 });
 
