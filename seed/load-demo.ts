@@ -18,6 +18,7 @@ import { newToken } from '../server/core/ids.js';
 import { buildDemoCoop, DEMO_ACCOUNTS, DEMO_PASSWORD } from './demo-coop.js';
 import { seedFertiliserProducts } from '../server/budget/fertiliser-products.js';
 import { tablesInDependencyOrder } from '../server/db/portable.js';
+import { seedDemoContracts } from './demo-contracts.js';
 import { purgeOutlookData } from '../server/outlook/outlook-service.js';
 
 export async function isDatabaseEmpty(db: Db): Promise<boolean> {
@@ -108,6 +109,7 @@ export async function loadDemoCoop(db: Db) {
         .insert(farmSeasonFactors)
         .values(part.map((l) => ({ farmId: farmId.get(l.farm)!, seasonId: seasonId.get(l.season)!, factor: 'land_ha', value: l.landHa })));
     }
+    await seedDemoContracts(tx);
   });
 }
 

@@ -21,6 +21,7 @@ import { importsRoutes } from './imports/imports-router.js';
 import { deliveryPointsRoutes, farmWriteRoutes, itemsRoutes, seasonsRoutes } from './reference/reference-router.js';
 import { priceIndexRoutes, pricesRoutes } from './prices/prices-router.js';
 import { recordsRoutes } from './records/records-router.js';
+import { contractsRoutes } from './contracts/contracts-router.js';
 import { modelRunsRoutes, modelsRoutes } from './models/models-router.js';
 import { budgetsRoutes, fertiliserProductsRoutes } from './budget/budgets-router.js';
 import { outlookRoutes, futuresRoutes } from './outlook/outlook-router.js';
@@ -103,6 +104,7 @@ export function createApp(ctx: AppContext): NetputApp {
   mount('/prices', pricesRoutes(ctx));
   mount('/price-indexes', priceIndexRoutes(ctx));
   mount('/records', recordsRoutes(ctx));
+  mount('/contracts', contractsRoutes(ctx));
   mount('/imports', importsRoutes(ctx));
   mount('/models', modelsRoutes(ctx));
   mount('/model-runs', modelRunsRoutes(ctx));

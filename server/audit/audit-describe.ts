@@ -63,6 +63,7 @@ const ENTITY_WORDS: Record<string, [string, string]> = {
   'futures-quote': ['futures quote', 'futures quotes'],
   outlook: ['outlook', 'outlooks'],
   mail: ['mail preference', 'mail preferences'],
+  contract: ['delivery contract', 'delivery contracts'],
 };
 
 /** What the action's last word does, as a past-tense verb. */
@@ -110,6 +111,9 @@ const FIELD_WORDS: Record<string, string> = {
   storageCapacityT: 'storage capacity (t)',
   handlingCapacityTPerDay: 'handling capacity (t/day)',
   bookingPlan: 'booking plan',
+  reference: 'contract number',
+  deliveryFrom: 'first delivery month',
+  deliveryTo: 'last delivery month',
 };
 const HIDDEN = new Set(['id', 'createdAt', 'updatedAt', 'passwordHash', 'version', 'inputsHash', 'lastSignInAt']);
 
@@ -253,6 +257,11 @@ function recordWords(row: AuditRowInput, names: AuditNames): string {
   }
   if (row.entity === 'settings') return 'the co-op settings';
   if (row.entity === 'mail') return name ? `${name}'s outlook e-mails` : 'outlook e-mails';
+  if (row.entity === 'contract') {
+    const parts = ['farmId', 'itemId', 'seasonId'].map((f) => idName(f, snapshot[f], names)).filter(Boolean);
+    const ref = typeof snapshot['reference'] === 'string' ? ` ${clip(snapshot['reference'] as string)}` : id !== undefined ? ` #${id}` : '';
+    return `${one}${ref}${parts.length ? ` (${parts.join(', ')})` : ''}`;
+  }
   if (row.entity === 'price' || row.entity === 'farm-record' || row.entity === 'farm-land' || row.entity === 'farm-factor') {
     const parts = ['farmId', 'itemId', 'seasonId', 'deliveryPointId'].map((f) => idName(f, snapshot[f], names)).filter(Boolean);
     return parts.length ? `a ${one} (${parts.join(', ')})` : `a ${one}`;

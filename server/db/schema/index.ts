@@ -11,3 +11,4 @@ export * from './jobs.js';
 export * from './imports.js';
 export * from './budgets.js';
 export * from './outlook.js';
+export * from './contracts.js';

@@ -78,6 +78,16 @@ export function nextSeasonLabel(latestStartYear: number | null, now = new Date()
   return `${y}/${String((y + 1) % 100).padStart(2, '0')}`;
 }
 
+/**
+ * The season a new outlook is suggested for: a season already opened ahead (it starts this calendar
+ * year or later, e.g. set up for forward contracts) that has no outlook yet, else the next after the latest.
+ */
+export function suggestedOutlookSeason(seasons: readonly { label: string; startYear: number }[], taken: readonly string[], now = new Date()): string {
+  const latest = seasons.length ? seasons.reduce((a, b) => (b.startYear > a.startYear ? b : a)) : null;
+  if (latest && latest.startYear >= now.getFullYear() && !taken.includes(latest.label)) return latest.label;
+  return nextSeasonLabel(latest?.startYear ?? null, now);
+}
+
 /** A fixed factor's stored name in plain words ("stock_lu" → "stock lu"); land has its own words. */
 const factorWords = (k: string) => (k === 'land_ha' ? 'land' : k.replace(/_/g, ' '));
 

@@ -1,6 +1,6 @@
 import { ApiRequestError } from '../core/api-error';
 import { detailsForItem } from './expectation-dialog';
-import { describeFixed, describeFixedSource, formatPrice, formatPriceIn, formatQuantity, landSentence, nextSeasonLabel } from './outlook-format';
+import { describeFixed, describeFixedSource, formatPrice, formatPriceIn, formatQuantity, landSentence, nextSeasonLabel, suggestedOutlookSeason } from './outlook-format';
 import { finishedRuns, type ItemProjection } from './outlook-types';
 import { numberWidth, projectionRows } from './projection-grid';
 
@@ -91,6 +91,14 @@ describe('outlook formats', () => {
     // 1.3215 and 0.6685 lie just below in binary; server/outlook/expectations.test.ts checks the server's text of the same cases.
     expect([formatPrice(1.3215), formatPrice(0.6685)]).toEqual(['1.322', '0.669']);
     expect([formatPriceIn(178.92, 'EUR/t'), formatPriceIn(1.74, 'EUR/kg N'), formatPriceIn(null, 'EUR/t')]).toEqual(['178.92 EUR/t', '1.740 EUR/kg N', '—']);
+  });
+
+  it('should suggest a season opened ahead without an outlook, else the one after the latest', () => {
+    const now = new Date('2026-12-03T12:00:00Z');
+    const seasons = [{ label: '2025/26', startYear: 2025 }, { label: '2026/27', startYear: 2026 }];
+    expect(suggestedOutlookSeason(seasons, [], now)).toBe('2026/27');
+    expect(suggestedOutlookSeason(seasons, ['2026/27'], now)).toBe('2027/28');
+    expect(suggestedOutlookSeason(seasons.slice(0, 1), [], now)).toBe('2026/27');
   });
 
   it('should suggest the season after the latest one', () => {

@@ -11,7 +11,7 @@ import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { NewOutlookDialog, type NewOutlookDialogData } from './new-outlook-dialog';
 import { OutlookCautions } from './outlook-cautions';
-import { formatDateTime, nextSeasonLabel } from './outlook-format';
+import { formatDateTime, suggestedOutlookSeason } from './outlook-format';
 import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookListRow, type ProjectionStatus, type RunChoiceAnswer } from './outlook-types';
 
 export const PROJECTION_WORDS: Record<ProjectionStatus, string> = {
@@ -49,9 +49,8 @@ export class OutlookList {
 
   protected openNew(): void {
     const seasons = this.#seasons.hasValue() ? this.#seasons.value() : [];
-    const latest = seasons.length ? Math.max(...seasons.map((s) => s.startYear)) : null;
     const data: NewOutlookDialogData = {
-      season: nextSeasonLabel(latest),
+      season: suggestedOutlookSeason(seasons, this.rows().map((r) => r.season)),
       runs: finishedRuns(this.#models.hasValue() ? this.#models.value() : []),
       taken: this.rows().map((r) => r.season),
       favoured: this.#choice.hasValue() ? this.#choice.value().favoured : null,

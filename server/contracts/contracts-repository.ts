@@ -1,0 +1,79 @@
+/**
+ * Contract reads. A member's queries are held to their own farm here, whatever filter they send:
+ * `farmIds` is the list the caller may see (undefined: every farm; empty: none).
+ */
+import { and, asc, eq, inArray, sql, type SQL } from 'drizzle-orm';
+import type { ContractRow, ContractStatus } from '../../shared/contract-schemas.js';
+import { priceFromCents } from '../../shared/contract-schemas.js';
+import { AppError } from '../core/app-error.js';
+import type { Db } from '../db/client.js';
+import { contracts, farms, items, seasons } from '../db/schema/index.js';
+import type { SessionUser } from '../auth/session.js';
+
+export interface ContractFilter {
+  ids?: number[];
+  farmIds?: number[];
+  seasonIds?: number[];
+  itemIds?: number[];
+  statuses?: readonly ContractStatus[];
+}
+
+/** The farms a caller may see contracts of: a member only their own (none without a farm). */
+export function contractFarmScope(user: Pick<SessionUser, 'role' | 'farmId'>, requested?: number[]): number[] | undefined {
+  if (user.role !== 'member') return requested;
+  return user.farmId === null ? [] : [user.farmId];
+}
+
+const columns = {
+  id: contracts.id,
+  reference: contracts.reference,
+  farmId: contracts.farmId,
+  farmCode: farms.code,
+  farmName: farms.name,
+  seasonId: contracts.seasonId,
+  season: seasons.label,
+  itemId: contracts.itemId,
+  itemCode: items.code,
+  itemName: items.name,
+  unit: items.unit,
+  quantity: contracts.quantity,
+  priceCents: contracts.priceCents,
+  currency: contracts.currency,
+  deliveryFrom: contracts.deliveryFrom,
+  deliveryTo: contracts.deliveryTo,
+  status: contracts.status,
+  version: contracts.version,
+};
+
+function where(f: ContractFilter): SQL | undefined {
+  const parts: SQL[] = [];
+  if (f.ids) parts.push(f.ids.length ? inArray(contracts.id, f.ids) : sql`false`);
+  if (f.farmIds) parts.push(f.farmIds.length ? inArray(contracts.farmId, f.farmIds) : sql`false`);
+  if (f.seasonIds?.length) parts.push(inArray(contracts.seasonId, f.seasonIds));
+  if (f.itemIds?.length) parts.push(inArray(contracts.itemId, f.itemIds));
+  if (f.statuses) parts.push(f.statuses.length ? inArray(contracts.status, [...f.statuses]) : sql`false`);
+  return parts.length ? and(...parts) : undefined;
+}
+
+function toRow({ priceCents, ...r }: { priceCents: number } & Omit<ContractRow, 'price'>): ContractRow {
+  return { ...r, price: priceFromCents(priceCents) };
+}
+
+export async function listContracts(db: Db, f: ContractFilter = {}): Promise<ContractRow[]> {
+  const rows = await db
+    .select(columns)
+    .from(contracts)
+    .innerJoin(farms, eq(farms.id, contracts.farmId))
+    .innerJoin(seasons, eq(seasons.id, contracts.seasonId))
+    .innerJoin(items, eq(items.id, contracts.itemId))
+    .where(where(f))
+    .orderBy(asc(seasons.startYear), asc(farms.code), asc(items.id), asc(contracts.reference));
+  return rows.map(toRow);
+}
+
+/** One contract the caller may see (a member asking for another farm's gets 404, as for a missing one). */
+export async function getContract(db: Db, id: number, farmIds?: number[]): Promise<ContractRow> {
+  const [row] = await listContracts(db, { ids: [id], farmIds });
+  if (!row) throw AppError.notFound('The contract');
+  return row;
+}

@@ -1,0 +1,81 @@
+import { z } from 'zod';
+import { idListSchema } from '../../shared/ids.js';
+import { CONTRACT_STATUSES, contractSchema } from '../../shared/contract-schemas.js';
+import { idParamSchema } from '../../shared/schemas.js';
+import type { RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
+import type { AppContext } from '../context.js';
+import { contractFarmScope, getContract, listContracts } from './contracts-repository.js';
+import { createContract, deleteContract, updateContract } from './contracts-service.js';
+
+/** Planners and administrators keep contracts; the treasurer reads them; a member reads their own farm's. */
+const READ = ['admin', 'planner', 'treasurer', 'member'] as const;
+const WRITE = ['admin', 'planner'] as const;
+
+const listQuery = z.object({
+  farms: idListSchema,
+  seasons: idListSchema,
+  items: idListSchema,
+  status: z
+    .string()
+    .regex(new RegExp(`^(${CONTRACT_STATUSES.join('|')})(,(${CONTRACT_STATUSES.join('|')}))*$`), `Use statuses from: ${CONTRACT_STATUSES.join(', ')}`)
+    .transform((s) => s.split(',') as (typeof CONTRACT_STATUSES)[number][])
+    .optional(),
+});
+const updateSchema = contractSchema.and(
+  z.object({ version: z.number({ error: 'Send the version of the contract you edited (from GET /api/contracts)' }).int().positive() }),
+);
+
+export function contractsRoutes(ctx: AppContext): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/',
+      access: READ,
+      cache: true,
+      handler: async (req, res) => {
+        const q = parse(listQuery, req.query, 'query');
+        res.json(await listContracts(ctx.db, { farmIds: contractFarmScope(req.user!, q.farms), seasonIds: q.seasons, itemIds: q.items, statuses: q.status }));
+      },
+    },
+    {
+      method: 'get',
+      path: '/:id',
+      access: READ,
+      cache: true,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        res.json(await getContract(ctx.db, id, contractFarmScope(req.user!)));
+      },
+    },
+    {
+      method: 'post',
+      path: '/',
+      access: WRITE,
+      handler: async (req, res) => {
+        const body = parse(contractSchema, req.body, 'body');
+        res.status(201).json(await createContract(ctx.db, body, req.user!.id));
+      },
+    },
+    {
+      method: 'put',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        const { version, ...body } = parse(updateSchema, req.body, 'body');
+        res.json(await updateContract(ctx.db, id, body, version, req.user!.id));
+      },
+    },
+    {
+      method: 'delete',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        await deleteContract(ctx.db, id, req.user!.id);
+        res.status(204).end();
+      },
+    },
+  ];
+}
