@@ -21,14 +21,12 @@
  * Projections are estimates, not advice.
  */
 import type { ForecastProjection, ForecastQuantity } from '../../shared/forecast-types.js';
-import { checkConvexity } from './curvature.js';
 import { EstimationInputError } from './errors.js';
+import { drawSharedParts } from './forecast-draws.js';
 import { formOf } from './forms.js';
-import { psdFactor } from './linalg.js';
 import type { ModelData } from './model.js';
 import type { ForecastModel } from './panel.js';
 import { PROJECTION_CAUTION } from './projection.js';
-import { SeededRandom } from './random.js';
 
 export type { FarmForecast, ForecastProjection, ForecastQuantity } from '../../shared/forecast-types.js';
 
@@ -172,54 +170,12 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
   /** A regressor is common when it takes one value across farms in every scenario. */
   const isCommon = slots.map((sl, i) => sl.map((_, r) => sets.every((set) => set.values[i]![r]!.every((v) => v === set.values[i]![r]![0]))));
 
-  // Shared draws.
-  const rng = new SeededRandom(seed);
-  const withParams = options.parameterUncertainty ?? true;
-  const Cf = withParams ? psdFactor(model.parameterCovariance.idiosyncratic) : null;
-  const Cs = withParams && model.seasonEffects ? psdFactor(model.parameterCovariance.season) : null;
+  // Shared draws (parameters, season shock, price-error scenario): forecast-draws.ts.
+  const shared = drawSharedParts(model, { draws: S, seed, parameterUncertainty: options.parameterUncertainty ?? true, ...(priceRisk ? { scenarios: K } : {}) });
+  const { rng, theta: thetaDraws, lambda: lambdaDraws, scenario: scenarioOf } = shared;
+  const violations = shared.curvatureViolations;
   const seasonFx = model.seasonEffects;
-  const Cl = seasonFx ? psdFactor(seasonFx.covariance) : null;
   const nu = seasonFx ? seasonFx.df : Infinity;
-  const thetaDraws = new Float64Array(S * k);
-  const lambdaDraws = new Float64Array(S * n);
-  const scenarioOf = new Int32Array(S);
-  const e1 = new Float64Array(k);
-  const e2 = new Float64Array(k);
-  const zl = new Float64Array(n);
-  let violations = 0;
-  const block = form.curvatureBlock(layout, fit.referencePrices);
-  const thetaView = new Array<number>(k);
-  for (let s = 0; s < S; s++) {
-    const v = Number.isFinite(nu) ? nu / chiSquare(rng, nu) : 1;
-    const sv = Math.sqrt(v);
-    if (Cf) rng.fillNormals(e1);
-    if (Cs) rng.fillNormals(e2);
-    if (Cl) rng.fillNormals(zl);
-    const o = s * k;
-    for (let a = 0; a < k; a++) {
-      let acc = fit.theta[a]!;
-      if (Cf) {
-        const row = Cf[a]!;
-        for (let b = 0; b < k; b++) acc += row[b]! * e1[b]!;
-      }
-      if (Cs) {
-        const row = Cs[a]!;
-        let t = 0;
-        for (let b = 0; b < k; b++) t += row[b]! * e2[b]!;
-        acc += sv * t;
-      }
-      thetaDraws[o + a] = acc;
-      thetaView[a] = acc;
-    }
-    if (Cl)
-      for (let i = 0; i < n; i++) {
-        let acc = 0;
-        for (let j = 0; j < n; j++) acc += Cl[i]![j]! * zl[j]!;
-        lambdaDraws[s * n + i] = sv * acc;
-      }
-    scenarioOf[s] = priceRisk ? Math.min(K - 1, Math.floor(rng.uniform() * K)) : 0;
-    if (withParams && !checkConvexity(block.toMatrix(thetaView)).convex) violations++;
-  }
 
   // The farms' own normals: one pool, distinct cyclic offsets per farm.
   const P = Math.max(S, F);
@@ -613,27 +569,3 @@ function shape(point: number, mean: number, sd: number, q: Map<number, number>, 
     upper,
   };
 }
-
-/** χ²_ν = 2·Gamma(ν/2) by Marsaglia & Tsang (2000), with the boost for shape < 1. */
-function chiSquare(rng: SeededRandom, nu: number): number {
-  return 2 * gammaDraw(rng, nu / 2);
-}
-
-function gammaDraw(rng: SeededRandom, shape: number): number {
-  if (shape < 1) return gammaDraw(rng, shape + 1) * Math.pow(rng.uniform() || 1e-300, 1 / shape);
-  const d = shape - 1 / 3;
-  const c = 1 / Math.sqrt(9 * d);
-  for (;;) {
-    let x: number;
-    let v: number;
-    do {
-      x = rng.normal();
-      v = 1 + c * x;
-    } while (v <= 0);
-    v = v * v * v;
-    const u = rng.uniform();
-    if (u < 1 - 0.0331 * x * x * x * x) return d * v;
-    if (Math.log(u || 1e-300) < 0.5 * x * x + d * (1 - v + Math.log(v))) return d * v;
-  }
-}
-

@@ -72,3 +72,17 @@ export {
 export { projectForecast, type FarmForecast, type ForecastFarm, type ForecastOptions, type ForecastProjection, type ForecastQuantity } from './forecast.js';
 export { generateForecastPanel, PER_HECTARE_ITEMS, type ForecastPanel, type ForecastPanelSpec } from './synthetic-panel.js';
 export { backTestForecast, describeBackTest, subset, type BackTestItem, type BackTestOptions, type BackTestOrigin, type BackTestResult, type CoverageCount, type ErrorSummary } from './backtest.js';
+export { CONTRACTED_CAUTION, evaluateContracted, type ContractedOptions } from './contracted.js';
+export type {
+  ContractedBand,
+  ContractedCoopResult,
+  ContractedElasticities,
+  ContractedEvaluation,
+  ContractedFarmResult,
+  ContractedFarmSpec,
+  ContractedIssue,
+  ContractedIssueKind,
+  ContractedOutputResult,
+  ElasticityTable,
+} from '../../shared/contracted-types.js';
+export { dualAt, solveCommitted, type DualPoint, type SolveResult, type Technology } from './contracted-core.js';

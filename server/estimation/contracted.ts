@@ -1,0 +1,650 @@
+/**
+ * Contracted deliveries (docs/cost-duality.md): when a farm has committed some of its output, what
+ * it buys is its cost-minimising input use for that output, not its profit-maximising one. From the
+ * forecasting model's profit function (per hectare with the farm's own level, or pooled in levels):
+ *   solve y_c(p*, w, z) + μ_f = y*_c / L for the committed outputs' prices p*_c (other prices held),
+ * then p*_c is the marginal cost of each committed output, the inputs demanded at (p*, w) are the
+ * conditional demands (Shephard's lemma), C = p*_c·y*_c − π(p*, w) the cost, and the Schur
+ * complement of the price Hessian gives the conditional price elasticities (Le Chatelier).
+ * For the normalized quadratic with the numeraire not committed the solve is one linear system;
+ * otherwise (generalized Leontief, or a committed numeraire) Newton's method (contracted-core.ts).
+ *
+ * Bands: every draw of the projection's uncertainty (forecast-draws.ts: parameters, the season shock
+ * shared by all farms) plus the farm's own level and residual uncertainty shifts the technology; the
+ * committed quantities stay fixed, so the marginal cost, conditional demands and cost move instead.
+ * Co-op figures are sums over farms within each draw (the marginal cost and margin: tonnage-weighted
+ * means). Estimates, not advice.
+ */
+import type {
+  ContractedBand,
+  ContractedCoopResult,
+  ContractedElasticities,
+  ContractedEvaluation,
+  ContractedFarmResult,
+  ContractedFarmSpec,
+  ContractedIssue,
+  ContractedOutputResult,
+  ElasticityTable,
+} from '../../shared/contracted-types.js';
+import { dualAt, solveCommitted, type DualPoint, type SolveFailure, type Technology } from './contracted-core.js';
+import { EstimationInputError } from './errors.js';
+import { drawSharedParts, type SharedDraws } from './forecast-draws.js';
+import { formOf } from './forms.js';
+import { netputsFromDecomposition } from './model.js';
+import type { ForecastModel } from './panel.js';
+import { PROJECTION_CAUTION } from './projection.js';
+import { SeededRandom } from './random.js';
+
+export type * from '../../shared/contracted-types.js';
+
+export interface ContractedOptions {
+  farms: ContractedFarmSpec[];
+  /** Prices every farm faces unless its own say otherwise (inputs, free outputs; a committed output's price is only the solve's start). Items named nowhere: sample means. */
+  prices?: Record<string, number>;
+  /** Season year evaluated (trend); default the season after the history's last. */
+  season?: number;
+  /** Central probability of the bands (default 0.9). */
+  level?: number;
+  /** Simulation draws (default 2000; 0 for the point only; otherwise at least 100). */
+  draws?: number;
+  seed?: number;
+  /** Include parameter uncertainty (default true). */
+  parameterUncertainty?: boolean;
+  /** Unit of each item for the words (e.g. { wheat: 't' }); optional. */
+  units?: Record<string, string>;
+}
+
+export const CONTRACTED_CAUTION =
+  'Marginal costs and conditional input needs are estimates from the fitted profit function, conditional on the stated input prices and on past relationships; they are not financial advice or a recommendation to sign, price or hedge a contract. Fertiliser rates follow soil tests, local guidance and nutrient-management rules; a certified adviser has the last word.';
+
+interface FarmSetup {
+  spec: ContractedFarmSpec;
+  prices: number[];
+  /** Fixed factors as the profit function takes them (per hectare for the per-hectare model, trend included). */
+  z: number[];
+  land: number;
+  known: boolean;
+  /** Own level μ_f per item (0 for the pooled model or a new farm). */
+  mu: number[];
+  /** Standard deviation of the farm-level shift per item (own-level uncertainty + residual). */
+  noiseSd: number[];
+  committed: number[];
+  /** Committed quantities in levels and per hectare (per farm for the pooled model). */
+  quantity: number[];
+  target: number[];
+}
+
+/**
+ * Evaluate committed outputs against the forecasting model: marginal costs, conditional input
+ * demands, cost and conditional elasticities per farm and for the co-op, with bands.
+ * @throws EstimationInputError for unusable options (unknown items, committed inputs, bad numbers);
+ *   a commitment the technology cannot reach is reported in words per farm, not thrown.
+ */
+export function evaluateContracted(model: ForecastModel, options: ContractedOptions): ContractedEvaluation {
+  const { fit } = model;
+  const { layout } = fit;
+  const form = formOf(layout.form);
+  const n = layout.items.length;
+  const k = fit.theta.length;
+  const S = options.draws ?? 2000;
+  const seed = options.seed ?? 1;
+  const level = options.level ?? 0.9;
+  if (!(Number.isInteger(S) && (S === 0 || S >= 100))) throw new EstimationInputError(`draws must be 0 (the point only) or a whole number of at least 100, got ${S}`);
+  if (!(level > 0 && level < 1)) throw new EstimationInputError(`level must lie between 0 and 1, got ${level}`);
+  if (!options.farms.length) throw new EstimationInputError('the contracted evaluation needs at least one farm');
+  const perHa = model.spec === 'per-hectare';
+  const season = options.season ?? fit.seasonYears.last + 1;
+  const itemIndex = new Map(layout.items.map((it, i) => [it.name, i]));
+  const roles = layout.items.map((it) => it.role);
+  const names = layout.items.map((it) => it.name);
+  const units = options.units ?? {};
+  const setups = setUp(model, options, season);
+
+  // Which outputs are committed anywhere (item order).
+  const anyCommitted = new Array<boolean>(n).fill(false);
+  for (const f of setups) for (const c of f.committed) anyCommitted[c] = true;
+  const committedOutputs = names.filter((_, i) => anyCommitted[i]);
+  if (!committedOutputs.length) throw new EstimationInputError('no farm commits any output: give at least one committed quantity');
+
+  const technology = (theta: ArrayLike<number>, z: number[], shift: ArrayLike<number>): Technology => ({
+    roles,
+    netputs: (p) => {
+      const y = netputsFromDecomposition(form.decompose(layout, theta, p), z);
+      for (let i = 0; i < n; i++) y[i]! += shift[i]!;
+      return y;
+    },
+    hessian: (p) => form.priceHessian(layout, theta, p),
+    // NQ: non-numeraire netputs are linear in the prices; the numeraire (last) is not.
+    linearIn: (c) => layout.form === 'normalized-quadratic' && !c.includes(n - 1),
+  });
+
+  const shared: SharedDraws | null = S > 0 ? drawSharedParts(model, { draws: S, seed, parameterUncertainty: options.parameterUncertainty ?? true }) : null;
+  const rng = shared ? shared.rng : new SeededRandom(seed);
+  const probs = [(1 - level) / 2, 0.05, 0.5, 0.95, (1 + level) / 2];
+
+  // Co-op accumulators per draw (NaN once any evaluated farm fails in that draw).
+  const coopInputs = names.map(() => new Float64Array(S));
+  const coopFree = names.map(() => new Float64Array(S));
+  const coopCost = new Float64Array(S);
+  const coopSpend = new Float64Array(S);
+  const coopMcNum = names.map(() => new Float64Array(S));
+  const coopMarginNum = names.map(() => new Float64Array(S));
+  const coopOk = new Uint8Array(S).fill(1);
+  const coopPoint = {
+    inputs: new Array<number>(n).fill(0),
+    free: new Array<number>(n).fill(0),
+    freeAny: new Array<boolean>(n).fill(false),
+    cost: 0,
+    spend: 0,
+    qty: new Array<number>(n).fill(0),
+    mcNum: new Array<number>(n).fill(0),
+    marginQty: new Array<number>(n).fill(0),
+    marginNum: new Array<number>(n).fill(0),
+    unconditional: new Array<number>(n).fill(0),
+  };
+  const coopElast: { farmX: number[]; farm: FarmElasticityParts }[] = [];
+  const leftOut: string[] = [];
+
+  const farms: ContractedFarmResult[] = setups.map((f) => {
+    const issues: ContractedIssue[] = [];
+    const shiftPoint = f.mu;
+    const pointTech = technology(fit.theta, f.z, shiftPoint);
+    // The outlook's unconditional point at the stated prices.
+    const yUncond = pointTech.netputs(f.prices);
+    const unconditionalInputs: Record<string, number> = {};
+    names.forEach((nm, i) => {
+      if (roles[i] === 'input') unconditionalInputs[nm] = Math.max(0, -f.land * yUncond[i]!);
+    });
+    const history = f.committed.map((c) => historyOf(f.spec, names[c]!));
+    // Words on commitments beyond the farm's own record.
+    f.committed.forEach((c, j) => {
+      const h = history[j];
+      if (!h) return;
+      const t = f.target[j]!;
+      const what = unitPer(units[names[c]!], perHa);
+      if (t > h.max * (1 + 1e-9))
+        issues.push({
+          item: names[c]!,
+          kind: 'beyond-history',
+          blocking: false,
+          text: `${fmtQty(f.quantity[j]!, units[names[c]!])} of ${names[c]} is ${fmt(t)} ${what}: more ${names[c]} ${perHa ? 'per hectare ' : ''}than farm ${f.spec.farm} has grown in any of its ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'} (at most ${fmt(h.max)}), so the figures extrapolate the fitted technology.`,
+        });
+      else if (t < h.min * (1 - 1e-9))
+        issues.push({
+          item: names[c]!,
+          kind: 'beyond-history',
+          blocking: false,
+          text: `${fmtQty(f.quantity[j]!, units[names[c]!])} of ${names[c]} is ${fmt(t)} ${what}: less ${names[c]} ${perHa ? 'per hectare ' : ''}than farm ${f.spec.farm} has grown in any of its ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'} (at least ${fmt(h.min)}), so the figures extrapolate the fitted technology.`,
+        });
+    });
+
+    const sol = solveCommitted(pointTech, f.prices, f.committed, f.target);
+    const dual = sol.ok ? dualAt(pointTech, sol, f.committed) : null;
+    const emptyOutputs = (): Record<string, ContractedOutputResult> =>
+      Object.fromEntries(
+        f.committed.map((c, j) => [
+          names[c]!,
+          {
+            quantity: f.quantity[j]!,
+            perHectare: perHa ? f.target[j]! : null,
+            marginalCost: null,
+            marginalCostSlope: null,
+            contractPrice: f.spec.contractPrices?.[names[c]!] ?? null,
+            margin: null,
+            history: history[j] ?? null,
+          },
+        ]),
+      );
+    if (!sol.ok || !dual) {
+      const failure: SolveFailure = sol.ok ? { ok: false, reason: 'singular', items: f.committed.slice(), prices: sol.prices } : sol;
+      issues.push(...failureIssues(failure, f, names, units, perHa, history));
+      leftOut.push(f.spec.farm);
+      return {
+        farm: f.spec.farm,
+        known: f.known,
+        land: perHa ? f.land : null,
+        evaluated: false,
+        issues,
+        outputs: emptyOutputs(),
+        freeOutputs: {},
+        inputs: {},
+        unconditionalInputs,
+        cost: null,
+        inputSpending: null,
+        elasticities: null,
+        failedDrawShare: 1,
+      };
+    }
+    // Point values (levels).
+    const pStar = sol.prices;
+    const yStar = sol.netputs;
+    names.forEach((nm, i) => {
+      if (roles[i] === 'input' && yStar[i]! > 0)
+        issues.push({
+          item: nm,
+          kind: 'wrong-sign',
+          blocking: false,
+          text: `At the committed tonnage the fitted technology gives farm ${f.spec.farm} a negative use of ${nm} (${fmt(-f.land * yStar[i]!)}); it is shown as zero, and the other figures should be read with care.`,
+        });
+    });
+    const isCommitted = new Array<boolean>(n).fill(false);
+    for (const c of f.committed) isCommitted[c] = true;
+    const freeIdx = names.map((_, i) => i).filter((i) => roles[i] === 'output' && !isCommitted[i]);
+    const inputIdx = names.map((_, i) => i).filter((i) => roles[i] === 'input');
+
+    // Draws.
+    const mc = f.committed.map(() => new Float64Array(S));
+    const inputsD = inputIdx.map(() => new Float64Array(S));
+    const freeD = freeIdx.map(() => new Float64Array(S));
+    const costD = new Float64Array(S);
+    const spendD = new Float64Array(S);
+    const ok = new Uint8Array(S);
+    let failed = 0;
+    if (shared) {
+      const shift = new Float64Array(n);
+      const eta = new Float64Array(n);
+      for (let s = 0; s < S; s++) {
+        rng.fillNormals(eta);
+        for (let i = 0; i < n; i++) shift[i] = f.mu[i]! + shared.lambda[s * n + i]! + f.noiseSd[i]! * eta[i]!;
+        const theta = shared.theta.subarray(s * k, (s + 1) * k);
+        const tech = technology(theta, f.z, shift);
+        const start = f.prices.slice();
+        f.committed.forEach((c) => (start[c] = pStar[c]!));
+        const r = solveCommitted(tech, start, f.committed, f.target);
+        if (!r.ok) {
+          failed++;
+          coopOk[s] = 0;
+          continue;
+        }
+        ok[s] = 1;
+        f.committed.forEach((c, j) => (mc[j]![s] = r.prices[c]!));
+        inputIdx.forEach((i, j) => (inputsD[j]![s] = Math.max(0, -f.land * r.netputs[i]!)));
+        freeIdx.forEach((i, j) => (freeD[j]![s] = Math.max(0, f.land * r.netputs[i]!)));
+        let cost = 0;
+        let spend = 0;
+        for (let i = 0; i < n; i++) {
+          if (!isCommitted[i]) cost -= r.prices[i]! * r.netputs[i]!;
+          if (roles[i] === 'input') spend -= r.prices[i]! * r.netputs[i]!;
+        }
+        costD[s] = f.land * cost;
+        spendD[s] = f.land * spend;
+        // co-op sums within the draw
+        inputIdx.forEach((i, j) => (coopInputs[i]![s]! += inputsD[j]![s]!));
+        freeIdx.forEach((i, j) => (coopFree[i]![s]! += freeD[j]![s]!));
+        coopCost[s]! += costD[s]!;
+        coopSpend[s]! += spendD[s]!;
+        f.committed.forEach((c, j) => {
+          coopMcNum[c]![s]! += f.quantity[j]! * r.prices[c]!;
+          const cp = f.spec.contractPrices?.[names[c]!];
+          if (cp !== undefined) coopMarginNum[c]![s]! += f.quantity[j]! * (cp - r.prices[c]!);
+        });
+      }
+    }
+    const band = (values: Float64Array, point: number, clip: boolean): ContractedBand => summarise(values, ok, point, probs, level, clip);
+
+    const outputs: Record<string, ContractedOutputResult> = {};
+    f.committed.forEach((c, j) => {
+      const cp = f.spec.contractPrices?.[names[c]!];
+      const marginValues = cp === undefined ? null : Float64Array.from(mc[j]!, (v) => cp - v);
+      outputs[names[c]!] = {
+        quantity: f.quantity[j]!,
+        perHectare: perHa ? f.target[j]! : null,
+        marginalCost: band(mc[j]!, pStar[c]!, false),
+        marginalCostSlope: dual.marginalCostSlope[j]![j]! / f.land,
+        contractPrice: cp ?? null,
+        margin: marginValues ? band(marginValues, cp! - pStar[c]!, false) : null,
+        history: history[j] ?? null,
+      };
+      coopPoint.qty[c]! += f.quantity[j]!;
+      coopPoint.mcNum[c]! += f.quantity[j]! * pStar[c]!;
+      if (cp !== undefined) {
+        coopPoint.marginQty[c]! += f.quantity[j]!;
+        coopPoint.marginNum[c]! += f.quantity[j]! * (cp - pStar[c]!);
+      }
+    });
+    const inputs: Record<string, ContractedBand> = {};
+    inputIdx.forEach((i, j) => {
+      const x = Math.max(0, -f.land * yStar[i]!);
+      inputs[names[i]!] = band(inputsD[j]!, x, true);
+      coopPoint.inputs[i]! += x;
+    });
+    const freeOutputs: Record<string, ContractedBand> = {};
+    freeIdx.forEach((i, j) => {
+      const q = Math.max(0, f.land * yStar[i]!);
+      freeOutputs[names[i]!] = band(freeD[j]!, q, true);
+      coopPoint.free[i]! += q;
+      coopPoint.freeAny[i] = true;
+    });
+    for (const i of inputIdx) coopPoint.unconditional[i]! += unconditionalInputs[names[i]!]!;
+    coopPoint.cost += f.land * dual.cost;
+    coopPoint.spend += f.land * dual.inputSpending;
+    const parts = elasticityParts(dual, pStar, yStar, f.committed, f.target, roles);
+    coopElast.push({ farmX: inputIdx.map((i) => Math.max(0, -f.land * yStar[i]!)), farm: parts });
+    return {
+      farm: f.spec.farm,
+      known: f.known,
+      land: perHa ? f.land : null,
+      evaluated: true,
+      issues,
+      outputs,
+      freeOutputs,
+      inputs,
+      unconditionalInputs,
+      cost: band(costD, f.land * dual.cost, false),
+      inputSpending: band(spendD, f.land * dual.inputSpending, false),
+      elasticities: farmTables(parts, names),
+      failedDrawShare: S > 0 ? failed / S : 0,
+    };
+  });
+
+  // Co-op.
+  const evaluatedCount = farms.filter((f) => f.evaluated).length;
+  const coopBand = (values: Float64Array, point: number, clip: boolean): ContractedBand => summarise(values, coopOk, point, probs, level, clip);
+  const coop: ContractedCoopResult = {
+    quantities: {},
+    marginalCost: {},
+    margin: {},
+    freeOutputs: {},
+    inputs: {},
+    unconditionalInputs: {},
+    cost: coopBand(coopCost, coopPoint.cost, false),
+    inputSpending: coopBand(coopSpend, coopPoint.spend, false),
+    elasticities: null,
+    farmsEvaluated: evaluatedCount,
+    farmsLeftOut: leftOut,
+  };
+  names.forEach((nm, i) => {
+    if (roles[i] === 'input') {
+      coop.inputs[nm] = coopBand(coopInputs[i]!, coopPoint.inputs[i]!, true);
+      coop.unconditionalInputs[nm] = coopPoint.unconditional[i]!;
+    }
+    if (anyCommitted[i] && coopPoint.qty[i]! > 0) {
+      const Q = coopPoint.qty[i]!;
+      coop.quantities[nm] = Q;
+      coop.marginalCost[nm] = coopBand(Float64Array.from(coopMcNum[i]!, (v) => v / Q), coopPoint.mcNum[i]! / Q, false);
+      const MQ = coopPoint.marginQty[i]!;
+      // the margin is weighted over the farms that gave a contract price; it needs all of them to
+      // have one for the draws (which sum over every farm), so it is reported only then
+      if (MQ > 0 && Math.abs(MQ - Q) <= 1e-12 * Q) coop.margin[nm] = coopBand(Float64Array.from(coopMarginNum[i]!, (v) => v / Q), coopPoint.marginNum[i]! / Q, false);
+    }
+    if (roles[i] === 'output' && coopPoint.freeAny[i]) coop.freeOutputs[nm] = coopBand(coopFree[i]!, coopPoint.free[i]!, true);
+  });
+  coop.elasticities = coopTables(coopElast, names, roles, anyCommitted);
+
+  const allSame = setups.every((f) => f.prices.every((v, i) => v === setups[0]!.prices[i] || anyCommitted[i]));
+  return {
+    spec: model.spec,
+    season,
+    level,
+    draws: S,
+    seed,
+    items: layout.items.map((it) => ({ name: it.name, role: it.role })),
+    committedOutputs,
+    prices: allSame ? Object.fromEntries(names.map((nm, i) => [nm, setups[0]!.prices[i]!]).filter(([nm]) => !committedOutputs.includes(nm as string))) : null,
+    farms,
+    coop,
+    curvatureViolationShare: shared ? shared.curvatureViolations / S : 0,
+    notes: [
+      'Marginal cost: the price of a committed output at which the fitted technology would supply exactly the committed quantity (the envelope theorem: the extra cost of one more unit).',
+      'Conditional input demand: the input use that produces the committed quantities at least cost at the stated input prices (Shephard’s lemma); outputs not committed respond to their own prices as in the outlook.',
+      'Cost: spending on the modelled variable inputs less the revenue of outputs not committed; fixed costs (land, machinery) are not in it.',
+      `Bands: the central ${Math.round(level * 100)} % of ${S} draws of the model’s uncertainty (parameters, the season shock shared by all farms, each farm’s own level and residual); co-op marginal costs and margins are tonnage-weighted means over farms.`,
+    ],
+    caution: CONTRACTED_CAUTION,
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Set-up and validation
+
+function setUp(model: ForecastModel, options: ContractedOptions, season: number): FarmSetup[] {
+  const { fit } = model;
+  const { layout } = fit;
+  const n = layout.items.length;
+  const perHa = model.spec === 'per-hectare';
+  const itemIndex = new Map(layout.items.map((it, i) => [it.name, i]));
+  const trendIdx = layout.trendOrigin !== null ? layout.factors.indexOf('trend') : -1;
+  const common = fit.means.prices.slice();
+  for (const [name, v] of Object.entries(options.prices ?? {})) {
+    const i = itemIndex.get(name);
+    if (i === undefined) throw new EstimationInputError(`prices: "${name}" is not an item of the model (items: ${[...itemIndex.keys()].join(', ')})`);
+    if (!(Number.isFinite(v) && v > 0)) throw new EstimationInputError(`prices: the price of ${name} must be a positive number, got ${v}`);
+    common[i] = v;
+  }
+  const landName = model.landFactor;
+  const fx = model.farmEffects;
+  const farmPos = new Map((fx?.farms ?? []).map((f, i) => [f, i]));
+  const scale = model.errorScale;
+  const seen = new Set<string>();
+  return options.farms.map((spec) => {
+    const where = `farm ${spec.farm}`;
+    if (typeof spec.farm !== 'string' || !spec.farm) throw new EstimationInputError('every farm needs a name');
+    if (seen.has(spec.farm)) throw new EstimationInputError(`${where} is listed twice`);
+    seen.add(spec.farm);
+    const prices = common.slice();
+    for (const [name, v] of Object.entries(spec.prices ?? {})) {
+      const i = itemIndex.get(name);
+      if (i === undefined) throw new EstimationInputError(`${where}: "${name}" is not an item of the model`);
+      if (!(Number.isFinite(v) && v > 0)) throw new EstimationInputError(`${where}: the price of ${name} must be a positive number, got ${v}`);
+      prices[i] = v;
+    }
+    const fixed = spec.fixed ?? {};
+    for (const name of Object.keys(fixed))
+      if (name !== landName && !layout.factors.includes(name)) throw new EstimationInputError(`${where}: "${name}" is not a fixed factor of the model`);
+    let land = 1;
+    if (perHa) {
+      const L = fixed[landName!];
+      if (L === undefined || !(Number.isFinite(L) && L > 0)) throw new EstimationInputError(`${where}: land (${landName}) must be given and more than 0 ha`);
+      land = L;
+    }
+    const z = layout.factors.map((name, kk) => {
+      if (kk === trendIdx && fixed[name] === undefined) return season - layout.trendOrigin! + 1;
+      const v = fixed[name];
+      if (v === undefined || !Number.isFinite(v)) throw new EstimationInputError(`${where}: fixed factor "${name}" is missing or not a number`);
+      return perHa && kk !== trendIdx ? v / land : v;
+    });
+    const committed: number[] = [];
+    const quantity: number[] = [];
+    const entries = Object.entries(spec.contracted ?? {});
+    for (const [name, q] of entries) {
+      const i = itemIndex.get(name);
+      if (i === undefined) throw new EstimationInputError(`${where}: committed item "${name}" is not an item of the model`);
+      if (layout.items[i]!.role !== 'output') throw new EstimationInputError(`${where}: ${name} is an input; only outputs can be committed`);
+      if (!(Number.isFinite(q) && q > 0)) throw new EstimationInputError(`${where}: the committed quantity of ${name} must be a number above 0, got ${q}`);
+      committed.push(i);
+      quantity.push(q);
+    }
+    // item order
+    const order = committed.map((_, j) => j).sort((a, b) => committed[a]! - committed[b]!);
+    const c = order.map((j) => committed[j]!);
+    const qs = order.map((j) => quantity[j]!);
+    for (const [name, v] of Object.entries(spec.contractPrices ?? {})) {
+      if (!(spec.contracted ?? {})[name]) throw new EstimationInputError(`${where}: a contract price is given for ${name}, which the farm has not committed`);
+      if (!(Number.isFinite(v) && v >= 0)) throw new EstimationInputError(`${where}: the contract price of ${name} must be a number of at least 0, got ${v}`);
+    }
+    for (const [name, v] of Object.entries(spec.history ?? {})) {
+      if (!itemIndex.has(name)) throw new EstimationInputError(`${where}: history for "${name}", which is not an item of the model`);
+      if (!Array.isArray(v) || v.some((x) => !(Number.isFinite(x) && x >= 0))) throw new EstimationInputError(`${where}: the history of ${name} must be a list of quantities of at least 0`);
+    }
+    const pos = farmPos.get(spec.farm);
+    const mu = new Array<number>(n).fill(0);
+    const noiseSd = new Array<number>(n).fill(0);
+    for (let i = 0; i < n; i++) {
+      let varFarm = 0;
+      if (perHa && fx) {
+        if (pos !== undefined) {
+          mu[i] = fx.effects[i]![pos]!;
+          varFarm = fx.variance[i]![pos]!;
+        } else varFarm = fx.tau2[i]!;
+      }
+      const resVar = perHa && scale ? scale.variance[i]! * Math.exp(scale.exponent[i]! * Math.log(land / scale.referenceLand)) : fit.sigma[i]![i]!;
+      noiseSd[i] = Math.sqrt(Math.max(varFarm + resVar, 0));
+    }
+    return { spec, prices, z, land, known: pos !== undefined, mu, noiseSd, committed: c, quantity: qs, target: qs.map((q) => q / land) };
+  });
+}
+
+function historyOf(spec: ContractedFarmSpec, item: string): { min: number; max: number; seasons: number } | null {
+  const h = spec.history?.[item];
+  if (!h || !h.length) return null;
+  return { min: Math.min(...h), max: Math.max(...h), seasons: h.length };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Words
+
+function fmt(v: number): string {
+  const a = Math.abs(v);
+  const digits = a >= 100 ? 0 : a >= 10 ? 1 : a >= 1 ? 2 : 3;
+  return v.toLocaleString('en-GB', { maximumFractionDigits: digits, minimumFractionDigits: 0 });
+}
+
+function fmtQty(q: number, unit: string | undefined): string {
+  return unit ? `${fmt(q)} ${unit}` : fmt(q);
+}
+
+function unitPer(unit: string | undefined, perHa: boolean): string {
+  if (!perHa) return unit ? `${unit} for the farm` : 'for the farm';
+  return unit ? `${unit}/ha` : 'per hectare';
+}
+
+function failureIssues(
+  failure: SolveFailure,
+  f: FarmSetup,
+  names: string[],
+  units: Record<string, string>,
+  perHa: boolean,
+  history: ({ min: number; max: number; seasons: number } | null)[],
+): ContractedIssue[] {
+  const others = f.committed.length > 1;
+  return failure.items.map((c) => {
+    const j = f.committed.indexOf(c);
+    const item = names[c]!;
+    const qty = `${fmtQty(f.quantity[j]!, units[item])} of ${item}${perHa ? ` (${fmt(f.target[j]!)} ${unitPer(units[item], true)})` : ''}`;
+    const h = history[j];
+    const given = others ? ', together with its other commitments' : '';
+    if (failure.reason === 'out-of-reach' && failure.direction === 'low') {
+      const hist = h && f.target[j]! < h.min ? ` It is also less ${item} ${perHa ? 'per hectare ' : ''}than the farm has grown in any of its ${h.seasons} recorded seasons (at least ${fmt(h.min)}).` : '';
+      return {
+        item,
+        kind: 'out-of-reach' as const,
+        blocking: true,
+        text: `${qty} is out of reach for farm ${f.spec.farm} at positive prices: the fitted technology would grow more ${item} than that even at a price near zero${given}, so no marginal cost can be given.${hist}`,
+      };
+    }
+    if (failure.reason === 'out-of-reach') {
+      const hist = h && f.target[j]! > h.max ? ` That is more ${item} ${perHa ? 'per hectare ' : ''}than this farm has ever grown (at most ${fmt(h.max)} in ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'}).` : '';
+      return {
+        item,
+        kind: 'out-of-reach' as const,
+        blocking: true,
+        text: `${qty} is more than the fitted technology can supply on farm ${f.spec.farm} at any price${given}, so no marginal cost can be given.${hist}`,
+      };
+    }
+    if (failure.reason === 'singular')
+      return {
+        item,
+        kind: 'singular' as const,
+        blocking: true,
+        text: `The fitted supply of ${item} on farm ${f.spec.farm} does not respond to its own price${others ? ' independently of the other committed outputs' : ''} (the profit function is flat in that direction), so no price brings it to ${qty} and no marginal cost can be read from it.`,
+      };
+    return {
+      item,
+      kind: 'no-solution' as const,
+      blocking: true,
+      text: `The search for the price at which farm ${f.spec.farm} would supply ${qty} did not settle, so no marginal cost is given.`,
+    };
+  });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Elasticities
+
+interface FarmElasticityParts {
+  /** Inputs (item indices) and the priced rest items (inputs and free outputs). */
+  inputs: number[];
+  rest: number[];
+  conditional: number[][];
+  unconditional: number[][];
+  committed: number[];
+  output: number[][];
+}
+
+function elasticityParts(dual: DualPoint, p: number[], y: number[], committed: number[], target: number[], roles: readonly string[]): FarmElasticityParts {
+  const rest = dual.rest;
+  const inputs = rest.filter((i) => roles[i] === 'input');
+  const row = (i: number) => rest.indexOf(i);
+  const conditional = inputs.map((i) => rest.map((l, cl) => (dual.conditional[row(i)]![cl]! * p[l]!) / y[i]!));
+  const unconditional = inputs.map((i) => rest.map((l, cl) => (dual.unconditional[row(i)]![cl]! * p[l]!) / y[i]!));
+  const output = inputs.map((i) => committed.map((_, k) => (dual.restPerCommitted[row(i)]![k]! * target[k]!) / y[i]!));
+  return { inputs, rest, conditional, unconditional, committed, output };
+}
+
+function farmTables(parts: FarmElasticityParts, names: string[]): ContractedElasticities {
+  const rows = parts.inputs.map((i) => names[i]!);
+  const cols = parts.rest.map((i) => names[i]!);
+  return {
+    conditional: { rows, columns: cols, values: parts.conditional },
+    unconditional: { rows, columns: cols, values: parts.unconditional },
+    output: { rows, columns: parts.committed.map((i) => names[i]!), values: parts.output },
+  };
+}
+
+/** Co-op elasticities: each farm's weighted by its share of the co-op's quantity of the input (columns: input prices, committed outputs). */
+function coopTables(farms: { farmX: number[]; farm: FarmElasticityParts }[], names: string[], roles: readonly string[], anyCommitted: boolean[]): ContractedElasticities | null {
+  if (!farms.length) return null;
+  const inputs = names.map((_, i) => i).filter((i) => roles[i] === 'input');
+  const outs = names.map((_, i) => i).filter((i) => anyCommitted[i]);
+  const table = (pick: (p: FarmElasticityParts) => number[][], colsOf: (p: FarmElasticityParts) => number[], cols: number[]): ElasticityTable => {
+    const values = inputs.map((i, r) => {
+      let X = 0;
+      const acc = new Array<number>(cols.length).fill(0);
+      for (const { farmX, farm } of farms) {
+        const x = farmX[r]!;
+        const fr = farm.inputs.indexOf(i);
+        if (fr < 0 || !(x > 0)) continue;
+        X += x;
+        const fc = colsOf(farm);
+        cols.forEach((l, c) => {
+          const at = fc.indexOf(l);
+          if (at >= 0) acc[c]! += x * pick(farm)[fr]![at]!;
+        });
+      }
+      return acc.map((v) => (X > 0 ? v / X : NaN));
+    });
+    return { rows: inputs.map((i) => names[i]!), columns: cols.map((i) => names[i]!), values };
+  };
+  return {
+    conditional: table((p) => p.conditional, (p) => p.rest, inputs),
+    unconditional: table((p) => p.unconditional, (p) => p.rest, inputs),
+    output: table((p) => p.output, (p) => p.committed, outs),
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Summaries
+
+/** Point and predictive summary over the draws marked ok (the band widened to hold the point, as in the projection). */
+function summarise(values: Float64Array, ok: Uint8Array, point: number, probs: number[], level: number, clip: boolean): ContractedBand {
+  const xs: number[] = [];
+  for (let s = 0; s < values.length; s++) if (ok[s]) xs.push(values[s]!);
+  const c = (v: number) => (clip ? Math.max(0, v) : v);
+  if (!xs.length) return { point: c(point), mean: c(point), sd: 0, median: c(point), p5: c(point), p95: c(point), lower: c(point), upper: c(point) };
+  const sorted = Float64Array.from(xs).sort();
+  const N = sorted.length;
+  let m = 0;
+  for (const v of sorted) m += v;
+  m /= N;
+  let v2 = 0;
+  for (const v of sorted) v2 += (v - m) ** 2;
+  const q = (p: number) => {
+    const h = (N - 1) * p;
+    const lo = Math.floor(h);
+    const hi = Math.min(lo + 1, N - 1);
+    return sorted[lo]! + (h - lo) * (sorted[hi]! - sorted[lo]!);
+  };
+  void probs;
+  const lower = Math.min(q((1 - level) / 2), point);
+  const upper = Math.max(q((1 + level) / 2), point);
+  return { point: c(point), mean: c(m), sd: N > 1 ? Math.sqrt(v2 / (N - 1)) : 0, median: c(q(0.5)), p5: c(q(0.05)), p95: c(q(0.95)), lower: c(lower), upper: c(upper) };
+}
