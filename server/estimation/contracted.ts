@@ -52,6 +52,8 @@ export interface ContractedOptions {
   parameterUncertainty?: boolean;
   /** Unit of each item for the words (e.g. { wheat: 't' }); optional. */
   units?: Record<string, string>;
+  /** Called now and then with the share done (0–1) and a stage in words. */
+  onProgress?: (share: number, stage: string) => void;
 }
 
 export const CONTRACTED_CAUTION =
@@ -145,7 +147,10 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
   const coopElast: { farmX: number[]; farm: FarmElasticityParts }[] = [];
   const leftOut: string[] = [];
 
-  const farms: ContractedFarmResult[] = setups.map((f) => {
+  const progress = options.onProgress ?? (() => {});
+  progress(0.05, `Evaluating ${setups.length} farm${setups.length === 1 ? '' : 's'} over ${S} draws`);
+  const farms: ContractedFarmResult[] = setups.map((f, fi) => {
+    if (fi > 0 && fi % 10 === 0) progress(0.05 + (0.9 * fi) / setups.length, `Evaluating farm ${fi + 1} of ${setups.length}`);
     const issues: ContractedIssue[] = [];
     const shiftPoint = f.mu;
     const pointTech = technology(fit.theta, f.z, shiftPoint);
@@ -338,6 +343,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
   });
 
   // Co-op.
+  progress(0.95, 'Co-op totals');
   const evaluatedCount = farms.filter((f) => f.evaluated).length;
   const coopBand = (values: Float64Array, point: number, clip: boolean): ContractedBand => summarise(values, coopOk, point, probs, level, clip);
   const coop: ContractedCoopResult = {

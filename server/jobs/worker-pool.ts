@@ -4,6 +4,7 @@ import { Piscina } from 'piscina';
 import { workerBundle } from '../core/worker-bundle.js';
 import type { FitRunResult, FitTask } from './fit-task.js';
 import type { OutlookProjectionResult, ProjectionTask } from '../outlook/projection-task.js';
+import type { ContractedTask, ContractedTaskResult } from '../outlook/contracted-task.js';
 
 /**
  * Worker threads for CPU-heavy work, so the request thread stays responsive. Workers run the
@@ -34,6 +35,22 @@ export class WorkerPool {
   /** A season projection (server/outlook/projection-task.ts) on the same threads. */
   runProjection(task: ProjectionTask, signal?: AbortSignal): Promise<OutlookProjectionResult> {
     return this.pool.run(task, { filename: workerBundle(new URL('../outlook/projection-task.ts', import.meta.url)), signal }) as Promise<OutlookProjectionResult>;
+  }
+
+  /**
+   * Marginal costs and conditional input demands of committed outputs (server/outlook/contracted-task.ts,
+   * docs/cost-duality.md) on the same threads, with progress.
+   */
+  runContracted(task: Omit<ContractedTask, 'progressPort'>, onProgress: (share: number, stage: string) => void = () => {}, signal?: AbortSignal): Promise<ContractedTaskResult> {
+    const channel = new MessageChannel();
+    channel.port2.on('message', (m: { share: number; stage: string }) => onProgress(m.share, m.stage));
+    channel.port2.unref();
+    return this.pool
+      .run(
+        { ...task, progressPort: channel.port1 },
+        { filename: workerBundle(new URL('../outlook/contracted-task.ts', import.meta.url)), transferList: [channel.port1], signal },
+      )
+      .finally(() => channel.port2.close()) as Promise<ContractedTaskResult>;
   }
 
   get threads() {
