@@ -1,15 +1,14 @@
-import { and, desc, eq, inArray } from 'drizzle-orm';
 import { modelDefinitionSchema, specOf, type ModelDefinition } from '../../shared/model-schemas.js';
 import type { Db } from '../db/client.js';
-import { models, modelRuns } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { VERSION } from '../version.js';
 import { enqueueJob, requestCancel } from '../jobs/job-queue.js';
 import type { JobHandler } from '../jobs/job-runner.js';
 import type { WorkerPool } from '../jobs/worker-pool.js';
-import { isEstimationInputError, type FitOptions, type NetputDataset } from '../estimation/index.js';
+import { elasticitiesAt, evaluateFit, isEstimationInputError, type FitOptions, type FitResult, type NetputDataset } from '../estimation/index.js';
 import { buildDataset, hashOf } from './model-data.js';
+import * as repo from './models-repository.js';
 
 export const FIT_JOB = 'fit';
 
@@ -19,40 +18,26 @@ export function fitOptionsOf(def: ModelDefinition): FitOptions {
 
 export async function createModel(db: Db, name: string, definition: ModelDefinition, actorUserId: number) {
   return db.transaction(async (tx) => {
-    const [row] = await tx.insert(models).values({ name, definition, createdBy: actorUserId }).returning();
+    const row = await repo.insertModel(tx, name, definition, actorUserId);
     await recordAudit(tx, { actorUserId, action: 'model.create', entity: 'model', entityId: row.id, after: { name, definition } });
     return row;
   });
 }
 
-/** The run columns a list or a status poll needs (not the snapshot, not the result). */
-export const runSummaryColumns = {
-  id: modelRuns.id,
-  modelId: modelRuns.modelId,
-  status: modelRuns.status,
-  progress: modelRuns.progress,
-  stage: modelRuns.stage,
-  dataHash: modelRuns.dataHash,
-  optionsHash: modelRuns.optionsHash,
-  softwareVersion: modelRuns.softwareVersion,
-  error: modelRuns.error,
-  rerunOf: modelRuns.rerunOf,
-  createdAt: modelRuns.createdAt,
-  startedAt: modelRuns.startedAt,
-  finishedAt: modelRuns.finishedAt,
-};
-
-export async function listModels(db: Db) {
-  const rows = await db.select().from(models).orderBy(desc(models.createdAt));
-  const runs = rows.length ? await db.select(runSummaryColumns).from(modelRuns).where(inArray(modelRuns.modelId, rows.map((r) => r.id))).orderBy(desc(modelRuns.id)) : [];
-  return rows.map((m) => ({ ...m, runs: runs.filter((r) => r.modelId === m.id) }));
-}
+export const listModels = repo.listModelsWithRuns;
 
 export async function getModel(db: Db, id: number) {
-  const [row] = await db.select().from(models).where(eq(models.id, id));
+  const row = await repo.findModel(db, id);
   if (!row) throw AppError.notFound('The model');
-  const runs = await db.select(runSummaryColumns).from(modelRuns).where(eq(modelRuns.modelId, id)).orderBy(desc(modelRuns.id));
-  return { ...row, runs };
+  return { ...row, runs: await repo.listRunSummaries(db, id) };
+}
+
+export async function deleteModel(db: Db, id: number, actorUserId: number): Promise<void> {
+  const before = await getModel(db, id);
+  await db.transaction(async (tx) => {
+    await repo.deleteModel(tx, id);
+    await recordAudit(tx, { actorUserId, action: 'model.delete', entity: 'model', entityId: id, before: { name: before.name, definition: before.definition } });
+  });
 }
 
 async function insertRun(
@@ -65,20 +50,17 @@ async function insertRun(
   rerunOf: number | null,
 ) {
   return db.transaction(async (tx) => {
-    const [run] = await tx
-      .insert(modelRuns)
-      .values({
-        modelId,
-        definition,
-        dataset,
-        excluded,
-        dataHash: hashOf(dataset),
-        optionsHash: hashOf(definition),
-        softwareVersion: VERSION,
-        rerunOf,
-        createdBy: actorUserId,
-      })
-      .returning(runSummaryColumns);
+    const run = await repo.insertRun(tx, {
+      modelId,
+      definition,
+      dataset,
+      excluded,
+      dataHash: hashOf(dataset),
+      optionsHash: hashOf(definition),
+      softwareVersion: VERSION,
+      rerunOf,
+      createdBy: actorUserId,
+    });
     await enqueueJob(tx, FIT_JOB, run.id);
     await recordAudit(tx, { actorUserId, action: rerunOf ? 'model-run.rerun' : 'model-run.start', entity: 'model-run', entityId: run.id, after: { modelId, rerunOf } });
     return run;
@@ -96,20 +78,26 @@ export async function startRun(db: Db, modelId: number, actorUserId: number) {
 
 /** Runs a stored run again on its own snapshot and definition: the numbers come out identical. */
 export async function rerun(db: Db, runId: number, actorUserId: number) {
-  const [old] = await db.select().from(modelRuns).where(eq(modelRuns.id, runId));
+  const old = await repo.findRun(db, runId);
   if (!old) throw AppError.notFound('The model run');
   return insertRun(db, old.modelId, old.definition as ModelDefinition, old.dataset as NetputDataset, old.excluded as unknown[], actorUserId, runId);
 }
 
 export async function getRun(db: Db, id: number, withDataset = false) {
-  const [row] = await db.select().from(modelRuns).where(eq(modelRuns.id, id));
+  const row = await repo.findRun(db, id);
   if (!row) throw AppError.notFound('The model run');
   const { dataset, ...rest } = row;
   return withDataset ? row : { ...rest, observations: (dataset as NetputDataset).seasons.length };
 }
 
+/** The run for its result page, with who started it by name (treasurers cannot list users). */
+export async function getRunWithAuthor(db: Db, id: number) {
+  const run = await getRun(db, id);
+  return { ...run, createdByName: await repo.userName(db, run.createdBy) };
+}
+
 export async function getRunStatus(db: Db, id: number) {
-  const [row] = await db.select(runSummaryColumns).from(modelRuns).where(eq(modelRuns.id, id));
+  const row = await repo.findRunSummary(db, id);
   if (!row) throw AppError.notFound('The model run');
   return row;
 }
@@ -118,18 +106,38 @@ export async function cancelRun(db: Db, id: number, actorUserId: number) {
   const run = await getRunStatus(db, id);
   if (run.status !== 'queued' && run.status !== 'running') throw AppError.conflict(`The run has already ${run.status}`);
   const wasQueued = await requestCancel(db, FIT_JOB, id);
-  if (wasQueued) await db.update(modelRuns).set({ status: 'cancelled', stage: 'Cancelled before it started', finishedAt: new Date() }).where(eq(modelRuns.id, id));
+  if (wasQueued) await repo.updateRun(db, id, { status: 'cancelled', stage: 'Cancelled before it started', finishedAt: new Date() });
   await recordAudit(db, { actorUserId, action: 'model-run.cancel', entity: 'model-run', entityId: id });
   return getRunStatus(db, id);
+}
+
+/** A succeeded run's fit; 409 while the run has not succeeded. */
+async function succeededFit(db: Db, runId: number): Promise<FitResult> {
+  const run = await getRun(db, runId);
+  if (run.status !== 'succeeded' || !run.result) throw AppError.conflict(`The run has not succeeded (it is ${run.status})`);
+  return (run.result as { fit: FitResult }).fit;
+}
+
+/** Netputs, profit and elasticities of a succeeded run at any prices and fixed factors (cheap: no fit). */
+export async function evaluateRun(db: Db, runId: number, point: { prices?: Record<string, number>; fixed?: Record<string, number> }) {
+  const fit = await succeededFit(db, runId);
+  try {
+    const ev = evaluateFit(fit, point);
+    const el = elasticitiesAt(fit, point);
+    return { items: fit.layout.items, point: ev.point, netputs: ev.netputs, profit: ev.profit, convex: ev.convex, elasticities: el.elasticities, standardErrors: el.standardErrors };
+  } catch (err) {
+    if (isEstimationInputError(err)) throw AppError.unprocessable((err as Error).message);
+    throw err;
+  }
 }
 
 /** The job handler: runs the fit in the worker pool and stores the result unchanged. */
 export function fitJobHandler(db: Db, pool: WorkerPool): JobHandler {
   return async (job, { signal }) => {
     const runId = job.refId!;
-    const [run] = await db.select().from(modelRuns).where(eq(modelRuns.id, runId));
+    const run = await repo.findRun(db, runId);
     if (!run || run.status === 'cancelled' || run.status === 'succeeded') return;
-    await db.update(modelRuns).set({ status: 'running', startedAt: new Date(), progress: 0, stage: 'Starting' }).where(eq(modelRuns.id, runId));
+    await repo.updateRun(db, runId, { status: 'running', startedAt: new Date(), progress: 0, stage: 'Starting' });
     let lastWrite = 0;
     const def = run.definition as ModelDefinition;
     try {
@@ -139,18 +147,11 @@ export function fitJobHandler(db: Db, pool: WorkerPool): JobHandler {
           const now = Date.now();
           if (now - lastWrite < 300) return;
           lastWrite = now;
-          void db
-            .update(modelRuns)
-            .set({ progress: share, stage })
-            .where(and(eq(modelRuns.id, runId), eq(modelRuns.status, 'running')))
-            .catch(() => {});
+          void repo.updateRunProgress(db, runId, share, stage).catch(() => {});
         },
         signal,
       );
-      await db
-        .update(modelRuns)
-        .set({ status: 'succeeded', progress: 1, stage: 'Done', result, finishedAt: new Date() })
-        .where(eq(modelRuns.id, runId));
+      await repo.updateRun(db, runId, { status: 'succeeded', progress: 1, stage: 'Done', result, finishedAt: new Date() });
     } catch (err) {
       const cancelled = signal.aborted;
       const message = cancelled
@@ -158,10 +159,7 @@ export function fitJobHandler(db: Db, pool: WorkerPool): JobHandler {
         : isEstimationInputError(err)
           ? (err as Error).message
           : `The fit failed: ${(err as Error).message}`;
-      await db
-        .update(modelRuns)
-        .set({ status: cancelled ? 'cancelled' : 'failed', stage: cancelled ? 'Cancelled' : 'Failed', error: message, finishedAt: new Date() })
-        .where(eq(modelRuns.id, runId));
+      await repo.updateRun(db, runId, { status: cancelled ? 'cancelled' : 'failed', stage: cancelled ? 'Cancelled' : 'Failed', error: message, finishedAt: new Date() });
       if (cancelled) throw err;
     }
   };
