@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import { z } from 'zod';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
@@ -16,7 +17,7 @@ export function auditRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'get',
       path: '/',
-      access: ['admin', 'planner'],
+      access: ACCESS.audit,
       handler: async (req, res) => {
         const q = parse(querySchema, req.query, 'query');
         res.json(await listAudit(ctx.db, q.limit, q.offset, q.entity));

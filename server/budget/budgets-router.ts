@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import type { Response } from 'express';
 import { idParamSchema } from '../../shared/schemas.js';
 import type { AppContext } from '../context.js';
@@ -9,8 +10,8 @@ import { budgetForExport, createBudget, deleteBudget, getBudget, listBudgets, pr
 import { createProduct, deleteProduct, listProducts, updateProduct } from './fertiliser-products.js';
 
 /** Treasurers write budgets and the product list they plan with; planners and admins read; members nothing. */
-const READ = ['admin', 'planner', 'treasurer'] as const;
-const WRITE = ['treasurer'] as const;
+const READ = ACCESS.budget;
+const WRITE = ACCESS.budgetEdit;
 
 function fileName(id: number, name: string, ext: string): string {
   const slug = name.toLowerCase().replace(/[^a-z0-9]+/g, '-').replace(/^-|-$/g, '').slice(0, 60) || 'budget';

@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import type { RouteDef } from '../core/routes.js';
 import type { AppContext } from '../context.js';
 import { listFarms, myFarm } from './farms-repository.js';
@@ -11,6 +12,6 @@ export function farmsRoutes(ctx: AppContext): RouteDef[] {
       cache: true,
       handler: async (req, res) => res.json(await listFarms(ctx.db, req.user!)),
     },
-    { method: 'get', path: '/my-farm', access: ['member'], cache: true, handler: async (req, res) => res.json(await myFarm(ctx.db, req.user!.farmId)) },
+    { method: 'get', path: '/my-farm', access: ACCESS.myFarm, cache: true, handler: async (req, res) => res.json(await myFarm(ctx.db, req.user!.farmId)) },
   ];
 }

@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import type { Request, Response } from 'express';
 import multer from 'multer';
 import { z } from 'zod';
@@ -80,7 +81,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'get',
       path: '/',
-      access: ['planner', 'admin'],
+      access: ACCESS.imports,
       handler: async (req, res) => {
         const q = parse(listQuery, req.query, 'query');
         res.json(await listImports(ctx, jobs, q.limit));
@@ -89,7 +90,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'post',
       path: '/',
-      access: ['planner'],
+      access: ACCESS.dataEdit,
       handler: async (req, res) => {
         await receiveFile(req, res);
         const body = parse(uploadSchema, req.body, 'body');
@@ -106,7 +107,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'get',
       path: '/:id',
-      access: ['planner', 'admin'],
+      access: ACCESS.imports,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
         res.json(await getImport(ctx, jobs, id));
@@ -115,7 +116,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'post',
       path: '/:id/validate',
-      access: ['planner'],
+      access: ACCESS.dataEdit,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
         const body = parse(validateSchema, req.body, 'body');
@@ -125,7 +126,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'post',
       path: '/:id/commit',
-      access: ['planner'],
+      access: ACCESS.dataEdit,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
         const { onExisting, acceptWarnings } = parse(commitSchema, req.body, 'body');

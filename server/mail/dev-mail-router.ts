@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import type { RouteDef } from '../core/routes.js';
 import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
@@ -10,12 +11,12 @@ export function devMailRoutes(ctx: AppContext): RouteDef[] {
   };
   return [
     // Asked by the admin screens to decide whether to offer the mailbox page: answers in every mode.
-    { method: 'get', path: '/status', access: ['admin'], handler: (_req, res) => res.json({ available: ctx.config.dev && Boolean(ctx.fakeSmtp) }) },
-    { method: 'get', path: '/', access: ['admin'], devOnly: true, handler: (_req, res) => res.json(smtp().messages().reverse()) },
+    { method: 'get', path: '/status', access: ACCESS.devMail, handler: (_req, res) => res.json({ available: ctx.config.dev && Boolean(ctx.fakeSmtp) }) },
+    { method: 'get', path: '/', access: ACCESS.devMail, devOnly: true, handler: (_req, res) => res.json(smtp().messages().reverse()) },
     {
       method: 'delete',
       path: '/',
-      access: ['admin'],
+      access: ACCESS.devMail,
       devOnly: true,
       handler: (_req, res) => {
         smtp().clear();

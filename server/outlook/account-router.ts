@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import type { Request, Response } from 'express';
 import { eq } from 'drizzle-orm';
 import type { RouteDef } from '../core/routes.js';
@@ -30,11 +31,11 @@ async function setOptOut(db: Db, userId: number, optOut: boolean, action: string
 /** `/api/account`: the member's own mail preferences. */
 export function accountMailRoutes(ctx: AppContext): RouteDef[] {
   return [
-    { method: 'get', path: '/mail-preferences', access: ['member'], handler: async (req, res) => res.json(await preferences(ctx.db, req.user!.id)) },
+    { method: 'get', path: '/mail-preferences', access: ACCESS.myFarm, handler: async (req, res) => res.json(await preferences(ctx.db, req.user!.id)) },
     {
       method: 'put',
       path: '/mail-preferences',
-      access: ['member'],
+      access: ACCESS.myFarm,
       handler: async (req, res) => {
         const body = parse(mailPreferencesSchema, req.body, 'body');
         await setOptOut(ctx.db, req.user!.id, !body.outlookEmails, body.outlookEmails ? 'mail.subscribe' : 'mail.unsubscribe');

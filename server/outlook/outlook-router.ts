@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import { and, asc, eq, type SQL } from 'drizzle-orm';
 import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
@@ -39,9 +40,9 @@ import {
 } from './outlook-service.js';
 
 /** Who reads full outlooks (every farm) and the accountability record: the planner and the board's people. */
-export const OUTLOOK_READ = ['admin', 'planner', 'treasurer'] as const;
-export const OUTLOOK_WRITE = ['planner'] as const;
-export const DELIVERY_LOG = ['planner', 'admin'] as const;
+const OUTLOOK_READ = ACCESS.outlook;
+const OUTLOOK_WRITE = ACCESS.outlookWrite;
+const DELIVERY_LOG = ACCESS.outlookLog;
 
 /** `/api/outlooks`: drafts, expectations, projection, publishing, versions, delivery log, accountability. */
 export function outlookRoutes(ctx: AppContext): RouteDef[] {

@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
@@ -13,7 +14,7 @@ export function portalRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'get',
       path: '/outlook',
-      access: ['member'],
+      access: ACCESS.myFarm,
       cache: true,
       // Nothing published yet is a normal state: 204 No Content, not a 404 for the browser to log.
       handler: async (req, res) => {
@@ -25,7 +26,7 @@ export function portalRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'get',
       path: '/outlook/versions',
-      access: ['member'],
+      access: ACCESS.myFarm,
       cache: true,
       handler: async (_req, res) =>
         res.json((await listVersions(ctx.db)).map((v) => ({ id: v.id, outlookId: v.outlookId, version: v.version, season: v.season, title: v.title, publishedAt: v.publishedAt }))),
@@ -33,7 +34,7 @@ export function portalRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'get',
       path: '/outlook/versions/:versionId',
-      access: ['member'],
+      access: ACCESS.myFarm,
       cache: true,
       handler: async (req, res) => res.json(await memberVersion(ctx.db, req.user!.farmId, parse(versionParamSchema, req.params, 'params').versionId)),
     },

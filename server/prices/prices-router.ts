@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import { eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { idListSchema, idSchema, idTextSchema } from '../../shared/ids.js';
@@ -14,8 +15,8 @@ import { createPrices, updatePrice } from './prices-service.js';
 import { CONFIRM_FLAG } from '../../shared/plausibility.js';
 import { exportFormatSchema, PRICE_COLUMNS, priceExportRows, sendSpreadsheet } from '../exports/data-exports.js';
 
-const READ = ['admin', 'planner', 'treasurer'] as const;
-const WRITE = ['planner'] as const;
+const READ = ACCESS.prices;
+const WRITE = ACCESS.dataEdit;
 
 const listQuery = z.object({ items: idListSchema, seasons: idListSchema, deliveryPoints: idListSchema });
 const seriesQuery = z.object({ items: idListSchema, deflator: idTextSchema.optional() });

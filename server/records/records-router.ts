@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import { z } from 'zod';
 import { idListSchema } from '../../shared/ids.js';
 import { factorKeySchema, factorValueSchema, landSchema, recordSchema } from '../../shared/data-schemas.js';
@@ -40,13 +41,13 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       // Set one farm's level of one fixed factor in one season (a grid cell).
       method: 'put',
       path: '/factors',
-      access: ['planner'],
+      access: ACCESS.dataEdit,
       handler: async (req, res) => res.json(await setFactor(ctx.db, parse(factorValueSchema, req.body, 'body'), req.user!)),
     },
     {
       method: 'delete',
       path: '/factors',
-      access: ['planner'],
+      access: ACCESS.dataEdit,
       handler: async (req, res) => {
         await deleteFactor(ctx.db, parse(factorKeySchema, req.body, 'body'), req.user!);
         res.status(204).end();
@@ -87,13 +88,13 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       // Insert or replace quantities: a cell edited in the grid or a pasted block, all or nothing.
       method: 'put',
       path: '/',
-      access: ['planner'],
+      access: ACCESS.dataEdit,
       handler: async (req, res) => res.json(await saveRecords(ctx.db, parse(blockSchema, req.body, 'body').rows, req.user!)),
     },
     {
       method: 'delete',
       path: '/',
-      access: ['planner'],
+      access: ACCESS.dataEdit,
       handler: async (req, res) => {
         await deleteRecord(ctx.db, parse(keySchema, req.body, 'body'), req.user!);
         res.status(204).end();
@@ -102,7 +103,7 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'put',
       path: '/land',
-      access: ['planner'],
+      access: ACCESS.dataEdit,
       handler: async (req, res) => res.json(await setLand(ctx.db, parse(landSchema, req.body, 'body'), req.user!)),
     },
   ];

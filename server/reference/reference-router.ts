@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import { DateTime } from 'luxon';
 import { deliveryPointSchema, farmSchema, itemSchema, seasonSchema } from '../../shared/data-schemas.js';
 import { crudRoutes } from '../core/crud.js';
@@ -5,8 +6,8 @@ import type { RouteDef } from '../core/routes.js';
 import type { AppContext } from '../context.js';
 import { deliveryPoints, farms, items, seasons } from '../db/schema/index.js';
 
-const READ = ['admin', 'planner', 'treasurer'] as const;
-const WRITE = ['planner'] as const;
+const READ = ACCESS.reference;
+const WRITE = ACCESS.dataEdit;
 
 export const itemsRoutes = (ctx: AppContext): RouteDef[] =>
   crudRoutes(ctx, {

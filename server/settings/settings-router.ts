@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import { settingsSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
@@ -10,7 +11,7 @@ export function settingsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'put',
       path: '/',
-      access: ['admin'],
+      access: ACCESS.settings,
       handler: async (req, res) => {
         const body = parse(settingsSchema, req.body, 'body');
         res.json(await saveSettings(ctx.db, body, req.user!.id));

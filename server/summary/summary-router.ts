@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import { asc, count, countDistinct, eq } from 'drizzle-orm';
 import type { CoopSummary } from '../../shared/api-types.js';
 import type { RouteDef } from '../core/routes.js';
@@ -50,6 +51,6 @@ export async function coopSummary(db: Db): Promise<CoopSummary> {
 }
 
 export function summaryRoutes(ctx: AppContext): RouteDef[] {
-  return [{ method: 'get', path: '/', access: ['admin', 'planner', 'treasurer'], cache: true, handler: async (_req, res) => res.json(await coopSummary(ctx.db)) }];
+  return [{ method: 'get', path: '/', access: ACCESS.coopSummary, cache: true, handler: async (_req, res) => res.json(await coopSummary(ctx.db)) }];
 }
 

@@ -1,3 +1,4 @@
+import { ACCESS } from '../../shared/roles.js';
 import { idParamSchema, invitationSchema, userPatchSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
@@ -6,11 +7,11 @@ import { inviteUser, listUsers, resendInvitation, sendResetLink, updateUser } fr
 
 export function usersRoutes(ctx: AppContext): RouteDef[] {
   return [
-    { method: 'get', path: '/', access: ['admin'], handler: async (_req, res) => res.json(await listUsers(ctx.db)) },
+    { method: 'get', path: '/', access: ACCESS.users, handler: async (_req, res) => res.json(await listUsers(ctx.db)) },
     {
       method: 'post',
       path: '/invitations',
-      access: ['admin'],
+      access: ACCESS.users,
       handler: async (req, res) => {
         const body = parse(invitationSchema, req.body, 'body');
         res.status(201).json(await inviteUser(ctx, body, req.user!.id));
@@ -19,7 +20,7 @@ export function usersRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'patch',
       path: '/:id',
-      access: ['admin'],
+      access: ACCESS.users,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
         const body = parse(userPatchSchema, req.body, 'body');
@@ -29,7 +30,7 @@ export function usersRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'post',
       path: '/:id/password-reset',
-      access: ['admin'],
+      access: ACCESS.users,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
         res.status(202).json(await sendResetLink(ctx, id, req.user!.id));
@@ -38,7 +39,7 @@ export function usersRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'post',
       path: '/:id/invitation',
-      access: ['admin'],
+      access: ACCESS.users,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
         res.status(202).json(await resendInvitation(ctx, id, req.user!.id));
