@@ -111,8 +111,14 @@ export interface ContractedFarmResult {
   /** Spending on the modelled variable inputs, Σ w·x^c. */
   inputSpending: ContractedBand | null;
   elasticities: ContractedElasticities | null;
-  /** Share of draws in which the commitment could not be evaluated (out of reach, singular). */
+  /** Share of draws left out of the bands because the commitment could not be evaluated in them (singular; for the generalized Leontief also out of reach). */
   failedDrawShare: number;
+  /**
+   * Share of draws in which a committed output would need a price at or below zero (the farm would
+   * grow more than committed even at a zero price). For the normalized quadratic these draws stay in
+   * the bands (the marginal cost is then at or below zero); otherwise they are among the failed ones.
+   */
+  belowZeroDrawShare: number;
 }
 
 export interface ContractedCoopResult {

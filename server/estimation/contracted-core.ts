@@ -36,6 +36,8 @@ export interface SolveSuccess {
   /** Netputs at p* (committed ones equal their targets to the tolerance). */
   netputs: number[];
   iterations: number;
+  /** Committed items whose solution price is at or below zero (only with keepNonPositive). */
+  nonPositive?: number[];
 }
 
 export type SolveResult = SolveSuccess | SolveFailure;
@@ -44,6 +46,11 @@ export interface SolveOptions {
   maxIterations?: number;
   /** Relative tolerance on the committed netputs (default 1e-11). */
   tolerance?: number;
+  /**
+   * For a technology linear in the committed prices: return the exact solution even when a price is
+   * at or below zero (flagged `nonPositive`), instead of reporting it out of reach.
+   */
+  keepNonPositive?: boolean;
 }
 
 /**
@@ -75,6 +82,11 @@ export function solveCommitted(tech: Technology, prices: ArrayLike<number>, comm
       // exact: the solution is p_c + δ, whatever its sign
       const next = pc.map((v, k) => v + delta[k]!);
       const bad = next.map((v, k) => (v > 0 ? -1 : k)).filter((k) => k >= 0);
+      if (bad.length && options.keepNonPositive) {
+        committed.forEach((c, k) => (p[c] = next[k]!));
+        const yy = tech.netputs(p);
+        return { ok: true, prices: p, netputs: yy, iterations: it + 1, nonPositive: bad.map((k) => committed[k]!) };
+      }
       if (bad.length) {
         const q = p.slice();
         committed.forEach((c, k) => (q[c] = next[k]!));

@@ -31,6 +31,7 @@ import { EstimationInputError } from './errors.js';
 import { drawSharedParts, type SharedDraws } from './forecast-draws.js';
 import { formOf } from './forms.js';
 import { netputsFromDecomposition } from './model.js';
+import { nqIndex } from './nq.js';
 import type { ForecastModel } from './panel.js';
 import { PROJECTION_CAUTION } from './projection.js';
 import { SeededRandom } from './random.js';
@@ -52,6 +53,8 @@ export interface ContractedOptions {
   parameterUncertainty?: boolean;
   /** Unit of each item for the words (e.g. { wheat: 't' }); optional. */
   units?: Record<string, string>;
+  /** Use the general (Newton) solve in every draw even where the normalized quadratic's linear solve applies (slower; for checks). */
+  generalSolve?: boolean;
   /** Called now and then with the share done (0–1) and a stage in words. */
   onProgress?: (share: number, stage: string) => void;
 }
@@ -172,14 +175,14 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
           item: names[c]!,
           kind: 'beyond-history',
           blocking: false,
-          text: `${fmtQty(f.quantity[j]!, units[names[c]!])} of ${names[c]} is ${fmt(t)} ${what}: more ${names[c]} ${perHa ? 'per hectare ' : ''}than farm ${f.spec.farm} has grown in any of its ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'} (at most ${fmt(h.max)}), so the figures extrapolate the fitted technology.`,
+          text: `${fmtQty(f.quantity[j]!, units[names[c]!])} of ${names[c]} is ${fmt(t)} ${what}: more ${names[c]} ${perHa ? 'per hectare ' : ''}than farm ${f.spec.farm} has grown in any of its ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'} (at most ${fmt(h.max)} ${what}), so the figures extrapolate the fitted technology.`,
         });
       else if (t < h.min * (1 - 1e-9))
         issues.push({
           item: names[c]!,
           kind: 'beyond-history',
           blocking: false,
-          text: `${fmtQty(f.quantity[j]!, units[names[c]!])} of ${names[c]} is ${fmt(t)} ${what}: less ${names[c]} ${perHa ? 'per hectare ' : ''}than farm ${f.spec.farm} has grown in any of its ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'} (at least ${fmt(h.min)}), so the figures extrapolate the fitted technology.`,
+          text: `${fmtQty(f.quantity[j]!, units[names[c]!])} of ${names[c]} is ${fmt(t)} ${what}: less ${names[c]} ${perHa ? 'per hectare ' : ''}than farm ${f.spec.farm} has grown in any of its ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'} (at least ${fmt(h.min)} ${what}), so the figures extrapolate the fitted technology.`,
         });
     });
 
@@ -218,6 +221,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
         inputSpending: null,
         elasticities: null,
         failedDrawShare: 1,
+        belowZeroDrawShare: 0,
       };
     }
     // Point values (levels).
@@ -245,43 +249,57 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     const spendD = new Float64Array(S);
     const ok = new Uint8Array(S);
     let failed = 0;
+    let belowZero = 0;
     if (shared) {
       const shift = new Float64Array(n);
       const eta = new Float64Array(n);
+      const fast = layout.form === 'normalized-quadratic' && !isCommitted[n - 1] && !options.generalSolve ? nqDrawSolver(layout, f, pStar) : null;
+      const pr = new Float64Array(n);
+      const yr = new Float64Array(n);
       for (let s = 0; s < S; s++) {
         rng.fillNormals(eta);
         for (let i = 0; i < n; i++) shift[i] = f.mu[i]! + shared.lambda[s * n + i]! + f.noiseSd[i]! * eta[i]!;
-        const theta = shared.theta.subarray(s * k, (s + 1) * k);
-        const tech = technology(theta, f.z, shift);
-        const start = f.prices.slice();
-        f.committed.forEach((c) => (start[c] = pStar[c]!));
-        const r = solveCommitted(tech, start, f.committed, f.target);
-        if (!r.ok) {
+        let status: DrawStatus;
+        if (fast) status = fast(shared.theta, s * k, shift, pr, yr);
+        else {
+          const theta = shared.theta.subarray(s * k, (s + 1) * k);
+          const start = f.prices.slice();
+          f.committed.forEach((c) => (start[c] = pStar[c]!));
+          const r = solveCommitted(technology(theta, f.z, shift), start, f.committed, f.target, { keepNonPositive: true });
+          if (r.ok) {
+            pr.set(r.prices);
+            yr.set(r.netputs);
+            status = r.nonPositive?.length ? 'below-zero' : 'ok';
+          } else status = r.reason === 'out-of-reach' ? 'lost-out-of-reach' : 'failed';
+        }
+        if (status === 'failed' || status === 'lost-out-of-reach') {
           failed++;
+          if (status === 'lost-out-of-reach') belowZero++;
           coopOk[s] = 0;
           continue;
         }
+        if (status === 'below-zero') belowZero++;
         ok[s] = 1;
-        f.committed.forEach((c, j) => (mc[j]![s] = r.prices[c]!));
-        inputIdx.forEach((i, j) => (inputsD[j]![s] = Math.max(0, -f.land * r.netputs[i]!)));
-        freeIdx.forEach((i, j) => (freeD[j]![s] = Math.max(0, f.land * r.netputs[i]!)));
+        f.committed.forEach((c, j) => (mc[j]![s] = pr[c]!));
+        inputIdx.forEach((i, j) => (inputsD[j]![s] = Math.max(0, -f.land * yr[i]!)));
+        freeIdx.forEach((i, j) => (freeD[j]![s] = Math.max(0, f.land * yr[i]!)));
         let cost = 0;
         let spend = 0;
         for (let i = 0; i < n; i++) {
-          if (!isCommitted[i]) cost -= r.prices[i]! * r.netputs[i]!;
-          if (roles[i] === 'input') spend -= r.prices[i]! * r.netputs[i]!;
+          if (!isCommitted[i]) cost -= pr[i]! * yr[i]!;
+          if (roles[i] === 'input') spend -= pr[i]! * yr[i]!;
         }
         costD[s] = f.land * cost;
         spendD[s] = f.land * spend;
         // co-op sums within the draw
-        inputIdx.forEach((i, j) => (coopInputs[i]![s]! += inputsD[j]![s]!));
-        freeIdx.forEach((i, j) => (coopFree[i]![s]! += freeD[j]![s]!));
+        for (let j = 0; j < inputIdx.length; j++) coopInputs[inputIdx[j]!]![s]! += inputsD[j]![s]!;
+        for (let j = 0; j < freeIdx.length; j++) coopFree[freeIdx[j]!]![s]! += freeD[j]![s]!;
         coopCost[s]! += costD[s]!;
         coopSpend[s]! += spendD[s]!;
         f.committed.forEach((c, j) => {
-          coopMcNum[c]![s]! += f.quantity[j]! * r.prices[c]!;
+          coopMcNum[c]![s]! += f.quantity[j]! * pr[c]!;
           const cp = f.spec.contractPrices?.[names[c]!];
-          if (cp !== undefined) coopMarginNum[c]![s]! += f.quantity[j]! * (cp - r.prices[c]!);
+          if (cp !== undefined) coopMarginNum[c]![s]! += f.quantity[j]! * (cp - pr[c]!);
         });
       }
     }
@@ -339,6 +357,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
       inputSpending: band(spendD, f.land * dual.inputSpending, false),
       elasticities: farmTables(parts, names),
       failedDrawShare: S > 0 ? failed / S : 0,
+      belowZeroDrawShare: S > 0 ? belowZero / S : 0,
     };
   });
 
@@ -397,6 +416,111 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
       `Bands: the central ${Math.round(level * 100)} % of ${S} draws of the model’s uncertainty (parameters, the season shock shared by all farms, each farm’s own level and residual); co-op marginal costs and margins are tonnage-weighted means over farms.`,
     ],
     caution: CONTRACTED_CAUTION,
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// The normalized quadratic's linear solve, per draw
+
+/**
+ * 'ok'; 'below-zero': solved, but a committed output needs a price at or below zero (kept: the
+ * linear solution is exact, and a negative marginal cost says the farm would grow more than committed
+ * even at a zero price); 'lost-out-of-reach': not solved because no positive price reaches the
+ * quantity (general solve only); 'failed': singular or not settled.
+ */
+type DrawStatus = 'ok' | 'below-zero' | 'lost-out-of-reach' | 'failed';
+
+/**
+ * For the NQ with the numeraire not committed: B_cc p̃*_c = y*_c/L − μ_c − λ_c − u_c − a_c − B_cr p̃_r − C_c z,
+ * then every netput from the NQ equations. No allocation per draw.
+ */
+function nqDrawSolver(layout: ForecastModel['fit']['layout'], f: FarmSetup, pointPrices: number[]) {
+  const n = layout.items.length;
+  const nn = n - 1;
+  const m = layout.factors.length;
+  const q = layout.quadraticFactors;
+  const ix = nqIndex(n, m, q);
+  const C = f.committed;
+  const mc = C.length;
+  const isC = new Uint8Array(n);
+  for (const c of C) isC[c] = 1;
+  const pn = f.prices[nn]!;
+  const pt = new Float64Array(nn);
+  for (let j = 0; j < nn; j++) pt[j] = f.prices[j]! / pn;
+  // scaling of the pivot test: the point's normalised prices of the committed outputs
+  const scale = C.map((c) => Math.abs(pointPrices[c]! / pn) || 1);
+  const A = new Float64Array(mc * mc);
+  const rhs = new Float64Array(mc);
+  const zp = new Float64Array(n);
+  const ptS = new Float64Array(nn);
+  const bIdx = Array.from({ length: nn }, (_, i) => Int32Array.from({ length: nn }, (_, j) => ix.b(i, j)));
+  const z = f.z;
+  return (theta: Float64Array, o: number, shift: Float64Array, pr: Float64Array, yr: Float64Array): DrawStatus => {
+    for (let i = 0; i < nn; i++) {
+      let v = 0;
+      for (let kk = 0; kk < m; kk++) v += theta[o + ix.c(i, kk)]! * z[kk]!;
+      zp[i] = v;
+    }
+    {
+      let v = 0;
+      for (let kk = 0; kk < m; kk++) v += theta[o + ix.d(kk)]! * z[kk]!;
+      for (let kk = 0; kk < q; kk++) for (let l = 0; l < q; l++) v += 0.5 * theta[o + ix.g(kk, l)]! * z[kk]! * z[l]!;
+      zp[nn] = v;
+    }
+    for (let a = 0; a < mc; a++) {
+      const ca = C[a]!;
+      let r = f.target[a]! - shift[ca]! - theta[o + ix.a(ca)]! - zp[ca]!;
+      const row = bIdx[ca]!;
+      for (let j = 0; j < nn; j++) if (!isC[j]) r -= theta[o + row[j]!]! * pt[j]!;
+      rhs[a] = r * scale[a]!;
+      for (let b = 0; b < mc; b++) A[a * mc + b] = theta[o + row[C[b]!]!]! * scale[a]! * scale[b]!;
+    }
+    // scaled Cholesky in place (lower triangle), then the two triangular solves
+    let maxDiag = 0;
+    for (let a = 0; a < mc; a++) maxDiag = Math.max(maxDiag, Math.abs(A[a * mc + a]!));
+    if (!(maxDiag > 0)) return 'failed';
+    for (let a = 0; a < mc; a++)
+      for (let b = 0; b <= a; b++) {
+        let v = A[a * mc + b]!;
+        for (let l = 0; l < b; l++) v -= A[a * mc + l]! * A[b * mc + l]!;
+        if (a === b) {
+          if (!(v > 1e-10 * maxDiag)) return 'failed';
+          A[a * mc + a] = Math.sqrt(v);
+        } else A[a * mc + b] = v / A[b * mc + b]!;
+      }
+    for (let a = 0; a < mc; a++) {
+      let v = rhs[a]!;
+      for (let l = 0; l < a; l++) v -= A[a * mc + l]! * rhs[l]!;
+      rhs[a] = v / A[a * mc + a]!;
+    }
+    for (let a = mc - 1; a >= 0; a--) {
+      let v = rhs[a]!;
+      for (let l = a + 1; l < mc; l++) v -= A[l * mc + a]! * rhs[l]!;
+      rhs[a] = v / A[a * mc + a]!;
+    }
+    for (let j = 0; j < nn; j++) pr[j] = f.prices[j]!;
+    pr[nn] = pn;
+    ptS.set(pt);
+    let below = false;
+    for (let a = 0; a < mc; a++) {
+      const v = rhs[a]! * scale[a]!;
+      ptS[C[a]!] = v;
+      pr[C[a]!] = v * pn;
+      if (!(v > 0)) below = true;
+    }
+    let quad = 0;
+    for (let i = 0; i < nn; i++) {
+      const row = bIdx[i]!;
+      let v = theta[o + ix.a(i)]! + zp[i]! + shift[i]!;
+      for (let j = 0; j < nn; j++) {
+        const bij = theta[o + row[j]!]!;
+        v += bij * ptS[j]!;
+        quad += bij * ptS[i]! * ptS[j]!;
+      }
+      yr[i] = v;
+    }
+    yr[nn] = theta[o + ix.a0]! - 0.5 * quad + zp[nn]! + shift[nn]!;
+    return below ? 'below-zero' : 'ok';
   };
 }
 
@@ -530,7 +654,7 @@ function failureIssues(
     const h = history[j];
     const given = others ? ', together with its other commitments' : '';
     if (failure.reason === 'out-of-reach' && failure.direction === 'low') {
-      const hist = h && f.target[j]! < h.min ? ` It is also less ${item} ${perHa ? 'per hectare ' : ''}than the farm has grown in any of its ${h.seasons} recorded seasons (at least ${fmt(h.min)}).` : '';
+      const hist = h && f.target[j]! < h.min ? ` It is also less ${item} ${perHa ? 'per hectare ' : ''}than the farm has grown in any of its ${h.seasons} recorded seasons (at least ${fmt(h.min)} ${unitPer(units[item], perHa)}).` : '';
       return {
         item,
         kind: 'out-of-reach' as const,
@@ -539,7 +663,7 @@ function failureIssues(
       };
     }
     if (failure.reason === 'out-of-reach') {
-      const hist = h && f.target[j]! > h.max ? ` That is more ${item} ${perHa ? 'per hectare ' : ''}than this farm has ever grown (at most ${fmt(h.max)} in ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'}).` : '';
+      const hist = h && f.target[j]! > h.max ? ` That is more ${item} ${perHa ? 'per hectare ' : ''}than this farm has ever grown (at most ${fmt(h.max)} ${unitPer(units[item], perHa)} in ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'}).` : '';
       return {
         item,
         kind: 'out-of-reach' as const,

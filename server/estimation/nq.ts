@@ -12,7 +12,7 @@ import { zeros, type Mat } from './linalg.js';
 import { column, type CurvatureBlock, type ModelData, type ModelLayout, type NetputDecomposition, type ProfitForm } from './model.js';
 import type { SurEquationInput } from './sur.js';
 
-interface NqIndex {
+export interface NqIndex {
   nn: number;
   m: number;
   q: number;
@@ -25,7 +25,7 @@ interface NqIndex {
   size: number;
 }
 
-function nqIndex(n: number, m: number, q: number): NqIndex {
+export function nqIndex(n: number, m: number, q: number): NqIndex {
   const nn = n - 1;
   const bStart = nn;
   const triIndex = (i: number, j: number, size: number): number => {
