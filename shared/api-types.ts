@@ -1,4 +1,5 @@
 import type { Role } from './roles.js';
+import type { SeasonCalendar } from './season-calendar.js';
 
 /** The one JSON error shape every failing API call answers with. */
 export interface ApiError {
@@ -72,6 +73,8 @@ export interface CoopSettings {
   decimalMark: 'point' | 'comma';
   storageCapacityT: number;
   handlingCapacityTPerDay: number;
+  /** When a season's inputs are bought and its crop delivered. */
+  seasonCalendar: SeasonCalendar;
 }
 
 /** `GET /api/summary`: the figures a home page starts from. */

@@ -133,6 +133,8 @@ export interface ProductCopy {
   supplier: string;
   gradeSource: string;
   priceNote: string;
+  /** The list price per t, when the budget priced the product otherwise (from an outlook scenario). */
+  listPricePerT?: number;
 }
 
 export interface ScenarioResult {
@@ -171,6 +173,18 @@ export interface BudgetResult {
     elasticitySource: ElasticitySource;
   };
   referencePrices: { values: Record<Nutrient, number | null>; basis: Record<Nutrient, 'given' | 'model-run' | 'products' | 'none'> };
+  /**
+   * How an outlook budget priced its products: from the chosen scenario's nutrient prices
+   * ('outlook') or at list prices ('list'); the list's own price per kg of each nutrient against the
+   * scenario's (gap = scenario − list); the outlook scenarios computed beside the base. Null for
+   * other sources (and budgets stored before this existed).
+   */
+  pricing?: {
+    basis: 'outlook' | 'list';
+    scenario: string;
+    gaps: { nutrient: Nutrient; list: number; target: number; gap: number }[];
+    sideBySide: string[];
+  } | null;
   products: (ProductCopy & { grade: string; costPerKg: Record<Nutrient, number | null> })[];
   scenarios: ScenarioResult[];
   cautions: string[];

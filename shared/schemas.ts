@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { DEFAULT_SEASON_CALENDAR, seasonCalendarSchema } from './season-calendar.js';
 import { ROLES } from './roles.js';
 import { idSchema } from './ids.js';
 import { DECIMAL_MARKS } from './cell-parsers.js';
@@ -45,6 +46,8 @@ export const settingsSchema = z.object({
   decimalMark: z.enum(DECIMAL_MARKS).default('point'),
   storageCapacityT: z.number().nonnegative().max(1e9),
   handlingCapacityTPerDay: z.number().nonnegative().max(1e7),
+  /** When a season's inputs are bought and its crop delivered (shared/season-calendar.ts). */
+  seasonCalendar: seasonCalendarSchema.default(DEFAULT_SEASON_CALENDAR),
 });
 
 export { idParamSchema } from './ids.js';

@@ -114,6 +114,7 @@ const FIELD_WORDS: Record<string, string> = {
   reference: 'contract number',
   deliveryFrom: 'first delivery month',
   deliveryTo: 'last delivery month',
+  seasonCalendar: 'season calendar',
 };
 const HIDDEN = new Set(['id', 'createdAt', 'updatedAt', 'passwordHash', 'version', 'inputsHash', 'lastSignInAt']);
 

@@ -2,11 +2,14 @@
  * CSV and XLSX exports of a budget, with the cautions as rows. Text cells go through the shared
  * formula escaper (server/exports/spreadsheet-writers.ts, OWASP CSV Injection); numbers stay numbers.
  *
- * CSV is one long table (section, scenario, product, month, measure, value, unit) so every figure
- * of every scenario fits; the XLSX has a summary, the scenarios side by side, the product plan,
- * the cash schedule and the cautions, each sheet headed by the cautions.
+ * The CSV is for the board: a cash-flow table (one row per month) and a purchase table (one row per
+ * product), scenarios side by side, money in whole currency units. The XLSX keeps full precision:
+ * a summary, the scenarios side by side, the product plan, the cash schedule and the cautions, each
+ * sheet headed by the cautions.
  */
-import { escapeFormula, toCsv, type SheetColumn, type SheetRow } from '../exports/spreadsheet-writers.js';
+import { DateTime } from 'luxon';
+import { monthWords } from '../../shared/season-calendar.js';
+import { escapeFormula, toCsvBlocks } from '../exports/spreadsheet-writers.js';
 import type { DisplayedBudgetResult } from './budget-units.js';
 import { NUTRIENT_LABEL, NUTRIENTS } from './nutrients.js';
 
@@ -17,18 +20,6 @@ export interface BudgetExportHeader {
   updatedBy: string | null;
 }
 
-const CSV_COLUMNS: SheetColumn[] = [
-  { key: 'section', header: 'section' },
-  { key: 'scenario', header: 'scenario' },
-  { key: 'product', header: 'product' },
-  { key: 'month', header: 'month' },
-  { key: 'measure', header: 'measure' },
-  { key: 'value', header: 'value' },
-  { key: 'unit', header: 'unit' },
-];
-
-/** Rounds away float noise (1e-6 of a unit) without hiding any figure a reader uses. */
-const clean = (v: number) => Math.round(v * 1e6) / 1e6;
 
 function labels(r: DisplayedBudgetResult) {
   const us = r.unitSystem === 'us';
@@ -50,65 +41,68 @@ function sourceLine(r: DisplayedBudgetResult): string {
   return `Published outlook "${d.title}" version ${d.version}, season ${d.seasonLabel}, ${d.scenario} scenario, ${model}`;
 }
 
-/** Every figure as rows of the long CSV table. */
-export function budgetCsvRows(h: BudgetExportHeader, r: DisplayedBudgetResult): SheetRow[] {
+const whole = (v: number) => Math.round(v) || 0;
+const tenth = (v: number) => Math.round(v * 10) / 10 || 0;
+
+/** "2026-12-03T14:05:00.000Z" → "3 Dec 2026, 14:05 UTC". */
+function savedWords(iso: string): string {
+  const d = DateTime.fromISO(iso, { zone: 'utc' });
+  return d.isValid ? `${d.toFormat('d LLL yyyy, HH:mm')} UTC` : iso;
+}
+
+/**
+ * The board's CSV: a short heading (budget, source, saved, money basis, cautions), then a cash-flow
+ * table with one row per month and a purchase table with one row per product, every scenario side
+ * by side, headings in words; money rounded to whole currency units, tonnes to 0.1. The XLSX keeps
+ * full precision.
+ */
+export function budgetCsvTables(h: BudgetExportHeader, r: DisplayedBudgetResult): (string | number | null)[][][] {
   const u = labels(r);
-  const rows: SheetRow[] = [];
-  const add = (section: string, measure: string, value: unknown, unit = '', extra: Partial<Record<'scenario' | 'product' | 'month', string>> = {}) =>
-    rows.push({ section, scenario: extra.scenario ?? '', product: extra.product ?? '', month: extra.month ?? '', measure, value: typeof value === 'number' ? clean(value) : value, unit });
-  r.cautions.forEach((c) => add('caution', 'caution', c));
-  add('budget', 'name', h.name);
-  add('budget', 'id', h.id);
-  add('budget', 'source', sourceLine(r));
-  add('budget', 'saved', h.updatedAt);
-  if (h.updatedBy) add('budget', 'saved by', h.updatedBy);
-  add('budget', 'currency', r.currency);
-  add('budget', 'units', r.unitSystem === 'us' ? 'US customary (lb, short ton)' : 'metric (kg, t)');
-  add('budget', 'lot rule', r.lotRule);
-  add('budget', 'software version', r.softwareVersion);
-  for (const n of NUTRIENTS) add('reference price', NUTRIENT_LABEL[n], r.referencePrices.values[n] ?? '', u.perMass);
-  if (r.demand.elasticities)
-    for (const i of NUTRIENTS) for (const j of NUTRIENTS) add('elasticity', `${NUTRIENT_LABEL[i]} quantity / ${NUTRIENT_LABEL[j]} price`, r.demand.elasticities[i][j], r.demand.elasticitySource);
-  for (const s of r.scenarios) {
-    const sc = { scenario: s.name };
-    for (const n of NUTRIENTS) if (s.priceChanges[n]) add('scenario', `${NUTRIENT_LABEL[n]} price change`, s.priceChanges[n]!, '%', sc);
-    for (const n of NUTRIENTS) add('demand', NUTRIENT_LABEL[n], s.demand[n], u.nutrient(n), sc);
-    add('demand', 'P (element)', s.demandElements.p, `${u.mass} P`, sc);
-    add('demand', 'K (element)', s.demandElements.k, `${u.mass} K`, sc);
-    if (s.modelDemand) for (const n of NUTRIENTS) add('demand', `${NUTRIENT_LABEL[n]} (model re-evaluated)`, s.modelDemand[n], u.nutrient(n), sc);
-    for (const l of s.mix.lines) {
-      const pc = { ...sc, product: l.name };
-      add('plan', 'grade', l.grade, 'N-P2O5-K2O', pc);
-      add('plan', 'price', l.pricePerT, u.price, pc);
-      add('plan', 'least-cost quantity', l.lpTonnes, u.product, pc);
-      add('plan', 'lots', l.lots, `lots of ${clean(l.lotT)} ${u.product}`, pc);
-      add('plan', 'quantity bought', l.tonnes, u.product, pc);
-      add('plan', 'cost', l.cost, r.currency, pc);
-    }
-    for (const n of NUTRIENTS) add('supply', NUTRIENT_LABEL[n], s.mix.supply[n], u.nutrient(n), sc);
-    for (const n of NUTRIENTS) add('over-supply', NUTRIENT_LABEL[n], s.mix.overSupply[n], u.nutrient(n), sc);
-    for (const m of s.cash.months) {
-      const mc = { ...sc, month: m.month };
-      add('cash', 'booked', m.bookedTonnes, u.product, mc);
-      add('cash', 'prepaid', m.prepaid, r.currency, mc);
-      add('cash', 'on terms', m.onTerms, r.currency, mc);
-      add('cash', 'cash out', m.cash, r.currency, mc);
-      add('cash', 'cumulative', m.cumulative, r.currency, mc);
-    }
-    add('totals', 'least-cost mix cost', s.totals.lpCost, r.currency, sc);
-    add('totals', 'cost in lots', s.totals.cost, r.currency, sc);
-    add('totals', 'prepayment discount', s.totals.prepayDiscount, r.currency, sc);
-    add('totals', 'cash', s.totals.cash, r.currency, sc);
-    if (s.cash.totals.financingCost !== null) add('totals', 'financing cost of prepaying', s.cash.totals.financingCost, r.currency, sc);
-    add('totals', 'change from base', s.totals.changeFromBasePct, '%', sc);
-  }
-  r.notes.forEach((n) => add('note', 'method', n));
-  r.warnings.forEach((w) => add('warning', 'warning', w));
-  return rows;
+  const cur = r.currency;
+  const head: (string | number | null)[][] = [
+    ['Fertiliser budget', h.name],
+    ['Source', sourceLine(r)],
+    ['Saved', `${savedWords(h.updatedAt)}${h.updatedBy ? ` by ${h.updatedBy}` : ''}`],
+    ['Money', `${cur}, rounded to whole units (the XLSX export keeps full precision)`],
+    ['Quantities', r.unitSystem === 'us' ? 'short tons of product, rounded to 0.1' : 'tonnes of product, rounded to 0.1'],
+    ...r.cautions.map((c) => ['Caution', c]),
+  ];
+
+  const months = [...new Set(r.scenarios.flatMap((s) => s.cash.months.map((m) => m.month)))].sort();
+  const cashHead = ['Month', ...r.scenarios.flatMap((s) => [`${s.name}: booked (${u.product})`, `${s.name}: paid in the month (${cur})`, `${s.name}: paid to date (${cur})`])];
+  const cashRows = months.map((month) => [
+    monthWords(month),
+    ...r.scenarios.flatMap((s) => {
+      const m = s.cash.months.find((x) => x.month === month);
+      const before = s.cash.months.filter((x) => x.month <= month).at(-1);
+      return [tenth(m?.bookedTonnes ?? 0), whole(m?.cash ?? 0), whole(before?.cumulative ?? 0)];
+    }),
+  ]);
+  const cashTotal = ['Total', ...r.scenarios.flatMap((s) => [tenth(s.cash.months.reduce((a, m) => a + m.bookedTonnes, 0)), whole(s.totals.cash), whole(s.totals.cash)])];
+
+  const products = [...new Set(r.scenarios.flatMap((s) => s.mix.lines.map((l) => l.name)))];
+  const grade = (name: string) => r.scenarios.flatMap((s) => s.mix.lines).find((l) => l.name === name)?.grade ?? '';
+  const buyHead = ['Product', 'Grade (N-P2O5-K2O)', ...r.scenarios.flatMap((s) => [`${s.name}: price (${u.price})`, `${s.name}: bought (${u.product})`, `${s.name}: cost (${cur})`])];
+  const buyRows = products.map((name) => [
+    name,
+    grade(name),
+    ...r.scenarios.flatMap((s) => {
+      const l = s.mix.lines.find((x) => x.name === name);
+      const price = s.productPrices.find((p) => p.name === name)?.pricePerT ?? null;
+      return [price === null ? null : whole(price), tenth(l?.tonnes ?? 0), whole(l?.cost ?? 0)];
+    }),
+  ]);
+  const buyTotal = ['Total', '', ...r.scenarios.flatMap((s) => [null, tenth(s.mix.lines.reduce((a, l) => a + l.tonnes, 0)), whole(s.totals.cost)])];
+  const totals = [
+    ['Scenario', `Cost in delivery lots (${cur})`, `Prepayment discount (${cur})`, `Cash paid (${cur})`, 'Change from base (%)'],
+    ...r.scenarios.map((s) => [s.name, whole(s.totals.cost), whole(s.totals.prepayDiscount), whole(s.totals.cash), Math.round(s.totals.changeFromBasePct * 10) / 10 || 0]),
+  ];
+  const notes = [...r.warnings.map((w) => ['Warning', w]), ...r.notes.map((n) => ['Method', n])];
+  return [head, [['Cash flow by month'], cashHead, ...cashRows, cashTotal], [['Purchases by product'], buyHead, ...buyRows, buyTotal], [['Totals by scenario'], ...totals], ...(notes.length ? [notes] : [])];
 }
 
 export function budgetCsv(h: BudgetExportHeader, r: DisplayedBudgetResult): string {
-  return toCsv(budgetCsvRows(h, r), CSV_COLUMNS);
+  return toCsvBlocks(budgetCsvTables(h, r));
 }
 
 const MONEY = '#,##0.00';

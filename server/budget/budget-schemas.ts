@@ -39,6 +39,10 @@ export const budgetSourceSchema = z.discriminatedUnion('kind', [
     outlookVersionId: idSchema,
     /** The outlook's price scenario to start from (low, base, high). */
     scenario: z.string().trim().min(1).max(40).default('base'),
+    /** 'outlook': the products cost the scenario's nutrient prices; 'list': list prices, the gap warned of. */
+    pricing: z.enum(['outlook', 'list']).default('outlook'),
+    /** Compute the outlook's other scenarios (low, high) beside the chosen one. */
+    sideBySide: z.boolean().default(true),
     items: z.strictObject({ nitrogen: itemCode, phosphate: itemCode, potash: itemCode }).partial().optional(),
   }),
 ]);

@@ -12,6 +12,7 @@ import { getSettings } from '../settings/settings-service.js';
 import { getRun } from '../models/models-service.js';
 import { isEstimationInputError, type FitResult, type NetputDataset } from '../estimation/index.js';
 import type { UnitSystem } from '../../shared/units.js';
+import { monthsOutsideInputs, monthWords, seasonWindows, type SeasonCalendar } from '../../shared/season-calendar.js';
 import type { BudgetInput, BudgetSource } from './budget-schemas.js';
 import { computeBudget, type BudgetResult, type ProductCopy, type ResolvedSource } from './budget-compute.js';
 import { inUnits } from './budget-units.js';
@@ -121,9 +122,22 @@ interface StoredInputs {
   options: BudgetInput['options'];
 }
 
+/** A warning when the booking months fall outside the season's input months in the co-op's calendar. */
+function calendarWarnings(season: unknown, plan: BudgetInput['bookingPlan'], calendar: SeasonCalendar): string[] {
+  if (typeof season !== 'number') return [];
+  const outside = monthsOutsideInputs(calendar, season, plan.months.map((m) => m.month));
+  if (!outside.length) return [];
+  const w = seasonWindows(calendar, season);
+  return [
+    `Booked in ${outside.map(monthWords).join(', ')}: outside the months the co-op's season calendar gives for buying season ${w.season}'s inputs (${monthWords(w.inputs.from)} – ${monthWords(w.inputs.to)}); check the season or the booking plan`,
+  ];
+}
+
 async function computeStored(db: Db, inputs: StoredInputs, currency: string): Promise<BudgetResult> {
+  const { seasonCalendar } = await getSettings(db);
   return asUnprocessable(async () => {
     const resolved = await resolveSource(db, inputs.source);
+    resolved.warnings.push(...calendarWarnings(resolved.detail['season'], inputs.bookingPlan, seasonCalendar));
     return computeBudget(
       {
         currency,

@@ -72,9 +72,11 @@ export function inUnits(result: BudgetResult, system: UnitSystem): DisplayedBudg
         potash: result.referencePrices.values.potash === null ? null : perLb(result.referencePrices.values.potash),
       },
     },
+    pricing: result.pricing ? { ...result.pricing, gaps: result.pricing.gaps.map((g) => ({ ...g, list: perLb(g.list), target: perLb(g.target), gap: perLb(g.gap) })) } : result.pricing,
     products: result.products.map((p) => ({
       ...p,
       pricePerT: perSt(p.pricePerT),
+      ...(p.listPricePerT === undefined ? {} : { listPricePerT: perSt(p.listPricePerT) }),
       lotT: st(p.lotT),
       costPerKg: {
         nitrogen: p.costPerKg.nitrogen === null ? null : perLb(p.costPerKg.nitrogen),

@@ -99,9 +99,25 @@ export async function resolveOutlook(db: Db, source: Extract<BudgetSource, { kin
     };
   } else warnings.push('The published outlook has no farm parts, so the scenarios hold the nutrient demand fixed');
 
+  // Every scenario of the outlook, with its published demand and its nutrient prices per kg.
+  const outlookScenarios = snap.scenarios.map((sc) => {
+    const d = {} as NutrientAmounts;
+    const np: Partial<Record<Nutrient, number>> = {};
+    for (const n of NUTRIENTS) {
+      const q = snap.projection.coop.items.find((x) => x.item === nutrientItems[n].code)?.scenarios[sc.name];
+      d[n] = (q?.point ?? demand[n] / nutrientItems[n].kgPerUnit) * nutrientItems[n].kgPerUnit;
+      if (sc.prices[nutrientItems[n].code] !== undefined) np[n] = sc.prices[nutrientItems[n].code]! / nutrientItems[n].kgPerUnit;
+    }
+    return { name: sc.name, demand: d, nutrientPrices: np };
+  });
+
   return {
     kind: 'outlook',
     demand,
+    outlookScenarios,
+    // Budgets stored before these options existed bought at list prices with one scenario.
+    pricing: source.pricing === 'outlook' ? 'source' : 'list',
+    sideBySide: source.sideBySide ?? false,
     elasticities,
     elasticitySource: elasticities ? 'outlook' : 'none',
     nutrientPrices,

@@ -97,3 +97,43 @@ export function productPriceChangePct(product: Graded, reference: Record<Nutrien
   const w = valueShares(product, reference);
   return NUTRIENTS.reduce((a, n) => a + w[n] * (changes[n] ?? 0), 0);
 }
+
+/** Per nutrient: the product list's own price per kg, a target (e.g. an outlook scenario's), and their gap. */
+export interface PriceGap {
+  nutrient: Nutrient;
+  list: number;
+  target: number;
+  /** target − list, per kg of nutrient. */
+  gap: number;
+}
+
+/**
+ * Reprices products so that the nutrients they carry cost the target prices per kg: with the list's
+ * own prices r_j (referencePricesFromProducts) the nutrient changes are Δ_j = 100 (t_j / r_j − 1)
+ * and each product moves by its value-weighted Δ (productPriceChangePct). The cheapest
+ * single-nutrient product then costs exactly t_j per kg; dearer forms keep their premium in %.
+ * A nutrient without a target or without a list price is left as listed.
+ */
+export function alignToNutrientPrices<P extends Graded & { pricePerT: number }>(
+  products: P[],
+  target: Partial<Record<Nutrient, number>>,
+): { products: (P & { changePct: number })[]; changes: PriceChanges; gaps: PriceGap[] } {
+  const list = referencePricesFromProducts(products);
+  const changes: PriceChanges = {};
+  const gaps: PriceGap[] = [];
+  for (const n of NUTRIENTS) {
+    const r = list[n];
+    const t = target[n];
+    if (r === null || !(r > 0) || t === undefined || !(t > 0)) continue;
+    changes[n] = 100 * (t / r - 1);
+    gaps.push({ nutrient: n, list: r, target: t, gap: t - r });
+  }
+  return {
+    products: products.map((p) => {
+      const changePct = productPriceChangePct(p, list, changes);
+      return { ...p, pricePerT: p.pricePerT * (1 + changePct / 100), changePct };
+    }),
+    changes,
+    gaps,
+  };
+}

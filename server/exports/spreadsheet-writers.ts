@@ -80,3 +80,15 @@ export async function toXlsx(rows: readonly SheetRow[], columns: readonly SheetC
   });
   return Buffer.from(await wb.xlsx.writeBuffer());
 }
+
+/**
+ * Several small tables in one CSV file, each a list of rows (its own heading row first), separated
+ * by an empty line: how a report for readers (not for re-import) is laid out. Same escaping and line
+ * ends as toCsv.
+ */
+export function toCsvBlocks(blocks: readonly (readonly (string | number | null)[])[][]): string {
+  const body = blocks
+    .map((rows) => Papa.unparse(rows.map((r) => r.map((v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v))) as unknown[][], { escapeFormulae: FORMULA_START, newline: '\r\n' }))
+    .join('\r\n\r\n');
+  return `\uFEFF${body}\r\n`;
+}

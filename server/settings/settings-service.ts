@@ -1,6 +1,7 @@
 import { eq } from 'drizzle-orm';
 import type { CoopSettings } from '../../shared/api-types.js';
 import { settingsSchema } from '../../shared/schemas.js';
+import { DEFAULT_SEASON_CALENDAR } from '../../shared/season-calendar.js';
 import type { Db } from '../db/client.js';
 import { settings } from '../db/schema/index.js';
 import { recordAudit } from '../audit/audit-repository.js';
@@ -12,6 +13,7 @@ export const DEFAULT_SETTINGS: CoopSettings = {
   decimalMark: 'point',
   storageCapacityT: 0,
   handlingCapacityTPerDay: 0,
+  seasonCalendar: DEFAULT_SEASON_CALENDAR,
 };
 
 export async function getSettings(db: Db): Promise<CoopSettings> {

@@ -194,17 +194,32 @@ describe('budgets', () => {
     const { stored, recomputed } = await recomputeStoredBudget(t.database.db, b.id);
     expect(recomputed).toEqual(stored);
 
-    // CSV: cautions first, every scenario's plan, formula-safe.
+    // CSV for the board: heading with the cautions, then a cash-flow table (a row per month) and a
+    // purchase table (a row per product), every scenario side by side, money in whole euros.
     const csv = await planner.get(`/api/budgets/${b.id}/export?format=csv&units=metric`);
     expect(csv.status).toBe(200);
     expect(csv.headers['content-type']).toMatch(/^text\/csv/);
     expect(csv.headers['content-disposition']).toBe(`attachment; filename="budget-${b.id}-season-2026-27-fertiliser.csv"`);
-    const rows = Papa.parse<Record<string, string>>(csv.text.replace(/^\uFEFF/, ''), { header: true, skipEmptyLines: true }).data;
-    expect(rows.slice(0, 4).map((x) => x.section)).toEqual(['caution', 'caution', 'caution', 'caution']);
-    expect(rows[0]!.value).toBe(r.cautions[0]);
-    const bought = rows.find((x) => x.section === 'plan' && x.scenario === 'N +20 %' && x.product === 'Urea' && x.measure === 'quantity bought')!;
-    expect(Number(bought.value)).toBe(line(up, 'Urea').tonnes);
-    expect(rows.filter((x) => x.section === 'totals' && x.measure === 'cash').map((x) => x.scenario)).toEqual(['Base', 'N +20 %', 'N −20 %']);
+    const cells = Papa.parse<string[]>(csv.text.replace(/^\uFEFF/, ''), { skipEmptyLines: true }).data;
+    expect(cells[0]).toEqual(['Fertiliser budget', 'Season 2026/27 fertiliser']);
+    expect(cells.filter((c) => c[0] === 'Caution').map((c) => c[1])).toEqual(r.cautions);
+    const at = (title: string) => cells.findIndex((c) => c[0] === title);
+    const cashHead = cells[at('Cash flow by month') + 1]!;
+    expect(cashHead.slice(0, 4)).toEqual(['Month', 'Base: booked (t)', 'Base: paid in the month (EUR)', 'Base: paid to date (EUR)']);
+    const cashRows = cells.slice(at('Cash flow by month') + 2, at('Purchases by product'));
+    expect(cashRows.map((c) => c[0])).toEqual([...base.cash.months.map((m: { month: string }) => ({ '2026-08': 'Aug 2026', '2026-09': 'Sep 2026', '2026-10': 'Oct 2026', '2026-11': 'Nov 2026', '2026-12': 'Dec 2026', '2027-01': 'Jan 2027', '2027-02': 'Feb 2027', '2027-03': 'Mar 2027' })[m.month]), 'Total']);
+    // Whole euros: every money cell is an integer, and the month's cash is the rounded engine figure.
+    expect(cashRows[0]![2]).toBe(String(Math.round(base.cash.months[0].cash)));
+    expect(cashRows.at(-1)![2]).toBe(String(Math.round(base.totals.cash)));
+    const buyHead = cells[at('Purchases by product') + 1]!;
+    expect(buyHead.slice(0, 5)).toEqual(['Product', 'Grade (N-P2O5-K2O)', 'Base: price (EUR/t)', 'Base: bought (t)', 'Base: cost (EUR)']);
+    const ureaRow = cells.slice(at('Purchases by product') + 2).find((c) => c[0] === 'Urea')!;
+    expect(ureaRow.slice(1, 5)).toEqual(['46-0-0', '475', String(Math.round(line(base, 'Urea').tonnes * 10) / 10), String(Math.round(line(base, 'Urea').cost))]);
+    expect(cells[at('Totals by scenario') + 1]![0]).toBe('Scenario');
+    expect(cells.slice(at('Totals by scenario') + 2, at('Totals by scenario') + 5).map((c) => c[0])).toEqual(['Base', 'N +20 %', 'N −20 %']);
+    // No unrounded figure: whole euros, tonnes to 0.1.
+    for (const c of [...cashRows, ...cells.slice(at('Purchases by product') + 2, at('Totals by scenario'))]) for (const v of c.slice(2)) expect(v).toMatch(/^(-?\d+(\.\d)?)?$/);
+    expect(cells.length).toBeLessThan(60);
 
     // XLSX: the sheets, headed by the cautions.
     const xlsx = await planner.get(`/api/budgets/${b.id}/export?format=xlsx`).buffer(true).parse((response, cb) => {
@@ -333,10 +348,12 @@ describe('budgets', () => {
     const version = (await treasurer.get(`/api/outlooks/versions/${pub.body.id}`)).body;
     const published = (code: string) => version.projection.coop.items.find((x: { item: string }) => x.item === code).scenarios.base;
 
+    // The default season calendar: season 2026/27 begins with the 2026 harvest, its inputs are bought Aug 2025 – Mar 2026.
+    const seasonPlan = { ...bookingPlan, months: [{ month: '2025-08', share: 0.4, prepay: true }, { month: '2025-10', share: 0.4, prepay: true }, { month: '2026-01', share: 0.2, prepay: false }], deliveryMonth: '2026-02' };
     const res = await treasurer.post('/api/budgets?units=metric').send({
       name: 'From the published outlook',
       source: { kind: 'outlook', outlookVersionId: pub.body.id },
-      bookingPlan,
+      bookingPlan: seasonPlan,
       scenarios: [{ name: 'N +20 %', priceChanges: { nitrogen: 20 } }],
     });
     expect(res.status).toBe(201);
@@ -352,12 +369,32 @@ describe('budgets', () => {
     // The model re-evaluated at the outlook's own farms agrees with the published point, so no warning.
     expect(r.warnings).toEqual([]);
     expect(r.demand.elasticitySource).toBe('outlook');
-    const up = r.scenarios[1];
+    // Low, base and high side by side; the products cost each scenario's nutrient prices.
+    expect(r.scenarios.map((s: { name: string }) => s.name)).toEqual(['Base', 'Outlook low', 'Outlook high', 'N +20 %']);
+    const nPrice = (name: string) => version.scenarios.find((s: { name: string }) => s.name === name).prices.nitrogen;
+    const urea = (row: string) => r.scenarios.find((s: { name: string }) => s.name === row).productPrices.find((p: { name: string }) => p.name === 'Urea').pricePerT;
+    expect(urea('Base')).toBeCloseTo(460 * nPrice('base'), 6);
+    expect(urea('Outlook low')).toBeCloseTo(460 * nPrice('low'), 6);
+    expect(urea('Outlook high')).toBeCloseTo(460 * nPrice('high'), 6);
+    expect(r.scenarios[1].demand.nitrogen).toBe(version.projection.coop.items.find((x: { item: string }) => x.item === 'nitrogen').scenarios.low.point);
+    expect(r.pricing.basis).toBe('outlook');
+    const up = r.scenarios[3];
     expect(up.demand.nitrogen / r.demand.base.nitrogen).toBeCloseTo(1.2 ** r.demand.elasticities.nitrogen.nitrogen, 10);
     expect(Math.abs(up.demand.nitrogen / up.modelDemand.nitrogen - 1)).toBeLessThan(0.03);
 
     const csv = await treasurer.get(`/api/budgets/${res.body.id}/export?format=csv`);
     expect(csv.text).toContain('Published outlook');
+    // At list prices instead: the gap per kg of N is named.
+    const atList = await treasurer.post('/api/budgets/preview?units=metric').send({ name: 'x', source: { kind: 'outlook', outlookVersionId: pub.body.id, pricing: 'list', sideBySide: false }, bookingPlan });
+    expect(atList.status).toBe(200);
+    const listN = Math.min(...products.filter((p) => p.nPct > 0 && p.p2o5Pct === 0 && p.k2oPct === 0).map((p) => p.pricePerT / (p.nPct * 10)));
+    const gap = nPrice('base') - listN;
+    expect(atList.body.result.warnings.join('\n')).toContain(`N ${listN.toFixed(2)} EUR/kg N on the product list, ${nPrice('base').toFixed(2)} in the outlook's base scenario (gap ${gap >= 0 ? '+' : '−'}${Math.abs(gap).toFixed(2)} EUR/kg N)`);
+    expect(atList.body.result.scenarios.map((s: { name: string }) => s.name)).toEqual(['Base']);
+    // Booked a year late for this season under the calendar: said so.
+    expect(atList.body.result.warnings).toContain(
+      "Booked in Aug 2026, Oct 2026, Jan 2027: outside the months the co-op's season calendar gives for buying season 2026/27's inputs (Aug 2025 – Mar 2026); check the season or the booking plan",
+    );
     const wrong = await treasurer.post('/api/budgets').send({ name: 'x', source: { kind: 'outlook', outlookVersionId: pub.body.id, scenario: 'medium' }, bookingPlan });
     expect(wrong.status).toBe(422);
     expect(wrong.body.error.details).toEqual([{ path: 'source.scenario', message: 'The outlook has no "medium" scenario (it has low, base, high)' }]);

@@ -1,3 +1,4 @@
+import { DEFAULT_SEASON_CALENDAR } from '../../shared/season-calendar.js';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { agent, signedIn, startTestApp, type TestApp } from './test-app.js';
 
@@ -112,7 +113,17 @@ describe('settings', () => {
     const body = { coopName: 'Larkfield Co-op', currency: 'EUR', unitSystem: 'metric', decimalMark: 'comma', storageCapacityT: 61000, handlingCapacityTPerDay: 2400 };
     expect((await admin.put('/api/settings').send(body)).status).toBe(200);
     const planner = await signedIn(t.app, 'planner@example.org');
-    expect((await planner.get('/api/settings')).body).toEqual(body);
+    // A co-op that saved its settings before the season calendar existed reads the default calendar.
+    expect((await planner.get('/api/settings')).body).toEqual({ ...body, seasonCalendar: DEFAULT_SEASON_CALENDAR });
+    // Season 2027/28 named for the harvest it grows in 2028: inputs Sep 2027 – Apr 2028, delivery Jul – Aug 2028.
+    const cropYear = { inputsFrom: { month: 9, year: 0 }, inputsTo: { month: 4, year: 1 }, cropFrom: { month: 7, year: 1 }, cropTo: { month: 8, year: 1 } };
+    expect((await admin.put('/api/settings').send({ ...body, seasonCalendar: cropYear })).status).toBe(200);
+    expect((await planner.get('/api/settings')).body.seasonCalendar).toEqual(cropYear);
+    const backwards = await admin.put('/api/settings').send({ ...body, seasonCalendar: { ...cropYear, cropTo: { month: 8, year: -1 } } });
+    expect(backwards.status).toBe(400);
+    expect(backwards.body.error.details).toEqual([
+      { path: 'body.seasonCalendar.cropTo', message: 'The last delivery month comes before the first' },
+    ]);
     expect((await planner.put('/api/settings').send(body)).status).toBe(403);
     const bad = await admin.put('/api/settings').send({ ...body, currency: 'euro' });
     expect(bad.status).toBe(400);

@@ -22,6 +22,7 @@ import { ACCESS, roleAllows } from '../core/access';
 import { ApiRequestError, errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { SettingsStore } from '../core/settings-store';
+import { DEFAULT_SEASON_CALENDAR } from '../../../shared/season-calendar';
 import { CautionNote } from '../shared/caution-note';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
 import { BudgetApi, exportUrl } from './budget-api';
@@ -75,8 +76,8 @@ const STANDING_CAUTIONS = [
 function blankValue(): BudgetFormValue {
   return {
     name: '',
-    source: { kind: 'manual', outlookVersionId: null, outlookScenario: 'base', runId: null, season: null, nitrogen: 0, phosphate: 0, potash: 0 },
-    booking: defaultBooking(new Date().getFullYear()),
+    source: { kind: 'manual', outlookVersionId: null, outlookScenario: 'base', outlookPricing: 'outlook', sideBySide: true, runId: null, season: null, nitrogen: 0, phosphate: 0, potash: 0 },
+    booking: defaultBooking(new Date().getFullYear() + 1),
     scenarios: [],
     products: [],
     lotRule: 'round-up',
@@ -143,6 +144,8 @@ export class BudgetEditor {
   readonly #fb = inject(NonNullableFormBuilder);
   readonly #destroyRef = inject(DestroyRef);
   readonly #settings = inject(SettingsStore);
+  /** The co-op's season calendar: a new budget books in its season's input months. */
+  readonly #calendar = () => untracked(() => this.#settings.settings()?.seasonCalendar) ?? DEFAULT_SEASON_CALENDAR;
   protected readonly units = inject(BudgetUnitsStore);
 
   // inputs
@@ -503,17 +506,19 @@ export class BudgetEditor {
       kind,
       outlookVersionId: version?.id ?? null,
       outlookScenario: 'base',
+      outlookPricing: 'outlook',
+      sideBySide: true,
       runId: run?.id ?? null,
       season: null,
       nitrogen: kind === 'manual' ? null : 0,
       phosphate: kind === 'manual' ? null : 0,
       potash: kind === 'manual' ? null : 0,
     };
-    const year = (kind === 'outlook' ? seasonStartYear(version?.season) : null) ?? new Date().getFullYear();
+    const year = (kind === 'outlook' ? seasonStartYear(version?.season) : null) ?? new Date().getFullYear() + 1;
     return {
       name: this.#suggestedName(source),
       source,
-      booking: defaultBooking(year),
+      booking: defaultBooking(year, this.#calendar()),
       scenarios: [],
       products: productValuesFromList(list, untracked(() => this.system())),
       lotRule: 'round-up',
@@ -529,6 +534,12 @@ export class BudgetEditor {
     return 'Fertiliser purchases';
   }
 
+  protected setOutlookPricing(fromOutlook: boolean): void {
+    const c = this.form.controls.source.controls.outlookPricing;
+    c.setValue(fromOutlook ? 'outlook' : 'list');
+    c.markAsDirty();
+  }
+
   /** On a new budget, an untouched name and booking plan follow the source chosen. */
   #suggestNameAndBooking(): void {
     if (!this.formReady() || !this.isNew()) return;
@@ -538,8 +549,8 @@ export class BudgetEditor {
     const booking = this.form.controls.booking;
     if (booking.pristine && source.kind === 'outlook') {
       const year = seasonStartYear(this.versionOptions().find((o) => o.id === source.outlookVersionId)?.season);
-      if (year !== null && !booking.controls.months.at(0)?.controls.month.value.startsWith(String(year))) {
-        const plan = defaultBooking(year);
+      const plan = year === null ? null : defaultBooking(year, this.#calendar());
+      if (plan && booking.controls.months.at(0)?.controls.month.value !== plan.months[0]!.month) {
         resetArray(booking.controls.months, plan.months, (v) => monthGroup(this.#fb, v));
         booking.patchValue(plan, { emitEvent: false });
       }

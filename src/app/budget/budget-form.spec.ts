@@ -69,12 +69,20 @@ describe('formValueFromStored and toBudgetInput', () => {
 });
 
 describe('bookingProblems', () => {
-  it('should accept the starting pattern: 40 + 40 + 20 % before a February delivery', () => {
-    expect(bookingProblems(defaultBooking(2026))).toEqual([]);
+  it('should accept the starting pattern: 40 + 40 + 20 % before a February delivery, in the season calendar\'s input months', () => {
+    // Default calendar: season 2027/28 begins with the 2027 harvest; its inputs are bought Aug 2026 – Mar 2027.
+    const plan = defaultBooking(2027);
+    expect(plan.months.map((m) => [m.month, m.sharePct, m.prepay])).toEqual([
+      ['2026-08', 40, true],
+      ['2026-10', 40, true],
+      ['2027-01', 20, false],
+    ]);
+    expect(plan.deliveryMonth).toBe('2027-02');
+    expect(bookingProblems(plan)).toEqual([]);
   });
 
   it('should say what is wrong with shares, order and delivery', () => {
-    const plan = defaultBooking(2026);
+    const plan = defaultBooking(2027);
     plan.months[2]!.sharePct = 10;
     plan.months[1]!.month = '2026-07';
     plan.deliveryMonth = '2026-12';

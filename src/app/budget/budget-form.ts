@@ -1,5 +1,6 @@
 import { type AbstractControl, type FormArray, type FormGroup, type NonNullableFormBuilder, type ValidationErrors, Validators } from '@angular/forms';
 import type { UnitSystem } from '../../../shared/units';
+import { DEFAULT_SEASON_CALENDAR, defaultBookingMonths, type SeasonCalendar } from '../../../shared/season-calendar';
 import { massFromShown, massToShown, pricePerTFromShown, pricePerTToShown, productFromShown, productToShown } from './budget-units';
 import type {
   BookingPlanInput,
@@ -27,6 +28,10 @@ export interface SourceValue {
   kind: SourceKind;
   outlookVersionId: number | null;
   outlookScenario: string;
+  /** Products cost the outlook scenario's nutrient prices ('outlook') or the list's ('list'). */
+  outlookPricing: 'outlook' | 'list';
+  /** The outlook's other scenarios computed beside the chosen one. */
+  sideBySide: boolean;
   runId: number | null;
   /** First calendar year of the season a model run projects; empty: the run's last season + 1. */
   season: number | null;
@@ -96,22 +101,13 @@ export const emptyPreserved = (): Preserved => ({ sourceExtras: {}, productPrice
 // --- defaults -----------------------------------------------------------------------------------
 
 /**
- * A starting booking pattern (common practice, no source): 40 % booked in August and 40 % in
- * October of the season's first year, both prepaid; the last 20 % in January on terms, delivered
- * in February. The treasurer replaces it with the co-op's own programme; no discount is assumed.
+ * A starting booking pattern inside the season's input window of the co-op's season calendar
+ * (shared/season-calendar.ts): 40 % in the window's first month and 40 % two months later, both
+ * prepaid; 20 % on terms near its end. The treasurer replaces it with the co-op's own programme.
  */
-export function defaultBooking(startYear: number): BookingValue {
-  return {
-    months: [
-      { month: `${startYear}-08`, sharePct: 40, prepay: true },
-      { month: `${startYear}-10`, sharePct: 40, prepay: true },
-      { month: `${startYear + 1}-01`, sharePct: 20, prepay: false },
-    ],
-    prepayDiscountPct: 0,
-    paymentTermsDays: 30,
-    deliveryMonth: `${startYear + 1}-02`,
-    financingRatePct: null,
-  };
+export function defaultBooking(startYear: number, calendar: SeasonCalendar = DEFAULT_SEASON_CALENDAR): BookingValue {
+  const plan = defaultBookingMonths(calendar, startYear);
+  return { months: plan.months, prepayDiscountPct: 0, paymentTermsDays: 30, deliveryMonth: plan.deliveryMonth, financingRatePct: null };
 }
 
 /** "2026/27" → 2026; null when the label has no leading year. */
@@ -182,6 +178,9 @@ export function formValueFromStored(name: string, stored: StoredInputs, list: Fe
     kind: s.kind,
     outlookVersionId: s.kind === 'outlook' ? s.outlookVersionId : null,
     outlookScenario: s.kind === 'outlook' ? (s.scenario ?? 'base') : 'base',
+    // A budget stored before these options bought at list prices, one scenario.
+    outlookPricing: s.kind === 'outlook' ? (s.pricing ?? 'list') : 'outlook',
+    sideBySide: s.kind === 'outlook' ? (s.sideBySide ?? false) : true,
     runId: s.kind === 'model-run' ? s.runId : null,
     season: s.kind === 'model-run' ? (s.season ?? null) : null,
     nitrogen: s.kind === 'manual' ? massToShown(s.nKg, system) : null,
@@ -237,7 +236,14 @@ const same = (a: number, b: number | null) => b !== null && Math.abs(a - b) <= 1
 export function sourceInput(v: SourceValue, system: UnitSystem, extras: Preserved['sourceExtras']): BudgetSource | null {
   if (v.kind === 'outlook') {
     if (v.outlookVersionId === null) return null;
-    return { kind: 'outlook', outlookVersionId: v.outlookVersionId, scenario: v.outlookScenario || 'base', ...(extras.items ? { items: extras.items } : {}) };
+    return {
+      kind: 'outlook',
+      outlookVersionId: v.outlookVersionId,
+      scenario: v.outlookScenario || 'base',
+      pricing: v.outlookPricing,
+      sideBySide: v.sideBySide,
+      ...(extras.items ? { items: extras.items } : {}),
+    };
   }
   if (v.kind === 'model-run') {
     if (v.runId === null) return null;
@@ -398,6 +404,8 @@ export function buildBudgetForm(fb: NonNullableFormBuilder, v: BudgetFormValue) 
       kind: fb.control<SourceKind>(v.source.kind),
       outlookVersionId: fb.control<number | null>(v.source.outlookVersionId),
       outlookScenario: [v.source.outlookScenario],
+      outlookPricing: fb.control<'outlook' | 'list'>(v.source.outlookPricing),
+      sideBySide: [v.source.sideBySide],
       runId: fb.control<number | null>(v.source.runId),
       season: fb.control<number | null>(v.source.season, [Validators.min(1900), Validators.max(2200)]),
       nitrogen: fb.control<number | null>(v.source.nitrogen, nonNegative),

@@ -48,7 +48,7 @@ export type BudgetSource =
       items?: Partial<Record<Nutrient, string>>;
     }
   | { kind: 'manual'; nKg: number; p2o5Kg: number; k2oKg: number; elasticities?: ElasticityMatrix }
-  | { kind: 'outlook'; outlookVersionId: number; scenario?: string; items?: Partial<Record<Nutrient, string>> };
+  | { kind: 'outlook'; outlookVersionId: number; scenario?: string; pricing?: 'outlook' | 'list'; sideBySide?: boolean; items?: Partial<Record<Nutrient, string>> };
 
 export interface BookingMonthInput {
   /** YYYY-MM */

@@ -1,4 +1,5 @@
 import { provideZonelessChangeDetection, signal } from '@angular/core';
+import { DEFAULT_SEASON_CALENDAR } from '../../../shared/season-calendar';
 import { TestBed } from '@angular/core/testing';
 import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
 import { MatButtonToggleHarness } from '@angular/material/button-toggle/testing';
@@ -15,7 +16,7 @@ import { UnitSwitch } from './unit-switch';
  * 907.18474 kg, so 25 t = 25000 / 907.18474 = 27.5577828 (rounded) short tons and EUR 475/t = EUR 430.9127515/short ton.
  */
 
-const settings: CoopSettings = { coopName: 'Demo', currency: 'EUR', unitSystem: 'metric', decimalMark: 'point', storageCapacityT: 1, handlingCapacityTPerDay: 1 };
+const settings: CoopSettings = { coopName: 'Demo', currency: 'EUR', unitSystem: 'metric', decimalMark: 'point', storageCapacityT: 1, handlingCapacityTPerDay: 1, seasonCalendar: DEFAULT_SEASON_CALENDAR };
 
 describe('UnitSwitch', () => {
   beforeEach(() => {
@@ -71,8 +72,8 @@ describe('budget unit conversions', () => {
   it('should re-express typed prices and amounts on a switch, so the same tonnes and prices are sent', () => {
     const value: BudgetFormValue = {
       name: 'Hand case',
-      source: { kind: 'manual', outlookVersionId: null, outlookScenario: 'base', runId: null, season: null, nitrogen: 100_000, phosphate: 46_000, potash: 30_000 },
-      booking: defaultBooking(2026),
+      source: { kind: 'manual', outlookVersionId: null, outlookScenario: 'base', outlookPricing: 'outlook', sideBySide: true, runId: null, season: null, nitrogen: 100_000, phosphate: 46_000, potash: 30_000 },
+      booking: defaultBooking(2027),
       scenarios: [],
       products: [
         { productId: 1, name: 'Urea', grade: '46-0-0', include: true, price: 475, lot: 25, listPricePerT: 475, listLotT: 25, gone: false },

@@ -18,6 +18,7 @@ import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { SeasonStatus } from '../core/season-status';
 import { SettingsStore } from '../core/settings-store';
+import { calendarWords, DEFAULT_SEASON_CALENDAR } from '../../../shared/season-calendar';
 import { ExpectationDialog, type ExpectationDialogData } from './expectation-dialog';
 import { ExpectationsTable, type MissingExpectation } from './expectations-table';
 import { FuturesQuotes } from './futures-quotes';
@@ -90,6 +91,11 @@ export class OutlookEditor {
   protected readonly seasons = httpResource<Season[]>(() => '/api/seasons');
 
   protected readonly d = computed(() => (this.draft.hasValue() ? this.draft.value() : null));
+  /** The season's months in the co-op's calendar, as the budget books them. */
+  protected readonly calendarLine = computed(() => {
+    const d = this.d();
+    return d ? calendarWords(this.#settings.settings()?.seasonCalendar ?? DEFAULT_SEASON_CALENDAR, d.seasonStartYear) : '';
+  });
   protected readonly notFound = computed(() => errorStatus(this.draft.error()) === 404);
   protected readonly problem = computed(() => (this.draft.error() && !this.notFound() ? errorMessage(this.draft.error()) : null));
   protected readonly canWrite = computed(() => this.#auth.hasRole(ACCESS.outlookWrite));

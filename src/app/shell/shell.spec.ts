@@ -1,4 +1,5 @@
 import { provideHttpClient, withInterceptors } from '@angular/common/http';
+import { DEFAULT_SEASON_CALENDAR } from '../../../shared/season-calendar';
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { computed, provideZonelessChangeDetection, signal } from '@angular/core';
 import { TestBed, type ComponentFixture } from '@angular/core/testing';
@@ -16,6 +17,7 @@ const settings: CoopSettings = {
   decimalMark: 'point',
   storageCapacityT: 12000,
   handlingCapacityTPerDay: 400,
+  seasonCalendar: DEFAULT_SEASON_CALENDAR,
 };
 
 function person(role: Role): Me {

@@ -1,4 +1,5 @@
-import { ChangeDetectionStrategy, Component, effect, inject, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, signal } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
 import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatButton } from '@angular/material/button';
 import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
@@ -8,6 +9,7 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import type { CoopSettings } from '../../../../shared/api-types';
 import { settingsSchema } from '../../../../shared/schemas';
+import { calendarWords, DEFAULT_SEASON_CALENDAR, MONTH_NAMES, seasonCalendarSchema, YEAR_WORDS, type MonthRef } from '../../../../shared/season-calendar';
 import { ApiRequestError, errorMessage } from '../../core/api-error';
 import { SettingsStore } from '../../core/settings-store';
 import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
@@ -38,13 +40,38 @@ export class CoopSettingsPage {
   readonly #snackBar = inject(MatSnackBar);
 
   protected readonly resource = this.#store.resource;
-  protected readonly form = inject(NonNullableFormBuilder).group({
+  readonly #fb = inject(NonNullableFormBuilder);
+  readonly #monthRef = (r: MonthRef) => this.#fb.group({ month: [r.month, Validators.required], year: [r.year, Validators.required] });
+  protected readonly form = this.#fb.group({
     coopName: ['', [Validators.required, zodValidator(settingsSchema.shape.coopName)]],
     currency: ['', [Validators.required, zodValidator(settingsSchema.shape.currency)]],
     unitSystem: ['metric' as CoopSettings['unitSystem'], Validators.required],
     decimalMark: ['point' as CoopSettings['decimalMark'], Validators.required],
     storageCapacityT: [0, [Validators.required, zodValidator(settingsSchema.shape.storageCapacityT)]],
     handlingCapacityTPerDay: [0, [Validators.required, zodValidator(settingsSchema.shape.handlingCapacityTPerDay)]],
+    seasonCalendar: this.#fb.group(
+      {
+        inputsFrom: this.#monthRef(DEFAULT_SEASON_CALENDAR.inputsFrom),
+        inputsTo: this.#monthRef(DEFAULT_SEASON_CALENDAR.inputsTo),
+        cropFrom: this.#monthRef(DEFAULT_SEASON_CALENDAR.cropFrom),
+        cropTo: this.#monthRef(DEFAULT_SEASON_CALENDAR.cropTo),
+      },
+      { validators: zodValidator(seasonCalendarSchema) },
+    ),
+  });
+  protected readonly months = MONTH_NAMES.map((name, i) => ({ value: i + 1, name }));
+  protected readonly years = ([-1, 0, 1] as const).map((value) => ({ value, name: YEAR_WORDS[value] }));
+  protected readonly calendarFields = [
+    { key: 'inputsFrom', label: 'Inputs bought from' },
+    { key: 'inputsTo', label: 'Inputs bought until' },
+    { key: 'cropFrom', label: 'Crop delivered from' },
+    { key: 'cropTo', label: 'Crop delivered until' },
+  ] as const;
+  readonly #calendar = toSignal(this.form.controls.seasonCalendar.valueChanges, { initialValue: this.form.controls.seasonCalendar.getRawValue() });
+  /** The calendar read for the coming season, e.g. "Season 2027/28: inputs bought Aug 2026 – Mar 2027, …". */
+  protected readonly calendarExample = computed(() => {
+    const parsed = seasonCalendarSchema.safeParse(this.#calendar());
+    return parsed.success ? calendarWords(parsed.data, new Date().getFullYear() + 1) : null;
   });
   protected readonly saving = signal(false);
   protected readonly failure = signal<string | null>(null);
