@@ -2,6 +2,7 @@ import { isDevMode } from '@angular/core';
 import {
   CellStyleModule,
   ClientSideRowModelModule,
+  ColumnAutoSizeModule,
   CsvExportModule,
   LocaleModule,
   ModuleRegistry,
@@ -36,6 +37,8 @@ ModuleRegistry.registerModules([
   TooltipModule,
   // the grid's words (GRID_WORDS below)
   LocaleModule,
+  // columns as wide as their content (autoSizeStrategy below)
+  ColumnAutoSizeModule,
   ...(isDevMode() ? [ValidationModule] : []),
 ]);
 
@@ -222,6 +225,10 @@ export const GRID_WORDS: Record<string, string> = {
 provideGlobalGridOptions({
   theme: gridTheme,
   localeText: GRID_WORDS,
+  // Every column as wide as its widest figure and its heading, so no number or name is cut; then
+  // widened to fill the grid. Re-applied when the rows change or the grid is resized; a column the
+  // reader has sized by hand keeps its width, and minWidth/maxWidth still bound it.
+  autoSizeStrategy: { type: 'fitCellContents', scaleUpToFitGridWidth: true, continuous: true },
   // The column that picks rows: narrow, in the sheet's own colours, with its own heading for screen readers.
   selectionColumnDef: { width: 48, maxWidth: 48, resizable: false, headerTooltip: 'Pick rows', cellClass: 'np-pick-cell', headerClass: 'np-pick-cell' },
 });
