@@ -109,8 +109,9 @@ describe('readShadowValues', () => {
     );
     // 1.96 × 7.25 = 14.21 → €14; 1.96 × 216.3 = 423.9 → €424.
     expect(lines).toEqual([
-      "One more hectare of land adds about €809 to an average farm's profit for the season at average prices (give or take €14).",
-      "A season of technical change (the trend) adds about €6,162 to an average farm's profit at unchanged prices and land (give or take €424).",
+      "One more hectare of land adds about €809 to an average farm's season return over the modelled variable inputs at average prices (give or take €14).",
+      "A season of technical change (the trend) adds about €6,162 to an average farm's return over the modelled variable inputs at unchanged prices and land (give or take €424).",
+      'Returns over the modelled variable inputs only: revenue from the modelled outputs less the cost of the modelled inputs; land, machinery, buildings and other costs outside the model are not deducted, so this is not a farm profit.',
     ]);
   });
 });
@@ -183,7 +184,8 @@ describe('PlainReadingPanel', () => {
     expect(items).toEqual([
       'In this model a 10 % rise in the price of maize raises maize supply by about 1 % and nitrogen use by about 3 %.',
       'In this model a 10 % rise in the price of nitrogen lowers nitrogen use by about 3 % and maize supply by about 1 %.',
-      "One more hectare of land adds about €500 to an average farm's profit for the season at average prices (give or take €20).",
+      "One more hectare of land adds about €500 to an average farm's season return over the modelled variable inputs at average prices (give or take €20).",
+      'Returns over the modelled variable inputs only: revenue from the modelled outputs less the cost of the modelled inputs; land, machinery, buildings and other costs outside the model are not deducted, so this is not a farm profit.',
     ]);
     expect(el.querySelector('.backtest')?.textContent).toContain('last 3 seasons 2.0 % off on average');
     expect(el.querySelector('np-caution-note')?.textContent).toContain('2010/11 to 2019/20 (120 farm-seasons)');

@@ -3,6 +3,7 @@
  * matrix, the shadow values and the back-test say, sentence by sentence. The numbers come from the
  * fit as stored; this file only turns them into words.
  */
+import { RETURN_NAME, RETURN_NOTE } from '../../../shared/return-words';
 
 export interface ReadingItem {
   code: string;
@@ -135,20 +136,25 @@ function money(value: number, currency: string): string {
   }
 }
 
-/** What one more unit of each fixed factor is worth to a farm's season profit (∂π/∂z), in words. */
+/**
+ * What one more unit of each fixed factor is worth (∂π/∂z) to a farm's season return over the
+ * modelled variable inputs, in words, followed by what that return leaves out.
+ */
 export function readShadowValues(values: ShadowValueInput[], currency: string): string[] {
-  return values.map(({ factor, value, standardError }) => {
+  if (!values.length) return [];
+  const lines = values.map(({ factor, value, standardError }) => {
     const give = `give or take ${money(Z95 * standardError, currency)}`;
     const direction = value >= 0 ? 'adds' : 'takes';
     const amount = money(Math.abs(value), currency);
     if (factor === 'land_ha') {
-      return `One more hectare of land ${direction} about ${amount} ${value >= 0 ? 'to' : 'from'} an average farm's profit for the season at average prices (${give}).`;
+      return `One more hectare of land ${direction} about ${amount} ${value >= 0 ? 'to' : 'from'} an average farm's season ${RETURN_NAME} at average prices (${give}).`;
     }
     if (factor === 'trend') {
-      return `A season of technical change (the trend) ${direction} about ${amount} ${value >= 0 ? 'to' : 'from'} an average farm's profit at unchanged prices and land (${give}).`;
+      return `A season of technical change (the trend) ${direction} about ${amount} ${value >= 0 ? 'to' : 'from'} an average farm's ${RETURN_NAME} at unchanged prices and land (${give}).`;
     }
-    return `One more unit of ${factor} ${direction} about ${amount} ${value >= 0 ? 'to' : 'from'} an average farm's profit for the season (${give}).`;
+    return `One more unit of ${factor} ${direction} about ${amount} ${value >= 0 ? 'to' : 'from'} an average farm's season ${RETURN_NAME} (${give}).`;
   });
+  return [...lines, RETURN_NOTE];
 }
 
 export interface BacktestInput {

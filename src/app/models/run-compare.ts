@@ -1,3 +1,4 @@
+import { RETURN_HEADING } from '../../../shared/return-words';
 import { DatePipe } from '@angular/common';
 import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, input, resource, signal, untracked } from '@angular/core';
@@ -318,6 +319,8 @@ export class RunCompare {
       };
     });
   });
+  protected readonly returnHeading = RETURN_HEADING;
+  protected readonly returnNote = 'revenue less the modelled inputs only; land, machinery and other costs not deducted';
   protected readonly projectionProfit = computed(() => (this.projection.hasValue() ? this.projection.value() : null));
   protected readonly profitDiff = computed(() => {
     const p = this.projectionProfit();
