@@ -36,6 +36,7 @@ interface Scenario {
   demand: { nitrogen: number; phosphate: number; potash: number };
   mix: { lines: Line[] };
   totals: { cash: number; cost: number };
+  productPrices: { name: string; pricePerT: number }[];
 }
 
 interface Result {
@@ -102,6 +103,8 @@ export default async function budget({ base, page }: Harness): Promise<void> {
   if (!treasurerIn) return;
   let budgetId = 0;
   let baseMetric: Scenario | null = null;
+  /** The outlook's other scenarios, computed beside the base in an outlook budget. */
+  let outlookRows: string[] = [];
 
   const opened = await check('Budget is in the navigation and opens the list with a New budget button', async () => {
     await mainNav(page).getByRole('link', { name: 'Budget' }).click();
@@ -122,6 +125,13 @@ export default async function budget({ base, page }: Harness): Promise<void> {
       const { result } = await preview;
       assertEqual(result.source.kind, versions.length ? 'outlook' : 'model-run', 'source of the preview');
       baseMetric = result.scenarios[0]!;
+      outlookRows = result.scenarios.filter((s) => s.name.startsWith('Outlook ')).map((s) => s.name);
+      if (versions.length) {
+        // Low, base and high side by side, each buying at its own nutrient prices: the squeeze (low) never costs less per kg of N.
+        assertEqual(outlookRows, ['Outlook low', 'Outlook high'], 'outlook scenarios beside the base');
+        const ureaPrice = (name: string) => result.scenarios.find((s) => s.name === name)!.productPrices.find((p) => p.name === 'Urea')!.pricePerT;
+        assert(ureaPrice('Outlook low') >= ureaPrice('Base') && ureaPrice('Base') >= ureaPrice('Outlook high'), `urea prices low ${ureaPrice('Outlook low')}, base ${ureaPrice('Base')}, high ${ureaPrice('Outlook high')}`);
+      }
       await page.getByRole('heading', { name: 'Product plan' }).waitFor();
       const urea = baseMetric.mix.lines.find((l) => l.name === 'Urea');
       assert(urea && urea.tonnes > 0, 'the least-cost mix buys no urea');
@@ -168,13 +178,14 @@ export default async function budget({ base, page }: Harness): Promise<void> {
       // Own-price elasticity below zero: dearer nitrogen, less nitrogen bought.
       assert(upMetric.demand.nitrogen < b.demand.nitrogen, 'nitrogen demand did not fall');
       await page.getByRole('columnheader', { name: 'N +20 %' }).waitFor();
+      const k = result.scenarios.findIndex((s) => s.name === 'N +20 %');
       const nRow = await comparisonRow(page, /^Nutrient demand, kg$/, 'N');
       assert(nRow[0] === mass(b.demand.nitrogen), `base N cell ${nRow[0]}, expected ${mass(b.demand.nitrogen)}`);
-      assert(nRow[1]!.startsWith(mass(upMetric.demand.nitrogen)), `N +20 % cell ${nRow[1]}, expected ${mass(upMetric.demand.nitrogen)}`);
-      assert(/−\d/.test(nRow[1]!), `the N +20 % cell shows no fall: ${nRow[1]}`);
+      assert(nRow[k]!.startsWith(mass(upMetric.demand.nitrogen)), `N +20 % cell ${nRow[k]}, expected ${mass(upMetric.demand.nitrogen)}`);
+      assert(/−\d/.test(nRow[k]!), `the N +20 % cell shows no fall: ${nRow[k]}`);
       const cash = await comparisonRow(page, /^Money, EUR$/, 'Cash paid');
       assertEqual(cash[0], money(b.totals.cash, currency), 'base cash');
-      assert(cash[1]!.startsWith(money(upMetric.totals.cash, currency)), `N +20 % cash cell ${cash[1]}`);
+      assert(cash[k]!.startsWith(money(upMetric.totals.cash, currency)), `N +20 % cash cell ${cash[k]}`);
       assert(upMetric.totals.cash !== b.totals.cash, 'the cash did not change');
     }));
 
@@ -188,7 +199,7 @@ export default async function budget({ base, page }: Harness): Promise<void> {
       const saved = nextResult(page, (u, r) => u.pathname === `/api/budgets/${budgetId}` && r.request().method() === 'PUT');
       await page.getByRole('button', { name: 'Save changes' }).click();
       const { result } = await saved;
-      assertEqual(result.scenarios.map((s) => s.name), ['Base', 'N +20 %', '-10 % potash'], 'saved scenarios');
+      assertEqual(result.scenarios.map((s) => s.name), ['Base', ...outlookRows, 'N +20 %', '-10 % potash'], 'saved scenarios');
       await page.getByRole('link', { name: 'Export CSV' }).waitFor();
     });
     await check('the plan and the cash show the N +20 % scenario when chosen, beside the base', async () => {
@@ -239,28 +250,31 @@ export default async function budget({ base, page }: Harness): Promise<void> {
           const values = row.values as unknown[];
           if (values[2] === 'Base') header = values.slice(2);
         });
-        assertEqual(header, ['Base', 'N +20 %', "'-10 % potash"], 'scenario columns (a name starting with "-" is escaped)');
+        assertEqual(header, ['Base', ...outlookRows, 'N +20 %', "'-10 % potash"], 'scenario columns (a name starting with "-" is escaped)');
       });
 
-      await check('the CSV export starts with the caution rows, is in US units and escapes its cells', async () => {
+      await check('the CSV export is a board table: cautions, cash flow by month and purchases by product, in US units, money in whole euros, cells escaped', async () => {
         const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export CSV' }).click()]);
         assert(download.suggestedFilename().endsWith('.csv'), `file name ${download.suggestedFilename()}`);
         const file = join(dir, download.suggestedFilename());
         await download.saveAs(file);
         const text = readFileSync(file, 'utf8').replace(/^\uFEFF/, '');
-        const rows = Papa.parse<Record<string, string>>(text, { header: true, skipEmptyLines: true }).data;
-        assertEqual(rows.slice(0, 4).map((r) => r['section']), ['caution', 'caution', 'caution', 'caution'], 'first sections');
-        assert(rows[1]!['value']!.includes('certified adviser'), 'the second caution does not name the certified adviser');
-        // RFC 4180: a caution holding commas is one quoted cell.
-        assert(text.split('\r\n')[1]!.startsWith('caution,,,,caution,"'), `first data line: ${text.split('\r\n')[1]}`);
-        // OWASP CSV injection: text that starts like a formula gets a leading apostrophe.
-        const potash = rows.filter((r) => r['scenario']?.includes('-10 % potash'));
-        assert(potash.length > 0 && potash.every((r) => r['scenario'] === "'-10 % potash"), `potash scenario cells: ${potash[0]?.['scenario']}`);
+        const cells = Papa.parse<string[]>(text, { skipEmptyLines: true }).data;
+        assertEqual(cells[0]?.[0], 'Fertiliser budget', 'first cell');
+        const cautions = cells.filter((c) => c[0] === 'Caution');
+        assert(cautions.length >= 3 && cautions.some((c) => c[1]!.includes('certified adviser')), 'the cautions do not name the certified adviser');
+        const at = (title: string) => cells.findIndex((c) => c[0] === title);
+        assert(at('Cash flow by month') > 0 && at('Purchases by product') > at('Cash flow by month'), 'the two tables');
+        const cashHead = cells[at('Cash flow by month') + 1]!;
+        assertEqual(cashHead.slice(0, 3), ['Month', 'Base: booked (short ton)', 'Base: paid in the month (EUR)'], 'cash-flow headings');
+        // OWASP CSV injection: a heading that starts like a formula gets a leading apostrophe.
+        assert(cashHead.some((h) => h.startsWith("'-10 % potash: ")), `potash headings: ${cashHead.join(' | ')}`);
         assert(!/(^|,)-10 % potash/m.test(text), 'a cell starts with "-" unescaped');
-        const units = rows.find((r) => r['section'] === 'budget' && r['measure'] === 'units');
-        assertEqual(units?.['value'], 'US customary (lb, short ton)', 'units row');
-        const bought = rows.find((r) => r['section'] === 'plan' && r['scenario'] === 'Base' && r['product'] === 'Urea' && r['measure'] === 'quantity bought');
-        assertEqual(bought?.['unit'], 'short ton', 'unit of urea bought');
+        const months = cells.slice(at('Cash flow by month') + 2, at('Purchases by product'));
+        assert(months.length >= 2 && /^[A-Z][a-z]{2} \d{4}$/.test(months[0]![0]!) && months.at(-1)![0] === 'Total', `month rows: ${months.map((m) => m[0]).join(', ')}`);
+        for (const m of months) for (const v of m.slice(1)) assert(/^(-?\d+(\.\d)?)?$/.test(v), `unrounded cell ${v} in ${m[0]}`);
+        const urea = cells.slice(at('Purchases by product') + 2).find((c) => c[0] === 'Urea');
+        assert(urea !== undefined && /^\d+$/.test(urea[2]!), `urea row: ${urea?.join(' | ')}`);
       });
     } finally {
       rmSync(dir, { recursive: true, force: true });
@@ -270,9 +284,9 @@ export default async function budget({ base, page }: Harness): Promise<void> {
       await page.getByRole('link', { name: 'Fertiliser budgets' }).first().click();
       await page.waitForURL(/\/budget$/);
       // One chip per scenario, so a name holding a comma cannot read as two.
-      const chips = page.getByRole('list', { name: '2 scenarios beside the base' }).first();
+      const chips = page.getByRole('list', { name: `${2 + outlookRows.length} scenarios beside the base` }).first();
       await chips.waitFor();
-      assertEqual((await chips.getByRole('listitem').allInnerTexts()).map((t) => t.trim()), ['N +20 %', '-10 % potash'], 'scenario chips');
+      assertEqual((await chips.getByRole('listitem').allInnerTexts()).map((t) => t.trim()), [...outlookRows, 'N +20 %', '-10 % potash'], 'scenario chips');
     });
     // Leave the next flows in the co-op's default units.
     await page.getByRole('radio', { name: 'Metric (kg, t)' }).click();
