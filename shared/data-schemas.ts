@@ -92,3 +92,4 @@ export const priceIndexSchema = z.object({
   source: z.string().trim().min(1).max(200),
   values: z.array(z.object({ seasonId: idSchema, value: z.number().positive() })).max(500),
 });
+export type PriceIndexInput = z.infer<typeof priceIndexSchema>;

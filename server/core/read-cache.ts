@@ -1,8 +1,12 @@
 import type { RequestHandler, Response } from 'express';
 import type { ChangeTracker } from '../db/change-tracker.js';
 
+/** Answer headers a cached answer carries along (a paged list's total). */
+const KEPT_HEADERS = ['x-total-count'];
+
 interface Entry {
   body: string;
+  headers: [string, string][];
   /** Tables the answer was read from. */
   tables: Set<string>;
   /** Tracker tick when the answer started being computed. */
@@ -40,6 +44,7 @@ export class ReadCache {
         // Most recently used last, so the oldest is dropped first.
         this.entries.delete(key);
         this.entries.set(key, hit);
+        for (const [name, value] of hit.headers) res.setHeader(name, value);
         res.type('application/json').send(hit.body);
         return;
       }
@@ -50,7 +55,8 @@ export class ReadCache {
       const tables = new Set<string>();
       this.capture(res, (body) => {
         if (body.length > MAX_BODY_CHARS || !this.changes.unchangedSince(tables, since)) return;
-        this.entries.set(key, { body, tables, since, storedAt: Date.now() });
+        const headers = KEPT_HEADERS.flatMap((h): [string, string][] => (res.getHeader(h) === undefined ? [] : [[h, String(res.getHeader(h))]]));
+        this.entries.set(key, { body, headers, tables, since, storedAt: Date.now() });
         if (this.entries.size > MAX_ENTRIES) this.entries.delete(this.entries.keys().next().value!);
       });
       this.changes.recordReads(() => next(), tables);

@@ -5,14 +5,15 @@
  *   GET /api/prices/export?format=csv|xlsx   → sendSpreadsheet(res, format, await priceExportRows(db), PRICE_COLUMNS, 'prices')
  *   GET /api/records/export?format=csv|xlsx  → ... recordExportRows(db, reader, farmIds) (records-repository.ts) ..., RECORD_COLUMNS, 'farm-records'
  */
+import { once } from 'node:events';
 import type { Response } from 'express';
-import { asc, eq } from 'drizzle-orm';
+import { and, asc, eq, gt, or } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import { z } from 'zod';
 import type { Db } from '../db/client.js';
 import { deliveryPoints, items, priceObservations, seasons } from '../db/schema/index.js';
 import { PRICE_COLUMNS as SHARED_PRICE_COLUMNS } from '../../shared/price-columns.js';
-import { toCsv, toXlsx, type SheetColumn, type SheetRow } from './spreadsheet-writers.js';
+import { csvHeader, csvLines, streamXlsx, toCsv, toXlsx, type CsvDecimalMark, type SheetColumn, type SheetRow } from './spreadsheet-writers.js';
 
 export const exportFormatSchema = z.object({ format: z.enum(['csv', 'xlsx'], { error: 'Choose format=csv or format=xlsx' }).default('csv') });
 export type ExportFormat = z.infer<typeof exportFormatSchema>['format'];
@@ -35,23 +36,72 @@ export const RECORD_COLUMNS: SheetColumn[] = [
   { key: 'landHa', header: 'land_ha', type: 'number', width: 10 },
 ];
 
+interface PriceExportRow {
+  item: string;
+  season: string;
+  deliveryPoint: string;
+  price: number;
+  unit: string;
+  currency: string;
+  source: string;
+  observedOn: string;
+  [key: string]: unknown;
+}
+
+/** Rows per query of an export: small enough that one query never holds the (PGlite) request thread for long. */
+export const EXPORT_CHUNK = 2000;
+
+/**
+ * Every price in the export's order (season oldest first, item, delivery point, date), read in
+ * chunks: one item and season at a time through the unique index on (item, season, point, date),
+ * at most EXPORT_CHUNK rows per query, continuing after the last point and date read. The table is
+ * never read whole, so a 238,000-price export holds no request up.
+ */
+export async function* priceExportChunks(db: Db, chunk = EXPORT_CHUNK): AsyncGenerator<SheetRow[]> {
+  const seasonRows = await db.select({ id: seasons.id }).from(seasons).orderBy(asc(seasons.startYear), asc(seasons.id));
+  const itemRows = await db.select({ id: items.id }).from(items).orderBy(asc(items.id));
+  for (const s of seasonRows) {
+    for (const it of itemRows) {
+      let after: { point: string; on: string } | null = null;
+      for (;;) {
+        const rows: PriceExportRow[] = await db
+          .select({
+            item: items.code,
+            season: seasons.label,
+            deliveryPoint: deliveryPoints.name,
+            price: priceObservations.price,
+            unit: items.unit,
+            currency: priceObservations.currency,
+            source: priceObservations.source,
+            observedOn: priceObservations.observedOn,
+          })
+          .from(priceObservations)
+          .innerJoin(items, eq(items.id, priceObservations.itemId))
+          .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
+          .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
+          .where(
+            and(
+              eq(priceObservations.itemId, it.id),
+              eq(priceObservations.seasonId, s.id),
+              after ? or(gt(deliveryPoints.name, after.point), and(eq(deliveryPoints.name, after.point), gt(priceObservations.observedOn, after.on))) : undefined,
+            ),
+          )
+          .orderBy(asc(deliveryPoints.name), asc(priceObservations.observedOn))
+          .limit(chunk);
+        if (rows.length) yield rows;
+        if (rows.length < chunk) break;
+        const last = rows[rows.length - 1];
+        after = { point: last.deliveryPoint, on: last.observedOn };
+      }
+    }
+  }
+}
+
+/** Every price in the export's order, in one array (tests; the route streams priceExportChunks). */
 export async function priceExportRows(db: Db): Promise<SheetRow[]> {
-  return db
-    .select({
-      item: items.code,
-      season: seasons.label,
-      deliveryPoint: deliveryPoints.name,
-      price: priceObservations.price,
-      unit: items.unit,
-      currency: priceObservations.currency,
-      source: priceObservations.source,
-      observedOn: priceObservations.observedOn,
-    })
-    .from(priceObservations)
-    .innerJoin(items, eq(items.id, priceObservations.itemId))
-    .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
-    .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
-    .orderBy(asc(seasons.startYear), asc(items.id), asc(deliveryPoints.name), asc(priceObservations.observedOn));
+  const out: SheetRow[] = [];
+  for await (const c of priceExportChunks(db)) out.push(...c);
+  return out;
 }
 
 const MEDIA_TYPE: Record<ExportFormat, string> = {
@@ -59,12 +109,52 @@ const MEDIA_TYPE: Record<ExportFormat, string> = {
   xlsx: 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet',
 };
 
-/** Answers the rows as a download named `netput-<baseName>-<date>.<format>`. */
-export async function sendSpreadsheet(res: Response, format: ExportFormat, rows: SheetRow[], columns: SheetColumn[], baseName: string) {
+export interface ExportOptions {
+  /** The co-op's decimal mark: a CSV then writes 1234,5 with `;` between cells (XLSX keeps real numbers). */
+  decimalMark?: CsvDecimalMark;
+}
+
+function downloadHeaders(res: Response, format: ExportFormat, baseName: string) {
   const fileName = `netput-${baseName}-${DateTime.utc().toISODate()}.${format}`;
-  const body = format === 'csv' ? Buffer.from(toCsv(rows, columns), 'utf8') : await toXlsx(rows, columns, baseName);
   res.setHeader('Content-Type', MEDIA_TYPE[format]);
   res.setHeader('Content-Disposition', `attachment; filename="${fileName}"`);
   res.setHeader('Cache-Control', 'no-store');
+}
+
+/** Answers the rows as a download named `netput-<baseName>-<date>.<format>`. */
+export async function sendSpreadsheet(res: Response, format: ExportFormat, rows: SheetRow[], columns: SheetColumn[], baseName: string, options: ExportOptions = {}) {
+  const body = format === 'csv' ? Buffer.from(toCsv(rows, columns, options.decimalMark), 'utf8') : await toXlsx(rows, columns, baseName);
+  downloadHeaders(res, format, baseName);
   res.send(body);
+}
+
+/**
+ * Streams the rows as a download while they are read, chunk by chunk: after each chunk it waits for
+ * the network to take what was written and lets other requests run (PGlite shares this thread), so
+ * neither the table nor the file is ever held whole. A failure after the first bytes ends the
+ * download unfinished (the browser reports it failed) rather than passing a cut file as complete.
+ */
+export async function streamSpreadsheet(res: Response, format: ExportFormat, chunks: AsyncIterable<SheetRow[]>, columns: SheetColumn[], baseName: string, options: ExportOptions = {}) {
+  downloadHeaders(res, format, baseName);
+  const between = async () => {
+    if (res.writableNeedDrain) await Promise.race([once(res, 'drain'), once(res, 'close')]);
+    await new Promise((r) => setImmediate(r));
+    if (res.destroyed) throw new Error('The client closed the download');
+  };
+  try {
+    if (format === 'xlsx') {
+      await streamXlsx(res, chunks, columns, baseName, between);
+    } else {
+      const mark = options.decimalMark ?? 'point';
+      res.write(csvHeader(columns, mark));
+      for await (const rows of chunks) {
+        res.write(csvLines(rows, columns, mark));
+        await between();
+      }
+      res.end();
+    }
+  } catch (err) {
+    if (!res.headersSent) throw err;
+    res.destroy(err instanceof Error ? err : new Error(String(err)));
+  }
 }

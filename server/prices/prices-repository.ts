@@ -1,5 +1,7 @@
-import { and, asc, eq, inArray, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, ilike, inArray, not, sql, type AnyColumn, type SQL } from 'drizzle-orm';
 import type { PriceRow, PriceSeries } from '../../shared/api-types.js';
+import type { PriceInput } from '../../shared/data-schemas.js';
+import type { NumberCondition, PriceQuery, PriceSortColumn, TextCondition } from '../../shared/price-query.js';
 import type { Db } from '../db/client.js';
 import { deliveryPoints, items, priceIndexes, priceIndexValues, priceObservations, seasons } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
@@ -10,6 +12,54 @@ export interface PriceFilter {
   itemIds?: number[];
   seasonIds?: number[];
   deliveryPointIds?: number[];
+  /** Item name or code, season label, delivery point name or source contains this (any case). */
+  search?: string;
+  item?: TextCondition;
+  season?: TextCondition;
+  deliveryPoint?: TextCondition;
+  source?: TextCondition;
+  currency?: TextCondition;
+  price?: NumberCondition;
+}
+
+/** `%`, `_` and `\` taken literally in a LIKE pattern. */
+const likeText = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
+
+function textCondition(column: SQL | AnyColumn, c: TextCondition): SQL {
+  const v = likeText(c.value);
+  switch (c.op) {
+    case 'contains':
+      return ilike(column, `%${v}%`);
+    case 'notContains':
+      return not(ilike(column, `%${v}%`));
+    case 'equals':
+      return sql`lower(${column}) = lower(${c.value})`;
+    case 'notEqual':
+      return sql`lower(${column}) <> lower(${c.value})`;
+    case 'startsWith':
+      return ilike(column, `${v}%`);
+    case 'endsWith':
+      return ilike(column, `%${v}`);
+  }
+}
+
+function numberCondition(column: AnyColumn, c: NumberCondition): SQL {
+  switch (c.op) {
+    case 'equals':
+      return sql`${column} = ${c.value}`;
+    case 'notEqual':
+      return sql`${column} <> ${c.value}`;
+    case 'lessThan':
+      return sql`${column} < ${c.value}`;
+    case 'lessThanOrEqual':
+      return sql`${column} <= ${c.value}`;
+    case 'greaterThan':
+      return sql`${column} > ${c.value}`;
+    case 'greaterThanOrEqual':
+      return sql`${column} >= ${c.value}`;
+    case 'inRange':
+      return sql`${column} between ${Math.min(c.value, c.to ?? c.value)} and ${Math.max(c.value, c.to ?? c.value)}`;
+  }
 }
 
 const rowColumns = {
@@ -35,28 +85,115 @@ function where(f: PriceFilter): SQL | undefined {
   if (f.itemIds?.length) parts.push(inArray(priceObservations.itemId, f.itemIds));
   if (f.seasonIds?.length) parts.push(inArray(priceObservations.seasonId, f.seasonIds));
   if (f.deliveryPointIds?.length) parts.push(inArray(priceObservations.deliveryPointId, f.deliveryPointIds));
+  if (f.search) {
+    const like = `%${likeText(f.search)}%`;
+    parts.push(sql`(${ilike(items.name, like)} or ${ilike(items.code, like)} or ${ilike(seasons.label, like)} or ${ilike(deliveryPoints.name, like)} or ${ilike(priceObservations.source, like)})`);
+  }
+  if (f.item) parts.push(sql`(${textCondition(items.name, f.item)} ${f.item.op.startsWith('not') ? sql`and` : sql`or`} ${textCondition(items.code, f.item)})`);
+  if (f.season) parts.push(textCondition(seasons.label, f.season));
+  if (f.deliveryPoint) parts.push(textCondition(deliveryPoints.name, f.deliveryPoint));
+  if (f.source) parts.push(textCondition(priceObservations.source, f.source));
+  if (f.currency) parts.push(textCondition(priceObservations.currency, f.currency));
+  if (f.price) parts.push(numberCondition(priceObservations.price, f.price));
   return parts.length ? and(...parts) : undefined;
 }
 
-export async function listPrices(db: Db, f: PriceFilter = {}): Promise<PriceRow[]> {
-  return db
+/** The table's own order: season (oldest first), item, delivery point, date; the id settles ties so pages never overlap. */
+const DEFAULT_ORDER = [asc(seasons.startYear), asc(items.id), asc(deliveryPoints.name), asc(priceObservations.observedOn), asc(priceObservations.id)];
+
+const SORT_KEY: Record<PriceSortColumn, AnyColumn> = {
+  itemId: items.name,
+  seasonId: seasons.startYear,
+  deliveryPointId: deliveryPoints.name,
+  price: priceObservations.price,
+  currency: priceObservations.currency,
+  source: priceObservations.source,
+  observedOn: priceObservations.observedOn,
+};
+
+const joined = (db: Db) =>
+  db
     .select(rowColumns)
     .from(priceObservations)
     .innerJoin(items, eq(items.id, priceObservations.itemId))
     .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
-    .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
+    .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId));
+
+/** Every price the filter matches, in the table's order: for small sets (ids just written, one item's season). */
+export async function listPrices(db: Db, f: PriceFilter = {}): Promise<PriceRow[]> {
+  return joined(db).where(where(f)).orderBy(...DEFAULT_ORDER);
+}
+
+/** One window of the matching prices, sorted by one column (then the table's order). */
+export async function pagePrices(db: Db, f: PriceFilter, page: { offset: number; limit: number; sort?: PriceSortColumn; dir: 'asc' | 'desc' }): Promise<PriceRow[]> {
+  const first = page.sort ? [page.dir === 'desc' ? desc(SORT_KEY[page.sort]) : asc(SORT_KEY[page.sort])] : [];
+  return joined(db)
     .where(where(f))
-    .orderBy(asc(seasons.startYear), asc(items.id), asc(deliveryPoints.name), asc(priceObservations.observedOn));
+    .orderBy(...first, ...DEFAULT_ORDER)
+    .limit(page.limit)
+    .offset(page.offset);
+}
+
+/** How many prices the filter matches (the joins only when a condition reads a joined table). */
+export async function countPrices(db: Db, f: PriceFilter): Promise<number> {
+  const needsJoins = Boolean(f.search || f.item || f.season || f.deliveryPoint);
+  const base = db.select({ n: sql<number>`count(*)::int`.mapWith(Number) }).from(priceObservations);
+  const [row] = needsJoins
+    ? await base
+        .innerJoin(items, eq(items.id, priceObservations.itemId))
+        .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
+        .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
+        .where(where(f))
+    : await base.where(where(f));
+  return row?.n ?? 0;
+}
+
+/** The filter a PriceQuery names. */
+export function filterOf(q: PriceQuery): PriceFilter {
+  return {
+    itemIds: q.items,
+    seasonIds: q.seasons,
+    deliveryPointIds: q.deliveryPoints,
+    search: q.q?.trim() || undefined,
+    item: q.item,
+    season: q.season,
+    deliveryPoint: q.deliveryPoint,
+    source: q.source,
+    currency: q.currency,
+    price: q.price,
+  };
+}
+
+export async function insertPrices(db: Db, rows: PriceInput[]): Promise<number[]> {
+  const out = await db.insert(priceObservations).values(rows).returning({ id: priceObservations.id });
+  return out.map((o) => o.id);
+}
+
+/** Locks the price row (FOR UPDATE) and answers its version, or null when it is gone. */
+export async function lockPrice(db: Db, id: number): Promise<number | null> {
+  const [row] = await db.select({ version: priceObservations.version }).from(priceObservations).where(eq(priceObservations.id, id)).for('update');
+  return row?.version ?? null;
+}
+
+export async function writePrice(db: Db, id: number, body: PriceInput, version: number): Promise<void> {
+  await db.update(priceObservations).set({ ...body, version }).where(eq(priceObservations.id, id));
+}
+
+export async function deletePriceRows(db: Db, ids: number[]): Promise<void> {
+  await db.delete(priceObservations).where(inArray(priceObservations.id, ids));
+}
+
+/** Item name and unit, and season start year, of the rows a write names (for the plausibility check). */
+export async function itemsAndSeasons(db: Db, itemIds: number[], seasonIds: number[]) {
+  const [itemRows, seasonRows] = await Promise.all([
+    db.select({ id: items.id, name: items.name, unit: items.unit }).from(items).where(inArray(items.id, itemIds)),
+    db.select({ id: seasons.id, startYear: seasons.startYear }).from(seasons).where(inArray(seasons.id, seasonIds)),
+  ]);
+  return { itemRows, seasonRows };
 }
 
 export async function getPrice(db: Db, id: number): Promise<PriceRow> {
-  const [row] = await db
-    .select(rowColumns)
-    .from(priceObservations)
-    .innerJoin(items, eq(items.id, priceObservations.itemId))
-    .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
-    .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
-    .where(eq(priceObservations.id, id));
+  const [row] = await joined(db).where(eq(priceObservations.id, id));
   if (!row) throw AppError.notFound('The price');
   return row;
 }

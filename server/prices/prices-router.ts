@@ -1,24 +1,20 @@
 import { ACCESS } from '../../shared/roles.js';
-import { eq, inArray } from 'drizzle-orm';
 import { z } from 'zod';
 import { idListSchema, idSchema, idTextSchema } from '../../shared/ids.js';
 import { priceIndexSchema, priceSchema } from '../../shared/data-schemas.js';
+import { priceQuerySchema } from '../../shared/price-query.js';
 import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
-import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
-import { priceIndexes, priceIndexValues, priceObservations, seasons } from '../db/schema/index.js';
-import { recordAudit } from '../audit/audit-repository.js';
-import { getPrice, listPrices, priceSeries } from './prices-repository.js';
-import { createPrices, updatePrice } from './prices-service.js';
+import { createPrices, deletePrice, deletePrices, exportPrices, pricePage, priceSeries, updatePrice } from './prices-service.js';
+import { createPriceIndex, listPriceIndexes, removePriceIndex, updatePriceIndex } from './price-indexes-service.js';
 import { CONFIRM_FLAG } from '../../shared/plausibility.js';
-import { exportFormatSchema, PRICE_COLUMNS, priceExportRows, sendSpreadsheet } from '../exports/data-exports.js';
+import { exportFormatSchema } from '../exports/data-exports.js';
 
 const READ = ACCESS.prices;
 const WRITE = ACCESS.dataEdit;
 
-const listQuery = z.object({ items: idListSchema, seasons: idListSchema, deliveryPoints: idListSchema });
 const seriesQuery = z.object({ items: idListSchema, deflator: idTextSchema.optional() });
 const confirmSchema = z.boolean({ error: 'Send confirmImplausible as true or false' }).optional();
 const blockSchema = z.object({
@@ -44,9 +40,12 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       path: '/',
       access: READ,
       cache: true,
+      // One window of the table (shared/price-query.ts): never the whole table in one answer.
       handler: async (req, res) => {
-        const q = parse(listQuery, req.query, 'query');
-        res.json(await listPrices(ctx.db, { itemIds: q.items, seasonIds: q.seasons, deliveryPointIds: q.deliveryPoints }));
+        const q = parse(priceQuerySchema, req.query, 'query');
+        const page = await pricePage(ctx, q);
+        res.setHeader('X-Total-Count', String(page.total));
+        res.json(page.rows);
       },
     },
     {
@@ -56,7 +55,7 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       access: READ,
       handler: async (req, res) => {
         const { format } = parse(exportFormatSchema, req.query, 'query');
-        await sendSpreadsheet(res, format, await priceExportRows(ctx.db), PRICE_COLUMNS, 'prices');
+        await exportPrices(ctx.db, res, format);
       },
     },
     {
@@ -96,17 +95,7 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       access: WRITE,
       handler: async (req, res) => {
         const { ids } = parse(deleteBlockSchema, req.body, 'body');
-        await ctx.db.transaction(async (tx) => {
-          const before = await listPrices(tx, { ids });
-          const found = new Set(before.map((r) => r.id));
-          const missing = ids.filter((id) => !found.has(id));
-          if (missing.length) {
-            const list = `${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ', …' : ''}`;
-            throw new AppError(404, 'not_found', `${missing.length === 1 ? `Price ${list} was` : `Prices ${list} were`} not found (deleted meanwhile?); nothing was deleted`);
-          }
-          await tx.delete(priceObservations).where(inArray(priceObservations.id, ids));
-          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.delete', entity: 'price', entityId: ids.join(','), before });
-        });
+        await deletePrices(ctx.db, ids, req.user!.id);
         res.json({ deleted: ids.length });
       },
     },
@@ -116,11 +105,7 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
       access: WRITE,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
-        await ctx.db.transaction(async (tx) => {
-          const before = await getPrice(tx, id);
-          await tx.delete(priceObservations).where(eq(priceObservations.id, id));
-          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price.delete', entity: 'price', entityId: id, before });
-        });
+        await deletePrice(ctx.db, id, req.user!.id);
         res.status(204).end();
       },
     },
@@ -128,35 +113,15 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
 }
 
 export function priceIndexRoutes(ctx: AppContext): RouteDef[] {
-  const load = async (db: AppContext['db'], id?: number) => {
-    const ixs = await (id ? db.select().from(priceIndexes).where(eq(priceIndexes.id, id)) : db.select().from(priceIndexes));
-    const values = await db
-      .select({ indexId: priceIndexValues.indexId, seasonId: priceIndexValues.seasonId, season: seasons.label, value: priceIndexValues.value, year: seasons.startYear })
-      .from(priceIndexValues)
-      .innerJoin(seasons, eq(seasons.id, priceIndexValues.seasonId));
-    return ixs.map((ix) => ({
-      ...ix,
-      values: values
-        .filter((v) => v.indexId === ix.id)
-        .sort((a, b) => a.year - b.year)
-        .map(({ seasonId, season, value }) => ({ seasonId, season, value })),
-    }));
-  };
   return [
-    { method: 'get', path: '/', access: READ, cache: true, handler: async (_req, res) => res.json(await load(ctx.db)) },
+    { method: 'get', path: '/', access: READ, cache: true, handler: async (_req, res) => res.json(await listPriceIndexes(ctx.db)) },
     {
       method: 'post',
       path: '/',
       access: WRITE,
       handler: async (req, res) => {
         const body = parse(priceIndexSchema, req.body, 'body');
-        const id = await ctx.db.transaction(async (tx) => {
-          const [ix] = await tx.insert(priceIndexes).values({ name: body.name, base: body.base, source: body.source }).returning({ id: priceIndexes.id });
-          if (body.values.length) await tx.insert(priceIndexValues).values(body.values.map((v) => ({ indexId: ix.id, ...v })));
-          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price-index.create', entity: 'price-index', entityId: ix.id, after: body });
-          return ix.id;
-        });
-        res.status(201).json((await load(ctx.db, id))[0]);
+        res.status(201).json(await createPriceIndex(ctx.db, body, req.user!.id));
       },
     },
     {
@@ -167,15 +132,7 @@ export function priceIndexRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
         const body = parse(priceIndexSchema, req.body, 'body');
-        await ctx.db.transaction(async (tx) => {
-          const [before] = await load(tx, id);
-          if (!before) throw AppError.notFound('The price index');
-          await tx.update(priceIndexes).set({ name: body.name, base: body.base, source: body.source }).where(eq(priceIndexes.id, id));
-          await tx.delete(priceIndexValues).where(eq(priceIndexValues.indexId, id));
-          if (body.values.length) await tx.insert(priceIndexValues).values(body.values.map((v) => ({ indexId: id, ...v })));
-          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price-index.update', entity: 'price-index', entityId: id, before, after: (await load(tx, id))[0] });
-        });
-        res.json((await load(ctx.db, id))[0]);
+        res.json(await updatePriceIndex(ctx.db, id, body, req.user!.id));
       },
     },
     {
@@ -184,12 +141,7 @@ export function priceIndexRoutes(ctx: AppContext): RouteDef[] {
       access: WRITE,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
-        await ctx.db.transaction(async (tx) => {
-          const [before] = await load(tx, id);
-          if (!before) throw AppError.notFound('The price index');
-          await tx.delete(priceIndexes).where(eq(priceIndexes.id, id));
-          await recordAudit(tx, { actorUserId: req.user!.id, action: 'price-index.delete', entity: 'price-index', entityId: id, before });
-        });
+        await removePriceIndex(ctx.db, id, req.user!.id);
         res.status(204).end();
       },
     },

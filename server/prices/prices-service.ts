@@ -4,26 +4,88 @@
  * request confirms it, so a script cannot store a slip silently either; an edit names the version it
  * started from, and a stale one is refused with 409 `stale` and the stored row.
  */
-import { eq, inArray } from 'drizzle-orm';
+import type { Response } from 'express';
 import type { PriceRow } from '../../shared/api-types.js';
 import type { PriceInput } from '../../shared/data-schemas.js';
 import { historyAt, implausiblePrice } from '../../shared/plausibility.js';
+import type { PriceQuery } from '../../shared/price-query.js';
 import { AppError } from '../core/app-error.js';
+import type { AppContext } from '../context.js';
 import type { Db } from '../db/client.js';
-import { items, priceObservations, seasons } from '../db/schema/index.js';
 import { recordAudit } from '../audit/audit-repository.js';
-import { getPrice, listPrices } from './prices-repository.js';
+import { getSettings } from '../settings/settings-service.js';
+import { PRICE_COLUMNS, priceExportChunks, streamSpreadsheet, type ExportFormat } from '../exports/data-exports.js';
+import { countPrices, deletePriceRows, filterOf, getPrice, insertPrices, itemsAndSeasons, listPrices, lockPrice, pagePrices, writePrice, type PriceFilter } from './prices-repository.js';
 import { priceHistories } from './price-history.js';
+
+export { getPrice } from './prices-repository.js';
+export { priceSeries } from './prices-repository.js';
+
+/**
+ * Counts of matching prices, kept until a table they were counted from is written (PGlite, where
+ * this process sees every write); a grid scrolling through 238,000 prices asks for the same count
+ * with every block. Without a change tracker (PostgreSQL) every page counts afresh.
+ */
+const COUNT_TABLES = ['price_observations', 'items', 'seasons', 'delivery_points'];
+const counts = new WeakMap<object, Map<string, { n: number; since: number }>>();
+
+async function countCached(ctx: Pick<AppContext, 'db' | 'changes'>, f: PriceFilter): Promise<number> {
+  const tracker = ctx.changes;
+  if (!tracker) return countPrices(ctx.db, f);
+  let mine = counts.get(tracker);
+  if (!mine) counts.set(tracker, (mine = new Map()));
+  const key = JSON.stringify(f);
+  const hit = mine.get(key);
+  if (hit && tracker.unchangedSince(COUNT_TABLES, hit.since)) return hit.n;
+  const since = tracker.now();
+  const n = await countPrices(ctx.db, f);
+  if (mine.size > 500) mine.clear();
+  mine.set(key, { n, since });
+  return n;
+}
+
+/** One window of the price table, sorted and narrowed on the server, and how many rows match in all. */
+export async function pricePage(ctx: Pick<AppContext, 'db' | 'changes'>, q: PriceQuery): Promise<{ rows: PriceRow[]; total: number }> {
+  const f = filterOf(q);
+  const total = await countCached(ctx, f);
+  const rows = q.offset >= total ? [] : await pagePrices(ctx.db, f, { offset: q.offset, limit: q.limit, sort: q.sort, dir: q.dir });
+  return { rows, total };
+}
+
+/** The whole price table as a download, streamed in chunks (in the import's columns and the co-op's decimal mark). */
+export async function exportPrices(db: Db, res: Response, format: ExportFormat): Promise<void> {
+  const { decimalMark } = await getSettings(db);
+  await streamSpreadsheet(res, format, priceExportChunks(db), PRICE_COLUMNS, 'prices', { decimalMark });
+}
+
+/** Deletes the chosen prices, all or none: an id that is gone refuses the lot (404 naming it). */
+export async function deletePrices(db: Db, ids: number[], actorUserId: number): Promise<void> {
+  await db.transaction(async (tx) => {
+    const before = await listPrices(tx, { ids });
+    const found = new Set(before.map((r) => r.id));
+    const missing = ids.filter((id) => !found.has(id));
+    if (missing.length) {
+      const list = `${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ', …' : ''}`;
+      throw new AppError(404, 'not_found', `${missing.length === 1 ? `Price ${list} was` : `Prices ${list} were`} not found (deleted meanwhile?); nothing was deleted`);
+    }
+    await deletePriceRows(tx, ids);
+    await recordAudit(tx, { actorUserId, action: 'price.delete', entity: 'price', entityId: ids.join(','), before });
+  });
+}
+
+export async function deletePrice(db: Db, id: number, actorUserId: number): Promise<void> {
+  await db.transaction(async (tx) => {
+    const before = await getPrice(tx, id);
+    await deletePriceRows(tx, [id]);
+    await recordAudit(tx, { actorUserId, action: 'price.delete', entity: 'price', entityId: id, before });
+  });
+}
 
 /** The rows' prices that are far from their item's history, as `{ path, message }` (path `<prefix>.<i>.price`). */
 export async function implausibleRows(db: Db, rows: readonly PriceInput[], pathOf: (i: number) => string) {
   const itemIds = [...new Set(rows.map((r) => r.itemId))];
   const seasonIds = [...new Set(rows.map((r) => r.seasonId))];
-  const [itemRows, seasonRows, histories] = await Promise.all([
-    db.select({ id: items.id, name: items.name, unit: items.unit }).from(items).where(inArray(items.id, itemIds)),
-    db.select({ id: seasons.id, startYear: seasons.startYear }).from(seasons).where(inArray(seasons.id, seasonIds)),
-    priceHistories(db, itemIds),
-  ]);
+  const [{ itemRows, seasonRows }, histories] = await Promise.all([itemsAndSeasons(db, itemIds, seasonIds), priceHistories(db, itemIds)]);
   const item = new Map(itemRows.map((i) => [i.id, i]));
   const year = new Map(seasonRows.map((s) => [s.id, s.startYear]));
   const out: { path: string; message: string }[] = [];
@@ -51,11 +113,11 @@ export async function createPrices(db: Db, rows: PriceInput[], actorUserId: numb
     if (doubts.length) throw needsConfirmation(doubts);
   }
   const created = await db.transaction(async (tx) => {
-    const out = await tx.insert(priceObservations).values(rows).returning({ id: priceObservations.id });
-    await recordAudit(tx, { actorUserId, action: 'price.create', entity: 'price', entityId: out.map((o) => o.id).join(','), after: rows });
-    return out;
+    const ids = await insertPrices(tx, rows);
+    await recordAudit(tx, { actorUserId, action: 'price.create', entity: 'price', entityId: ids.join(','), after: rows });
+    return ids;
   });
-  return listPrices(db, { ids: created.map((c) => c.id) });
+  return listPrices(db, { ids: created });
 }
 
 /**
@@ -65,8 +127,7 @@ export async function createPrices(db: Db, rows: PriceInput[], actorUserId: numb
  */
 export async function updatePrice(db: Db, id: number, body: PriceInput, version: number, actorUserId: number, confirmed: boolean): Promise<PriceRow> {
   await db.transaction(async (tx) => {
-    const locked = await tx.select({ version: priceObservations.version }).from(priceObservations).where(eq(priceObservations.id, id)).for('update');
-    if (!locked.length) throw AppError.notFound('The price');
+    if ((await lockPrice(tx, id)) === null) throw AppError.notFound('The price');
     const before = await getPrice(tx, id);
     if (before.version !== version) {
       throw AppError.stale(`Someone else changed this price meanwhile (now ${before.price} ${before.currency}/${before.unit}, from ${before.source}); keep yours or take theirs`, before);
@@ -76,10 +137,7 @@ export async function updatePrice(db: Db, id: number, body: PriceInput, version:
       const doubts = await implausibleRows(tx, [body], () => 'body.price');
       if (doubts.length) throw needsConfirmation(doubts);
     }
-    await tx
-      .update(priceObservations)
-      .set({ ...body, version: version + 1 })
-      .where(eq(priceObservations.id, id));
+    await writePrice(tx, id, body, version + 1);
     // Both sides in the same joined shape, so the audit page shows only what changed.
     const after = await getPrice(tx, id);
     await recordAudit(tx, { actorUserId, action: 'price.update', entity: 'price', entityId: id, before, after });

@@ -5,6 +5,7 @@ import { factorKeySchema, factorValueSchema, landSchema, recordSchema } from '..
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
+import { getSettings } from '../settings/settings-service.js';
 import { exportFormatSchema, RECORD_COLUMNS, sendSpreadsheet } from '../exports/data-exports.js';
 import { listFactorNames, listFactors, listLand, listRecords, recordExportRows } from './records-repository.js';
 import { deleteFactor, deleteRecord, saveRecords, setFactor, setLand } from './records-service.js';
@@ -71,7 +72,7 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => {
         // `?farms=3` narrows a planner's export to those farms (the farm page downloads its own).
         const { format, farms: only } = parse(exportFormatSchema.extend({ farms: idListSchema }), req.query, 'query');
-        await sendSpreadsheet(res, format, await recordExportRows(ctx.db, req.user!, only), RECORD_COLUMNS, 'farm-records');
+        await sendSpreadsheet(res, format, await recordExportRows(ctx.db, req.user!, only), RECORD_COLUMNS, 'farm-records', { decimalMark: (await getSettings(ctx.db)).decimalMark });
       },
     },
     {

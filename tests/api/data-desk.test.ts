@@ -1,3 +1,4 @@
+import ExcelJS from 'exceljs';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
 
@@ -258,6 +259,146 @@ describe('exports', () => {
     const lines = res.text.trim().split(/\r?\n/).slice(1);
     expect(lines.length).toBeGreaterThan(0);
     expect(lines.every((l) => l.startsWith('F01,'))).toBe(true);
+  });
+});
+
+type Row = { id: number; itemId: number; itemName: string; itemCode: string; season: string; deliveryPoint: string; price: number; source: string; observedOn: string };
+
+describe('price pages (GET /api/prices: a window, sorted and narrowed on the server)', () => {
+  it('offset and limit cut the table into windows that add up to it, with the total in X-Total-Count', async () => {
+    const planner = await plannerAgent();
+    const all = await planner.get('/api/prices');
+    const rows = all.body as Row[];
+    const total = Number(all.headers['x-total-count']);
+    // The demo co-op stores 320 prices (seed/demo-coop.ts); earlier tests here add a few.
+    expect(total).toBe(rows.length);
+    expect(total).toBeGreaterThanOrEqual(320);
+    const pages: Row[] = [];
+    for (let offset = 0; offset < total; offset += 100) {
+      const page = await planner.get(`/api/prices?offset=${offset}&limit=100`);
+      expect(page.status).toBe(200);
+      expect(page.headers['x-total-count']).toBe(String(total));
+      expect(page.body).toHaveLength(Math.min(100, total - offset));
+      pages.push(...(page.body as Row[]));
+    }
+    expect(pages.map((r) => r.id)).toEqual(rows.map((r) => r.id));
+    // Past the end: no rows, the same total.
+    const beyond = await planner.get(`/api/prices?offset=${total + 5}&limit=10`);
+    expect(beyond.body).toEqual([]);
+    expect(beyond.headers['x-total-count']).toBe(String(total));
+  });
+
+  it('sorts by a column either way, ties in the table order', async () => {
+    const planner = await plannerAgent();
+    const all = (await planner.get('/api/prices')).body as Row[];
+    const byPrice = (await planner.get('/api/prices?sort=price&dir=desc&limit=1000')).body as Row[];
+    expect(byPrice.map((r) => r.price)).toEqual(all.map((r) => r.price).sort((a, b) => b - a));
+    const top = (await planner.get('/api/prices?sort=price&dir=desc&limit=3')).body as Row[];
+    expect(top.map((r) => r.id)).toEqual(byPrice.slice(0, 3).map((r) => r.id));
+    const byItem = (await planner.get('/api/prices?sort=itemId&limit=1000')).body as Row[];
+    const names = byItem.map((r) => r.itemName);
+    expect(names).toEqual([...names].sort((a, b) => (a < b ? -1 : a > b ? 1 : 0)));
+    expect(names[0]).toBe('Canola (rapeseed)');
+    const byDate = (await planner.get('/api/prices?sort=observedOn&dir=asc&limit=1')).body as Row[];
+    expect(byDate[0].observedOn).toBe(all.map((r) => r.observedOn).sort()[0]);
+  });
+
+  it('narrows by the grid\'s text and number conditions and by a search over every text column', async () => {
+    const planner = await plannerAgent();
+    const all = (await planner.get('/api/prices')).body as Row[];
+    const check = async (query: string, keep: (r: Row) => boolean) => {
+      const res = await planner.get(`/api/prices?${query}&limit=1000`);
+      expect(res.status, query).toBe(200);
+      const want = all.filter(keep);
+      expect(want.length, query).toBeGreaterThan(0);
+      expect((res.body as Row[]).map((r) => r.id), query).toEqual(want.map((r) => r.id));
+      expect(res.headers['x-total-count'], query).toBe(String(want.length));
+    };
+    await check('item=equals:wheat', (r) => r.itemName === 'Wheat');
+    await check('item=contains:RAPE', (r) => r.itemName.includes('rapeseed'));
+    await check('season=equals:2024/25', (r) => r.season === '2024/25');
+    await check('deliveryPoint=startsWith:ash', (r) => r.deliveryPoint.startsWith('Ashby'));
+    await check('source=notContains:harvest', (r) => !r.source.includes('harvest'));
+    await check('source=endsWith:(spring)', (r) => r.source.endsWith('(spring)'));
+    await check('price=greaterThan:300', (r) => r.price > 300);
+    await check('price=inRange:150:200', (r) => r.price >= 150 && r.price <= 200);
+    await check('price=lessThanOrEqual:1', (r) => r.price <= 1);
+    await check('q=millbrook', (r) => r.deliveryPoint === 'Millbrook store');
+    await check('q=autumn', (r) => r.source.includes('autumn'));
+    await check(`items=${all.find((r) => r.itemName === 'Diesel')!.itemId}&price=greaterThan:0.5`, (r) => r.itemName === 'Diesel' && r.price > 0.5);
+    // A % in a condition is a percent sign, not a wildcard.
+    const none = await planner.get('/api/prices?source=contains:%25');
+    expect(none.body).toEqual([]);
+    expect(none.headers['x-total-count']).toBe('0');
+  });
+
+  it('refuses bad paging, sorting and filtering parameters with a 400 naming each', async () => {
+    const planner = await plannerAgent();
+    const refused = async (query: string) => {
+      const res = await planner.get(`/api/prices?${query}`);
+      expect(res.status, query).toBe(400);
+      return res.body.error.details as { path: string; message: string }[];
+    };
+    expect(await refused('limit=0')).toEqual([{ path: 'query.limit', message: 'Send limit as a whole number from 1 to 1,000' }]);
+    expect(await refused('limit=5000')).toEqual([{ path: 'query.limit', message: 'Send limit as a whole number from 1 to 1,000' }]);
+    expect(await refused('offset=-1')).toEqual([{ path: 'query.offset', message: 'Send offset as a whole number from 0 to 100,000,000' }]);
+    expect(await refused('offset=ten&limit=2.5')).toEqual([
+      { path: 'query.offset', message: 'Send offset as a whole number from 0 to 100,000,000' },
+      { path: 'query.limit', message: 'Send limit as a whole number from 1 to 1,000' },
+    ]);
+    expect(await refused('limit=10&limit=20')).toEqual([{ path: 'query.limit', message: 'Send limit as a whole number from 1 to 1,000' }]);
+    expect(await refused('sort=colour')).toEqual([{ path: 'query.sort', message: 'Sort by one of itemId, seasonId, deliveryPointId, price, currency, source, observedOn' }]);
+    expect(await refused('sort=price&dir=up')).toEqual([{ path: 'query.dir', message: 'Send dir as asc or desc' }]);
+    expect(await refused('item=wheat')).toEqual([
+      { path: 'query.item', message: 'Write a text condition as comparison:text, the comparison one of contains, notContains, equals, notEqual, startsWith, endsWith (e.g. contains:wheat)' },
+    ]);
+    const price = await refused('price=above:5');
+    expect(price).toEqual([
+      {
+        path: 'query.price',
+        message: 'Write a price condition as comparison:number (decimal point), the comparison one of equals, notEqual, lessThan, lessThanOrEqual, greaterThan, greaterThanOrEqual, inRange (e.g. greaterThan:200 or inRange:100:250)',
+      },
+    ]);
+    expect((await refused('price=inRange:100'))[0].message).toMatch(/^inRange needs two numbers: inRange:from:to/);
+    expect((await refused('price=greaterThan:204,5'))[0].path).toBe('query.price');
+  });
+});
+
+describe('exports in the co-op\'s decimal convention', () => {
+  it('with a decimal comma the price CSV separates cells by semicolons and writes 204,5; XLSX keeps real numbers; both stream every row', async () => {
+    const admin = await signedIn(t.app, 'admin@example.org');
+    const planner = await plannerAgent();
+    const settings = (await admin.get('/api/settings')).body;
+    const rows = (await planner.get('/api/prices')).body as Row[];
+    const point = await planner.get('/api/prices/export?format=csv');
+    expect(point.text.split('\r\n')[0]).toBe('\uFEFFitem,season,delivery_point,price,unit,currency,source,observed_on');
+    expect(point.text).toContain('\r\nwheat,2006/07,Larkfield terminal,166.11,t,EUR,Co-op grain desk harvest bid,2006-08-15\r\n');
+    try {
+      expect((await admin.put('/api/settings').send({ ...settings, decimalMark: 'comma' })).status).toBe(200);
+      const comma = await planner.get('/api/prices/export?format=csv');
+      expect(comma.status).toBe(200);
+      const lines = comma.text.split('\r\n');
+      expect(lines[0]).toBe('\uFEFFitem;season;delivery_point;price;unit;currency;source;observed_on');
+      expect(lines).toContain('wheat;2006/07;Larkfield terminal;166,11;t;EUR;Co-op grain desk harvest bid;2006-08-15');
+      expect(lines.filter((l) => l !== '')).toHaveLength(rows.length + 1);
+      const xlsx = await planner.get('/api/prices/export?format=xlsx').buffer(true).parse((res, done) => {
+        const parts: Buffer[] = [];
+        res.on('data', (c: Buffer) => parts.push(c));
+        res.on('end', () => done(null, Buffer.concat(parts)));
+      });
+      const wb = new ExcelJS.Workbook();
+      await wb.xlsx.load(xlsx.body as never);
+      const ws = wb.worksheets[0];
+      expect(ws.rowCount).toBe(rows.length + 1);
+      expect(ws.getRow(2).getCell(3).value).toBe('Ashby elevator');
+      expect(ws.getRow(2).getCell(4).value).toBe(166.9);
+      expect(ws.getRow(2).getCell(8).value).toEqual(new Date(Date.UTC(2006, 7, 15)));
+      const records = await planner.get('/api/records/export?format=csv');
+      expect(records.text.split('\r\n')[0]).toBe('\uFEFFfarm;season;item;quantity;unit;land_ha');
+      expect(records.text).toMatch(/\r\nF01;2006\/07;[a-z]+;\d+(,\d+)?;/);
+    } finally {
+      await admin.put('/api/settings').send(settings);
+    }
   });
 });
 
