@@ -2,6 +2,9 @@
  * The fit command (docs/fit-command.md):
  *   npm run --silent fit -- --input FILE.csv [--numeraire ITEM] [--trend] [--form nq|gl]
  *                           [--prices item=value,...] [--fixed name=value,...] [--spec pooled|per-hectare]
+ *                           [--committed item=quantity,... | --committed-file FILE.csv] [--draws N] [--seed N] [--level P]
+ * `--committed` / `--committed-file` add the marginal costs and conditional input demands of committed
+ * outputs under the key `committed` (contracted-cli.ts; docs/cost-duality.md); the other keys are unchanged.
  * `--spec per-hectare` fits the forecasting model of docs/forecasting.md (netputs per hectare of land,
  * farm and season effects) and reports it in the same keys, in levels at the evaluation point's land.
  * Prints the contract JSON on stdout and exits 0. Bad input: one line on stderr naming the row and
@@ -10,6 +13,7 @@
 import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import { parseArgs } from 'node:util';
+import { committedSection, parseCommittedCsv, pooledModelOf, type CommittedRequest } from './contracted-cli.js';
 import { fitToContractJson } from './contract.js';
 import { parseNetputCsv, type NetputDataset } from './dataset.js';
 import { isEstimationInputError } from './errors.js';
@@ -18,7 +22,24 @@ import { fitForecastModel, type ForecastModel } from './panel.js';
 
 class UsageError extends Error {}
 
-const USAGE = 'usage: fit --input FILE.csv [--numeraire ITEM] [--trend] [--form nq|gl] [--prices item=value,...] [--fixed name=value,...] [--spec pooled|per-hectare]';
+const USAGE =
+  'usage: fit --input FILE.csv [--numeraire ITEM] [--trend] [--form nq|gl] [--prices item=value,...] [--fixed name=value,...] [--spec pooled|per-hectare] [--committed item=quantity,... | --committed-file FILE.csv] [--draws N] [--seed N] [--level P]';
+
+function numberOption(name: string, text: string | undefined, check: (v: number) => boolean, what: string): number | undefined {
+  if (text === undefined) return undefined;
+  const v = Number(text);
+  if (!/^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/.test(text) || !check(v)) throw new UsageError(`--${name}: "${text}" is not ${what}`);
+  return v;
+}
+
+function readText(path: string): string {
+  try {
+    return readFileSync(path, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new UsageError(`${basename(path)}: cannot read the file (${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (code ?? 'read error')})`);
+  }
+}
 
 function parsePairs(option: string, text: string | undefined): Record<string, number> {
   const out: Record<string, number> = {};
@@ -47,6 +68,11 @@ export function runFitCli(argv: string[]): { code: number; stdout: string; stder
         prices: { type: 'string' },
         fixed: { type: 'string' },
         spec: { type: 'string' },
+        committed: { type: 'string' },
+        'committed-file': { type: 'string' },
+        draws: { type: 'string' },
+        seed: { type: 'string' },
+        level: { type: 'string' },
         help: { type: 'boolean' },
       },
       strict: true,
@@ -58,27 +84,51 @@ export function runFitCli(argv: string[]): { code: number; stdout: string; stder
     if (values.spec !== undefined && values.spec !== 'pooled' && values.spec !== 'per-hectare') throw new UsageError(`--spec must be pooled or per-hectare, not "${values.spec}"`);
     const prices = parsePairs('prices', values.prices);
     const fixed = parsePairs('fixed', values.fixed);
+    if (values.committed !== undefined && values['committed-file'] !== undefined) throw new UsageError('give either --committed or --committed-file, not both');
+    const wantsCommitted = values.committed !== undefined || values['committed-file'] !== undefined;
+    if (!wantsCommitted)
+      for (const o of ['draws', 'seed', 'level'] as const) if (values[o] !== undefined) throw new UsageError(`--${o} applies to committed outputs only: add --committed or --committed-file`);
+    const committedPairs = values.committed !== undefined ? parsePairs('committed', values.committed) : null;
+    if (committedPairs && !Object.keys(committedPairs).length) throw new UsageError('--committed: give at least one item=quantity');
+    const draws = numberOption('draws', values.draws, (v) => Number.isInteger(v) && (v === 0 || (v >= 100 && v <= 1_000_000)), '0 or a whole number from 100 to 1,000,000') ?? 1000;
+    const seed = numberOption('seed', values.seed, (v) => Number.isInteger(v) && v >= 0 && v < 2 ** 32, 'a whole number from 0 to 4294967295') ?? 1;
+    const level = numberOption('level', values.level, (v) => v > 0 && v < 1, 'a probability between 0 and 1') ?? 0.9;
     label = basename(values.input);
-    let text: string;
-    try {
-      text = readFileSync(values.input, 'utf8');
-    } catch (e) {
-      const code = (e as NodeJS.ErrnoException).code;
-      throw new UsageError(`${label}: cannot read the file (${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : (code ?? 'read error')})`);
-    }
+    const text = readText(values.input);
+    const committedText = values['committed-file'] !== undefined ? readText(values['committed-file']) : null;
     const dataset = parseNetputCsv(text);
     const options = {
       ...(values.form ? { form: values.form as 'nq' | 'gl' } : {}),
       ...(values.numeraire !== undefined ? { numeraire: values.numeraire } : {}),
       trend: values.trend ?? false,
     };
+    let model: ForecastModel;
+    let json: ReturnType<typeof fitToContractJson> | ReturnType<typeof perHectareContractJson>;
     if (values.spec === 'per-hectare') {
-      const json = perHectareContractJson(fitForecastModel(dataset, { ...options, spec: 'per-hectare' }), dataset, prices, fixed);
-      return { code: 0, stdout: JSON.stringify(json, null, 2) + '\n', stderr: '' };
+      model = fitForecastModel(dataset, { ...options, spec: 'per-hectare' });
+      json = perHectareContractJson(model, dataset, prices, fixed);
+    } else {
+      const fit = fitProfitFunction(dataset, options);
+      json = fitToContractJson(fit, { prices, fixed });
+      model = pooledModelOf(fit, null);
     }
-    const fit = fitProfitFunction(dataset, options);
-    const json = fitToContractJson(fit, { prices, fixed });
-    return { code: 0, stdout: JSON.stringify(json, null, 2) + '\n', stderr: '' };
+    if (!wantsCommitted) return { code: 0, stdout: JSON.stringify(json, null, 2) + '\n', stderr: '' };
+    if (committedPairs)
+      for (const [name, q] of Object.entries(committedPairs)) {
+        const it = model.fit.layout.items.find((x) => x.name === name);
+        if (!it) throw new UsageError(`--committed: "${name}" is not an item of the model (outputs: ${model.fit.layout.items.filter((x) => x.role === 'output').map((x) => x.name).join(', ')})`);
+        if (it.role !== 'output') throw new UsageError(`--committed: ${name} is an input; only outputs can be committed`);
+        if (!(q > 0)) throw new UsageError(`--committed: the quantity of ${name} must be more than 0, got ${q}`);
+      }
+    const point = { prices: json.evaluatedAt.prices, fixed: json.evaluatedAt.fixed };
+    let committedFarms: CommittedRequest['farms'] = null;
+    if (committedText !== null) {
+      label = basename(values['committed-file']!);
+      committedFarms = parseCommittedCsv(committedText, model, point);
+    }
+    const request: CommittedRequest = { pairs: committedPairs, farms: committedFarms, draws, seed, level };
+    const doc = { ...json, committed: committedSection(model, point, request) };
+    return { code: 0, stdout: JSON.stringify(doc, null, 2) + '\n', stderr: '' };
   } catch (e) {
     if (isEstimationInputError(e)) return { code: 2, stdout: '', stderr: `${label}: ${(e as Error).message}\n` };
     if (e instanceof UsageError) return { code: 2, stdout: '', stderr: `${e.message}\n` };
