@@ -1,6 +1,6 @@
 /**
- * Contract reads. A member's queries are held to their own farm here, whatever filter they send:
- * `farmIds` is the list the caller may see (undefined: every farm; empty: none).
+ * Contract reads. A member's queries are held to their own farm here, whatever filter they send
+ * (`reader`, through core/farm-scope.ts); server-side callers without a reader read every farm.
  */
 import { and, asc, eq, inArray, sql, type SQL } from 'drizzle-orm';
 import type { ContractRow, ContractStatus } from '../../shared/contract-schemas.js';
@@ -8,7 +8,7 @@ import { priceFromCents } from '../../shared/contract-schemas.js';
 import { AppError } from '../core/app-error.js';
 import type { Db } from '../db/client.js';
 import { contracts, farms, items, seasons } from '../db/schema/index.js';
-import type { SessionUser } from '../auth/session.js';
+import { readableFarmIds, type Reader } from '../core/farm-scope.js';
 
 export interface ContractFilter {
   ids?: number[];
@@ -16,12 +16,6 @@ export interface ContractFilter {
   seasonIds?: number[];
   itemIds?: number[];
   statuses?: readonly ContractStatus[];
-}
-
-/** The farms a caller may see contracts of: a member only their own (none without a farm). */
-export function contractFarmScope(user: Pick<SessionUser, 'role' | 'farmId'>, requested?: number[]): number[] | undefined {
-  if (user.role !== 'member') return requested;
-  return user.farmId === null ? [] : [user.farmId];
 }
 
 const columns = {
@@ -59,7 +53,8 @@ function toRow({ priceCents, ...r }: { priceCents: number } & Omit<ContractRow, 
   return { ...r, price: priceFromCents(priceCents) };
 }
 
-export async function listContracts(db: Db, f: ContractFilter = {}): Promise<ContractRow[]> {
+export async function listContracts(db: Db, filter: ContractFilter = {}, reader?: Reader): Promise<ContractRow[]> {
+  const f = reader ? { ...filter, farmIds: readableFarmIds(reader, filter.farmIds) } : filter;
   const rows = await db
     .select(columns)
     .from(contracts)
@@ -72,8 +67,8 @@ export async function listContracts(db: Db, f: ContractFilter = {}): Promise<Con
 }
 
 /** One contract the caller may see (a member asking for another farm's gets 404, as for a missing one). */
-export async function getContract(db: Db, id: number, farmIds?: number[]): Promise<ContractRow> {
-  const [row] = await listContracts(db, { ids: [id], farmIds });
+export async function getContract(db: Db, id: number, reader?: Reader): Promise<ContractRow> {
+  const [row] = await listContracts(db, { ids: [id] }, reader);
   if (!row) throw AppError.notFound('The contract');
   return row;
 }

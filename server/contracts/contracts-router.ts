@@ -5,7 +5,7 @@ import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
-import { contractFarmScope, getContract, listContracts } from './contracts-repository.js';
+import { getContract, listContracts } from './contracts-repository.js';
 import { createContract, deleteContract, updateContract } from './contracts-service.js';
 
 /** Planners and administrators keep contracts; the treasurer reads them; a member reads their own farm's. */
@@ -35,7 +35,7 @@ export function contractsRoutes(ctx: AppContext): RouteDef[] {
       cache: true,
       handler: async (req, res) => {
         const q = parse(listQuery, req.query, 'query');
-        res.json(await listContracts(ctx.db, { farmIds: contractFarmScope(req.user!, q.farms), seasonIds: q.seasons, itemIds: q.items, statuses: q.status }));
+        res.json(await listContracts(ctx.db, { farmIds: q.farms, seasonIds: q.seasons, itemIds: q.items, statuses: q.status }, req.user!));
       },
     },
     {
@@ -45,7 +45,7 @@ export function contractsRoutes(ctx: AppContext): RouteDef[] {
       cache: true,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
-        res.json(await getContract(ctx.db, id, contractFarmScope(req.user!)));
+        res.json(await getContract(ctx.db, id, req.user!));
       },
     },
     {
