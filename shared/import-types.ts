@@ -26,7 +26,7 @@ export const IMPORT_LIMITS = {
 
 export type ImportLimits = { -readonly [K in keyof typeof IMPORT_LIMITS]: number };
 
-export const IMPORT_KINDS = ['prices', 'records', 'observations'] as const;
+export const IMPORT_KINDS = ['prices', 'records', 'observations', 'contracts'] as const;
 export const IMPORT_STATUSES = ['validated', 'committing', 'committed', 'failed'] as const;
 
 export type ImportKind = (typeof IMPORT_KINDS)[number];
@@ -54,7 +54,7 @@ export interface ImportField {
   required: boolean;
 }
 
-export type TableName = 'prices' | 'records' | 'factors';
+export type TableName = 'prices' | 'records' | 'factors' | 'contracts';
 export type TableCounts = Record<TableName, number>;
 
 export interface CommitCounts {

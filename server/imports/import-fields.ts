@@ -25,6 +25,20 @@ export const RECORD_FIELDS: FieldDef[] = [
   f('land_ha', 'Land (ha)', false, ['land', 'land ha', 'area', 'hectares']),
 ];
 
+/** Forward delivery contracts (issue 19): one row per contract, keyed by its number. */
+export const CONTRACT_FIELDS: FieldDef[] = [
+  f('reference', 'Contract number', true, ['contract', 'contract number', 'contract no', 'number', 'ref']),
+  f('farm', 'Farm', true, ['farm code', 'farm id']),
+  f('season', 'Season', true, ['crop year', 'year']),
+  f('item', 'Item', true, ['crop', 'item code', 'product']),
+  f('quantity', 'Quantity', true, ['tonnes', 'qty', 'amount']),
+  f('price', 'Contract price', true, ['contract price', 'price per unit']),
+  f('currency', 'Currency', false, ['ccy']),
+  f('delivery_from', 'First delivery month', true, ['first delivery month', 'first delivery', 'from', 'delivery start', 'deliver from']),
+  f('delivery_to', 'Last delivery month', true, ['last delivery month', 'last delivery', 'to', 'delivery end', 'deliver to']),
+  f('status', 'Status', false, ['state']),
+];
+
 /** Factor names of `fixed:<name>` columns; land is stored as land_ha, in hectares. */
 export function fixedFactorName(name: string): string {
   const n = name.trim().toLowerCase();
@@ -57,6 +71,7 @@ export function observationFields(lookups: Lookups, columns: string[]): FieldDef
 export function fieldsFor(kind: ImportKind, lookups: Lookups, columns: string[]): FieldDef[] {
   if (kind === 'prices') return PRICE_FIELDS;
   if (kind === 'records') return RECORD_FIELDS;
+  if (kind === 'contracts') return CONTRACT_FIELDS;
   return observationFields(lookups, columns);
 }
 

@@ -77,10 +77,27 @@ export interface FactorWrite {
   value: number;
 }
 
+/** A forward delivery contract (issue 19); its contract number is the natural key. */
+export interface ContractWrite {
+  row: number;
+  reference: string;
+  farmId: number;
+  seasonId: number;
+  itemId: number;
+  quantity: number;
+  /** Minor units (cents) per item unit. */
+  priceCents: number;
+  currency: string;
+  deliveryFrom: string;
+  deliveryTo: string;
+  status: string;
+}
+
 export interface ImportWrites {
   prices: PriceWrite[];
   records: RecordWrite[];
   factors: FactorWrite[];
+  contracts: ContractWrite[];
 }
 
 /** What reading and checking a file found, with the rows ready for the database (packed in columns). */
@@ -89,5 +106,5 @@ export interface ValidationOutcome extends ImportReport {
 }
 
 // Every table an import writes has a name in the shared TableName.
-const _tableNames: Record<keyof ImportWrites, TableName> = { prices: 'prices', records: 'records', factors: 'factors' };
+const _tableNames: Record<keyof ImportWrites, TableName> = { prices: 'prices', records: 'records', factors: 'factors', contracts: 'contracts' };
 void _tableNames;

@@ -33,12 +33,14 @@ import { historyAt, implausiblePrice } from '../../shared/plausibility.js';
 import { headerParts, priceUnitParts, sameUnit } from '../../shared/unit-names.js';
 import { readTable, type TableMeta, type TableSink } from './table-reader.js';
 import { newBuiltWrites } from './packed-rows.js';
+import { CONTRACT_STATUSES, MONTH_PATTERN, priceToCents, MINOR_PER_MAJOR, type ContractStatus } from '../../shared/contract-schemas.js';
 
 /** Where co-op level prices of an observation file go unless the planner names another point. */
 export const DEFAULT_DELIVERY_POINT = 'Co-op input depot';
 
 /** Largest values kept, as in the data desk's own forms (shared/data-schemas.ts). */
 const MAX_PRICE = 1e9;
+const STATUS_NOTE = 'Contracts without a status are stored as signed.';
 const MAX_QUANTITY = 1e12;
 const MAX_LAND_HA = 1e6;
 const MAX_SOURCE_CHARS = 200;
@@ -173,6 +175,7 @@ class Validator implements TableSink {
     if (!this.headerBlocksRows) {
       if (this.options.kind === 'prices') this.priceRow(n, raw);
       else if (this.options.kind === 'records') this.recordRow(n, raw);
+      else if (this.options.kind === 'contracts') this.contractRow(n, raw);
       else this.observationRow(n, raw);
     }
     // With a required column missing no row can be imported, so none counts as valid.
@@ -214,6 +217,7 @@ class Validator implements TableSink {
     }
     if (this.options.kind === 'prices') this.priceHeader();
     else if (this.options.kind === 'records') this.recordHeader(n);
+    else if (this.options.kind === 'contracts') this.contractHeader();
     else this.observationHeader(n);
     this.rowHasError = false;
   }
@@ -529,6 +533,62 @@ class Validator implements TableSink {
       this.writes.records.push({ row: n, farmId: farm.id, seasonId: season.id, itemId: item.id, quantity });
     }
     if (land !== null) this.addFactor(n, farm.id, season.id, 'land_ha', land, this.columnOf('land_ha'));
+  }
+
+  private contractHeader() {
+    const price = this.unitFromHeader('price');
+    this.headerCurrency = price.currency;
+    this.headerUnit = this.unitFromHeader('quantity').unit ?? price.unit;
+    if (!this.mapping.status) this.notes.push(STATUS_NOTE);
+  }
+
+  /** A delivery contract: its number, an output item of a farm and season, quantity, price in cents, window and status. */
+  private contractRow(n: number, raw: string[]) {
+    const refText = this.text(raw, 'reference') ?? '';
+    let reference: string | null = refText;
+    if (refText === '') reference = (this.error(n, this.columnOf('reference'), 'empty cell: the contract number is required'), null);
+    else if (refText.length > 40) reference = (this.error(n, this.columnOf('reference'), `the contract number is ${refText.length} characters long; at most 40 are kept`), null);
+    const farm = this.required(n, 'farm', this.text(raw, 'farm'), this.farm);
+    const season = this.seasonOf(n, this.text(raw, 'season'));
+    const item = this.required(n, 'item', this.text(raw, 'item'), this.item);
+    if (item && item.role !== 'output') this.error(n, this.columnOf('item'), `${item.code} is an input; a contract commits an output`);
+    else if (item) this.checkUnit(n, item, undefined, 'quantity');
+    const qtyText = this.text(raw, 'quantity') ?? '';
+    let quantity = qtyText === '' ? (this.error(n, this.columnOf('quantity'), 'empty cell: quantity is required'), null) : this.numberIn(n, this.columnOf('quantity'), qtyText, 'quantity');
+    if (quantity === 0) quantity = (this.error(n, this.columnOf('quantity'), 'a contract commits more than 0'), null);
+    const priceText = this.text(raw, 'price') ?? '';
+    let price = priceText === '' ? (this.error(n, this.columnOf('price'), 'empty cell: the contract price is required'), null) : this.numberIn(n, this.columnOf('price'), priceText, 'price');
+    if (price !== null && Math.abs(priceToCents(price) - price * MINOR_PER_MAJOR) > 1e-6) price = (this.error(n, this.columnOf('price'), `${quote(priceText)} has more than two decimals (cents)`), null);
+    let currency = this.headerCurrency ?? this.lookups.currency;
+    const currencyText = this.text(raw, 'currency');
+    if (currencyText) {
+      const c = this.cached('currency', currencyText, () => parseCurrency(currencyText));
+      if (!c.ok) this.error(n, this.columnOf('currency'), c.message);
+      else if (this.headerCurrency && c.value !== this.headerCurrency) this.error(n, this.columnOf('currency'), `${c.value} differs from the currency in the column ${quote(this.columnOf('price'))} (${this.headerCurrency})`);
+      else currency = c.value;
+    }
+    const month = (field: 'delivery_from' | 'delivery_to'): string | null => {
+      const s = this.text(raw, field) ?? '';
+      const label = field === 'delivery_from' ? 'first delivery month' : 'last delivery month';
+      if (s === '') return this.error(n, this.columnOf(field), `empty cell: the ${label} is required`), null;
+      // 2026-08, or a date in that month (2026-08-01).
+      const m = /^(\d{4}-\d{2})(-\d{2})?$/.exec(s);
+      if (!m || !MONTH_PATTERN.test(m[1])) return this.error(n, this.columnOf(field), `${quote(s)} is not a month: write the ${label} as YYYY-MM, e.g. 2026-08`), null;
+      return m[1];
+    };
+    const from = month('delivery_from');
+    const to = month('delivery_to');
+    if (from && to && from > to) this.error(n, this.columnOf('delivery_to'), `the last delivery month ${to} is before the first, ${from}`);
+    const statusText = (this.text(raw, 'status') ?? '').toLowerCase();
+    let status: ContractStatus | null = 'signed';
+    if (statusText === '' && this.mapping.status && !this.notes.includes(STATUS_NOTE)) this.notes.push(STATUS_NOTE);
+    if (statusText !== '') {
+      status = (CONTRACT_STATUSES as readonly string[]).includes(statusText) ? (statusText as ContractStatus) : null;
+      if (!status) this.error(n, this.columnOf('status'), `unknown status ${quote(statusText)} (statuses: ${CONTRACT_STATUSES.join(', ')})`);
+    }
+    const repeated = reference !== null && !this.firstTime(`contract|${reference.toLowerCase()}`, n, 'contract number');
+    if (this.rowHasError || repeated || reference === null || !farm || !season || !item || quantity === null || price === null || !from || !to || !status) return;
+    this.writes.contracts.push({ row: n, reference, farmId: farm.id, seasonId: season.id, itemId: item.id, quantity, priceCents: priceToCents(price), currency, deliveryFrom: from, deliveryTo: to, status });
   }
 
   private addFactor(n: number, farmId: number, seasonId: number, factor: string, value: number, column: string) {

@@ -47,7 +47,7 @@ describe('arrayLiteral', () => {
 
 describe('writeRows', () => {
   const noProgress = () => {};
-  const writeSet = (prices: PriceWrite[]) => ({ prices, records: [], factors: [] });
+  const writeSet = (prices: PriceWrite[]) => ({ prices, records: [], factors: [], contracts: [] });
 
   it('inserts by COPY on PGlite and updates by INSERT … ON CONFLICT, carrying every character', async () => {
     const fresh = TRICKY.map((s, k) => price(k, s));

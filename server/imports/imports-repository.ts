@@ -2,10 +2,10 @@ import { promisify } from 'node:util';
 import zlib from 'node:zlib';
 import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { deliveryPoints, farmRecords, farms, farmSeasonFactors, imports, items, priceObservations, seasons, users } from '../db/schema/index.js';
+import { contracts, deliveryPoints, farmRecords, farms, farmSeasonFactors, imports, items, priceObservations, seasons, users } from '../db/schema/index.js';
 import { getSettings } from '../settings/settings-service.js';
 import { priceHistories } from '../prices/price-history.js';
-import type { CommitCounts, FactorWrite, Lookups, OnExisting, PriceWrite, RecordWrite, TableCounts, TableName } from './import-types.js';
+import type { CommitCounts, ContractWrite, FactorWrite, Lookups, OnExisting, PriceWrite, RecordWrite, TableCounts, TableName } from './import-types.js';
 import { forEachRow, type RowSource, type WriteSet } from './packed-rows.js';
 
 export type ImportRow = typeof imports.$inferSelect;
@@ -110,7 +110,7 @@ function distinct<T>(rows: RowSource<T>, field: (r: T) => number): number[] {
 
 /** Natural keys already in the database, for the rows a file would write. */
 export async function existingKeys(db: Db, writes: WriteSet): Promise<Record<TableName, Set<string>>> {
-  const out: Record<TableName, Set<string>> = { prices: new Set(), records: new Set(), factors: new Set() };
+  const out: Record<TableName, Set<string>> = { prices: new Set(), records: new Set(), factors: new Set(), contracts: new Set() };
   if (writes.prices.length) {
     const rows = await db
       .select({ i: priceObservations.itemId, s: priceObservations.seasonId, d: priceObservations.deliveryPointId, o: priceObservations.observedOn })
@@ -131,6 +131,12 @@ export async function existingKeys(db: Db, writes: WriteSet): Promise<Record<Tab
       .from(farmSeasonFactors)
       .where(and(inArray(farmSeasonFactors.farmId, distinct(writes.factors, (r) => r.farmId)), inArray(farmSeasonFactors.seasonId, distinct(writes.factors, (r) => r.seasonId))));
     for (const r of rows) out.factors.add(`${r.f}|${r.s}|${r.k}`);
+  }
+  if (writes.contracts.length) {
+    const refs = new Set<string>();
+    forEachRow(writes.contracts, (c) => refs.add(c.reference));
+    const rows = await db.select({ r: contracts.reference }).from(contracts).where(inArray(contracts.reference, [...refs]));
+    for (const r of rows) out.contracts.add(r.r);
   }
   return out;
 }
@@ -154,6 +160,7 @@ export const keyOf = {
   prices: (p: PriceWrite) => `${p.itemId}|${p.seasonId}|${p.deliveryPointId}|${p.observedOn}`,
   records: (r: RecordWrite) => `${r.farmId}|${r.seasonId}|${r.itemId}`,
   factors: (r: FactorWrite) => `${r.farmId}|${r.seasonId}|${r.factor}`,
+  contracts: (c: ContractWrite) => c.reference,
 };
 
 export function countExisting(writes: WriteSet, keys: Record<TableName, Set<string>>): TableCounts {
@@ -162,7 +169,7 @@ export function countExisting(writes: WriteSet, keys: Record<TableName, Set<stri
     if (set.size) forEachRow(rows, (r) => (n += set.has(key(r)) ? 1 : 0));
     return n;
   };
-  return { prices: count(writes.prices, keyOf.prices, keys.prices), records: count(writes.records, keyOf.records, keys.records), factors: count(writes.factors, keyOf.factors, keys.factors) };
+  return { prices: count(writes.prices, keyOf.prices, keys.prices), records: count(writes.records, keyOf.records, keys.records), factors: count(writes.factors, keyOf.factors, keys.factors), contracts: count(writes.contracts, keyOf.contracts, keys.contracts) };
 }
 
 /** A failed chunk, with the file rows it held, so the message can say where. */
@@ -210,10 +217,10 @@ const dates = (xs: string[]) => sql`${arrayLiteral(xs)}::text::date[]`;
  */
 async function lockReferences(tx: Db, writes: WriteSet) {
   const need: [string, string, number[]][] = [
-    ['items', 'An item', uniq([...distinct(writes.prices, (p) => p.itemId), ...distinct(writes.records, (r) => r.itemId)])],
-    ['seasons', 'A season', uniq([...distinct(writes.prices, (p) => p.seasonId), ...distinct(writes.records, (r) => r.seasonId), ...distinct(writes.factors, (r) => r.seasonId)])],
+    ['items', 'An item', uniq([...distinct(writes.prices, (p) => p.itemId), ...distinct(writes.records, (r) => r.itemId), ...distinct(writes.contracts, (c) => c.itemId)])],
+    ['seasons', 'A season', uniq([...distinct(writes.prices, (p) => p.seasonId), ...distinct(writes.records, (r) => r.seasonId), ...distinct(writes.factors, (r) => r.seasonId), ...distinct(writes.contracts, (c) => c.seasonId)])],
     ['delivery_points', 'A delivery point', distinct(writes.prices, (p) => p.deliveryPointId)],
-    ['farms', 'A farm', uniq([...distinct(writes.records, (r) => r.farmId), ...distinct(writes.factors, (r) => r.farmId)])],
+    ['farms', 'A farm', uniq([...distinct(writes.records, (r) => r.farmId), ...distinct(writes.factors, (r) => r.farmId), ...distinct(writes.contracts, (c) => c.farmId)])],
   ];
   for (const [table, what, ids] of need) {
     if (!ids.length) continue;
@@ -266,6 +273,7 @@ const COPY_COLUMNS: Record<TableName, string> = {
   prices: 'price_observations (item_id, season_id, delivery_point_id, price, currency, source, observed_on)',
   records: 'farm_records (farm_id, season_id, item_id, quantity)',
   factors: 'farm_season_factors (farm_id, season_id, factor, value)',
+  contracts: 'contracts (reference, farm_id, season_id, item_id, quantity, price_cents, currency, delivery_from, delivery_to, status)',
 };
 
 /**
@@ -290,6 +298,7 @@ export async function writeRows(
     prices: { inserted: 0, updated: 0, skipped: 0 },
     records: { inserted: 0, updated: 0, skipped: 0 },
     factors: { inserted: 0, updated: 0, skipped: 0 },
+    contracts: { inserted: 0, updated: 0, skipped: 0 },
   };
   const update = onExisting === 'update';
   let done = 0;
@@ -376,6 +385,24 @@ export async function writeRows(
         insert into ${farmSeasonFactors} (farm_id, season_id, factor, value)
         select * from unnest(${ints(c.map((r) => r.farmId))}, ${ints(c.map((r) => r.seasonId))}, ${texts(c.map((r) => r.factor))}, ${floats(c.map((r) => r.value))})
         on conflict (farm_id, season_id, factor) ${onConflict(conflict, sql`value = excluded.value`)}`),
+  );
+  await run(
+    'contracts',
+    writes.contracts,
+    keyOf.contracts,
+    (c) => [c.reference, c.farmId, c.seasonId, c.itemId, c.quantity, c.priceCents, c.currency, c.deliveryFrom, c.deliveryTo, c.status],
+    (c, conflict) =>
+      tx.execute(sql`
+        insert into ${contracts} (reference, farm_id, season_id, item_id, quantity, price_cents, currency, delivery_from, delivery_to, status)
+        select * from unnest(${texts(c.map((r) => r.reference))}, ${ints(c.map((r) => r.farmId))}, ${ints(c.map((r) => r.seasonId))}, ${ints(c.map((r) => r.itemId))},
+          ${floats(c.map((r) => r.quantity))}, ${ints(c.map((r) => r.priceCents))}, ${texts(c.map((r) => r.currency))}, ${texts(c.map((r) => r.deliveryFrom))},
+          ${texts(c.map((r) => r.deliveryTo))}, ${texts(c.map((r) => r.status))})
+        on conflict (reference) ${onConflict(
+          conflict,
+          sql`farm_id = excluded.farm_id, season_id = excluded.season_id, item_id = excluded.item_id, quantity = excluded.quantity, price_cents = excluded.price_cents,
+            currency = excluded.currency, delivery_from = excluded.delivery_from, delivery_to = excluded.delivery_to, status = excluded.status,
+            version = ${contracts}.version + 1, updated_at = now()`,
+        )}`),
   );
   if (fast) await tx.execute(sql`set local session_replication_role = origin`);
   return counts;

@@ -108,7 +108,7 @@ async function settleDeadCommit(ctx: AppContext, meta: ImportMeta): Promise<Impo
   return { ...meta, status: 'failed', result: failed };
 }
 
-const TABLE_LABEL: Record<TableName, string> = { prices: 'prices', records: 'farm records', factors: 'farm factors (land)' };
+const TABLE_LABEL: Record<TableName, string> = { prices: 'prices', records: 'farm records', factors: 'farm factors (land)', contracts: 'delivery contracts' };
 
 /** Checked rows are kept this long for the commit, so it need not read the file again. */
 const WRITES_TTL_MS = 30 * 60_000;
@@ -171,8 +171,8 @@ export class ImportJobs {
   }
 }
 
-const sum = (c: TableCounts) => c.prices + c.records + c.factors;
-const tableCounts = (w: WriteSet): TableCounts => ({ prices: w.prices.length, records: w.records.length, factors: w.factors.length });
+const sum = (c: TableCounts) => c.prices + c.records + c.factors + c.contracts;
+const tableCounts = (w: WriteSet): TableCounts => ({ prices: w.prices.length, records: w.records.length, factors: w.factors.length, contracts: w.contracts.length });
 
 function toResult(outcome: CheckedFile, existing: TableCounts, deliveryPoint: string | null): ImportResult {
   const { writes, ...rest } = outcome;
@@ -379,7 +379,7 @@ async function runCommit(ctx: AppContext, jobs: ImportJobs, meta: ImportMeta, vi
         counts.updated += c.updated;
         counts.skipped += c.skipped;
       }
-      const existing: TableCounts = { prices: byTable.prices.updated + byTable.prices.skipped, records: byTable.records.updated + byTable.records.skipped, factors: byTable.factors.updated + byTable.factors.skipped };
+      const existing: TableCounts = { prices: byTable.prices.updated + byTable.prices.skipped, records: byTable.records.updated + byTable.records.skipped, factors: byTable.factors.updated + byTable.factors.skipped, contracts: byTable.contracts.updated + byTable.contracts.skipped };
       result = { ...result, existing, existingRows: sum(existing), onExisting, counts, countsByTable: byTable };
       await recordAudit(tx, {
         actorUserId: userId,
@@ -394,6 +394,7 @@ async function runCommit(ctx: AppContext, jobs: ImportJobs, meta: ImportMeta, vi
         ['prices', 'price'],
         ['records', 'farm-record'],
         ['factors', 'farm-land'],
+        ['contracts', 'contract'],
       ];
       for (const [table, entity] of entries) {
         const c = byTable[table];

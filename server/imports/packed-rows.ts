@@ -3,7 +3,7 @@
  * thread: 100,000 price rows take about 4 MB this way and move without copying, where as objects
  * they take about 50 MB on each side of the thread boundary.
  */
-import type { FactorWrite, ImportWrites, PriceWrite, RecordWrite, TableName } from './import-types.js';
+import type { ContractWrite, FactorWrite, ImportWrites, PriceWrite, RecordWrite, TableName } from './import-types.js';
 
 /** What the commit needs of a table's rows: how many, and a few at a time. Arrays qualify. */
 export interface RowSource<T> {
@@ -15,6 +15,7 @@ export interface WriteSet {
   prices: RowSource<PriceWrite>;
   records: RowSource<RecordWrite>;
   factors: RowSource<FactorWrite>;
+  contracts: RowSource<ContractWrite>;
 }
 
 interface Spec {
@@ -27,6 +28,7 @@ const SPECS: Record<TableName, Spec> = {
   prices: { ints: ['row', 'itemId', 'seasonId', 'deliveryPointId'], floats: ['price'], texts: ['currency', 'source', 'observedOn'] },
   records: { ints: ['row', 'farmId', 'seasonId', 'itemId'], floats: ['quantity'], texts: [] },
   factors: { ints: ['row', 'farmId', 'seasonId'], floats: ['value'], texts: ['factor'] },
+  contracts: { ints: ['row', 'farmId', 'seasonId', 'itemId', 'priceCents'], floats: ['quantity'], texts: ['reference', 'currency', 'deliveryFrom', 'deliveryTo', 'status'] },
 };
 
 /** Appends rows straight into growing typed arrays, so no per-row object outlives its check. */
@@ -134,7 +136,7 @@ function packTable(rows: readonly object[], spec: Spec): PackedTable {
 
 export function packWrites(writes: ImportWrites | BuiltWrites): PackedWrites {
   const one = (rows: readonly object[] | PackedBuilder<object>, table: TableName) => (rows instanceof PackedBuilder ? rows.pack() : packTable(rows, SPECS[table]));
-  return { prices: one(writes.prices, 'prices'), records: one(writes.records, 'records'), factors: one(writes.factors, 'factors') };
+  return { prices: one(writes.prices, 'prices'), records: one(writes.records, 'records'), factors: one(writes.factors, 'factors'), contracts: one(writes.contracts, 'contracts') };
 }
 
 /** What the validator fills. */
@@ -142,10 +144,11 @@ export interface BuiltWrites {
   prices: PackedBuilder<PriceWrite>;
   records: PackedBuilder<RecordWrite>;
   factors: PackedBuilder<FactorWrite>;
+  contracts: PackedBuilder<ContractWrite>;
 }
 
 export function newBuiltWrites(): BuiltWrites {
-  return { prices: new PackedBuilder('prices'), records: new PackedBuilder('records'), factors: new PackedBuilder('factors') };
+  return { prices: new PackedBuilder('prices'), records: new PackedBuilder('records'), factors: new PackedBuilder('factors'), contracts: new PackedBuilder('contracts') };
 }
 
 /** The buffers to transfer (not copy) with a postMessage. */
@@ -172,6 +175,22 @@ const ROW_AT: Record<TableName, (t: PackedTable, i: number) => object> = {
   }),
   records: (t, i) => ({ row: t.ints.row[i], farmId: t.ints.farmId[i], seasonId: t.ints.seasonId[i], itemId: t.ints.itemId[i], quantity: t.floats.quantity[i] }),
   factors: (t, i) => ({ row: t.ints.row[i], farmId: t.ints.farmId[i], seasonId: t.ints.seasonId[i], factor: t.texts.factor.dictionary[t.texts.factor.index[i]], value: t.floats.value[i] }),
+  contracts: (t, i) => {
+    const text = (k: string) => t.texts[k].dictionary[t.texts[k].index[i]];
+    return {
+      row: t.ints.row[i],
+      reference: text('reference'),
+      farmId: t.ints.farmId[i],
+      seasonId: t.ints.seasonId[i],
+      itemId: t.ints.itemId[i],
+      quantity: t.floats.quantity[i],
+      priceCents: t.ints.priceCents[i],
+      currency: text('currency'),
+      deliveryFrom: text('deliveryFrom'),
+      deliveryTo: text('deliveryTo'),
+      status: text('status'),
+    };
+  },
 };
 
 export class PackedRows<T> implements RowSource<T> {
@@ -198,6 +217,7 @@ export function unpackedView(p: PackedWrites): WriteSet {
     prices: new PackedRows<PriceWrite>(p.prices, ROW_AT.prices),
     records: new PackedRows<RecordWrite>(p.records, ROW_AT.records),
     factors: new PackedRows<FactorWrite>(p.factors, ROW_AT.factors),
+    contracts: new PackedRows<ContractWrite>(p.contracts, ROW_AT.contracts),
   };
 }
 

@@ -87,7 +87,7 @@ describe('POST /api/imports (upload and preview)', () => {
       { row: 4, column: 'Price', message: '"12,5x" is not a number: it has the letter "x" in it' },
       { row: 5, column: 'Item', message: 'unknown item "barley" (items: wheat, canola, nitrogen, phosphate, potash, diesel, labour)' },
       { row: 6, column: 'Unit', message: 'unit "kg" is not nitrogen\'s unit "kg N"; nitrogen prices are per kg N' },
-      { row: 8, column: 'Season', message: 'unknown season "2031/32" (seasons run from 2006/07 to 2025/26)' },
+      { row: 8, column: 'Season', message: 'unknown season "2031/32" (seasons run from 2006/07 to 2026/27)' },
       { row: 9, column: 'Price', message: '"1 234,5" is written with a decimal comma (1234,5), but this co-op writes numbers with a decimal point (1234.5); it was not read (the decimal mark is a co-op setting, and an import can choose its own)' },
       { row: 10, column: 'Delivery point', message: 'unknown delivery point "Dover quay" (delivery points: Ashby elevator, Co-op input depot, Larkfield terminal, Millbrook store)' },
       { row: 11, column: 'Observed date', message: '"01/10/2024" is ambiguous (day/month or month/day?): write dates as YYYY-MM-DD' },
@@ -182,7 +182,7 @@ describe('POST /api/imports (upload and preview)', () => {
     expect(res.body).toMatchObject({ format: 'xlsx', sheet: 'Records 2025', errorCount: 0, toWrite: { records: 3, factors: 2 } });
     expect(res.body.mapping).toEqual({ farm: 'Farm', season: 'Season', item: 'Item', quantity: 'Quantity', unit: 'Unit', land_ha: 'Land (ha)' });
     // The demo co-op has records and land for every farm and season.
-    expect(res.body.existing).toEqual({ prices: 0, records: 3, factors: 2 });
+    expect(res.body.existing).toEqual({ prices: 0, records: 3, factors: 2, contracts: 0 });
     const done = await commit(res.body.id, 'update');
     expect(done.body.countsByTable).toMatchObject({ records: { updated: 3 }, factors: { updated: 2 } });
     const got = await rows(sql`

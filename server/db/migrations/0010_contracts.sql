@@ -18,9 +18,11 @@ CREATE TABLE "contracts" (
 	CONSTRAINT "contracts_window_check" CHECK ("contracts"."delivery_from" <= "contracts"."delivery_to")
 );
 --> statement-breakpoint
+ALTER TABLE "imports" DROP CONSTRAINT "imports_kind_check";--> statement-breakpoint
 ALTER TABLE "contracts" ADD CONSTRAINT "contracts_farm_id_farms_id_fk" FOREIGN KEY ("farm_id") REFERENCES "public"."farms"("id") ON DELETE cascade ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "contracts" ADD CONSTRAINT "contracts_season_id_seasons_id_fk" FOREIGN KEY ("season_id") REFERENCES "public"."seasons"("id") ON DELETE restrict ON UPDATE no action;--> statement-breakpoint
 ALTER TABLE "contracts" ADD CONSTRAINT "contracts_item_id_items_id_fk" FOREIGN KEY ("item_id") REFERENCES "public"."items"("id") ON DELETE restrict ON UPDATE no action;--> statement-breakpoint
 CREATE UNIQUE INDEX "contracts_reference_unique" ON "contracts" USING btree ("reference");--> statement-breakpoint
 CREATE INDEX "contracts_season_idx" ON "contracts" USING btree ("season_id");--> statement-breakpoint
-CREATE INDEX "contracts_farm_idx" ON "contracts" USING btree ("farm_id");
+CREATE INDEX "contracts_farm_idx" ON "contracts" USING btree ("farm_id");--> statement-breakpoint
+ALTER TABLE "imports" ADD CONSTRAINT "imports_kind_check" CHECK ("imports"."kind" in ('prices','records','observations','contracts'));

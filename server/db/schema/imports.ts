@@ -16,7 +16,7 @@ export const imports = pgTable(
   'imports',
   {
     id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
-    kind: text('kind', { enum: ['prices', 'records', 'observations'] }).notNull(),
+    kind: text('kind', { enum: ['prices', 'records', 'observations', 'contracts'] }).notNull(),
     fileName: text('file_name').notNull(),
     fileSize: integer('file_size').notNull(),
     format: text('format', { enum: ['csv', 'xlsx'] }).notNull(),
@@ -35,7 +35,7 @@ export const imports = pgTable(
   },
   (t) => [
     index('imports_created_idx').on(t.createdAt),
-    check('imports_kind_check', sql`${t.kind} in ('prices','records','observations')`),
+    check('imports_kind_check', sql`${t.kind} in ('prices','records','observations','contracts')`),
     check('imports_status_check', sql`${t.status} in ('validated','committing','committed','failed')`),
   ],
 );

@@ -55,8 +55,8 @@ function view(over: Partial<ImportView> = {}): ImportView {
     ],
     errorsNotShown: 0,
     notes: [],
-    toWrite: { prices: 1, records: 0, factors: 0 },
-    existing: { prices: 0, records: 0, factors: 0 },
+    toWrite: { prices: 1, records: 0, factors: 0, contracts: 0 },
+    existing: { prices: 0, records: 0, factors: 0, contracts: 0 },
     existingRows: 0,
     deliveryPoint: null,
     onExisting: null,
@@ -170,7 +170,7 @@ describe('ImportsPage', () => {
   it('should commit a clean file with the planner’s choice for existing rows and follow the progress to the end', async () => {
     await choose(new File(['item\n'], 'bids.csv'));
     http.expectOne({ method: 'POST', url: '/api/imports' }).flush(
-      view({ errorCount: 0, errors: [], validRows: 3, toWrite: { prices: 3, records: 0, factors: 0 }, existing: { prices: 1, records: 0, factors: 0 }, existingRows: 1 }),
+      view({ errorCount: 0, errors: [], validRows: 3, toWrite: { prices: 3, records: 0, factors: 0, contracts: 0 }, existing: { prices: 1, records: 0, factors: 0, contracts: 0 }, existingRows: 1 }),
     );
     await settle();
     expect(root.textContent).toContain('No problems found');

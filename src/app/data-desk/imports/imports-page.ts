@@ -1,7 +1,7 @@
 import { BreakpointObserver } from '@angular/cdk/layout';
 import { DatePipe, DecimalPipe } from '@angular/common';
 import { httpResource } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, computed, inject, linkedSignal, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, computed, inject, input, linkedSignal, signal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
 import { MatButton } from '@angular/material/button';
 import { MatButtonToggle, MatButtonToggleGroup } from '@angular/material/button-toggle';
@@ -39,6 +39,11 @@ export const KIND_INFO: Record<ImportKind, { label: string; about: string; colum
     label: 'Observations (wide)',
     about: 'The fitting layout: one farm and season per row, a column per price, quantity and fixed factor.',
     columns: 'season, farm, price:<item>, output:<item> or input:<item>, fixed:land_ha',
+  },
+  contracts: {
+    label: 'Delivery contracts',
+    about: 'One forward delivery contract per row; a contract number already stored updates that contract.',
+    columns: 'reference, farm, season, item, quantity, price, currency, delivery_from, delivery_to (YYYY-MM), status (offered, signed, delivered, cancelled)',
   },
 };
 
@@ -109,7 +114,12 @@ export class ImportsPage {
     { initialValue: false },
   );
 
-  protected readonly kind = signal<ImportKind>('prices');
+  /** `/imports?kind=contracts` opens the page on that kind (the contracts page links here). */
+  readonly kindParam = input<string | undefined>(undefined, { alias: 'kind' });
+  protected readonly kind = linkedSignal<ImportKind>(() => {
+    const k = this.kindParam();
+    return k && k in KIND_INFO ? (k as ImportKind) : 'prices';
+  });
   /** The planner has checked the values far from their history and accepts them. */
   protected readonly acceptWarnings = signal(false);
   protected readonly deliveryPoint = signal<string | null>(null);
@@ -149,7 +159,7 @@ export class ImportsPage {
   });
   protected readonly rowsToWrite = computed(() => {
     const w = this.view()?.toWrite;
-    return w ? w.prices + w.records + w.factors : 0;
+    return w ? w.prices + w.records + w.factors + (w.contracts ?? 0) : 0;
   });
   protected readonly unitsLine = computed(() =>
     this.ref
