@@ -7,8 +7,8 @@
  * of outcomes inside the band in every third of farm size and for the co-op total.
  * Writes bench/results/forecast-coverage.json and .md.
  */
-import { writeFileSync } from 'node:fs';
-import { cpus, loadavg } from 'node:os';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { cpus, loadavg, tmpdir } from 'node:os';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { runCoverageStudy, type CoverageStudyResult } from '../server/estimation/coverage-study.js';
@@ -22,7 +22,20 @@ const designs = [
 ];
 const load0 = loadavg();
 const t0 = performance.now();
-const results: (CoverageStudyResult & { name: string })[] = designs.map((d) => {
+// PART=k runs design k alone and keeps its figures in PART_DIR (one process per design on a
+// machine with spare cores); PARTS_FROM=dir then writes the report from the kept parts.
+const partDir = process.env.PART_DIR ?? join(tmpdir(), 'netput-coverage-parts');
+if (process.env.PART !== undefined) {
+  const d = designs[Number(process.env.PART)]!;
+  const r = runCoverageStudy({ replicates, farms: d.farms, seasons: d.seasons, seed: d.seed, draws: 2000 });
+  mkdirSync(partDir, { recursive: true });
+  writeFileSync(join(partDir, `${process.env.PART}.json`), JSON.stringify({ name: d.name, seconds: Math.round((performance.now() - t0) / 1000), load: [load0, loadavg()], ...r }));
+  console.log(`${d.name}: done`);
+  process.exit(0);
+}
+const fromParts = process.env.PARTS_FROM !== undefined;
+const parts = fromParts ? designs.map((_, k) => JSON.parse(readFileSync(join(partDir, `${k}.json`), 'utf8')) as CoverageStudyResult & { name: string; seconds: number; load: number[][] }) : null;
+const results: (CoverageStudyResult & { name: string })[] = parts ?? designs.map((d) => {
   const r = runCoverageStudy({ replicates, farms: d.farms, seasons: d.seasons, seed: d.seed, draws: 2000 });
   console.log(`${d.name}: done`);
   return { name: d.name, ...r };
@@ -34,7 +47,8 @@ const doc = {
   measuredAt: new Date().toISOString(),
   machine: { cores: cpus().length, node: process.version },
   loadAverage: { start: load0, end: loadavg() },
-  seconds: Math.round((performance.now() - t0) / 1000),
+  seconds: parts ? Math.max(...parts.map((p) => p.seconds)) : Math.round((performance.now() - t0) / 1000),
+  ...(parts ? { ranAs: 'one process per design', loadAverageByDesign: parts.map((p) => ({ design: p.name, start: p.load[0], end: p.load[1] })) } : {}),
   level: 0.9,
   target: [0.87, 0.93],
   replicatesPerDesign: replicates,

@@ -21,9 +21,9 @@ const items: SyntheticItem[] = [
 ];
 const nonConvex = generateNqPanel({ items, farms: 5, seasons: 8, firstSeason: 2015, seed: 28, noise: 0.05, withTrend: false, priceSd: 0.1 }).dataset;
 
-describe('convexity imposed by C = LL′ with ml-levenberg-marquardt', () => {
+describe('convexity imposed by C = LL′ (the cone step of curvature.ts)', () => {
   it('when convexity does not bind, the constrained fit reproduces R systemfit to 6 significant digits', () => {
-    // The LL′ path (nonlinear SUR by LM, Σ̂ iterated) must land on the same ML estimate as the
+    // The LL′ path (the constrained step, Σ̂ iterated) must land on the same ML estimate as the
     // linear ITSUR when the unrestricted estimate is already convex (reference: systemfit-nq.json).
     const fit = fitProfitFunction(panel, { trend: true, curvature: 'impose' });
     expect(fit.curvature.imposed).toBe(true);

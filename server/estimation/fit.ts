@@ -11,7 +11,7 @@ import { EstimationInputError } from './errors.js';
 import { formOf, resolveFormName } from './forms.js';
 import { covarianceToCorrelation, jacobiEigenvalues, logDetSymmetricPD, type Mat } from './linalg.js';
 import type { FormName, ModelData, ModelLayout } from './model.js';
-import { fitSur, type SurEquationInput } from './sur.js';
+import { fitSurTwoStarts, type SurEquationInput } from './sur.js';
 
 export type { CoefficientEstimate, CurvatureReport, EquationFit } from '../../shared/estimation-types.js';
 
@@ -157,7 +157,7 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
   const { rep, R } = symmetryRestrictions(equations, slots, k);
   let sur;
   try {
-    sur = fitSur(equations, {
+    sur = fitSurTwoStarts(equations, {
       method: 'SUR',
       maxIterations,
       tolerance,
@@ -170,6 +170,10 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
     throw e;
   }
   if (!sur.converged) warnings.push(`iterated SUR did not converge in ${maxIterations} iterations`);
+  if (sur.starts.kept === 'reversed')
+    warnings.push(
+      `iterated SUR started from OLS stopped at a lower maximum of the likelihood (log-likelihood ${(sur.starts.fromReversed - sur.starts.fromOls).toPrecision(3)} lower); the higher maximum, reached from a second start, is kept`,
+    );
   let theta = rep.map((pos) => sur.coefficients[pos]!);
   let covariance = rep.map((a) => rep.map((b) => sur.covariance[a]![b]!));
   let iterations = sur.iterations;

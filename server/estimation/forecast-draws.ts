@@ -19,6 +19,13 @@ export interface SharedDrawOptions {
   parameterUncertainty?: boolean;
   /** Number of price-error scenarios; when given (price risk), each draw picks one uniformly. */
   scenarios?: number;
+  /**
+   * How the season parts carry their few degrees of freedom: 'mixture' (default) multiplies them by
+   * √v_s, v_s = ν/χ²_ν, in every draw (a Bayesian scale mixture); 'plug-in' draws them at the
+   * estimated scale, for a caller that widens each quantity by its own Welch–Satterthwaite t
+   * afterwards (the projection, forecast.ts; docs/forecasting.md §6).
+   */
+  seasonScale?: 'mixture' | 'plug-in';
 }
 
 export interface SharedDraws {
@@ -50,7 +57,7 @@ export function drawSharedParts(model: ForecastModel, options: SharedDrawOptions
   const Cs = withParams && model.seasonEffects ? psdFactor(model.parameterCovariance.season) : null;
   const seasonFx = model.seasonEffects;
   const Cl = seasonFx ? psdFactor(seasonFx.covariance) : null;
-  const nu = seasonFx ? seasonFx.df : Infinity;
+  const nu = seasonFx && options.seasonScale !== 'plug-in' ? seasonFx.df : Infinity;
   const thetaDraws = new Float64Array(S * k);
   const lambdaDraws = new Float64Array(S * n);
   const scenarioOf = new Int32Array(S);

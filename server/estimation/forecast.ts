@@ -1,13 +1,17 @@
 /**
  * Predictive distributions of next season's supply and input use, per farm and for the co-op, by
  * simulation (docs/forecasting.md §6). Each draw s carries
- *   θ_s = θ̂ + C_f ε_s + √v_s C_λ ε'_s        parameter uncertainty (farm-level and season parts)
- *   λ_s = √v_s Σ_λ^{1/2} z_s                  the season shock, shared by every farm, joint across items
- *   v_s = ν / χ²_ν                            the Student t scale of both season parts (ν ≈ seasons − 1)
+ *   θ_s = θ̂ + C_f ε_s + C_λ ε'_s              parameter uncertainty (farm-level and season parts)
+ *   λ_s = Σ_λ^{1/2} z_s                       the season shock, shared by every farm, joint across items
  *   k_s                                        optionally a past season's relative price error (price risk)
- * and each farm adds its own farm-effect uncertainty and residual, normal with the size-scaled
- * variance. A farm's quantity is L·max(0, sign·(x(p)'θ_s + λ_s + μ_f + u_fs)) (never negative); the
- * co-op's is the sum over farms within the draw, so the shared shock moves every farm together.
+ * (forecast-draws.ts with seasonScale 'plug-in') and each farm adds its own farm-effect uncertainty
+ * and residual, normal with the size-scaled variance. A farm's quantity is
+ * L·max(0, sign·(x(p)'θ_s + λ_s + μ_f + u_fs)) (never negative); the co-op's is the sum over farms
+ * within the draw, so the shared shock moves every farm together.
+ * Few seasons: Σ_λ rests on ν degrees of freedom, so every reported quantity's band is that of a
+ * Student t with its Welch–Satterthwaite degrees of freedom ν* = V²/(V_season²/ν) — the season
+ * parts' share of its predictive variance decides how much it widens (a co-op total about as much as
+ * a t_ν, a farm dominated by its own residual hardly at all).
  *
  * Speed: the parts shared by all farms (parameter draws, season shock, price error) are computed
  * once per draw; per farm and draw only the farm's own normal is added. Farms take their normals
@@ -27,6 +31,7 @@ import { formOf } from './forms.js';
 import type { ModelData } from './model.js';
 import type { ForecastModel } from './panel.js';
 import { PROJECTION_CAUTION } from './projection.js';
+import { normalQuantile, studentTQuantile } from './student-t.js';
 
 export type { FarmForecast, ForecastProjection, ForecastQuantity } from '../../shared/forecast-types.js';
 
@@ -171,7 +176,10 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
   const isCommon = slots.map((sl, i) => sl.map((_, r) => sets.every((set) => set.values[i]![r]!.every((v) => v === set.values[i]![r]![0]))));
 
   // Shared draws (parameters, season shock, price-error scenario): forecast-draws.ts.
-  const shared = drawSharedParts(model, { draws: S, seed, parameterUncertainty: options.parameterUncertainty ?? true, ...(priceRisk ? { scenarios: K } : {}) });
+  // season parts at the plug-in scale; their few degrees of freedom enter through the
+  // Welch–Satterthwaite t of each reported quantity (below), not as a scale mixture
+  const withParams = options.parameterUncertainty ?? true;
+  const shared = drawSharedParts(model, { draws: S, seed, parameterUncertainty: withParams, seasonScale: 'plug-in', ...(priceRisk ? { scenarios: K } : {}) });
   const { rng, theta: thetaDraws, lambda: lambdaDraws, scenario: scenarioOf } = shared;
   const violations = shared.curvatureViolations;
   const seasonFx = model.seasonEffects;
@@ -190,6 +198,7 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
   }
 
   const probs = quantileProbs(level);
+  const welch = new WelchTable(Number.isFinite(nu) ? nu : 1e9, probs);
   const sign = layout.items.map((it) => (it.role === 'output' ? 1 : -1));
   const out = new Float64Array(S);
   const base = new Float64Array(S);
@@ -243,6 +252,47 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
       coopPoint += pointF[f]!;
     }
     const name = layout.items[i]!.name;
+    // Welch–Satterthwaite degrees of freedom of each quantity (docs/forecasting.md §6): its
+    // predictive variance V = V_known + V_season, where only the season part (the new season's
+    // shock and the parameter error that past season shocks caused) rests on the few-season
+    // estimate of Σ_λ with ν degrees of freedom; ν* = V² / (V_season² / ν).
+    const Vf = withParams ? model.parameterCovariance.idiosyncratic : null;
+    const Vsz = withParams && seasonFx ? model.parameterCovariance.season : null;
+    const lamVar = seasonFx ? seasonFx.covariance[i]![i]! : 0;
+    const quad = (V: number[][] | null, x: (r: number) => number): number => {
+      if (!V) return 0;
+      let acc = 0;
+      for (let r = 0; r < sl.length; r++) {
+        const xr = x(r);
+        if (xr === 0) continue;
+        const row = V[sl[r]!]!;
+        for (let c = 0; c < sl.length; c++) acc += xr * row[sl[c]!]! * x(c);
+      }
+      return acc;
+    };
+    const pv = pointSet.values[i]!;
+    const farmStretch = (f: number): Stretch => {
+      if (!Number.isFinite(nu)) return NO_STRETCH;
+      const xs = (r: number): number => pv[r]![f]!;
+      const vs = lamVar + quad(Vsz, xs);
+      const vk = aF[f]! ** 2 + quad(Vf, xs);
+      return welch.at(vk, vs);
+    };
+    let coopStretch: Stretch = NO_STRETCH;
+    if (Number.isFinite(nu)) {
+      const X = sl.map((_, r) => {
+        let acc = 0;
+        for (let f = 0; f < F; f++) acc += landOf[f]! * pv[r]![f]!;
+        return acc;
+      });
+      let Lsum = 0;
+      let known = 0;
+      for (let f = 0; f < F; f++) {
+        Lsum += landOf[f]!;
+        known += (landOf[f]! * aF[f]!) ** 2;
+      }
+      coopStretch = welch.at(known + quad(Vf, (r) => X[r]!), Lsum * Lsum * lamVar + quad(Vsz, (r) => X[r]!));
+    }
     if (varying.length === 0) {
       // Every farm's per-hectare draw is base_s + μ_f + a_f·η: its quantiles are μ_f plus those of
       // base + a·η, found once on a grid of a (log-spaced, common random numbers, interpolated
@@ -259,16 +309,16 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
           const v = sign[i]! > 0 ? muF[f]! + grid.at(aF[f]!, pr) : -(muF[f]! + grid.at(aF[f]!, 1 - pr));
           q.set(pr, Math.max(0, L * v));
         }
-        farmQuantities[f]![name] = shape(pointF[f]!, m[0]!, m[1]!, q, level);
+        farmQuantities[f]![name] = shape(pointF[f]!, m[0]!, m[1]!, q, level, farmStretch(f));
       }
     } else {
       for (let f = 0; f < F; f++) {
         const off = (perm[f]! + shift) % P;
         const stats = farmKernel(out, coop, base, varying, sl, sets, scenarioOf, thetaDraws, k, i, f, muF[f]!, aF[f]!, sign[i]! * landOf[f]!, pool, off, P, pilot, counts);
-        farmQuantities[f]![name] = summarise(out, pointF[f]!, probs, level, stats, counts);
+        farmQuantities[f]![name] = summarise(out, pointF[f]!, probs, level, stats, counts, farmStretch(f));
       }
     }
-    coopOut[layout.items[i]!.name] = summariseExact(coop, coopPoint, probs, level);
+    coopOut[layout.items[i]!.name] = summariseExact(coop, coopPoint, probs, level, coopStretch);
   }
   return {
     spec: model.spec,
@@ -285,6 +335,56 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
     curvatureViolationShare: violations / S,
     caution: PROJECTION_CAUTION,
   };
+}
+
+/** How a quantity's band widens from the plug-in normal to its Welch–Satterthwaite t. */
+interface Stretch {
+  /** t_ν*(p) / z(p) for a quantile probability p ≠ 0.5. */
+  ratio: (p: number) => number;
+  /** Applied to the draws' SD: √(ν* / (ν* − 2)) for ν* > 3, else the ratio at p = 0.95 (a t with ν ≤ 2 has no finite SD). */
+  sdFactor: number;
+}
+
+const NO_STRETCH: Stretch = { ratio: () => 1, sdFactor: 1 };
+
+/**
+ * Welch–Satterthwaite stretch factors for one projection: the season df ν and the quantile
+ * probabilities are fixed, ν* ≥ ν varies by quantity. t_ν*(p)/z(p) is tabulated on a grid of
+ * u = ν/ν* ∈ [0, 1] (smooth in 1/ν*) and interpolated linearly.
+ */
+class WelchTable {
+  private readonly grid = 256;
+  private readonly tables = new Map<number, Float64Array>();
+  private readonly sd: Float64Array;
+  constructor(nu: number, probs: number[]) {
+    for (const p of probs) {
+      if (p === 0.5) continue;
+      const z = normalQuantile(p);
+      const t = new Float64Array(this.grid + 1);
+      for (let g = 0; g <= this.grid; g++) {
+        const u = g / this.grid;
+        t[g] = u === 0 ? 1 : studentTQuantile(p, nu / u) / z;
+      }
+      this.tables.set(p, t);
+    }
+    const r95 = this.tables.get(0.95)!;
+    this.sd = Float64Array.from({ length: this.grid + 1 }, (_, g) => {
+      const nuStar = g === 0 ? Infinity : nu / (g / this.grid);
+      return nuStar > 3 ? Math.sqrt(nuStar / (nuStar - 2)) : r95[g]!;
+    });
+  }
+  /** The stretch for a quantity with known variance vk and season-based variance vs. */
+  at(vk: number, vs: number): Stretch {
+    if (!(vs > 0)) return NO_STRETCH;
+    const V = vk + vs;
+    // ν* = V²ν / vs², so u = ν/ν* = (vs / V)²
+    const u = Math.min(1, (vs / V) ** 2);
+    const x = u * this.grid;
+    const g = Math.min(Math.floor(x), this.grid - 1);
+    const h = x - g;
+    const lerp = (t: Float64Array): number => t[g]! + h * (t[g + 1]! - t[g]!);
+    return { ratio: (p) => lerp(this.tables.get(p)!), sdFactor: lerp(this.sd) };
+  }
 }
 
 const HIST_BINS = 1024;
@@ -497,7 +597,7 @@ function quantileProbs(level: number): number[] {
 }
 
 /** Quantiles from the histogram (interpolated within the bin), exact for the zero mass. */
-function summarise(x: Float64Array, point: number, probs: number[], level: number, st: KernelStats, counts: Int32Array): ForecastQuantity {
+function summarise(x: Float64Array, point: number, probs: number[], level: number, st: KernelStats, counts: Int32Array, stretch: Stretch): ForecastQuantity {
   const N = x.length;
   const mean = st.shift + st.sum / N;
   const sd = N > 1 ? Math.sqrt(Math.max(st.sumSq - (st.sum * st.sum) / N, 0) / (N - 1)) : 0;
@@ -531,10 +631,10 @@ function summarise(x: Float64Array, point: number, probs: number[], level: numbe
     const frac = c > 0 ? (target - cum) / c : 0;
     q.set(p, st.lo + (b - 1 + frac) * st.width);
   }
-  return shape(point, mean, sd, q, level);
+  return shape(point, mean, sd, q, level, stretch);
 }
 
-function summariseExact(x: Float64Array, point: number, probs: number[], level: number): ForecastQuantity {
+function summariseExact(x: Float64Array, point: number, probs: number[], level: number, stretch: Stretch): ForecastQuantity {
   const N = x.length;
   let m = 0;
   for (let s = 0; s < N; s++) m += x[s]!;
@@ -543,7 +643,7 @@ function summariseExact(x: Float64Array, point: number, probs: number[], level: 
   for (let s = 0; s < N; s++) v += (x[s]! - m) ** 2;
   const sorted = Float64Array.from(x).sort();
   const q = new Map(probs.map((p) => [p, typeQuantile(sorted, p)]));
-  return shape(point, m, N > 1 ? Math.sqrt(v / (N - 1)) : 0, q, level);
+  return shape(point, m, N > 1 ? Math.sqrt(v / (N - 1)) : 0, q, level, stretch);
 }
 
 /** R's type 7 quantile of a sorted sample. */
@@ -555,7 +655,12 @@ function typeQuantile(sorted: Float64Array, p: number): number {
 }
 
 /** The summary, with the band widened to hold the point when simulation noise leaves it outside. */
-function shape(point: number, mean: number, sd: number, q: Map<number, number>, level: number): ForecastQuantity {
+function shape(point: number, mean: number, sd: number, q0: Map<number, number>, level: number, stretch: Stretch): ForecastQuantity {
+  // the t of the quantity: deviations from the median stretched by t_ν*(p)/z(p); on the quantity
+  // scale and floored at 0 this equals stretching the netput before max(0, ·), as the map is monotone
+  const med = q0.get(0.5)!;
+  const q = new Map([...q0].map(([p, v]) => [p, p === 0.5 ? v : Math.max(0, med + (v - med) * stretch.ratio(p))]));
+  sd *= stretch.sdFactor;
   const lower = Math.max(0, Math.min(q.get((1 - level) / 2)!, point));
   const upper = Math.max(q.get((1 + level) / 2)!, point, lower);
   return {

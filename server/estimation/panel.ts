@@ -780,9 +780,36 @@ function seasonShockCovariance(
     return Math.sqrt(Math.max(ss / Math.max(own[i]!, 1e-9), 0));
   });
   const gram = lambda.map((a) => lambda.map((b) => dotF(a, b)));
-  const cov = gram.map((row, i) => row.map((v, j) => (i === j ? sd[i]! ** 2 : (v / Math.sqrt(gram[i]![i]! * gram[j]![j]! || 1)) * sd[i]! * sd[j]!)));
-  const df = own.reduce((a, v) => a + v, 0) / n;
-  return { covariance: clipPsd(cov), df };
+  const cov = clipPsd(gram.map((row, i) => row.map((v, j) => (i === j ? sd[i]! ** 2 : (v / Math.sqrt(gram[i]![i]! * gram[j]![j]! || 1)) * sd[i]! * sd[j]!))));
+  // Degrees of freedom (Satterthwaite 1946): σ̂_i² = (λ̂_i'λ̂_i − noise)/c_i is a quadratic form
+  // x'M_i'M_i x / c_i in the stacked shocks and season-mean noise x ~ N(0, Ω), Ω = Σ_λ ⊗ I + diag(noise),
+  // so Var(σ̂_i²) = 2 tr(B_i²)/c_i² with B_i = M_i Ω M_i' (S × S). Matching a scaled χ²_ν,
+  // ν_i = (σ_i² c_i)² / tr(B_i²). When M_i'M_i is a projection of rank c_i and there is no leakage
+  // or noise this is c_i; when the fit absorbs a part of every direction (eigenvalues between 0 and 1,
+  // the usual case) the estimate rests on more directions than c_i and ν_i > c_i.
+  const dfs = lambda.map((_, i) => {
+    const MO = Array.from({ length: S }, () => new Float64Array(NS));
+    for (let t = 0; t < S; t++) {
+      const mi = M[i * S + t]!;
+      const out = MO[t]!;
+      for (let a = 0; a < n; a++)
+        for (let s = 0; s < S; s++) {
+          let acc = noise[a]![s]! * mi[a * S + s]!;
+          for (let b = 0; b < n; b++) acc += cov[a]![b]! * mi[b * S + s]!;
+          out[a * S + s] = acc;
+        }
+    }
+    let tr2 = 0;
+    for (let t = 0; t < S; t++)
+      for (let u = 0; u < S; u++) {
+        const b = dotF(MO[t]!, M[i * S + u]!);
+        tr2 += b * b;
+      }
+    const e = cov[i]![i]! * own[i]!;
+    return tr2 > 0 && e > 0 ? (e * e) / tr2 : own[i]!;
+  });
+  const df = dfs.reduce((a, v) => a + v, 0) / n;
+  return { covariance: cov, df };
 }
 
 /** Nearest positive semidefinite matrix (negative eigenvalues set to zero). */

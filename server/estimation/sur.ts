@@ -4,7 +4,7 @@
  * systemfit does it (bordered normal equations, its residual-covariance conventions, its
  * convergence rule), so that its printed estimates can be reproduced exactly.
  */
-import { inverse, solve, zeros, type Mat } from './linalg.js';
+import { choleskyLower, inverse, logDetSymmetricPD, solve, zeros, type Mat } from './linalg.js';
 
 export type Column = ArrayLike<number>;
 
@@ -41,6 +41,12 @@ export interface SurOptions {
    * for long panels whose Σ̂ only weights the equations, not for reproducing a reference library).
    */
   residualsFromCrossProducts?: boolean;
+  /**
+   * SUR only: start the iteration from GLS with this residual covariance instead of from OLS (a
+   * second start: iterated SUR reaches a stationary point of the likelihood, which need not be the
+   * highest one).
+   */
+  initialSigma?: Mat;
 }
 
 /** Cross products of pairs of column objects (see SurOptions.crossProductCache). */
@@ -75,6 +81,52 @@ export interface SurResult {
   converged: boolean;
   /** K_i net of restrictions that involve equation i alone (used by the Σ̂ divisors). */
   coefficientsNetOfRestrictions: number[];
+}
+
+export interface SurStarts {
+  /** Concentrated log-likelihood −T/2·ln|Σ̂| (constants left out) reached from each start. */
+  fromOls: number;
+  fromReversed: number;
+  /** The start whose maximum was kept (the higher likelihood; OLS on a tie). */
+  kept: 'ols' | 'reversed';
+}
+
+/**
+ * Iterated SUR from two starts, keeping the higher likelihood. Iterated SUR climbs to a stationary
+ * point of the Gaussian likelihood, and the SUR likelihood can have more than one local maximum
+ * (Drton & Richardson 2004, "Multimodality of the likelihood in the bivariate seemingly unrelated
+ * regressions model", Biometrika 91(2): 383–392), so the usual start at OLS can stop at the lower
+ * one. The second start is GLS with the first solution's residual correlations reversed in sign
+ * (variances kept; if that matrix is not positive definite, with the correlations set to zero),
+ * which starts the climb on the other side of the likelihood's ridge in correlation.
+ * docs/profit-functions.md §5.
+ */
+export function fitSurTwoStarts(equations: SurEquationInput[], options: SurOptions = {}): SurResult & { starts: SurStarts } {
+  const first = fitSur(equations, { ...options, method: 'SUR' });
+  const T = first.observations;
+  const ll = (r: SurResult): number => {
+    try {
+      return (-T / 2) * logDetSymmetricPD(r.residualCovariance);
+    } catch {
+      return -Infinity;
+    }
+  };
+  const S = first.residualCovariance;
+  const n = S.length;
+  let start: Mat = S.map((row, i) => row.map((v, j) => (i === j ? v : -v)));
+  if (!choleskyLower(start)) start = S.map((row, i) => row.map((v, j) => (i === j ? v : 0)));
+  const l1 = ll(first);
+  if (n < 2 || !S.every((row, i) => row[i]! > 0)) return { ...first, starts: { fromOls: l1, fromReversed: l1, kept: 'ols' } };
+  let second: SurResult | null = null;
+  try {
+    second = fitSur(equations, { ...options, method: 'SUR', initialSigma: start });
+  } catch {
+    second = null;
+  }
+  const l2 = second ? ll(second) : -Infinity;
+  // keep the second only when it is clearly higher (not rounding) and it converged
+  const better = second !== null && second.converged && l2 > l1 + 1e-9 * Math.max(1, Math.abs(l1));
+  return { ...(better ? second! : first), starts: { fromOls: l1, fromReversed: l2, kept: better ? 'reversed' : 'ols' } };
 }
 
 /**
@@ -197,7 +249,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
     return S;
   };
 
-  let { coef, cov } = gls(null, method === 'OLS');
+  let { coef, cov } = gls(method === 'SUR' && options.initialSigma ? inverse(options.initialSigma) : null, method === 'OLS');
   let iterations = 0;
   let converged = true;
   let sigmaUsed: Mat;
