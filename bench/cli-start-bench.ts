@@ -7,6 +7,8 @@
  *   - `npm run --silent fit -- --input FILE --trend` (the documented command: npm, then the
  *     bundled JavaScript of scripts/cli.mjs);
  *   - `node scripts/cli.mjs fit ...` (the same without npm's own start);
+ *   - the npm command with `--committed wheat=1500,canola=400` (the committed-output section,
+ *     1000 draws; docs/fit-command.md §5), for what that option adds;
  *   - `tsx server/estimation/cli.ts ...` (compiling the TypeScript at start, the old way), for
  *     comparison.
  * Also recorded: each process's CPU time (user + system, from /usr/bin/time when present), the
@@ -88,6 +90,12 @@ const yardStart = yardstick();
 const results = [
   series('npm run --silent fit -- --input FILE --trend', 'npm', ['run', '--silent', 'fit', '--', ...args], 7),
   series('node scripts/cli.mjs fit --input FILE --trend', process.execPath, [join(root, 'scripts', 'cli.mjs'), 'fit', ...args], 7),
+  series(
+    'npm run --silent fit -- --input FILE --trend --committed wheat=1500,canola=400 (committed outputs, 1000 draws)',
+    'npm',
+    ['run', '--silent', 'fit', '--', ...args, '--committed', 'wheat=1500,canola=400'],
+    5,
+  ),
   series('tsx server/estimation/cli.ts --input FILE --trend (old start, for comparison)', join(root, 'node_modules', '.bin', 'tsx'), [join(root, 'server', 'estimation', 'cli.ts'), ...args], 3),
 ];
 const loadEnd = loadavg();

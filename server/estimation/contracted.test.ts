@@ -57,8 +57,8 @@ const rel = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(b), 1e
 describe('the engine on a Cobb–Douglas technology (outside source: textbook closed-form cost function)', () => {
   const A = 2;
   const a: [number, number] = [0.3, 0.5];
-  const w: [number, number] = [3, 5];
-  const y = 10;
+  const w: [number, number] = [3, 4];
+  const y = 12;
   const tech = cobbDouglas(A, a);
   // start far from the answer: the general solve must find it
   const sol = solveCommitted(tech, [1, w[0], w[1]], [0], [y]) as SolveSuccess;
@@ -72,6 +72,14 @@ describe('the engine on a Cobb–Douglas technology (outside source: textbook cl
 
   it('marginal cost p* = C/(r·y) (Varian ch. 4, from memory)', () => {
     expect(rel(sol.prices[0]!, ref.mc)).toBeLessThan(1e-10);
+  });
+
+  it('reproduces the check point of docs/sources.md §12 (computed from the closed form with 30-digit arithmetic)', () => {
+    const d = dualAt(tech, sol, [0])!;
+    expect(rel(d.cost, 65.344688474631777)).toBeLessThan(1e-12);
+    expect(rel(-sol.netputs[1]!, 8.1680860593289722)).toBeLessThan(1e-12);
+    expect(rel(-sol.netputs[2]!, 10.210107574161215)).toBeLessThan(1e-12);
+    expect(rel(sol.prices[0]!, 6.8067383827741435)).toBeLessThan(1e-12);
   });
 
   it('conditional factor demands x_j = a_j·C/(r·w_j) and cost C = p*·y* − π(p*, w) (Varian ch. 4–5, from memory)', () => {
@@ -113,6 +121,9 @@ describe('the engine on a Cobb–Douglas technology (outside source: textbook cl
     expect(rel(-s.netputs[1]!, L)).toBeLessThan(1e-10);
     expect(rel(-s.netputs[2]!, K)).toBeLessThan(1e-10);
     expect(rel(dualAt(t, s, [0])!.cost, wage * L + rent * K)).toBeLessThan(1e-10);
+    // docs/sources.md §12, second check point (30-digit arithmetic from the page's formulas)
+    expect(rel(-s.netputs[1]!, 60.498428089475912)).toBeLessThan(1e-12);
+    expect(rel(-s.netputs[2]!, 90.747642134213868)).toBeLessThan(1e-12);
   });
 });
 
@@ -123,7 +134,7 @@ describe('the engine on a Cobb–Douglas technology (outside source: textbook cl
 
 const SEED = 19_0601;
 // eslint-disable-next-line no-console
-console.info(`contracted.test.ts: fast-check seed ${SEED} (replay with { seed: ${SEED}, path } from a failure report)`);
+console.info(`contracted.test.ts: fast-check seeds ${SEED} (homogeneity), ${SEED + 1} (concavity), ${SEED + 2} (Le Chatelier), ${SEED + 3} (round trip); replay with { seed, path } from a failure report`);
 
 const NQ_LAYOUT: ModelLayout = (() => {
   const items = [
