@@ -2,8 +2,8 @@
  * The columns of a price table as files and pasted blocks carry them: the import reads them, the
  * export writes them in this order (so a downloaded file re-imports unchanged), and a block pasted
  * into the prices grid is read by the same header spellings. Declared once here; the import's fields
- * (server/imports/import-fields.ts), the export's columns (server/exports/data-exports.ts) and the
- * paste reader (src/app/data-desk/paste.ts) derive from it.
+ * (server/imports/import-fields.ts), the export's columns (server/exports/data-exports.ts), the
+ * paste reader (src/app/data-desk/paste.ts) and the prices grid's headings derive from it.
  */
 export interface PriceColumn {
   /** The field name, also the export's header. */
@@ -32,6 +32,12 @@ export const PRICE_COLUMNS: readonly PriceColumn[] = [
 ];
 
 export type PriceColumnField = PriceColumn['field'];
+
+/** Each column's label (grid headings, messages). */
+export const PRICE_COLUMN_LABEL = Object.fromEntries(PRICE_COLUMNS.map((c) => [c.field, c.label])) as Record<PriceColumnField, string>;
+
+/** The columns a file or a pasted block must have. */
+export const REQUIRED_PRICE_FIELDS: readonly PriceColumnField[] = PRICE_COLUMNS.filter((c) => c.required).map((c) => c.field);
 
 /** A header spelling in comparable form: lower case, `_`, `-` and runs of spaces as one space. */
 export function normalColumnName(name: string): string {

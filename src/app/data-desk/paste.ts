@@ -4,7 +4,7 @@ import { priceSchema } from '../../../shared/data-schemas';
 // The import's own cell parsers and unit comparison (pure TypeScript, luxon only), so a pasted block
 // and an uploaded file are judged by the same rules in the same words.
 import { guessDelimiter, parseCurrency, parseDecimal, parseIsoDate, parseNumber, quote, type DecimalMark } from '../../../shared/cell-parsers';
-import { PRICE_COLUMNS, PRICE_HEADER_NAMES, normalColumnName, type PriceColumnField } from '../../../shared/price-columns';
+import { PRICE_COLUMN_LABEL, PRICE_COLUMNS, PRICE_HEADER_NAMES, REQUIRED_PRICE_FIELDS, normalColumnName, type PriceColumnField } from '../../../shared/price-columns';
 import { priceUnitParts, sameUnit } from '../../../shared/unit-names';
 import type { Lookups } from './reference-store';
 
@@ -32,7 +32,7 @@ export function parseTable(text: string): string[][] {
 export const PRICE_PASTE_COLUMNS = PRICE_COLUMNS.map((c) => c.field).filter((f) => f !== 'unit') as Exclude<PriceColumnField, 'unit'>[];
 export type PricePasteColumn = PriceColumnField;
 
-const COLUMN_LABEL = Object.fromEntries(PRICE_COLUMNS.map((c) => [c.field, c.label])) as Record<PricePasteColumn, string>;
+const COLUMN_LABEL: Record<PricePasteColumn, string> = PRICE_COLUMN_LABEL;
 
 /** The header spellings of the import and the export (shared/price-columns.ts), after the bracketed unit is dropped. */
 function headerKey(cell: string): PricePasteColumn | undefined {
@@ -84,8 +84,8 @@ export function readPastedPrices(table: string[][], lookups: Lookups, defaults: 
     table[0].forEach((cell, i) => {
       if (!headerGuess[i] && cell !== '') problems.push({ row: 1, column: cell, message: `the column ${quote(cell)} is not one the prices use; it is ignored` });
     });
-    for (const required of ['item', 'season', 'delivery_point', 'price', 'observed_on'] as const) {
-      if (!columns.includes(required)) problems.push({ row: 1, column: null, message: `no column is headed ${COLUMN_LABEL[required].toLowerCase()}` });
+    for (const required of REQUIRED_PRICE_FIELDS) {
+      if (!columns.includes(required as PricePasteColumn)) problems.push({ row: 1, column: null, message: `no column is headed ${COLUMN_LABEL[required].toLowerCase()}` });
     }
   } else if (table.some((r) => r.length > PRICE_PASTE_COLUMNS.length)) {
     problems.push({

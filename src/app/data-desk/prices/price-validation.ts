@@ -1,17 +1,18 @@
 import type { PriceRow } from '../../../../shared/api-types';
 import { priceSchema, type PriceInput } from '../../../../shared/data-schemas';
+import { PRICE_COLUMN_LABEL } from '../../../../shared/price-columns';
 
 /** The price fields a planner edits in the grid. */
 export type PriceField = keyof PriceInput;
 
 export const PRICE_FIELD_LABEL: Record<PriceField, string> = {
-  itemId: 'Item',
-  seasonId: 'Season',
-  deliveryPointId: 'Delivery point',
-  price: 'Price',
-  currency: 'Currency',
-  source: 'Source',
-  observedOn: 'Observed on',
+  itemId: PRICE_COLUMN_LABEL.item,
+  seasonId: PRICE_COLUMN_LABEL.season,
+  deliveryPointId: PRICE_COLUMN_LABEL.delivery_point,
+  price: PRICE_COLUMN_LABEL.price,
+  currency: PRICE_COLUMN_LABEL.currency,
+  source: PRICE_COLUMN_LABEL.source,
+  observedOn: PRICE_COLUMN_LABEL.observed_on,
 };
 
 /** The body of PUT /api/prices/:id for `row` with one field changed. */

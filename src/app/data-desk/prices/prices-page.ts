@@ -172,7 +172,7 @@ export class PricesPage {
     return [
       {
         field: 'itemId',
-        headerName: 'Item',
+        headerName: PRICE_FIELD_LABEL.itemId,
         minWidth: 120,
         flex: 1,
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => itemName(p.value),
@@ -184,7 +184,7 @@ export class PricesPage {
       },
       {
         field: 'seasonId',
-        headerName: 'Season',
+        headerName: PRICE_FIELD_LABEL.seasonId,
         width: 125,
         sort: 'desc',
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => seasonLabel(p.value),
@@ -196,7 +196,7 @@ export class PricesPage {
       },
       {
         field: 'deliveryPointId',
-        headerName: 'Delivery point',
+        headerName: PRICE_FIELD_LABEL.deliveryPointId,
         minWidth: 130,
         flex: 1,
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => pointName(p.value),
@@ -208,7 +208,7 @@ export class PricesPage {
       },
       {
         field: 'price',
-        headerName: 'Price',
+        headerName: PRICE_FIELD_LABEL.price,
         type: 'numericColumn',
         width: 105,
         filter: 'agNumberColumnFilter',
@@ -226,7 +226,7 @@ export class PricesPage {
       },
       {
         field: 'currency',
-        headerName: 'Currency',
+        headerName: PRICE_FIELD_LABEL.currency,
         width: 95,
         filter: false,
         cellEditor: 'agTextCellEditor',
@@ -234,7 +234,7 @@ export class PricesPage {
       },
       {
         field: 'source',
-        headerName: 'Source',
+        headerName: PRICE_FIELD_LABEL.source,
         minWidth: 120,
         flex: 1.5,
         tooltipField: 'source',
@@ -243,7 +243,7 @@ export class PricesPage {
       },
       {
         field: 'observedOn',
-        headerName: 'Observed on',
+        headerName: PRICE_FIELD_LABEL.observedOn,
         width: 120,
         filter: false,
         cellEditor: 'agDateStringCellEditor',
