@@ -28,6 +28,7 @@ import { outlookRoutes } from './outlook/outlook-router.js';
 import { futuresRoutes } from './outlook/futures-router.js';
 import { portalRoutes } from './outlook/portal-router.js';
 import { accountMailRoutes, unsubscribeRoutes } from './outlook/account-router.js';
+import { bookingsRoutes, devPaymentsRoutes, paymentsRoutes } from './bookings/bookings-router.js';
 import { VERSION } from './version.js';
 
 export interface NetputApp extends express.Express {
@@ -65,6 +66,8 @@ export function createApp(ctx: AppContext): NetputApp {
   );
 
   const api = Router();
+  // Webhook signatures are computed over the exact bytes sent: that route keeps its raw body.
+  api.use('/payments/webhook', express.raw({ type: () => true, limit: '256kb' }));
   api.use(express.json({ limit: '1mb' }));
   api.use(cookieParser());
   api.use(loadSession(ctx.db, ctx.changes ?? null));
@@ -119,6 +122,9 @@ export function createApp(ctx: AppContext): NetputApp {
   api.use('/unsubscribe', express.urlencoded({ extended: false, limit: '2kb' }));
   mount('/unsubscribe', unsubscribeRoutes(ctx));
   mount('/dev/mail', devMailRoutes(ctx));
+  mount('/bookings', bookingsRoutes(ctx));
+  mount('/payments', paymentsRoutes(ctx));
+  mount('/dev/payments', devPaymentsRoutes(ctx));
   api.use(notFoundHandler);
   api.use(errorHandler);
   app.use('/api', api);

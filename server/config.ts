@@ -17,9 +17,18 @@ export interface Config {
   logLevel: string;
   /** Folder with the built Angular app, served with an SPA fallback when it exists. */
   appDir: string;
+  /** The payment service's secret key; unset: a local fake payment service is started. */
+  paymentSecretKey?: string;
+  /** The signing secret of the payment service's webhooks (required with PAYMENT_SECRET_KEY). */
+  paymentWebhookSecret?: string;
+  /** Tests only: an http(s) URL of a payment service to use instead of the real one (a fake in another process). */
+  paymentApiUrl?: string;
+  /** How often the reconciliation job asks the payment service about pending payments, ms. */
+  paymentReconcileMs: number;
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env, argv: string[] = process.argv): Config {
+  if (env.PAYMENT_SECRET_KEY && !env.PAYMENT_WEBHOOK_SECRET) throw new Error('PAYMENT_WEBHOOK_SECRET must be set with PAYMENT_SECRET_KEY (the webhooks cannot be verified without it)');
   const port = Number(env.PORT ?? 3000);
   if (!Number.isInteger(port) || port < 0 || port > 65535) throw new Error(`PORT must be a port number, not "${env.PORT}"`);
   const dev = argv.includes('--dev') || env.NODE_ENV === 'development';
@@ -35,5 +44,16 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, argv: string[] 
     secureCookies: env.COOKIE_SECURE ? env.COOKIE_SECURE === 'true' : publicUrl.startsWith('https://'),
     logLevel: env.LOG_LEVEL ?? 'info',
     appDir: path.resolve(env.APP_DIR ?? 'dist/netput/browser'),
+    paymentSecretKey: env.PAYMENT_SECRET_KEY || undefined,
+    paymentWebhookSecret: env.PAYMENT_WEBHOOK_SECRET || undefined,
+    paymentApiUrl: env.PAYMENT_API_URL || undefined,
+    paymentReconcileMs: positiveMs(env.PAYMENT_RECONCILE_MS, 60_000, 'PAYMENT_RECONCILE_MS'),
   };
+}
+
+function positiveMs(value: string | undefined, fallback: number, name: string): number {
+  if (value === undefined || value === '') return fallback;
+  const n = Number(value);
+  if (!Number.isInteger(n) || n < 100) throw new Error(`${name} must be a whole number of milliseconds ≥ 100, not "${value}"`);
+  return n;
 }

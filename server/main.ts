@@ -9,6 +9,9 @@ import { importCommitsIdle } from './imports/imports-service.js';
 import { seedDemoIfEmpty } from '../seed/load-demo.js';
 import { startBackupSocket, type BackupSocket } from './db/backup-socket.js';
 import { DEMO_ACCOUNTS, DEMO_PASSWORD } from '../seed/demo-coop.js';
+import { startPayments } from './bookings/payments-setup.js';
+import { bookingDeps } from './bookings/bookings-router.js';
+import { startPaymentReconciler } from './jobs/payment-reconciler.js';
 
 const config = loadConfig();
 
@@ -43,15 +46,24 @@ async function main() {
   }
   const mailer = createMailer(smtpUrl, config.mailFrom);
   const background = startBackgroundWork(database.db, { mailer });
-  const app = createApp({ db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp, jobs: background.runner });
+  const payments = await startPayments(config, Number(process.env.FAKE_PAYMENTS_PORT ?? 0));
+  const ctx = { db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp, jobs: background.runner, payments: payments.gateway, fakePayments: payments.fake };
+  const app = createApp(ctx);
+  const reconciler = startPaymentReconciler(bookingDeps(ctx), config.paymentReconcileMs);
 
   const server = app.listen(config.port, () => {
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : config.port;
     const url = `http://localhost:${port}`;
+    // The local fake payment service sends its signed webhooks to this server, as the real one would.
+    payments.fake?.setWebhookTarget(async (body, signature) => {
+      const r = await fetch(`http://127.0.0.1:${port}/api/payments/webhook`, { method: 'POST', headers: { 'content-type': 'application/json', 'stripe-signature': signature }, body });
+      return r.status;
+    });
     const lines = [
       `Netput is running at ${url}`,
       `  database: ${database.kind === 'pglite' ? `PGlite in ${config.dataDir}/pglite` : 'PostgreSQL server (DATABASE_URL)'}`,
+      `  payments: ${payments.fake ? `local fake payment service on 127.0.0.1:${payments.fake.port} (no money moves)` : 'PAYMENT_SECRET_KEY'}`,
       `  mail: ${fakeSmtp ? `local fake SMTP server on 127.0.0.1:${fakeSmtp.port}${config.dev ? ` (read it at ${url}/admin/mail)` : ''}` : 'SMTP_URL'}`,
     ];
     if (seeded) lines.push('  the demo co-op was loaded into the empty database');
@@ -69,10 +81,12 @@ async function main() {
     server.closeAllConnections();
     // Let a running import commit finish (or roll back) before the database closes.
     await importCommitsIdle();
+    await reconciler.stop();
     await background.stop();
     await backupSocket?.close();
     mailer.close();
     await fakeSmtp?.close();
+    await payments.close();
     await database.close();
     process.exit(0);
   };

@@ -64,6 +64,9 @@ const ENTITY_WORDS: Record<string, [string, string]> = {
   outlook: ['outlook', 'outlooks'],
   mail: ['mail preference', 'mail preferences'],
   contract: ['delivery contract', 'delivery contracts'],
+  booking: ['booking', 'bookings'],
+  'booking-round': ['booking round', 'booking rounds'],
+  'booking-payment': ['prepayment', 'prepayments'],
 };
 
 /** What the action's last word does, as a past-tense verb. */
@@ -82,6 +85,8 @@ const VERBS: Record<string, string> = {
   'mail-retry': 'sent a failed e-mail again for',
   commit: 'committed',
   cancel: 'cancelled',
+  prepaid: 'recorded the prepayment of',
+  state: 'changed the state of',
   subscribe: 'turned outlook e-mails on for',
   unsubscribe: 'turned outlook e-mails off for',
   'unsubscribe-link': 'turned outlook e-mails off (unsubscribe link) for',

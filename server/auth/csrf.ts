@@ -83,6 +83,8 @@ export function csrfProtection(db: Db, secure: boolean): RequestHandler {
   return async (req, res, next) => {
     // RFC 8058 one-click unsubscribe: mail providers POST without cookies; the signed token in the address is the authority.
     if (req.method === 'POST' && /^\/unsubscribe\/[^/]+$/.test(req.path)) return next();
+    // The payment service's webhooks carry no cookies; their signature (checked by the route) is the authority.
+    if (req.method === 'POST' && req.path === '/payments/webhook') return next();
     const secret = await secretOf(db);
     const binding = req.sessionId ? sessionBinding(req.sessionId) : preSessionBinding(preSession(req, res, secure));
     const cookieValid = verifyCsrfToken(secret, binding, req.cookies?.[XSRF_COOKIE]);

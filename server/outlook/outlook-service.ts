@@ -34,7 +34,7 @@ export type { OutlookSnapshot } from '../../shared/outlook-types.js';
 // ---------------------------------------------------------------------------------------------
 // Drafts
 
-async function seasonFor(db: Db, label: string, actorUserId: number) {
+export async function seasonFor(db: Db, label: string, actorUserId: number) {
   const [found] = await db.select().from(seasons).where(eq(seasons.label, label));
   if (found) return found;
   const startYear = Number(label.slice(0, 4));

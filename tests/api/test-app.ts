@@ -6,15 +6,22 @@ import { loadConfig } from '../../server/config.js';
 import type { Database } from '../../server/db/client.js';
 import { openTestDatabase } from './test-db.js';
 import { createApp, type NetputApp } from '../../server/app.js';
+import type { AppContext } from '../../server/context.js';
 import { createMailer } from '../../server/mail/mailer.js';
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
 import { loadDemoCoop } from '../../seed/load-demo.js';
 import { startBackgroundWork } from '../../server/jobs/background.js';
+import { startFakePayments, type FakePayments } from '../../server/bookings/fake-payments.js';
+import { createPaymentGateway } from '../../server/bookings/payment-gateway.js';
 
 export interface TestApp {
   app: NetputApp;
   database: Database;
   smtp: FakeSmtp;
+  /** The local fake payment service; its webhooks go to the app through supertest. */
+  payments: FakePayments;
+  /** The context the app was built with (tests call services directly with it). */
+  ctx: AppContext;
   close(): Promise<void>;
 }
 
@@ -28,12 +35,19 @@ export async function startTestApp(options: { demo?: boolean; dev?: boolean; job
   };
   const mailer = createMailer(smtp.url, config.mailFrom);
   const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50, mailer }) : undefined;
-  const app = createApp({ db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp: smtp, jobs: background?.runner, logDestination: options.logDestination });
+  const payments = await startFakePayments();
+  const gateway = createPaymentGateway({ secretKey: payments.secretKey, webhookSecret: payments.webhookSecret, api: payments.api, kind: 'fake' });
+  const ctx: AppContext = { db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp: smtp, jobs: background?.runner, logDestination: options.logDestination, payments: gateway, fakePayments: payments };
+  const app = createApp(ctx);
+  payments.setWebhookTarget(async (body, signature) => (await supertest(app).post('/api/payments/webhook').set('content-type', 'application/json').set('stripe-signature', signature).send(body)).status);
   return {
     app,
     database,
     smtp,
+    payments,
+    ctx,
     async close() {
+      await payments.close();
       await background?.stop();
       mailer.close();
       await smtp.close();

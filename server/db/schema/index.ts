@@ -12,3 +12,4 @@ export * from './imports.js';
 export * from './budgets.js';
 export * from './outlook.js';
 export * from './contracts.js';
+export * from './bookings.js';
