@@ -13,7 +13,7 @@ import { getRun } from '../models/models-service.js';
 import { isEstimationInputError, type FitResult, type NetputDataset } from '../estimation/index.js';
 import type { UnitSystem } from '../../shared/units.js';
 import { monthsOutsideInputs, monthWords, seasonWindows, type SeasonCalendar } from '../../shared/season-calendar.js';
-import type { BudgetInput, BudgetSource } from './budget-schemas.js';
+import type { BudgetInput, BudgetSource } from '../../shared/budget-schemas.js';
 import { computeBudget, type BudgetResult, type ProductCopy, type ResolvedSource } from './budget-compute.js';
 import { inUnits } from './budget-units.js';
 import { activeProducts, productsByIds } from './fertiliser-products.js';

@@ -4,7 +4,7 @@ import { idParamSchema } from '../../shared/schemas.js';
 import type { AppContext } from '../context.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
-import { budgetExportQuerySchema, budgetInputSchema, budgetViewQuerySchema, fertiliserProductSchema } from './budget-schemas.js';
+import { budgetExportQuerySchema, budgetInputSchema, budgetViewQuerySchema, fertiliserProductSchema } from '../../shared/budget-schemas.js';
 import { budgetCsv, budgetXlsx } from './budget-export.js';
 import { budgetForExport, createBudget, deleteBudget, getBudget, listBudgets, previewBudget, unitSystemOf, updateBudget } from './budget-service.js';
 import { createProduct, deleteProduct, listProducts, updateProduct } from './fertiliser-products.js';

@@ -3,7 +3,7 @@ import type { Db } from '../db/client.js';
 import { fertiliserProducts } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
-import type { FertiliserProductInput } from './budget-schemas.js';
+import type { FertiliserProductInput } from '../../shared/budget-schemas.js';
 
 export type FertiliserProduct = typeof fertiliserProducts.$inferSelect;
 

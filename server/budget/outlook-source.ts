@@ -14,7 +14,7 @@ import { outlookVersionFarms, outlookVersions } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { getRun } from '../models/models-service.js';
 import type { FitResult, ForecastModel } from '../estimation/index.js';
-import type { BudgetSource } from './budget-schemas.js';
+import type { BudgetSource } from '../../shared/budget-schemas.js';
 import type { ResolvedSource } from './budget-compute.js';
 import { coopElasticities, demandAt, forecastDemandAt } from './model-demand.js';
 import { nutrientItemsOf, priceItemsOf } from './nutrient-items.js';

@@ -41,7 +41,7 @@ export const fertiliserProducts = pgTable(
 export const budgets = pgTable('budgets', {
   id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
   name: text('name').notNull(),
-  /** BudgetSource: model-run | manual | outlook (server/budget/budget-schemas.ts). */
+  /** BudgetSource: model-run | manual | outlook (shared/budget-schemas.ts). */
   source: jsonb('source').notNull(),
   /** Copies of the fertiliser products used, with any budget-specific price or lot. */
   products: jsonb('products').notNull(),

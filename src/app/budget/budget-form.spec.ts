@@ -1,4 +1,6 @@
-import { bookingProblems, defaultBooking, formValueFromStored, scenarioName, toBudgetInput, whereOf } from './budget-form';
+import { TestBed } from '@angular/core/testing';
+import { NonNullableFormBuilder } from '@angular/forms';
+import { bookingProblems, defaultBooking, formValueFromStored, monthGroup, scenarioGroup, scenarioName, toBudgetInput, whereOf } from './budget-form';
 import type { FertiliserProduct, ProductCopy, StoredInputs } from './budget-types';
 
 // The demo list's urea and DAP (grades: Cornell NRCCA CA4 PO26 and UNL PASSEL; prices invented for the demo).
@@ -119,5 +121,25 @@ describe('scenarioName', () => {
     expect(scenarioName({ nitrogen: -15, phosphate: -15, potash: -15 })).toBe('All nutrients −15 %');
     expect(scenarioName({ nitrogen: 10, phosphate: 10, potash: 5 })).toBe('N +10 %, P2O5 +10 %, K2O +5 %');
     expect(scenarioName({ nitrogen: 0, phosphate: 0, potash: 0 })).toBe('No price change');
+  });
+});
+
+describe('field checks from the server\'s schema (shared/budget-schemas.ts)', () => {
+  it('should accept what the server accepts and refuse what it refuses, in its words', () => {
+    const fb = TestBed.inject(NonNullableFormBuilder);
+    const g = scenarioGroup(fb, { name: 'Crash', nitrogen: -99.995, phosphate: null, potash: 500 });
+    // The server takes any change above −100 % (a hand copy used to stop at −99.99 %).
+    expect(g.controls.nitrogen.valid).toBe(true);
+    expect(g.controls.potash.valid).toBe(true);
+    g.controls.nitrogen.setValue(-100);
+    expect(g.controls.nitrogen.getError('schema')).toBe('A price change must be above −100 %');
+    g.controls.potash.setValue(500.5);
+    expect(g.controls.potash.getError('schema')).toBe('A price change above +500 % is not plausible');
+    const m = monthGroup(fb, { month: '2026-08', sharePct: 0, prepay: true });
+    expect(m.controls.sharePct.getError('schema')).toBe('A booked share must be above 0');
+    m.controls.sharePct.setValue(100.5);
+    expect(m.controls.sharePct.getError('schema')).toBe('A booked share is at most 1 (100 %)');
+    m.controls.sharePct.setValue(0.001);
+    expect(m.controls.sharePct.valid).toBe(true);
   });
 });

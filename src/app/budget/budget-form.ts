@@ -1,5 +1,7 @@
 import { type AbstractControl, type FormArray, type FormGroup, type NonNullableFormBuilder, type ValidationErrors, Validators } from '@angular/forms';
 import type { UnitSystem } from '../../../shared/units';
+import { bookedShareSchema, bookingPlanSchema, budgetInputSchema, pctChangeSchema, scenarioSchema } from '../../../shared/budget-schemas';
+import { zodValidator } from '../shared/zod-validator';
 import { DEFAULT_SEASON_CALENDAR, defaultBookingMonths, type SeasonCalendar } from '../../../shared/season-calendar';
 import { massFromShown, massToShown, pricePerTFromShown, pricePerTToShown, productFromShown, productToShown } from './budget-units';
 import type {
@@ -362,19 +364,28 @@ function productsValidator(control: AbstractControl): ValidationErrors | null {
   return (control.value as ProductValue[]).some((p) => p.include && !p.gone) ? null : { products: 'Choose at least one product.' };
 }
 
-const pctChange = [Validators.min(-99.99), Validators.max(500)];
+/** A % change field: empty (no change) or what the server accepts (shared/budget-schemas.ts). */
+const pctChange = [zodValidator(pctChangeSchema.nullable())];
+
+/** A share typed in % checked as the server's fraction, so the limits and words are the server's. */
+function sharePctValidator(control: AbstractControl): ValidationErrors | null {
+  const v = control.value as number | null;
+  if (v === null) return null;
+  const r = bookedShareSchema.safeParse(v / 100);
+  return r.success ? null : { schema: r.error.issues[0]?.message ?? 'Not valid' };
+}
 
 export function monthGroup(fb: NonNullableFormBuilder, v: BookingMonthValue) {
   return fb.group({
     month: [v.month, [Validators.required, Validators.pattern(MONTH)]],
-    sharePct: fb.control<number | null>(v.sharePct, [Validators.required, Validators.min(0.0001), Validators.max(100)]),
+    sharePct: fb.control<number | null>(v.sharePct, [Validators.required, sharePctValidator]),
     prepay: [v.prepay],
   });
 }
 
 export function scenarioGroup(fb: NonNullableFormBuilder, v: ScenarioValue) {
   return fb.group({
-    name: [v.name, [Validators.required, Validators.maxLength(80)]],
+    name: [v.name, [Validators.required, zodValidator(scenarioSchema.shape.name)]],
     nitrogen: fb.control<number | null>(v.nitrogen, pctChange),
     phosphate: fb.control<number | null>(v.phosphate, pctChange),
     potash: fb.control<number | null>(v.potash, pctChange),
@@ -399,7 +410,7 @@ export function productGroup(fb: NonNullableFormBuilder, v: ProductValue) {
 export function buildBudgetForm(fb: NonNullableFormBuilder, v: BudgetFormValue) {
   const nonNegative = [Validators.required, Validators.min(0)];
   return fb.group({
-    name: [v.name, [Validators.required, Validators.maxLength(120)]],
+    name: [v.name, [Validators.required, zodValidator(budgetInputSchema.shape.name)]],
     source: fb.group({
       kind: fb.control<SourceKind>(v.source.kind),
       outlookVersionId: fb.control<number | null>(v.source.outlookVersionId),
@@ -415,10 +426,10 @@ export function buildBudgetForm(fb: NonNullableFormBuilder, v: BudgetFormValue) 
     booking: fb.group(
       {
         months: fb.array(v.booking.months.map((m) => monthGroup(fb, m))),
-        prepayDiscountPct: fb.control<number | null>(v.booking.prepayDiscountPct, [Validators.required, Validators.min(0), Validators.max(50)]),
-        paymentTermsDays: fb.control<number | null>(v.booking.paymentTermsDays, [Validators.required, Validators.min(0), Validators.max(365)]),
+        prepayDiscountPct: fb.control<number | null>(v.booking.prepayDiscountPct, [Validators.required, zodValidator(bookingPlanSchema.shape.prepayDiscountPct)]),
+        paymentTermsDays: fb.control<number | null>(v.booking.paymentTermsDays, [Validators.required, zodValidator(bookingPlanSchema.shape.paymentTermsDays)]),
         deliveryMonth: [v.booking.deliveryMonth, [Validators.required, Validators.pattern(MONTH)]],
-        financingRatePct: fb.control<number | null>(v.booking.financingRatePct, [Validators.min(0), Validators.max(100)]),
+        financingRatePct: fb.control<number | null>(v.booking.financingRatePct, [zodValidator(bookingPlanSchema.shape.financingRatePct)]),
       },
       { validators: bookingValidator },
     ),

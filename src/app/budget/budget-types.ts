@@ -1,11 +1,13 @@
 import type { BudgetResult as EngineBudgetResult, ElasticityMatrix, LotRule, Nutrient, NutrientAmounts, PriceChanges, ProductCopy, SourceKind } from '../../../shared/budget-types';
 import type { UnitSystem } from '../../../shared/units';
+import type { z } from 'zod';
+import type { bookingPlanSchema, budgetInputSchema, budgetOptionsSchema, budgetProductChoiceSchema, budgetSourceSchema, scenarioSchema } from '../../../shared/budget-schemas';
 
 /**
  * The shapes the budget API answers with and accepts. The engine's result (nutrients, product mix,
- * booking and cash, scenarios) is declared once in shared/budget-types.ts; the request bodies follow
- * server/budget/budget-schemas.ts (zod) and the list rows server/budget/budget-service.ts, with the
- * fields the screens read or send.
+ * booking and cash, scenarios) is declared once in shared/budget-types.ts; the request bodies are
+ * the types of the zod schemas in shared/budget-schemas.ts, which the server parses with; the list
+ * rows follow server/budget/budget-service.ts, with the fields the screens read.
  */
 
 export {
@@ -39,59 +41,16 @@ export type FertiliserProductInput = Omit<FertiliserProduct, 'id' | 'updatedAt'>
 
 // --- inputs -----------------------------------------------------------------------------------
 
-export type BudgetSource =
-  | {
-      kind: 'model-run';
-      runId: number;
-      prices?: Record<string, number>;
-      season?: number;
-      items?: Partial<Record<Nutrient, string>>;
-    }
-  | { kind: 'manual'; nKg: number; p2o5Kg: number; k2oKg: number; elasticities?: ElasticityMatrix }
-  | { kind: 'outlook'; outlookVersionId: number; scenario?: string; pricing?: 'outlook' | 'list'; sideBySide?: boolean; items?: Partial<Record<Nutrient, string>> };
-
-export interface BookingMonthInput {
-  /** YYYY-MM */
-  month: string;
-  /** 0 < share ≤ 1; the shares add up to 1. */
-  share: number;
-  prepay: boolean;
-}
-
-export interface BookingPlanInput {
-  months: BookingMonthInput[];
-  prepayDiscountPct: number;
-  paymentTermsDays: number;
-  deliveryMonth: string;
-  financingRatePct: number | null;
-}
-
-export interface ScenarioInput {
-  name: string;
-  priceChanges: PriceChanges;
-  productPriceChanges: Record<string, number>;
-}
-
-export interface BudgetOptions {
-  lotRule: LotRule;
-  referencePrices?: Partial<Record<Nutrient, number>>;
-}
-
-export interface BudgetProductChoice {
-  productId: number;
-  pricePerT?: number;
-  lotT?: number;
-}
+/** Where the demand comes from, as sent (fields with a server default may be left out). */
+export type BudgetSource = z.input<typeof budgetSourceSchema>;
+export type BookingMonthInput = BookingPlanInput['months'][number];
+export type BookingPlanInput = z.output<typeof bookingPlanSchema>;
+export type ScenarioInput = z.output<typeof scenarioSchema>;
+export type BudgetOptions = z.output<typeof budgetOptionsSchema>;
+export type BudgetProductChoice = z.output<typeof budgetProductChoiceSchema>;
 
 /** The body of POST `/api/budgets`, `/api/budgets/preview` and PUT `/api/budgets/:id` (metric). */
-export interface BudgetInput {
-  name: string;
-  source: BudgetSource;
-  products?: BudgetProductChoice[];
-  bookingPlan: BookingPlanInput;
-  scenarios: ScenarioInput[];
-  options: BudgetOptions;
-}
+export type BudgetInput = Omit<z.output<typeof budgetInputSchema>, 'source'> & { source: BudgetSource };
 
 // --- results ----------------------------------------------------------------------------------
 

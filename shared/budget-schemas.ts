@@ -1,7 +1,12 @@
+/**
+ * The budget API's request bodies (zod), one declaration for the server, which parses with them,
+ * and the client, whose form types and field checks derive from them.
+ */
 import { z } from 'zod';
-import { idSchema } from '../../shared/ids.js';
+import { idSchema } from './ids.js';
 
-const pctChange = z.number().gt(-100, 'A price change must be above −100 %').max(500, 'A price change above +500 % is not plausible');
+/** A % price change: above −100 % (a price cannot fall to zero) and at most +500 %. */
+export const pctChangeSchema = z.number().gt(-100, 'A price change must be above −100 %').max(500, 'A price change above +500 % is not plausible');
 const itemCode = z.string().trim().min(1).max(40);
 const month = z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, 'Use YYYY-MM, e.g. 2026-08');
 const kg = z.number().nonnegative('Use a number of kg ≥ 0').max(1e12);
@@ -48,9 +53,12 @@ export const budgetSourceSchema = z.discriminatedUnion('kind', [
 ]);
 export type BudgetSource = z.output<typeof budgetSourceSchema>;
 
+/** The share of the season's tonnage booked in one month, as a fraction (0.4 = 40 %). */
+export const bookedShareSchema = z.number().gt(0, 'A booked share must be above 0').max(1, 'A booked share is at most 1 (100 %)');
+
 export const bookingPlanSchema = z.strictObject({
   months: z
-    .array(z.strictObject({ month, share: z.number().gt(0, 'A booked share must be above 0').max(1, 'A booked share is at most 1 (100 %)'), prepay: z.boolean().default(true) }))
+    .array(z.strictObject({ month, share: bookedShareSchema, prepay: z.boolean().default(true) }))
     .min(1, 'Book at least one month')
     .max(24, 'Book over at most 24 months'),
   prepayDiscountPct: z.number().min(0).max(50).default(0),
@@ -62,9 +70,9 @@ export const bookingPlanSchema = z.strictObject({
 export const scenarioSchema = z.strictObject({
   name: z.string().trim().min(1, 'Name the scenario').max(80),
   /** % change of each nutrient's price, e.g. { nitrogen: 20 }. */
-  priceChanges: z.strictObject({ nitrogen: pctChange, phosphate: pctChange, potash: pctChange }).partial().default({}),
+  priceChanges: z.strictObject({ nitrogen: pctChangeSchema, phosphate: pctChangeSchema, potash: pctChangeSchema }).partial().default({}),
   /** % change of single products' prices by product id, overriding the nutrient rule. */
-  productPriceChanges: z.record(z.string().regex(/^\d+$/, 'Key by product id'), pctChange).default({}),
+  productPriceChanges: z.record(z.string().regex(/^\d+$/, 'Key by product id'), pctChangeSchema).default({}),
 });
 
 export const budgetOptionsSchema = z.strictObject({
