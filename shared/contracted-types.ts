@@ -126,7 +126,7 @@ export interface ContractedCoopResult {
   quantities: Record<string, number>;
   /** Quantity-weighted mean marginal cost over the evaluated farms that committed the output. */
   marginalCost: Record<string, ContractedBand>;
-  /** Quantity-weighted mean margin over the evaluated farms with a contract price. */
+  /** Quantity-weighted mean margin over the evaluated farms that gave a contract price. */
   margin: Record<string, ContractedBand>;
   freeOutputs: Record<string, ContractedBand>;
   inputs: Record<string, ContractedBand>;

@@ -389,6 +389,23 @@ describe('evaluateContracted on the per-hectare forecasting model', () => {
     }
   });
 
+  it('bands follow the projection: few seasons widen a figure by the t of its own Welch–Satterthwaite degrees of freedom, the co-op (season-dominated) more than a farm (docs/forecasting.md §6)', () => {
+    expect(model.seasonEffects!.df).toBeLessThan(10);
+    const many = structuredClone(model);
+    many.seasonEffects!.df = 1e9; // as if the season shock's scale were known: no widening
+    const farms = [0, 1, 2, 3, 4, 5].map((j) => farm(j, { wheat: 6.4 * land(j) }));
+    const few = evaluateContracted(model, { farms, prices, draws: 600, seed: 2 });
+    const known = evaluateContracted(many, { farms, prices, draws: 600, seed: 2 });
+    const width = (b: { lower: number; upper: number }) => b.upper - b.lower;
+    const coopRatio = width(few.coop.inputs.nitrogen!) / width(known.coop.inputs.nitrogen!);
+    const farmRatio = width(few.farms[0]!.inputs.nitrogen!) / width(known.farms[0]!.inputs.nitrogen!);
+    expect(farmRatio).toBeGreaterThanOrEqual(1);
+    expect(coopRatio).toBeGreaterThan(farmRatio);
+    // the same draws: only the stretch differs, so the medians agree
+    expect(few.coop.inputs.nitrogen!.median).toBe(known.coop.inputs.nitrogen!.median);
+    expect(width(few.coop.marginalCost.wheat!)).toBeGreaterThan(width(known.coop.marginalCost.wheat!));
+  });
+
   it('Le Chatelier on the fitted model: every conditional own-price elasticity is at most the unconditional one in absolute value', () => {
     const r = pointOf({ farms: [0, 1, 2].map((j) => farm(j, { wheat: 6.5 * land(j) })), prices });
     for (const f of [...r.farms.map((x) => x.elasticities!), r.coop.elasticities!]) {

@@ -13,7 +13,9 @@
  * shared by all farms) plus the farm's own level and residual uncertainty shifts the technology; the
  * committed quantities stay fixed, so the marginal cost, conditional demands and cost move instead.
  * Co-op figures are sums over farms within each draw (the marginal cost and margin: tonnage-weighted
- * means). Estimates, not advice.
+ * means). As in the projection, the season parts are drawn at their plug-in scale and each figure's
+ * band is stretched to the t of its own Welch–Satterthwaite degrees of freedom (farmStretches).
+ * Estimates, not advice.
  */
 import type {
   ContractedBand,
@@ -26,8 +28,9 @@ import type {
   ContractedOutputResult,
   ElasticityTable,
 } from '../../shared/contracted-types.js';
-import { dualAt, solveCommitted, type DualPoint, type SolveFailure, type Technology } from './contracted-core.js';
+import { dualAt, solveCommitted, type DualPoint, type SolveFailure, type SolveSuccess, type Technology } from './contracted-core.js';
 import { EstimationInputError } from './errors.js';
+import { NO_STRETCH, WelchTable, type Stretch } from './forecast.js';
 import { drawSharedParts, type SharedDraws } from './forecast-draws.js';
 import { formOf } from './forms.js';
 import { netputsFromDecomposition } from './model.js';
@@ -123,9 +126,23 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     linearIn: (c) => layout.form === 'normalized-quadratic' && !c.includes(n - 1),
   });
 
-  const shared: SharedDraws | null = S > 0 ? drawSharedParts(model, { draws: S, seed, parameterUncertainty: options.parameterUncertainty ?? true }) : null;
+  // As the projection (forecast.ts): the season parts at their plug-in scale, and each reported
+  // figure's band stretched to the Student t of its own Welch–Satterthwaite degrees of freedom.
+  const withParams = options.parameterUncertainty ?? true;
+  const shared: SharedDraws | null = S > 0 ? drawSharedParts(model, { draws: S, seed, parameterUncertainty: withParams, seasonScale: 'plug-in' }) : null;
   const rng = shared ? shared.rng : new SeededRandom(seed);
-  const probs = [(1 - level) / 2, 0.05, 0.5, 0.95, (1 + level) / 2];
+  const probs = [...new Set([(1 - level) / 2, 0.05, 0.5, 0.95, (1 + level) / 2])].sort((a, b) => a - b);
+  const nu = model.seasonEffects ? model.seasonEffects.df : Infinity;
+  const welch = S > 0 && Number.isFinite(nu) ? new WelchTable(nu, probs) : null;
+  const Vf = withParams ? model.parameterCovariance.idiosyncratic : null;
+  const Vs = withParams && model.seasonEffects ? model.parameterCovariance.season : null;
+  const Sl = model.seasonEffects ? model.seasonEffects.covariance : null;
+  // Co-op sensitivities for the stretch: rows 0..n−1 marginal-cost numerators by item, n..2n−1
+  // margin numerators, 2n..3n−1 netput sums (levels), 3n cost, 3n+1 input spending.
+  const CQ = 3 * n + 2;
+  const coopJt = welch ? Array.from({ length: CQ }, () => new Float64Array(k)) : null;
+  const coopJl = welch ? Array.from({ length: CQ }, () => new Float64Array(n)) : null;
+  const coopNoise = new Float64Array(CQ);
 
   // Co-op accumulators per draw (NaN once any evaluated farm fails in that draw).
   const coopInputs = names.map(() => new Float64Array(S));
@@ -241,6 +258,27 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     const freeIdx = names.map((_, i) => i).filter((i) => roles[i] === 'output' && !isCommitted[i]);
     const inputIdx = names.map((_, i) => i).filter((i) => roles[i] === 'input');
 
+    // Welch–Satterthwaite stretch of every figure of this farm (and its share of the co-op's).
+    const stretchOf = welch
+      ? farmStretches(f, welch, {
+          roles,
+          k,
+          n,
+          theta: fit.theta,
+          Vf,
+          Vs,
+          Sl,
+          solve: (theta, shift) => {
+            const start = f.prices.slice();
+            f.committed.forEach((c) => (start[c] = pStar[c]!));
+            const r = solveCommitted(technology(theta, f.z, shift), start, f.committed, f.target, { keepNonPositive: true });
+            return r.ok ? r : null;
+          },
+          coop: { Jt: coopJt!, Jl: coopJl!, noise: coopNoise, marginOf: (c) => f.spec.contractPrices?.[names[c]!] !== undefined },
+        })
+      : null;
+    const stretch = (row: number): Stretch => (stretchOf ? stretchOf[row]! : NO_STRETCH);
+
     // Draws.
     const mc = f.committed.map(() => new Float64Array(S));
     const inputsD = inputIdx.map(() => new Float64Array(S));
@@ -303,7 +341,8 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
         });
       }
     }
-    const band = (values: Float64Array, point: number, clip: boolean): ContractedBand => summarise(values, ok, point, probs, level, clip);
+    const band = (values: Float64Array, point: number, clip: boolean, st: Stretch): ContractedBand => summarise(values, ok, point, probs, level, clip, st);
+    const m = f.committed.length;
 
     const outputs: Record<string, ContractedOutputResult> = {};
     f.committed.forEach((c, j) => {
@@ -312,10 +351,10 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
       outputs[names[c]!] = {
         quantity: f.quantity[j]!,
         perHectare: perHa ? f.target[j]! : null,
-        marginalCost: band(mc[j]!, pStar[c]!, false),
+        marginalCost: band(mc[j]!, pStar[c]!, false, stretch(j)),
         marginalCostSlope: dual.marginalCostSlope[j]![j]! / f.land,
         contractPrice: cp ?? null,
-        margin: marginValues ? band(marginValues, cp! - pStar[c]!, false) : null,
+        margin: marginValues ? band(marginValues, cp! - pStar[c]!, false, stretch(j)) : null,
         history: history[j] ?? null,
       };
       coopPoint.qty[c]! += f.quantity[j]!;
@@ -328,13 +367,13 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     const inputs: Record<string, ContractedBand> = {};
     inputIdx.forEach((i, j) => {
       const x = Math.max(0, -f.land * yStar[i]!);
-      inputs[names[i]!] = band(inputsD[j]!, x, true);
+      inputs[names[i]!] = band(inputsD[j]!, x, true, stretch(m + i));
       coopPoint.inputs[i]! += x;
     });
     const freeOutputs: Record<string, ContractedBand> = {};
     freeIdx.forEach((i, j) => {
       const q = Math.max(0, f.land * yStar[i]!);
-      freeOutputs[names[i]!] = band(freeD[j]!, q, true);
+      freeOutputs[names[i]!] = band(freeD[j]!, q, true, stretch(m + i));
       coopPoint.free[i]! += q;
       coopPoint.freeAny[i] = true;
     });
@@ -353,8 +392,8 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
       freeOutputs,
       inputs,
       unconditionalInputs,
-      cost: band(costD, f.land * dual.cost, false),
-      inputSpending: band(spendD, f.land * dual.inputSpending, false),
+      cost: band(costD, f.land * dual.cost, false, stretch(m + n)),
+      inputSpending: band(spendD, f.land * dual.inputSpending, false, stretch(m + n + 1)),
       elasticities: farmTables(parts, names),
       failedDrawShare: S > 0 ? failed / S : 0,
       belowZeroDrawShare: S > 0 ? belowZero / S : 0,
@@ -364,7 +403,13 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
   // Co-op.
   progress(0.95, 'Co-op totals');
   const evaluatedCount = farms.filter((f) => f.evaluated).length;
-  const coopBand = (values: Float64Array, point: number, clip: boolean): ContractedBand => summarise(values, coopOk, point, probs, level, clip);
+  const coopStretch = (row: number): Stretch => {
+    if (!welch) return NO_STRETCH;
+    const jt = coopJt![row]!;
+    const jl = coopJl![row]!;
+    return welch.at(quadForm(Vf, jt) + coopNoise[row]!, quadForm(Vs, jt) + quadForm(Sl, jl));
+  };
+  const coopBand = (values: Float64Array, point: number, clip: boolean, row: number): ContractedBand => summarise(values, coopOk, point, probs, level, clip, coopStretch(row));
   const coop: ContractedCoopResult = {
     quantities: {},
     marginalCost: {},
@@ -372,27 +417,26 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     freeOutputs: {},
     inputs: {},
     unconditionalInputs: {},
-    cost: coopBand(coopCost, coopPoint.cost, false),
-    inputSpending: coopBand(coopSpend, coopPoint.spend, false),
+    cost: coopBand(coopCost, coopPoint.cost, false, 3 * n),
+    inputSpending: coopBand(coopSpend, coopPoint.spend, false, 3 * n + 1),
     elasticities: null,
     farmsEvaluated: evaluatedCount,
     farmsLeftOut: leftOut,
   };
   names.forEach((nm, i) => {
     if (roles[i] === 'input') {
-      coop.inputs[nm] = coopBand(coopInputs[i]!, coopPoint.inputs[i]!, true);
+      coop.inputs[nm] = coopBand(coopInputs[i]!, coopPoint.inputs[i]!, true, 2 * n + i);
       coop.unconditionalInputs[nm] = coopPoint.unconditional[i]!;
     }
     if (anyCommitted[i] && coopPoint.qty[i]! > 0) {
       const Q = coopPoint.qty[i]!;
       coop.quantities[nm] = Q;
-      coop.marginalCost[nm] = coopBand(Float64Array.from(coopMcNum[i]!, (v) => v / Q), coopPoint.mcNum[i]! / Q, false);
+      coop.marginalCost[nm] = coopBand(Float64Array.from(coopMcNum[i]!, (v) => v / Q), coopPoint.mcNum[i]! / Q, false, i);
+      // the margin: tonnage-weighted over the farms that gave a contract price
       const MQ = coopPoint.marginQty[i]!;
-      // the margin is weighted over the farms that gave a contract price; it needs all of them to
-      // have one for the draws (which sum over every farm), so it is reported only then
-      if (MQ > 0 && Math.abs(MQ - Q) <= 1e-12 * Q) coop.margin[nm] = coopBand(Float64Array.from(coopMarginNum[i]!, (v) => v / Q), coopPoint.marginNum[i]! / Q, false);
+      if (MQ > 0) coop.margin[nm] = coopBand(Float64Array.from(coopMarginNum[i]!, (v) => v / MQ), coopPoint.marginNum[i]! / MQ, false, n + i);
     }
-    if (roles[i] === 'output' && coopPoint.freeAny[i]) coop.freeOutputs[nm] = coopBand(coopFree[i]!, coopPoint.free[i]!, true);
+    if (roles[i] === 'output' && coopPoint.freeAny[i]) coop.freeOutputs[nm] = coopBand(coopFree[i]!, coopPoint.free[i]!, true, 2 * n + i);
   });
   coop.elasticities = coopTables(coopElast, names, roles, anyCommitted);
 
@@ -754,8 +798,12 @@ function coopTables(farms: { farmX: number[]; farm: FarmElasticityParts }[], nam
 // ---------------------------------------------------------------------------------------------
 // Summaries
 
-/** Point and predictive summary over the draws marked ok (the band widened to hold the point, as in the projection). */
-function summarise(values: Float64Array, ok: Uint8Array, point: number, probs: number[], level: number, clip: boolean): ContractedBand {
+/**
+ * Point and predictive summary over the draws marked ok: deviations of the quantiles from the median
+ * stretched by the figure's Welch–Satterthwaite t (as the projection's), the SD by its factor, and
+ * the band widened to hold the point.
+ */
+function summarise(values: Float64Array, ok: Uint8Array, point: number, probs: number[], level: number, clip: boolean, stretch: Stretch): ContractedBand {
   const xs: number[] = [];
   for (let s = 0; s < values.length; s++) if (ok[s]) xs.push(values[s]!);
   const c = (v: number) => (clip ? Math.max(0, v) : v);
@@ -767,14 +815,118 @@ function summarise(values: Float64Array, ok: Uint8Array, point: number, probs: n
   m /= N;
   let v2 = 0;
   for (const v of sorted) v2 += (v - m) ** 2;
-  const q = (p: number) => {
+  const raw = (p: number) => {
     const h = (N - 1) * p;
     const lo = Math.floor(h);
     const hi = Math.min(lo + 1, N - 1);
     return sorted[lo]! + (h - lo) * (sorted[hi]! - sorted[lo]!);
   };
-  void probs;
-  const lower = Math.min(q((1 - level) / 2), point);
-  const upper = Math.max(q((1 + level) / 2), point);
-  return { point: c(point), mean: c(m), sd: N > 1 ? Math.sqrt(v2 / (N - 1)) : 0, median: c(q(0.5)), p5: c(q(0.05)), p95: c(q(0.95)), lower: c(lower), upper: c(upper) };
+  const med = raw(0.5);
+  const q = new Map(probs.map((p) => [p, p === 0.5 ? med : med + (raw(p) - med) * stretch.ratio(p)]));
+  const lower = Math.min(q.get((1 - level) / 2)!, point);
+  const upper = Math.max(q.get((1 + level) / 2)!, point);
+  const sd = N > 1 ? Math.sqrt(v2 / (N - 1)) * stretch.sdFactor : 0;
+  return { point: c(point), mean: c(m), sd, median: c(med), p5: c(q.get(0.05)!), p95: c(q.get(0.95)!), lower: c(lower), upper: c(upper) };
+}
+
+/** x′Vx over the parameters or items (0 without V). */
+function quadForm(V: number[][] | null, x: ArrayLike<number>): number {
+  if (!V) return 0;
+  let acc = 0;
+  for (let a = 0; a < x.length; a++) {
+    const xa = x[a]!;
+    if (xa === 0) continue;
+    const row = V[a]!;
+    for (let b = 0; b < x.length; b++) acc += xa * row[b]! * x[b]!;
+  }
+  return acc;
+}
+
+interface StretchContext {
+  roles: readonly ('output' | 'input')[];
+  k: number;
+  n: number;
+  theta: number[];
+  Vf: number[][] | null;
+  Vs: number[][] | null;
+  Sl: number[][] | null;
+  solve: (theta: ArrayLike<number>, shift: ArrayLike<number>) => SolveSuccess | null;
+  coop: { Jt: Float64Array[]; Jl: Float64Array[]; noise: Float64Array; marginOf: (c: number) => boolean };
+}
+
+/**
+ * Welch–Satterthwaite stretches of one farm's figures (docs/cost-duality.md §6). Each figure q is
+ * linearised at the point by central differences in the parameters θ and in the shift of every
+ * netput (the season shock λ and the farm's own level and residual u enter the same way); then
+ *   V_known = J_θ′ V_f J_θ + Σ_i (J_i a_i)²,   V_season = J_θ′ V_s J_θ + J_λ′ Σ_λ J_λ,
+ * and the stretch is that of a t with ν* = V² ν / V_season². Rows: the committed outputs' marginal
+ * costs, the n netputs (levels), cost, input spending. Adds the farm's parts to the co-op's rows.
+ */
+function farmStretches(f: FarmSetup, welch: WelchTable, cx: StretchContext): Stretch[] {
+  const { k, n } = cx;
+  const m = f.committed.length;
+  const R = m + n + 2;
+  const isC = new Set(f.committed);
+  const figures = (sol: SolveSuccess): number[] => {
+    let cost = 0;
+    let spend = 0;
+    for (let i = 0; i < n; i++) {
+      if (!isC.has(i)) cost -= sol.prices[i]! * sol.netputs[i]!;
+      if (cx.roles[i] === 'input') spend -= sol.prices[i]! * sol.netputs[i]!;
+    }
+    return [...f.committed.map((c) => sol.prices[c]!), ...sol.netputs.map((y) => f.land * y), f.land * cost, f.land * spend];
+  };
+  const Jt = Array.from({ length: R }, () => new Float64Array(k));
+  const Jl = Array.from({ length: R }, () => new Float64Array(n));
+  const th = cx.theta.slice();
+  for (let a = 0; a < k; a++) {
+    const sd = Math.sqrt(Math.max((cx.Vf?.[a]?.[a] ?? 0) + (cx.Vs?.[a]?.[a] ?? 0), 0));
+    if (!(sd > 0)) continue;
+    const h = 1e-3 * sd;
+    th[a] = cx.theta[a]! + h;
+    const up = cx.solve(th, f.mu);
+    th[a] = cx.theta[a]! - h;
+    const dn = cx.solve(th, f.mu);
+    th[a] = cx.theta[a]!;
+    if (!up || !dn) continue;
+    const fu = figures(up);
+    const fd = figures(dn);
+    for (let r = 0; r < R; r++) Jt[r]![a] = (fu[r]! - fd[r]!) / (2 * h);
+  }
+  const shift = f.mu.slice();
+  for (let i = 0; i < n; i++) {
+    const sd = Math.max(f.noiseSd[i]!, Math.sqrt(Math.max(cx.Sl?.[i]?.[i] ?? 0, 0)));
+    if (!(sd > 0)) continue;
+    const h = 1e-3 * sd;
+    shift[i] = f.mu[i]! + h;
+    const up = cx.solve(cx.theta, shift);
+    shift[i] = f.mu[i]! - h;
+    const dn = cx.solve(cx.theta, shift);
+    shift[i] = f.mu[i]!;
+    if (!up || !dn) continue;
+    const fu = figures(up);
+    const fd = figures(dn);
+    for (let r = 0; r < R; r++) Jl[r]![i] = (fu[r]! - fd[r]!) / (2 * h);
+  }
+  const noiseOf = (jl: Float64Array, w: number): number => {
+    let acc = 0;
+    for (let i = 0; i < n; i++) acc += (w * jl[i]! * f.noiseSd[i]!) ** 2;
+    return acc;
+  };
+  // the co-op's rows
+  const addTo = (row: number, r: number, w: number): void => {
+    const jt = cx.coop.Jt[row]!;
+    const jl = cx.coop.Jl[row]!;
+    for (let a = 0; a < k; a++) jt[a]! += w * Jt[r]![a]!;
+    for (let i = 0; i < n; i++) jl[i]! += w * Jl[r]![i]!;
+    cx.coop.noise[row]! += noiseOf(Jl[r]!, w);
+  };
+  f.committed.forEach((c, j) => {
+    addTo(c, j, f.quantity[j]!);
+    if (cx.coop.marginOf(c)) addTo(n + c, j, -f.quantity[j]!);
+  });
+  for (let i = 0; i < n; i++) addTo(2 * n + i, m + i, 1);
+  addTo(3 * n, m + n, 1);
+  addTo(3 * n + 1, m + n + 1, 1);
+  return Array.from({ length: R }, (_, r) => welch.at(quadForm(cx.Vf, Jt[r]!) + noiseOf(Jl[r]!, 1), quadForm(cx.Vs, Jt[r]!) + quadForm(cx.Sl, Jl[r]!)));
 }

@@ -338,21 +338,21 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
 }
 
 /** How a quantity's band widens from the plug-in normal to its Welch–Satterthwaite t. */
-interface Stretch {
+export interface Stretch {
   /** t_ν*(p) / z(p) for a quantile probability p ≠ 0.5. */
   ratio: (p: number) => number;
   /** Applied to the draws' SD: √(ν* / (ν* − 2)) for ν* > 3, else the ratio at p = 0.95 (a t with ν ≤ 2 has no finite SD). */
   sdFactor: number;
 }
 
-const NO_STRETCH: Stretch = { ratio: () => 1, sdFactor: 1 };
+export const NO_STRETCH: Stretch = { ratio: () => 1, sdFactor: 1 };
 
 /**
  * Welch–Satterthwaite stretch factors for one projection: the season df ν and the quantile
  * probabilities are fixed, ν* ≥ ν varies by quantity. t_ν*(p)/z(p) is tabulated on a grid of
  * u = ν/ν* ∈ [0, 1] (smooth in 1/ν*) and interpolated linearly.
  */
-class WelchTable {
+export class WelchTable {
   private readonly grid = 256;
   private readonly tables = new Map<number, Float64Array>();
   private readonly sd: Float64Array;
