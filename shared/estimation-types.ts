@@ -79,3 +79,86 @@ export interface QuantitySummary {
   p5: number;
   p95: number;
 }
+
+export type FormName = 'normalized-quadratic' | 'generalized-leontief';
+
+/** An item of the netput system: an output (supplied, netput > 0) or an input (demanded, netput < 0). */
+export interface NetputRef {
+  name: string;
+  role: 'output' | 'input';
+}
+
+export interface ModelLayout {
+  form: FormName;
+  /** Items in the order of every vector and matrix: non-numeraire items in file order, numeraire last. */
+  items: NetputRef[];
+  numeraire: string;
+  /** Fixed factors in file order, then "trend" when a trend is fitted. */
+  factors: string[];
+  /** The first `quadraticFactors` factors also enter quadratically (all but the trend). */
+  quadraticFactors: number;
+  /** Trend = season year − originYear + 1, when a trend is fitted. */
+  trendOrigin: number | null;
+  /** Names of the structural parameters θ, in order. */
+  parameterNames: string[];
+}
+
+export interface MonotonicityReport {
+  item: string;
+  role: NetputRef['role'];
+  /** Observations whose fitted netput has the wrong sign (output ≤ 0 or input ≥ 0). */
+  violations: number;
+  share: number;
+}
+
+/** A fitted profit function: plain JSON, safe to post to a worker thread or store. */
+export interface FitResult {
+  layout: ModelLayout;
+  observations: number;
+  /** Structural parameter estimates θ, named by layout.parameterNames. */
+  theta: number[];
+  /** Cov(θ̂) (delta method through L when convexity was imposed). */
+  covariance: number[][];
+  standardErrors: number[];
+  /** Residual covariance Σ̂ (divisor T) from the final residuals, layout item order. */
+  sigma: number[][];
+  residualCorrelation: number[][];
+  equations: EquationFit[];
+  /** Gaussian log-likelihood at Σ̂: −T/2·(n·ln 2π + ln|Σ̂| + n). */
+  logLikelihood: number;
+  /** Number of free coefficients (length of θ). */
+  parameterCount: number;
+  /** −2ℓ + 2k and −2ℓ + k·ln T, with k the free coefficients (Σ̂ not counted). */
+  aic: number;
+  bic: number;
+  iterations: number;
+  converged: boolean;
+  /** First and last season year in the data (a projection's trend defaults to last + 1). */
+  seasonYears: { first: number; last: number };
+  /** Sample means (layout order): the default evaluation point. */
+  means: { prices: number[]; fixed: number[] };
+  /** Prices the GL curvature block is defined at (the sample means). */
+  referencePrices: number[];
+  curvature: CurvatureReport;
+  monotonicity: MonotonicityReport[];
+  /** Share of observations with at least one wrong-signed fitted netput. */
+  monotonicityViolationShare: number;
+  warnings: string[];
+}
+
+/** One back-tested season of a model run (server/jobs/fit-task.ts). */
+export interface BacktestSeason {
+  season: string;
+  /** Co-op totals (quantities ≥ 0 in item units) predicted at the prices actually seen, and actual. */
+  predicted: Record<string, number>;
+  actual: Record<string, number>;
+  fittedOn: { first: string; last: string; observations: number };
+}
+
+export interface BacktestItem {
+  item: string;
+  /** Mean absolute percentage error over the back-tested seasons, in %. */
+  mape: number;
+  /** Mean of (predicted − actual) / actual, in % (positive: the model over-projects). */
+  bias: number;
+}

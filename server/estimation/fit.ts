@@ -4,16 +4,16 @@
  * T, to convergence, i.e. Gaussian ML), check convexity in prices and impose it when it fails.
  */
 import { Matrix, QrDecomposition } from 'ml-matrix';
-import type { CoefficientEstimate, CurvatureReport, EquationFit } from '../../shared/estimation-types.js';
+import type { CoefficientEstimate, CurvatureReport, EquationFit, FitResult, MonotonicityReport } from '../../shared/estimation-types.js';
 import { checkConvexity, imposeConvexity, leadingBlock } from './curvature.js';
-import type { NetputDataset, NetputItem } from './dataset.js';
+import type { NetputDataset } from './dataset.js';
 import { EstimationInputError } from './errors.js';
 import { formOf, resolveFormName } from './forms.js';
 import { covarianceToCorrelation, jacobiEigenvalues, logDetSymmetricPD, type Mat } from './linalg.js';
 import type { FormName, ModelData, ModelLayout } from './model.js';
 import { fitSurTwoStarts, type SurEquationInput } from './sur.js';
 
-export type { CoefficientEstimate, CurvatureReport, EquationFit } from '../../shared/estimation-types.js';
+export type { CoefficientEstimate, CurvatureReport, EquationFit, FitResult, MonotonicityReport } from '../../shared/estimation-types.js';
 
 export interface FitOptions {
   /** 'nq' (default) or 'gl', or the full form names. */
@@ -31,49 +31,6 @@ export interface FitOptions {
   maxIterations?: number;
   /** Stop when the relative change of the coefficients is below this (default 1e-8). */
   tolerance?: number;
-}
-
-export interface MonotonicityReport {
-  item: string;
-  role: NetputItem['role'];
-  /** Observations whose fitted netput has the wrong sign (output ≤ 0 or input ≥ 0). */
-  violations: number;
-  share: number;
-}
-
-/** A fitted profit function: plain JSON, safe to post to a worker thread or store. */
-export interface FitResult {
-  layout: ModelLayout;
-  observations: number;
-  /** Structural parameter estimates θ, named by layout.parameterNames. */
-  theta: number[];
-  /** Cov(θ̂) (delta method through L when convexity was imposed). */
-  covariance: Mat;
-  standardErrors: number[];
-  /** Residual covariance Σ̂ (divisor T) from the final residuals, layout item order. */
-  sigma: Mat;
-  residualCorrelation: Mat;
-  equations: EquationFit[];
-  /** Gaussian log-likelihood at Σ̂: −T/2·(n·ln 2π + ln|Σ̂| + n). */
-  logLikelihood: number;
-  /** Number of free coefficients (length of θ). */
-  parameterCount: number;
-  /** −2ℓ + 2k and −2ℓ + k·ln T, with k the free coefficients (Σ̂ not counted). */
-  aic: number;
-  bic: number;
-  iterations: number;
-  converged: boolean;
-  /** First and last season year in the data (a projection's trend defaults to last + 1). */
-  seasonYears: { first: number; last: number };
-  /** Sample means (layout order): the default evaluation point. */
-  means: { prices: number[]; fixed: number[] };
-  /** Prices the GL curvature block is defined at (the sample means). */
-  referencePrices: number[];
-  curvature: CurvatureReport;
-  monotonicity: MonotonicityReport[];
-  /** Share of observations with at least one wrong-signed fitted netput. */
-  monotonicityViolationShare: number;
-  warnings: string[];
 }
 
 interface PreparedModel {

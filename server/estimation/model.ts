@@ -9,22 +9,9 @@ import type { NetputItem } from './dataset.js';
 import type { Mat } from './linalg.js';
 import type { SurEquationInput } from './sur.js';
 
-export type FormName = 'normalized-quadratic' | 'generalized-leontief';
+import type { FormName, ModelLayout } from '../../shared/estimation-types.js';
 
-export interface ModelLayout {
-  form: FormName;
-  /** Items in the order of every vector and matrix: non-numeraire items in file order, numeraire last. */
-  items: NetputItem[];
-  numeraire: string;
-  /** Fixed factors in file order, then "trend" when a trend is fitted. */
-  factors: string[];
-  /** The first `quadraticFactors` factors also enter quadratically (all but the trend). */
-  quadraticFactors: number;
-  /** Trend = season year − originYear + 1, when a trend is fitted. */
-  trendOrigin: number | null;
-  /** Names of the structural parameters θ, in order. */
-  parameterNames: string[];
-}
+export type { FormName, ModelLayout } from '../../shared/estimation-types.js';
 
 export interface NetputDecomposition {
   constant: number[];

@@ -15,6 +15,7 @@ import {
   type ForecastSpec,
   type NetputDataset,
 } from '../estimation/index.js';
+import type { BacktestItem, BacktestSeason } from '../../shared/estimation-types.js';
 import { lowerWorkerPriority } from './worker-priority.js';
 
 lowerWorkerPriority();
@@ -29,21 +30,7 @@ export interface FitTask {
   progressPort?: MessagePort;
 }
 
-export interface BacktestSeason {
-  season: string;
-  /** Co-op totals (quantities ≥ 0 in item units) predicted at the prices actually seen, and actual. */
-  predicted: Record<string, number>;
-  actual: Record<string, number>;
-  fittedOn: { first: string; last: string; observations: number };
-}
-
-export interface BacktestItem {
-  item: string;
-  /** Mean absolute percentage error over the back-tested seasons, in %. */
-  mape: number;
-  /** Mean of (predicted − actual) / actual, in % (positive: the model over-projects). */
-  bias: number;
-}
+export type { BacktestItem, BacktestSeason } from '../../shared/estimation-types.js';
 
 export interface FitRunResult {
   fit: FitResult;

@@ -1,14 +1,14 @@
-import type { CurvatureReport, EquationFit } from '../../../shared/estimation-types';
+import type { BacktestItem, BacktestSeason, FitResult, NetputRef } from '../../../shared/estimation-types';
 import type { ForecastSpecName, ModelDefinition } from '../../../shared/model-schemas';
 import type { BackTestResult } from '../../../shared/forecast-types';
 
-export type { CoefficientEstimate, CurvatureReport, EquationFit } from '../../../shared/estimation-types';
+export type { BacktestItem, BacktestSeason, CoefficientEstimate, CurvatureReport, EquationFit, FitResult, MonotonicityReport, NetputRef } from '../../../shared/estimation-types';
 
 /**
  * The shapes the model API answers with (server/models/models-service.ts, server/jobs/fit-task.ts,
  * server/estimation/fit.ts). Declared here because those server types import Node modules the
  * client build cannot type-check; only the fields the screens read are listed. The engine's result
- * shapes are shared with the server (shared/estimation-types.ts).
+ * shapes (the fit, its layout, the back-test rows) are declared once in shared/estimation-types.ts.
  */
 export type RunState = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
@@ -48,45 +48,6 @@ export interface ExcludedObservation {
   reason: string;
 }
 
-export interface NetputRef {
-  name: string;
-  role: 'output' | 'input';
-}
-
-export interface MonotonicityReport {
-  item: string;
-  role: 'output' | 'input';
-  violations: number;
-  share: number;
-}
-
-export interface FitResult {
-  layout: {
-    form: 'normalized-quadratic' | 'generalized-leontief';
-    items: NetputRef[];
-    numeraire: string;
-    factors: string[];
-    trendOrigin: number | null;
-    parameterNames: string[];
-  };
-  observations: number;
-  theta: number[];
-  standardErrors: number[];
-  equations: EquationFit[];
-  logLikelihood: number;
-  parameterCount: number;
-  aic: number;
-  bic: number;
-  iterations: number;
-  converged: boolean;
-  seasonYears: { first: number; last: number };
-  means: { prices: number[]; fixed: number[] };
-  curvature: CurvatureReport;
-  monotonicity: MonotonicityReport[];
-  monotonicityViolationShare: number;
-  warnings: string[];
-}
-
 /** The fit command's document (docs/fit-command.md §3; server/estimation/contract.ts) stored with the run. */
 export interface FitSummary {
   form: FitResult['layout']['form'];
@@ -112,21 +73,6 @@ export interface FitSummary {
   converged: boolean;
   warnings: string[];
   caution: string;
-}
-
-export interface BacktestSeason {
-  season: string;
-  predicted: Record<string, number>;
-  actual: Record<string, number>;
-  fittedOn: { first: string; last: string; observations: number };
-}
-
-export interface BacktestItem {
-  item: string;
-  /** % */
-  mape: number;
-  /** % (positive: the model over-projects) */
-  bias: number;
 }
 
 export interface FitRunResult {
