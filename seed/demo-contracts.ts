@@ -1,8 +1,9 @@
 /**
  * Demo step: a few invented forward delivery contracts (issue 19) for the season after the demo's
- * last recorded one — the season an outlook is made for. Each commits about half of what the farm
- * grew of the item on average over its last three seasons, at last season's mean price plus a small
- * premium, so the contracted view has figures to show. Invented for the demo only.
+ * last recorded one — the season an outlook is made for. A contract commits the farm's whole crop of
+ * the item (the engine holds that output fixed), about what it grew on average over its last three
+ * seasons, at last season's mean price plus a small premium, so the contracted view has figures to
+ * show. Invented for the demo only.
  */
 import { and, avg, eq, gte, inArray } from 'drizzle-orm';
 import type { Db } from '../server/db/client.js';
@@ -12,13 +13,13 @@ import { priceToCents, type ContractStatus } from '../shared/contract-schemas.js
 
 /** Farm, item, share of its recent mean output, price premium over last season, status. */
 const DEMO_CONTRACTS: { farm: string; item: string; share: number; premium: number; status: ContractStatus }[] = [
-  { farm: 'F01', item: 'wheat', share: 0.55, premium: 0.04, status: 'signed' },
-  { farm: 'F01', item: 'canola', share: 0.4, premium: 0.03, status: 'offered' },
-  { farm: 'F02', item: 'wheat', share: 0.6, premium: 0.03, status: 'signed' },
-  { farm: 'F03', item: 'wheat', share: 0.5, premium: 0.05, status: 'signed' },
-  { farm: 'F03', item: 'canola', share: 0.45, premium: 0.02, status: 'signed' },
-  { farm: 'F05', item: 'wheat', share: 0.35, premium: 0.01, status: 'cancelled' },
-  { farm: 'F07', item: 'wheat', share: 0.65, premium: 0.02, status: 'signed' },
+  { farm: 'F01', item: 'wheat', share: 1.0, premium: 0.04, status: 'signed' },
+  { farm: 'F01', item: 'canola', share: 0.95, premium: 0.03, status: 'offered' },
+  { farm: 'F02', item: 'wheat', share: 1.05, premium: 0.03, status: 'signed' },
+  { farm: 'F03', item: 'wheat', share: 0.95, premium: 0.05, status: 'signed' },
+  { farm: 'F03', item: 'canola', share: 1.0, premium: 0.02, status: 'signed' },
+  { farm: 'F05', item: 'wheat', share: 0.9, premium: 0.01, status: 'cancelled' },
+  { farm: 'F07', item: 'wheat', share: 1.1, premium: 0.02, status: 'signed' },
 ];
 
 /** The season contracts are made for; created here when the calendar does not have it yet. */

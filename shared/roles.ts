@@ -30,6 +30,9 @@ export const ACCESS = {
   outlookWrite: ['planner'],
   /** The outlook e-mails' delivery log. */
   outlookLog: ['admin', 'planner'],
+  /** Forward delivery contracts: planners and administrators keep them, the treasurer reads (a member sees their own in the portal). */
+  contracts: ['admin', 'planner', 'treasurer'],
+  contractsEdit: ['admin', 'planner'],
   budget: ['admin', 'planner', 'treasurer'],
   /** Who makes and changes fertiliser budgets and the product list (planners and admins read). */
   budgetEdit: ['treasurer'],

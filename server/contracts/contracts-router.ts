@@ -5,12 +5,16 @@ import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
+import { ACCESS } from '../../shared/roles.js';
+import { contractedState, myContracts, startContracted } from './contracted-service.js';
 import { getContract, listContracts } from './contracts-repository.js';
 import { createContract, deleteContract, updateContract } from './contracts-service.js';
 
 /** Planners and administrators keep contracts; the treasurer reads them; a member reads their own farm's. */
-const READ = ['admin', 'planner', 'treasurer', 'member'] as const;
-const WRITE = ['admin', 'planner'] as const;
+const READ = [...ACCESS.contracts, ...ACCESS.myFarm];
+const WRITE = ACCESS.contractsEdit;
+/** The contracted view of an outlook: whoever reads full outlooks may look and (re)compute it. */
+const EVALUATE = ACCESS.contracts;
 
 const listQuery = z.object({
   farms: idListSchema,
@@ -28,6 +32,32 @@ const updateSchema = contractSchema.and(
 
 export function contractsRoutes(ctx: AppContext): RouteDef[] {
   return [
+    {
+      // A member's own contracts with their farm's estimated marginal cost and fertiliser need.
+      method: 'get',
+      path: '/mine',
+      access: ACCESS.myFarm,
+      handler: async (req, res) => res.json(await myContracts(ctx.db, req.user!)),
+    },
+    {
+      method: 'get',
+      path: '/outlooks/:id/evaluation',
+      access: EVALUATE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        res.json(await contractedState(ctx.db, id));
+      },
+    },
+    {
+      // Queues the evaluation (worker thread); poll the GET for progress and the view.
+      method: 'post',
+      path: '/outlooks/:id/evaluation',
+      access: EVALUATE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        res.status(202).json(await startContracted(ctx.db, id));
+      },
+    },
     {
       method: 'get',
       path: '/',

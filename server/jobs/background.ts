@@ -4,6 +4,7 @@ import { OutboxDispatcher } from '../mail/outbox-dispatcher.js';
 import { FIT_JOB, fitJobHandler } from '../models/models-service.js';
 import { OUTLOOK_PROJECTION_JOB, projectionJobHandler } from '../outlook/projection-service.js';
 import { JobRunner } from './job-runner.js';
+import { CONTRACTED_JOB, contractedJobHandler } from '../contracts/contracted-service.js';
 import { WorkerPool } from './worker-pool.js';
 
 /**
@@ -14,7 +15,7 @@ export function startBackgroundWork(db: Db, options: { threads?: number; pollMs?
   const pool = new WorkerPool(options.threads);
   const runner = new JobRunner(
     db,
-    { [FIT_JOB]: { handler: fitJobHandler(db, pool) }, [OUTLOOK_PROJECTION_JOB]: { handler: projectionJobHandler(db, pool) } },
+    { [FIT_JOB]: { handler: fitJobHandler(db, pool) }, [OUTLOOK_PROJECTION_JOB]: { handler: projectionJobHandler(db, pool) }, [CONTRACTED_JOB]: { handler: contractedJobHandler(db, pool), maxAttempts: 1 } },
     options.threads ?? 2,
     options.pollMs ?? 250,
   ).start();
