@@ -484,3 +484,43 @@ describe('the generalized Leontief model (general Newton solve)', () => {
     expect(rel(fd((v) => at({ ...q, wheat: v }).cost!.point, q.wheat), mc[0]!)).toBeLessThan(1e-5);
   });
 });
+
+describe('a committed numeraire (the normalized quadratic through the general solve)', () => {
+  const nm = fitForecastModel(panel.dataset, { numeraire: 'wheat' });
+  const prices = { wheat: 250, canola: 520, nitrogen: 1200, diesel: 1.1, other: 100 };
+  const L = nm.fit.layout;
+  const nmLand = nm.farmEffects!.lastLand;
+  const supplyAt = (j: number, pWheat: number) => {
+    const p = L.items.map((it) => (it.name === 'wheat' ? pWheat : prices[it.name as keyof typeof prices]));
+    const y = netputsFromDecomposition(formOf(L.form).decompose(L, nm.fit.theta, p), []);
+    const w = L.items.findIndex((it) => it.name === 'wheat');
+    return (y[w]! + nm.farmEffects!.effects[w]![j]!) * nmLand[j]!;
+  };
+  const spec = (j: number, wheat: number) => ({ farm: nm.farmEffects!.farms[j]!, fixed: { land: nmLand[j]! }, contracted: { wheat } });
+
+  it('round trip: committing the supply at 250 gives 250 back as the marginal cost', () => {
+    expect(L.numeraire).toBe('wheat');
+    const r = evaluateContracted(nm, { farms: [spec(0, supplyAt(0, 250))], prices, draws: 0 }).farms[0]!;
+    expect(rel(r.outputs.wheat!.marginalCost!.point, 250)).toBeLessThan(1e-9);
+  });
+
+  it("Shephard's lemma by finite differences when the numeraire's own price is solved for", () => {
+    const q = supplyAt(0, 300);
+    const at = (p: Record<string, number>) => evaluateContracted(nm, { farms: [spec(0, q)], prices: { ...prices, ...p }, draws: 0 }).farms[0]!;
+    const base = at({});
+    for (const input of ['nitrogen', 'diesel', 'other'])
+      expect(rel(fd((v) => at({ [input]: v }).cost!.point, prices[input as keyof typeof prices]), base.inputs[input]!.point)).toBeLessThan(1e-6);
+  });
+
+  it('says in words when the commitment is more than the technology supplies at any price (the numeraire’s supply has a ceiling), and when many draws cannot reach it', () => {
+    const ceiling = supplyAt(1, 1e7);
+    const r = evaluateContracted(nm, { farms: [spec(1, 1.05 * ceiling), spec(0, 0.995 * supplyAt(0, 1e7))], prices, draws: 300, units: { wheat: 't' } });
+    expect(r.farms[0]!.evaluated).toBe(false);
+    expect(r.farms[0]!.issues[0]!.text).toMatch(/t of wheat \([\d.]+ t\/ha\) is more than the fitted technology can supply on farm .* at any price/);
+    const near = r.farms[1]!;
+    expect(near.evaluated).toBe(true);
+    expect(near.failedDrawShare).toBeGreaterThan(0.05);
+    expect(near.belowZeroDrawShare).toBe(0);
+    expect(near.issues.find((i) => !i.blocking && i.kind === 'out-of-reach')!.text).toMatch(/draws of the model's uncertainty the committed quantity is more than the technology of that draw can supply at any price/);
+  });
+});

@@ -62,6 +62,9 @@ export interface ContractedOptions {
   onProgress?: (share: number, stage: string) => void;
 }
 
+/** Share of failed draws above which a farm gets a (non-blocking) word about its bands. */
+const FAILED_DRAWS_WORTH_SAYING = 0.05;
+
 export const CONTRACTED_CAUTION =
   'Marginal costs and conditional input needs are estimates from the fitted profit function, conditional on the stated input prices and on past relationships; they are not financial advice or a recommendation to sign, price or hedge a contract. Fertiliser rates follow soil tests, local guidance and nutrient-management rules; a certified adviser has the last word.';
 
@@ -288,6 +291,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     const ok = new Uint8Array(S);
     let failed = 0;
     let belowZero = 0;
+    let beyond = 0;
     if (shared) {
       const shift = new Float64Array(n);
       const eta = new Float64Array(n);
@@ -308,11 +312,13 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
             pr.set(r.prices);
             yr.set(r.netputs);
             status = r.nonPositive?.length ? 'below-zero' : 'ok';
-          } else status = r.reason === 'out-of-reach' ? 'lost-out-of-reach' : 'failed';
+          } else if (r.reason === 'out-of-reach') status = r.direction === 'low' ? 'lost-below-zero' : 'lost-beyond';
+          else status = 'failed';
         }
-        if (status === 'failed' || status === 'lost-out-of-reach') {
+        if (status === 'failed' || status === 'lost-below-zero' || status === 'lost-beyond') {
           failed++;
-          if (status === 'lost-out-of-reach') belowZero++;
+          if (status === 'lost-below-zero') belowZero++;
+          if (status === 'lost-beyond') beyond++;
           coopOk[s] = 0;
           continue;
         }
@@ -340,6 +346,20 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
           if (cp !== undefined) coopMarginNum[c]![s]! += f.quantity[j]! * (cp - pr[c]!);
         });
       }
+    }
+    if (S > 0 && failed / S > FAILED_DRAWS_WORTH_SAYING) {
+      const what =
+        beyond >= failed / 2
+          ? 'the committed quantity is more than the technology of that draw can supply at any price'
+          : belowZero >= failed / 2
+            ? 'the committed quantity needs a price at or below zero'
+            : 'the committed quantity could not be evaluated';
+      issues.push({
+        item: names[f.committed[0]!]!,
+        kind: 'out-of-reach',
+        blocking: false,
+        text: `In ${Math.round((100 * failed) / S)} % of the ${S} draws of the model's uncertainty ${what} on farm ${f.spec.farm}; the bands cover the other draws only, so read them with care.`,
+      });
     }
     const band = (values: Float64Array, point: number, clip: boolean, st: Stretch): ContractedBand => summarise(values, ok, point, probs, level, clip, st);
     const m = f.committed.length;
@@ -469,10 +489,10 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
 /**
  * 'ok'; 'below-zero': solved, but a committed output needs a price at or below zero (kept: the
  * linear solution is exact, and a negative marginal cost says the farm would grow more than committed
- * even at a zero price); 'lost-out-of-reach': not solved because no positive price reaches the
+ * even at a zero price); 'lost-below-zero' / 'lost-beyond': not solved because no positive price reaches the
  * quantity (general solve only); 'failed': singular or not settled.
  */
-type DrawStatus = 'ok' | 'below-zero' | 'lost-out-of-reach' | 'failed';
+type DrawStatus = 'ok' | 'below-zero' | 'lost-below-zero' | 'lost-beyond' | 'failed';
 
 /**
  * For the NQ with the numeraire not committed: B_cc p̃*_c = y*_c/L − μ_c − λ_c − u_c − a_c − B_cr p̃_r − C_c z,
