@@ -20,6 +20,7 @@ import { seedFertiliserProducts } from '../server/budget/fertiliser-products.js'
 import { tablesInDependencyOrder } from '../server/db/portable.js';
 import { seedDemoContracts } from './demo-contracts.js';
 import { purgeOutlookData } from '../server/outlook/outlook-service.js';
+import { enqueueDemoSetup } from './prepare-demo.js';
 
 export async function isDatabaseEmpty(db: Db): Promise<boolean> {
   const [{ n }] = await db.select({ n: count() }).from(users);
@@ -43,8 +44,12 @@ function chunks<T>(rows: T[], size = 500): T[][] {
   return out;
 }
 
-/** Loads the invented demo co-op in one transaction. */
-export async function loadDemoCoop(db: Db) {
+/**
+ * Loads the invented demo co-op in one transaction. With `prepare`, the same transaction queues the
+ * background job that fits the demo model, publishes the coming season's outlook and builds the
+ * treasurer's budget (seed/prepare-demo.ts); tests leave it out unless they need those figures.
+ */
+export async function loadDemoCoop(db: Db, options: { prepare?: boolean } = {}) {
   const demo = buildDemoCoop();
   const demoHash = await hashPassword(DEMO_PASSWORD);
   // Other members cannot sign in until they ask for a reset link: one hash of a discarded random secret.
@@ -110,12 +115,13 @@ export async function loadDemoCoop(db: Db) {
         .values(part.map((l) => ({ farmId: farmId.get(l.farm)!, seasonId: seasonId.get(l.season)!, factor: 'land_ha', value: l.landHa })));
     }
     await seedDemoContracts(tx);
+    if (options.prepare) await enqueueDemoSetup(tx);
   });
 }
 
 /** Loads the demo only into an empty database; answers whether it did. */
-export async function seedDemoIfEmpty(db: Db): Promise<boolean> {
+export async function seedDemoIfEmpty(db: Db, options: { prepare?: boolean } = {}): Promise<boolean> {
   if (!(await isDatabaseEmpty(db))) return false;
-  await loadDemoCoop(db);
+  await loadDemoCoop(db, options);
   return true;
 }

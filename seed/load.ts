@@ -19,8 +19,8 @@ try {
   if (!(await isDatabaseEmpty(database.db))) {
     console.log('The database already holds data; run `npm run seed -- --reset` to replace it with the demo co-op.');
   } else {
-    await loadDemoCoop(database.db);
-    console.log(`Demo co-op loaded. Accounts (password ${DEMO_PASSWORD}): ${DEMO_ACCOUNTS.map((a) => a.email).join(', ')}`);
+    await loadDemoCoop(database.db, { prepare: true });
+    console.log(`Demo co-op loaded; the server fits its model and publishes its outlook in the background at the next start. Accounts (password ${DEMO_PASSWORD}): ${DEMO_ACCOUNTS.map((a) => a.email).join(', ')}`);
   }
 } catch (err) {
   console.error(`Could not load the demo co-op: ${(err as Error).message}`);

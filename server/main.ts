@@ -24,7 +24,7 @@ async function main() {
     dataDir: `${config.dataDir}/pglite`,
     purpose: 'server',
     setup: async (db) => {
-      seeded = await seedDemoIfEmpty(db);
+      seeded = await seedDemoIfEmpty(db, { prepare: process.env.NETPUT_DEMO_PREPARE !== '0' });
     },
   });
   // `npm run backup` while the server runs asks this process for a consistent snapshot.
@@ -45,7 +45,7 @@ async function main() {
     smtpUrl = fakeSmtp.url;
   }
   const mailer = createMailer(smtpUrl, config.mailFrom);
-  const background = startBackgroundWork(database.db, { mailer });
+  const background = startBackgroundWork(database.db, { mailer, config });
   const payments = await startPayments(config, Number(process.env.FAKE_PAYMENTS_PORT ?? 0));
   const ctx = { db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp, jobs: background.runner, payments: payments.gateway, fakePayments: payments.fake };
   const app = createApp(ctx);
@@ -66,7 +66,7 @@ async function main() {
       `  payments: ${payments.fake ? `local fake payment service on 127.0.0.1:${payments.fake.port} (no money moves)` : 'PAYMENT_SECRET_KEY'}`,
       `  mail: ${fakeSmtp ? `local fake SMTP server on 127.0.0.1:${fakeSmtp.port}${config.dev ? ` (read it at ${url}/admin/mail)` : ''}` : 'SMTP_URL'}`,
     ];
-    if (seeded) lines.push('  the demo co-op was loaded into the empty database');
+    if (seeded) lines.push('  the demo co-op was loaded into the empty database; its model, outlook and budget are being prepared in the background');
     lines.push(`  demo accounts (password "${DEMO_PASSWORD}"; change them before real use):`);
     for (const a of DEMO_ACCOUNTS) lines.push(`    ${a.role.padEnd(9)} ${a.email}`);
     console.log(lines.join('\n'));

@@ -89,6 +89,21 @@ export interface CoopSummary {
   farmRecords: number;
   /** Seasons (labels) for which some farm has no record, newest first. */
   recordGaps: { season: string; farmsMissing: number }[];
+  /** The newest season any farm has records for (null when none has). */
+  lastRecordedSeason: string | null;
+  /** What the signed-in person could do next, worded for their role, most pressing first. */
+  nextSteps: NextStep[];
+  /** While the demo co-op's model, outlook and budget are being prepared after a fresh start. */
+  demo: { status: 'preparing' | 'failed'; stage: string; error: string | null } | null;
+}
+
+/** One thing to do next on Home. */
+export interface NextStep {
+  /** A stable name for the kind of step (tests and icons key on it). */
+  kind: 'invite-members' | 'no-farms' | 'no-prices' | 'records-missing' | 'records-gap' | 'no-model' | 'fit-running' | 'model-stale' | 'outlook-unpublished' | 'outlook-changed' | 'budget-missing' | 'budget-behind';
+  icon: string;
+  text: string;
+  link?: { path: string; label: string };
 }
 
 /** `GET /api/my-farm` (member): their own farm and its records. */

@@ -27,3 +27,14 @@ export function quantityText(v: number): string {
 export function priceText(v: number): string {
   return minus(Math.abs(v) >= 10 ? two.format(v) : three.format(v));
 }
+
+const dayFormats = new Map<string, Intl.DateTimeFormat>();
+/**
+ * A calendar day as the app writes it everywhere, on screens and in e-mails: "3 Dec 2026". The
+ * server writes it in UTC (the time zone of its stored timestamps); a page may pass the reader's.
+ */
+export function dayText(d: Date | string, timeZone = 'UTC'): string {
+  let f = dayFormats.get(timeZone);
+  if (!f) dayFormats.set(timeZone, (f = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone })));
+  return f.format(typeof d === 'string' ? new Date(d) : d);
+}

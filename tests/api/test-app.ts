@@ -26,15 +26,16 @@ export interface TestApp {
 }
 
 /** A real app on a fresh in-memory PGlite (migrated, optionally with the demo co-op) and a fake SMTP server. */
-export async function startTestApp(options: { demo?: boolean; dev?: boolean; jobs?: boolean; logDestination?: DestinationStream } = {}): Promise<TestApp> {
+export async function startTestApp(options: { demo?: boolean; prepareDemo?: boolean; dev?: boolean; jobs?: boolean; logDestination?: DestinationStream } = {}): Promise<TestApp> {
   const database = await openTestDatabase();
-  if (options.demo !== false) await loadDemoCoop(database.db);
+  // The demo's fit, outlook and budget (a background job) only when a test asks for them.
+  if (options.demo !== false) await loadDemoCoop(database.db, { prepare: options.prepareDemo === true });
   const smtp = await startFakeSmtp();
   const config = {
     ...loadConfig({ LOG_LEVEL: options.logDestination ? 'info' : (process.env.TEST_LOG_LEVEL ?? 'silent'), PUBLIC_URL: 'http://netput.test', APP_DIR: path.join(os.tmpdir(), 'netput-no-app') }, options.dev ? ['--dev'] : []),
   };
   const mailer = createMailer(smtp.url, config.mailFrom);
-  const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50, mailer }) : undefined;
+  const background = options.jobs ? startBackgroundWork(database.db, { pollMs: 50, mailer, config }) : undefined;
   const payments = await startFakePayments();
   const gateway = createPaymentGateway({ secretKey: payments.secretKey, webhookSecret: payments.webhookSecret, api: payments.api, kind: 'fake' });
   const ctx: AppContext = { db: database.db, dbKind: database.kind, changes: database.changes, config, mailer, fakeSmtp: smtp, jobs: background?.runner, logDestination: options.logDestination, payments: gateway, fakePayments: payments };

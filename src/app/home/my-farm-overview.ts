@@ -10,6 +10,19 @@ import { MatTableModule } from '@angular/material/table';
 import type { MyFarm } from '../../../shared/api-types';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { CautionNote } from '../shared/caution-note';
+import { dayText } from '../../../shared/number-format';
+
+/** A published outlook version as the portal lists it. */
+interface PortalVersion {
+  id: number;
+  version: number;
+  season: string;
+  title: string;
+  publishedAt: string;
+}
+
+/** An outlook counts as new on Home for this many days after it is published. */
+const NEW_FOR_DAYS = 30;
 
 /** One line of the records table: an item and its quantity in each season. */
 export interface RecordLine {
@@ -64,6 +77,16 @@ export class MyFarmOverview {
     this.myFarm.error() && !this.noFarm() ? errorMessage(this.myFarm.error()) : null,
   );
   protected readonly table = computed(() => recordsBySeason(this.data()?.records ?? []));
+
+  /** Published outlooks, newest season first: the member's next step is to read the newest. */
+  protected readonly versions = httpResource<PortalVersion[]>(() => '/api/portal/outlook/versions');
+  protected readonly newest = computed(() => {
+    const list = this.versions.hasValue() ? this.versions.value() : [];
+    const v = list[0];
+    if (!v) return null;
+    const ageDays = (Date.now() - new Date(v.publishedAt).getTime()) / 86_400_000;
+    return { ...v, isNew: ageDays <= NEW_FOR_DAYS, publishedOn: dayText(v.publishedAt, Intl.DateTimeFormat().resolvedOptions().timeZone) };
+  });
   protected readonly columns = computed(() => ['item', ...this.table().seasons]);
 
   /** Tonnes and hectares to one decimal; litres, hours and kilograms are whole numbers at farm scale. */
