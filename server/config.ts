@@ -10,6 +10,8 @@ export interface Config {
   mailFrom: string;
   /** Base URL used in links sent by e-mail. */
   publicUrl: string;
+  /** Whether PUBLIC_URL was set; unset, links in e-mails point to localhost (a warning at start and on the admin settings page). */
+  publicUrlSet: boolean;
   /** Development mode (`--dev` or NODE_ENV=development): the received-mail page at /admin/mail is on. */
   dev: boolean;
   /** Set the `Secure` flag on cookies (serve over HTTPS): COOKIE_SECURE=true|false, else whether PUBLIC_URL is https. */
@@ -27,6 +29,13 @@ export interface Config {
   paymentReconcileMs: number;
 }
 
+/** The warning `npm start` prints, and the admin settings page shows, while PUBLIC_URL is unset. */
+export function publicUrlWarning(config: Pick<Config, 'publicUrl' | 'publicUrlSet'>): string | null {
+  return config.publicUrlSet
+    ? null
+    : `PUBLIC_URL is not set, so links in e-mails (invitations, password resets, outlooks) point to ${config.publicUrl}, which only works on this computer. Set PUBLIC_URL to the address members open, e.g. PUBLIC_URL=https://netput.example.org`;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env, argv: string[] = process.argv): Config {
   if (env.PAYMENT_SECRET_KEY && !env.PAYMENT_WEBHOOK_SECRET) throw new Error('PAYMENT_WEBHOOK_SECRET must be set with PAYMENT_SECRET_KEY (the webhooks cannot be verified without it)');
   const port = Number(env.PORT ?? 3000);
@@ -40,6 +49,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env, argv: string[] 
     smtpUrl: env.SMTP_URL || undefined,
     mailFrom: env.MAIL_FROM ?? 'Netput <outlook@netput.example.org>',
     publicUrl,
+    publicUrlSet: Boolean(env.PUBLIC_URL),
     dev,
     secureCookies: env.COOKIE_SECURE ? env.COOKIE_SECURE === 'true' : publicUrl.startsWith('https://'),
     logLevel: env.LOG_LEVEL ?? 'info',

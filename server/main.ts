@@ -1,4 +1,4 @@
-import { loadConfig } from './config.js';
+import { loadConfig, publicUrlWarning } from './config.js';
 import { openDatabase } from './db/client.js';
 import { createApp } from './app.js';
 import { createMailer } from './mail/mailer.js';
@@ -70,6 +70,8 @@ async function main() {
     lines.push(`  demo accounts (password "${DEMO_PASSWORD}"; change them before real use):`);
     for (const a of DEMO_ACCOUNTS) lines.push(`    ${a.role.padEnd(9)} ${a.email}`);
     console.log(lines.join('\n'));
+    const warning = publicUrlWarning(config);
+    if (warning) console.warn(`Warning: ${warning}`);
   });
 
   let stopping = false;

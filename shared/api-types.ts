@@ -199,3 +199,14 @@ export interface PriceIndex {
   source: string;
   values: { seasonId: number; season: string; value: number }[];
 }
+
+/** `GET /api/settings/server` (admin): how this server is set up. */
+export interface ServerSetup {
+  /** The address links in e-mails point to. */
+  publicUrl: string;
+  publicUrlSet: boolean;
+  /** Why links may not work for members (PUBLIC_URL unset); null when set. */
+  publicUrlWarning: string | null;
+  /** 'local': the built-in fake SMTP server (no mail leaves the machine); 'smtp': SMTP_URL. */
+  mail: 'local' | 'smtp';
+}

@@ -30,3 +30,7 @@ export function bandCoverWords(b: BandFacts | null | undefined): string {
   const tail = b.priceRisk ? '' : ' Prices other than expected are in the low and high scenarios, not in the band.';
   return `${head} It allows for ${list}.${tail}`;
 }
+
+/** The low and high price scenarios in plain words, without the rule's formula (portal and e-mail). */
+export const SCENARIO_WORDS =
+  'The low and high scenarios are the same season at lower and at higher prices for everything the co-op buys and sells.';

@@ -201,6 +201,48 @@ export interface FullVersion extends OutlookSnapshot {
 export interface MemberVersion extends OutlookSnapshot {
   id: number;
   farm: FarmOutlook | null;
+  /** The portal's plain reading (server/outlook/member-plain.ts). */
+  plain: MemberPlain;
+}
+
+/** One nutrient of the member's fertiliser estimate. */
+export interface PlainFertiliserLine {
+  item: string;
+  name: string;
+  nutrient: 'N' | 'P2O5' | 'K2O';
+  /** e.g. "kg N" */
+  unit: string;
+  /** The farm's projected need at the base prices, in the unit. */
+  kg: number;
+  kgPerHa: number | null;
+  /** The outlook's expected price per unit (base), in the outlook's currency. */
+  pricePerKg: number;
+  cost: number;
+  /** The need and the price of the low and of the high scenario. */
+  costLow: number;
+  costHigh: number;
+}
+
+/** What the member portal shows in plain words, beside the version's own figures. */
+export interface MemberPlain {
+  /** Item codes in the one order every section follows: outputs first, then inputs, in the model's order. */
+  itemOrder: string[];
+  /** The model's sample as season labels ("2006/07"). */
+  sampleSeasons: { first: string; last: string };
+  farmLandHa: number | null;
+  /** The land of every farm projected, summed. */
+  coopLandHa: number | null;
+  /** Base figure per hectare, per item code (null without land). */
+  farmPerHa: Record<string, number | null>;
+  coopPerHa: Record<string, number | null>;
+  /** The farm's fertiliser need and bill at the outlook's prices (null: no farm or no nutrient item). */
+  fertiliser: { lines: PlainFertiliserLine[]; total: number; totalLow: number; totalHigh: number; currency: string; caution: string } | null;
+  /** What the band covers, in words. */
+  bandWords: string;
+  /** The low and high scenarios without a formula. */
+  scenarioWords: string;
+  /** Where the numbers come from, one sentence. */
+  source: string;
 }
 
 /** Projected against actual for one item, after the season. */

@@ -7,7 +7,12 @@ import { COLOUR, FONT, RADIUS, SPACE } from '../../shared/design-tokens.js';
  * so the values sit inside double-quoted attributes.
  */
 export const MAIL_STYLE = {
-  body: `font-family:${FONT.text};color:${COLOUR.loam};background:${COLOUR.paper};padding:${SPACE.l}px`,
+  body: `font-family:${FONT.text};color:${COLOUR.loam};background:${COLOUR.paper};margin:0;padding:${SPACE.m}px;-webkit-text-size-adjust:100%`,
+  /** One column as wide as the screen up to 640 px: a phone reads it without scrolling sideways. */
+  column: `max-width:640px;width:100%;margin:0 auto;box-sizing:border-box;overflow-wrap:break-word;word-wrap:break-word`,
+  table: `border-collapse:collapse;font-size:14px;width:100%;max-width:640px`,
+  small: `font-size:12px;color:${COLOUR.loamSoft};font-weight:400`,
+  list: `padding-left:${SPACE.l}px;margin-left:0`,
   h1: `font-family:${FONT.heading};font-size:22px;font-weight:600;color:${COLOUR.fieldDeep};border-bottom:3px solid ${COLOUR.fieldDeep};padding-bottom:${SPACE.s}px;margin:0 0 ${SPACE.l}px`,
   h2: `font-family:${FONT.heading};font-size:17px;font-weight:600;color:${COLOUR.fieldDeep};margin:${SPACE.xl}px 0 ${SPACE.s}px`,
   th: `text-align:left;padding:4px 8px;border-bottom:2px solid ${COLOUR.field};color:${COLOUR.fieldDeep}`,

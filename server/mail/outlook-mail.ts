@@ -33,6 +33,8 @@ export interface OutlookMailInput {
   deliveries: { point: number; p5: number; p95: number; storageShare: number | null; handlingDays: number | null } | null;
   /** How the low and high scenarios are made, in words. */
   scenarioRule: string;
+  /** What the likely range covers, in words (shared/band-words.ts). */
+  bandWords: string;
   commentary: string;
   cautions: string[];
   portalUrl: string;
@@ -54,21 +56,25 @@ const band = (q: OutlookMailQuantity) => `${fmtQuantity(q.p5)}–${fmtQuantity(q
 
 function quantityLines(rows: OutlookMailQuantity[]): string[] {
   return rows.map(
-    (q) =>
-      `  ${q.name}: ${fmtQuantity(q.point)} ${q.unit} (5–95 % band ${band(q)}; low scenario ${fmtQuantity(q.low)}, high scenario ${fmtQuantity(q.high)})`,
+    (q) => `  ${q.name}: ${fmtQuantity(q.point)} ${q.unit} (likely range ${band(q)}; at low prices ${fmtQuantity(q.low)}, at high prices ${fmtQuantity(q.high)})`,
   );
 }
 
+/**
+ * Two columns that fit a phone (390 px): the item and its figure, and under the figure the likely
+ * range and the low and high price scenarios in small type. No fixed widths anywhere, so the
+ * table takes the width of the screen it is read on.
+ */
 function quantityTable(rows: OutlookMailQuantity[]): string {
   const th = `style="${MAIL_STYLE.th}"`;
   const td = `style="${MAIL_STYLE.td}"`;
   const tdn = `style="${MAIL_STYLE.tdNumber}"`;
-  return `<table style="border-collapse:collapse;font-size:14px">
-<tr><th ${th}>Item</th><th ${th}>Projected</th><th ${th}>5–95 % band</th><th ${th}>Low scenario</th><th ${th}>High scenario</th></tr>
+  return `<table role="presentation" width="100%" style="${MAIL_STYLE.table}">
+<tr><th ${th}>Item</th><th ${th} align="right">Projected</th></tr>
 ${rows
   .map(
     (q) =>
-      `<tr><td ${td}>${escapeHtml(q.name)}</td><td ${tdn}>${fmtQuantity(q.point)} ${escapeHtml(q.unit)}</td><td ${tdn}>${band(q)}</td><td ${tdn}>${fmtQuantity(q.low)}</td><td ${tdn}>${fmtQuantity(q.high)}</td></tr>`,
+      `<tr><td ${td}>${escapeHtml(q.name)}</td><td ${tdn}><strong>${fmtQuantity(q.point)} ${escapeHtml(q.unit)}</strong><br><span style="${MAIL_STYLE.small}">likely ${band(q)}<br>low prices ${fmtQuantity(q.low)} · high ${fmtQuantity(q.high)}</span></td></tr>`,
   )
   .join('\n')}
 </table>`;
@@ -77,9 +83,10 @@ ${rows
 export function outlookMail(m: OutlookMailInput): { to: string; subject: string; text: string; html: string } {
   const updated = m.version > 1 ? ` (update ${m.version})` : '';
   const subject = `${m.coopName}: season outlook ${m.season}${updated}`;
-  const priceLines = m.prices.map((p) => `  ${p.name}: ${fmtMoney(p.base)} ${p.priceUnit} (low ${fmtMoney(p.low)}, high ${fmtMoney(p.high)}; ${p.method})`);
+  // Members read the prices, not how each was set (the method is in the portal, behind "How this was made").
+  const priceLines = m.prices.map((p) => `  ${p.name}: ${fmtMoney(p.base)} ${p.priceUnit} (low ${fmtMoney(p.low)}, high ${fmtMoney(p.high)})`);
   const deliveries = m.deliveries
-    ? `Deliveries to the co-op: ${fmtQuantity(m.deliveries.point)} t (band ${fmtQuantity(m.deliveries.p5)}–${fmtQuantity(m.deliveries.p95)} t)${
+    ? `Deliveries to the co-op: ${fmtQuantity(m.deliveries.point)} t (likely range ${fmtQuantity(m.deliveries.p5)}–${fmtQuantity(m.deliveries.p95)} t)${
         m.deliveries.storageShare !== null ? `, ${Math.round(100 * m.deliveries.storageShare)}% of the storage capacity` : ''
       }${m.deliveries.handlingDays !== null ? `, about ${nf0.format(m.deliveries.handlingDays)} days of intake at full handling capacity` : ''}.`
     : null;
@@ -90,6 +97,7 @@ export function outlookMail(m: OutlookMailInput): { to: string; subject: string;
     m.farm
       ? `Your farm, ${m.farm.name} (${m.farm.code}, ${m.farm.fixed}), at the expected prices:\n${quantityLines(m.farm.items).join('\n')}`
       : 'No farm is linked to your account, so this message shows the co-op totals only.',
+    m.bandWords,
     `The co-op in total:\n${quantityLines(m.coop).join('\n')}${deliveries ? `\n${deliveries}` : ''}`,
     `Expected prices:\n${priceLines.join('\n')}\n${m.scenarioRule}`,
     m.commentary.trim() ? `From the planner:\n${m.commentary.trim()}` : null,
@@ -101,7 +109,7 @@ export function outlookMail(m: OutlookMailInput): { to: string; subject: string;
     .join('\n\n');
 
   const p = (s: string) => `<p>${escapeHtml(s)}</p>`;
-  const html = `<!doctype html><html><body style="${MAIL_STYLE.body};max-width:640px">
+  const html = `<!doctype html><html><head><meta name="viewport" content="width=device-width, initial-scale=1"><meta charset="utf-8"></head><body style="${MAIL_STYLE.body}"><div style="${MAIL_STYLE.column}">
 <h1 style="${MAIL_STYLE.h1}">${escapeHtml(`Season outlook ${m.season}${updated}`)}</h1>
 ${p(`Hello ${m.recipientName},`)}
 ${p(`${m.coopName} has published its outlook for the ${m.season} season: “${m.title}” (${m.publishedOn}).`)}
@@ -110,17 +118,18 @@ ${
     ? `<h2 style="${MAIL_STYLE.h2}">Your farm: ${escapeHtml(`${m.farm.name} (${m.farm.code})`)}</h2>${p(`${m.farm.fixed}; figures at the expected prices.`)}${quantityTable(m.farm.items)}`
     : p('No farm is linked to your account, so this message shows the co-op totals only.')
 }
+<p style="${MAIL_STYLE.small}">${escapeHtml(m.bandWords)}</p>
 <h2 style="${MAIL_STYLE.h2}">The co-op in total</h2>
 ${quantityTable(m.coop)}
 ${deliveries ? p(deliveries) : ''}
 <h2 style="${MAIL_STYLE.h2}">Expected prices</h2>
-<ul>${m.prices.map((x) => `<li>${escapeHtml(`${x.name}: ${fmtMoney(x.base)} ${x.priceUnit} (low ${fmtMoney(x.low)}, high ${fmtMoney(x.high)}; ${x.method})`)}</li>`).join('')}</ul>
+<ul style="${MAIL_STYLE.list}">${m.prices.map((x) => `<li>${escapeHtml(`${x.name}: ${fmtMoney(x.base)} ${x.priceUnit} (low ${fmtMoney(x.low)}, high ${fmtMoney(x.high)})`)}</li>`).join('')}</ul>
 ${p(m.scenarioRule)}
 ${m.commentary.trim() ? `<h2 style="${MAIL_STYLE.h2}">From the planner</h2>${m.commentary.trim().split(/\n{2,}/).map(p).join('\n')}` : ''}
 <h2 style="${MAIL_STYLE.h2}">Please note</h2>
-<ul style="${MAIL_STYLE.note}">${m.cautions.map((c) => `<li>${escapeHtml(c)}</li>`).join('')}</ul>
+<ul style="${MAIL_STYLE.note};${MAIL_STYLE.list}">${m.cautions.map((c) => `<li>${escapeHtml(c)}</li>`).join('')}</ul>
 <p><a href="${escapeHtml(m.portalUrl)}" style="${MAIL_STYLE.button}">Open the outlook</a></p>
 <p style="${MAIL_STYLE.footer}">${escapeHtml(`You receive this because you are a member of ${m.coopName}.`)} <a href="${escapeHtml(m.unsubscribeUrl)}">Stop outlook e-mails</a> · sent by Netput</p>
-</body></html>`;
+</div></body></html>`;
   return { to: m.to, subject, text, html };
 }

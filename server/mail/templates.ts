@@ -6,12 +6,12 @@ function escapeHtml(s: string): string {
 }
 
 function layout(title: string, paragraphs: string[], link: { href: string; label: string }, coopName: string): string {
-  return `<!doctype html><html><body style="${MAIL_STYLE.body};max-width:560px">
+  return `<!doctype html><html><head><meta name="viewport" content="width=device-width, initial-scale=1"><meta charset="utf-8"></head><body style="${MAIL_STYLE.body}"><div style="${MAIL_STYLE.column};max-width:560px">
 <h1 style="${MAIL_STYLE.h1}">${escapeHtml(title)}</h1>
 ${paragraphs.map((p) => `<p>${escapeHtml(p)}</p>`).join('\n')}
 <p><a href="${escapeHtml(link.href)}" style="${MAIL_STYLE.button}">${escapeHtml(link.label)}</a></p>
 <p style="${MAIL_STYLE.footer}">${escapeHtml(coopName)} · sent by Netput. If you did not expect this message, you can ignore it.</p>
-</body></html>`;
+</div></body></html>`;
 }
 
 export function invitationMail(to: string, name: string, role: string, link: string, coopName: string, days: number): OutgoingMail {

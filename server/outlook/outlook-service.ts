@@ -25,6 +25,9 @@ import {
 } from './projection-service.js';
 import type { FullVersion, MemberVersion, OutlookSnapshot } from '../../shared/outlook-types.js';
 import { signUnsubscribe, unsubscribeSecret } from './unsubscribe-token.js';
+import { memberPlain } from './member-plain.js';
+import { dayText } from '../../shared/number-format.js';
+import { bandCoverWords, SCENARIO_WORDS } from '../../shared/band-words.js';
 
 /** Where the e-mail's portal link points (the member's page with the published outlook). */
 export const PORTAL_PATH = '/my-farm/outlook';
@@ -381,12 +384,13 @@ async function queueOutlookMails(tx: Db, config: Pick<Config, 'publicUrl' | 'mai
       season: s.season.label,
       version: s.version,
       title: s.title,
-      publishedOn: s.publishedAt.slice(0, 10),
+      publishedOn: dayText(s.publishedAt),
       prices,
       farm: farm ? { code: farm.code, name: farm.name, fixed: fixedText(farm), items: mailQuantities(farm.items) } : null,
       coop: coopQuantities,
       deliveries: d ? { point: d.point, p5: d.p5, p95: d.p95, storageShare: cap?.storageShare?.point ?? null, handlingDays: cap?.handlingDays?.point ?? null } : null,
-      scenarioRule: s.scenarioRuleText,
+      scenarioRule: SCENARIO_WORDS,
+      bandWords: bandCoverWords(s.projection.band ?? null),
       commentary: s.commentary,
       cautions: s.cautions,
       portalUrl: `${config.publicUrl}${PORTAL_PATH}`,
@@ -458,7 +462,8 @@ export async function memberVersion(db: Db, farmId: number | null, versionId?: n
       .where(and(eq(outlookVersionFarms.versionId, row.id), eq(outlookVersionFarms.farmId, farmId)));
     farm = (part?.data as FarmOutlook | undefined) ?? null;
   }
-  return { id: row.id, ...(row.snapshot as OutlookSnapshot), farm };
+  const snapshot = row.snapshot as OutlookSnapshot;
+  return { id: row.id, ...snapshot, farm, plain: await memberPlain(db, row.id, snapshot, farm) };
 }
 
 export async function deliveries(db: Db, outlookId: number, version?: number) {

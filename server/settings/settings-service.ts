@@ -1,3 +1,6 @@
+import type { AppContext } from '../context.js';
+import { publicUrlWarning } from '../config.js';
+import type { ServerSetup } from '../../shared/api-types.js';
 import type { CoopSettings } from '../../shared/api-types.js';
 import type { Db } from '../db/client.js';
 import { recordAudit } from '../audit/audit-repository.js';
@@ -12,4 +15,14 @@ export async function saveSettings(db: Db, value: CoopSettings, actorUserId: num
     await recordAudit(tx, { actorUserId, action: 'settings.update', entity: 'settings', entityId: 'coop', before, after: value });
     return value;
   });
+}
+
+/** `GET /api/settings/server` (admin): the environment's choices an administrator should see. */
+export function serverSetup(ctx: Pick<AppContext, 'config' | 'fakeSmtp'>): ServerSetup {
+  return {
+    publicUrl: ctx.config.publicUrl,
+    publicUrlSet: ctx.config.publicUrlSet,
+    publicUrlWarning: publicUrlWarning(ctx.config),
+    mail: ctx.fakeSmtp ? 'local' : 'smtp',
+  };
 }

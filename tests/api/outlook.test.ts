@@ -267,6 +267,14 @@ describe('publishing, e-mail and the member portal', () => {
     expect(jonah.text).toContain('Wheat area looks steady');
     expect(jonah.text).toContain('http://netput.test/my-farm/outlook');
     expect(jonah.text).toMatch(/http:\/\/netput\.test\/api\/unsubscribe\/\d+\.[A-Za-z0-9_-]{43}/);
+    // Issue 16: the date as the app writes it, plain words for the band and the scenarios, one column on a phone.
+    const day = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' }).format(new Date());
+    expect(jonah.text).toContain(`(${day})`);
+    expect(jonah.text).not.toMatch(/\(\d{4}-\d{2}-\d{2}\)/);
+    for (const jargon of ['5–95', 'λ', '∓', 'Adaptive expectation', "Last season's price"]) expect(jonah.text + jonah.html).not.toContain(jargon);
+    expect(jonah.text).toContain('The band is where 9 in 10 outcomes should fall.');
+    expect(jonah.html).toContain('<meta name="viewport" content="width=device-width, initial-scale=1">');
+    expect(jonah.html).not.toMatch(/width:\s*(9\d\d|[1-9]\d{3})px/);
 
     const log = await until('the outbox to drain', async () => {
       const l = (await planner.get(`/api/outlooks/${outlookId}/deliveries`)).body;
@@ -321,6 +329,27 @@ describe('publishing, e-mail and the member portal', () => {
       expect(json).not.toContain(`"${other.code}"`);
       expect(json).not.toContain(other.name);
     }
+    // Issue 16: the plain reading — season labels, per hectare beside the totals, one item order, the fertiliser bill.
+    const plain = r.body.plain;
+    expect(plain.sampleSeasons).toEqual({ first: '2006/07', last: '2024/25' });
+    expect(plain.source).toMatch(/records of 2006\/07 to 2024\/25 \(\d[\d,]* farm seasons\).*; .+ published them on \d{1,2} [A-Z][a-z]{2} \d{4}\.$/);
+    expect(plain.itemOrder).toEqual(['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour']);
+    const land = r.body.farm.fixed.land_ha as number;
+    expect(plain.farmLandHa).toBe(land);
+    const wheat = r.body.farm.items.find((i: { item: string }) => i.item === 'wheat');
+    expect(plain.farmPerHa.wheat).toBeCloseTo(wheat.scenarios.base.point / land, 10);
+    const lines = plain.fertiliser.lines as { item: string; kg: number; kgPerHa: number; pricePerKg: number; cost: number }[];
+    expect(lines.map((l) => l.item)).toEqual(['nitrogen', 'phosphate', 'potash']);
+    for (const l of lines) {
+      const it = r.body.farm.items.find((i: { item: string }) => i.item === l.item);
+      const price = r.body.expectations.find((e: { item: string }) => e.item === l.item);
+      expect(l.kg).toBe(it.scenarios.base.point);
+      expect(l.pricePerKg).toBe(price.base);
+      expect(l.cost).toBeCloseTo(l.kg * price.base, 8);
+      expect(l.kgPerHa).toBeCloseTo(l.kg / land, 10);
+    }
+    expect(plain.fertiliser.total).toBeCloseTo(lines.reduce((t, l) => t + l.cost, 0), 8);
+    expect(plain.fertiliser.caution).toMatch(/soil tests.*certified adviser/);
     const byId = await member.get(`/api/portal/outlook/versions/${versionId}?farmId=2&farm=F02`);
     expect(byId.body.farm.code).toBe('F01');
     expect((await member.get('/api/portal/outlook/versions/999999')).status).toBe(404);

@@ -1,7 +1,7 @@
 import { recordsBySeason } from './my-farm-overview';
 
 describe('recordsBySeason', () => {
-  it('should give one line per item, outputs first, with seasons newest first', () => {
+  it('should give one line per item, outputs first in the order the server sent them, with seasons newest first', () => {
     const table = recordsBySeason([
       { season: '2023/24', item: 'Wheat', role: 'output', unit: 't', quantity: 410 },
       { season: '2024/25', item: 'Wheat', role: 'output', unit: 't', quantity: 455.5 },
@@ -10,8 +10,8 @@ describe('recordsBySeason', () => {
     ]);
 
     expect(table.seasons).toEqual(['2024/25', '2023/24']);
-    expect(table.lines.map((l) => l.item)).toEqual(['Barley', 'Wheat', 'Nitrogen (N)']);
-    expect(table.lines[1]?.bySeason).toEqual({ '2024/25': 455.5, '2023/24': 410 });
+    expect(table.lines.map((l) => l.item)).toEqual(['Wheat', 'Barley', 'Nitrogen (N)']);
+    expect(table.lines[0]?.bySeason).toEqual({ '2024/25': 455.5, '2023/24': 410 });
     expect(table.lines[2]?.bySeason['2023/24']).toBeUndefined();
   });
 

@@ -32,7 +32,7 @@ export interface RecordLine {
   bySeason: Record<string, number>;
 }
 
-/** Turns the flat record list into item lines with a quantity per season, outputs first; seasons newest first. */
+/** Turns the flat record list into item lines with a quantity per season, outputs first, items in the order the server sent; seasons newest first. */
 export function recordsBySeason(records: MyFarm['records']): { seasons: string[]; lines: RecordLine[] } {
   const seasons = [...new Set(records.map((r) => r.season))].sort((a, b) => b.localeCompare(a, undefined, { numeric: true }));
   const lines = new Map<string, RecordLine>();
@@ -45,9 +45,8 @@ export function recordsBySeason(records: MyFarm['records']): { seasons: string[]
     }
     line.bySeason[r.season] = (line.bySeason[r.season] ?? 0) + r.quantity;
   }
-  const ordered = [...lines.values()].sort(
-    (a, b) => (a.role === b.role ? a.item.localeCompare(b.item) : a.role === 'output' ? -1 : 1),
-  );
+  // Outputs first; within each, the server's item order (the co-op's item list), as on the outlook pages.
+  const ordered = [...lines.values()].sort((a, b) => (a.role === b.role ? 0 : a.role === 'output' ? -1 : 1));
   return { seasons, lines: ordered };
 }
 

@@ -12,11 +12,12 @@ import { errorMessage, errorStatus } from '../core/api-error';
 import { ExpectationsTable } from '../outlook/expectations-table';
 import { FanChart, fanInputFor } from '../outlook/fan-chart';
 import { OutlookCautions } from '../outlook/outlook-cautions';
-import { describeFixed, formatDate, formatQuantity, formatShare, landSentence } from '../outlook/outlook-format';
+import { formatDate, formatQuantity, formatShare, landSentence } from '../outlook/outlook-format';
 import type { MemberVersion, MemberVersionRow } from '../outlook/outlook-types';
 import { SourceFacts } from '../outlook/source-facts';
 import { QuantityCards } from './quantity-cards';
-import { bandCoverWords } from '../../../shared/band-words';
+import { PortalFertiliser } from './portal-fertiliser';
+import { inItemOrder, PortalPrices } from './portal-prices';
 
 /**
  * `/my-farm/outlook`: the member's portal. The published outlook (co-op part) and the member's own
@@ -24,7 +25,7 @@ import { bandCoverWords } from '../../../shared/band-words';
  */
 @Component({
   selector: 'np-portal-outlook',
-  imports: [RouterLink, MatButton, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, ExpectationsTable, FanChart, OutlookCautions, QuantityCards, SourceFacts],
+  imports: [RouterLink, MatButton, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, ExpectationsTable, FanChart, OutlookCautions, QuantityCards, SourceFacts, PortalFertiliser, PortalPrices],
   templateUrl: './portal-outlook.html',
   styleUrl: './portal-outlook.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -77,32 +78,29 @@ export class PortalOutlook {
     if (!c || !d) return null;
     const storage = c.capacity?.scenarios['base']?.storageShare?.point ?? null;
     const capacity = c.capacity?.storageCapacityT ?? null;
-    const band = `5–95 % band ${formatQuantity(d.p5)}–${formatQuantity(d.p95)} t`;
+    const band = `likely range ${formatQuantity(d.p5)}–${formatQuantity(d.p95)} t`;
     return {
       point: formatQuantity(d.point),
       rest: storage !== null && capacity ? `${band}; ${formatShare(storage)} of the co-op's ${formatQuantity(capacity)} t of storage` : band,
     };
   });
 
-  /** What the cards' figures are; one wording for the farm and the co-op, as the staff pages use it. */
+  /** What the cards' figures are and what their range covers, in words (the server's, as in the e-mail). */
   protected readonly statisticNote = computed(() => {
-    const band = bandCoverWords(this.o()?.projection.band ?? null);
-    return `Each figure is the projection at the estimates, the model's best-fit figure and the one in the outlook e-mail. ${band} The low and high scenarios use the low and high expected prices below.`;
+    const o = this.o();
+    return o ? `Each figure is the model's best estimate, the one in the outlook e-mail. ${o.plain.bandWords}` : '';
   });
 
-  /** The member's plain account of where the numbers come from; the technical facts sit behind "How this was made". */
-  protected readonly plainSource = computed(() => {
+  /** The farm's items in the portal's one order (the chart picker follows the cards). */
+  protected readonly orderedFarmItems = computed(() => {
     const o = this.o();
-    if (!o) return '';
-    const by = o.publishedBy ? ` by ${o.publishedBy}` : '';
-    return `The co-op's planner made these figures from the member farms' records of ${o.model.sampleSeasons.first} to ${o.model.sampleSeasons.last} (${o.model.observations} farm seasons) and the expected prices above, and published them on ${formatDate(o.publishedAt)}${by}.`;
+    return o?.farm ? inItemOrder(o.farm.items, o.plain.itemOrder) : [];
   });
 
   protected fanNote(season: string, recorded: string): string {
-    return `${recorded}, then ${season}: for each price scenario the median (dashed) inside its band, where 9 in 10 outcomes should fall. The cards show the figures at the estimates, which lie close to the median.`;
+    return `${recorded}, then ${season}: for each price scenario the middle outcome (dashed) inside its likely range, where 9 in 10 outcomes should fall. The cards show the model's best estimate, close to the dashed line.`;
   }
 
-  protected readonly describeFixed = describeFixed;
   protected readonly formatDate = formatDate;
   protected readonly formatQuantity = formatQuantity;
   protected readonly formatShare = formatShare;

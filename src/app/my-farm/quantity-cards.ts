@@ -1,22 +1,26 @@
-import { ChangeDetectionStrategy, Component, input } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import { inItemOrder } from './portal-prices';
 import { formatBand, formatQuantity } from '../outlook/outlook-format';
 import type { ItemProjection } from '../outlook/outlook-types';
 
 /**
- * Projected quantities as cards that read on a phone: the base scenario at the estimates (the figure
- * of the e-mail), its 5–95 % band of simulated seasons, and the low and high scenarios at the
- * estimates, the same statistic the staff grid shows for each scenario.
+ * Projected quantities as cards that read on a phone: the model's best estimate at the expected
+ * prices (the figure of the e-mail) with the same per hectare beside it, the likely range (the band,
+ * described in words above the cards), and the low and high price scenarios.
  */
 @Component({
   selector: 'np-quantity-cards',
   template: `
     <ul class="cards" [attr.aria-label]="label()">
-      @for (it of items(); track it.item) {
+      @for (it of ordered(); track it.item) {
         <li class="card" [class.input]="it.role === 'input'">
-          <span class="what">{{ it.name }} <span class="role">{{ it.role === 'output' ? 'supply' : 'demand' }}</span></span>
+          <span class="what">{{ it.name }} <span class="role">{{ it.role === 'output' ? 'harvest' : 'use' }}</span></span>
           <span class="value">{{ formatQuantity(it.scenarios['base']?.point) }} <span class="unit">{{ it.unit }}</span></span>
-          <span class="band">5–95 % band {{ formatBand(it.scenarios['base']) }}</span>
-          <span class="scen">Low scenario {{ formatQuantity(it.scenarios['low']?.point) }} · high {{ formatQuantity(it.scenarios['high']?.point) }}</span>
+          @if (perHa()[it.item]; as ha) {
+            <span class="per-ha">{{ formatQuantity(ha) }} {{ it.unit }}/ha</span>
+          }
+          <span class="band">Likely range {{ formatBand(it.scenarios['base']) }}</span>
+          <span class="scen">Low prices {{ formatQuantity(it.scenarios['low']?.point) }} · high prices {{ formatQuantity(it.scenarios['high']?.point) }}</span>
         </li>
       }
     </ul>
@@ -63,6 +67,10 @@ import type { ItemProjection } from '../outlook/outlook-types';
       font: var(--mat-sys-body-medium);
       color: var(--mat-sys-on-surface-variant);
     }
+    .per-ha {
+      font: var(--mat-sys-body-medium);
+      font-variant-numeric: tabular-nums;
+    }
     .band,
     .scen {
       font: var(--mat-sys-body-small);
@@ -75,6 +83,12 @@ export class QuantityCards {
   // inputs
   readonly items = input.required<readonly ItemProjection[]>();
   readonly label = input('Projected quantities');
+  /** Base figure per hectare by item code (from the server); none shown when absent. */
+  readonly perHa = input<Record<string, number | null>>({});
+  /** Item codes in the portal's one order. */
+  readonly order = input<readonly string[]>([]);
+
+  protected readonly ordered = computed(() => inItemOrder(this.items(), this.order()));
 
   protected readonly formatQuantity = formatQuantity;
   protected readonly formatBand = formatBand;

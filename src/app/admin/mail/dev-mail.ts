@@ -1,6 +1,6 @@
 import { DatePipe } from '@angular/common';
 import { HttpClient, httpResource } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, computed, inject, linkedSignal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, ElementRef, inject, linkedSignal, signal, viewChild } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIcon } from '@angular/material/icon';
@@ -58,10 +58,35 @@ export class DevMail {
   protected readonly selected = computed(() => this.list().find((m) => m.id === this.selectedId()) ?? null);
   protected readonly textParts = computed(() => linkify(this.selected()?.text ?? ''));
   /**
-   * The HTML body, shown in an iframe with an empty `sandbox` (no scripts, no forms, its own opaque
-   * origin) via `srcdoc`; the document also inherits the page's CSP, so nothing is fetched from
+   * The HTML body, shown in an iframe whose `sandbox` allows only reading its size (no scripts, no
+   * forms) via `srcdoc`; the document also inherits the page's CSP, so nothing is fetched from
    * outside. Angular's sanitizer would strip the mail's styling, hence the explicit trust here.
    */
+  /** Preview at a phone's width (390 px) instead of the page's. */
+  protected readonly phone = signal(false);
+  /** The frame's height once its document has been measured, so the whole message shows (null: not measured). */
+  protected readonly frameHeight = signal<number | null>(null);
+
+  readonly #frame = viewChild<ElementRef<HTMLIFrameElement>>('frame');
+
+  /** Sizes the frame to the message it holds; the frame keeps a fixed height, and says so, when it cannot be read. */
+  protected measure(): void {
+    const frame = this.#frame()?.nativeElement;
+    const doc = frame?.contentDocument;
+    if (!frame || !doc?.documentElement) return this.frameHeight.set(null);
+    // Let the frame shrink first, so a narrower width is measured at its own height.
+    frame.style.height = '0px';
+    const height = Math.ceil(doc.documentElement.scrollHeight) + 2;
+    frame.style.height = '';
+    this.frameHeight.set(height);
+  }
+
+  /** Another width: the same document flows again, so measure it after the frame has taken the width. */
+  protected setPhone(phone: boolean): void {
+    this.phone.set(phone);
+    setTimeout(() => this.measure());
+  }
+
   protected readonly htmlBody = computed<SafeHtml | null>(() => {
     const html = this.selected()?.html;
     return html ? this.#sanitizer.bypassSecurityTrustHtml(html) : null;

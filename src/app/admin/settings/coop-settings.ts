@@ -1,3 +1,4 @@
+import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, signal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
 import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
@@ -7,7 +8,7 @@ import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
-import type { CoopSettings } from '../../../../shared/api-types';
+import type { CoopSettings, ServerSetup } from '../../../../shared/api-types';
 import { settingsSchema } from '../../../../shared/schemas';
 import { calendarWords, DEFAULT_SEASON_CALENDAR, MONTH_NAMES, seasonCalendarSchema, YEAR_WORDS, type MonthRef } from '../../../../shared/season-calendar';
 import { ApiRequestError, errorMessage } from '../../core/api-error';
@@ -40,6 +41,8 @@ export class CoopSettingsPage {
   readonly #snackBar = inject(MatSnackBar);
 
   protected readonly resource = this.#store.resource;
+  /** The server's address for e-mail links and how mail leaves (from its environment, read-only here). */
+  protected readonly server = httpResource<ServerSetup>(() => '/api/settings/server');
   readonly #fb = inject(NonNullableFormBuilder);
   readonly #monthRef = (r: MonthRef) => this.#fb.group({ month: [r.month, Validators.required], year: [r.year, Validators.required] });
   protected readonly form = this.#fb.group({

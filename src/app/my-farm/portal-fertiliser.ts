@@ -1,0 +1,89 @@
+import { ChangeDetectionStrategy, Component, input } from '@angular/core';
+import type { MemberPlain } from '../outlook/outlook-types';
+import { formatQuantity } from '../outlook/outlook-format';
+import { formatMoney, formatPricePer } from '../budget/budget-format';
+
+/**
+ * The member's own fertiliser estimate: kg of N, P2O5 and K2O the model expects the farm to use,
+ * per hectare and in total, and the bill at the outlook's expected prices (low and high beside it),
+ * with the agronomic caution. The figures come from the server (server/outlook/member-plain.ts).
+ */
+@Component({
+  selector: 'np-portal-fertiliser',
+  template: `
+    @let f = fertiliser();
+    <p>
+      At the outlook's expected prices your farm's fertiliser would cost about
+      <strong>{{ money(f.total) }}</strong> ({{ money(f.totalLow) }} in the low scenario, {{ money(f.totalHigh) }} in the high one).
+    </p>
+    <div class="np-table-scroll" tabindex="0" role="region" aria-label="Your fertiliser estimate">
+      <table class="fert">
+        <thead>
+          <tr>
+            <th scope="col">Nutrient</th>
+            <th scope="col" class="num">Per hectare</th>
+            <th scope="col" class="num">Whole farm</th>
+            <th scope="col" class="num">Expected price</th>
+            <th scope="col" class="num">Bill</th>
+          </tr>
+        </thead>
+        <tbody>
+          @for (l of f.lines; track l.item) {
+            <tr>
+              <th scope="row">{{ l.name }}</th>
+              <td class="num">{{ l.kgPerHa === null ? '—' : formatQuantity(l.kgPerHa) + ' ' + l.unit + '/ha' }}</td>
+              <td class="num">{{ formatQuantity(l.kg) }} {{ l.unit }}</td>
+              <td class="num">{{ pricePer(l.pricePerKg, l.unit) }}</td>
+              <td class="num">{{ money(l.cost) }}</td>
+            </tr>
+          }
+        </tbody>
+        <tfoot>
+          <tr>
+            <th scope="row" colspan="4">Total</th>
+            <td class="num"><strong>{{ money(f.total) }}</strong></td>
+          </tr>
+        </tfoot>
+      </table>
+    </div>
+    <p class="caution">{{ f.caution }}</p>
+  `,
+  styles: `
+    .fert {
+      border-collapse: collapse;
+      min-width: 100%;
+    }
+    th,
+    td {
+      padding: 6px 10px;
+      border-bottom: 1px solid var(--mat-sys-outline-variant);
+      text-align: left;
+      white-space: nowrap;
+    }
+    .num {
+      text-align: right;
+      font-variant-numeric: tabular-nums;
+    }
+    tfoot th,
+    tfoot td {
+      border-bottom: none;
+    }
+    .caution {
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
+    }
+  `,
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class PortalFertiliser {
+  // inputs
+  readonly fertiliser = input.required<NonNullable<MemberPlain['fertiliser']>>();
+
+  protected readonly formatQuantity = formatQuantity;
+  protected money(v: number): string {
+    return formatMoney(v, this.fertiliser().currency);
+  }
+  protected pricePer(v: number, unit: string): string {
+    return formatPricePer(v, this.fertiliser().currency, unit);
+  }
+}
