@@ -3,7 +3,9 @@
  * totals, the expected prices, the planner's commentary, the cautions, a link to the portal and a
  * one-click unsubscribe link. It only shows numbers it is given; it computes none.
  */
-import { priceText, quantityText } from '../../shared/number-format.js';
+import { dayText, priceText, quantityText } from '../../shared/number-format.js';
+import { bandCoverWords, SCENARIO_WORDS } from '../../shared/band-words.js';
+import type { FarmOutlook, ItemProjection, OutlookSnapshot } from '../../shared/outlook-types.js';
 import { MAIL_STYLE } from './mail-style.js';
 
 export interface OutlookMailQuantity {
@@ -132,4 +134,47 @@ ${m.commentary.trim() ? `<h2 style="${MAIL_STYLE.h2}">From the planner</h2>${m.c
 <p style="${MAIL_STYLE.footer}">${escapeHtml(`You receive this because you are a member of ${m.coopName}.`)} <a href="${escapeHtml(m.unsubscribeUrl)}">Stop outlook e-mails</a> · sent by Netput</p>
 </div></body></html>`;
   return { to: m.to, subject, text, html };
+}
+
+function mailQuantities(items: ItemProjection[]): OutlookMailQuantity[] {
+  return items.map((i) => ({
+    name: i.name,
+    unit: i.unit,
+    role: i.role,
+    point: i.scenarios.base!.point,
+    p5: i.scenarios.base!.p5,
+    p95: i.scenarios.base!.p95,
+    low: i.scenarios.low!.point,
+    high: i.scenarios.high!.point,
+  }));
+}
+
+function fixedText(f: FarmOutlook): string {
+  const land = f.fixed.land_ha;
+  return land !== undefined ? `${Math.round(land).toLocaleString('en-GB')} ha` : 'at its recorded fixed factors';
+}
+
+/** The e-mail of one member from a published version (its frozen snapshot and the member's farm part). */
+export function outlookMailOf(s: OutlookSnapshot, farm: FarmOutlook | null, to: { email: string; name: string }, links: { portalUrl: string; unsubscribeUrl: string }) {
+  const d = s.projection.coop.deliveries?.scenarios.base;
+  const cap = s.projection.coop.capacity?.scenarios.base;
+  return outlookMail({
+    to: to.email,
+    recipientName: to.name,
+    coopName: s.coopName,
+    season: s.season.label,
+    version: s.version,
+    title: s.title,
+    publishedOn: dayText(s.publishedAt),
+    prices: s.expectations.map((e) => ({ name: e.name, priceUnit: e.priceUnit, low: e.low, base: e.base, high: e.high, method: e.methodLabel })),
+    farm: farm ? { code: farm.code, name: farm.name, fixed: fixedText(farm), items: mailQuantities(farm.items) } : null,
+    coop: mailQuantities(s.projection.coop.items),
+    deliveries: d ? { point: d.point, p5: d.p5, p95: d.p95, storageShare: cap?.storageShare?.point ?? null, handlingDays: cap?.handlingDays?.point ?? null } : null,
+    scenarioRule: SCENARIO_WORDS,
+    bandWords: bandCoverWords(s.projection.band ?? null),
+    commentary: s.commentary,
+    cautions: s.cautions,
+    portalUrl: links.portalUrl,
+    unsubscribeUrl: links.unsubscribeUrl,
+  });
 }

@@ -7,7 +7,7 @@ import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { enqueueJob } from '../jobs/job-queue.js';
 import { deliveryLog, enqueueMail, mailDomain, requeueFailed, type NewOutboxMail } from '../mail/outbox.js';
-import { outlookMail, type OutlookMailQuantity } from '../mail/outlook-mail.js';
+import { outlookMailOf } from '../mail/outlook-mail.js';
 import { getSettings } from '../settings/settings-service.js';
 import { SCENARIO_RULE_TEXT, type ExpectationSetting, type ScenarioRule } from './expectations.js';
 import { computeExpectations, type ItemExpectation } from './expectations-service.js';
@@ -26,8 +26,6 @@ import {
 import type { FullVersion, MemberVersion, OutlookSnapshot } from '../../shared/outlook-types.js';
 import { signUnsubscribe, unsubscribeSecret } from './unsubscribe-token.js';
 import { memberPlain } from './member-plain.js';
-import { dayText } from '../../shared/number-format.js';
-import { bandCoverWords, SCENARIO_WORDS } from '../../shared/band-words.js';
 
 /** Where the e-mail's portal link points (the member's page with the published outlook). */
 export const PORTAL_PATH = '/my-farm/outlook';
@@ -268,24 +266,6 @@ export async function getProjection(db: Db, id: number) {
 // ---------------------------------------------------------------------------------------------
 // Publishing
 
-function mailQuantities(items: ItemProjection[]): OutlookMailQuantity[] {
-  return items.map((i) => ({
-    name: i.name,
-    unit: i.unit,
-    role: i.role,
-    point: i.scenarios.base!.point,
-    p5: i.scenarios.base!.p5,
-    p95: i.scenarios.base!.p95,
-    low: i.scenarios.low!.point,
-    high: i.scenarios.high!.point,
-  }));
-}
-
-function fixedText(f: FarmOutlook): string {
-  const land = f.fixed.land_ha;
-  return land !== undefined ? `${Math.round(land).toLocaleString('en-GB')} ha` : 'at its recorded fixed factors';
-}
-
 /**
  * Publishes the draft as the next version: the immutable snapshot, each farm's part, and — unless
  * told not to — one personal e-mail per subscribed member in the outbox, all in one transaction.
@@ -369,33 +349,11 @@ async function queueOutlookMails(tx: Db, config: Pick<Config, 'publicUrl' | 'mai
     .orderBy(asc(users.id));
   const secret = await unsubscribeSecret(tx);
   const byFarm = new Map(farmParts.map((f) => [f.farmId, f]));
-  const coopQuantities = mailQuantities(s.projection.coop.items);
-  const d = s.projection.coop.deliveries?.scenarios.base;
-  const cap = s.projection.coop.capacity?.scenarios.base;
-  const prices = s.expectations.map((e) => ({ name: e.name, priceUnit: e.priceUnit, low: e.low, base: e.base, high: e.high, method: e.methodLabel }));
   const mails: NewOutboxMail[] = members.map((m) => {
     const key = `outlook.v${versionId}.u${m.id}`;
     const unsubscribeUrl = `${config.publicUrl}/api/unsubscribe/${signUnsubscribe(secret, m.id)}`;
-    const farm = m.farmId !== null ? byFarm.get(m.farmId) : undefined;
-    const content = outlookMail({
-      to: m.email,
-      recipientName: m.name,
-      coopName: s.coopName,
-      season: s.season.label,
-      version: s.version,
-      title: s.title,
-      publishedOn: dayText(s.publishedAt),
-      prices,
-      farm: farm ? { code: farm.code, name: farm.name, fixed: fixedText(farm), items: mailQuantities(farm.items) } : null,
-      coop: coopQuantities,
-      deliveries: d ? { point: d.point, p5: d.p5, p95: d.p95, storageShare: cap?.storageShare?.point ?? null, handlingDays: cap?.handlingDays?.point ?? null } : null,
-      scenarioRule: SCENARIO_WORDS,
-      bandWords: bandCoverWords(s.projection.band ?? null),
-      commentary: s.commentary,
-      cautions: s.cautions,
-      portalUrl: `${config.publicUrl}${PORTAL_PATH}`,
-      unsubscribeUrl,
-    });
+    const farm = m.farmId !== null ? (byFarm.get(m.farmId) ?? null) : null;
+    const content = outlookMailOf(s, farm, { email: m.email, name: m.name }, { portalUrl: `${config.publicUrl}${PORTAL_PATH}`, unsubscribeUrl });
     const skipReason = m.optOut ? 'The member has opted out of outlook e-mails' : !m.passwordHash ? 'The member has not accepted the invitation yet' : undefined;
     return {
       idempotencyKey: key,

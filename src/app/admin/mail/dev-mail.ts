@@ -67,11 +67,11 @@ export class DevMail {
   /** The frame's height once its document has been measured, so the whole message shows (null: not measured). */
   protected readonly frameHeight = signal<number | null>(null);
 
-  readonly #frame = viewChild<ElementRef<HTMLIFrameElement>>('frame');
+  private readonly frame = viewChild<ElementRef<HTMLIFrameElement>>('frame');
 
   /** Sizes the frame to the message it holds; the frame keeps a fixed height, and says so, when it cannot be read. */
   protected measure(): void {
-    const frame = this.#frame()?.nativeElement;
+    const frame = this.frame()?.nativeElement;
     const doc = frame?.contentDocument;
     if (!frame || !doc?.documentElement) return this.frameHeight.set(null);
     // Let the frame shrink first, so a narrower width is measured at its own height.
