@@ -21,9 +21,7 @@ import { formatMoney, formatPricePer } from '../budget/budget-format';
         <thead>
           <tr>
             <th scope="col">Nutrient</th>
-            <th scope="col" class="num">Per hectare</th>
-            <th scope="col" class="num">Whole farm</th>
-            <th scope="col" class="num">Expected price</th>
+            <th scope="col" class="num">Need</th>
             <th scope="col" class="num">Bill</th>
           </tr>
         </thead>
@@ -31,16 +29,20 @@ import { formatMoney, formatPricePer } from '../budget/budget-format';
           @for (l of f.lines; track l.item) {
             <tr>
               <th scope="row">{{ l.name }}</th>
-              <td class="num">{{ l.kgPerHa === null ? '—' : formatQuantity(l.kgPerHa) + ' ' + l.unit + '/ha' }}</td>
-              <td class="num">{{ formatQuantity(l.kg) }} {{ l.unit }}</td>
-              <td class="num">{{ pricePer(l.pricePerKg, l.unit) }}</td>
-              <td class="num">{{ money(l.cost) }}</td>
+              <td class="num">
+                {{ l.kgPerHa === null ? '—' : formatQuantity(l.kgPerHa) + ' ' + l.unit + '/ha' }}
+                <span class="sub">{{ formatQuantity(l.kg) }} {{ l.unit }} in all</span>
+              </td>
+              <td class="num">
+                {{ money(l.cost) }}
+                <span class="sub">at {{ pricePer(l.pricePerKg, l.unit) }}</span>
+              </td>
             </tr>
           }
         </tbody>
         <tfoot>
           <tr>
-            <th scope="row" colspan="4">Total</th>
+            <th scope="row" colspan="2">Total</th>
             <td class="num"><strong>{{ money(f.total) }}</strong></td>
           </tr>
         </tfoot>
@@ -58,15 +60,21 @@ import { formatMoney, formatPricePer } from '../budget/budget-format';
       padding: 6px 10px;
       border-bottom: 1px solid var(--mat-sys-outline-variant);
       text-align: left;
-      white-space: nowrap;
+      vertical-align: top;
     }
     .num {
       text-align: right;
       font-variant-numeric: tabular-nums;
+      white-space: nowrap;
     }
     tfoot th,
     tfoot td {
       border-bottom: none;
+    }
+    .sub {
+      display: block;
+      font: var(--mat-sys-body-small);
+      color: var(--mat-sys-on-surface-variant);
     }
     .caution {
       font: var(--mat-sys-body-small);

@@ -85,7 +85,7 @@ export default async function memberPlain({ base, page }: Harness): Promise<void
       await page.screenshot({ path: shotPath(`portal-plain-fertiliser-${width}`) });
       await scrollTo(page, '#coop-heading');
       await page.screenshot({ path: shotPath(`portal-plain-coop-${width}`) });
-      await how.locator('summary').click();
+      await how.getByText('How this was made', { exact: true }).click();
       await scrollTo(page, 'details.how');
       await page.screenshot({ path: shotPath(`portal-plain-method-${width}`) });
     });
