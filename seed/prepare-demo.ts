@@ -18,7 +18,9 @@ import { createModel, startRun } from '../server/models/models-service.js';
 import { runChoice } from '../server/outlook/run-choice.js';
 import { createOutlook, publishOutlook, startProjection } from '../server/outlook/outlook-service.js';
 import { createBudget } from '../server/budget/budget-service.js';
-import { budgetInputSchema } from '../server/budget/budget-schemas.js';
+import { budgetInputSchema } from '../shared/budget-schemas.js';
+import { defaultBookingMonths } from '../shared/season-calendar.js';
+import { getSettings } from '../server/settings/settings-service.js';
 import { modelDefinitionSchema } from '../shared/model-schemas.js';
 import type { Config } from '../server/config.js';
 import { FIRST_SEASON, SEASON_COUNT, seasonLabel } from './demo-coop.js';
@@ -143,19 +145,17 @@ export function demoSetupJobHandler(db: Db, config: Pick<Config, 'publicUrl' | '
     await stage('Building the treasurer’s fertiliser budget');
     const [existing] = await db.select({ id: budgets.id }).from(budgets).where(eq(budgets.name, DEMO_BUDGET_NAME));
     if (!existing) {
-      const y = DEMO_OUTLOOK_START_YEAR + 1;
+      // The co-op's season calendar decides when inputs are bought (shared/season-calendar.ts).
+      const { seasonCalendar } = await getSettings(db);
+      const plan = defaultBookingMonths(seasonCalendar, DEMO_OUTLOOK_START_YEAR);
       const input = budgetInputSchema.parse({
         name: DEMO_BUDGET_NAME,
         source: { kind: 'outlook', outlookVersionId: version.id, scenario: 'base' },
         bookingPlan: {
-          months: [
-            { month: `${y}-01`, share: 0.4, prepay: true },
-            { month: `${y}-02`, share: 0.4, prepay: true },
-            { month: `${y}-03`, share: 0.2, prepay: false },
-          ],
-          prepayDiscountPct: 2,
+          months: plan.months.map((m) => ({ month: m.month, share: m.sharePct / 100, prepay: m.prepay })),
+          prepayDiscountPct: 0,
           paymentTermsDays: 30,
-          deliveryMonth: `${y}-03`,
+          deliveryMonth: plan.deliveryMonth,
           financingRatePct: null,
         },
         scenarios: [{ name: 'Nitrogen dearer', priceChanges: { nitrogen: 20 } }],
