@@ -56,12 +56,18 @@ export function freePort(): Promise<number> {
   });
 }
 
-export function startServer(port: number, dataDir: string): ChildProcess {
+/** Port of the server's local fake payment service: its hosted checkout page is the one other origin a flow may open. */
+export let fakePaymentsPort = 0;
+
+export function startServer(port: number, dataDir: string, paymentsPort = 0): ChildProcess {
+  fakePaymentsPort = paymentsPort;
   // A fresh PGlite folder and the built-in fake SMTP server: never a configured database or mail relay.
   const env: NodeJS.ProcessEnv = { ...process.env, PORT: String(port), DATA_DIR: dataDir, NODE_ENV: 'production' };
   delete env['DATABASE_URL'];
   delete env['SMTP_URL'];
   env['PUBLIC_URL'] = `http://127.0.0.1:${port}`;
+  delete env['PAYMENT_SECRET_KEY'];
+  env['FAKE_PAYMENTS_PORT'] = String(paymentsPort);
   const child = spawn(join(ROOT, 'node_modules/.bin/tsx'), ['server/main.ts'], {
     cwd: ROOT,
     env,

@@ -15,6 +15,7 @@ const budgetRoutes: Routes = [
     providers: [provideCharts()],
     children: [
       { path: '', pathMatch: 'full', title: 'Fertiliser budgets', loadComponent: () => import('./budget-list').then((m) => m.BudgetList) },
+      { path: 'bookings', title: 'Member bookings', loadComponent: () => import('./member-bookings').then((m) => m.MemberBookings) },
       { path: 'products', title: 'Fertiliser products', loadComponent: () => import('./fertiliser-products').then((m) => m.FertiliserProducts) },
       {
         path: 'new',

@@ -28,6 +28,7 @@ export type SeasonStage = (typeof SEASON_STAGES)[number]['key'];
 export const NAV_ITEMS: readonly NavItem[] = [
   { path: '/', label: 'Home', icon: 'home', roles: ACCESS.everyone },
   { path: '/my-farm/outlook', label: 'Season outlook', icon: 'wb_sunny', roles: ACCESS.myFarm },
+  { path: '/my-farm/bookings', label: 'Fertiliser booking', icon: 'shopping_cart', roles: ACCESS.myFarm },
   { path: '/prices', label: 'Prices', icon: 'price_change', roles: ACCESS.prices, stage: 'records' },
   { path: '/farms', label: 'Farms', icon: 'agriculture', roles: ACCESS.farms, stage: 'records' },
   { path: '/imports', label: 'Imports', icon: 'upload_file', roles: ACCESS.imports, stage: 'records' },

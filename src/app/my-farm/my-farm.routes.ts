@@ -9,6 +9,7 @@ const myFarmRoutes: Routes = [
     children: [
       { path: '', pathMatch: 'full', redirectTo: 'outlook' },
       { path: 'outlook', title: 'Season outlook', loadComponent: () => import('./portal-outlook').then((m) => m.PortalOutlook) },
+      { path: 'bookings', title: 'Fertiliser booking', loadComponent: () => import('./bookings/booking-page').then((m) => m.BookingPage) },
     ],
   },
 ];

@@ -81,7 +81,7 @@ describe('Shell', () => {
   it('should show a member only home, their season outlook and account', async () => {
     await render('member');
 
-    expect(navPaths()).toEqual(['/', '/my-farm/outlook', '/account']);
+    expect(navPaths()).toEqual(['/', '/my-farm/outlook', '/my-farm/bookings', '/account']);
   });
 
   it('should show a treasurer farms but no administration heading', async () => {
