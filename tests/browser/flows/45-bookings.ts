@@ -26,8 +26,10 @@ export default async function bookings({ base, page }: Harness): Promise<void> {
   await check('the treasurer opens the 2026/27 booking round on the page', async () => {
     await page.goto(`${base}/budget/bookings`);
     await page.getByRole('button', { name: 'Open a booking round' }).click();
-    await page.getByLabel('Season').fill('2026/27');
-    await page.getByLabel('Budget with the booking prices').click();
+    await page.getByRole('textbox', { name: 'Season' }).fill('2026/27');
+    // The empty select's floating label sits over it: open it from the keyboard, as a keyboard user would.
+    await page.getByRole('combobox', { name: 'Budget with the booking prices' }).focus();
+    await page.keyboard.press('Enter');
     await page.getByRole('option', { name: 'Booking prices 2026/27' }).click();
     await page.getByLabel('Discount and change deadline').fill('2099-01-31');
     await page.getByLabel('VAT on fertiliser, %').fill('20');
