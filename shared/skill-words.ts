@@ -120,6 +120,11 @@ export function skillSummary(bt: BackTestResult, nameOf: (code: string) => strin
     farmCoverage.share === null
       ? ''
       : `Its ${pct(level)} bands held ${pct(farmCoverage.share)} of farm outcomes${thirdWords} and ${coopCoverage.held} of ${coopCoverage.total} co-op totals.${fitWords(level, byThird, coopCoverage)}`;
+  // The pooled model's bands are not the per-hectare model's: say what they cover (docs/forecasting.md §7).
+  const pooledWords =
+    bt.spec === 'pooled' && farmCoverage.share !== null
+      ? ' These are the pooled model’s bands: they allow for the uncertainty of its estimates and each farm’s own ups and downs, with one spread for every farm size, but not for a good or bad season that moves every farm together, so its co-op bands are likely too narrow.'
+      : '';
   const weakItems = items
     .filter((i) => !i.beatsRule)
     .map((i) => {
@@ -129,5 +134,5 @@ export function skillSummary(bt: BackTestResult, nameOf: (code: string) => strin
       const errs = it.model.mdape !== null && rule.mdape !== null ? ` (median farm error ${it.model.mdape.toFixed(1)} % against ${rule.mdape.toFixed(1)} %)` : '';
       return { item: i.item, name: i.name, sentence: `For ${i.name} the model did not beat ${ruleName}${errs}.` };
     });
-  return { level, seasons, skill, coverage, text: [skill, coverage].filter(Boolean).join(' '), items, weakItems, farmCoverage, coopCoverage, byThird };
+  return { level, seasons, skill, coverage: coverage + pooledWords, text: [skill, coverage + pooledWords].filter(Boolean).join(' '), items, weakItems, farmCoverage, coopCoverage, byThird };
 }

@@ -50,6 +50,11 @@ export interface FitRunResult {
   spec: ForecastSpec;
   forecast: ForecastModel | null;
   forecastError: string | null;
+  /**
+   * Per-hectare runs: the price elasticities of the per-hectare profit function at its sample means
+   * (with constant returns to land they hold for a farm of any size); null otherwise.
+   */
+  forecastElasticities?: { elasticities: number[][]; standardErrors: number[][] } | null;
   /** The rolling-origin back-test of the forecasting model against the plain rules, with band coverage. */
   skill: BackTestResult | null;
 }
@@ -179,6 +184,15 @@ export function runFit(task: Omit<FitTask, 'progressPort'>, progress: Progress =
   } catch (err) {
     forecastError = (err as Error).message;
   }
+  let forecastElasticities: FitRunResult['forecastElasticities'] = null;
+  if (forecast && forecast.spec === 'per-hectare') {
+    try {
+      const el = elasticitiesAt(forecast.fit);
+      forecastElasticities = { elasticities: el.elasticities, standardErrors: el.standardErrors };
+    } catch {
+      forecastElasticities = null;
+    }
+  }
   const bt = task.backtestSeasons > 0 ? backtest(ds, options, task.spec, task.backtestSeasons, progress) : { skill: null, table: { seasons: [], items: [], error: null } };
   progress(0.95, 'Storing the run');
   return {
@@ -195,6 +209,7 @@ export function runFit(task: Omit<FitTask, 'progressPort'>, progress: Progress =
     spec: task.spec,
     forecast,
     forecastError,
+    forecastElasticities,
     skill: bt.skill,
   };
 }

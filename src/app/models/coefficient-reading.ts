@@ -38,29 +38,35 @@ export interface EquationReading {
  * are written (a constant, normalised prices p_x, square-root price ratios s_x, fixed factors, and
  * their squares hz_/hp_); the page says what each one means for the quantity.
  */
-export function coefficientMeaning(column: string, equationItem: string, form: string, labels: ItemLabels, factors: readonly string[] = []): string {
+export function coefficientMeaning(column: string, equationItem: string, form: string, labels: ItemLabels, factors: readonly string[] = [], perHectare = false): string {
   const lower = (name: string) => (/^[A-Z][a-z]/.test(name) ? name[0]!.toLowerCase() + name.slice(1) : name);
   const price = (code: string) => (code === equationItem ? 'its own price' : `the ${lower(labels.name(code))} price`);
   const factor = (f: string) => (f === 'land_ha' ? 'land' : factorLabel(f).toLowerCase());
   if (column === '(Intercept)') {
+    if (perHectare) return form === 'generalized-leontief' ? 'Base level per hectare, before other prices' : 'Base level per hectare, before prices and trend';
     return form === 'generalized-leontief' ? 'Base level per unit of fixed factor, before other prices' : 'Base level, before prices, land and trend';
   }
   let m: RegExpExecArray | null;
   if ((m = /^p_(.+)$/.exec(column))) return `Response to ${price(m[1]!)}`;
   if ((m = /^s_(.+)$/.exec(column))) return `Response to ${price(m[1]!)} relative to its own`;
   if (column === 'land_ha') return 'Change per extra hectare of land';
-  if (column === 'trend') return 'Drift from one season to the next';
+  if (column === 'trend') return perHectare ? 'Drift per hectare from one season to the next' : 'Drift from one season to the next';
   if ((m = /^hz_(.+)$/.exec(column))) {
     const rest = m[1]!;
     const first = factors.find((f) => rest.startsWith(`${f}_`) && factors.includes(rest.slice(f.length + 1)));
     return first ? `Joint effect of ${factor(first)} and ${factor(rest.slice(first.length + 1))}` : `Bend in the response to ${factor(rest)}`;
   }
   if ((m = /^hp_(.+)$/.exec(column))) return `Bend in the response to ${price(m[1]!)}`;
-  return `Change per unit of ${factor(column)}`;
+  return perHectare ? `Change per unit of ${factor(column)} per hectare` : `Change per unit of ${factor(column)}`;
 }
 
-/** Every equation of a fit, read for the coefficient page. Input equations are turned to use (the engine counts inputs negative). */
-export function readEquations(equations: readonly EquationFit[], form: string, labels: ItemLabels, factors: readonly string[] = []): EquationReading[] {
+/**
+ * Every equation of a fit, read for the coefficient page. Input equations are turned to use (the
+ * engine counts inputs negative). `perHectare`: the fit is the per-hectare profit function of a
+ * forecasting model (every netput and other fixed factor per hectare of land), and the words and
+ * units say so.
+ */
+export function readEquations(equations: readonly EquationFit[], form: string, labels: ItemLabels, factors: readonly string[] = [], perHectare = false): EquationReading[] {
   const owners = new Map<string, string[]>();
   for (const e of equations) for (const c of e.coefficients) owners.set(c.parameter, [...(owners.get(c.parameter) ?? []), e.item]);
   return equations.map((e) => {
@@ -70,7 +76,7 @@ export function readEquations(equations: readonly EquationFit[], form: string, l
       item: e.item,
       role: e.role,
       title: `${name} ${e.role === 'output' ? 'supply' : 'use'}`,
-      unit: labels.unit(e.item),
+      unit: perHectare && labels.unit(e.item) ? `${labels.unit(e.item)} per ha` : labels.unit(e.item),
       r2: e.r2,
       rmse: e.rmse,
       lines: e.coefficients.map((c) => {
@@ -79,7 +85,7 @@ export function readEquations(equations: readonly EquationFit[], form: string, l
         const high = value + RANGE_Z * c.standardError;
         const column = c.name.startsWith(`${e.item}_`) ? c.name.slice(e.item.length + 1) : c.name;
         return {
-          meaning: coefficientMeaning(column, e.item, form, labels, factors),
+          meaning: coefficientMeaning(column, e.item, form, labels, factors, perHectare),
           value,
           low,
           high,

@@ -23,7 +23,13 @@ const VERDICT_WORDS: Record<CoefficientLine['verdict'], string> = {
   template: `
     <div class="intro">
       <p>
-        Each netput equation says how one quantity moves with prices, land and trend. Values are per farm and season in the item's unit,
+        @if (perHectare()) {
+          Each netput equation says how one quantity <strong>per hectare</strong> of a farm's land moves with prices and trend. This run's
+          model is per hectare: a farm's figure is its land times the per-hectare figure, plus the farm's own level (shown on the forecast, not
+          here). Values are per hectare and season in the item's unit,
+        } @else {
+          Each netput equation says how one quantity moves with prices, land and trend. Values are per farm and season in the item's unit,
+        }
         turned so they read as <strong>supply</strong> for what farms sell and <strong>use</strong> for what they buy: a positive value always
         means more of the quantity shown. The bar is the 95 % range (two standard errors either side); when it crosses the zero line the data
         cannot tell the effect from none.
@@ -36,9 +42,9 @@ const VERDICT_WORDS: Record<CoefficientLine['verdict'], string> = {
     @for (eq of equations(); track eq.item) {
       <section class="sheet" [attr.aria-labelledby]="'eq-' + eq.item">
         <header>
-          <h3 [id]="'eq-' + eq.item">{{ eq.title }} <span class="unit">{{ eq.unit ? eq.unit + ' per farm' : '' }}</span></h3>
+          <h3 [id]="'eq-' + eq.item">{{ eq.title }} <span class="unit">{{ eq.unit ? eq.unit + (perHectare() ? '' : ' per farm') : '' }}</span></h3>
           <p class="fit">
-            Follows {{ (eq.r2 * 100).toFixed(0) }} % of the variation between farm-seasons; a typical miss is
+            Follows {{ (eq.r2 * 100).toFixed(0) }} % of the variation between farm-seasons{{ perHectare() ? ' per hectare, farm and season effects included' : '' }}; a typical miss is
             {{ formatAmount(eq.rmse) }} {{ eq.unit }}.
           </p>
         </header>
@@ -118,8 +124,18 @@ export class CoefficientSheets {
   protected readonly formatSignificant = formatSignificant;
   protected readonly verdictWords = VERDICT_WORDS;
 
+  /** A per-hectare run shows its forecasting model's per-hectare profit function, not the farm-totals fit. */
+  protected readonly perHectare = computed(() => {
+    const r = this.result();
+    return r.spec === 'per-hectare' && r.forecast?.spec === 'per-hectare' && !!r.forecast.fit;
+  });
+
   protected readonly equations = computed(() => {
     const r = this.result();
+    if (this.perHectare()) {
+      const f = r.forecast!.fit;
+      return readEquations(f.equations, f.layout.form, this.labels(), f.layout.factors, true);
+    }
     return readEquations(r.fit.equations, r.summary.form, this.labels(), [...r.summary.fixedFactors, ...(r.summary.trend ? ['trend'] : [])]);
   });
 
@@ -137,7 +153,7 @@ export class CoefficientSheets {
   }
 
   protected exportCsv(): void {
-    const rows = [['equation', 'what it measures', 'parameter', 'value (supply or use)', 'standard error', 'range low (95 %)', 'range high (95 %)', 'estimate as fitted (inputs negative)']];
+    const rows = [['equation', 'what it measures', 'parameter', this.perHectare() ? 'value per hectare (supply or use)' : 'value (supply or use)', 'standard error', 'range low (95 %)', 'range high (95 %)', 'estimate as fitted (inputs negative)']];
     for (const eq of this.equations())
       for (const l of eq.lines) rows.push([eq.title, l.meaning, l.parameter, String(l.value), String(l.standardError), String(l.low), String(l.high), String(l.raw.estimate)]);
     const csv = rows.map((r) => r.map((cell, k) => `"${String(k < 3 ? spreadsheetSafe(cell) : cell).replace(/"/g, '""')}"`).join(',')).join('\r\n');

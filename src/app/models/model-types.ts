@@ -87,7 +87,15 @@ export interface FitRunResult {
   backtest: { seasons: BacktestSeason[]; items: BacktestItem[]; error: string | null };
   /** Absent in runs stored before forecasting models existed. */
   spec?: ForecastSpecName;
+  /**
+   * The forecasting model (server/estimation/panel.ts). For a per-hectare run its `fit` is the
+   * profit function per hectare of land (netputs per ha; land itself is not a factor); only the
+   * parts the page reads are declared here.
+   */
+  forecast?: { spec: ForecastSpecName; specification: string; landFactor: string | null; fit: FitResult } | null;
   forecastError?: string | null;
+  /** Per-hectare runs: elasticities of the per-hectare profit function at its sample means (absent in older runs). */
+  forecastElasticities?: { elasticities: number[][]; standardErrors: number[][] } | null;
   /** The forecasting model's rolling-origin back-test against the plain rules (absent or null: none). */
   skill?: BackTestResult | null;
 }

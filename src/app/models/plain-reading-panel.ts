@@ -16,7 +16,12 @@ import {
   selector: 'np-plain-reading-panel',
   imports: [CautionNote],
   template: `
-    <p class="intro">Each line takes one price and says what happens when it rises by 10 % while every other price, the land and the trend stay where they were.</p>
+    <p class="intro">
+      Each line takes one price and says what happens when it rises by 10 % while every other price, the land and the trend stay where they were.
+      @if (perHectare()) {
+        Read from this run's per-hectare model, so the same shares hold for a farm of any size.
+      }
+    </p>
     <ul class="readings" aria-label="What the model says">
       @for (reading of elasticityReadings(); track reading.price) {
         <li>{{ reading.text }}</li>
@@ -25,7 +30,9 @@ import {
         <li>{{ line }}</li>
       }
     </ul>
-    @if (backtestReadings().length) {
+    @if (skillText()) {
+      <p class="backtest"><strong>How far to trust it:</strong> {{ skillText() }}</p>
+    } @else if (backtestReadings().length) {
       <p class="backtest"><strong>How far to trust it:</strong> {{ backtestReadings().join(' ') }}</p>
     }
     <np-caution-note label="How to read this">
@@ -67,6 +74,10 @@ export class PlainReadingPanel {
   readonly backtest = input<readonly BacktestInput[]>([]);
   readonly backtestSeasons = input(0);
   readonly sample = input<SampleDescription | null>(null);
+  /** The elasticities are the per-hectare model's (a per-hectare run). */
+  readonly perHectare = input(false);
+  /** The forecasting model's back-test in plain words (skill against the plain rules, band coverage); empty: none. */
+  readonly skillText = input('');
 
   protected readonly elasticityReadings = computed(() => readElasticities([...this.items()], this.elasticities(), this.standardErrors()));
   protected readonly shadowReadings = computed(() => readShadowValues([...this.shadowValues()], this.currency()));

@@ -7,6 +7,7 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
 import type { Item } from '../../../shared/api-types';
+import { skillSummary } from '../../../shared/skill-words';
 import { ACCESS } from '../core/access';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
@@ -85,6 +86,24 @@ export class RunResult {
   protected readonly matrixItems = computed<MatrixItem[]>(() =>
     (this.result()?.summary.items ?? []).map((i) => ({ code: i.name, name: this.labels().name(i.name), role: i.role })),
   );
+  /**
+   * What the plain reading reads: for a per-hectare run the per-hectare model's elasticities (its
+   * items in the same order as the farm-totals fit), otherwise the farm-totals fit's.
+   */
+  protected readonly readingElasticities = computed(() => {
+    const r = this.result();
+    if (!r) return null;
+    const f = r.forecast?.fit;
+    const sameOrder = !!f && f.layout.items.length === r.summary.items.length && f.layout.items.every((it, i) => it.name === r.summary.items[i]!.name);
+    if (r.spec === 'per-hectare' && r.forecastElasticities && sameOrder)
+      return { perHectare: true, elasticities: r.forecastElasticities.elasticities, standardErrors: r.forecastElasticities.standardErrors };
+    return { perHectare: false, elasticities: r.summary.elasticities, standardErrors: r.summary.elasticityStandardErrors };
+  });
+  /** The forecasting model's back-test in plain words (skill and band coverage), when the run has one. */
+  protected readonly skillText = computed(() => {
+    const s = this.result()?.skill;
+    return s && s.items.length ? skillSummary(s, (c) => this.labels().name(c)).text : '';
+  });
   protected readonly sample = computed(() => {
     const r = this.result();
     if (!r || r.fittedBySeason.length === 0) return null;
