@@ -42,6 +42,7 @@ const results: (CoverageStudyResult & { name: string })[] = parts ?? designs.map
 });
 const pc = (c: { share: number }) => `${(100 * c.share).toFixed(1)} %`;
 const inTarget = (c: { share: number }) => c.share >= 0.87 && c.share <= 0.93;
+const skillOk = results.every((r) => r.skill.every((k) => k.model <= k.perHectare));
 const allIn = results.every((r) => [...r.all.thirds, r.all.coop].every(inTarget));
 const doc = {
   measuredAt: new Date().toISOString(),
@@ -53,9 +54,11 @@ const doc = {
   target: [0.87, 0.93],
   replicatesPerDesign: replicates,
   allWithinTarget: allIn,
+  skillNoWorseThanPerHectareRule: skillOk,
   designs: results,
 };
 writeFileSync(join(root, 'bench', 'results', 'forecast-coverage.json'), JSON.stringify(doc, null, 2) + '\n');
+const skillLine = () => `Farm projections no worse than the per-hectare rule for every item in every design: **${skillOk ? 'yes' : 'no'}**.`;
 const lines = [
   '# Coverage of the 90 % bands with known truth',
   '',
@@ -68,12 +71,19 @@ const lines = [
   '',
   `All thirds and co-op totals (all items) within the target: **${allIn ? 'yes' : 'no'}**.`,
   '',
+  skillLine(),
+  '',
 ];
 for (const r of results) {
   lines.push(`## ${r.name} (mean t degrees of freedom of the season shock ${r.meanDf.toFixed(1)})`, '');
   lines.push('| item | smallest third | middle third | largest third | all farms | co-op totals |', '|---|---|---|---|---|---|');
   for (const it of r.items) lines.push(`| ${it.item} | ${it.thirds.map(pc).join(' | ')} | ${pc(it.farms)} | ${it.coop.held} of ${it.coop.total} (${pc(it.coop)}) |`);
   lines.push(`| **all items** | ${r.all.thirds.map(pc).join(' | ')} | ${pc(r.all.farms)} | ${r.all.coop.held} of ${r.all.coop.total} (${pc(r.all.coop)}) |`, '');
+  lines.push('Median absolute percentage error of the farm projections (every replicate\'s farm outcomes):', '');
+  lines.push('| item | this model | last season\'s quantity | own average per ha × land | model / per-hectare rule |', '|---|---|---|---|---|');
+  for (const k of r.skill) lines.push(`| ${k.item} | ${k.model.toFixed(1)} % | ${k.lastSeason.toFixed(1)} % | ${k.perHectare.toFixed(1)} % | ${(k.model / k.perHectare).toFixed(2)} |`);
+  lines.push('');
 }
+
 writeFileSync(join(root, 'bench', 'results', 'forecast-coverage.md'), lines.join('\n'));
 console.log(lines.join('\n'));

@@ -40,6 +40,12 @@ export interface CoverageStudyResult {
   all: { thirds: CoverageCell[]; farms: CoverageCell; coop: CoverageCell };
   /** Mean t degrees of freedom of the season shock. */
   meanDf: number;
+  /**
+   * Skill per item: median absolute percentage error of the farm projections (points) over every
+   * replicate's farm outcomes with a positive actual, against the plain rules (last season's
+   * quantity; the farm's own average per hectare over the fitted seasons × its land).
+   */
+  skill: { item: string; model: number; lastSeason: number; perHectare: number }[];
 }
 
 const cell = (): CoverageCell => ({ held: 0, total: 0, share: 0 });
@@ -49,6 +55,7 @@ export function runCoverageStudy(o: CoverageStudyOptions): CoverageStudyResult {
   const items = PER_HECTARE_ITEMS;
   const per = items.map(() => ({ thirds: [cell(), cell(), cell()], farms: cell(), coop: cell() }));
   let dfSum = 0;
+  const ape = items.map(() => ({ model: [] as number[], last: [] as number[], perHa: [] as number[] }));
   for (let r = 0; r < o.replicates; r++) {
     const { dataset: ds } = generateForecastPanel({ items, farms: o.farms, seasons: o.seasons + 1, firstSeason: 2000, seed: o.seed + r, ...o.panel });
     const last = 2000 + o.seasons;
@@ -72,11 +79,32 @@ export function runCoverageStudy(o: CoverageStudyOptions): CoverageStudyResult {
       level,
       season: last,
     });
+    // the plain rules from the fitted seasons of each farm
+    const hist = new Map<string, { lastYear: number; last: number[]; perHa: number[]; count: number }>();
+    for (const i of train) {
+      const f = ds.farms![i]!;
+      const L = ds.fixed[0]![i]!;
+      const h = hist.get(f) ?? { lastYear: -1, last: items.map(() => 0), perHa: items.map(() => 0), count: 0 };
+      items.forEach((_, k) => (h.perHa[k]! += ds.quantities[k]![i]! / L));
+      h.count++;
+      if (ds.seasonYears[i]! > h.lastYear) {
+        h.lastYear = ds.seasonYears[i]!;
+        h.last = items.map((_, k) => ds.quantities[k]![i]!);
+      }
+      hist.set(f, h);
+    }
     items.forEach((it, k) => {
       const acc = per[k]!;
       let total = 0;
       test.forEach((i, f) => {
         const q = ds.quantities[k]![i]!;
+        const h = hist.get(ds.farms![i]!);
+        if (q > 0 && h) {
+          const pt = proj.farms[f]!.quantities[it.name]!.point;
+          ape[k]!.model.push(Math.abs(pt - q) / q);
+          ape[k]!.last.push(Math.abs(h.last[k]! - q) / q);
+          ape[k]!.perHa.push(Math.abs((h.perHa[k]! / h.count) * ds.fixed[0]![i]! - q) / q);
+        }
         total += q;
         const b = proj.farms[f]!.quantities[it.name]!;
         const inside = q >= b.lower && q <= b.upper;
@@ -107,5 +135,13 @@ export function runCoverageStudy(o: CoverageStudyOptions): CoverageStudyResult {
       coop: sum(per.map((p) => p.coop)),
     },
     meanDf: dfSum / o.replicates,
+    skill: items.map((it, k) => ({ item: it.name, model: 100 * median(ape[k]!.model), lastSeason: 100 * median(ape[k]!.last), perHectare: 100 * median(ape[k]!.perHa) })),
   };
+}
+
+function median(xs: number[]): number {
+  if (!xs.length) return NaN;
+  const s = xs.slice().sort((a, b) => a - b);
+  const m = s.length >> 1;
+  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
 }
