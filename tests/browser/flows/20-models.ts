@@ -16,7 +16,13 @@ interface RunJson {
   id: number;
   dataHash: string;
   createdByName: string | null;
-  result: { summary: { items: { name: string }[]; elasticities: number[][] }; fit: { equations: { coefficients: unknown[] }[] } };
+  result: {
+    summary: { items: { name: string }[]; elasticities: number[][] };
+    fit: { equations: { coefficients: unknown[] }[] };
+    spec?: string;
+    forecast?: { fit: { equations: { coefficients: unknown[] }[] } } | null;
+    forecastElasticities?: { elasticities: number[][] } | null;
+  };
 }
 
 /** The same rounding the page uses for quantities (model-format.ts formatAmount), for comparing cells. */
@@ -129,7 +135,10 @@ export default async function models({ base, page }: Harness): Promise<void> {
         await page.getByRole('link', { name: 'Open result' }).first().click();
         await page.waitForURL(new RegExp(`/models/runs/${runA}$`));
         const run = (await page.evaluate((id) => fetch(`/api/model-runs/${id}`).then((r) => r.json()), runA)) as RunJson;
-        const { items, elasticities } = run.result.summary;
+        const { items } = run.result.summary;
+        // A per-hectare run (the default with land) reads and tabulates its per-hectare model's elasticities.
+        const perHa = run.result.spec === 'per-hectare' && !!run.result.forecastElasticities;
+        const elasticities = perHa ? run.result.forecastElasticities!.elasticities : run.result.summary.elasticities;
         const n = items.findIndex((i) => i.name === 'nitrogen');
 
         const table = page.getByRole('table', { name: 'Short-run price elasticities (land fixed)' });
@@ -170,11 +179,15 @@ export default async function models({ base, page }: Harness): Promise<void> {
         assertEqual(run.createdByName, 'Priya Planner', 'createdByName from the API');
         await provenance.getByText('Started by Priya Planner', { exact: false }).waitFor();
         // One sheet per netput equation, each coefficient in plain words with its 95 % range; no program's labels.
+        // A per-hectare run shows its per-hectare profit function, in units per ha.
         await page.locator('#coefficients .sheet').first().waitFor();
-        assertEqual(await page.locator('#coefficients .sheet').count(), run.result.fit.equations.length, 'coefficient sheets (one per equation)');
+        const perHa = run.result.spec === 'per-hectare' && !!run.result.forecast;
+        const shown = perHa ? run.result.forecast!.fit : run.result.fit;
+        assertEqual(await page.locator('#coefficients .sheet').count(), shown.equations.length, 'coefficient sheets (one per equation)');
         const lines = await page.locator('#coefficients li.line:not(.head)').count();
-        assertEqual(lines, run.result.fit.equations.reduce((n, e) => n + e.coefficients.length, 0), 'coefficient lines');
-        await page.locator('#coefficients').getByText('Base level, before prices, land and trend').first().waitFor();
+        assertEqual(lines, shown.equations.reduce((n, e) => n + e.coefficients.length, 0), 'coefficient lines');
+        await page.locator('#coefficients').getByText(perHa ? 'Base level per hectare, before prices and trend' : 'Base level, before prices, land and trend').first().waitFor();
+        if (perHa) await page.locator('#coefficients h3').getByText('kg N per ha').first().waitFor();
         const coefText = await page.locator('#coefficients').innerText();
         for (const stock of ['(Intercept)', 't value', 'Std. error']) assert(!coefText.includes(stock), `the coefficients still say "${stock}"`);
         await page.getByRole('table', { name: 'Wrong-signed fitted quantities by item' }).waitFor();
