@@ -58,6 +58,12 @@ export const routes: Routes = [
         loadComponent: () => import('./data-desk/imports/imports-page').then((m) => m.ImportsPage),
       },
       {
+        path: 'contracts',
+        title: 'Delivery contracts',
+        canMatch: [roleGuard(ACCESS.contracts)],
+        loadComponent: () => import('./contracts/contracts-page').then((m) => m.ContractsPage),
+      },
+      {
         path: 'reference',
         title: 'Reference data',
         canMatch: [roleGuard(ACCESS.reference)],

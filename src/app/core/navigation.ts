@@ -32,6 +32,7 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { path: '/prices', label: 'Prices', icon: 'price_change', roles: ACCESS.prices, stage: 'records' },
   { path: '/farms', label: 'Farms', icon: 'agriculture', roles: ACCESS.farms, stage: 'records' },
   { path: '/imports', label: 'Imports', icon: 'upload_file', roles: ACCESS.imports, stage: 'records' },
+  { path: '/contracts', label: 'Contracts', icon: 'handshake', roles: ACCESS.contracts, stage: 'records' },
   { path: '/reference', label: 'Reference data', icon: 'dataset', roles: ACCESS.reference, stage: 'records' },
   { path: '/models', label: 'Models', icon: 'query_stats', roles: ACCESS.models, stage: 'model' },
   { path: '/outlook', label: 'Outlook', icon: 'insights', roles: ACCESS.outlook, stage: 'outlook' },

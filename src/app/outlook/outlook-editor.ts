@@ -16,6 +16,7 @@ import type { Item, Season } from '../../../shared/api-types';
 import { ACCESS } from '../core/access';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
+import { ContractedSection } from '../contracts/contracted-section';
 import { SeasonStatus } from '../core/season-status';
 import { SettingsStore } from '../core/settings-store';
 import { calendarWords, DEFAULT_SEASON_CALENDAR } from '../../../shared/season-calendar';
@@ -43,6 +44,7 @@ const ACTIVE = new Set(['queued', 'running']);
 @Component({
   selector: 'np-outlook-editor',
   imports: [
+    ContractedSection,
     FormsModule,
     RouterLink,
     MatAnchor,
@@ -81,6 +83,8 @@ export class OutlookEditor {
   // inputs
   /** Route parameter. */
   readonly id = input.required<string>();
+  /** Whoever reads full outlooks may evaluate the season's contracts (a computation, not a change). */
+  protected readonly canEvaluate = computed(() => this.#auth.hasRole(ACCESS.contracts));
 
   protected readonly draft = httpResource<OutlookDraft>(() => `/api/outlooks/${encodeURIComponent(this.id())}`);
   protected readonly projection = httpResource<ProjectionAnswer>(() => `/api/outlooks/${encodeURIComponent(this.id())}/projection`);
