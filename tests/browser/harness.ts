@@ -204,3 +204,19 @@ export async function ensureFittedRun(page: Page, options: { name: string; defin
     return 'run #' + run.body.id + ' did not finish in time';
   })()`)) as string;
 }
+
+/**
+ * Waits, as a signed-in staff member, until the demo co-op's background preparation (fit, outlook,
+ * budget; seed/prepare-demo.ts) is done, so a flow run on its own starts from the same state as
+ * after the demo flow. Answers what it saw.
+ */
+export async function waitForDemoPrepared(page: Page, timeoutMs = 300_000): Promise<string> {
+  const end = Date.now() + timeoutMs;
+  for (;;) {
+    const demo = (await page.evaluate(() => fetch('/api/summary').then((r) => r.json()))) as { demo: { status: string; stage: string; error: string | null } | null };
+    if (!demo.demo) return 'the demo is prepared';
+    if (demo.demo.status === 'failed') return `the demo preparation failed: ${demo.demo.error}`;
+    if (Date.now() > end) return `the demo is still being prepared (${demo.demo.stage})`;
+    await page.waitForTimeout(2000);
+  }
+}

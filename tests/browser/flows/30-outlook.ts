@@ -1,6 +1,6 @@
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
-import { assert, assertEqual, check, ensureFittedRun, mainNav, shot, shotPath, signIn, signOut } from '../harness.js';
+import { assert, assertEqual, check, ensureFittedRun, mainNav, shot, shotPath, signIn, signOut, waitForDemoPrepared } from '../harness.js';
 
 /** A fit and a projection take seconds on the demo co-op, longer while other work shares the two cores. */
 const JOB_TIMEOUT_MS = 180_000;
@@ -76,6 +76,10 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
 
   const plannerIn = await check('the planner signs in for the season outlook', () => signIn(page, base, 'planner@example.org'));
   if (!plannerIn) return;
+  await check('the demo co-op has been prepared (its 2026/27 outlook published)', async () => {
+    const outcome = await waitForDemoPrepared(page);
+    assertEqual(outcome, 'the demo is prepared', 'demo preparation');
+  });
   let runId = 0;
   const runReady = await check('a finished model run exists (fitted through the API if none has)', async () => {
     const outcome = await ensureRun(page);
