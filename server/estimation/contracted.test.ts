@@ -468,6 +468,21 @@ describe('the generalized Leontief model (general Newton solve)', () => {
   const spec = (q: Record<string, number>) => ({ farm: gl.farmEffects!.farms[2]!, fixed: { land: glLand[2]! }, contracted: q });
   const at = (q: Record<string, number>, p: Record<string, number> = {}) => evaluateContracted(gl, { farms: [spec(q)], prices: { ...prices, ...p }, draws: 0 }).farms[0]!;
 
+  it('the Newton solve written out for the draws agrees with the general one, draw by draw', () => {
+    const farms = [0, 1, 2].map((j) => ({ farm: gl.farmEffects!.farms[j]!, fixed: { land: glLand[j]! }, contracted: j === 1 ? { wheat: 6 * glLand[j]!, canola: 1.4 * glLand[j]! } : { wheat: 6.1 * glLand[j]! } }));
+    const fast = evaluateContracted(gl, { farms, prices, draws: 300, seed: 8 });
+    const slow = evaluateContracted(gl, { farms, prices, draws: 300, seed: 8, generalSolve: true });
+    fast.farms.forEach((f, j) => {
+      const g = slow.farms[j]!;
+      expect(f.failedDrawShare).toBe(g.failedDrawShare);
+      for (const [k, v] of Object.entries(f.outputs)) {
+        expect(rel(v.marginalCost!.mean, g.outputs[k]!.marginalCost!.mean)).toBeLessThan(1e-8);
+        expect(rel(v.marginalCost!.upper, g.outputs[k]!.marginalCost!.upper)).toBeLessThan(1e-8);
+      }
+      for (const [k, v] of Object.entries(f.inputs)) expect(rel(v.sd, g.inputs[k]!.sd)).toBeLessThan(1e-8);
+    });
+  });
+
   it("round trip, Shephard's lemma and marginal cost by finite differences", () => {
     const q = { wheat: 6.2 * glLand[2]!, canola: 1.5 * glLand[2]! };
     const base = at(q);

@@ -34,6 +34,7 @@ import { NO_STRETCH, WelchTable, type Stretch } from './forecast.js';
 import { drawSharedParts, type SharedDraws } from './forecast-draws.js';
 import { formOf } from './forms.js';
 import { netputsFromDecomposition } from './model.js';
+import { glIndex } from './gl.js';
 import { nqIndex } from './nq.js';
 import type { ForecastModel } from './panel.js';
 import { PROJECTION_CAUTION } from './projection.js';
@@ -295,7 +296,13 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     if (shared) {
       const shift = new Float64Array(n);
       const eta = new Float64Array(n);
-      const fast = layout.form === 'normalized-quadratic' && !isCommitted[n - 1] && !options.generalSolve ? nqDrawSolver(layout, f, pStar) : null;
+      const fast = options.generalSolve
+        ? null
+        : layout.form === 'normalized-quadratic'
+          ? isCommitted[n - 1]
+            ? null
+            : nqDrawSolver(layout, f, pStar)
+          : glDrawSolver(layout, f, pStar);
       const pr = new Float64Array(n);
       const yr = new Float64Array(n);
       for (let s = 0; s < S; s++) {
@@ -585,6 +592,138 @@ function nqDrawSolver(layout: ForecastModel['fit']['layout'], f: FarmSetup, poin
     }
     yr[nn] = theta[o + ix.a0]! - 0.5 * quad + zp[nn]! + shift[nn]!;
     return below ? 'below-zero' : 'ok';
+  };
+}
+
+/**
+ * For the generalized Leontief: Newton's method on the committed prices as in solveCommitted
+ * (contracted-core.ts: the same safeguards, tolerance and verdicts), with the netputs
+ *   y_i = b_ii + Σ_{j≠i} b_ij √(p_j/p_i) + Σ_k c_ik z_k + ½ Σ_kl g_ikl z_k z_l + shift_i
+ * and their price Hessian written out, so that a draw allocates nothing.
+ */
+function glDrawSolver(layout: ForecastModel['fit']['layout'], f: FarmSetup, pointPrices: number[]) {
+  const n = layout.items.length;
+  const m = layout.factors.length;
+  const q = layout.quadraticFactors;
+  const ix = glIndex(n, m, q);
+  const C = f.committed;
+  const mc = C.length;
+  const bIdx = Array.from({ length: n }, (_, i) => Int32Array.from({ length: n }, (_, j) => ix.b(i, j)));
+  const z = f.z;
+  const zp = new Float64Array(n);
+  const sp = new Float64Array(n);
+  const p = new Float64Array(n);
+  const y = new Float64Array(n);
+  const r = new Float64Array(mc);
+  const A = new Float64Array(mc * mc);
+  const d = new Float64Array(mc);
+  const pc = new Float64Array(mc);
+  const scale = new Float64Array(mc);
+  const start = C.map((c) => pointPrices[c]!);
+  const netputs = (theta: Float64Array, o: number, shift: Float64Array): void => {
+    for (let j = 0; j < n; j++) sp[j] = Math.sqrt(p[j]!);
+    for (let i = 0; i < n; i++) {
+      const row = bIdx[i]!;
+      let v = theta[o + row[i]!]! + zp[i]! + shift[i]!;
+      for (let j = 0; j < n; j++) if (j !== i) v += (theta[o + row[j]!]! * sp[j]!) / sp[i]!;
+      y[i] = v;
+    }
+  };
+  const residualNorm = (): number => {
+    let worst = 0;
+    for (let a = 0; a < mc; a++) {
+      r[a] = f.target[a]! - y[C[a]!]!;
+      worst = Math.max(worst, Math.abs(r[a]!) / scale[a]!);
+    }
+    return worst;
+  };
+  return (theta: Float64Array, o: number, shift: Float64Array, pr: Float64Array, yr: Float64Array): DrawStatus => {
+    for (let i = 0; i < n; i++) {
+      let v = 0;
+      for (let kk = 0; kk < m; kk++) v += theta[o + ix.c(i, kk)]! * z[kk]!;
+      for (let kk = 0; kk < q; kk++) for (let l = 0; l < q; l++) v += 0.5 * theta[o + ix.g(i, kk, l)]! * z[kk]! * z[l]!;
+      zp[i] = v;
+    }
+    for (let j = 0; j < n; j++) p[j] = f.prices[j]!;
+    for (let a = 0; a < mc; a++) p[C[a]!] = start[a]!;
+    netputs(theta, o, shift);
+    for (let a = 0; a < mc; a++) scale[a] = Math.max(Math.abs(f.target[a]!), Math.abs(y[C[a]!]!), 1e-300);
+    let rn = residualNorm();
+    let settled = false;
+    for (let it = 0; it < 200; it++) {
+      if (rn <= 1e-11) {
+        settled = true;
+        break;
+      }
+      // H_cc (scaled by p_c on both sides) and its Cholesky factor
+      for (let a = 0; a < mc; a++) {
+        const i = C[a]!;
+        for (let b = 0; b < mc; b++) {
+          const j = C[b]!;
+          let h: number;
+          if (i === j) {
+            h = 0;
+            for (let l = 0; l < n; l++) if (l !== i) h -= 0.5 * theta[o + bIdx[i]![l]!]! * sp[l]! * Math.pow(p[i]!, -1.5);
+          } else h = (0.5 * theta[o + bIdx[i]![j]!]!) / (sp[i]! * sp[j]!);
+          A[a * mc + b] = h * p[i]! * p[j]!;
+        }
+      }
+      let maxDiag = 0;
+      for (let a = 0; a < mc; a++) maxDiag = Math.max(maxDiag, Math.abs(A[a * mc + a]!));
+      if (!(maxDiag > 0)) return 'failed';
+      for (let a = 0; a < mc; a++)
+        for (let b = 0; b <= a; b++) {
+          let v = A[a * mc + b]!;
+          for (let l = 0; l < b; l++) v -= A[a * mc + l]! * A[b * mc + l]!;
+          if (a === b) {
+            if (!(v > 1e-10 * maxDiag)) return 'failed';
+            A[a * mc + a] = Math.sqrt(v);
+          } else A[a * mc + b] = v / A[b * mc + b]!;
+        }
+      for (let a = 0; a < mc; a++) {
+        let v = r[a]! * p[C[a]!]!;
+        for (let l = 0; l < a; l++) v -= A[a * mc + l]! * d[l]!;
+        d[a] = v / A[a * mc + a]!;
+      }
+      for (let a = mc - 1; a >= 0; a--) {
+        let v = d[a]!;
+        for (let l = a + 1; l < mc; l++) v -= A[l * mc + a]! * d[l]!;
+        d[a] = v / A[a * mc + a]!;
+      }
+      for (let a = 0; a < mc; a++) {
+        d[a] = d[a]! * p[C[a]!]!;
+        pc[a] = p[C[a]!]!;
+      }
+      let t = 1;
+      for (let a = 0; a < mc; a++) if (pc[a]! + t * d[a]! < 0.2 * pc[a]!) t = (-0.8 * pc[a]!) / d[a]!;
+      let accepted = false;
+      for (let half = 0; half < 40; half++) {
+        for (let a = 0; a < mc; a++) p[C[a]!] = pc[a]! + t * d[a]!;
+        netputs(theta, o, shift);
+        const next = residualNorm();
+        if (Number.isFinite(next) && next < rn) {
+          rn = next;
+          accepted = true;
+          break;
+        }
+        t /= 2;
+      }
+      if (!accepted) {
+        for (let a = 0; a < mc; a++) p[C[a]!] = pc[a]!;
+        break;
+      }
+      for (let a = 0; a < mc; a++) if (p[C[a]!]! < 1e-9 * start[a]!) return 'lost-below-zero';
+      for (let a = 0; a < mc; a++) if (p[C[a]!]! > 1e9 * start[a]!) return 'lost-beyond';
+    }
+    if (!settled) {
+      for (let a = 0; a < mc; a++) if (p[C[a]!]! < 1e-4 * start[a]!) return 'lost-below-zero';
+      for (let a = 0; a < mc; a++) if (p[C[a]!]! > 1e4 * start[a]!) return 'lost-beyond';
+      return 'failed';
+    }
+    netputs(theta, o, shift);
+    pr.set(p);
+    yr.set(y);
+    return 'ok';
   };
 }
 

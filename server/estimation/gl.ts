@@ -10,7 +10,7 @@ import { zeros, type Mat } from './linalg.js';
 import { column, type CurvatureBlock, type ModelData, type ModelLayout, type NetputDecomposition, type ProfitForm } from './model.js';
 import type { SurEquationInput } from './sur.js';
 
-interface GlIndex {
+export interface GlIndex {
   n: number;
   m: number;
   q: number;
@@ -25,7 +25,7 @@ const tri = (i: number, j: number, size: number): number => {
   return r * size - (r * (r - 1)) / 2 + (c - r);
 };
 
-function glIndex(n: number, m: number, q: number): GlIndex {
+export function glIndex(n: number, m: number, q: number): GlIndex {
   const nb = (n * (n + 1)) / 2;
   const ng = (q * (q + 1)) / 2;
   const cStart = nb;
