@@ -469,7 +469,7 @@ describe('the generalized Leontief model (general Newton solve)', () => {
   const at = (q: Record<string, number>, p: Record<string, number> = {}) => evaluateContracted(gl, { farms: [spec(q)], prices: { ...prices, ...p }, draws: 0 }).farms[0]!;
 
   it('the Newton solve written out for the draws agrees with the general one, draw by draw', () => {
-    const farms = [0, 1, 2].map((j) => ({ farm: gl.farmEffects!.farms[j]!, fixed: { land: glLand[j]! }, contracted: j === 1 ? { wheat: 6 * glLand[j]!, canola: 1.4 * glLand[j]! } : { wheat: 6.1 * glLand[j]! } }));
+    const farms = [0, 1, 2].map((j) => ({ farm: gl.farmEffects!.farms[j]!, fixed: { land: glLand[j]! }, contracted: (j === 1 ? { wheat: 6 * glLand[j]!, canola: 1.4 * glLand[j]! } : { wheat: 6.1 * glLand[j]! }) as Record<string, number> }));
     const fast = evaluateContracted(gl, { farms, prices, draws: 300, seed: 8 });
     const slow = evaluateContracted(gl, { farms, prices, draws: 300, seed: 8, generalSolve: true });
     fast.farms.forEach((f, j) => {
