@@ -128,6 +128,8 @@ export interface BookingOffer {
   farm: { id: number; name: string; landHa: number };
   products: BookingProduct[];
   deliveryMonths: string[];
+  /** The delivery month of the budget's booking plan: the form's first choice. */
+  planDeliveryMonth: string;
   /** The farm's projected need (published outlook, base scenario), or null when there is none. */
   need: { nutrients: NutrientAmounts; source: string } | null;
   /** Suggested tonnes per product covering the need (least-cost mix of the booking prices), or empty. */

@@ -257,6 +257,7 @@ export async function memberOffer(d: BookingDeps, farmId: number | null): Promis
     farm: { id: farm.id, name: farm.name, landHa: farm.landHa },
     products: facts.products,
     deliveryMonths: deliveryMonthsOf(facts.plan, today),
+    planDeliveryMonth: facts.plan.deliveryMonth,
     need: need && needs ? { nutrients: need, source: needs.source } : null,
     suggestion,
     cautions: [...BOOKING_CAUTIONS],

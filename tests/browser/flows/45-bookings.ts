@@ -53,6 +53,7 @@ export default async function bookings({ base, page }: Harness): Promise<void> {
       await shot(page, 'bookings-member-review-390');
       await page.getByRole('button', { name: 'Confirm booking' }).click();
       await page.getByText('Booked, not paid yet').waitFor();
+      await page.getByText('Delivery in March 2027.').waitFor();
       const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
       assert(overflow <= 1, `the page is ${overflow}px wider than the phone`);
     });
@@ -75,10 +76,12 @@ export default async function bookings({ base, page }: Harness): Promise<void> {
   await signIn(page, base, 'treasurer@example.org');
   await check('the treasurer sees the booking and the prepayment against the budget', async () => {
     await page.goto(`${base}/budget/bookings`);
-    await page.getByText(/1 bookings from 1 of \d+ farms: 5 t of product/).waitFor();
+    await page.getByText(/1 booking from 1 of \d+ farms: 5 t of product/).waitFor();
     await page.getByText(/prepaid EUR 2,778\.74, outstanding EUR 0\.00/).waitFor();
     await shot(page, 'bookings-treasurer-1280');
     await page.setViewportSize({ width: 390, height: 844 });
+    await page.reload();
+    await page.getByText(/prepaid EUR 2,778\.74, outstanding EUR 0\.00/).waitFor();
     await shot(page, 'bookings-treasurer-390');
     await page.setViewportSize({ width: 1280, height: 860 });
   });

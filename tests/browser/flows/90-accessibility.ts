@@ -84,11 +84,11 @@ export default async function accessibility({ base, page }: Harness): Promise<vo
   }
   if (await check('the treasurer signs in for the accessibility walk', () => signIn(page, base, 'treasurer@example.org'))) {
     const budgetId = await firstId(page, '/api/budgets', (rows) => rows[0]?.id);
-    await walk(page, base, 'treasurer', ['/', '/budget', budgetId ? `/budget/${budgetId}` : null, '/budget/products']);
+    await walk(page, base, 'treasurer', ['/', '/budget', budgetId ? `/budget/${budgetId}` : null, '/budget/products', '/budget/bookings']);
     await check('the treasurer signs out', () => signOut(page));
   }
   if (await check('the member signs in for the accessibility walk', () => signIn(page, base, 'member@example.org'))) {
-    await walk(page, base, 'member', ['/', '/my-farm/outlook', '/account']);
+    await walk(page, base, 'member', ['/', '/my-farm/outlook', '/my-farm/bookings', '/account']);
     await check('the member signs out', () => signOut(page));
   }
   if (await check('the admin signs in for the accessibility walk', () => signIn(page, base, 'admin@example.org'))) {

@@ -84,7 +84,8 @@ export class BookingPage {
       if (q.contains(String(p.productId))) q.controls[String(p.productId)]!.setValue(value, { emitEvent: false });
       else q.addControl(String(p.productId), new FormControl<number | null>(value), { emitEvent: false });
     }
-    this.form.controls.deliveryMonth.setValue(b?.deliveryMonth ?? o.deliveryMonths.find((m) => m >= (o.deliveryMonths[0] ?? '')) ?? '', { emitEvent: false });
+    const first = o.deliveryMonths.includes(o.planDeliveryMonth) ? o.planDeliveryMonth : (o.deliveryMonths[0] ?? '');
+    this.form.controls.deliveryMonth.setValue(b?.deliveryMonth ?? first, { emitEvent: false });
     this.#values.set(this.form.getRawValue());
   }
 
