@@ -238,6 +238,26 @@ describe('lost webhooks, failures and the deadline', () => {
     await round('2099-01-31');
     expect((await member.post(`/api/bookings/${id}/cancel`)).status).toBe(200);
   });
+
+  it('events out of order: an expiry delivered before the payment, then the payment, end paid; the expiry again changes nothing', async () => {
+    const offer = (await member.get('/api/bookings/offer')).body;
+    if (offer.booking) expect((await member.post(`/api/bookings/${offer.booking.id}/cancel`)).status).toBe(200);
+    const b = (await member.post('/api/bookings').send({ lines: [{ productId: mop, tonnes: 1 }], deliveryMonth: '2027-03' })).body;
+    const start = (await member.post(`/api/bookings/${b.id}/checkout`)).body;
+    const sessionId = new URL(start.url).pathname.split('/').pop()!;
+    const session = t.payments.session(sessionId)!;
+    const send = (e: { body: string; signature: string }) => supertest(t.app).post('/api/payments/webhook').set('content-type', 'application/json').set('stripe-signature', e.signature).send(e.body);
+    const expired = t.payments.signedEvent('checkout.session.expired', { ...session, status: 'expired' });
+    const completed = t.payments.signedEvent('checkout.session.completed', { ...session, status: 'complete', payment_status: 'paid', payment_intent: 'pi_fake_out_of_order' });
+    expect((await send(expired)).body.outcome).toBe('failed');
+    expect((await send(completed)).body.outcome).toBe('paid');
+    expect((await send(expired)).body).toEqual({ duplicate: true, outcome: 'failed' });
+    const [p] = await t.database.db.select().from(bookingPayments).where(eq(bookingPayments.id, start.paymentId));
+    expect(p!.state).toBe('paid');
+    expect((await member.get('/api/bookings/offer')).body.booking.status).toBe('prepaid');
+    // The fake never took this money (the events were made by hand): cancel without a refund call.
+    await t.database.db.update(bookings).set({ status: 'cancelled' }).where(eq(bookings.id, b.id));
+  });
 });
 
 describe('safety', () => {
