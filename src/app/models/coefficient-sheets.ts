@@ -51,7 +51,7 @@ const VERDICT_WORDS: Record<CoefficientLine['verdict'], string> = {
         <ul class="lines" role="list">
           <li class="line head" aria-hidden="true">
             <span>What it measures</span>
-            <span class="num">Value</span>
+            <span class="num">Value ({{ eq.role === 'output' ? '+ more supplied' : '+ more used' }})</span>
             <span class="num">95 % range</span>
             <span class="bar-head">against zero</span>
           </li>
