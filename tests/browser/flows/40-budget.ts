@@ -83,6 +83,37 @@ async function comparisonRow(page: Page, group: RegExp, label: string): Promise<
   return (await row.locator('td').allInnerTexts()).map((t) => t.trim());
 }
 
+/** Drafts, projects and publishes an outlook for the season after the newest run's data, through the API as the signed-in planner. */
+async function publishOutlook(page: Page): Promise<string> {
+  return (await page.evaluate(`(async () => {
+    const token = decodeURIComponent((document.cookie.split('; ').find((c) => c.startsWith('XSRF-TOKEN=')) || '').split('=')[1] || '');
+    const send = async (method, url, body) => {
+      const r = await fetch(url, { method, headers: { 'X-XSRF-TOKEN': token, 'Content-Type': 'application/json' }, body: JSON.stringify(body || {}) });
+      return { status: r.status, body: await r.json().catch(() => null) };
+    };
+    const models = await (await fetch('/api/models')).json();
+    const run = models.flatMap((m) => m.runs).filter((r) => r.status === 'succeeded').sort((a, b) => b.id - a.id)[0];
+    if (!run) return 'no finished run';
+    const seasons = await (await fetch('/api/seasons')).json().catch(() => []);
+    const next = Array.isArray(seasons) && seasons.length ? Math.max(...seasons.map((x) => Number(x.startYear))) + 1 : 2027;
+    const label = next + '/' + String((next + 1) % 100).padStart(2, '0');
+    const draft = await send('POST', '/api/outlooks', { season: label, modelRunId: run.id });
+    if (draft.status !== 201) return 'POST /api/outlooks answered ' + draft.status + ' ' + JSON.stringify(draft.body);
+    await send('PATCH', '/api/outlooks/' + draft.body.id, { draws: 300 });
+    const job = await send('POST', '/api/outlooks/' + draft.body.id + '/projection');
+    if (job.status !== 202) return 'projection answered ' + job.status;
+    const deadline = Date.now() + 240000;
+    for (;;) {
+      const p = await (await fetch('/api/outlooks/' + draft.body.id + '/projection')).json();
+      if (p.status === 'succeeded') break;
+      if (p.status === 'failed' || Date.now() > deadline) return 'projection ' + p.status;
+      await new Promise((r) => setTimeout(r, 500));
+    }
+    const pub = await send('POST', '/api/outlooks/' + draft.body.id + '/publish', { notifyMembers: false });
+    return pub.status === 201 ? 'published ' + label : 'publish answered ' + pub.status + ' ' + JSON.stringify(pub.body);
+  })()`)) as string;
+}
+
 /** Issue 7: a treasurer builds a fertiliser budget from the outlook (or a model run), tries N +20 %, switches units and exports. */
 export default async function budget({ base, page }: Harness): Promise<void> {
   const currency = 'EUR';
@@ -94,7 +125,13 @@ export default async function budget({ base, page }: Harness): Promise<void> {
     const outcome = await ensureFittedRun(page, { name: 'Fertiliser budget model', definition: DEFINITION, timeoutMs: RUN_TIMEOUT_MS });
     assert(/had finished|fitted/.test(outcome), outcome);
   });
-  const versions = (await page.evaluate(() => fetch('/api/outlooks/versions').then((r) => r.json()))) as { id: number; title: string }[];
+  let versions = (await page.evaluate(() => fetch('/api/outlooks/versions').then((r) => r.json()))) as { id: number; title: string }[];
+  if (!versions.length && runReady)
+    await check('a published outlook exists (the planner publishes one through the API if none is), so the budget starts from its scenarios', async () => {
+      const outcome = await publishOutlook(page);
+      assert(/^published/.test(outcome), outcome);
+      versions = (await page.evaluate(() => fetch('/api/outlooks/versions').then((r) => r.json()))) as { id: number; title: string }[];
+    });
   await check('the planner signs out', () => signOut(page));
   if (!runReady) return;
 
@@ -155,6 +192,18 @@ export default async function budget({ base, page }: Harness): Promise<void> {
     });
     await page.getByRole('heading', { name: 'Booking and cash' }).evaluate((el) => el.scrollIntoView({ block: 'start' }));
     await shot(page, 'treasurer-budget-new-1280');
+    await page.getByRole('heading', { name: 'Product plan' }).evaluate((el) => el.scrollIntoView({ block: 'start' }));
+    await shot(page, 'treasurer-budget-plan-1280');
+    await check('at phone width the new budget shows its source, its plan and its booking', async () => {
+      await page.setViewportSize({ width: 390, height: 844 });
+      await page.getByRole('heading', { name: 'Nutrient demand and where it comes from' }).first().evaluate((el) => el.scrollIntoView({ block: 'start' }));
+      await shot(page, 'treasurer-budget-source-390');
+      await page.getByRole('heading', { name: 'Product plan' }).evaluate((el) => el.scrollIntoView({ block: 'start' }));
+      await shot(page, 'treasurer-budget-plan-390');
+      await page.getByRole('heading', { name: 'Booking and cash' }).evaluate((el) => el.scrollIntoView({ block: 'start' }));
+      await shot(page, 'treasurer-budget-booking-390');
+      await page.setViewportSize({ width: 1280, height: 860 });
+    });
 
     await check('the treasurer saves the budget and lands on its own page', async () => {
       const saved = nextResult(page, (u, r) => u.pathname === '/api/budgets' && r.request().method() === 'POST');
@@ -325,5 +374,26 @@ export default async function budget({ base, page }: Harness): Promise<void> {
       });
       await check('the member signs out', () => signOut(page));
     }
+  }
+
+  // --- admin: the season calendar the budget books by ---------------------------------------------------
+  const adminIn = await check('the admin signs in', () => signIn(page, base, 'admin@example.org'));
+  if (adminIn) {
+    await check('the settings page shows the season calendar and reads it for a season, at 1280 and 390 px', async () => {
+      await page.goto(`${base}/admin/settings`);
+      const calendar = page.getByRole('group', { name: 'Season calendar' });
+      await calendar.waitFor();
+      const example = (await calendar.locator('.calendar-example').innerText()).trim();
+      assert(/^Season (\d{4})\/\d{2}: inputs bought Aug (\d{4}) – Mar \d{4}, crop delivered Jul \d{4} – Sep \d{4}\.$/.test(example), `calendar line: ${example}`);
+      const [, season, from] = /^Season (\d{4})\/\d{2}: inputs bought Aug (\d{4})/.exec(example)!;
+      assertEqual(Number(from), Number(season) - 1, 'the default calendar buys the inputs in the year before the season starts');
+      await calendar.evaluate((el) => el.scrollIntoView({ block: 'start' }));
+      await shot(page, 'admin-settings-calendar-1280');
+      await page.setViewportSize({ width: 390, height: 844 });
+      await calendar.evaluate((el) => el.scrollIntoView({ block: 'start' }));
+      await shot(page, 'admin-settings-calendar-390');
+      await page.setViewportSize({ width: 1280, height: 860 });
+    });
+    await check('the admin signs out', () => signOut(page));
   }
 }
