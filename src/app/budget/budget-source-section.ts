@@ -8,6 +8,7 @@ import { MatRadioButton, MatRadioGroup } from '@angular/material/radio';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { DemandSummary } from './demand-summary';
 import { BudgetEditorStore } from './budget-editor-store';
+import { NUTRIENT_LABEL } from './budget-types';
 
 /** Where the nutrient demand comes from: an outlook scenario, a model run or typed amounts, with the outlook's pricing options. Reads and acts through the page's BudgetEditorStore. */
 @Component({
@@ -35,4 +36,9 @@ export class BudgetSourceSection {
   protected readonly sourceKind = this.#store.sourceKind;
   protected readonly stale = this.#store.stale;
   protected readonly versionOptions = this.#store.versionOptions;
+  protected readonly nutrientLabel = NUTRIENT_LABEL;
+  /** A price per kg (or lb) of nutrient, to the cent. */
+  protected formatPerMass(v: number): string {
+    return v.toFixed(2);
+  }
 }

@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef } from 'ag-grid-community';
 import type { UnitSystem } from '../../../shared/units';
-import { gridTheme } from '../shared/grid';
+import { FIT_FIGURES, gridTheme, WRAPPED_HEADINGS } from '../shared/grid';
 import { formatLot, formatMass, formatMoney, formatPrice, formatTonnes } from './budget-format';
 import { NUTRIENT_LABEL, NUTRIENTS, type MixLine, type ScenarioResult } from './budget-types';
 import { unitLabels } from './budget-units';
@@ -19,6 +19,7 @@ import { unitLabels } from './budget-units';
       [rowData]="scenario().mix.lines"
       [columnDefs]="columns()"
       [defaultColDef]="defaultColDef"
+      [autoSizeStrategy]="fitFigures"
       domLayout="autoHeight"
       [overlayNoRowsTemplate]="'Nothing to buy: the nutrient demand is zero.'"
     />
@@ -63,7 +64,8 @@ export class ProductPlan {
   protected readonly label = NUTRIENT_LABEL;
   protected readonly mass = formatMass;
   protected readonly labels = computed(() => unitLabels(this.system(), this.currency()));
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
+  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true, ...WRAPPED_HEADINGS };
+  protected readonly fitFigures = FIT_FIGURES;
   protected readonly tonnes = formatTonnes;
   protected readonly total = computed(() => ({ tonnes: this.scenario().mix.lines.reduce((a, l) => a + l.tonnes, 0) }));
 

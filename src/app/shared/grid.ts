@@ -15,6 +15,8 @@ import {
   iconOverrides,
   provideGlobalGridOptions,
   themeQuartz,
+  type ColDef,
+  type SizeColumnsToContentStrategy,
 } from 'ag-grid-community';
 import { COLOUR, FONT, RADIUS, SPACE, TYPE } from '../../../shared/design-tokens';
 
@@ -221,6 +223,14 @@ export const GRID_WORDS: Record<string, string> = {
   ariaSearch: 'Search',
   ariaSearchFilterValues: 'Search the values',
 };
+
+/**
+ * For a grid with many number columns and headings longer than its figures (a product plan): the
+ * columns are sized to their figures and the headings wrap over two lines above them, so the whole
+ * table fits the page's width with no figure cut. Pass both to the grid.
+ */
+export const FIT_FIGURES: SizeColumnsToContentStrategy = { type: 'fitCellContents', skipHeader: true, scaleUpToFitGridWidth: true, continuous: true };
+export const WRAPPED_HEADINGS: ColDef = { wrapHeaderText: true, autoHeaderHeight: true };
 
 provideGlobalGridOptions({
   theme: gridTheme,
