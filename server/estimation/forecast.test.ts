@@ -42,9 +42,10 @@ describe('projectForecast', () => {
   const prices = { wheat: 260, canola: 500, nitrogen: 1250, diesel: 1.2, other: 100 };
   const proj = projectForecast(model, { farms, prices, draws: 2000, seed: 3 });
 
-  it('gives 0 ≤ lower ≤ point ≤ upper for every farm, item and the co-op', () => {
+  it('gives 0 ≤ lower ≤ point ≤ upper for every farm, item and the co-op, and finite summaries', () => {
     for (const f of proj.farms)
       for (const q of Object.values(f.quantities)) {
+        for (const v of Object.values(q)) expect(Number.isFinite(v)).toBe(true);
         expect(q.lower).toBeGreaterThanOrEqual(0);
         expect(q.lower).toBeLessThanOrEqual(q.point);
         expect(q.point).toBeLessThanOrEqual(q.upper);
