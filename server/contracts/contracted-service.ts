@@ -237,8 +237,8 @@ export async function latestViewForSeason(db: Db, seasonId: number): Promise<Con
 const NUTRIENT_CATEGORY = 'fertiliser';
 
 /** A member's contracts and their farm's figures (held to the member's own farm in the repository query). */
-export async function myContracts(db: Db, reader: Reader): Promise<MyContracts> {
-  const rows = await listContracts(db, {}, reader);
+export async function myContracts(db: Db, reader: Reader, seasonLabel?: string): Promise<MyContracts> {
+  const rows = (await listContracts(db, {}, reader)).filter((r) => seasonLabel === undefined || r.season === seasonLabel);
   const [farm] = reader.farmId ? await db.select({ name: farms.name, code: farms.code }).from(farms).where(eq(farms.id, reader.farmId)) : [];
   const figures: MyContracts['figures'] = {};
   const nutrients: MyContracts['nutrients'] = [];

@@ -7,6 +7,7 @@ import { dayText, priceText, quantityText } from '../../shared/number-format.js'
 import { bandCoverWords, SCENARIO_WORDS } from '../../shared/band-words.js';
 import type { FarmOutlook, ItemProjection, OutlookSnapshot } from '../../shared/outlook-types.js';
 import { MAIL_STYLE } from './mail-style.js';
+import type { MailPart } from './contract-mail.js';
 
 export interface OutlookMailQuantity {
   name: string;
@@ -38,6 +39,8 @@ export interface OutlookMailInput {
   /** What the likely range covers, in words (shared/band-words.ts). */
   bandWords: string;
   commentary: string;
+  /** The member's delivery contracts with their estimated marginal cost (server/mail/contract-mail.ts), when they have any. */
+  contracts?: MailPart | null;
   cautions: string[];
   portalUrl: string;
   unsubscribeUrl: string;
@@ -100,6 +103,7 @@ export function outlookMail(m: OutlookMailInput): { to: string; subject: string;
       ? `Your farm, ${m.farm.name} (${m.farm.code}, ${m.farm.fixed}), at the expected prices:\n${quantityLines(m.farm.items).join('\n')}`
       : 'No farm is linked to your account, so this message shows the co-op totals only.',
     m.bandWords,
+    m.contracts?.text ?? null,
     `The co-op in total:\n${quantityLines(m.coop).join('\n')}${deliveries ? `\n${deliveries}` : ''}`,
     `Expected prices:\n${priceLines.join('\n')}\n${m.scenarioRule}`,
     m.commentary.trim() ? `From the planner:\n${m.commentary.trim()}` : null,
@@ -121,6 +125,7 @@ ${
     : p('No farm is linked to your account, so this message shows the co-op totals only.')
 }
 <p style="${MAIL_STYLE.small}">${escapeHtml(m.bandWords)}</p>
+${m.contracts?.html ?? ''}
 <h2 style="${MAIL_STYLE.h2}">The co-op in total</h2>
 ${quantityTable(m.coop)}
 ${deliveries ? p(deliveries) : ''}
@@ -155,7 +160,13 @@ function fixedText(f: FarmOutlook): string {
 }
 
 /** The e-mail of one member from a published version (its frozen snapshot and the member's farm part). */
-export function outlookMailOf(s: OutlookSnapshot, farm: FarmOutlook | null, to: { email: string; name: string }, links: { portalUrl: string; unsubscribeUrl: string }) {
+export function outlookMailOf(
+  s: OutlookSnapshot,
+  farm: FarmOutlook | null,
+  to: { email: string; name: string },
+  links: { portalUrl: string; unsubscribeUrl: string },
+  contracts: MailPart | null = null,
+) {
   const d = s.projection.coop.deliveries?.scenarios.base;
   const cap = s.projection.coop.capacity?.scenarios.base;
   return outlookMail({
@@ -176,5 +187,6 @@ export function outlookMailOf(s: OutlookSnapshot, farm: FarmOutlook | null, to: 
     cautions: s.cautions,
     portalUrl: links.portalUrl,
     unsubscribeUrl: links.unsubscribeUrl,
+    contracts,
   });
 }

@@ -1,4 +1,6 @@
 import { and, asc, desc, eq, getTableColumns, sql } from 'drizzle-orm';
+import { myContracts } from '../contracts/contracted-service.js';
+import { contractMailPart, type MailPart } from '../mail/contract-mail.js';
 import { skillOfRun } from './run-choice.js';
 import type { Config } from '../config.js';
 import type { Db } from '../db/client.js';
@@ -349,11 +351,17 @@ async function queueOutlookMails(tx: Db, config: Pick<Config, 'publicUrl' | 'mai
     .orderBy(asc(users.id));
   const secret = await unsubscribeSecret(tx);
   const byFarm = new Map(farmParts.map((f) => [f.farmId, f]));
+  // Each member's delivery contracts of the season, with their farm's figures (issue 19).
+  const contractParts = new Map<number, MailPart | null>();
+  for (const farmId of new Set(members.map((m) => m.farmId).filter((f): f is number => f !== null))) {
+    const mine = await myContracts(tx, { role: 'member', farmId }, s.season.label);
+    contractParts.set(farmId, contractMailPart(mine));
+  }
   const mails: NewOutboxMail[] = members.map((m) => {
     const key = `outlook.v${versionId}.u${m.id}`;
     const unsubscribeUrl = `${config.publicUrl}/api/unsubscribe/${signUnsubscribe(secret, m.id)}`;
     const farm = m.farmId !== null ? (byFarm.get(m.farmId) ?? null) : null;
-    const content = outlookMailOf(s, farm, { email: m.email, name: m.name }, { portalUrl: `${config.publicUrl}${PORTAL_PATH}`, unsubscribeUrl });
+    const content = outlookMailOf(s, farm, { email: m.email, name: m.name }, { portalUrl: `${config.publicUrl}${PORTAL_PATH}`, unsubscribeUrl }, m.farmId !== null ? (contractParts.get(m.farmId) ?? null) : null);
     const skipReason = m.optOut ? 'The member has opted out of outlook e-mails' : !m.passwordHash ? 'The member has not accepted the invitation yet' : undefined;
     return {
       idempotencyKey: key,

@@ -11,7 +11,7 @@ import type { ContractedState, MyContracts } from '../../shared/contracted-view.
 import type { ContractRow } from '../../shared/contract-schemas.js';
 import { runContractedTask } from '../../server/outlook/contracted-task.js';
 import { gatherProjectionInputs } from '../../server/outlook/projection-service.js';
-import { outlooks } from '../../server/db/schema/index.js';
+import { mailOutbox, outlooks } from '../../server/db/schema/index.js';
 import { eq } from 'drizzle-orm';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
 
@@ -127,6 +127,21 @@ describe('the contracted view of an outlook', () => {
     expect(mine.nutrients[0]!.items.map((i) => i.item)).toEqual(['nitrogen', 'phosphate', 'potash']);
     expect(mine.caution).toContain('not financial advice');
     expect((await member.get(`/api/contracts/outlooks/${outlookId}/evaluation`)).status).toBe(403);
+
+    // The outlook e-mail carries the same sentences, with the caution.
+    const pub = await planner.post(`/api/outlooks/${outlookId}/publish`).send({ notifyMembers: true, acceptWeakSkill: true });
+    expect(pub.status, JSON.stringify(pub.body)).toBe(201);
+    const mails = await t.database.db.select().from(mailOutbox).where(eq(mailOutbox.toAddress, 'member@example.org'));
+    const text = mails[mails.length - 1]!.textBody;
+    const mc = fig.marginalCost!;
+    const whole = (v: number) => Math.round(v).toLocaleString('en-GB');
+    expect(text).toContain(
+      `Your contract ${wheat.reference}: ${wheat.quantity.toLocaleString('en-GB')} t of wheat at ${wheat.price} EUR/t; estimated marginal cost at that tonnage ${whole(mc.point)} EUR/t (likely range ${whole(mc.p5)} to ${whole(mc.p95)} EUR/t).`,
+    );
+    const nKg = mine.nutrients[0]!.items[0]!.band.point;
+    expect(text).toContain(`For this contracted output in 2026/27 your farm needs about ${nKg >= 1000 ? `${(nKg / 1000).toLocaleString('en-GB', { maximumFractionDigits: nKg >= 100_000 ? 0 : 1 })} t N` : ''}`);
+    expect(text).toContain('not financial advice');
+    expect(mails[mails.length - 1]!.htmlBody).toContain('Your delivery contracts');
 
     const edit = await planner.put(`/api/contracts/${wheat.id}`).send({ ...wheat, quantity: wheat.quantity + 10, version: wheat.version });
     expect(edit.status).toBe(200);
