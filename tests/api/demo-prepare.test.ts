@@ -63,5 +63,26 @@ describe('the demo co-op arrives alive (issue 16)', () => {
     const drafted = (await planner.get('/api/summary')).body.nextSteps as { kind: string; text: string }[];
     expect(drafted.map((s) => s.kind)).toEqual(['records-missing', 'records-missing', 'model-stale', 'outlook-unpublished']);
     expect(drafted[3]!.text).toBe('The 2027/28 outlook is drafted but not published: members cannot read it yet.');
-  }, 300_000);
+
+    // Published: the treasurer is told the new outlook has no budget; the planner's step is gone.
+    const draftId = (await planner.get('/api/outlooks')).body.find((o: { season: string }) => o.season === '2027/28').id;
+    expect((await planner.post(`/api/outlooks/${draftId}/projection`)).status).toBe(202);
+    while (!['succeeded', 'failed'].includes((await planner.get(`/api/outlooks/${draftId}/projection`)).body.status) && Date.now() < end) await sleep(250);
+    const pub = await planner.post(`/api/outlooks/${draftId}/publish`).send({ notifyMembers: false, acceptWeakSkill: true });
+    expect(pub.status).toBe(201);
+    const day = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' }).format(new Date());
+    expect((await treasurer.get('/api/summary')).body.nextSteps).toEqual([
+      {
+        kind: 'budget-missing',
+        icon: 'request_quote',
+        text: `The 2027/28 outlook (version 1, published ${day}) has no fertiliser budget yet. Build one from its price scenarios.`,
+        link: { path: '/budget', label: 'Open budgets' },
+      },
+    ]);
+    expect(((await planner.get('/api/summary')).body.nextSteps as { kind: string }[]).map((s) => s.kind)).toEqual(['records-missing', 'records-missing', 'model-stale']);
+    // A change to the published draft: the planner is told members still read version 1.
+    expect((await planner.patch(`/api/outlooks/${draftId}`).send({ commentary: 'Changed after publishing' })).status).toBe(200);
+    const changed = ((await planner.get('/api/summary')).body.nextSteps as { kind: string; text: string }[]).find((s) => s.kind === 'outlook-changed')!;
+    expect(changed.text).toBe(`The 2027/28 outlook has changes since version 1 (published ${day}); members read version 1 until you publish again.`);
+  }, 400_000);
 });
