@@ -263,6 +263,18 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     const inputIdx = names.map((_, i) => i).filter((i) => roles[i] === 'input');
 
     // Welch–Satterthwaite stretch of every figure of this farm (and its share of the co-op's).
+    // The solve used for the draws and the sensitivities: written out per form where it can be.
+    const fast = options.generalSolve
+      ? null
+      : layout.form === 'normalized-quadratic'
+        ? isCommitted[n - 1]
+          ? null
+          : nqDrawSolver(layout, f, pStar)
+        : glDrawSolver(layout, f, pStar);
+    const thetaBuf = new Float64Array(k);
+    const shiftBuf = new Float64Array(n);
+    const prBuf = new Float64Array(n);
+    const yrBuf = new Float64Array(n);
     const stretchOf = welch
       ? farmStretches(f, welch, {
           roles,
@@ -273,6 +285,12 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
           Vs,
           Sl,
           solve: (theta, shift) => {
+            if (fast) {
+              thetaBuf.set(theta);
+              shiftBuf.set(shift);
+              const st = fast(thetaBuf, 0, shiftBuf, prBuf, yrBuf);
+              return st === 'ok' || st === 'below-zero' ? { ok: true, prices: Array.from(prBuf), netputs: Array.from(yrBuf), iterations: 0 } : null;
+            }
             const start = f.prices.slice();
             f.committed.forEach((c) => (start[c] = pStar[c]!));
             const r = solveCommitted(technology(theta, f.z, shift), start, f.committed, f.target, { keepNonPositive: true });
@@ -296,13 +314,6 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     if (shared) {
       const shift = new Float64Array(n);
       const eta = new Float64Array(n);
-      const fast = options.generalSolve
-        ? null
-        : layout.form === 'normalized-quadratic'
-          ? isCommitted[n - 1]
-            ? null
-            : nqDrawSolver(layout, f, pStar)
-          : glDrawSolver(layout, f, pStar);
       const pr = new Float64Array(n);
       const yr = new Float64Array(n);
       for (let s = 0; s < S; s++) {
@@ -963,12 +974,13 @@ function coopTables(farms: { farmX: number[]; farm: FarmElasticityParts }[], nam
  * the band widened to hold the point.
  */
 function summarise(values: Float64Array, ok: Uint8Array, point: number, probs: number[], level: number, clip: boolean, stretch: Stretch): ContractedBand {
-  const xs: number[] = [];
-  for (let s = 0; s < values.length; s++) if (ok[s]) xs.push(values[s]!);
+  let N = 0;
+  for (let s = 0; s < values.length; s++) if (ok[s]) N++;
   const c = (v: number) => (clip ? Math.max(0, v) : v);
-  if (!xs.length) return { point: c(point), mean: c(point), sd: 0, median: c(point), p5: c(point), p95: c(point), lower: c(point), upper: c(point) };
-  const sorted = Float64Array.from(xs).sort();
-  const N = sorted.length;
+  if (!N) return { point: c(point), mean: c(point), sd: 0, median: c(point), p5: c(point), p95: c(point), lower: c(point), upper: c(point) };
+  const sorted = new Float64Array(N);
+  for (let s = 0, t = 0; s < values.length; s++) if (ok[s]) sorted[t++] = values[s]!;
+  sorted.sort();
   let m = 0;
   for (const v of sorted) m += v;
   m /= N;
