@@ -9,6 +9,7 @@ import os from 'node:os';
 import path from 'node:path';
 import autocannon from 'autocannon';
 import { HttpSession, startServerProcess } from '../tests/integration/server-process.js';
+import { demoModel } from '../seed/demo-model.js';
 
 const arg = (name: string, fallback: number) => {
   const i = process.argv.indexOf(`--${name}`);
@@ -28,18 +29,7 @@ const server = await startServerProcess({ DATA_DIR: dataDir });
 try {
   const planner = new HttpSession(server.url);
   await planner.request('POST', '/api/auth/login', { email: 'planner@example.org', password: 'netput-demo' });
-  const definition = {
-    items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'],
-    numeraire: 'labour',
-    fixedFactors: ['land_ha'],
-    trend: true,
-    form: 'nq',
-    curvature: 'auto',
-    fromSeason: null,
-    toSeason: null,
-    farms: null,
-    backtestSeasons: 10,
-  };
+  const definition = demoModel({ backtestSeasons: 10 });
   const model = await planner.request('POST', '/api/models', { name: 'Load benchmark model', definition });
   let fitsStarted = 0;
   let fitsFinished = 0;

@@ -14,6 +14,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import autocannon from 'autocannon';
 import pg from 'pg';
 import { HttpSession, startServerProcess, type ServerProcess } from '../tests/integration/server-process.js';
+import { demoModel } from '../seed/demo-model.js';
 
 const serverUrl = process.env.TEST_DATABASE_URL;
 if (!serverUrl) {
@@ -73,18 +74,7 @@ try {
   // The planner fits a model, projects 2026/27 and publishes it (without e-mail).
   const planner = new HttpSession(a.url);
   await planner.request('POST', '/api/auth/login', { email: 'planner@example.org', password: 'netput-demo' });
-  const definition = {
-    items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'],
-    numeraire: 'labour',
-    fixedFactors: ['land_ha'],
-    trend: true,
-    form: 'nq',
-    curvature: 'auto',
-    fromSeason: null,
-    toSeason: null,
-    farms: null,
-    backtestSeasons: 0,
-  };
+  const definition = demoModel({ backtestSeasons: 0 });
   const model = await planner.request('POST', '/api/models', { name: 'Bench model', definition });
   const run = await planner.request('POST', `/api/models/${model.body.id}/runs`);
   await waitFor(async () => (await planner.request('GET', `/api/model-runs/${run.body.id}/status`)).body.status === 'succeeded', 'the fit');

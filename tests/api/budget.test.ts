@@ -5,6 +5,7 @@ import { signedIn, startTestApp, type TestApp } from './test-app.js';
 import { seedFertiliserProducts } from '../../server/budget/fertiliser-products.js';
 import { recomputeStoredBudget } from '../../server/budget/budget-service.js';
 import { KG_PER_LB, KG_PER_SHORT_TON } from '../../shared/units.js';
+import { demoModel } from '../../seed/demo-model.js';
 
 let t: TestApp;
 let runId: number;
@@ -14,18 +15,7 @@ let planner: Agent;
 let member: Agent;
 let products: { id: number; name: string; nPct: number; p2o5Pct: number; k2oPct: number; pricePerT: number; lotT: number }[];
 
-const definition = {
-  items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'],
-  numeraire: 'labour',
-  fixedFactors: ['land_ha'],
-  trend: true,
-  form: 'nq',
-  curvature: 'auto',
-  fromSeason: null,
-  toSeason: null,
-  farms: null,
-  backtestSeasons: 0,
-};
+const definition = demoModel({ backtestSeasons: 0 });
 
 const bookingPlan = {
   months: [

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
+import { demoModel } from '../../seed/demo-model.js';
 
 /**
  * The forecasting model of a model run (per hectare with farm and season effects, or pooled), its
@@ -10,8 +11,8 @@ type Agent = Awaited<ReturnType<typeof signedIn>>;
 
 let t: TestApp;
 let planner: Agent;
-const ITEMS = ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'];
-const base = { items: ITEMS, numeraire: 'labour', trend: true, form: 'nq', curvature: 'auto', backtestSeasons: 5 };
+const base = demoModel({ backtestSeasons: 5 });
+const ITEMS = base.items;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
 async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 180_000): Promise<T> {

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
+import { DEMO_MODEL } from '../../seed/demo-model.js';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -7,18 +8,7 @@ beforeAll(async () => {
 });
 afterAll(async () => t.close());
 
-const definition = {
-  items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'],
-  numeraire: 'labour',
-  fixedFactors: ['land_ha'],
-  trend: true,
-  form: 'nq',
-  curvature: 'auto',
-  fromSeason: null,
-  toSeason: null,
-  farms: null,
-  backtestSeasons: 3,
-};
+const definition = DEMO_MODEL;
 
 async function waitForRun(a: Awaited<ReturnType<typeof signedIn>>, id: number) {
   for (let i = 0; i < 600; i++) {

@@ -5,6 +5,7 @@ import { mailOutbox, outlookVersionFarms, outlookVersions, users } from '../../s
 import { buildDemoCoop } from '../../seed/demo-coop.js';
 import { projectForecast } from '../../server/estimation/index.js';
 import { agent, signedIn, startTestApp, type TestApp } from './test-app.js';
+import { demoModel } from '../../seed/demo-model.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
 
@@ -49,7 +50,7 @@ beforeAll(async () => {
   // that 2025/26 can be set against its records; no back-test (speed).
   const model = await planner.post('/api/models').send({
     name: 'Outlook model',
-    definition: { items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'], numeraire: 'labour', fixedFactors: ['land_ha'], trend: true, form: 'nq', curvature: 'auto', toSeason: '2024/25', backtestSeasons: 0 },
+    definition: demoModel({ toSeason: '2024/25', backtestSeasons: 0 }),
   });
   expect(model.status).toBe(201);
   const run = await planner.post(`/api/models/${model.body.id}/runs`);

@@ -24,6 +24,7 @@ import { restorePglite } from '../../server/db/backup.js';
 import { priceObservations } from '../../server/db/schema/index.js';
 import { loadDemoCoop } from '../../seed/load-demo.js';
 import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
+import { demoModel } from '../../seed/demo-model.js';
 
 const ROOT = path.resolve(import.meta.dirname, '..', '..');
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'netput-folder-'));
@@ -88,7 +89,7 @@ async function addPrice(planner: HttpSession) {
 async function fitDefinition(planner: HttpSession) {
   const model = await planner.request('POST', '/api/models', {
     name: `Folder test model ${Date.now()}`,
-    definition: { items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'], numeraire: 'labour', fixedFactors: ['land_ha'], trend: true, form: 'nq', backtestSeasons: 5 },
+    definition: demoModel({ backtestSeasons: 5 }),
   });
   expect(model.status, JSON.stringify(model.body)).toBe(201);
   return model.body.id as number;

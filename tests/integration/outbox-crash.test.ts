@@ -18,6 +18,7 @@ import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
 import { buildDemoCoop } from '../../seed/demo-coop.js';
 import { startServerProcess } from './server-process.js';
 import { calibrate, killRound, seeded, signInPlanner, type KillLab } from './outbox-kills.js';
+import { demoModel } from '../../seed/demo-model.js';
 
 const ROOT = path.resolve(import.meta.dirname, '..', '..');
 const SEND_DELAY_MS = 300;
@@ -153,7 +154,7 @@ describe('outbox after a crash', () => {
 
     const model = await api('POST', '/api/models', {
       name: 'Crash test model',
-      definition: { items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'], numeraire: 'labour', fixedFactors: ['land_ha'], trend: true, form: 'nq', backtestSeasons: 0 },
+      definition: demoModel({ backtestSeasons: 0 }),
     });
     expect(model.status).toBe(201);
     const run = await api('POST', `/api/models/${model.body.id}/runs`);

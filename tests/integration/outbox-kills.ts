@@ -7,6 +7,7 @@
  */
 import type { FakeSmtp } from '../../server/mail/fake-smtp.js';
 import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
+import { demoModel } from '../../seed/demo-model.js';
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
@@ -53,7 +54,7 @@ export async function openKillLab(smtp: FakeSmtp, env: Record<string, string>): 
   const planner = await signInPlanner(server);
   const model = await planner.request('POST', '/api/models', {
     name: 'Outbox kill model',
-    definition: { items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'], numeraire: 'labour', fixedFactors: ['land_ha'], trend: true, form: 'nq', backtestSeasons: 0 },
+    definition: demoModel({ backtestSeasons: 0 }),
   });
   if (model.status !== 201) throw new Error(`model: ${model.status} ${JSON.stringify(model.body)}`);
   const run = await planner.request('POST', `/api/models/${model.body.id}/runs`);

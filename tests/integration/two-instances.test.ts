@@ -6,6 +6,7 @@ import pg from 'pg';
 import { MIGRATIONS_DIR } from '../../server/db/client.js';
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
 import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
+import { demoModel } from '../../seed/demo-model.js';
 
 /**
  * Two app instances on one PostgreSQL database: sessions, rate-limit counters and background jobs
@@ -71,18 +72,7 @@ describe.runIf(serverUrl)('two instances on one PostgreSQL database', () => {
     const s = new HttpSession(a.url);
     await s.request('POST', '/api/auth/login', { email: 'planner@example.org', password: 'netput-demo' });
     const sb = s.at(b.url);
-    const definition = {
-      items: ['wheat', 'canola', 'nitrogen', 'labour'],
-      numeraire: 'labour',
-      fixedFactors: ['land_ha'],
-      trend: true,
-      form: 'nq',
-      curvature: 'check',
-      fromSeason: null,
-      toSeason: null,
-      farms: null,
-      backtestSeasons: 0,
-    };
+    const definition = demoModel({ items: ['wheat', 'canola', 'nitrogen', 'labour'], curvature: 'check', backtestSeasons: 0 });
     const model = await s.request('POST', '/api/models', { name: 'Two-instance model', definition });
     expect(model.status).toBe(201);
     const runIds: number[] = [];

@@ -1,24 +1,13 @@
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
 import { assert, assertEqual, check, ensureFittedRun, mainNav, shot, shotPath, signIn, signOut, waitForDemoPrepared } from '../harness.js';
+import { DEMO_MODEL } from '../../../seed/demo-model.js';
 
 /** A fit and a projection take seconds on the demo co-op, longer while other work shares the two cores. */
 const JOB_TIMEOUT_MS = 180_000;
 /** The demo arrives with 2026/27 published (seed/prepare-demo.ts); the walk-through opens the season after it. */
 const SEASON = '2027/28';
-const DEFINITION = {
-  items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'],
-  numeraire: 'labour',
-  fixedFactors: ['land_ha'],
-  trend: true,
-  form: 'nq',
-  curvature: 'auto',
-  fromSeason: null,
-  toSeason: null,
-  farms: null,
-  // A short back-test, so the outlook can say how well the run forecast and warn before publishing.
-  backtestSeasons: 3,
-};
+const DEFINITION = DEMO_MODEL;
 
 interface Draft {
   id: number;

@@ -6,24 +6,14 @@ import Papa from 'papaparse';
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
 import { assert, assertEqual, check, ensureFittedRun, mainNav, navTitles, shot, signIn, signOut } from '../harness.js';
+import { demoModel } from '../../../seed/demo-model.js';
 
 /** A fit takes seconds on the demo co-op, longer while other fits share the two cores. */
 const RUN_TIMEOUT_MS = 180_000;
 const COMPUTE_TIMEOUT_MS = 60_000;
 
 /** The model the budget tests fit when no run has finished yet (all seven demo items, NQ, land + trend). */
-const DEFINITION = {
-  items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'],
-  numeraire: 'labour',
-  fixedFactors: ['land_ha'],
-  trend: true,
-  form: 'nq',
-  curvature: 'auto',
-  fromSeason: null,
-  toSeason: null,
-  farms: null,
-  backtestSeasons: 0,
-};
+const DEFINITION = demoModel({ backtestSeasons: 0 });
 
 interface Line {
   name: string;
