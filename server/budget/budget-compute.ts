@@ -6,7 +6,7 @@
 import type { BudgetResult, ProductCopy, ScenarioResult, SourceKind, ElasticitySource } from '../../shared/budget-types.js';
 import { VERSION } from '../version.js';
 import { cashSchedule, checkBookingPlan, type BookingPlan, type CashSchedule } from './booking.js';
-import { BUDGET_CAUTIONS, BUDGET_METHOD_NOTES } from './cautions.js';
+import { BUDGET_CAUTIONS, BUDGET_METHOD_NOTES } from './budget-cautions.js';
 import { BudgetInputError, elementsOf, gradeLabel, kgPerTonne, NUTRIENTS, type Nutrient, type NutrientAmounts } from './nutrients.js';
 import { solveProductMix, type LotRule, type MixProduct, type MixResult } from './product-mix.js';
 import { alignToNutrientPrices, productPriceChangePct, referencePricesFromProducts, respondDemand, type ElasticityMatrix, type PriceChanges, type PriceGap } from './scenarios.js';

@@ -13,7 +13,7 @@ import { outlookMailOf } from '../mail/outlook-mail.js';
 import { getSettings } from '../settings/settings-service.js';
 import { SCENARIO_RULE_TEXT, type ExpectationSetting, type ScenarioRule } from './expectations.js';
 import { computeExpectations, type ItemExpectation } from './expectations-service.js';
-import { OUTLOOK_CAUTIONS } from './cautions.js';
+import { OUTLOOK_CAUTIONS } from './outlook-cautions.js';
 import {
   draftInputsHash,
   gatherProjectionInputs,

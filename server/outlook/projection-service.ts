@@ -23,8 +23,8 @@ import { hashOf } from '../models/model-data.js';
 import { getSettings } from '../settings/settings-service.js';
 import { scenarioPrices, SCENARIO_RULE_TEXT, type ScenarioRule } from './expectations.js';
 import type { ItemExpectation } from './expectations-service.js';
-import { curvatureCaution } from './cautions.js';
-import { isDeliveredInTonnes, tonnesOf } from './units.js';
+import { curvatureCaution } from './outlook-cautions.js';
+import { isDeliveredInTonnes, tonnesOf } from './capacity-tonnes.js';
 
 export const OUTLOOK_PROJECTION_JOB = 'outlook-projection';
 
