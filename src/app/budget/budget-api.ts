@@ -2,7 +2,7 @@ import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom, type Observable } from 'rxjs';
 import type { UnitSystem } from '../../../shared/units';
-import type { BudgetInput, BudgetPreview, BudgetView, FertiliserProduct, FertiliserProductInput } from './budget-types';
+import type { BudgetInput, BudgetPreview, BudgetView, FertiliserProduct, FertiliserProductInput } from './budget-api-types';
 
 /** The treasurer's writes to budgets and fertiliser products (page reads go through `httpResource`). */
 @Injectable({ providedIn: 'root' })

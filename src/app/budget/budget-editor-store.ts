@@ -46,9 +46,9 @@ import type {
   OutlookVersionRow,
   OutlookVersionScenarios,
   SourceKind,
-} from './budget-types';
+} from './budget-api-types';
 import { BudgetUnitsStore, pricePerTToShown, unitLabels } from './budget-units';
-import { scenarioLabel } from '../outlook/outlook-types';
+import { scenarioLabel } from '../outlook/outlook-api-types';
 
 /** The cautions every budget carries, shown before the first result arrives (the server sends its own with each result). */
 const STANDING_CAUTIONS = [

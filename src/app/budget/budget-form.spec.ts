@@ -1,7 +1,7 @@
 import { TestBed } from '@angular/core/testing';
 import { NonNullableFormBuilder } from '@angular/forms';
 import { bookingProblems, defaultBooking, formValueFromStored, monthGroup, scenarioGroup, scenarioName, toBudgetInput, whereOf } from './budget-form';
-import type { FertiliserProduct, ProductCopy, StoredInputs } from './budget-types';
+import type { FertiliserProduct, ProductCopy, StoredInputs } from './budget-api-types';
 
 // The demo list's urea and DAP (grades: Cornell NRCCA CA4 PO26 and UNL PASSEL; prices invented for the demo).
 const list: FertiliserProduct[] = [

@@ -16,8 +16,8 @@ import type {
   ScenarioInput,
   SourceKind,
   StoredInputs,
-} from './budget-types';
-import { NUTRIENTS } from './budget-types';
+} from './budget-api-types';
+import { NUTRIENTS } from './budget-api-types';
 
 /*
  * The budget editor's form: what the treasurer types, in the unit system shown, and the pure

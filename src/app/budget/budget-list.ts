@@ -11,7 +11,7 @@ import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { CautionNote } from '../shared/caution-note';
 import { formatMass, formatMoney } from './budget-format';
-import { NUTRIENTS, type BudgetListRow, type SourceKind } from './budget-types';
+import { NUTRIENTS, type BudgetListRow, type SourceKind } from './budget-api-types';
 import { BudgetUnitsStore, massToShown, unitLabels } from './budget-units';
 import { UnitSwitch } from './unit-switch';
 

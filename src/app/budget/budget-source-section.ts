@@ -8,7 +8,7 @@ import { MatRadioButton, MatRadioGroup } from '@angular/material/radio';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { DemandSummary } from './demand-summary';
 import { BudgetEditorStore } from './budget-editor-store';
-import { NUTRIENT_LABEL } from './budget-types';
+import { NUTRIENT_LABEL } from './budget-api-types';
 
 /** Where the nutrient demand comes from: an outlook scenario, a model run or typed amounts, with the outlook's pricing options. Reads and acts through the page's BudgetEditorStore. */
 @Component({

@@ -9,7 +9,7 @@ import {
   type UnitSystem,
 } from '../../../shared/units';
 import { SettingsStore } from '../core/settings-store';
-import { NUTRIENT_LABEL, type Nutrient } from './budget-types';
+import { NUTRIENT_LABEL, type Nutrient } from './budget-api-types';
 
 const STORAGE_KEY = 'netput.budget.units';
 

@@ -1,5 +1,5 @@
 import { cashChartOption } from './cash-chart';
-import type { CashMonth } from './budget-types';
+import type { CashMonth } from './budget-api-types';
 
 /** A month of the cash schedule (invented figures: the mapping is under test, not the money). */
 function month(m: string, prepaid: number, onTerms: number, cumulative: number, bookedTonnes = 0): CashMonth {

@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import type { EChartsCoreOption } from 'echarts/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { formatMoney, formatMonth } from './budget-format';
-import type { CashMonth } from './budget-types';
+import type { CashMonth } from './budget-api-types';
 import { COLOUR } from '../../../shared/design-tokens';
 import { CHART_TEXT } from '../shared/chart-theme';
 

@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import type { UnitSystem } from '../../../shared/units';
 import { formatMoney, formatMonth, formatTonnes } from './budget-format';
-import type { ScenarioResult } from './budget-types';
+import type { ScenarioResult } from './budget-api-types';
 import { unitLabels } from './budget-units';
 import { CashChart } from './cash-chart';
 

@@ -2,7 +2,7 @@ import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { RouterLink } from '@angular/router';
 import { formatMass, formatPrice, formatPricePer, formatRatio } from './budget-format';
-import { NUTRIENT_LABEL, NUTRIENTS, type BudgetResult, type Nutrient } from './budget-types';
+import { NUTRIENT_LABEL, NUTRIENTS, type BudgetResult, type Nutrient } from './budget-api-types';
 import { unitLabels } from './budget-units';
 
 const ELASTICITY_SOURCE: Record<BudgetResult['demand']['elasticitySource'], string> = {

@@ -19,7 +19,7 @@ import { CautionNote } from '../shared/caution-note';
 import { gridTheme } from '../shared/grid';
 import { gradeOf } from './budget-form';
 import { formatPrice, formatTonnes } from './budget-format';
-import { NUTRIENT_LABEL, NUTRIENTS, type FertiliserProduct, type Nutrient } from './budget-types';
+import { NUTRIENT_LABEL, NUTRIENTS, type FertiliserProduct, type Nutrient } from './budget-api-types';
 import { BudgetUnitsStore, pricePerTToShown, productToShown, unitLabels } from './budget-units';
 import { ProductDialog, type ProductDialogData } from './product-dialog';
 import { UnitSwitch } from './unit-switch';

@@ -12,7 +12,7 @@ import { ApiRequestError, errorMessage } from '../core/api-error';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
 import { applyServerDetails } from '../shared/zod-validator';
 import { BudgetApi } from './budget-api';
-import type { FertiliserProduct, FertiliserProductInput, ProductForm } from './budget-types';
+import type { FertiliserProduct, FertiliserProductInput, ProductForm } from './budget-api-types';
 import { pricePerTFromShown, pricePerTToShown, productFromShown, productToShown, unitLabels } from './budget-units';
 
 export interface ProductDialogData {

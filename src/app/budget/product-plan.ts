@@ -4,7 +4,7 @@ import type { ColDef } from 'ag-grid-community';
 import type { UnitSystem } from '../../../shared/units';
 import { FIT_FIGURES, gridTheme, WRAPPED_HEADINGS } from '../shared/grid';
 import { formatLot, formatMass, formatMoney, formatPrice, formatTonnes } from './budget-format';
-import { NUTRIENT_LABEL, NUTRIENTS, type MixLine, type ScenarioResult } from './budget-types';
+import { NUTRIENT_LABEL, NUTRIENTS, type MixLine, type ScenarioResult } from './budget-api-types';
 import { unitLabels } from './budget-units';
 
 /** One scenario's least-cost product mix in delivery lots, and what it supplies against the need. */

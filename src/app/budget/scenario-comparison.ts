@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { formatMass, formatMoney, formatMonth, formatPct, formatTonnes } from './budget-format';
-import { NUTRIENT_LABEL, NUTRIENTS, type BudgetResult, type ScenarioResult } from './budget-types';
+import { NUTRIENT_LABEL, NUTRIENTS, type BudgetResult, type ScenarioResult } from './budget-api-types';
 import { unitLabels } from './budget-units';
 
 export interface ComparisonCell {

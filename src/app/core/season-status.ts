@@ -1,6 +1,6 @@
 import { httpResource } from '@angular/common/http';
 import { Injectable, computed, inject } from '@angular/core';
-import type { MemberVersionRow, OutlookListRow } from '../outlook/outlook-types';
+import type { MemberVersionRow, OutlookListRow } from '../outlook/outlook-api-types';
 import { roleAllows, ACCESS } from './access';
 import { AuthStore } from './auth-store';
 

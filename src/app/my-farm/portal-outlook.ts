@@ -13,7 +13,7 @@ import { ExpectationsTable } from '../outlook/expectations-table';
 import { FanChart, fanInputFor } from '../outlook/fan-chart';
 import { OutlookCautions } from '../outlook/outlook-cautions';
 import { formatDate, formatQuantity, formatShare, landSentence } from '../outlook/outlook-format';
-import type { MemberVersion, MemberVersionRow } from '../outlook/outlook-types';
+import type { MemberVersion, MemberVersionRow } from '../outlook/outlook-api-types';
 import { SourceFacts } from '../outlook/source-facts';
 import { QuantityCards } from './quantity-cards';
 import { PortalFertiliser } from './portal-fertiliser';

@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { inItemOrder } from './portal-prices';
 import { formatBand, formatQuantity } from '../outlook/outlook-format';
-import type { ItemProjection } from '../outlook/outlook-types';
+import type { ItemProjection } from '../outlook/outlook-api-types';
 
 /**
  * Projected quantities as cards that read on a phone: the model's best estimate at the expected

@@ -14,7 +14,7 @@ import { gridTheme } from '../shared/grid';
 import { FAN_COLOURS } from './fan-chart';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, formatPercent, formatPrice, formatQuantity, formatShare, formatSignedPercent } from './outlook-format';
-import type { Accountability, AccountabilitySeason, Comparison } from './outlook-types';
+import type { Accountability, AccountabilitySeason, Comparison } from './outlook-api-types';
 import { SERIES } from '../../../shared/design-tokens';
 import { CHART_TEXT } from '../shared/chart-theme';
 

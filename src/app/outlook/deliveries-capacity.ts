@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { formatBand, formatQuantity, formatShare } from './outlook-format';
-import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type ItemProjection } from './outlook-types';
+import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type ItemProjection } from './outlook-api-types';
 
 /** Deliveries to the co-op in tonnes, per scenario, against its storage and daily handling capacity. */
 @Component({

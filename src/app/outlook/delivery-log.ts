@@ -13,7 +13,7 @@ import { errorMessage, errorStatus } from '../core/api-error';
 import { gridTheme } from '../shared/grid';
 import { OutlookApi } from './outlook-api';
 import { formatDateTime } from './outlook-format';
-import type { DeliveryLog, DeliveryRow, DeliveryStatus, VersionSummary } from './outlook-types';
+import type { DeliveryLog, DeliveryRow, DeliveryStatus, VersionSummary } from './outlook-api-types';
 
 /** How often the log is read again while messages wait or are being sent. */
 export const DELIVERY_POLL_MS = 2000;

@@ -7,7 +7,7 @@ import { ApiRequestError, errorMessage } from '../core/api-error';
 import { ExpectationForm } from './expectation-form';
 import { OutlookApi } from './outlook-api';
 import { formatPercent, formatPrice, formatSignedPercent } from './outlook-format';
-import type { ExpectationMethod, ExpectationSetting, MethodComparison, OutlookDraft } from './outlook-types';
+import type { ExpectationMethod, ExpectationSetting, MethodComparison, OutlookDraft } from './outlook-api-types';
 
 export interface ExpectationDialogData {
   outlookId: number;

@@ -8,7 +8,7 @@ import { MatFormFieldHarness } from '@angular/material/form-field/testing';
 import { MatInputHarness } from '@angular/material/input/testing';
 import { MatSelectHarness } from '@angular/material/select/testing';
 import { ExpectationForm, FORM_DEFAULTS, formValueOf, settingFromForm } from './expectation-form';
-import type { ExpectationSetting } from './outlook-types';
+import type { ExpectationSetting } from './outlook-api-types';
 
 describe('settingFromForm', () => {
   it('should build the API setting of each method from the form fields', () => {

@@ -7,7 +7,7 @@ import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/m
 import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { bandSchema, methodSchema } from '../../../shared/outlook-schemas';
-import type { BandRule, ExpectationKind, ExpectationMethod, ExpectationSetting } from './outlook-types';
+import type { BandRule, ExpectationKind, ExpectationMethod, ExpectationSetting } from './outlook-api-types';
 
 /** The methods in the order the planner meets them, with a line on what each does. */
 export const METHOD_CHOICES: { kind: ExpectationKind; label: string; hint: string }[] = [

@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, input, output } from '@angular/core
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { formatPercent, formatPrice, formatSignedPercent } from './outlook-format';
-import type { ItemExpectation } from './outlook-types';
+import type { ItemExpectation } from './outlook-api-types';
 
 export interface MissingExpectation {
   code: string;

@@ -2,7 +2,7 @@ import { provideZonelessChangeDetection } from '@angular/core';
 import { TestBed } from '@angular/core/testing';
 import { provideCharts } from '../shared/charts';
 import { FanChart, fanChartDescription, fanChartOption, fanInputFor, fanWindow, type FanChartInput } from './fan-chart';
-import type { ItemProjection } from './outlook-types';
+import type { ItemProjection } from './outlook-api-types';
 
 // Invented figures: the mapping from a projection to chart series is under test, not the numbers.
 interface Series {

@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import type { EChartsCoreOption } from 'echarts/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { formatQuantity } from './outlook-format';
-import { SCENARIO_NAMES, scenarioLabel, type History, type ItemProjection, type QuantitySummary } from './outlook-types';
+import { SCENARIO_NAMES, scenarioLabel, type History, type ItemProjection, type QuantitySummary } from './outlook-api-types';
 import { COLOUR } from '../../../shared/design-tokens';
 import { CHART_TEXT } from '../shared/chart-theme';
 

@@ -5,7 +5,7 @@ import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, GridApi, GridReadyEvent, RowClickedEvent } from 'ag-grid-community';
 import { gridTheme } from '../shared/grid';
 import { csvCell, formatQuantity } from './outlook-format';
-import type { FarmOutlook } from './outlook-types';
+import type { FarmOutlook } from './outlook-api-types';
 
 export interface FarmRow {
   farmId: number;

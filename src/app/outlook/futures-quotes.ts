@@ -16,7 +16,7 @@ import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog'
 import { applyServerDetails, zodValidator } from '../shared/zod-validator';
 import { OutlookApi } from './outlook-api';
 import { formatPrice } from './outlook-format';
-import type { FuturesQuote } from './outlook-types';
+import type { FuturesQuote } from './outlook-api-types';
 
 /**
  * The futures history behind the "futures quote plus local basis" method: one row per quote (item,

@@ -9,7 +9,7 @@ import { seasonLabelSchema } from '../../../shared/outlook-schemas';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { applyServerDetails, zodValidator } from '../shared/zod-validator';
 import { OutlookApi } from './outlook-api';
-import type { OutlookDraft } from './outlook-types';
+import type { OutlookDraft } from './outlook-api-types';
 
 export interface RunChoice {
   id: number;

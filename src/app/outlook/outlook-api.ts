@@ -9,7 +9,7 @@ import type {
   OutlookPatch,
   ProjectionState,
   PublishAnswer,
-} from './outlook-types';
+} from './outlook-api-types';
 
 /** The planner's changes to season outlooks (reads go through `httpResource` in the pages). */
 @Injectable({ providedIn: 'root' })

@@ -27,7 +27,7 @@ import { OutlookApi } from './outlook-api';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, formatPriceIn } from './outlook-format';
 import { PROJECTION_WORDS } from './outlook-list';
-import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookPatch, type ProjectionAnswer, type ProjectionState, type RunChoiceAnswer, type ScenarioRule } from './outlook-types';
+import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookPatch, type ProjectionAnswer, type ProjectionState, type RunChoiceAnswer, type ScenarioRule } from './outlook-api-types';
 import { ProjectionReport } from './projection-report';
 import { PublishDialog, type PublishChoice, type PublishDialogData } from './publish-dialog';
 

@@ -1,5 +1,5 @@
 import { minus, priceText, quantityText } from '../../../shared/number-format';
-import type { QuantitySummary } from './outlook-types';
+import type { QuantitySummary } from './outlook-api-types';
 
 const nf = (min: number, max = min) => new Intl.NumberFormat('en-GB', { minimumFractionDigits: min, maximumFractionDigits: max });
 

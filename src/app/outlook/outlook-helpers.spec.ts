@@ -1,7 +1,7 @@
 import { ApiRequestError } from '../core/api-error';
 import { detailsForItem } from './expectation-dialog';
 import { describeFixed, describeFixedSource, formatPrice, formatPriceIn, formatQuantity, landSentence, nextSeasonLabel, suggestedOutlookSeason } from './outlook-format';
-import { finishedRuns, type ItemProjection } from './outlook-types';
+import { finishedRuns, type ItemProjection } from './outlook-api-types';
 import { numberWidth, projectionRows } from './projection-grid';
 
 // Invented figures: the shaping of API answers for the screens is under test.

@@ -12,7 +12,7 @@ import { AuthStore } from '../core/auth-store';
 import { NewOutlookDialog, type NewOutlookDialogData } from './new-outlook-dialog';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, suggestedOutlookSeason } from './outlook-format';
-import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookListRow, type ProjectionStatus, type RunChoiceAnswer } from './outlook-types';
+import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookListRow, type ProjectionStatus, type RunChoiceAnswer } from './outlook-api-types';
 
 export const PROJECTION_WORDS: Record<ProjectionStatus, string> = {
   none: 'not projected',

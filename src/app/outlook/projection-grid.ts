@@ -5,7 +5,7 @@ import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, ColGroupDef, GridApi, GridReadyEvent } from 'ag-grid-community';
 import { gridTheme } from '../shared/grid';
 import { csvCell, formatQuantity } from './outlook-format';
-import { SCENARIO_NAMES, scenarioLabel, type ItemProjection, type QuantitySummary } from './outlook-types';
+import { SCENARIO_NAMES, scenarioLabel, type ItemProjection, type QuantitySummary } from './outlook-api-types';
 
 /**
  * One grid row: an item with each scenario's figure at the estimates (`point` for the base,

@@ -6,7 +6,7 @@ import { DeliveriesCapacity } from './deliveries-capacity';
 import { FanChart, fanInputFor } from './fan-chart';
 import { FarmsGrid } from './farms-grid';
 import { describeFixed, describeFixedSource, formatPrice, formatShare, landSentence } from './outlook-format';
-import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type FarmOutlook, type ItemExpectation, type ScenarioPrices } from './outlook-types';
+import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type FarmOutlook, type ItemExpectation, type ScenarioPrices } from './outlook-api-types';
 import { ProjectionGrid } from './projection-grid';
 
 /** Recorded seasons before the fan: enough to see the trend, few enough that the projected season stands out. */

@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { formatDateTime, shortHash } from './outlook-format';
-import type { OutlookSnapshot } from './outlook-types';
+import type { OutlookSnapshot } from './outlook-api-types';
 
 const FORM_WORDS: Record<string, string> = {
   nq: 'normalised quadratic',

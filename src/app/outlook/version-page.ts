@@ -10,7 +10,7 @@ import { AuthStore } from '../core/auth-store';
 import { ExpectationsTable } from './expectations-table';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime } from './outlook-format';
-import type { FullVersion, VersionSummary } from './outlook-types';
+import type { FullVersion, VersionSummary } from './outlook-api-types';
 import { ProjectionReport } from './projection-report';
 import { SourceFacts } from './source-facts';
 
