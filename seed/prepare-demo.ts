@@ -24,6 +24,7 @@ import { getSettings } from '../server/settings/settings-service.js';
 import { modelDefinitionSchema } from '../shared/model-schemas.js';
 import type { Config } from '../server/config.js';
 import { FIRST_SEASON, SEASON_COUNT, seasonLabel } from './demo-coop.js';
+import { demoModel } from './demo-model.js';
 
 export const DEMO_SETUP_JOB = 'demo-setup';
 export const DEMO_MODEL_NAME = 'Demo co-op, per hectare';
@@ -33,16 +34,7 @@ export const DEMO_OUTLOOK_SEASON = seasonLabel(FIRST_SEASON + SEASON_COUNT);
 const DEMO_OUTLOOK_START_YEAR = FIRST_SEASON + SEASON_COUNT;
 
 /** Every demo item, land as the fixed factor, per-hectare forecasts, a three-season back-test. */
-export const DEMO_MODEL_DEFINITION = {
-  items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'],
-  numeraire: 'labour',
-  fixedFactors: ['land_ha'],
-  trend: true,
-  form: 'nq',
-  curvature: 'auto',
-  spec: 'per-hectare',
-  backtestSeasons: 3,
-} as const;
+export const DEMO_MODEL_DEFINITION = demoModel({ spec: 'per-hectare' });
 
 /** Queues the preparation (in the demo load's transaction). */
 export async function enqueueDemoSetup(db: Db) {

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, input } from '@angular/core';
-import type { MemberPlain } from '../outlook/outlook-types';
+import type { MemberPlain } from '../outlook/outlook-api-types';
 import { formatQuantity } from '../outlook/outlook-format';
 import { formatMoney, formatPricePer } from '../budget/budget-format';
 

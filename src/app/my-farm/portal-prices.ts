@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
-import type { ItemExpectation } from '../outlook/outlook-types';
+import type { ItemExpectation } from '../outlook/outlook-api-types';
 import { formatPrice } from '../outlook/outlook-format';
 
 /**
