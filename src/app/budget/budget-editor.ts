@@ -1,4 +1,5 @@
 import { DatePipe } from '@angular/common';
+import { ContractBasisSection } from '../contracts/contract-basis-section';
 import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { ReactiveFormsModule } from '@angular/forms';
 import { MatAnchor, MatButton } from '@angular/material/button';
@@ -25,6 +26,7 @@ import { UnitSwitch } from './unit-switch';
 @Component({
   selector: 'np-budget-editor',
   imports: [
+    ContractBasisSection,
     DatePipe,
     ReactiveFormsModule,
     RouterLink,

@@ -1,4 +1,5 @@
 import { BreakpointObserver } from '@angular/cdk/layout';
+import { MyContractsSection } from '../contracts/my-contracts';
 import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
@@ -25,7 +26,9 @@ import { inItemOrder, PortalPrices } from './portal-prices';
  */
 @Component({
   selector: 'np-portal-outlook',
-  imports: [RouterLink, MatButton, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, ExpectationsTable, FanChart, OutlookCautions, QuantityCards, SourceFacts, PortalFertiliser, PortalPrices],
+  imports: [
+    MyContractsSection,
+    RouterLink, MatButton, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, ExpectationsTable, FanChart, OutlookCautions, QuantityCards, SourceFacts, PortalFertiliser, PortalPrices],
   templateUrl: './portal-outlook.html',
   styleUrl: './portal-outlook.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -1,0 +1,89 @@
+import { HttpClient, httpResource } from '@angular/common/http';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, linkedSignal, signal, untracked } from '@angular/core';
+import { MatButton } from '@angular/material/button';
+import { MatFormField, MatLabel } from '@angular/material/form-field';
+import { MatIcon } from '@angular/material/icon';
+import { MatProgressBar } from '@angular/material/progress-bar';
+import { MatOption, MatSelect } from '@angular/material/select';
+import { firstValueFrom } from 'rxjs';
+import type { ContractedState, DemandBand } from '../../../shared/contracted-view';
+import { nutrientAmount } from '../../../shared/contract-words';
+import { errorMessage } from '../core/api-error';
+import { CautionNote } from '../shared/caution-note';
+import { ContractsApi } from './contracts-api';
+
+const POLL_MS = 700;
+const signedPct = (v: number) => `${v > 0 ? '+' : v < 0 ? '−' : ''}${Math.abs(v).toLocaleString('en-GB', { maximumFractionDigits: 1 })} %`;
+
+/**
+ * The budget's two bases side by side (issue 19): the co-op's fertiliser (and fuel, labour) demand as
+ * the season outlook projects it (every farm's output free: unconditional) and with the contracting
+ * farms held to their signed tonnage (conditional demand). The figures are the outlook's contracted
+ * view, computed on the server.
+ */
+@Component({
+  selector: 'np-contract-basis-section',
+  imports: [MatButton, MatIcon, MatFormField, MatLabel, MatSelect, MatOption, MatProgressBar, CautionNote],
+  templateUrl: './contract-basis-section.html',
+  styleUrl: './contracted-section.scss',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+})
+export class ContractBasisSection {
+  readonly #http = inject(HttpClient);
+  readonly #api = inject(ContractsApi);
+  protected readonly outlooks = httpResource<{ id: number; season: string; title: string }[]>(() => '/api/outlooks');
+  protected readonly outlookId = linkedSignal<number | null>(() => (this.outlooks.hasValue() ? (this.outlooks.value()[0]?.id ?? null) : null));
+  protected readonly state = signal<ContractedState | null>(null);
+  protected readonly problem = signal<string | null>(null);
+  protected readonly active = computed(() => ['queued', 'running'].includes(this.state()?.status ?? ''));
+  protected readonly percent = computed(() => Math.round((this.state()?.progress ?? 0) * 100));
+  #timer: ReturnType<typeof setTimeout> | undefined;
+
+  protected readonly rows = computed(() => {
+    const basis = this.state()?.view?.demandBasis;
+    if (!basis) return [];
+    const fmt = (q: DemandBand, unit: string) => nutrientAmount(q.point, unit);
+    const band = (q: DemandBand, unit: string) => `${nutrientAmount(q.p5, unit)} to ${nutrientAmount(q.p95, unit)}`;
+    return basis.rows.map((r) => ({
+      name: r.name,
+      outlook: fmt(r.outlook, r.unit),
+      outlookBand: band(r.outlook, r.unit),
+      contracted: fmt(r.contracted, r.unit),
+      contractedBand: band(r.contracted, r.unit),
+      change: r.outlook.point > 0 ? signedPct((100 * (r.contracted.point - r.outlook.point)) / r.outlook.point) : '—',
+    }));
+  });
+  protected readonly note = computed(() => this.state()?.view?.demandBasis?.note ?? null);
+
+  constructor() {
+    effect(() => {
+      const id = this.outlookId();
+      untracked(() => (id === null ? this.state.set(null) : void this.#load(id)));
+    });
+    inject(DestroyRef).onDestroy(() => clearTimeout(this.#timer));
+  }
+
+  async #load(id: number): Promise<void> {
+    clearTimeout(this.#timer);
+    try {
+      const s = await firstValueFrom(this.#http.get<ContractedState>(`/api/contracts/outlooks/${id}/evaluation`));
+      if (id !== this.outlookId()) return;
+      this.state.set(s);
+      this.problem.set(null);
+      if (s.status === 'queued' || s.status === 'running') this.#timer = setTimeout(() => void this.#load(id), POLL_MS);
+    } catch (error) {
+      this.problem.set(errorMessage(error));
+    }
+  }
+
+  protected async evaluate(): Promise<void> {
+    const id = this.outlookId();
+    if (id === null) return;
+    try {
+      this.state.set(await this.#api.evaluate(id));
+      await this.#load(id);
+    } catch (error) {
+      this.problem.set(errorMessage(error));
+    }
+  }
+}
