@@ -2,6 +2,7 @@ import type { Routes } from '@angular/router';
 import { ACCESS } from '../core/access';
 import { roleGuard } from '../core/auth-guards';
 import { devMailGuard } from '../core/dev-mail-availability';
+import { devPaymentsGuard } from './payments/dev-payments-guard';
 
 const adminRoutes: Routes = [
   { path: '', pathMatch: 'full', redirectTo: '/' },
@@ -28,6 +29,12 @@ const adminRoutes: Routes = [
     title: 'Mail outbox',
     canMatch: [roleGuard(ACCESS.devMail), devMailGuard],
     loadComponent: () => import('./mail/dev-mail').then((m) => m.DevMail),
+  },
+  {
+    path: 'payments',
+    title: 'Test payments',
+    canMatch: [roleGuard(ACCESS.devMail), devPaymentsGuard],
+    loadComponent: () => import('./payments/dev-payments').then((m) => m.DevPayments),
   },
 ];
 

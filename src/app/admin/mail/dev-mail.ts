@@ -1,7 +1,8 @@
 import { DatePipe } from '@angular/common';
 import { HttpClient, httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, ElementRef, inject, linkedSignal, signal, viewChild } from '@angular/core';
-import { MatButton } from '@angular/material/button';
+import { MatAnchor, MatButton } from '@angular/material/button';
+import { RouterLink } from '@angular/router';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
@@ -34,7 +35,7 @@ export function linkify(text: string): TextPart[] {
 /** `/admin/mail` (development mode only): what the local fake SMTP server received. */
 @Component({
   selector: 'np-dev-mail',
-  imports: [DatePipe, MatButton, MatIcon, MatProgressBar, MatTabGroup, MatTab],
+  imports: [DatePipe, RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, MatTabGroup, MatTab],
   templateUrl: './dev-mail.html',
   styleUrl: './dev-mail.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
