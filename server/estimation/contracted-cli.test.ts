@@ -73,6 +73,17 @@ describe('fit --committed', () => {
     expect(doc.committed.coop.quantities).toEqual({ wheat: 2300, canola: 250 });
   });
 
+  it('with --spec per-hectare, a farm of the history uses its own level and the commitment is divided by its land', () => {
+    const file = write('per-ha.csv', 'farm,committed:wheat,fixed:land\nF001,1400,440\nNEW,1400,440\n');
+    const doc = run(['--spec', 'per-hectare', '--committed-file', file, '--draws', '0']);
+    const [known, fresh] = doc.committed.farms;
+    expect(doc.committed.spec).toBe('per-hectare');
+    expect(known.known).toBe(true);
+    expect(fresh.known).toBe(false);
+    expect(known.outputs.wheat.perHectare).toBeCloseTo(1400 / 440, 12);
+    expect(known.outputs.wheat.marginalCost.point).not.toBeCloseTo(fresh.outputs.wheat.marginalCost.point, 3);
+  });
+
   it('bad options and files get one line naming what and where', () => {
     oneLine(['--committed', 'barley=3'], /--committed: "barley" is not an item of the model \(outputs: wheat, canola\)/);
     oneLine(['--committed', 'nitrogen=3'], /--committed: nitrogen is an input; only outputs can be committed/);
