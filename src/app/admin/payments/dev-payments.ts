@@ -53,7 +53,8 @@ interface FakeDelivery {
         @for (s of sessions(); track s.id) {
           <li>
             <div class="what">
-              <strong>{{ fmt(s.amount_total, s.currency.toUpperCase()) }}</strong> · {{ s.description }}
+              <strong>{{ fmt(s.amount_total, s.currency.toUpperCase()) }}</strong>
+              <span>{{ s.description }}</span>
               <span class="small">{{ s.customer_email }} · started {{ s.created * 1000 | date: 'd MMM, HH:mm' }} · {{ s.status }}{{ s.payment_status === 'paid' ? ', paid' : '' }}</span>
             </div>
             @if (s.status === 'open') {
