@@ -138,8 +138,17 @@ export async function openDatabase(options: OpenOptions): Promise<Database> {
 type Queryable = Pick<PGlite, 'query' | 'exec'>;
 
 /**
+ * A turn of the event loop before each PGlite statement. PGlite answers as promises that settle as
+ * microtasks, so statements queued by several requests at once would otherwise run back to back
+ * without the server ever reading its sockets: five readers could hold `/api/health` for the time
+ * of all their statements together (issue 15 item 10). With this turn an incoming request waits at
+ * most for the one statement running.
+ */
+const nextTurn = () => new Promise<void>((resolve) => setImmediate(resolve));
+
+/**
  * Feeds every statement run through the PGlite client (and through its transactions) to the
- * change tracker. A write is stamped when it is sent and again when it has finished; writes made
+ * change tracker, each after a turn of the event loop (nextTurn). A write is stamped when it is sent and again when it has finished; writes made
  * in a transaction are stamped once more when the transaction ends, when they become visible.
  */
 function watchWrites(client: PGlite, changes: ChangeTracker): void {
@@ -151,6 +160,7 @@ function watchWrites(client: PGlite, changes: ChangeTracker): void {
       if (written) written.add(sql);
     };
     target.query = (async (sql: string, params?: unknown[], options?: unknown) => {
+      await nextTurn();
       note(sql);
       try {
         return await query(sql, params as never, options as never);
@@ -159,6 +169,7 @@ function watchWrites(client: PGlite, changes: ChangeTracker): void {
       }
     }) as PGlite['query'];
     target.exec = (async (sql: string, options?: unknown) => {
+      await nextTurn();
       note(sql);
       try {
         return await exec(sql, options as never);

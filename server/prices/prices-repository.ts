@@ -148,6 +148,36 @@ export async function countPrices(db: Db, f: PriceFilter): Promise<number> {
   return row?.n ?? 0;
 }
 
+/**
+ * The ids of every price the filter matches, in the table's order, with each one's value of the
+ * `key` column when one is named: read one season at a time (oldest first, through the season
+ * index), so no statement reads or sorts the whole table (PGlite runs each statement on the
+ * request thread).
+ */
+export async function priceIdsInTableOrder(db: Db, f: PriceFilter, key?: PriceSortColumn): Promise<{ ids: number[]; keys: (number | string)[] }> {
+  const seasonRows = await db.select({ id: seasons.id }).from(seasons).orderBy(asc(seasons.startYear), asc(seasons.id));
+  const onlySeasons = f.seasonIds?.length ? new Set(f.seasonIds) : null;
+  const ids: number[] = [];
+  const keys: (number | string)[] = [];
+  const keyColumn = sql<number | string>`${key ? SORT_KEY[key] : priceObservations.id}`;
+  for (const s of seasonRows) {
+    if (onlySeasons && !onlySeasons.has(s.id)) continue;
+    const rows = await db
+      .select({ id: priceObservations.id, key: keyColumn })
+      .from(priceObservations)
+      .innerJoin(items, eq(items.id, priceObservations.itemId))
+      .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
+      .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
+      .where(and(eq(priceObservations.seasonId, s.id), where(f)))
+      .orderBy(asc(items.id), asc(deliveryPoints.name), asc(priceObservations.observedOn), asc(priceObservations.id));
+    for (const r of rows) {
+      ids.push(r.id as number);
+      keys.push(r.key);
+    }
+  }
+  return { ids, keys };
+}
+
 /** The filter a PriceQuery names. */
 export function filterOf(q: PriceQuery): PriceFilter {
   return {

@@ -8,48 +8,95 @@ import type { Response } from 'express';
 import type { PriceRow } from '../../shared/api-types.js';
 import type { PriceInput } from '../../shared/data-schemas.js';
 import { historyAt, implausiblePrice } from '../../shared/plausibility.js';
-import type { PriceQuery } from '../../shared/price-query.js';
+import type { PriceQuery, PriceSortColumn } from '../../shared/price-query.js';
 import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
 import type { Db } from '../db/client.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { getSettings } from '../settings/settings-service.js';
 import { PRICE_COLUMNS, priceExportChunks, streamSpreadsheet, type ExportFormat } from '../exports/data-exports.js';
-import { countPrices, deletePriceRows, filterOf, getPrice, insertPrices, itemsAndSeasons, listPrices, lockPrice, pagePrices, writePrice, type PriceFilter } from './prices-repository.js';
+import { countPrices, deletePriceRows, filterOf, getPrice, insertPrices, itemsAndSeasons, listPrices, lockPrice, pagePrices, priceIdsInTableOrder, writePrice, type PriceFilter } from './prices-repository.js';
+import type { ChangeTracker } from '../db/change-tracker.js';
 import { priceHistories } from './price-history.js';
 
 export { getPrice } from './prices-repository.js';
 export { priceSeries } from './prices-repository.js';
 
 /**
- * Counts of matching prices, kept until a table they were counted from is written (PGlite, where
- * this process sees every write); a grid scrolling through 238,000 prices asks for the same count
- * with every block. Without a change tracker (PostgreSQL) every page counts afresh.
+ * The order of the price table for one filter and sort, as ids (PGlite only, where this process sees
+ * every write): built once from small index reads (priceIdsInTableOrder) and sorted here, then kept
+ * until a table it was read from is written. A window at any depth is then a slice of ids and one
+ * lookup by primary key, instead of a statement sorting 238,000 rows on the request thread for
+ * every block the grid asks for. Ties keep the table's order (the sort is stable).
  */
-const COUNT_TABLES = ['price_observations', 'items', 'seasons', 'delivery_points'];
-const counts = new WeakMap<object, Map<string, { n: number; since: number }>>();
+const ORDER_TABLES = ['price_observations', 'items', 'seasons', 'delivery_points'];
+const MAX_ORDERS = 12;
+interface Order {
+  ids: Int32Array;
+  since: number;
+}
+const orders = new WeakMap<ChangeTracker, Map<string, Order>>();
+const building = new WeakMap<ChangeTracker, Map<string, Promise<Int32Array>>>();
 
-async function countCached(ctx: Pick<AppContext, 'db' | 'changes'>, f: PriceFilter): Promise<number> {
-  const tracker = ctx.changes;
-  if (!tracker) return countPrices(ctx.db, f);
-  let mine = counts.get(tracker);
-  if (!mine) counts.set(tracker, (mine = new Map()));
-  const key = JSON.stringify(f);
+function compareKeys(a: number | string, b: number | string): number {
+  return a < b ? -1 : a > b ? 1 : 0;
+}
+
+async function orderedIds(db: Db, tracker: ChangeTracker, f: PriceFilter, sort: PriceSortColumn | undefined, dir: 'asc' | 'desc'): Promise<Int32Array> {
+  let mine = orders.get(tracker);
+  if (!mine) orders.set(tracker, (mine = new Map()));
+  let inFlight = building.get(tracker);
+  if (!inFlight) building.set(tracker, (inFlight = new Map()));
+  const key = JSON.stringify([f, sort ?? null, sort ? dir : null]);
   const hit = mine.get(key);
-  if (hit && tracker.unchangedSince(COUNT_TABLES, hit.since)) return hit.n;
+  if (hit && tracker.unchangedSince(ORDER_TABLES, hit.since)) {
+    mine.delete(key);
+    mine.set(key, hit);
+    return hit.ids;
+  }
+  const pending = inFlight.get(key);
+  if (pending) return pending;
   const since = tracker.now();
-  const n = await countPrices(ctx.db, f);
-  if (mine.size > 500) mine.clear();
-  mine.set(key, { n, since });
-  return n;
+  const build = (async () => {
+    const { ids, keys } = await priceIdsInTableOrder(db, f, sort);
+    let order: Int32Array;
+    if (!sort) {
+      order = Int32Array.from(ids);
+    } else {
+      const sign = dir === 'desc' ? -1 : 1;
+      const idx = Array.from(ids, (_, i) => i);
+      idx.sort((a, b) => sign * compareKeys(keys[a], keys[b]));
+      order = Int32Array.from(idx, (i) => ids[i]);
+    }
+    if (tracker.unchangedSince(ORDER_TABLES, since)) {
+      mine.set(key, { ids: order, since });
+      while (mine.size > MAX_ORDERS) mine.delete(mine.keys().next().value!);
+    }
+    return order;
+  })();
+  inFlight.set(key, build);
+  try {
+    return await build;
+  } finally {
+    inFlight.delete(key);
+  }
 }
 
 /** One window of the price table, sorted and narrowed on the server, and how many rows match in all. */
 export async function pricePage(ctx: Pick<AppContext, 'db' | 'changes'>, q: PriceQuery): Promise<{ rows: PriceRow[]; total: number }> {
   const f = filterOf(q);
-  const total = await countCached(ctx, f);
-  const rows = q.offset >= total ? [] : await pagePrices(ctx.db, f, { offset: q.offset, limit: q.limit, sort: q.sort, dir: q.dir });
-  return { rows, total };
+  if (!ctx.changes) {
+    // A PostgreSQL server runs the statement in its own process: it sorts and cuts the window itself.
+    const total = await countPrices(ctx.db, f);
+    const rows = q.offset >= total ? [] : await pagePrices(ctx.db, f, { offset: q.offset, limit: q.limit, sort: q.sort, dir: q.dir });
+    return { rows, total };
+  }
+  const ids = await orderedIds(ctx.db, ctx.changes, f, q.sort, q.dir);
+  const window = Array.from(ids.subarray(q.offset, q.offset + q.limit));
+  if (window.length === 0) return { rows: [], total: ids.length };
+  const byId = new Map((await listPrices(ctx.db, { ids: window })).map((r) => [r.id, r]));
+  // A row deleted since the order was built is left out of its window (the next read rebuilds the order).
+  return { rows: window.flatMap((id) => byId.get(id) ?? []), total: ids.length };
 }
 
 /** The whole price table as a download, streamed in chunks (in the import's columns and the co-op's decimal mark). */
