@@ -7,7 +7,7 @@
  *   offset=0&limit=100             rows 1–100 (limit 1–1,000; 1,000 when absent)
  *   sort=price&dir=desc            one column, ascending unless dir=desc; ties by season, item, point, date
  *   items=1,2&seasons=3&deliveryPoints=4      ids (as before)
- *   q=spot                         any of item name or code, season, delivery point, source contains it
+ *   q=wheat larkfield 2024-08      every word in the item name or code, season, delivery point, source, currency or date
  *   item=contains:whe  season=equals:2024/25  deliveryPoint=startsWith:North  source=notContains:bench
  *   currency=equals:EUR            text conditions, case-insensitive
  *   price=greaterThan:200  price=inRange:100:250     number conditions (decimal point)

@@ -12,7 +12,7 @@ export interface PriceFilter {
   itemIds?: number[];
   seasonIds?: number[];
   deliveryPointIds?: number[];
-  /** Item name or code, season label, delivery point name or source contains this (any case). */
+  /** Each word is in the item name or code, season label, delivery point name, source, currency or date (any case). */
   search?: string;
   item?: TextCondition;
   season?: TextCondition;
@@ -85,9 +85,12 @@ function where(f: PriceFilter): SQL | undefined {
   if (f.itemIds?.length) parts.push(inArray(priceObservations.itemId, f.itemIds));
   if (f.seasonIds?.length) parts.push(inArray(priceObservations.seasonId, f.seasonIds));
   if (f.deliveryPointIds?.length) parts.push(inArray(priceObservations.deliveryPointId, f.deliveryPointIds));
-  if (f.search) {
-    const like = `%${likeText(f.search)}%`;
-    parts.push(sql`(${ilike(items.name, like)} or ${ilike(items.code, like)} or ${ilike(seasons.label, like)} or ${ilike(deliveryPoints.name, like)} or ${ilike(priceObservations.source, like)})`);
+  // Every word of the search somewhere in the row (as the grid's own quick filter did).
+  for (const word of (f.search ?? '').split(/\s+/).filter(Boolean).slice(0, 12)) {
+    const like = `%${likeText(word)}%`;
+    parts.push(
+      sql`(${ilike(items.name, like)} or ${ilike(items.code, like)} or ${ilike(seasons.label, like)} or ${ilike(deliveryPoints.name, like)} or ${ilike(priceObservations.source, like)} or ${ilike(priceObservations.currency, like)} or ${priceObservations.observedOn}::text like ${like})`,
+    );
   }
   if (f.item) parts.push(sql`(${textCondition(items.name, f.item)} ${f.item.op.startsWith('not') ? sql`and` : sql`or`} ${textCondition(items.code, f.item)})`);
   if (f.season) parts.push(textCondition(seasons.label, f.season));

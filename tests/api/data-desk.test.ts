@@ -325,6 +325,7 @@ describe('price pages (GET /api/prices: a window, sorted and narrowed on the ser
     await check('price=lessThanOrEqual:1', (r) => r.price <= 1);
     await check('q=millbrook', (r) => r.deliveryPoint === 'Millbrook store');
     await check('q=autumn', (r) => r.source.includes('autumn'));
+    await check('q=wheat%20LARKFIELD%202024-08', (r) => r.itemName === 'Wheat' && r.deliveryPoint === 'Larkfield terminal' && r.observedOn.startsWith('2024-08'));
     await check(`items=${all.find((r) => r.itemName === 'Diesel')!.itemId}&price=greaterThan:0.5`, (r) => r.itemName === 'Diesel' && r.price > 0.5);
     // A % in a condition is a percent sign, not a wildcard.
     const none = await planner.get('/api/prices?source=contains:%25');

@@ -100,6 +100,13 @@ export class DataDeskApi {
   }
 
   // --- prices ---
+  /** One window of the price table (GET /api/prices, shared/price-query.ts) and how many rows match in all. */
+  async pricePage(params: Record<string, string | number>): Promise<{ rows: PriceRow[]; total: number }> {
+    const res = await firstValueFrom(this.#http.get<PriceRow[]>('/api/prices', { params, observe: 'response' }));
+    const rows = res.body ?? [];
+    const total = Number(res.headers.get('X-Total-Count'));
+    return { rows, total: Number.isFinite(total) ? total : Number(params['offset'] ?? 0) + rows.length };
+  }
   /** One row or a pasted block; the server writes all rows or none. */
   createPrices(rows: PriceInput[], confirmImplausible = false): Promise<PriceRow[]> {
     return firstValueFrom(this.#http.post<PriceRow[]>('/api/prices', { rows, ...(confirmImplausible ? { confirmImplausible } : {}) }));

@@ -4,6 +4,7 @@ import {
   ClientSideRowModelModule,
   ColumnAutoSizeModule,
   CsvExportModule,
+  InfiniteRowModelModule,
   LocaleModule,
   ModuleRegistry,
   NumberFilterModule,
@@ -28,6 +29,8 @@ import { COLOUR, FONT, RADIUS, SPACE, TYPE } from '../../../shared/design-tokens
 // misconfigured grids in development builds only.
 ModuleRegistry.registerModules([
   ClientSideRowModelModule,
+  // big tables read block by block from the server, sorted and narrowed there (the prices grid)
+  InfiniteRowModelModule,
   // right-aligned numeric columns (`type: 'numericColumn'` sets a cell class)
   CellStyleModule,
   TextFilterModule,

@@ -1,7 +1,7 @@
 import { ApiRequestError } from '../../core/api-error';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
+import { NonNullableFormBuilder, ReactiveFormsModule, Validators, type AbstractControl, type ValidationErrors, type ValidatorFn } from '@angular/forms';
 import { MatButton } from '@angular/material/button';
 import {
   MAT_DIALOG_DATA,
@@ -16,6 +16,7 @@ import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { DateTime } from 'luxon';
 import type { PriceRow } from '../../../../shared/api-types';
+import { markName, parseNumber, type DecimalMark } from '../../../../shared/cell-parsers';
 import { priceSchema } from '../../../../shared/data-schemas';
 import { saveAndClose } from '../../shared/dialog-save';
 import { zodValidator } from '../../shared/zod-validator';
@@ -26,7 +27,25 @@ import { seasonSpan } from '../season-dates';
 export interface PriceDialogData {
   lookups: Lookups;
   currency: string;
+  /** How the co-op writes decimals: the price is typed and read that way, as in the grid. */
+  decimalMark: DecimalMark;
   existing: readonly PriceRow[];
+}
+
+/**
+ * The typed price read in the co-op's convention by the grid's parser (shared/cell-parsers.ts), then
+ * checked by the shared schema: "204,5" under a decimal point is refused with the reason, never
+ * read as 2045. The browser's number input would ignore the setting, so the field is text.
+ */
+export function priceTextValidator(mark: () => DecimalMark): ValidatorFn {
+  const schema = zodValidator(priceSchema.shape.price);
+  return (control: AbstractControl<string>): ValidationErrors | null => {
+    const text = control.value ?? '';
+    if (text.trim() === '') return null;
+    const parsed = parseNumber(text, mark());
+    if (!parsed.ok) return { schema: `${parsed.message} (the co-op writes ${markName(mark())})` };
+    return schema({ value: parsed.value } as AbstractControl);
+  };
 }
 
 /** Adds one price observation. Closes with the stored row. */
@@ -83,7 +102,7 @@ export class PriceDialog {
     itemId: [null as number | null, Validators.required],
     seasonId: [this.seasonsNewestFirst[0]?.id ?? (null as number | null), Validators.required],
     deliveryPointId: [null as number | null, Validators.required],
-    price: [null as number | null, [Validators.required, zodValidator(priceSchema.shape.price)]],
+    price: ['', [Validators.required, priceTextValidator(() => this.data.decimalMark)]],
     currency: [this.data.currency, [Validators.required, zodValidator(priceSchema.shape.currency)]],
     source: ['', [Validators.required, zodValidator(priceSchema.shape.source)]],
     observedOn: [DateTime.now().toISODate(), [Validators.required, zodValidator(priceSchema.shape.observedOn)]],
@@ -104,6 +123,8 @@ export class PriceDialog {
     const outside = date?.isValid && (date < span.start || date > span.end);
     return `${season.label} runs ${span.text}${outside ? ' — this date is outside it' : ''}`;
   });
+  /** An example price in the co-op's convention, for the field's placeholder. */
+  protected readonly example = this.data.decimalMark === 'comma' ? '204,50' : '204.50';
   protected readonly saving = signal(false);
   protected readonly failure = signal<string | null>(null);
   /** The body the server last asked about (422 needs_confirmation). */
@@ -119,7 +140,7 @@ export class PriceDialog {
       itemId: v.itemId!,
       seasonId: v.seasonId!,
       deliveryPointId: v.deliveryPointId!,
-      price: v.price!,
+      price: (parseNumber(v.price, this.data.decimalMark) as { value: number }).value,
       currency: v.currency.trim().toUpperCase(),
       source: v.source.trim(),
       observedOn: v.observedOn,

@@ -16,24 +16,30 @@ import { AgGridAngular } from 'ag-grid-angular';
 import type {
   CellValueChangedEvent,
   ColDef,
+  FilterModel,
   GetRowIdParams,
   GridApi,
   GridReadyEvent,
+  IDatasource,
   IErrorValidationParams,
+  IGetRowsParams,
+  IRowNode,
   RowSelectionOptions,
   SelectionChangedEvent,
+  SortModelItem,
   ValueFormatterParams,
 } from 'ag-grid-community';
 import { firstValueFrom } from 'rxjs';
-import type { PriceRow, PriceSeries } from '../../../../shared/api-types';
+import type { CoopSummary, PriceRow, PriceSeries } from '../../../../shared/api-types';
+import { NUMBER_FILTER_OPS, PRICE_SORT_COLUMNS, PRICE_TEXT_FILTERS, TEXT_FILTER_OPS, type PriceSortColumn } from '../../../../shared/price-query';
 import { ACCESS, roleAllows } from '../../core/access';
-import { errorMessage, errorStatus } from '../../core/api-error';
+import { errorMessage } from '../../core/api-error';
 import { AuthStore } from '../../core/auth-store';
 import { SettingsStore } from '../../core/settings-store';
 import { CautionNote } from '../../shared/caution-note';
 import { ConfirmDialog, type ConfirmDialogData } from '../../shared/confirm-dialog';
 import { DataDeskApi } from '../data-desk-api';
-import { gridTheme, numberEditing, safeCsvCell, spreadsheetSafe } from '../data-grid';
+import { gridTheme, numberEditing } from '../data-grid';
 import { ReferenceStore } from '../reference-store';
 import { PasteDialog, type PasteDialogData } from './paste-dialog';
 import { PriceChart, formatPrice } from './price-chart';
@@ -92,22 +98,28 @@ export class PricesPage {
   /** How the co-op writes decimals: the price cells show and read numbers that way. */
   protected readonly decimalMark = computed<DecimalMark>(() => this.#settings.settings()?.decimalMark ?? 'point');
 
-  // --- the price rows ---
-  protected readonly prices = httpResource<PriceRow[]>(() => '/api/prices');
-  /** The rows as shown: the server's list, then each saved edit in place. */
-  protected readonly rows = linkedSignal<PriceRow[]>(() => (this.prices.hasValue() ? this.prices.value() : []));
-  protected readonly problem = computed(() => (this.prices.error() ? errorMessage(this.prices.error()) : null));
+  // --- the price rows: read from the server block by block (AG Grid's infinite row model) ---
+  /** Rows the server reads per request; the grid keeps a few blocks around the visible ones. */
+  protected readonly blockSize = 100;
+  /** How many prices match what the grid is narrowed to (X-Total-Count); null until the first block. */
+  protected readonly total = signal<number | null>(null);
+  /** True while the grid is narrowed (search, items or a column condition). */
+  protected readonly narrowed = signal(false);
+  protected readonly loading = signal(false);
+  protected readonly problem = signal<string | null>(null);
   protected readonly gridItems = signal<number[]>([]);
   protected readonly quickFilter = signal('');
-  protected readonly shownRows = computed(() => {
-    const only = new Set(this.gridItems());
-    return only.size === 0 ? this.rows() : this.rows().filter((r) => only.has(r.itemId));
-  });
-  /** The seasons the stored prices span (a season opened ahead, without prices, is left out). */
+  /** The seasons with prices or records, from the co-op summary (a season opened ahead is left out). */
+  readonly #summary = httpResource<CoopSummary>(() => '/api/summary');
   protected readonly seasonRange = computed(() => {
-    const priced = new Set(this.rows().map((r) => r.seasonId));
-    const s = this.ref.seasons().filter((season) => priced.has(season.id));
-    return s.length ? `${s[0].label} – ${s[s.length - 1].label}` : '';
+    const s = this.#summary.hasValue() ? this.#summary.value().seasons : null;
+    return s?.first && s.last ? `${s.first} – ${s.last}` : '';
+  });
+  /** A new source whenever the search or the chosen items change: the grid then reads from the first row again. */
+  protected readonly datasource = computed<IDatasource>(() => {
+    const search = this.quickFilter().trim();
+    const items = this.gridItems();
+    return { getRows: (p) => void this.#getRows(p, search, items) };
   });
   protected readonly selectedCount = signal(0);
   /** What happened to the last edit, read out by screen readers. */
@@ -151,20 +163,21 @@ export class PricesPage {
   protected readonly theme = gridTheme;
   protected readonly getRowId = (p: GetRowIdParams<PriceRow>) => String(p.data.id);
   protected readonly rowSelection = computed<RowSelectionOptions | undefined>(() =>
-    this.canEdit() ? { mode: 'multiRow', checkboxes: true, headerCheckbox: true, enableClickSelection: false } : undefined,
+    this.canEdit() ? { mode: 'multiRow', checkboxes: true, headerCheckbox: false, enableClickSelection: false } : undefined,
   );
   protected readonly defaultColDef: ColDef<PriceRow> = {
     sortable: true,
     resizable: true,
     filter: 'agTextColumnFilter',
     editable: () => this.canEdit(),
+    // The server narrows: one condition per column, the comparisons it knows (shared/price-query.ts).
+    filterParams: { filterOptions: [...TEXT_FILTER_OPS], maxNumConditions: 1, buttons: ['reset'] },
   };
   protected readonly columns = computed<ColDef<PriceRow>[]>(() => {
     const ref = this.ref.lookups();
     const itemName = (id: unknown) => ref.itemById.get(id as number)?.name ?? `item ${id}`;
     const seasonLabel = (id: unknown) => ref.seasonById.get(id as number)?.label ?? `season ${id}`;
     const pointName = (id: unknown) => ref.deliveryPointById.get(id as number)?.name ?? `point ${id}`;
-    const startYear = (id: unknown) => ref.seasonById.get(id as number)?.startYear ?? 0;
     const validate = (field: PriceField) => ({
       getValidationErrors: (p: IErrorValidationParams<PriceRow>) => this.#validate(p, field),
     });
@@ -176,9 +189,6 @@ export class PricesPage {
         minWidth: 120,
         flex: 1,
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => itemName(p.value),
-        filterValueGetter: (p) => itemName(p.data?.itemId),
-        getQuickFilterText: (p) => `${itemName(p.value)} ${p.data.itemCode}`,
-        comparator: (a, b) => itemName(a).localeCompare(itemName(b)),
         cellEditor: 'agSelectCellEditor',
         cellEditorParams: { values: ref.items.map((i) => i.id), ...validate('itemId') },
       },
@@ -188,9 +198,6 @@ export class PricesPage {
         width: 125,
         sort: 'desc',
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => seasonLabel(p.value),
-        filterValueGetter: (p) => seasonLabel(p.data?.seasonId),
-        getQuickFilterText: (p) => seasonLabel(p.value),
-        comparator: (a, b) => startYear(a) - startYear(b),
         cellEditor: 'agSelectCellEditor',
         cellEditorParams: { values: [...ref.seasons].reverse().map((s) => s.id), ...validate('seasonId') },
       },
@@ -200,9 +207,6 @@ export class PricesPage {
         minWidth: 130,
         flex: 1,
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => pointName(p.value),
-        filterValueGetter: (p) => pointName(p.data?.deliveryPointId),
-        getQuickFilterText: (p) => pointName(p.value),
-        comparator: (a, b) => pointName(a).localeCompare(pointName(b)),
         cellEditor: 'agSelectCellEditor',
         cellEditorParams: { values: ref.deliveryPoints.map((d) => d.id), ...validate('deliveryPointId') },
       },
@@ -212,6 +216,17 @@ export class PricesPage {
         type: 'numericColumn',
         width: 105,
         filter: 'agNumberColumnFilter',
+        filterParams: {
+          filterOptions: [...NUMBER_FILTER_OPS],
+          maxNumConditions: 1,
+          buttons: ['reset'],
+          // typed in the co-op's convention, like the cells
+          allowedCharPattern: '\\d\\-,. ',
+          numberParser: (text: string | null) => {
+            const r = text && text.trim() ? parseNumber(text, mark) : null;
+            return r?.ok ? r.value : null;
+          },
+        },
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => (typeof p.value === 'number' ? inMark(formatPrice(p.value), mark) : ''),
         ...numberEditing<PriceRow>(mark, validate('price').getValidationErrors),
       },
@@ -221,6 +236,7 @@ export class PricesPage {
         width: 95,
         editable: false,
         filter: false,
+        sortable: false,
         valueGetter: (p) => (p.data ? `${p.data.currency}/${ref.itemById.get(p.data.itemId)?.unit ?? p.data.unit}` : ''),
         headerTooltip: 'Currency and the unit the price is quoted per (the item’s unit)',
       },
@@ -228,7 +244,6 @@ export class PricesPage {
         field: 'currency',
         headerName: PRICE_FIELD_LABEL.currency,
         width: 95,
-        filter: false,
         cellEditor: 'agTextCellEditor',
         cellEditorParams: { maxLength: 3, ...validate('currency') },
       },
@@ -256,6 +271,41 @@ export class PricesPage {
     this.#grid.set(event.api);
   }
 
+  /** Reads one block for the grid: its window, its sort and its column conditions, sent to the server. */
+  async #getRows(p: IGetRowsParams, search: string, items: number[]): Promise<void> {
+    const params: Record<string, string | number> = { offset: p.startRow, limit: p.endRow - p.startRow, ...queryOf(p.sortModel, p.filterModel) };
+    if (search) params['q'] = search;
+    if (items.length) params['items'] = items.join(',');
+    this.narrowed.set(Boolean(search || items.length || Object.keys(p.filterModel ?? {}).length));
+    this.loading.set(true);
+    try {
+      const { rows, total } = await this.#api.pricePage(params);
+      this.total.set(total);
+      this.problem.set(null);
+      p.successCallback(rows, total);
+    } catch (error) {
+      this.problem.set(errorMessage(error));
+      p.failCallback();
+    } finally {
+      this.loading.set(false);
+    }
+  }
+
+  /** The rows the grid holds now (its loaded blocks): what the dialogs check repeated prices against. */
+  #loadedRows(): PriceRow[] {
+    const out: PriceRow[] = [];
+    this.#grid()?.forEachNode((n: IRowNode<PriceRow>) => {
+      if (n.data) out.push(n.data);
+    });
+    return out;
+  }
+
+  /** Reads the blocks again (after rows were added or deleted). */
+  protected reload(): void {
+    this.problem.set(null);
+    this.#grid()?.refreshInfiniteCache();
+  }
+
   protected selectionChanged(event: SelectionChangedEvent<PriceRow>): void {
     this.selectedCount.set(event.api.getSelectedRows().length);
   }
@@ -269,7 +319,7 @@ export class PricesPage {
       if (parsed && !parsed.ok) problems = [parsed.message];
       value = parsed?.ok ? parsed.value : null;
     }
-    problems ??= priceEditProblems(row, field, value, this.rows());
+    problems ??= priceEditProblems(row, field, value, this.#loadedRows());
     if (problems) this.editStatus.set({ ok: false, text: `${describe(row)}, ${PRICE_FIELD_LABEL[field].toLowerCase()}: ${problems.join('; ')}` });
     else if (this.editStatus()?.ok === false) this.editStatus.set(null);
     return problems;
@@ -284,27 +334,24 @@ export class PricesPage {
     try {
       const outcome = await savePriceEdit(this.#api, this.#dialog, original, body);
       if ('kept' in outcome) {
-        this.rows.update((rows) => rows.map((r) => (r.id === original.id ? outcome.kept : r)));
-        event.api.applyTransaction({ update: [outcome.kept] });
+        event.node.setData(outcome.kept);
         this.editStatus.set({ ok: false, text: `${describe(original)}, ${PRICE_FIELD_LABEL[field].toLowerCase()}: ${outcome.reason}.` });
         return;
       }
       const saved = outcome.saved;
-      this.rows.update((rows) => rows.map((r) => (r.id === saved.id ? saved : r)));
-      event.api.applyTransaction({ update: [saved] });
+      event.node.setData(saved);
       this.series.reload();
       const was = field === 'price' ? ` (was ${formatPrice(original.price)})` : '';
       const shown = field === 'price' ? `${formatPrice(saved.price)} ${saved.currency}/${saved.unit}` : String(saved[field]);
       this.editStatus.set({ ok: true, text: `Saved: ${describe(saved)}, ${PRICE_FIELD_LABEL[field].toLowerCase()} ${shown}${was}.` });
     } catch (error) {
-      this.rows.update((rows) => rows.map((r) => (r.id === original.id ? original : r)));
-      event.api.applyTransaction({ update: [original] });
+      event.node.setData(original);
       this.editStatus.set({ ok: false, text: `Not saved: ${describe(original)}, ${PRICE_FIELD_LABEL[field].toLowerCase()}: ${errorMessage(error)}` });
     }
   }
 
   protected addPrice(): void {
-    const data: PriceDialogData = { lookups: this.ref.lookups(), currency: this.currency(), existing: this.rows() };
+    const data: PriceDialogData = { lookups: this.ref.lookups(), currency: this.currency(), decimalMark: this.decimalMark(), existing: this.#loadedRows() };
     this.#dialog
       .open<PriceDialog, PriceDialogData, PriceRow[]>(PriceDialog, { data, autoFocus: 'first-tabbable' })
       .afterClosed()
@@ -312,7 +359,7 @@ export class PricesPage {
   }
 
   protected pasteRows(text = ''): void {
-    const data: PasteDialogData = { text, lookups: this.ref.lookups(), currency: this.currency(), decimalMark: this.decimalMark(), existing: this.rows() };
+    const data: PasteDialogData = { text, lookups: this.ref.lookups(), currency: this.currency(), decimalMark: this.decimalMark(), existing: this.#loadedRows() };
     this.#dialog
       .open<PasteDialog, PasteDialogData, PriceRow[]>(PasteDialog, { data, autoFocus: 'first-tabbable', maxWidth: '96vw' })
       .afterClosed()
@@ -332,7 +379,7 @@ export class PricesPage {
 
   #added(created: PriceRow[] | undefined): void {
     if (!created?.length) return;
-    this.rows.update((rows) => [...rows, ...created]);
+    this.reload();
     this.series.reload();
     this.#snackBar.open(created.length === 1 ? `Price added: ${describe(created[0])}.` : `${created.length} prices added.`, 'OK');
   }
@@ -356,65 +403,46 @@ export class PricesPage {
       this.#snackBar.open(`Nothing deleted: ${errorMessage(error)}`, 'Dismiss');
       return;
     }
-    const gone = new Set(chosen.map((r) => r.id));
-    this.rows.update((rows) => rows.filter((r) => !gone.has(r.id)));
+    grid?.deselectAll();
+    this.reload();
     this.series.reload();
     this.selectedCount.set(0);
     this.#snackBar.open(`${chosen.length} ${chosen.length === 1 ? 'price' : 'prices'} deleted.`, 'OK');
   }
 
+  /** The whole table as a file, streamed by the server (the grid holds only the blocks in view). */
   protected async download(format: 'csv' | 'xlsx'): Promise<void> {
     try {
       const name = await this.#api.download(`/api/prices/export?format=${format}`, `netput-prices.${format}`);
       this.#snackBar.open(`Downloaded ${name}.`, 'OK');
     } catch (error) {
-      if (errorStatus(error) === 404 && format === 'csv') {
-        // The server has no export route yet: the grid writes the import's layout itself, formula-safe.
-        this.#exportGridCsv();
-        return;
-      }
-      this.#snackBar.open(errorStatus(error) === 404 ? 'This server does not offer XLSX exports of prices yet.' : errorMessage(error), 'Dismiss');
+      this.#snackBar.open(errorMessage(error), 'Dismiss');
     }
-  }
-
-  /** The rows shown, as CSV in the import's own columns (item code, season label, ...), so the file maps itself when uploaded again. */
-  #exportGridCsv(): void {
-    const ref = this.ref.lookups();
-    const headers: Record<string, string> = {
-      itemId: 'item',
-      seasonId: 'season',
-      deliveryPointId: 'delivery_point',
-      price: 'price',
-      per: 'unit',
-      currency: 'currency',
-      source: 'source',
-      observedOn: 'observed_on',
-    };
-    this.#grid()?.exportDataAsCsv({
-      fileName: 'netput-prices.csv',
-      columnKeys: Object.keys(headers),
-      processHeaderCallback: (p) => headers[p.column.getColId()] ?? p.column.getColId(),
-      processCellCallback: (p) => {
-        const row = p.node?.data;
-        switch (p.column.getColId()) {
-          case 'itemId':
-            return ref.itemById.get(p.value)?.code ?? String(p.value);
-          case 'seasonId':
-            return ref.seasonById.get(p.value)?.label ?? String(p.value);
-          case 'deliveryPointId':
-            return String(spreadsheetSafe(ref.deliveryPointById.get(p.value)?.name ?? p.value));
-          case 'per':
-            return row ? (ref.itemById.get(row.itemId)?.unit ?? row.unit) : '';
-          default:
-            return safeCsvCell(p);
-        }
-      },
-    });
   }
 
   protected setChartItems(ids: number[]): void {
     this.chartItems.set(ids.slice(0, MAX_CHART_ITEMS));
   }
+}
+
+/** The grid's sort and column conditions as GET /api/prices parameters (shared/price-query.ts). */
+export function queryOf(sortModel: readonly SortModelItem[], filterModel: FilterModel | null): Record<string, string> {
+  const out: Record<string, string> = {};
+  const sort = sortModel[0];
+  if (sort && (PRICE_SORT_COLUMNS as readonly string[]).includes(sort.colId)) {
+    out['sort'] = sort.colId as PriceSortColumn;
+    out['dir'] = sort.sort;
+  }
+  for (const [colId, model] of Object.entries(filterModel ?? {})) {
+    const m = model as { filterType?: string; type?: string; filter?: string | number | null; filterTo?: number | null };
+    if (!m?.type || m.filter === null || m.filter === undefined || m.filter === '') continue;
+    if (colId === 'price' && m.filterType === 'number') {
+      out['price'] = m.type === 'inRange' ? `inRange:${m.filter}:${m.filterTo ?? m.filter}` : `${m.type}:${m.filter}`;
+    } else if (colId in PRICE_TEXT_FILTERS) {
+      out[PRICE_TEXT_FILTERS[colId as keyof typeof PRICE_TEXT_FILTERS]] = `${m.type}:${m.filter}`;
+    }
+  }
+  return out;
 }
 
 function describe(row: PriceRow): string {
