@@ -77,3 +77,42 @@ function slipHint(ratio: number, unit: string): string | null {
   }
   return null;
 }
+
+// --- farm records ---------------------------------------------------------------------------------
+
+/** What a farm has recorded of an item per hectare of its land, over its own seasons. */
+export interface QuantityHistory {
+  /** Median of quantity ÷ land (ha) over the seasons with both. */
+  perHa: number;
+  /** Seasons it is taken over. */
+  seasons: number;
+}
+
+/** The farm's history of an item from its seasons' quantities and land (seasons without land, or with 0 ha, left out). */
+export function quantityHistory(points: readonly { quantity: number; landHa: number | null | undefined }[]): QuantityHistory | null {
+  const perHa = points.filter((p) => p.landHa && p.landHa > 0 && Number.isFinite(p.quantity)).map((p) => p.quantity / p.landHa!);
+  if (perHa.length === 0) return null;
+  perHa.sort((a, b) => a - b);
+  const mid = perHa.length >> 1;
+  return { perHa: perHa.length % 2 ? perHa[mid] : (perHa[mid - 1] + perHa[mid]) / 2, seasons: perHa.length };
+}
+
+/**
+ * Null when a farm's quantity of an item is plausible against the farm's own history per hectare
+ * (or there is too little history, no land for the season, or the quantity is 0: a farm may skip a
+ * crop), else a sentence naming the quantity, the farm's usual rate and the likely slip. The same
+ * bounds as for prices (PLAUSIBLE_FACTOR, at least MIN_HISTORY seasons): a farm's own yield or input
+ * rate per hectare seldom moves threefold from one season to the next (common practice, no source).
+ */
+export function implausibleQuantity(quantity: number, landHa: number | null | undefined, item: PriceItemRef, farmCode: string, history: QuantityHistory | null | undefined): string | null {
+  if (!history || history.seasons < MIN_HISTORY || !(history.perHa > 0) || !(quantity > 0) || !landHa || !(landHa > 0)) return null;
+  const perHa = quantity / landHa;
+  const ratio = perHa / history.perHa;
+  if (ratio <= PLAUSIBLE_FACTOR && ratio >= 1 / PLAUSIBLE_FACTOR) return null;
+  const times = (x: number) => x.toLocaleString('en-GB', { maximumSignificantDigits: 2 });
+  const base =
+    `${fmt(quantity)} ${item.unit} of ${item.name.toLowerCase()} on ${fmt(landHa)} ha is ${fmt(perHa)} ${item.unit}/ha, ` +
+    `${ratio > 1 ? `about ${times(ratio)} times` : `about 1/${times(1 / ratio)} of`} ${farmCode}'s usual ${fmt(history.perHa)} ${item.unit}/ha (median of ${history.seasons} seasons)`;
+  const hint = slipHint(ratio, item.unit);
+  return `${base}${hint ? `; ${hint}` : ''}`;
+}

@@ -5,7 +5,7 @@
 import type { ImportFormat, ImportKind, ImportReport, TableName } from '../../shared/import-types.js';
 import type { BuiltWrites } from './packed-rows.js';
 import type { DecimalMark } from '../../shared/cell-parsers.js';
-import type { SeasonPrices } from '../../shared/plausibility.js';
+import type { QuantityHistory, SeasonPrices } from '../../shared/plausibility.js';
 
 export { IMPORT_KINDS, IMPORT_STATUSES } from '../../shared/import-types.js';
 export type {
@@ -37,6 +37,10 @@ export interface Lookups {
   decimalMark: DecimalMark;
   /** Each item's median price season by season, by item id, for the plausibility warnings. */
   priceHistory?: Record<number, SeasonPrices>;
+  /** Each farm's quantity per hectare of each item over its own seasons, keyed `farmId|itemId`, for the records' plausibility warnings. */
+  recordHistory?: Record<string, QuantityHistory>;
+  /** Each farm's stored land (ha) by `farmId|seasonId`, for records whose row gives none. */
+  land?: Record<string, number>;
 }
 
 export interface ValidationOptions {

@@ -377,3 +377,33 @@ describe('property: malformed text', () => {
     );
   });
 });
+
+describe('farm records far from the farm’s own history per hectare (issue 15)', () => {
+  // F01 has harvested about 8 t of wheat per hectare (invented history: 7.5, 8 and 8.5 t/ha over three seasons).
+  const history: Lookups = {
+    ...lookups,
+    recordHistory: { [`${id.farm('F01')}|${id.item('wheat')}`]: { perHa: 8, seasons: 3 }, [`${id.farm('F02')}|${id.item('wheat')}`]: { perHa: 8, seasons: 2 } },
+    land: { [`${id.farm('F01')}|${id.season('2025/26')}`]: 150 },
+  };
+  const runRecords = (text: string) => validateImport(Buffer.from(text), { fileName: 'records.csv', kind: 'records' }, history);
+
+  it('warns (an acceptable warning row) about 12,000 t on 150 ha and 120 t, not about 1,250 t; too short a history is not judged', async () => {
+    const out = await runRecords(
+      ['farm,season,item,quantity,unit,land_ha', 'F01,2025/26,wheat,12000,t,150', 'F01,2024/25,wheat,120,t,150', 'F01,2023/24,wheat,1250,t,150', 'F02,2025/26,wheat,12000,t,150'].join('\n'),
+    );
+    expect(out.errors).toEqual([]);
+    expect(all(out.writes.records)).toHaveLength(4);
+    expect(out.warningCount).toBe(2);
+    expect(out.warnings).toEqual([
+      { row: 2, column: 'quantity', message: "12,000 t of wheat on 150 ha is 80 t/ha, about 10 times F01's usual 8 t/ha (median of 3 seasons); is the decimal mark in the right place?" },
+      { row: 3, column: 'quantity', message: "120 t of wheat on 150 ha is 0.8 t/ha, about 1/10 of F01's usual 8 t/ha (median of 3 seasons); is the decimal mark in the right place?" },
+    ]);
+  });
+
+  it('takes the land from the database when the row gives none', async () => {
+    const out = await runRecords('farm,season,item,quantity\nF01,2025/26,wheat,3700\nF01,2024/25,wheat,3700\n');
+    // 2025/26 has 150 ha stored (24.7 t/ha, about 3.1 times); 2024/25 has no land, so it is not judged.
+    expect(out.warnings.map((w) => [w.row, w.column])).toEqual([[2, 'quantity']]);
+    expect(out.warnings[0].message).toMatch(/^3,700 t of wheat on 150 ha is 24\.67 t\/ha, about 3\.1 times F01's usual 8 t\/ha/);
+  });
+});

@@ -29,7 +29,7 @@ import { ImportFileError } from './import-file-error.js';
 import { IMPORT_LIMITS, type ImportLimits } from './import-limits.js';
 import { columnLetter, FACTOR_NAME, fieldsFor, fixedFactorName, normalHeader, suggestMapping, type FieldDef } from './import-fields.js';
 import { markName, parseCurrency, parseIsoDate, parseNumber, parseSeason, quote, unescapeFormula, type DecimalMark, type Parsed, type SeasonRef } from '../../shared/cell-parsers.js';
-import { historyAt, implausiblePrice } from '../../shared/plausibility.js';
+import { historyAt, implausiblePrice, implausibleQuantity } from '../../shared/plausibility.js';
 import { headerParts, priceUnitParts, sameUnit } from '../../shared/unit-names.js';
 import { readTable, type TableMeta, type TableSink } from './table-reader.js';
 import { newBuiltWrites } from './packed-rows.js';
@@ -531,6 +531,7 @@ class Validator implements TableSink {
     if (this.rowHasError || repeated || !farm || !season) return;
     if (item && quantity !== null) {
       this.writes.records.push({ row: n, farmId: farm.id, seasonId: season.id, itemId: item.id, quantity });
+      this.checkQuantity(n, farm, season.id, item, quantity, land);
     }
     if (land !== null) this.addFactor(n, farm.id, season.id, 'land_ha', land, this.columnOf('land_ha'));
   }
@@ -589,6 +590,13 @@ class Validator implements TableSink {
     const repeated = reference !== null && !this.firstTime(`contract|${reference.toLowerCase()}`, n, 'contract number');
     if (this.rowHasError || repeated || reference === null || !farm || !season || !item || quantity === null || price === null || !from || !to || !status) return;
     this.writes.contracts.push({ row: n, reference, farmId: farm.id, seasonId: season.id, itemId: item.id, quantity, priceCents: priceToCents(price), currency, deliveryFrom: from, deliveryTo: to, status });
+  }
+
+  /** A warning (accepted before the commit) when the quantity is far from the farm's own history per hectare. */
+  private checkQuantity(n: number, farm: { id: number; code: string }, seasonId: number, item: Item, quantity: number, rowLand: number | null, col?: number) {
+    const land = rowLand ?? this.lookups.land?.[`${farm.id}|${seasonId}`] ?? null;
+    const doubt = implausibleQuantity(quantity, land, item, farm.code, this.lookups.recordHistory?.[`${farm.id}|${item.id}`]);
+    if (doubt) this.warning(n, col === undefined ? this.columnOf('quantity') : this.columns[col], doubt);
   }
 
   private addFactor(n: number, farmId: number, seasonId: number, factor: string, value: number, column: string) {
@@ -651,7 +659,11 @@ class Validator implements TableSink {
       } else this.priceSums.set(key, { itemId: p.item.id, seasonId: season.id, sum: p.value, n: 1, min: p.value, max: p.value, row: n });
     }
     if (farm) {
-      for (const q of quantities) this.writes.records.push({ row: n, farmId: farm.id, seasonId: season.id, itemId: q.item.id, quantity: q.value } satisfies RecordWrite);
+      const land = fixed.find((x) => x.factor === 'land_ha')?.value ?? null;
+      for (const q of quantities) {
+        this.writes.records.push({ row: n, farmId: farm.id, seasonId: season.id, itemId: q.item.id, quantity: q.value } satisfies RecordWrite);
+        this.checkQuantity(n, farm, season.id, q.item, q.value, land, this.wide!.qtyCols.find((c) => c.item.id === q.item.id)?.col);
+      }
       for (const x of fixed) this.addFactor(n, farm.id, season.id, x.factor, x.value, x.column);
     }
   }

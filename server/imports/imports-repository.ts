@@ -4,6 +4,7 @@ import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { contracts, deliveryPoints, farmRecords, farms, farmSeasonFactors, imports, items, priceObservations, seasons, users } from '../db/schema/index.js';
 import { getSettings } from '../settings/settings-repository.js';
+import { recordHistories } from '../records/record-history.js';
 import { priceHistories } from '../prices/price-history.js';
 import type { CommitCounts, ContractWrite, FactorWrite, Lookups, OnExisting, PriceWrite, RecordWrite, TableCounts, TableName } from './import-types.js';
 import { forEachRow, type RowSource, type WriteSet } from './packed-rows.js';
@@ -25,6 +26,7 @@ export async function loadLookups(db: Db): Promise<Lookups> {
     getSettings(db),
   ]);
   const history = await priceHistories(db);
+  const records = await recordHistories(db);
   return {
     items: itemRows,
     seasons: seasonRows,
@@ -33,6 +35,8 @@ export async function loadLookups(db: Db): Promise<Lookups> {
     currency: settings.currency,
     decimalMark: settings.decimalMark,
     priceHistory: Object.fromEntries(history),
+    recordHistory: records.history,
+    land: records.land,
   };
 }
 

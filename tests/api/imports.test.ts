@@ -343,7 +343,10 @@ describe('exports re-import cleanly', () => {
     const records = await recordExportRows(t.database.db, { role: 'planner', farmId: null });
     const res = await upload(planner, 'records', toCsv(records, RECORD_COLUMNS), 'records.csv');
     expect(res.body).toMatchObject({ errorCount: 0, toWrite: { records: 2800, factors: 400 }, existingRows: 3200 });
-    const done = await commit(res.body.id, 'update');
+    // Quantities earlier tests stored far from their farm's history per hectare come back as
+    // warnings (accepted here: the file is the database's own content).
+    expect(res.body.warnings.every((w: { column: string; message: string }) => w.column === 'quantity' && / t\/ha|\/ha, about /.test(w.message))).toBe(true);
+    const done = await commit(res.body.id, 'update', true);
     expect(done.body.counts).toEqual({ inserted: 0, updated: 3200, skipped: 0 });
     expect(await recordExportRows(t.database.db, { role: 'planner', farmId: null })).toEqual(records);
   });

@@ -48,6 +48,20 @@ const FIXED = [
 /** The rows of the prices grid (AG Grid 36 draws each row once when no column is pinned). */
 const PRICE_ROWS = 'ag-grid-angular[aria-label="Price observations"] .ag-row';
 
+/**
+ * Waits until the prices grid shows exactly `n` rows with their data: the grid reads its rows from
+ * the server block by block (infinite row model), and a row is drawn empty while its block loads.
+ */
+async function shownPriceRows(page: Page, n: number): Promise<void> {
+  await page.waitForFunction(
+    ({ rows, n }) => {
+      const drawn = [...document.querySelectorAll(rows)];
+      return drawn.length === n && drawn.every((r) => (r.querySelector('[col-id="price"]')?.textContent ?? '').trim() !== '');
+    },
+    { rows: PRICE_ROWS, n },
+  );
+}
+
 /** The `d` of every path the price chart's SVG draws, joined: changes whenever a line moves. */
 async function chartPaths(page: Page): Promise<string> {
   return page.locator('np-price-chart svg path').evaluateAll((paths) => paths.map((p) => p.getAttribute('d') ?? '').join('|'));
@@ -152,7 +166,7 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
   const priceCell = row.locator('[col-id="price"]');
   await check('the grid finds the imported price, with its unit, currency, source and date', async () => {
     await page.getByLabel('Search prices').fill('Wheat Larkfield 2024-08-15');
-    await page.waitForFunction((rows) => document.querySelectorAll(rows).length === 1, PRICE_ROWS);
+    await shownPriceRows(page, 1);
     assertEqual((await priceCell.innerText()).trim(), '228.40', 'price');
     assertEqual((await row.locator('[col-id="per"]').innerText()).trim(), 'EUR/t', 'unit and currency');
     assertEqual((await row.locator('[col-id="source"]').innerText()).trim(), 'Flow check bid sheet', 'source');
@@ -256,7 +270,7 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     await dialog.getByRole('button', { name: 'Add 2 prices' }).click();
     await page.getByText('2 prices added.').waitFor();
     await page.getByLabel('Search prices').fill('Flow paste check');
-    await page.waitForFunction((rows) => document.querySelectorAll(rows).length === 2, PRICE_ROWS);
+    await shownPriceRows(page, 2);
   });
 
   await check('the two pasted rows are chosen and deleted together, after a confirmation', async () => {
@@ -266,7 +280,7 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     await page.getByRole('button', { name: 'Delete 2 selected' }).click();
     await page.getByRole('dialog').getByRole('button', { name: 'Delete 2 prices' }).click();
     await page.getByText('2 prices deleted.').waitFor();
-    await page.waitForFunction((rows) => document.querySelectorAll(rows).length === 0, PRICE_ROWS);
+    await shownPriceRows(page, 0);
     await page.getByLabel('Search prices').fill('');
   });
 
