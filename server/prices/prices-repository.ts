@@ -153,29 +153,34 @@ export async function countPrices(db: Db, f: PriceFilter): Promise<number> {
 
 /**
  * The ids of every price the filter matches, in the table's order, with each one's value of the
- * `key` column when one is named: read one season at a time (oldest first, through the season
- * index), so no statement reads or sorts the whole table (PGlite runs each statement on the
- * request thread).
+ * `key` column when one is named: read one season and item at a time (seasons oldest first, items
+ * by id) through the unique index on (item, season, point, date), so no statement reads or sorts
+ * more than one item's season (PGlite runs each statement on the request thread).
  */
 export async function priceIdsInTableOrder(db: Db, f: PriceFilter, key?: PriceSortColumn): Promise<{ ids: number[]; keys: (number | string)[] }> {
   const seasonRows = await db.select({ id: seasons.id }).from(seasons).orderBy(asc(seasons.startYear), asc(seasons.id));
+  const itemRows = await db.select({ id: items.id }).from(items).orderBy(asc(items.id));
   const onlySeasons = f.seasonIds?.length ? new Set(f.seasonIds) : null;
+  const onlyItems = f.itemIds?.length ? new Set(f.itemIds) : null;
   const ids: number[] = [];
   const keys: (number | string)[] = [];
   const keyColumn = sql<number | string>`${key ? SORT_KEY[key] : priceObservations.id}`;
   for (const s of seasonRows) {
     if (onlySeasons && !onlySeasons.has(s.id)) continue;
-    const rows = await db
-      .select({ id: priceObservations.id, key: keyColumn })
-      .from(priceObservations)
-      .innerJoin(items, eq(items.id, priceObservations.itemId))
-      .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
-      .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
-      .where(and(eq(priceObservations.seasonId, s.id), where(f)))
-      .orderBy(asc(items.id), asc(deliveryPoints.name), asc(priceObservations.observedOn), asc(priceObservations.id));
-    for (const r of rows) {
-      ids.push(r.id as number);
-      keys.push(r.key);
+    for (const it of itemRows) {
+      if (onlyItems && !onlyItems.has(it.id)) continue;
+      const rows = await db
+        .select({ id: priceObservations.id, key: keyColumn })
+        .from(priceObservations)
+        .innerJoin(items, eq(items.id, priceObservations.itemId))
+        .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
+        .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
+        .where(and(eq(priceObservations.itemId, it.id), eq(priceObservations.seasonId, s.id), where(f)))
+        .orderBy(asc(deliveryPoints.name), asc(priceObservations.observedOn), asc(priceObservations.id));
+      for (const r of rows) {
+        ids.push(r.id as number);
+        keys.push(r.key);
+      }
     }
   }
   return { ids, keys };
