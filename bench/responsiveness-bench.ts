@@ -99,6 +99,21 @@ async function probeDuring(url: string, work: () => Promise<unknown>): Promise<F
   return figures(latencies, failures, performance.now() - started);
 }
 
+/**
+ * Runs a request again when the network failed before any answer: the server closes keep-alive
+ * connections idle for 5 s, and a request sent on one just as it closes fails with EPIPE/ECONNRESET.
+ */
+async function retried<T>(send: () => Promise<T>): Promise<T> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await send();
+    } catch (err) {
+      if (attempt >= 4 || !(err instanceof TypeError)) throw err;
+      await new Promise((r) => setTimeout(r, 200));
+    }
+  }
+}
+
 async function main() {
   const loadBefore = load();
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'netput-responsiveness-'));
@@ -109,17 +124,17 @@ async function main() {
     const login = await planner.request('POST', '/api/auth/login', { email: 'planner@example.org', password: 'netput-demo' });
     if (login.status !== 200) throw new Error(`sign-in failed: ${login.status}`);
     const file = priceCsv(ROWS);
-    const staged = await planner.upload('/api/imports', { kind: 'prices' }, { name: 'bench-prices.csv', bytes: file });
+    const staged = await retried(() => planner.upload('/api/imports', { kind: 'prices' }, { name: 'bench-prices.csv', bytes: file }));
     if (staged.status !== 201 || staged.body.errorCount) throw new Error(`upload failed: ${staged.status} ${JSON.stringify(staged.body).slice(0, 500)}`);
     const id = staged.body.id as number;
 
     let commitMs = 0;
     const duringCommit = await probeDuring(server.url, async () => {
       const t0 = performance.now();
-      const started = await planner.request('POST', `/api/imports/${id}/commit`, { onExisting: 'skip', acceptWarnings: true });
+      const started = await retried(() => planner.request('POST', `/api/imports/${id}/commit`, { onExisting: 'skip', acceptWarnings: true }));
       if (started.status !== 202) throw new Error(`commit refused: ${started.status} ${JSON.stringify(started.body)}`);
       for (;;) {
-        const res = await planner.request('GET', `/api/imports/${id}`);
+        const res = await retried(() => planner.request('GET', `/api/imports/${id}`));
         if (res.body.status === 'committed') break;
         if (res.body.status !== 'committing') throw new Error(`commit ended ${res.body.status}: ${res.body.failure}`);
         await new Promise((r) => setTimeout(r, 100));
@@ -128,12 +143,17 @@ async function main() {
     });
 
     // The second import (not measured) brings the table to its largest size.
-    const more = await planner.upload('/api/imports', { kind: 'prices' }, { name: 'bench-more-prices.csv', bytes: priceCsv(MORE_ROWS, ROWS) });
+    const moreFile = priceCsv(MORE_ROWS, ROWS);
+    const more = await retried(() => planner.upload('/api/imports', { kind: 'prices' }, { name: 'bench-more-prices.csv', bytes: moreFile }));
     if (more.status !== 201 || more.body.errorCount) throw new Error(`second upload failed: ${more.status} ${JSON.stringify(more.body).slice(0, 500)}`);
-    const moreStarted = await planner.request('POST', `/api/imports/${more.body.id}/commit`, { onExisting: 'skip', acceptWarnings: true });
+    const moreStarted = await retried(() => planner.request('POST', `/api/imports/${more.body.id}/commit`, { onExisting: 'skip', acceptWarnings: true }));
     if (moreStarted.status !== 202) throw new Error(`second commit refused: ${moreStarted.status}`);
-    for (;;) {
-      const res = await planner.request('GET', `/api/imports/${more.body.id}`);
+    for (let resets = 0; ; ) {
+      // A reused keep-alive connection may be reset between polls; ask again on a fresh one.
+      const res = await planner.request('GET', `/api/imports/${more.body.id}`).catch((err) => {
+        if (++resets > 5) throw err;
+        return { status: 0, body: { status: 'committing' } } as Awaited<ReturnType<typeof planner.request>>;
+      });
       if (res.body.status === 'committed') break;
       if (res.body.status !== 'committing') throw new Error(`second commit ended ${res.body.status}: ${res.body.failure}`);
       await new Promise((r) => setTimeout(r, 200));
