@@ -7,28 +7,28 @@ import { MatButton } from '@angular/material/button';
 import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
-import { Router, RouterLink } from '@angular/router';
+import { Router } from '@angular/router';
 import { map } from 'rxjs';
 import { errorMessage, errorStatus } from '../core/api-error';
-import { ExpectationsTable } from '../outlook/expectations-table';
 import { FanChart, fanInputFor } from '../outlook/fan-chart';
 import { OutlookCautions } from '../outlook/outlook-cautions';
 import { formatDate, formatQuantity, formatShare, landSentence } from '../outlook/outlook-format';
 import type { MemberVersion, MemberVersionRow } from '../outlook/outlook-api-types';
-import { SourceFacts } from '../outlook/source-facts';
 import { QuantityCards } from './quantity-cards';
 import { PortalFertiliser } from './portal-fertiliser';
 import { inItemOrder, PortalPrices } from './portal-prices';
+import { PortalSource } from './portal-source';
 
 /**
  * `/my-farm/outlook`: the member's portal. The published outlook (co-op part) and the member's own
  * farm only; the server takes the farm from the session. A picker opens earlier versions.
+ * Each section reads one part of the version; the self-contained ones are components of their own
+ * (np-portal-fertiliser, np-portal-prices, np-portal-source): a new section (contracts, bookings)
+ * is added the same way, as a component in a `<section class="block">` of the template.
  */
 @Component({
   selector: 'np-portal-outlook',
-  imports: [
-    MyContractsSection,
-    RouterLink, MatButton, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, ExpectationsTable, FanChart, OutlookCautions, QuantityCards, SourceFacts, PortalFertiliser, PortalPrices],
+  imports: [MyContractsSection, MatButton, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, FanChart, OutlookCautions, QuantityCards, PortalFertiliser, PortalPrices, PortalSource],
   templateUrl: './portal-outlook.html',
   styleUrl: './portal-outlook.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
