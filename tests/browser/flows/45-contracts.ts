@@ -1,0 +1,120 @@
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import type { Page } from 'playwright-core';
+import type { Harness } from '../harness.js';
+import { assert, check, shot, signIn, signOut, waitForDemoPrepared } from '../harness.js';
+
+/** The evaluation runs 2,000 draws for each contracting farm in a worker thread. */
+const EVALUATE_TIMEOUT_MS = 180_000;
+
+async function bothWidths(page: Page, name: string): Promise<void> {
+  await shot(page, `${name}-1280`);
+  await page.setViewportSize({ width: 390, height: 844 });
+  await page.waitForTimeout(300);
+  await shot(page, `${name}-390`);
+  await page.setViewportSize({ width: 1280, height: 860 });
+}
+
+/**
+ * Issue 19: a planner records a delivery contract in the form and more from a file, evaluates the
+ * season's contracts on the outlook and reads the margin per tonne; the treasurer compares the
+ * contract-based demand with the outlook's in the budget; a member reads their own contract.
+ */
+export default async function contracts({ base, page }: Harness): Promise<void> {
+  const dir = mkdtempSync(join(tmpdir(), 'netput-contracts-'));
+  const file = join(dir, 'contracts-2026.csv');
+  writeFileSync(file, 'contract number,farm,season,item,quantity (t),price (EUR/t),first delivery month,last delivery month,status\nLG-2026-201,F06,2026/27,wheat,900,214.50,2026-08,2026-10,signed\nLG-2026-202,F08,2026/27,canola,250,455,2026-08,2026-09,offered\n');
+  try {
+    if (!(await check('the planner signs in', () => signIn(page, base, 'planner@example.org')))) return;
+    await check('the demo is prepared', async () => {
+      const said = await waitForDemoPrepared(page);
+      assert(said === 'the demo is prepared', said);
+    });
+
+    await check('the planner records a contract in the form and finds it in the grid', async () => {
+      await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Contracts' }).click();
+      await page.waitForURL(/\/contracts$/);
+      await page.getByRole('heading', { level: 1, name: 'Delivery contracts' }).waitFor();
+      await page.getByRole('button', { name: 'Record a contract' }).click();
+      const dialog = page.getByRole('dialog');
+      await dialog.getByLabel('Contract number').fill('LG-2026-100');
+      await dialog.getByRole('combobox', { name: 'Farm' }).click();
+      await page.getByRole('option', { name: /^F04 · / }).click();
+      await dialog.getByLabel('Quantity').fill('600');
+      await dialog.getByLabel('Contract price').fill('205');
+      await dialog.getByLabel('First delivery month').fill('2026-08');
+      await dialog.getByLabel('Last delivery month').fill('2026-10');
+      await dialog.getByRole('button', { name: 'Record contract' }).click();
+      await page.getByText('Contract LG-2026-100 recorded: 600 t of wheat at 205.00 EUR/t').waitFor();
+      await page.locator('ag-grid-angular[aria-label="Delivery contracts"]').getByText('LG-2026-100').waitFor();
+    });
+    await bothWidths(page, 'contracts-grid');
+
+    await check('the planner imports two more from a CSV file and commits them', async () => {
+      await page.getByRole('link', { name: 'Import from a file' }).click();
+      await page.waitForURL(/\/imports\?kind=contracts$/);
+      await page.getByLabel('Choose a CSV or XLSX file to import').setInputFiles(file);
+      await page.getByText('No problems found: every row can be written.').waitFor({ timeout: 30_000 });
+      await page.getByText('2 rows to write').waitFor();
+      await page.getByRole('button', { name: 'Commit 2 rows' }).click();
+      await page.getByText(/Committed .*: 2 added, 0 updated, 0 skipped\./).waitFor({ timeout: 30_000 });
+      await page.getByRole('link', { name: 'Open contracts' }).click();
+      await page.locator('ag-grid-angular[aria-label="Delivery contracts"]').getByText('LG-2026-201').waitFor();
+    });
+
+    await check('on the 2026/27 outlook the planner evaluates the contracts and reads the margin per tonne with its band', async () => {
+      const outlooks = (await page.evaluate(() => fetch('/api/outlooks').then((r) => r.json()))) as { id: number; season: string }[];
+      const o = outlooks.find((x) => x.season === '2026/27');
+      assert(o, 'no 2026/27 outlook');
+      await page.goto(`${base}/outlook/${o.id}`);
+      const section = page.getByRole('region', { name: 'Contracted deliveries' });
+      await section.waitFor();
+      await section.getByRole('button', { name: /Evaluate (contracts|again)/ }).click();
+      await section.getByRole('progressbar', { name: 'Progress of the contract evaluation' }).waitFor({ timeout: 10_000 }).catch(() => undefined);
+      await section.getByRole('columnheader', { name: 'Margin per unit', exact: true }).waitFor({ timeout: EVALUATE_TIMEOUT_MS });
+      await section.getByText('Up to date').waitFor();
+      const wheat = section.getByRole('region', { name: 'Co-op margin per unit' }).getByRole('row', { name: /^Wheat/ });
+      const text = await wheat.innerText();
+      assert(/EUR\/t/.test(text), `the wheat row reads "${text}"`);
+      await section.getByRole('region', { name: 'Contracts per farm' }).getByText('F04 · ').waitFor();
+      await section.getByRole('region', { name: 'Input demand of the contracting farms' }).getByText('Nitrogen (N)').waitFor();
+      await section.scrollIntoViewIfNeeded();
+    });
+    await bothWidths(page, 'contracts-outlook');
+    await check('the planner signs out', () => signOut(page));
+
+    if (await check('the treasurer signs in', () => signIn(page, base, 'treasurer@example.org'))) {
+      await check('the treasurer compares the contract basis with the outlook basis in the budget', async () => {
+        const budgets = (await page.evaluate(() => fetch('/api/budgets').then((r) => r.json()))) as { id: number }[];
+        assert(budgets.length > 0, 'no budget');
+        await page.goto(`${base}/budget/${budgets[0]!.id}`);
+        const section = page.getByRole('region', { name: 'Contracts or outlook: which demand to budget on' });
+        await section.waitFor({ timeout: 30_000 });
+        const table = section.getByRole('region', { name: 'Demand on the two bases' });
+        await table.waitFor({ timeout: 30_000 });
+        await table.getByRole('row', { name: /^Nitrogen \(N\)/ }).waitFor();
+        await section.scrollIntoViewIfNeeded();
+      });
+      await bothWidths(page, 'contracts-budget');
+      await check('the treasurer signs out', () => signOut(page));
+    }
+
+    if (await check('the member signs in', () => signIn(page, base, 'member@example.org'))) {
+      await check("the member reads their own contract with the estimated marginal cost and the fertiliser need, and the caution", async () => {
+        await page.goto(`${base}/my-farm/outlook`);
+        const section = page.getByRole('region', { name: 'Your delivery contracts' });
+        await section.waitFor({ timeout: 30_000 });
+        await section.getByText(/Your contract LG-2026-\d+: [\d,]+ t of wheat at [\d.,]+ EUR\/t; estimated marginal cost at that tonnage [\d,]+ EUR\/t \(likely range/).waitFor();
+        await section.getByText(/your farm needs about .* N/).waitFor();
+        await section.getByText(/not financial advice/).waitFor();
+        assert((await section.getByText('LG-2026-100').count()) === 0, 'the member sees another farm’s contract');
+        await section.scrollIntoViewIfNeeded();
+      });
+      await bothWidths(page, 'contracts-member');
+      await check('the member signs out', () => signOut(page));
+    }
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
