@@ -35,7 +35,7 @@ import { ReferenceStore } from '../data-desk/reference-store';
 import { CautionNote } from '../shared/caution-note';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
 import { FarmDialog, type FarmDialogData } from './farm-dialog';
-import { factorKey, itemKey, pivotRecords, recordCellProblem, type SeasonRow } from './records-pivot';
+import { factorKey, itemKey, pivotRecords, quantityDoubt, recordCellProblem, type SeasonRow } from './records-pivot';
 
 const quantityFormat = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 2 });
 /** Tonnes with one decimal throughout a column (1,124.0 beside 1,184.1), other units as recorded. */
@@ -226,6 +226,21 @@ export class FarmRecords {
           await this.#api.deleteRecord({ farmId, seasonId: row.seasonId, itemId: item.id });
           this.status.set({ ok: true, text: `Removed: ${item.name} in ${row.season}.` });
         } else {
+          // A quantity far from the farm's own history per hectare is asked about before it is saved.
+          const doubt = quantityDoubt(this.rows(), row, item, this.farm()?.code ?? 'this farm', Number(event.newValue));
+          if (doubt) {
+            const data: ConfirmDialogData = {
+              title: 'Is this quantity right?',
+              message: `${doubt}. Save it as it is, or go back and correct it.`,
+              confirmLabel: 'Save as it is',
+              cancelLabel: 'Go back',
+            };
+            if (!(await firstValueFrom(this.#dialog.open(ConfirmDialog, { data }).afterClosed()))) {
+              revert();
+              this.status.set({ ok: false, text: `Not saved (${row.season}): ${doubt}.` });
+              return;
+            }
+          }
           // The version the edit started from (null: the cell was empty); a stale one is refused with 409.
           const stored = this.records.hasValue() ? this.records.value().find((r) => r.seasonId === row.seasonId && r.itemId === item.id) : undefined;
           await this.#api.putRecords([{ farmId, seasonId: row.seasonId, itemId: item.id, quantity: Number(event.newValue), version: stored?.version ?? null }]);

@@ -1,5 +1,6 @@
 import type { FarmRecordRow, Item, Season } from '../../../shared/api-types';
 import type { FactorRow, LandRow } from '../data-desk/data-desk-api';
+import { implausibleQuantity, quantityHistory } from '../../../shared/plausibility';
 
 /**
  * One season of a farm: land, a quantity per item (`i<itemId>`) and the level of each other fixed
@@ -59,4 +60,15 @@ export function recordCellProblem(kind: 'quantity' | 'land' | 'factor', value: u
   if (n < 0) return 'A quantity cannot be negative (inputs are recorded as positive amounts used)';
   if (n > 1e12) return 'The quantity is larger than the largest kept (1,000,000,000,000)';
   return null;
+}
+
+/**
+ * Why a new quantity of an item looks like a slip against the farm's own history per hectare (its
+ * other seasons in the grid), or null (shared/plausibility.ts: beyond 3× or ⅓ of the median over at
+ * least three seasons with land). The grid asks before saving such a value.
+ */
+export function quantityDoubt(rows: readonly SeasonRow[], row: SeasonRow, item: { id: number; name: string; unit: string }, farmCode: string, quantity: number): string | null {
+  const key = itemKey(item.id);
+  const others = rows.filter((r) => r.seasonId !== row.seasonId && typeof r[key] === 'number').map((r) => ({ quantity: r[key] as number, landHa: r.landHa }));
+  return implausibleQuantity(quantity, row.landHa, item, farmCode, quantityHistory(others));
 }
