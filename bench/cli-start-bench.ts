@@ -18,11 +18,10 @@
 import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir } from 'node:os';
-import { dirname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join } from 'node:path';
+import { root, yardstick } from './bench-kit.js';
 import { datasetToCsv, generateNqPanel, type SyntheticItem } from '../server/estimation/index.js';
 
-const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 const work = mkdtempSync(join(tmpdir(), 'netput-cli-bench-'));
 const items: SyntheticItem[] = [
   { name: 'wheat', role: 'output', price: 250, quantity: 1500, ownElasticity: 0.4, trendShare: 0.01 },
@@ -74,16 +73,6 @@ function series(label: string, cmd: string, argv: string[], runs: number): Recor
   return out;
 }
 
-/** A fixed yardstick for the machine's state: 30 million streaming multiply-adds (CPU ms), as in bench/estimation-bench.ts. */
-const yardstick = (): number => {
-  const a = new Float64Array(10000).map((_, i) => i * 1e-4);
-  const b = new Float64Array(10000).fill(0.5);
-  const o = new Float64Array(10000);
-  const c0 = process.cpuUsage();
-  for (let k = 0; k < 3000; k++) for (let s = 0; s < 10000; s++) o[s]! += a[s]! * 1.5 + b[s]!;
-  const c = process.cpuUsage(c0);
-  return Math.round((c.user + c.system) / 100) / 10;
-};
 
 const loadStart = loadavg();
 const yardStart = yardstick();

@@ -12,34 +12,13 @@
  */
 import { writeFileSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
-import { dirname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join } from 'node:path';
+import { median, round, root, timeRuns, yardstick } from './bench-kit.js';
 import { evaluateContracted, fitForecastModel, generateForecastPanel, PER_HECTARE_ITEMS, type ForecastModel } from '../server/estimation/index.js';
 
-const root = join(dirname(fileURLToPath(import.meta.url)), '..');
-const round = (v: number, d = 1): number => Math.round(v * 10 ** d) / 10 ** d;
-const yardstick = (): number => {
-  const a = new Float64Array(10000).map((_, i) => i * 1e-4);
-  const b = new Float64Array(10000).fill(0.5);
-  const o = new Float64Array(10000);
-  const c0 = process.cpuUsage();
-  for (let k = 0; k < 3000; k++) for (let s = 0; s < 10000; s++) o[s]! += a[s]! * 1.5 + b[s]!;
-  const c = process.cpuUsage(c0);
-  return round((c.user + c.system) / 1000);
-};
 const measure = (runs: number, f: () => void) => {
-  const wall: number[] = [];
-  const cpu: number[] = [];
-  for (let r = 0; r < runs; r++) {
-    const c0 = process.cpuUsage();
-    const t0 = performance.now();
-    f();
-    wall.push(performance.now() - t0);
-    const c = process.cpuUsage(c0);
-    cpu.push((c.user + c.system) / 1000);
-  }
-  const med = (xs: number[]) => xs.slice().sort((a, b) => a - b)[Math.floor(xs.length / 2)]!;
-  return { wallMedianMs: round(med(wall)), wallMinMs: round(Math.min(...wall)), cpuMedianMs: round(med(cpu)), runs };
+  const { wall, cpu } = timeRuns(runs, f);
+  return { wallMedianMs: round(median(wall)), wallMinMs: round(Math.min(...wall)), cpuMedianMs: round(median(cpu)), runs };
 };
 
 const loadStart = loadavg();

@@ -14,11 +14,10 @@
 import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir } from 'node:os';
-import { dirname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { join } from 'node:path';
+import { round, root, yardstick } from './bench-kit.js';
 import { datasetToCsv, fitProfitFunction, generateNqPanel, parseNetputCsv, projectSeason, type SyntheticItem } from '../server/estimation/index.js';
 
-const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 const work = mkdtempSync(join(tmpdir(), 'netput-bench-'));
 
 const items: SyntheticItem[] = [
@@ -53,19 +52,8 @@ const stats = (xs: number[]): { min: number; median: number; max: number; runs: 
   const s = xs.slice().sort((a, b) => a - b);
   return { min: s[0]!, median: s[Math.floor(s.length / 2)]!, max: s.at(-1)!, runs: s.length };
 };
-const round = (v: number, d = 1): number => Math.round(v * 10 ** d) / 10 ** d;
 const load0 = loadavg();
 
-/** A fixed yardstick for the machine's state: 30 million streaming multiply-adds (CPU ms). */
-const yardstick = (): number => {
-  const a = new Float64Array(10000).map((_, i) => i * 1e-4);
-  const b = new Float64Array(10000).fill(0.5);
-  const o = new Float64Array(10000);
-  const c0 = process.cpuUsage();
-  for (let k = 0; k < 3000; k++) for (let s = 0; s < 10000; s++) o[s]! += a[s]! * 1.5 + b[s]!;
-  const c = process.cpuUsage(c0);
-  return round((c.user + c.system) / 1000);
-};
 const yardstickStart = yardstick();
 
 // 1. Fit (after two warm-up fits so the JIT has compiled the hot loops).
