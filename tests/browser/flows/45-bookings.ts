@@ -86,4 +86,20 @@ export default async function bookings({ base, page }: Harness): Promise<void> {
     await page.setViewportSize({ width: 1280, height: 860 });
   });
   await signOut(page);
+
+  await page.setViewportSize({ width: 390, height: 844 });
+  try {
+    await signIn(page, base, 'member@example.org');
+    await check('before the deadline the member cancels the prepaid booking and is told of the refund', async () => {
+      await page.goto(`${base}/my-farm/bookings`);
+      await page.getByRole('button', { name: 'Cancel booking' }).click();
+      const dialog = page.getByRole('dialog');
+      await dialog.getByText('Your prepayment of EUR 2,778.74 is refunded in full').waitFor();
+      await dialog.getByRole('button', { name: 'Cancel booking' }).click();
+      await page.getByRole('heading', { name: 'Book for 2026/27' }).waitFor();
+    });
+    await signOut(page);
+  } finally {
+    await page.setViewportSize({ width: 1280, height: 860 });
+  }
 }
