@@ -1,17 +1,19 @@
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import type { Page } from 'playwright-core';
+import type { Locator, Page } from 'playwright-core';
 import type { Harness } from '../harness.js';
 import { assert, check, shot, signIn, signOut, waitForDemoPrepared } from '../harness.js';
 
 /** The evaluation runs 2,000 draws for each contracting farm in a worker thread. */
 const EVALUATE_TIMEOUT_MS = 180_000;
 
-async function bothWidths(page: Page, name: string): Promise<void> {
+async function bothWidths(page: Page, name: string, focus?: Locator): Promise<void> {
+  await focus?.scrollIntoViewIfNeeded();
   await shot(page, `${name}-1280`);
   await page.setViewportSize({ width: 390, height: 844 });
   await page.waitForTimeout(300);
+  await focus?.scrollIntoViewIfNeeded();
   await shot(page, `${name}-390`);
   await page.setViewportSize({ width: 1280, height: 860 });
 }
@@ -81,7 +83,7 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
       await section.getByRole('region', { name: 'Input demand of the contracting farms' }).getByText('Nitrogen (N)').waitFor();
       await section.scrollIntoViewIfNeeded();
     });
-    await bothWidths(page, 'contracts-outlook');
+    await bothWidths(page, 'contracts-outlook', page.getByRole('heading', { name: 'Contracted deliveries' }));
     await check('the planner signs out', () => signOut(page));
 
     if (await check('the treasurer signs in', () => signIn(page, base, 'treasurer@example.org'))) {
@@ -96,7 +98,7 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
         await table.getByRole('row', { name: /^Nitrogen \(N\)/ }).waitFor();
         await section.scrollIntoViewIfNeeded();
       });
-      await bothWidths(page, 'contracts-budget');
+      await bothWidths(page, 'contracts-budget', page.getByRole('heading', { name: 'Contracts or outlook: which demand to budget on' }));
       await check('the treasurer signs out', () => signOut(page));
     }
 
@@ -111,7 +113,7 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
         assert((await section.getByText('LG-2026-100').count()) === 0, 'the member sees another farm’s contract');
         await section.scrollIntoViewIfNeeded();
       });
-      await bothWidths(page, 'contracts-member');
+      await bothWidths(page, 'contracts-member', page.getByRole('heading', { name: 'Your delivery contracts' }));
       await check('the member signs out', () => signOut(page));
     }
   } finally {

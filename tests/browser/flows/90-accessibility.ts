@@ -71,6 +71,7 @@ export default async function accessibility({ base, page }: Harness): Promise<vo
       '/farms',
       '/farms/1',
       '/imports',
+      '/contracts',
       '/reference',
       '/models',
       modelId ? `/models/${modelId}` : null,
@@ -84,7 +85,7 @@ export default async function accessibility({ base, page }: Harness): Promise<vo
   }
   if (await check('the treasurer signs in for the accessibility walk', () => signIn(page, base, 'treasurer@example.org'))) {
     const budgetId = await firstId(page, '/api/budgets', (rows) => rows[0]?.id);
-    await walk(page, base, 'treasurer', ['/', '/budget', budgetId ? `/budget/${budgetId}` : null, '/budget/products', '/budget/bookings']);
+    await walk(page, base, 'treasurer', ['/', '/budget', budgetId ? `/budget/${budgetId}` : null, '/budget/products', '/budget/bookings', '/contracts']);
     await check('the treasurer signs out', () => signOut(page));
   }
   if (await check('the member signs in for the accessibility walk', () => signIn(page, base, 'member@example.org'))) {
