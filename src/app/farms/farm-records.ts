@@ -28,6 +28,7 @@ import { AuthStore } from '../core/auth-store';
 import { factorNameSchema } from '../../../shared/data-schemas';
 import { DataDeskApi, type FactorRow, type FarmRow, type LandRow, type RecordBody } from '../data-desk/data-desk-api';
 import { gridTheme, numberEditing, numberTextProblem, safeCsvCell } from '../data-desk/data-grid';
+import { FIT_FIGURES, WRAPPED_HEADINGS } from '../shared/grid';
 import { SettingsStore } from '../core/settings-store';
 import type { DecimalMark } from '../../../shared/cell-parsers';
 import { parseTable } from '../data-desk/paste';
@@ -107,8 +108,10 @@ export class FarmRecords {
   readonly #grid = signal<GridApi<SeasonRow> | null>(null);
 
   protected readonly theme = gridTheme;
+  /** Columns sized to their figures; the item headings (wrapped) sit above them. */
+  protected readonly fitFigures = FIT_FIGURES;
   protected readonly getRowId = (p: GetRowIdParams<SeasonRow>) => String(p.data.seasonId);
-  protected readonly defaultColDef: ColDef<SeasonRow> = { sortable: false, resizable: true, editable: () => this.canEdit() };
+  protected readonly defaultColDef: ColDef<SeasonRow> = { sortable: false, resizable: true, editable: () => this.canEdit(), wrapHeaderText: WRAPPED_HEADINGS.wrapHeaderText, autoHeaderHeight: WRAPPED_HEADINGS.autoHeaderHeight };
   protected readonly columns = computed<(ColDef<SeasonRow> | ColGroupDef<SeasonRow>)[]>(() => {
     const items = this.ref.items();
     const mark = this.decimalMark();
@@ -118,8 +121,8 @@ export class FarmRecords {
       headerName: `${it.name} (${it.unit})`,
       headerTooltip: `${it.name}, ${it.role === 'output' ? 'produced' : 'used'}, in ${it.unit}`,
       type: 'numericColumn',
+      // Sized to its figures by the grids' content sizing (src/app/shared/grid.ts); a flex column would be left out.
       minWidth: 110,
-      flex: 1,
       wrapHeaderText: true,
       autoHeaderHeight: true,
       valueFormatter: (p: ValueFormatterParams<SeasonRow>) => (typeof p.value === 'number' ? (it.unit === 't' ? tonnesFormat : quantityFormat).format(p.value) : '—'),

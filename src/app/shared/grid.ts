@@ -240,7 +240,8 @@ provideGlobalGridOptions({
   localeText: GRID_WORDS,
   // Every column as wide as its widest figure and its heading, so no number or name is cut; then
   // widened to fill the grid. Re-applied when the rows change or the grid is resized; a column the
-  // reader has sized by hand keeps its width, and minWidth/maxWidth still bound it.
+  // reader has sized by hand keeps its width, and minWidth/maxWidth still bound it. A column given
+  // `flex` is left to its flex share when the columns are set again, so content columns have none.
   autoSizeStrategy: { type: 'fitCellContents', scaleUpToFitGridWidth: true, continuous: true },
   // The column that picks rows: narrow, in the sheet's own colours, with its own heading for screen readers.
   selectionColumnDef: { width: 48, maxWidth: 48, resizable: false, headerTooltip: 'Pick rows', cellClass: 'np-pick-cell', headerClass: 'np-pick-cell' },
