@@ -8,7 +8,7 @@
  */
 import { subset } from './backtest.js';
 import { projectForecast } from './forecast.js';
-import { fitForecastModel } from './panel.js';
+import { fitForecastModel, type ForecastModelOptions } from './panel.js';
 import { generateForecastPanel, PER_HECTARE_ITEMS, type ForecastPanelSpec } from './synthetic-panel.js';
 
 export interface CoverageStudyOptions {
@@ -21,6 +21,8 @@ export interface CoverageStudyOptions {
   level?: number;
   /** Other settings of the synthetic panel. */
   panel?: Partial<ForecastPanelSpec>;
+  /** Options of the fitted model (default: the per-hectare model's defaults). */
+  model?: ForecastModelOptions;
 }
 
 export interface CoverageCell {
@@ -62,7 +64,7 @@ export function runCoverageStudy(o: CoverageStudyOptions): CoverageStudyResult {
     const all = ds.rows.map((_, i) => i);
     const train = all.filter((i) => ds.seasonYears[i]! < last);
     const test = all.filter((i) => ds.seasonYears[i] === last);
-    const model = fitForecastModel(subset(ds, train));
+    const model = fitForecastModel(subset(ds, train), o.model);
     dfSum += model.seasonEffects?.df ?? 0;
     const lands = test.map((i) => ds.fixed[0]![i]!);
     const sorted = lands.slice().sort((a, b) => a - b);

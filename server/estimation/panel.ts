@@ -49,6 +49,13 @@ export interface ForecastModelOptions {
   farmEffects?: boolean;
   seasonEffects?: boolean;
   sizeScaledErrors?: boolean;
+  /**
+   * Per-hectare only: weight the season means by the season-shock variance in the SUR step (the
+   * random-effects transformation of Fuller & Battese 1974 for the season dimension: each
+   * observation less θ_it × its season's weighted mean, θ_it = 1 − √(σ_i²/(σ_i² + W_t σ_λi²))).
+   * Default true; false gives the plain pooled SUR step (every farm-season weighted alike).
+   */
+  seasonGls?: boolean;
 }
 
 export interface FarmEffects {
@@ -194,6 +201,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const useFarm = options.farmEffects ?? true;
   const useSeason = options.seasonEffects ?? true;
   const useScale = options.sizeScaledErrors ?? true;
+  const useGls = (options.seasonGls ?? true) && useSeason;
   const warnings: string[] = [];
 
   // Farm and season indices.
@@ -250,9 +258,49 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   let sqw = new Float64Array(N).fill(1);
   let weightedCols = new Map<ArrayLike<number>, Float64Array>();
   let gramCache: CrossProductCache = new WeakMap();
+  // Season GLS: keep[i][s] = 1 − θ_is (1 everywhere: no transformation), and per-equation caches of
+  // the transformed regressors.
+  const keep = Array.from({ length: n }, () => new Float64Array(S).fill(1));
+  let eqCols: Map<ArrayLike<number>, Float64Array>[] = equations.map(() => new Map());
+  const glsActive = (): boolean => keep.some((kk) => kk.some((v) => v !== 1));
+  /** sqw_o (v_o − θ_is v̄_s), v̄_s the w-weighted mean of season s. */
+  const quasiDemean = (v: ArrayLike<number>, i: number): Float64Array => {
+    const num = new Float64Array(S);
+    const den = new Float64Array(S);
+    for (let o = 0; o < N; o++) {
+      const s = seasonOf[o]!;
+      num[s]! += w[o]! * v[o]!;
+      den[s]! += w[o]!;
+    }
+    const th = keep[i]!;
+    const sub = new Float64Array(S);
+    for (let s = 0; s < S; s++) sub[s] = den[s]! > 0 ? ((1 - th[s]!) * num[s]!) / den[s]! : 0;
+    const out = new Float64Array(N);
+    for (let o = 0; o < N; o++) out[o] = sqw[o]! * (v[o]! - sub[seasonOf[o]!]!);
+    return out;
+  };
 
   const weightedEquations = (): SurEquationInput[] =>
-    equations.map((eq, i) => {
+    glsActive()
+      ? equations.map((eq, i) => {
+          const yi = y[i]!;
+          const mi = mu[i]!;
+          const d = new Float64Array(N);
+          for (let o = 0; o < N; o++) d[o] = yi[o]! - mi[farmOf[o]!]!;
+          return {
+            name: eq.name,
+            y: quasiDemean(d, i),
+            regressors: eq.regressors.map((r) => {
+              let c = eqCols[i]!.get(r.values);
+              if (!c) {
+                c = quasiDemean(r.values, i);
+                eqCols[i]!.set(r.values, c);
+              }
+              return { name: r.name, values: c };
+            }),
+          };
+        })
+      : equations.map((eq, i) => {
       const yi = y[i]!;
       const mi = mu[i]!;
       const yw = new Float64Array(N);
@@ -277,6 +325,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     w = mapF(logL, (x) => Math.exp(-d * x));
     sqw = mapF(w, Math.sqrt);
     weightedCols = new Map();
+    eqCols = equations.map(() => new Map());
     gramCache = new WeakMap();
   };
   const residualsAt = (th: number[]): void => {
@@ -398,6 +447,51 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     }
   };
 
+  const offsets: number[] = [];
+  {
+    let acc = 0;
+    for (const eq of equations) {
+      offsets.push(acc);
+      acc += eq.regressors.length;
+    }
+  }
+  /** The season-shock covariance from the current fit (seasonShockCovariance) and its inputs. */
+  const seasonShock = () => {
+    const sigmaInv = inverse(sur!.sigmaUsed);
+    const seasonSums = equations.map((eq) => {
+      // g[s][a] = Σ_{o∈s} w_o x_oa (raw regressors, common weights)
+      const Ka = eq.regressors.length;
+      const g = Array.from({ length: S }, () => new Float64Array(Ka));
+      eq.regressors.forEach((reg, a) => {
+        const v = reg.values;
+        for (let o = 0; o < N; o++) g[seasonOf[o]!]![a]! += w[o]! * v[o]!;
+      });
+      return g;
+    });
+    const seasonW = new Float64Array(S);
+    for (let o = 0; o < N; o++) seasonW[seasonOf[o]!]! += w[o]!;
+    let est: { covariance: Mat; df: number } | null = null;
+    if (useSeason) {
+      const noise = sigma2.map((s2, i) => {
+        const wi = new Float64Array(S);
+        for (let o = 0; o < N; o++) wi[seasonOf[o]!]! += Math.exp(-delta[i]! * logL[o]!);
+        return Array.from(wi, (v) => s2 / v);
+      });
+      est = seasonShockCovariance(lambda, sur!.covariance, sigmaInv, seasonSums, seasonW, offsets, noise, keep);
+    }
+    return { sigmaInv, seasonSums, seasonW, est };
+  };
+  /** Season GLS: θ_is from the current σ_i² and season-shock variances; caches reset. */
+  const updateGls = (): void => {
+    const { seasonW, est } = seasonShock();
+    for (let i = 0; i < n; i++) {
+      const sl = est!.covariance[i]![i]!;
+      for (let s = 0; s < S; s++) keep[i]![s] = Math.sqrt(sigma2[i]! / (sigma2[i]! + seasonW[s]! * sl));
+    }
+    eqCols = equations.map(() => new Map());
+    gramCache = new WeakMap();
+  };
+
   const maxOuter = 30;
   let outer = 0;
   let converged = false;
@@ -439,6 +533,9 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     // the weights only make the estimate efficient: they settle after three rounds, so that later
     // rounds reuse the regressors' cross products
     if (outer <= 3 && Math.abs(newW - deltaW) > 1e-4) setWeights(newW);
+    // the season-GLS weights likewise settle after four rounds (θ rests on the fit's absorption of
+    // the season shocks, so it is re-estimated with the fit)
+    if (useGls && outer <= 4) updateGls();
     if (outer > 1 && Math.sqrt(num / Math.max(den, 1e-300)) < 1e-6 && dd < 1e-4) {
       converged = true;
       break;
@@ -484,40 +581,14 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   }
 
   // Season-shock covariance and its t degrees of freedom (the season-level residual df).
-  const sigmaInv = inverse(sur!.sigmaUsed);
-  const seasonSums = equations.map((eq) => {
-    // g[s][a] = Σ_{o∈s} w_o x_oa (raw regressors, common weights)
-    const K = eq.regressors.length;
-    const g = Array.from({ length: S }, () => new Float64Array(K));
-    eq.regressors.forEach((reg, a) => {
-      const v = reg.values;
-      for (let o = 0; o < N; o++) g[seasonOf[o]!]![a]! += w[o]! * v[o]!;
-    });
-    return g;
-  });
-  const seasonW = new Float64Array(S);
-  for (let o = 0; o < N; o++) seasonW[seasonOf[o]!]! += w[o]!;
+  const { sigmaInv, seasonSums, seasonW, est: finalShock } = seasonShock();
   let seasonCov: Mat = zerosMat(n);
   let df = Infinity;
   const P = sur!.covariance;
   const K = P.length;
-  const offsets: number[] = [];
-  {
-    let acc = 0;
-    for (const eq of equations) {
-      offsets.push(acc);
-      acc += eq.regressors.length;
-    }
-  }
   if (useSeason) {
-    const noise = sigma2.map((s2, i) => {
-      const wi = new Float64Array(S);
-      for (let o = 0; o < N; o++) wi[seasonOf[o]!]! += Math.exp(-delta[i]! * logL[o]!);
-      return Array.from(wi, (v) => s2 / v);
-    });
-    const est = seasonShockCovariance(lambda, P, sigmaInv, seasonSums, seasonW, offsets, noise);
-    seasonCov = est.covariance;
-    df = Math.max(2, est.df);
+    seasonCov = finalShock!.covariance;
+    df = Math.max(2, finalShock!.df);
   }
 
   // Parameter covariance: P (B_farm + B_season) P, mapped to θ.
@@ -526,14 +597,22 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     const h = Array.from({ length: F }, () => new Float64Array(K));
     const eo = new Float64Array(n);
     const uo = new Float64Array(n);
+    const vo = new Float64Array(n);
+    const gls = glsActive();
     for (let o = 0; o < N; o++) {
       const f = farmOf[o]!;
       const s = seasonOf[o]!;
       for (let i = 0; i < n; i++) eo[i] = sqw[o]! * (resid[i]![o]! - lambda[i]![s]! - mu[i]![f]!);
       for (let i = 0; i < n; i++) {
         let acc = 0;
-        for (let j = 0; j < n; j++) acc += sigmaInv[i]![j]! * eo[j]!;
+        let accV = 0;
+        for (let j = 0; j < n; j++) {
+          acc += sigmaInv[i]![j]! * eo[j]!;
+          // season GLS: Σ_o x*_io ε*_jo = Σ_o w_o ε_jo (x_io − (1 − k_is k_js) x̄_is)
+          if (gls) accV += sigmaInv[i]![j]! * eo[j]! * (1 - keep[i]![s]! * keep[j]![s]!);
+        }
         uo[i] = acc;
+        vo[i] = accV;
       }
       const hf = h[f]!;
       for (let i = 0; i < n; i++) {
@@ -541,6 +620,11 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
         const base = offsets[i]!;
         const u = uo[i]! * sqw[o]!;
         for (let a = 0; a < regs.length; a++) hf[base + a]! += regs[a]!.values[o]! * u;
+        if (gls && vo[i] !== 0) {
+          const v = (vo[i]! * sqw[o]!) / seasonW[s]!;
+          const gs = seasonSums[i]![s]!;
+          for (let a = 0; a < regs.length; a++) hf[base + a]! -= gs[a]! * v;
+        }
       }
     }
     for (let f = 0; f < F; f++) {
@@ -555,16 +639,21 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   }
   const Bs = zerosMat(K);
   if (useSeason) {
-    const M = matMulSmall(matMulSmall(sigmaInv, seasonCov), sigmaInv);
-    for (let s = 0; s < S; s++)
+    // a season-s shock λ_s enters X*'Σ⁻¹y* as block i: k_is g_is [Σ⁻¹ D_s λ_s]_i, D_s = diag(k_·s)
+    // (k = 1 − θ; 1 without the season GLS)
+    for (let s = 0; s < S; s++) {
+      const D = keep.map((kk) => kk[s]!);
+      const DSD = seasonCov.map((row, i) => row.map((v, j) => D[i]! * v * D[j]!));
+      const M = matMulSmall(matMulSmall(sigmaInv, DSD), sigmaInv);
       for (let i = 0; i < n; i++)
         for (let j = 0; j < n; j++) {
-          const mij = M[i]![j]!;
+          const mij = M[i]![j]! * D[i]! * D[j]!;
           if (mij === 0) continue;
           const gi = seasonSums[i]![s]!;
           const gj = seasonSums[j]![s]!;
           for (let a = 0; a < gi.length; a++) for (let b = 0; b < gj.length; b++) Bs[offsets[i]! + a]![offsets[j]! + b]! += gi[a]! * gj[b]! * mij;
         }
+    }
   }
   const toTheta = (V: Mat): Mat => rep.map((a) => rep.map((b) => V[a]![b]!));
   const PBfP = toTheta(matMulSmall(matMulSmall(P, Bf), P));
@@ -720,6 +809,7 @@ function seasonShockCovariance(
   seasonW: Float64Array,
   offsets: number[],
   noise: number[][],
+  keep?: Float64Array[],
 ): { covariance: Mat; df: number } {
   const n = lambda.length;
   const S = lambda[0]!.length;
@@ -735,7 +825,9 @@ function seasonShockCovariance(
         const c = sigmaInv[j]![a]!;
         if (c === 0) continue;
         const gs = seasonSums[j]![s]!;
-        for (let b = 0; b < gs.length; b++) g[offsets[j]! + b] = gs[b]! * c;
+        // with the season GLS the shock is scaled by k_as in y* and k_js in X*'s season sums
+        const kf = keep ? keep[a]![s]! * keep[j]![s]! : 1;
+        for (let b = 0; b < gs.length; b++) g[offsets[j]! + b] = gs[b]! * c * kf;
       }
       const db = new Float64Array(K);
       for (let r = 0; r < K; r++) {
