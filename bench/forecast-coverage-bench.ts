@@ -27,7 +27,7 @@ const t0 = performance.now();
 const partDir = process.env.PART_DIR ?? join(tmpdir(), 'netput-coverage-parts');
 if (process.env.PART !== undefined) {
   const d = designs[Number(process.env.PART)]!;
-  const r = runCoverageStudy({ replicates, farms: d.farms, seasons: d.seasons, seed: d.seed, draws: 2000 });
+  const r = runCoverageStudy({ replicates, farms: d.farms, seasons: d.seasons, seed: d.seed, draws: 2000, model: { seasonGls: process.env.SEASON_GLS === '1' } });
   mkdirSync(partDir, { recursive: true });
   writeFileSync(join(partDir, `${process.env.PART}.json`), JSON.stringify({ name: d.name, seconds: Math.round((performance.now() - t0) / 1000), load: [load0, loadavg()], ...r }));
   console.log(`${d.name}: done`);
@@ -36,7 +36,7 @@ if (process.env.PART !== undefined) {
 const fromParts = process.env.PARTS_FROM !== undefined;
 const parts = fromParts ? designs.map((_, k) => JSON.parse(readFileSync(join(partDir, `${k}.json`), 'utf8')) as CoverageStudyResult & { name: string; seconds: number; load: number[][] }) : null;
 const results: (CoverageStudyResult & { name: string })[] = parts ?? designs.map((d) => {
-  const r = runCoverageStudy({ replicates, farms: d.farms, seasons: d.seasons, seed: d.seed, draws: 2000 });
+  const r = runCoverageStudy({ replicates, farms: d.farms, seasons: d.seasons, seed: d.seed, draws: 2000, model: { seasonGls: process.env.SEASON_GLS === '1' } });
   console.log(`${d.name}: done`);
   return { name: d.name, ...r };
 });

@@ -36,18 +36,11 @@ describe('backTestForecast', () => {
     for (const it of result.items) expect(it.ratios.lastSeason.mdape!, it.item).toBeLessThan(1);
   });
 
-  // The 240 outcomes of an item are 4 origins × 60 farms that share each origin's season shock, so
-  // they rest on about four season draws, not 240 independent ones: one item may stray further than
-  // a binomial SE suggests (measured with the season GLS of docs/forecasting.md §5: wheat 89.2,
-  // canola 82.9, nitrogen 91.7, diesel 88.3, other 77.9 %; mean 86.0 %). The 200-panel benchmark
-  // (bench/results/forecast-coverage.md) is the coverage check.
-  it('its 90 % farm bands hold between 75 % and 97 % of every item’s outcomes and at least 83 % over all items', () => {
+  it('its 90 % farm bands hold between 80 % and 97 % of outcomes (240 outcomes: ±2 binomial SE is ±4 %, plus model error)', () => {
     for (const it of result.items) {
-      expect(it.coverage.farms.share!, it.item).toBeGreaterThan(0.75);
+      expect(it.coverage.farms.share!, it.item).toBeGreaterThan(0.8);
       expect(it.coverage.farms.share!, it.item).toBeLessThan(0.97);
     }
-    const mean = result.items.reduce((a, it) => a + it.coverage.farms.share!, 0) / result.items.length;
-    expect(mean).toBeGreaterThan(0.83);
   });
 
   it('says it in plain sentences', () => {
