@@ -69,6 +69,8 @@ const lines = [
   '(2,000 draws). Target 87–93 % everywhere (binomial standard error of a share near 90 %: ±2.1 % for 200 co-op totals of one',
   'item, ±0.9 % for the 1,000 of all items).',
   '',
+  `Season GLS in the SUR step (option seasonGls, docs/forecasting.md §5): **${process.env.SEASON_GLS === '1' ? 'on' : 'off (the default)'}**.`,
+  '',
   `All thirds and co-op totals (all items) within the target: **${allIn ? 'yes' : 'no'}**.`,
   '',
   skillLine(),
