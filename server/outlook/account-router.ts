@@ -1,37 +1,19 @@
 import { ACCESS } from '../../shared/roles.js';
 import type { Request, Response } from 'express';
-import { eq } from 'drizzle-orm';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
-import type { Db } from '../db/client.js';
-import { users } from '../db/schema/index.js';
-import { recordAudit } from '../audit/audit-repository.js';
 import { getSettings } from '../settings/settings-service.js';
 import { mailPreferencesSchema, unsubscribeParamSchema } from '../../shared/outlook-schemas.js';
 import { unsubscribeSecret, verifyUnsubscribe } from './unsubscribe-token.js';
 import { MAIL_STYLE } from '../mail/mail-style.js';
-
-async function preferences(db: Db, userId: number) {
-  const [u] = await db.select({ email: users.email, optOut: users.mailOptOut }).from(users).where(eq(users.id, userId));
-  if (!u) throw AppError.notFound('The account');
-  return { email: u.email, outlookEmails: !u.optOut };
-}
-
-async function setOptOut(db: Db, userId: number, optOut: boolean, action: string) {
-  await db.transaction(async (tx) => {
-    const [before] = await tx.select({ optOut: users.mailOptOut }).from(users).where(eq(users.id, userId));
-    if (!before) throw AppError.notFound('The account');
-    await tx.update(users).set({ mailOptOut: optOut }).where(eq(users.id, userId));
-    await recordAudit(tx, { actorUserId: userId, action, entity: 'user', entityId: userId, before: { mailOptOut: before.optOut }, after: { mailOptOut: optOut } });
-  });
-}
+import { findMailChoice, mailPreferences, setOptOut } from './mail-preferences-service.js';
 
 /** `/api/account`: the member's own mail preferences. */
 export function accountMailRoutes(ctx: AppContext): RouteDef[] {
   return [
-    { method: 'get', path: '/mail-preferences', access: ACCESS.myFarm, handler: async (req, res) => res.json(await preferences(ctx.db, req.user!.id)) },
+    { method: 'get', path: '/mail-preferences', access: ACCESS.myFarm, handler: async (req, res) => res.json(await mailPreferences(ctx.db, req.user!.id)) },
     {
       method: 'put',
       path: '/mail-preferences',
@@ -39,7 +21,7 @@ export function accountMailRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => {
         const body = parse(mailPreferencesSchema, req.body, 'body');
         await setOptOut(ctx.db, req.user!.id, !body.outlookEmails, body.outlookEmails ? 'mail.subscribe' : 'mail.unsubscribe');
-        res.json(await preferences(ctx.db, req.user!.id));
+        res.json(await mailPreferences(ctx.db, req.user!.id));
       },
     },
   ];
@@ -69,8 +51,7 @@ export function unsubscribeRoutes(ctx: AppContext): RouteDef[] {
   const member = async (req: Request) => {
     const { token } = parse(unsubscribeParamSchema, req.params, 'params');
     const userId = verifyUnsubscribe(await unsubscribeSecret(ctx.db), token);
-    const [u] = userId !== null ? await ctx.db.select({ id: users.id, email: users.email, optOut: users.mailOptOut }).from(users).where(eq(users.id, userId)) : [];
-    return u;
+    return userId !== null ? findMailChoice(ctx.db, userId) : undefined;
   };
   const notFound = (res: Response, wantsJson: boolean) => {
     if (wantsJson) throw AppError.notFound('The unsubscribe link');
