@@ -407,11 +407,12 @@ describe('co-op summary', () => {
   it('counts the seasons that hold data, and names a season opened ahead without data apart', async () => {
     const planner = await plannerAgent();
     const before = (await planner.get('/api/summary')).body as { seasons: { count: number; first: string; last: string; opened: string[] }; recordGaps: unknown[] };
-    // The demo co-op (seed/): 20 seasons of prices and farm records, 2006/07 to 2025/26.
-    expect(before.seasons).toEqual({ count: 20, first: '2006/07', last: '2025/26', opened: [] });
+    // The demo co-op (seed/): 20 seasons of prices and farm records, 2006/07 to 2025/26, and the
+    // coming season 2026/27 opened ahead for its delivery contracts (seed/demo-contracts.ts).
+    expect(before.seasons).toEqual({ count: 20, first: '2006/07', last: '2025/26', opened: ['2026/27'] });
     expect((await planner.post('/api/seasons').send({ label: '2031/32', startYear: 2031, startMonth: 7 })).status).toBe(201);
     const after = (await planner.get('/api/summary')).body as typeof before;
-    expect(after.seasons).toEqual({ count: 20, first: '2006/07', last: '2025/26', opened: ['2031/32'] });
+    expect(after.seasons).toEqual({ count: 20, first: '2006/07', last: '2025/26', opened: ['2026/27', '2031/32'] });
     // A season without records after the last recorded one is not a gap.
     expect(after.recordGaps).toEqual(before.recordGaps);
     // Nor do the price series run on into it.
