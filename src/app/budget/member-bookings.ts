@@ -1,4 +1,4 @@
-import { HttpClient, httpResource } from '@angular/common/http';
+import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, linkedSignal, signal } from '@angular/core';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatAnchor, MatButton } from '@angular/material/button';
@@ -6,13 +6,13 @@ import { MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
-import { firstValueFrom } from 'rxjs';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { ACCESS } from '../core/access';
 import { CautionNote } from '../shared/caution-note';
 import type { BookingReport, BookingRoundView, NutrientComparison } from '../../../shared/booking-types';
 import { day, kg, money, month, pct } from '../my-farm/bookings/booking-format';
+import { BookingsApi } from './bookings-api';
 
 interface BudgetRow {
   id: number;
@@ -33,7 +33,7 @@ interface BudgetRow {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class MemberBookings {
-  readonly #http = inject(HttpClient);
+  readonly #api = inject(BookingsApi);
   readonly #auth = inject(AuthStore);
 
   protected readonly canEdit = computed(() => this.#auth.hasRole(['treasurer', 'admin']));
@@ -83,7 +83,7 @@ export class MemberBookings {
     this.saving.set(true);
     this.saveProblem.set(null);
     try {
-      const saved = await firstValueFrom(this.#http.put<BookingRoundView>('/api/bookings/rounds', { season: v.season, budgetId: v.budgetId, discountDeadline: v.discountDeadline, vatPct: Number(v.vatPct) }));
+      const saved = await this.#api.saveRound({ season: v.season, budgetId: v.budgetId, discountDeadline: v.discountDeadline, vatPct: Number(v.vatPct) });
       this.showForm.set(false);
       this.rounds.reload();
       this.roundId.set(saved.id);
