@@ -21,6 +21,8 @@ export const elasticityMatrixSchema = nutrientRecord(nutrientRecord(z.number().m
  * - model-run: a succeeded run, evaluated per farm at expected prices (items not given: last season's mean).
  * - manual: kg N, P2O5, K2O given, optionally with elasticities for the scenarios.
  * - outlook: a published outlook version's co-op projection in one of its price scenarios (issue 6).
+ * - contracted: an outlook's contracted evaluation (issue 19): farms with signed contracts at their
+ *   committed output (conditional demand), every other farm as the outlook projects it.
  */
 export const budgetSourceSchema = z.discriminatedUnion('kind', [
   z.strictObject({
@@ -48,6 +50,14 @@ export const budgetSourceSchema = z.discriminatedUnion('kind', [
     pricing: z.enum(['outlook', 'list']).default('outlook'),
     /** Compute the outlook's other scenarios (low, high) beside the chosen one. */
     sideBySide: z.boolean().default(true),
+    items: z.strictObject({ nitrogen: itemCode, phosphate: itemCode, potash: itemCode }).partial().optional(),
+  }),
+  z.strictObject({
+    kind: z.literal('contracted'),
+    /** The outlook whose contracted evaluation gives the demand. */
+    outlookId: idSchema,
+    /** The evaluation (job) to use; default the outlook's latest finished one. */
+    evaluationId: idSchema.optional(),
     items: z.strictObject({ nitrogen: itemCode, phosphate: itemCode, potash: itemCode }).partial().optional(),
   }),
 ]);

@@ -49,7 +49,7 @@ export interface MixResult {
   warnings: string[];
 }
 
-export type SourceKind = 'model-run' | 'manual' | 'outlook';
+export type SourceKind = 'model-run' | 'manual' | 'outlook' | 'contracted';
 export type ElasticitySource = 'model-run' | 'given' | 'outlook' | 'none';
 export type ProductForm = 'solid' | 'liquid' | 'gas';
 

@@ -38,6 +38,7 @@ function sourceLine(r: DisplayedBudgetResult): string {
   const model = `model run ${d.runId}${d.modelName ? ` (${d.modelName})` : ''}`;
   if (r.source.kind === 'model-run') return `Model run ${d.runId}${d.modelName ? ` (${d.modelName})` : ''}, season ${d.seasonLabel ?? 'as fitted'}`;
   if (r.source.kind === 'manual') return 'Nutrient demand entered by hand';
+  if (r.source.kind === 'contracted') return `Contracted output: outlook ${(r.source.detail as { outlookId?: number }).outlookId}, season ${d.seasonLabel}, contract evaluation ${(r.source.detail as { evaluationId?: number }).evaluationId} (signed contracts at committed output, other farms as projected), ${model}`;
   return `Published outlook "${d.title}" version ${d.version}, season ${d.seasonLabel}, ${d.scenario} scenario, ${model}`;
 }
 

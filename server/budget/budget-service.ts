@@ -21,6 +21,7 @@ import { demandAt, farmPoints, modelDemand } from './model-demand.js';
 import { nutrientItemsOf, priceItemsOf } from './nutrient-items.js';
 import { BudgetInputError, NUTRIENTS, type Nutrient } from './nutrients.js';
 import { resolveOutlook } from './outlook-source.js';
+import { resolveContracted } from './contracted-source.js';
 
 /** Budget errors and engine input errors become a 422 naming the field. */
 async function asUnprocessable<T>(f: () => Promise<T> | T): Promise<T> {
@@ -77,6 +78,7 @@ async function resolveModelRun(db: Db, source: Extract<BudgetSource, { kind: 'mo
 export async function resolveSource(db: Db, source: BudgetSource): Promise<ResolvedSource> {
   if (source.kind === 'model-run') return resolveModelRun(db, source);
   if (source.kind === 'outlook') return resolveOutlook(db, source);
+  if (source.kind === 'contracted') return resolveContracted(db, source);
   const demand = { nitrogen: source.nKg, phosphate: source.p2o5Kg, potash: source.k2oKg };
   return {
     kind: 'manual',

@@ -54,9 +54,10 @@ export interface DisplayedBudgetResult extends BudgetResult {
  */
 export function inUnits(result: BudgetResult, system: UnitSystem): DisplayedBudgetResult {
   if (system === 'metric') return { ...result, unitSystem: 'metric' };
-  const detail = result.source.detail as { farms?: { demand: NutrientAmounts }[]; bands?: Record<string, { p5: number; p95: number }> };
+  const detail = result.source.detail as { farms?: { demand: NutrientAmounts }[]; bands?: Record<string, { p5: number; p95: number }>; outlookDemand?: NutrientAmounts };
   const shownDetail: Record<string, unknown> = { ...result.source.detail };
   if (detail.farms) shownDetail.farms = detail.farms.map((f) => ({ ...f, demand: amounts(f.demand) }));
+  if (detail.outlookDemand) shownDetail.outlookDemand = amounts(detail.outlookDemand);
   if (detail.bands) shownDetail.bands = Object.fromEntries(Object.entries(detail.bands).map(([k, b]) => [k, { p5: lb(b.p5), p95: lb(b.p95) }]));
   return {
     ...result,

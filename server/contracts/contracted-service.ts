@@ -221,6 +221,25 @@ export function contractedJobHandler(db: Db, pool: WorkerPool): JobHandler {
   };
 }
 
+/** A finished evaluation of an outlook: the one given by job id, else the latest; null when there is none. */
+export async function finishedView(db: Db, outlookId: number, jobId?: number): Promise<{ jobId: number; view: ContractedView } | null> {
+  const where = [eq(jobs.kind, CONTRACTED_JOB), eq(jobs.refId, outlookId), eq(jobs.status, 'done')];
+  if (jobId !== undefined) where.push(eq(jobs.id, jobId));
+  const [done] = await db
+    .select({ id: jobs.id, payload: jobs.payload })
+    .from(jobs)
+    .where(and(...where))
+    .orderBy(desc(jobs.id))
+    .limit(1);
+  const view = (done?.payload as JobPayload | undefined)?.view;
+  return done && view ? { jobId: done.id, view } : null;
+}
+
+/** Whether a view still matches the outlook's inputs and the season's binding contracts. */
+export async function viewIsStale(db: Db, view: ContractedView): Promise<boolean> {
+  return view.inputsHash !== (await currentHash(db, await outlookRow(db, view.outlookId)));
+}
+
 /** The latest finished view for a season (any outlook of it), or null. */
 export async function latestViewForSeason(db: Db, seasonId: number): Promise<ContractedView | null> {
   const [o] = await db.select({ id: outlooks.id }).from(outlooks).where(eq(outlooks.seasonId, seasonId));

@@ -11,7 +11,7 @@ import type { ContractedState, MyContracts } from '../../shared/contracted-view.
 import type { ContractRow } from '../../shared/contract-schemas.js';
 import { runContractedTask } from '../../server/outlook/contracted-task.js';
 import { gatherProjectionInputs } from '../../server/outlook/projection-service.js';
-import { mailOutbox, outlooks } from '../../server/db/schema/index.js';
+import { mailOutbox, outlooks, outlookVersions } from '../../server/db/schema/index.js';
 import { eq } from 'drizzle-orm';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
 
@@ -146,5 +146,57 @@ describe('the contracted view of an outlook', () => {
     const edit = await planner.put(`/api/contracts/${wheat.id}`).send({ ...wheat, quantity: wheat.quantity + 10, version: wheat.version });
     expect(edit.status).toBe(200);
     expect((await planner.get(`/api/contracts/outlooks/${outlookId}/evaluation`)).body.stale).toBe(true);
+  });
+
+  it('bases a fertiliser budget on contracted output: its nutrient demand is the contract basis, not the outlook’s', async () => {
+    const treasurer = await signedIn(t.app, 'treasurer@example.org');
+    const view = state.view!;
+    const projection = (await planner.get(`/api/outlooks/${outlookId}/projection`)).body.result;
+    const bookingPlan = { months: [{ month: '2026-08', share: 0.5, prepay: true }, { month: '2026-10', share: 0.5, prepay: false }], prepayDiscountPct: 2, paymentTermsDays: 30, deliveryMonth: '2027-02' };
+    const body = { name: 'On contracts 2026/27', source: { kind: 'contracted', outlookId }, bookingPlan };
+    const created = await treasurer.post('/api/budgets?units=metric').send(body);
+    expect(created.status, JSON.stringify(created.body)).toBe(201);
+    const r = created.body.result;
+    expect(r.source.kind).toBe('contracted');
+    // The demo's nitrogen, phosphate and potash items are measured in kg of the nutrient (seed/technology.ts).
+    expect(r.source.detail.nutrientItems).toEqual({ nitrogen: { code: 'nitrogen', kgPerUnit: 1 }, phosphate: { code: 'phosphate', kgPerUnit: 1 }, potash: { code: 'potash', kgPerUnit: 1 } });
+    // The conditional demand of each contracting farm (the evaluation's) plus every other farm's projection.
+    const evaluated = new Set(view.evaluation.farms.filter((f) => f.evaluated).map((f) => f.farm));
+    for (const n of ['nitrogen', 'phosphate', 'potash'] as const) {
+      let expected = 0;
+      for (const f of projection.farms as { code: string; items: { item: string; scenarios: { base: { point: number } } }[] }[])
+        expected += evaluated.has(f.code) ? view.evaluation.farms.find((x) => x.farm === f.code)!.inputs[n]!.point : f.items.find((i) => i.item === n)!.scenarios.base.point;
+      expect(r.demand.base[n]).toBeCloseTo(expected, 4);
+      expect(r.scenarios[0].demand[n]).toBeCloseTo(expected, 4);
+      expect(r.demand.base[n]).toBeCloseTo(view.demandBasis!.rows.find((x) => x.item === n)!.contracted.point, 6);
+    }
+    expect(r.demand.base.nitrogen).toBeGreaterThan(0);
+    // The contract was edited after the evaluation (above): the budget says so.
+    expect(r.warnings.join(' ')).toMatch(/changed after this contract evaluation/);
+
+    // The outlook-based budget on the published version of the same projection differs by the contracting farms.
+    const [version] = await t.database.db.select().from(outlookVersions).where(eq(outlookVersions.outlookId, outlookId));
+    const onOutlook = await treasurer.post('/api/budgets/preview?units=metric').send({ ...body, name: 'On the outlook', source: { kind: 'outlook', outlookVersionId: version!.id, pricing: 'list', sideBySide: false } });
+    expect(onOutlook.status, JSON.stringify(onOutlook.body)).toBe(200);
+    const outlookN = onOutlook.body.result.demand.base.nitrogen;
+    expect(outlookN).toBeCloseTo(projection.coop.items.find((i: { item: string }) => i.item === 'nitrogen').scenarios.base.point, 4);
+    expect(Math.abs(r.demand.base.nitrogen - outlookN)).toBeGreaterThan(1);
+    expect(r.source.detail.outlookDemand.nitrogen).toBeCloseTo(outlookN, 4);
+
+    // Saved, read back and saved again: the same figures.
+    const read = await treasurer.get(`/api/budgets/${created.body.id}?units=metric`);
+    expect(read.status).toBe(200);
+    expect(read.body.source).toEqual({ kind: 'contracted', outlookId });
+    expect(read.body.result.demand.base).toEqual(r.demand.base);
+    const put = await treasurer.put(`/api/budgets/${created.body.id}?units=metric`).send({ ...body, source: read.body.source, name: 'On contracts, again' });
+    expect(put.status, JSON.stringify(put.body)).toBe(200);
+    expect(put.body.result.demand.base).toEqual(r.demand.base);
+    expect(put.body.result.source.detail.evaluationId).toBe(r.source.detail.evaluationId);
+
+    // An outlook without a finished evaluation: a clear message naming the field.
+    const none = await treasurer.post('/api/budgets/preview').send({ ...body, source: { kind: 'contracted', outlookId: 999_999 } });
+    expect(none.status).toBe(422);
+    expect(JSON.stringify(none.body)).toMatch(/source\.outlookId/);
+    expect(JSON.stringify(none.body)).toMatch(/no finished contract evaluation/);
   });
 });

@@ -77,6 +77,15 @@ export interface SourceDetail {
   publishedAt?: string;
   scenario?: string;
   bands?: Record<Nutrient, { p5: number; p95: number }>;
+  // contracted output
+  evaluationId?: number;
+  computedAt?: string;
+  contracts?: number;
+  contractingFarms?: number;
+  farmsLeftOut?: string[];
+  /** The same outlook's base projection (every farm's output free), for comparison. */
+  outlookDemand?: Record<Nutrient, number>;
+  note?: string;
 }
 
 /** A stored or previewed result, in the unit system asked for (`unitSystem`). */

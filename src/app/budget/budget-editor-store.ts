@@ -59,7 +59,7 @@ const STANDING_CAUTIONS = [
 function blankValue(): BudgetFormValue {
   return {
     name: '',
-    source: { kind: 'manual', outlookVersionId: null, outlookScenario: 'base', outlookPricing: 'outlook', sideBySide: true, runId: null, season: null, nitrogen: 0, phosphate: 0, potash: 0 },
+    source: { kind: 'manual', outlookVersionId: null, outlookScenario: 'base', outlookPricing: 'outlook', sideBySide: true, runId: null, contractOutlookId: null, season: null, nitrogen: 0, phosphate: 0, potash: 0 },
     booking: defaultBooking(new Date().getFullYear() + 1),
     scenarios: [],
     products: [],
@@ -118,6 +118,8 @@ export class BudgetEditorStore {
   readonly productList = httpResource<FertiliserProduct[]>(() => (this.canEdit() ? '/api/fertiliser-products' : undefined));
   readonly versions = httpResource<OutlookVersionRow[]>(() => (this.canEdit() ? '/api/outlooks/versions' : undefined));
   readonly models = httpResource<ModelWithRuns[]>(() => (this.canEdit() ? '/api/models' : undefined));
+  /** Season outlooks, whose contracted evaluation a contracted-output source reads. */
+  readonly outlooks = httpResource<{ id: number; season: string; title: string }[]>(() => (this.canEdit() ? '/api/outlooks' : undefined));
 
   // the form
   readonly form = buildBudgetForm(this.#fb, blankValue());
@@ -143,6 +145,7 @@ export class BudgetEditorStore {
   readonly saving = signal(false);
 
   readonly versionOptions = computed(() => (this.versions.hasValue() ? this.versions.value() : []));
+  readonly contractOutlookOptions = computed(() => (this.outlooks.hasValue() ? this.outlooks.value() : []));
   readonly runOptions = computed<RunOption[]>(() => {
     const models = this.models.hasValue() ? this.models.value() : [];
     return models
@@ -454,6 +457,7 @@ export class BudgetEditorStore {
       outlookPricing: 'outlook',
       sideBySide: true,
       runId: run?.id ?? null,
+      contractOutlookId: this.contractOutlookOptions()[0]?.id ?? null,
       season: null,
       nitrogen: kind === 'manual' ? null : 0,
       phosphate: kind === 'manual' ? null : 0,
@@ -476,6 +480,10 @@ export class BudgetEditorStore {
       return v ? `Fertiliser purchases ${v.season}` : 'Fertiliser purchases';
     }
     if (source.kind === 'model-run' && source.runId !== null) return `Fertiliser purchases, model run #${source.runId}`;
+    if (source.kind === 'contracted') {
+      const o = this.contractOutlookOptions().find((x) => x.id === source.contractOutlookId);
+      return o ? `Fertiliser purchases ${o.season}, on contracts` : 'Fertiliser purchases, on contracts';
+    }
     return 'Fertiliser purchases';
   }
 

@@ -35,6 +35,8 @@ export interface SourceValue {
   /** The outlook's other scenarios computed beside the chosen one. */
   sideBySide: boolean;
   runId: number | null;
+  /** The outlook whose contracted evaluation a contracted-output source reads. */
+  contractOutlookId: number | null;
   /** First calendar year of the season a model run projects; empty: the run's last season + 1. */
   season: number | null;
   /** Hand-entered demand, in the mass unit shown (kg or lb). */
@@ -92,7 +94,7 @@ export interface BudgetFormValue {
 
 /** What the form does not edit but a save must keep (expected prices, item mapping, given elasticities...). */
 export interface Preserved {
-  sourceExtras: { prices?: Record<string, number>; items?: Partial<Record<Nutrient, string>>; elasticities?: ElasticityMatrix };
+  sourceExtras: { prices?: Record<string, number>; items?: Partial<Record<Nutrient, string>>; elasticities?: ElasticityMatrix; evaluationId?: number };
   referencePrices?: Partial<Record<Nutrient, number>>;
   /** Product price overrides of each scenario, by scenario name. */
   productPriceChanges: Record<string, Record<string, number>>;
@@ -184,6 +186,7 @@ export function formValueFromStored(name: string, stored: StoredInputs, list: Fe
     outlookPricing: s.kind === 'outlook' ? (s.pricing ?? 'list') : 'outlook',
     sideBySide: s.kind === 'outlook' ? (s.sideBySide ?? false) : true,
     runId: s.kind === 'model-run' ? s.runId : null,
+    contractOutlookId: s.kind === 'contracted' ? s.outlookId : null,
     season: s.kind === 'model-run' ? (s.season ?? null) : null,
     nitrogen: s.kind === 'manual' ? massToShown(s.nKg, system) : null,
     phosphate: s.kind === 'manual' ? massToShown(s.p2o5Kg, system) : null,
@@ -194,7 +197,8 @@ export function formValueFromStored(name: string, stored: StoredInputs, list: Fe
     if (s.prices && Object.keys(s.prices).length) sourceExtras.prices = s.prices;
     if (s.items) sourceExtras.items = s.items;
   }
-  if (s.kind === 'outlook' && s.items) sourceExtras.items = s.items;
+  if ((s.kind === 'outlook' || s.kind === 'contracted') && s.items) sourceExtras.items = s.items;
+  if (s.kind === 'contracted' && s.evaluationId !== undefined) sourceExtras.evaluationId = s.evaluationId;
   if (s.kind === 'manual' && s.elasticities) sourceExtras.elasticities = s.elasticities;
   const b = stored.bookingPlan;
   return {
@@ -244,6 +248,15 @@ export function sourceInput(v: SourceValue, system: UnitSystem, extras: Preserve
       scenario: v.outlookScenario || 'base',
       pricing: v.outlookPricing,
       sideBySide: v.sideBySide,
+      ...(extras.items ? { items: extras.items } : {}),
+    };
+  }
+  if (v.kind === 'contracted') {
+    if (v.contractOutlookId === null) return null;
+    return {
+      kind: 'contracted',
+      outlookId: v.contractOutlookId,
+      ...(extras.evaluationId !== undefined ? { evaluationId: extras.evaluationId } : {}),
       ...(extras.items ? { items: extras.items } : {}),
     };
   }
@@ -418,6 +431,7 @@ export function buildBudgetForm(fb: NonNullableFormBuilder, v: BudgetFormValue) 
       outlookPricing: fb.control<'outlook' | 'list'>(v.source.outlookPricing),
       sideBySide: [v.source.sideBySide],
       runId: fb.control<number | null>(v.source.runId),
+      contractOutlookId: fb.control<number | null>(v.source.contractOutlookId),
       season: fb.control<number | null>(v.source.season, [Validators.min(1900), Validators.max(2200)]),
       nitrogen: fb.control<number | null>(v.source.nitrogen, nonNegative),
       phosphate: fb.control<number | null>(v.source.phosphate, nonNegative),

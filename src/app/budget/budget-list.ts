@@ -15,7 +15,7 @@ import { NUTRIENTS, type BudgetListRow, type SourceKind } from './budget-api-typ
 import { BudgetUnitsStore, massToShown, unitLabels } from './budget-units';
 import { UnitSwitch } from './unit-switch';
 
-const SOURCE_LABEL: Record<SourceKind, string> = { outlook: 'Published outlook', 'model-run': 'Model run', manual: 'Entered by hand' };
+const SOURCE_LABEL: Record<SourceKind, string> = { outlook: 'Published outlook', 'model-run': 'Model run', manual: 'Entered by hand', contracted: 'Contracted output' };
 
 /** `/budget`: the co-op's fertiliser purchase budgets; treasurers start new ones. */
 @Component({

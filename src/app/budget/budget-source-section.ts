@@ -10,7 +10,7 @@ import { DemandSummary } from './demand-summary';
 import { BudgetEditorStore } from './budget-editor-store';
 import { NUTRIENT_LABEL } from './budget-api-types';
 
-/** Where the nutrient demand comes from: an outlook scenario, a model run or typed amounts, with the outlook's pricing options. Reads and acts through the page's BudgetEditorStore. */
+/** Where the nutrient demand comes from: an outlook scenario, contracted output, a model run or typed amounts, with the outlook's pricing options. Reads and acts through the page's BudgetEditorStore. */
 @Component({
   selector: 'np-budget-source-section',
   imports: [ReactiveFormsModule, DatePipe, DemandSummary, MatCheckbox, MatError, MatFormField, MatHint, MatInput, MatLabel, MatOption, MatRadioButton, MatRadioGroup, MatSelect, MatSuffix],
@@ -36,6 +36,7 @@ export class BudgetSourceSection {
   protected readonly sourceKind = this.#store.sourceKind;
   protected readonly stale = this.#store.stale;
   protected readonly versionOptions = this.#store.versionOptions;
+  protected readonly contractOutlookOptions = this.#store.contractOutlookOptions;
   protected readonly nutrientLabel = NUTRIENT_LABEL;
   /** A price per kg (or lb) of nutrient, to the cent. */
   protected formatPerMass(v: number): string {

@@ -64,6 +64,13 @@ export class DemandSummary {
       basis: REFERENCE_BASIS[this.result().referencePrices.basis[n]],
     })),
   );
+  /** A contract-based budget: the same outlook's unconditional demand, "N 41,200 kg · P2O5 …". */
+  protected readonly outlookBasis = computed(() => {
+    const o = this.detail().outlookDemand;
+    if (!o) return null;
+    const l = this.labels();
+    return NUTRIENTS.map((n) => `${this.nutrientLabel[n]} ${formatMass(o[n])} ${l.nutrient(n)}`).join(' · ');
+  });
   protected readonly farms = computed(() => this.detail().farms?.length ?? null);
   /** The plain reading of nitrogen's own-price elasticity (docs/profit-functions.md §9: "a 10 % rise in the nitrogen price..."). */
   protected readonly plainReading = computed(() => {

@@ -72,7 +72,7 @@ describe('budget unit conversions', () => {
   it('should re-express typed prices and amounts on a switch, so the same tonnes and prices are sent', () => {
     const value: BudgetFormValue = {
       name: 'Hand case',
-      source: { kind: 'manual', outlookVersionId: null, outlookScenario: 'base', outlookPricing: 'outlook', sideBySide: true, runId: null, season: null, nitrogen: 100_000, phosphate: 46_000, potash: 30_000 },
+      source: { kind: 'manual', outlookVersionId: null, outlookScenario: 'base', outlookPricing: 'outlook', sideBySide: true, runId: null, contractOutlookId: null, season: null, nitrogen: 100_000, phosphate: 46_000, potash: 30_000 },
       booking: defaultBooking(2027),
       scenarios: [],
       products: [

@@ -1,11 +1,10 @@
-import { HttpClient, httpResource } from '@angular/common/http';
+import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, linkedSignal, signal, untracked } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
-import { firstValueFrom } from 'rxjs';
 import type { ContractedState, DemandBand } from '../../../shared/contracted-view';
 import { nutrientAmount } from '../../../shared/contract-words';
 import { errorMessage } from '../core/api-error';
@@ -29,7 +28,6 @@ const signedPct = (v: number) => `${v > 0 ? '+' : v < 0 ? '−' : ''}${Math.abs(
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class ContractBasisSection {
-  readonly #http = inject(HttpClient);
   readonly #api = inject(ContractsApi);
   protected readonly outlooks = httpResource<{ id: number; season: string; title: string }[]>(() => '/api/outlooks');
   protected readonly outlookId = linkedSignal<number | null>(() => (this.outlooks.hasValue() ? (this.outlooks.value()[0]?.id ?? null) : null));
@@ -66,7 +64,7 @@ export class ContractBasisSection {
   async #load(id: number): Promise<void> {
     clearTimeout(this.#timer);
     try {
-      const s = await firstValueFrom(this.#http.get<ContractedState>(`/api/contracts/outlooks/${id}/evaluation`));
+      const s = await this.#api.state(id);
       if (id !== this.outlookId()) return;
       this.state.set(s);
       this.problem.set(null);

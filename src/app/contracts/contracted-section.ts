@@ -1,11 +1,9 @@
 import { DecimalPipe } from '@angular/common';
-import { HttpClient } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import { firstValueFrom } from 'rxjs';
 import type { ContractedState, ContractedView } from '../../../shared/contracted-view';
 import { errorMessage } from '../core/api-error';
 import { CautionNote } from '../shared/caution-note';
@@ -32,7 +30,6 @@ export class ContractedSection {
   /** Whether this person may start an evaluation. */
   readonly canRun = input(false);
 
-  readonly #http = inject(HttpClient);
   readonly #api = inject(ContractsApi);
   protected readonly state = signal<ContractedState | null>(null);
   protected readonly problem = signal<string | null>(null);
@@ -97,7 +94,7 @@ export class ContractedSection {
   async #load(id: number): Promise<void> {
     clearTimeout(this.#timer);
     try {
-      const s = await firstValueFrom(this.#http.get<ContractedState>(`/api/contracts/outlooks/${id}/evaluation`));
+      const s = await this.#api.state(id);
       this.state.set(s);
       this.problem.set(null);
       if (s.status === 'queued' || s.status === 'running') this.#timer = setTimeout(() => void this.#load(id), POLL_MS);

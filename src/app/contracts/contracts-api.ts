@@ -4,7 +4,7 @@ import { firstValueFrom } from 'rxjs';
 import type { ContractInput, ContractRow } from '../../../shared/contract-schemas';
 import type { ContractedState } from '../../../shared/contracted-view';
 
-/** `/api/contracts`: delivery contracts, and the contracted view of an outlook. */
+/** `/api/contracts`: delivery contracts, and the contracted view of an outlook (the one place the contracts screens use HttpClient). */
 @Injectable({ providedIn: 'root' })
 export class ContractsApi {
   readonly #http = inject(HttpClient);
@@ -17,6 +17,10 @@ export class ContractsApi {
   }
   remove(id: number): Promise<void> {
     return firstValueFrom(this.#http.delete<void>(`/api/contracts/${id}`));
+  }
+  /** The outlook's contracted view: the latest evaluation's state (polled while one runs). */
+  state(outlookId: number): Promise<ContractedState> {
+    return firstValueFrom(this.#http.get<ContractedState>(`/api/contracts/outlooks/${outlookId}/evaluation`));
   }
   evaluate(outlookId: number): Promise<ContractedState> {
     return firstValueFrom(this.#http.post<ContractedState>(`/api/contracts/outlooks/${outlookId}/evaluation`, {}));
