@@ -57,6 +57,17 @@ describe('formValueFromStored and toBudgetInput', () => {
     expect(input.options).toEqual({ lotRule: 'whole-lots' });
   });
 
+  it('should send a contracted-output source back as saved, with its pinned evaluation and named items', () => {
+    for (const source of [
+      { kind: 'contracted' as const, outlookId: 4 },
+      { kind: 'contracted' as const, outlookId: 4, evaluationId: 17, items: { nitrogen: 'urea_n' } },
+    ]) {
+      const { value, preserved } = formValueFromStored('On contracts', { ...stored, source }, list, 'metric');
+      expect(value.source).toMatchObject({ kind: 'contracted', contractOutlookId: 4, runId: null, outlookVersionId: null });
+      expect(toBudgetInput(value, 'metric', preserved)!.source).toEqual(source);
+    }
+  });
+
   it('should offer the other listed products unticked, and mark a product gone from the list', () => {
     const gone = { ...stored, products: [...stored.products, { ...copy(list[2]!), productId: 99, name: 'Old blend' }] };
     const { value } = formValueFromStored('x', gone, list, 'metric');
