@@ -77,3 +77,18 @@ export async function paymentById(db: Db, id: number) {
 export async function pendingPayments(db: Db) {
   return db.select().from(bookingPayments).where(eq(bookingPayments.state, 'pending')).orderBy(asc(bookingPayments.id));
 }
+
+/** The lines of every booking not cancelled in the round of a season (none: no round). */
+export async function seasonBookedLines(db: Db, seasonId: number) {
+  return db
+    .select({ farmId: bookings.farmId, lines: bookings.lines })
+    .from(bookings)
+    .innerJoin(bookingRounds, eq(bookingRounds.id, bookings.roundId))
+    .where(and(eq(bookingRounds.seasonId, seasonId), ne(bookings.status, 'cancelled')));
+}
+
+/** Whether the co-op opened a booking round for a season. */
+export async function seasonHasRound(db: Db, seasonId: number) {
+  const [row] = await db.select({ id: bookingRounds.id }).from(bookingRounds).where(eq(bookingRounds.seasonId, seasonId));
+  return row !== undefined;
+}

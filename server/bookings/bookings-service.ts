@@ -13,7 +13,7 @@ import { bookingPayments, bookingRounds, bookings, budgets, farms, items, outloo
 import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { leastCostTonnes } from '../budget/product-mix.js';
-import { gradeLabel, NUTRIENTS, type Nutrient, type NutrientAmounts } from '../budget/nutrients.js';
+import { gradeLabel, itemNutrients, NUTRIENTS, type Nutrient, type NutrientAmounts } from '../budget/nutrients.js';
 import { seasonFor } from '../outlook/outlook-service.js';
 import { bookingAmounts, percentToBp, toMinor } from '../../shared/booking-money.js';
 import {
@@ -145,12 +145,8 @@ export async function projectedNeeds(db: Db, seasonId: number, farmId?: number):
       const row = byCode.get(it.item);
       const q = it.scenarios?.['base']?.point;
       if (!row || typeof q !== 'number' || !(q > 0)) continue;
-      const unit = row.unit.trim().toLowerCase();
-      const mass = /^kg\b/.test(unit) ? 1 : /^(t|tonnes?)\b/.test(unit) ? 1000 : null;
-      if (mass === null) continue;
-      const pct: Record<Nutrient, number | null> = { nitrogen: row.nPct, phosphate: row.p2o5Pct, potash: row.k2oPct };
-      const graded = NUTRIENTS.some((n) => (pct[n] ?? 0) > 0);
-      for (const n of NUTRIENTS) if (graded && pct[n]) need[n] += (q * mass * pct[n]!) / 100;
+      const kg = itemNutrients(row, q);
+      if (kg) for (const n of NUTRIENTS) need[n] += kg[n];
     }
     needs.set(p.farmId, need);
   }

@@ -44,3 +44,15 @@ export class BudgetInputError extends Error {
     this.name = 'BudgetInputError';
   }
 }
+
+/**
+ * kg of N, P2O5 and K2O in a quantity of a farm item counted by mass (kg or t) with a grade, as the
+ * outlook and the farm records count fertiliser; null for an item without a grade or not by mass.
+ */
+export function itemNutrients(item: { unit: string; nPct: number | null; p2o5Pct: number | null; k2oPct: number | null }, quantity: number): NutrientAmounts | null {
+  const unit = item.unit.trim().toLowerCase();
+  const mass = /^kg\b/.test(unit) ? 1 : /^(t|tonnes?)\b/.test(unit) ? 1000 : null;
+  const pct: Record<Nutrient, number | null> = { nitrogen: item.nPct, phosphate: item.p2o5Pct, potash: item.k2oPct };
+  if (mass === null || !NUTRIENTS.some((n) => (pct[n] ?? 0) > 0)) return null;
+  return mapAmounts(zeroAmounts(), (_v, n) => (pct[n] ? (quantity * mass * pct[n]!) / 100 : 0));
+}

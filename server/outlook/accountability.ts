@@ -6,9 +6,12 @@
  */
 import { and, asc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { farmRecords, items, outlookVersionFarms, outlookVersions, seasons } from '../db/schema/index.js';
+import { farmRecords, farms, items, outlookVersionFarms, outlookVersions, seasons } from '../db/schema/index.js';
 import { priceSeries } from '../prices/prices-repository.js';
 import type { Comparison, FarmOutlook, OutlookSnapshot } from '../../shared/outlook-types.js';
+import { itemNutrients, NUTRIENT_LABEL, NUTRIENTS, zeroAmounts, type Nutrient, type NutrientAmounts } from '../budget/nutrients.js';
+import { seasonBookedLines, seasonHasRound } from '../bookings/bookings-repository.js';
+import type { BookingLine } from '../../shared/booking-types.js';
 
 export type { Comparison } from '../../shared/outlook-types.js';
 
@@ -94,6 +97,131 @@ async function seasonReport(db: Db, v: VersionRow, itemRows: (typeof items.$infe
     items: coopItems,
     prices,
     farms: farmsOut,
+    fertiliser: await fertiliserReport(db, v, parts, itemRows),
+  };
+}
+
+// ---- fertiliser: projected, booked and used ---------------------------------------------------
+
+const NUTRIENT_NAME: Record<Nutrient, string> = { nitrogen: 'Nitrogen', phosphate: 'Phosphate', potash: 'Potash' };
+const kgWords = (v: number, n: Nutrient) => `${Math.round(v).toLocaleString('en-GB')} kg ${NUTRIENT_LABEL[n]}`;
+const share = (a: number, b: number) => `${Math.round((100 * a) / b)} %`;
+
+/** One nutrient of one farm (or of the farms with records together), in kg of the nutrient. */
+export interface FertiliserComparison {
+  nutrient: Nutrient;
+  name: string;
+  unit: string;
+  /** The published outlook's base point projection (null: the farm was not projected). */
+  projected: number | null;
+  /** Booked through the co-op's booking round (null: no round for the season). */
+  booked: number | null;
+  /** Used, from the farm records (null: no fertiliser recorded). */
+  actual: number | null;
+  /** booked ÷ actual (null when either is missing or nothing was used). */
+  bookedShareOfUse: number | null;
+  /** (projected − actual) / actual in percent, the sign of the other errors. */
+  errorPct: number | null;
+  words: string;
+}
+
+function fertiliserRow(n: Nutrient, projected: number | null, booked: number | null, actual: number | null): FertiliserComparison {
+  const parts: string[] = [];
+  parts.push(projected === null ? 'there was no projection' : `the outlook projected ${kgWords(projected, n)}`);
+  if (booked === null) parts.push('the co-op took no bookings for the season');
+  else parts.push(booked > 0 ? `members booked ${kgWords(booked, n)} through the co-op${projected ? ` (${share(booked, projected)} of the projection)` : ''}` : 'nothing was booked through the co-op');
+  if (actual === null) parts.push('no use is recorded yet');
+  else {
+    let used = `the records show ${kgWords(actual, n)} used`;
+    if (actual > 0 && booked !== null) used += `, so the bookings covered ${share(booked, actual)} of use`;
+    if (actual > 0 && projected !== null) {
+      const e = (100 * (projected - actual)) / actual;
+      used += Math.abs(e) < 0.5 ? ' and the projection matched use' : `, and the projection was ${Math.abs(Math.round(e))} % ${e > 0 ? 'above' : 'below'} use`;
+    }
+    parts.push(used);
+  }
+  const words = `${NUTRIENT_NAME[n]} (${NUTRIENT_LABEL[n]}): ${parts.slice(0, -1).join(', ')} and ${parts.at(-1)}.`;
+  return {
+    nutrient: n,
+    name: `${NUTRIENT_NAME[n]} (${NUTRIENT_LABEL[n]})`,
+    unit: `kg ${NUTRIENT_LABEL[n]}`,
+    projected,
+    booked,
+    actual,
+    bookedShareOfUse: booked !== null && actual !== null && actual > 0 ? booked / actual : null,
+    errorPct: projected !== null ? pct(projected, actual) : null,
+    words,
+  };
+}
+
+/**
+ * Per nutrient and per farm with records in the season: the projection of the published outlook
+ * (fertiliser items by their grade), what the members booked for that season (each line's nutrients
+ * by the product's analysis, as booked), and what the farm records show was used. The co-op rows add
+ * up the farms with records only, so the three figures cover the same farms.
+ */
+async function fertiliserReport(db: Db, v: VersionRow, parts: FarmOutlook[], itemRows: (typeof items.$inferSelect)[]) {
+  const graded = itemRows.filter((i) => i.category === 'fertiliser' && itemNutrients(i, 1) !== null);
+  const gradedById = new Map(graded.map((i) => [i.id, i]));
+  const gradedByCode = new Map(graded.map((i) => [i.code, i]));
+  const recs = await db
+    .select({ farmId: farmRecords.farmId, itemId: farmRecords.itemId, quantity: farmRecords.quantity, code: farms.code, name: farms.name })
+    .from(farmRecords)
+    .innerJoin(farms, eq(farms.id, farmRecords.farmId))
+    .where(eq(farmRecords.seasonId, v.seasonId));
+  const hasRound = await seasonHasRound(db, v.seasonId);
+  const booked = await seasonBookedLines(db, v.seasonId);
+  const add = (into: NutrientAmounts, a: NutrientAmounts | null) => {
+    if (a) for (const n of NUTRIENTS) into[n] += a[n];
+  };
+  const farmIds = [...new Map(recs.map((r) => [r.farmId, { code: r.code, name: r.name }])).entries()].sort((a, b) => a[1].code.localeCompare(b[1].code));
+  const totals = { projected: zeroAmounts(), booked: zeroAmounts(), actual: zeroAmounts(), projectedFarms: 0, usedFarms: 0 };
+  const farmsOut = farmIds.map(([farmId, f]) => {
+    const part = parts.find((p) => p.farmId === farmId);
+    let projected: NutrientAmounts | null = null;
+    if (part) {
+      projected = zeroAmounts();
+      for (const it of part.items) {
+        const row = gradedByCode.get(it.item);
+        if (row) add(projected, itemNutrients(row, it.scenarios.base!.point));
+      }
+    }
+    const mine = recs.filter((r) => r.farmId === farmId && gradedById.has(r.itemId));
+    let actual: NutrientAmounts | null = null;
+    if (mine.length) {
+      actual = zeroAmounts();
+      for (const r of mine) add(actual, itemNutrients(gradedById.get(r.itemId)!, r.quantity));
+    }
+    let bookedKg: NutrientAmounts | null = null;
+    if (hasRound) {
+      bookedKg = zeroAmounts();
+      for (const b of booked.filter((x) => x.farmId === farmId)) for (const l of b.lines as BookingLine[]) add(bookedKg, l.nutrients);
+    }
+    add(totals.projected, projected);
+    add(totals.booked, bookedKg);
+    add(totals.actual, actual);
+    if (projected) totals.projectedFarms++;
+    if (actual) totals.usedFarms++;
+    return {
+      farmId,
+      code: f.code,
+      name: f.name,
+      nutrients: NUTRIENTS.map((n) => fertiliserRow(n, projected?.[n] ?? null, bookedKg?.[n] ?? null, actual?.[n] ?? null)),
+    };
+  });
+  const withRecords = farmsOut.length;
+  return {
+    bookingRound: hasRound,
+    farmsWithRecords: withRecords,
+    nutrients: withRecords
+      ? NUTRIENTS.map((n) =>
+          fertiliserRow(n, totals.projectedFarms ? totals.projected[n] : null, hasRound ? totals.booked[n] : null, totals.usedFarms ? totals.actual[n] : null),
+        )
+      : [],
+    farms: farmsOut,
+    note: withRecords
+      ? `Over the ${withRecords} farm${withRecords === 1 ? '' : 's'} with records for ${v.season}. Booked nutrients follow each product's analysis as booked; use follows the fertiliser recorded on each farm, by its grade. A farm may also buy elsewhere or carry stock over.`
+      : `No farm has records for ${v.season} yet: booked and used fertiliser are set against the projection when they come.`,
   };
 }
 

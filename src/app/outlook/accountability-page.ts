@@ -14,7 +14,7 @@ import { gridTheme } from '../shared/grid';
 import { FAN_COLOURS } from './fan-chart';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, formatPercent, formatPrice, formatQuantity, formatShare, formatSignedPercent } from './outlook-format';
-import type { Accountability, AccountabilitySeason, Comparison } from './outlook-api-types';
+import type { Accountability, AccountabilitySeason, Comparison, FertiliserComparison } from './outlook-api-types';
 import { SERIES } from '../../../shared/design-tokens';
 import { CHART_TEXT } from '../shared/chart-theme';
 
@@ -57,6 +57,11 @@ const num = (f: (v: number) => string) => (p: { value: unknown }) => (typeof p.v
 const yesNo = (p: { value: unknown }) => (p.value === null || p.value === undefined ? '—' : p.value ? 'yes' : 'no');
 
 interface FarmComparisonRow extends Comparison {
+  code: string;
+  farm: string;
+}
+
+interface FarmFertiliserRow extends FertiliserComparison {
   code: string;
   farm: string;
 }
@@ -171,6 +176,22 @@ export class AccountabilityPage {
     { field: 'errorPct', headerName: 'Error', type: 'numericColumn', width: 110, filter: 'agNumberColumnFilter', valueFormatter: num((v) => formatSignedPercent(v)) },
     { field: 'withinBand', headerName: 'In band', width: 100, valueFormatter: yesNo },
   ];
+
+  protected readonly fertiliserColumns: ColDef<FarmFertiliserRow>[] = [
+    { field: 'code', headerName: 'Code', width: 90 },
+    { field: 'farm', headerName: 'Farm', minWidth: 160, flex: 2, filter: 'agTextColumnFilter', tooltipField: 'words' },
+    { field: 'name', headerName: 'Nutrient', minWidth: 140, flex: 1, tooltipField: 'words' },
+    { field: 'projected', headerName: 'Projected, kg', type: 'numericColumn', width: 140, valueFormatter: num(formatQuantity) },
+    { field: 'booked', headerName: 'Booked, kg', type: 'numericColumn', width: 130, valueFormatter: num(formatQuantity) },
+    { field: 'actual', headerName: 'Used, kg', type: 'numericColumn', width: 130, valueFormatter: num(formatQuantity) },
+    { field: 'bookedShareOfUse', headerName: 'Booked of use', type: 'numericColumn', width: 140, valueFormatter: num(formatShare) },
+    { field: 'errorPct', headerName: 'Projection error', type: 'numericColumn', width: 150, valueFormatter: num((v) => formatSignedPercent(v)) },
+  ];
+
+  /** Per version id, every farm × nutrient row of the fertiliser comparison. */
+  protected readonly fertiliserRows = computed(
+    () => new Map<number, FarmFertiliserRow[]>(this.seasons().map((s) => [s.versionId, (s.fertiliser?.farms ?? []).flatMap((f) => f.nutrients.map((n) => ({ ...n, code: f.code, farm: f.name })))])),
+  );
 
   /** Per version id, every farm × item comparison as one flat list for the grid. */
   protected readonly farmRows = computed(

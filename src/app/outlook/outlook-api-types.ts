@@ -212,6 +212,27 @@ export interface AccountabilitySeason {
     withinRange: boolean | null;
   }[];
   farms: { farmId: number; code: string; name: string; items: Comparison[] }[];
+  /** Fertiliser per nutrient: the outlook's projection, members' bookings and recorded use (server/outlook/accountability.ts). */
+  fertiliser: {
+    bookingRound: boolean;
+    farmsWithRecords: number;
+    nutrients: FertiliserComparison[];
+    farms: { farmId: number; code: string; name: string; nutrients: FertiliserComparison[] }[];
+    note: string;
+  };
+}
+
+/** One nutrient, in kg of the nutrient: projected, booked, used (null: none to show), with a sentence. */
+export interface FertiliserComparison {
+  nutrient: 'nitrogen' | 'phosphate' | 'potash';
+  name: string;
+  unit: string;
+  projected: number | null;
+  booked: number | null;
+  actual: number | null;
+  bookedShareOfUse: number | null;
+  errorPct: number | null;
+  words: string;
 }
 
 /** `GET /api/outlooks/accountability?version=latest|first`. */
