@@ -43,6 +43,8 @@ function startServer(dataDir: string, smtpUrl: string): Promise<Server> {
       APP_DIR: path.join(dataDir, 'no-app'),
       OUTBOX_SEND_DELAY_MS: String(SEND_DELAY_MS),
       DATABASE_URL: '',
+      // The bare demo: this test makes and publishes its own 2026/27 outlook.
+      NETPUT_DEMO_PREPARE: '0',
     },
     stdio: ['ignore', 'pipe', 'pipe'],
     // tsx runs the server in a child node process: give them a process group of their own, so that a

@@ -25,7 +25,7 @@ export async function startServerProcess(env: Record<string, string>, timeoutMs 
   const port = await freePort();
   let out = '';
   const child = spawn('node_modules/.bin/tsx', ['server/main.ts'], {
-    env: { ...process.env, LOG_LEVEL: 'warn', PORT: String(port), APP_DIR: '/nonexistent', ...env },
+    env: { ...process.env, LOG_LEVEL: 'warn', PORT: String(port), APP_DIR: '/nonexistent', NETPUT_DEMO_PREPARE: '0', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],
     // tsx runs the server in a child node process: a process group of their own lets a signal
     // (SIGKILL above all) reach the server itself and not only the tsx wrapper.
