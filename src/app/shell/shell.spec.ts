@@ -74,7 +74,7 @@ describe('Shell', () => {
   it('should show a planner the co-op pages and the audit log, but no user administration', async () => {
     await render('planner');
 
-    expect(navPaths()).toEqual(['/', '/prices', '/farms', '/imports', '/reference', '/models', '/outlook', '/budget', '/admin/audit', '/account']);
+    expect(navPaths()).toEqual(['/', '/prices', '/farms', '/imports', '/contracts', '/reference', '/models', '/outlook', '/budget', '/admin/audit', '/account']);
     expect(navLabels().join(' | ')).not.toMatch(/Users|Co-op settings|Mail outbox/);
   });
 
@@ -87,7 +87,7 @@ describe('Shell', () => {
   it('should show a treasurer farms but no administration heading', async () => {
     await render('treasurer');
 
-    expect(navPaths()).toEqual(['/', '/prices', '/farms', '/reference', '/models', '/outlook', '/budget', '/account']);
+    expect(navPaths()).toEqual(['/', '/prices', '/farms', '/contracts', '/reference', '/models', '/outlook', '/budget', '/account']);
     expect((fixture.nativeElement as HTMLElement).textContent).not.toContain('Administration');
   });
 
@@ -99,6 +99,7 @@ describe('Shell', () => {
       '/prices',
       '/farms',
       '/imports',
+      '/contracts',
       '/reference',
       '/models',
       '/outlook',
@@ -140,6 +141,6 @@ describe('Shell', () => {
     const steps = [...(fixture.nativeElement as HTMLElement).querySelectorAll('nav[aria-label=Main] ol.path > li')].map((li) =>
       [...li.querySelectorAll('.nav-label')].map((label) => label.textContent?.trim()).join(', '),
     );
-    expect(steps).toEqual(['Prices, Farms, Imports, Reference data', 'Models', 'Outlook', 'Budget']);
+    expect(steps).toEqual(['Prices, Farms, Imports, Contracts, Reference data', 'Models', 'Outlook', 'Budget']);
   });
 });
