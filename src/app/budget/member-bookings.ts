@@ -68,8 +68,9 @@ export class MemberBookings {
 
   protected readonly fmt = { money, kg, pct, day, month };
 
-  protected openForm() {
-    const r = this.round();
+  /** The form for the round shown, or blank for another season's round. */
+  protected openForm(blank = false) {
+    const r = blank ? null : this.round();
     this.form.reset({ season: r?.season ?? '', budgetId: r?.budgetId ?? null, discountDeadline: r?.discountDeadline ?? '', vatPct: r ? r.vatBp / 100 : null });
     this.showForm.set(true);
   }

@@ -101,6 +101,11 @@ export class AccountabilityPage {
     (this.a()?.seasons ?? []).some((s) => s.items.some((i) => i.errorPct !== null) || s.prices.some((p) => p.errorPct !== null) || s.farms.some((f) => f.items.some((i) => i.errorPct !== null))),
   );
   protected readonly seasons = computed(() => [...(this.a()?.seasons ?? [])].sort((x, y) => y.startYear - x.startYear));
+  /** The season opened on arrival: the newest with something recorded, not a newer one still waiting for its records. */
+  protected readonly openedSeason = computed(() => {
+    const list = this.seasons();
+    return (list.find((s) => s.status !== 'awaiting records') ?? list[0])?.versionId ?? null;
+  });
   protected readonly priceSummary = computed(() => {
     const a = this.a();
     if (!a) return [];

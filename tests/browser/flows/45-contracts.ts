@@ -21,7 +21,8 @@ async function bothWidths(page: Page, name: string, focus?: Locator): Promise<vo
 /**
  * Issue 19: a planner records a delivery contract in the form and more from a file, evaluates the
  * season's contracts on the outlook and reads the margin per tonne; the treasurer compares the
- * contract-based demand with the outlook's in the budget; a member reads their own contract.
+ * contract-based demand with the outlook's in the budget and builds a budget on the contracted
+ * output; a member reads their own contract.
  */
 export default async function contracts({ base, page }: Harness): Promise<void> {
   const dir = mkdtempSync(join(tmpdir(), 'netput-contracts-'));
@@ -99,6 +100,63 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
         await section.scrollIntoViewIfNeeded();
       });
       await bothWidths(page, 'contracts-budget', page.getByRole('heading', { name: 'Contracts or outlook: which demand to budget on' }));
+
+      let contractBudget = 0;
+      await check('the treasurer builds a budget on the contracted output of 2026/27, saves it and reads the contract basis beside the outlook basis after a reload', async () => {
+        await page.goto(`${base}/budget/new`);
+        await page.getByRole('heading', { name: 'Nutrient demand and where it comes from' }).waitFor({ timeout: 30_000 });
+        const contracted = page.getByRole('radio', { name: 'Contracted output' });
+        // Enabled once the season outlooks have loaded.
+        await page.waitForFunction(() => {
+          const radio = [...document.querySelectorAll('input[type="radio"]')].find((r) => r.closest('mat-radio-button')?.textContent?.includes('Contracted output'));
+          return radio instanceof HTMLInputElement && !radio.disabled;
+        });
+        const outlooks = (await page.evaluate(() => fetch('/api/outlooks').then((r) => r.json()))) as { id: number; season: string }[];
+        const season = outlooks.find((x) => x.season === '2026/27');
+        assert(season, 'no 2026/27 outlook');
+        // The preview of this very source (an earlier one may be of another outlook, before the choice below).
+        const preview = page.waitForResponse((r) => {
+          if (new URL(r.url()).pathname !== '/api/budgets/preview' || r.request().method() !== 'POST') return false;
+          const source = (JSON.parse(r.request().postData() ?? '{}') as { source?: { kind?: string; outlookId?: number } }).source;
+          return source?.kind === 'contracted' && source.outlookId === season.id;
+        }, { timeout: 60_000 });
+        await contracted.click();
+        await page.getByRole('combobox', { name: 'Season outlook' }).click();
+        await page.getByRole('option', { name: /2026\/27/ }).click();
+        const answer = await preview;
+        assert(answer.ok(), `the preview answered ${answer.status()}: ${(await answer.text()).slice(0, 300)}`);
+        const saved = page.waitForResponse((r) => new URL(r.url()).pathname === '/api/budgets' && r.request().method() === 'POST', { timeout: 60_000 });
+        await page.getByRole('button', { name: 'Save budget' }).click();
+        const created = await saved;
+        assert(created.status() === 201, `POST /api/budgets answered ${created.status()}: ${(await created.text()).slice(0, 300)}`);
+        contractBudget = ((await created.json()) as { id: number }).id;
+        await page.waitForURL(new RegExp(`/budget/${contractBudget}$`));
+        await page.reload();
+        const facts = page.locator('np-demand-summary dl.facts');
+        const from = facts.locator('dt', { hasText: /^Demand from$/ }).locator('xpath=following-sibling::dd[1]');
+        await from.waitFor({ timeout: 30_000 });
+        const fromText = (await from.innerText()).replace(/\s+/g, ' ').trim();
+        const farms = /^Contracted output, season 2026\/27: (\d+) contracting farms? at their signed tonnage \(conditional demand\), every other farm as the outlook projects it/.exec(fromText);
+        assert(farms && Number(farms[1]) >= 1, `"Demand from" reads "${fromText}"`);
+        const basis = (await facts.locator('dt', { hasText: /^Outlook basis$/ }).locator('xpath=following-sibling::dd[1]').innerText()).replace(/\s+/g, ' ').trim();
+        const outlook = /^N ([\d,.]+) kg N · P2O5 ([\d,.]+) kg P2O5 · K2O ([\d,.]+) kg K2O \(every farm's output free, for comparison\)$/.exec(basis);
+        assert(outlook && outlook.slice(1).every((v) => Number(v.replaceAll(',', '')) > 0), `"Outlook basis" reads "${basis}"`);
+        const demand = page.getByRole('table', { name: 'Base nutrient demand' });
+        for (const label of ['N', 'P2O5', 'K2O']) {
+          const cell = (await demand.getByRole('row').filter({ has: page.getByRole('rowheader', { name: label, exact: true }) }).locator('td').first().innerText()).trim();
+          assert(new RegExp(`^[\\d,.]+ kg ${label}$`).test(cell) && Number(cell.split(' ')[0]!.replaceAll(',', '')) > 0, `base ${label} demand reads "${cell}"`);
+        }
+      });
+      if (contractBudget > 0) {
+        const heading = page.getByRole('heading', { name: 'Nutrient demand and where it comes from' });
+        await heading.evaluate((el) => el.scrollIntoView({ block: 'start' }));
+        await shot(page, 'contracts-budget-contracted-1280');
+        await page.setViewportSize({ width: 390, height: 844 });
+        await page.waitForTimeout(800);
+        await heading.evaluate((el) => el.scrollIntoView({ block: 'start' }));
+        await shot(page, 'contracts-budget-contracted-390');
+        await page.setViewportSize({ width: 1280, height: 860 });
+      }
       await check('the treasurer signs out', () => signOut(page));
     }
 
