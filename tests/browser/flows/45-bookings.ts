@@ -120,9 +120,8 @@ async function fertiliserAccountability(base: string, page: Page): Promise<void>
     const potash = (await words.filter({ hasText: /^Potash/ }).innerText()).trim();
     assert(/members booked 1,500 kg K2O/.test(potash), `the potash sentence reads "${potash}"`);
     const grid = panel.locator('ag-grid-angular[aria-label="Fertiliser per farm 2025/26"]');
-    const row = grid.locator('.ag-row[row-index="0"]').first();
-    await row.waitFor();
-    const cell = async (col: string) => (await row.locator(`.ag-cell[col-id="${col}"]`).innerText()).trim();
+    // The first row: the first farm by code, nitrogen.
+    const cell = async (col: string) => (await grid.locator(`.ag-row[row-index="0"] .ag-cell[col-id="${col}"]`).first().innerText()).trim();
     const [code, farm, nutrient, projected, bookedKg, used] = [await cell('code'), await cell('farm'), await cell('name'), await cell('projected'), await cell('booked'), await cell('actual')];
     assert(/^F\d+$/.test(code) && farm.length > 0 && nutrient === 'Nitrogen (N)', `first farm row: ${code} | ${farm} | ${nutrient}`);
     for (const [what, v] of [['projected', projected], ['booked', bookedKg], ['used', used]] as const) assert(/^−?[\d,]+(\.\d+)?$/.test(v), `${what} reads "${v}" in the row of ${code}`);

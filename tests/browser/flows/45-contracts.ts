@@ -104,7 +104,7 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
       let contractBudget = 0;
       await check('the treasurer builds a budget on the contracted output of 2026/27, saves it and reads the contract basis beside the outlook basis after a reload', async () => {
         await page.goto(`${base}/budget/new`);
-        await page.getByRole('heading', { name: 'Nutrient demand and where it comes from' }).waitFor({ timeout: 30_000 });
+        await page.getByRole('heading', { name: 'Nutrient demand and where it comes from' }).first().waitFor({ timeout: 30_000 });
         const contracted = page.getByRole('radio', { name: 'Contracted output' });
         // Enabled once the season outlooks have loaded.
         await page.waitForFunction(() => {
@@ -148,7 +148,7 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
         }
       });
       if (contractBudget > 0) {
-        const heading = page.getByRole('heading', { name: 'Nutrient demand and where it comes from' });
+        const heading = page.getByRole('heading', { name: 'Nutrient demand and where it comes from' }).first();
         await heading.evaluate((el) => el.scrollIntoView({ block: 'start' }));
         await shot(page, 'contracts-budget-contracted-1280');
         await page.setViewportSize({ width: 390, height: 844 });
