@@ -14,10 +14,13 @@ import { DatabaseRateLimitStore } from './rate-limit-store.js';
 const tokenParams = z.object({ token: z.string().min(20).max(100).regex(/^[A-Za-z0-9_-]+$/, 'Not a valid link') });
 
 export function authRoutes(ctx: AppContext): RouteDef[] {
-  // Per client address and e-mail: 10 attempts in 15 minutes (the account lockout covers spread-out guessing).
+  // Per client address and e-mail: 10 failed attempts in 15 minutes (the account lockout covers
+  // spread-out guessing). A sign-in that succeeds is not counted, so a person who signs in and out
+  // often during a working day is never locked out by their own successes.
   const loginLimiter = rateLimit({
     windowMs: 15 * 60_000,
     limit: 10,
+    skipSuccessfulRequests: true,
     store: new DatabaseRateLimitStore(ctx.db, 'login:'),
     standardHeaders: 'draft-8',
     legacyHeaders: false,

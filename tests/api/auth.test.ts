@@ -151,6 +151,17 @@ describe('sign-in rate limit', () => {
   });
 });
 
+describe('sign-in rate limit and successful sign-ins', () => {
+  it('does not count sign-ins that succeed: a person may sign in twelve times in a row', async () => {
+    const statuses: number[] = [];
+    for (let i = 0; i < 12; i++) {
+      const a = await agent(t.app);
+      statuses.push((await a.post('/api/auth/login').send({ email: 'planner@example.org', password: 'netput-demo' })).status);
+    }
+    expect(statuses).toEqual(Array(12).fill(200));
+  });
+});
+
 describe('GET /api/auth/session', () => {
   it('answers 200 with { user: null } when signed out, and the account when signed in', async () => {
     const a = await agent(t.app);

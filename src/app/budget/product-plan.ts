@@ -3,7 +3,8 @@ import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef } from 'ag-grid-community';
 import type { UnitSystem } from '../../../shared/units';
 import { FIT_FIGURES, gridTheme, WRAPPED_HEADINGS } from '../shared/grid';
-import { formatLot, formatMass, formatMoney, formatPrice, formatTonnes } from './budget-format';
+import { formatLot, formatMass, formatMoney, formatTonnes } from './budget-format';
+import { priceText } from '../../../shared/number-format';
 import { NUTRIENT_LABEL, NUTRIENTS, type MixLine, type ScenarioResult } from './budget-api-types';
 import { unitLabels } from './budget-units';
 
@@ -88,7 +89,8 @@ export class ProductPlan {
     return [
       { field: 'name', headerName: 'Product', pinned: 'left', width: 150 },
       { field: 'grade', headerName: 'Grade', width: 90 },
-      num(`Price, ${u.pricePerProduct}`, (l) => l.pricePerT, (v) => formatPrice(v, c), 130 + wide * 1.6),
+      // The headings carry the currency, so the cells hold plain figures (narrower, so kg K2O fits at 1280 px).
+      num(`Price, ${u.pricePerProduct}`, (l) => l.pricePerT, (v) => priceText(v), 110 + wide * 1.6),
       num(`Least-cost, ${u.productPlural}`, (l) => l.lpTonnes, (v) => formatTonnes(v, 2), 120 + wide),
       {
         headerName: 'Lots',
@@ -98,7 +100,7 @@ export class ProductPlan {
         valueFormatter: (p) => (p.data ? `${p.data.lots} × ${formatLot(p.data.lotT)}` : ''),
       },
       num(`Bought, ${u.productPlural}`, (l) => l.tonnes, (v) => formatTonnes(v), 115 + wide),
-      num(`Cost, ${c}`, (l) => l.cost, (v) => formatMoney(v, c), 135),
+      num(`Cost, ${c}`, (l) => l.cost, (v) => formatMoney(v, '').trim(), 115),
       ...NUTRIENTS.map((n) => num(u.nutrient(n), (l) => l.supplies[n], formatMass, 110)),
     ];
   });

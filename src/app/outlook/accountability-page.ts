@@ -67,6 +67,10 @@ interface FarmFertiliserRow extends FertiliserComparison {
 }
 
 /** `/outlook/accountability`: published outlooks set against the deliveries, purchases and prices that came. */
+
+/** A nutrient mass in whole kilograms: "4,600", "0". */
+const wholeKg = (v: number): string => Math.round(v).toLocaleString('en');
+
 @Component({
   selector: 'np-accountability-page',
   imports: [
@@ -182,15 +186,16 @@ export class AccountabilityPage {
     { field: 'withinBand', headerName: 'In band', width: 100, valueFormatter: yesNo },
   ];
 
+  // Whole kilograms, and widths that fit the page at 1280 px with every column in view.
   protected readonly fertiliserColumns: ColDef<FarmFertiliserRow>[] = [
-    { field: 'code', headerName: 'Code', width: 90 },
-    { field: 'farm', headerName: 'Farm', minWidth: 160, flex: 2, filter: 'agTextColumnFilter', tooltipField: 'words' },
-    { field: 'name', headerName: 'Nutrient', minWidth: 140, flex: 1, tooltipField: 'words' },
-    { field: 'projected', headerName: 'Projected, kg', type: 'numericColumn', width: 140, valueFormatter: num(formatQuantity) },
-    { field: 'booked', headerName: 'Booked, kg', type: 'numericColumn', width: 130, valueFormatter: num(formatQuantity) },
-    { field: 'actual', headerName: 'Used, kg', type: 'numericColumn', width: 130, valueFormatter: num(formatQuantity) },
-    { field: 'bookedShareOfUse', headerName: 'Booked of use', type: 'numericColumn', width: 140, valueFormatter: num(formatShare) },
-    { field: 'errorPct', headerName: 'Projection error', type: 'numericColumn', width: 150, valueFormatter: num((v) => formatSignedPercent(v)) },
+    { field: 'code', headerName: 'Code', width: 76 },
+    { field: 'farm', headerName: 'Farm', minWidth: 140, flex: 2, filter: 'agTextColumnFilter', tooltipField: 'words' },
+    { field: 'name', headerName: 'Nutrient', minWidth: 136, flex: 1, tooltipField: 'words' },
+    { field: 'projected', headerName: 'Projected, kg', type: 'numericColumn', width: 118, valueFormatter: num(wholeKg) },
+    { field: 'booked', headerName: 'Booked, kg', type: 'numericColumn', width: 108, valueFormatter: num(wholeKg) },
+    { field: 'actual', headerName: 'Used, kg', type: 'numericColumn', width: 104, valueFormatter: num(wholeKg) },
+    { field: 'bookedShareOfUse', headerName: 'Booked of use', type: 'numericColumn', width: 118, valueFormatter: num(formatShare) },
+    { field: 'errorPct', headerName: 'Projection error', type: 'numericColumn', width: 130, valueFormatter: num((v) => formatSignedPercent(v)) },
   ];
 
   /** Per version id, every farm × nutrient row of the fertiliser comparison. */

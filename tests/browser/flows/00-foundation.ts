@@ -6,10 +6,10 @@ export default async function foundation({ base, page }: Harness): Promise<void>
   // --- planner -----------------------------------------------------------------------------
   const plannerIn = await check('the planner signs in through the form', () => signIn(page, base, 'planner@example.org'));
   if (plannerIn) {
-    await check("the planner's navigation is Home, Prices, Farms, Imports, Reference data, Models, Outlook, Budget, Audit log, Account", async () => {
+    await check("the planner's navigation is Home, Prices, Farms, Imports, Contracts, Reference data, Models, Outlook, Budget, Audit log, Account", async () => {
       assertEqual(
         await navHrefs(page),
-        ['/', '/prices', '/farms', '/imports', '/reference', '/models', '/outlook', '/budget', '/admin/audit', '/account'],
+        ['/', '/prices', '/farms', '/imports', '/contracts', '/reference', '/models', '/outlook', '/budget', '/admin/audit', '/account'],
         'navigation links',
       );
       assertEqual(
@@ -80,8 +80,8 @@ export default async function foundation({ base, page }: Harness): Promise<void>
     signIn(page, base, 'member@example.org'),
   );
   if (memberIn) {
-    await check("the member's navigation is only Home, Season outlook and Account", async () => {
-      assertEqual(await navHrefs(page), ['/', '/my-farm/outlook', '/account'], 'navigation links');
+    await check("the member's navigation is only Home, Season outlook, Fertiliser booking and Account", async () => {
+      assertEqual(await navHrefs(page), ['/', '/my-farm/outlook', '/my-farm/bookings', '/account'], 'navigation links');
       assertEqual(await navTitles(page), ['Home', 'Season outlook', 'Account'], 'navigation labels');
     });
     await check('the member sees their own farm and its records', async () => {

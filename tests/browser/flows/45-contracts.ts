@@ -89,9 +89,19 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
 
     if (await check('the treasurer signs in', () => signIn(page, base, 'treasurer@example.org'))) {
       await check('the treasurer compares the contract basis with the outlook basis in the budget', async () => {
-        const budgets = (await page.evaluate(() => fetch('/api/budgets').then((r) => r.json()))) as { id: number }[];
-        assert(budgets.length > 0, 'no budget');
-        await page.goto(`${base}/budget/${budgets[0]!.id}`);
+        // A budget on the 2026/27 outlook (in the whole suite an earlier flow also budgets on a 2025/26 one).
+        const chosen = await page.evaluate(async () => {
+          const outlooks = (await fetch('/api/outlooks').then((r) => r.json())) as { id: number; season: string }[];
+          const season = outlooks.find((x) => x.season === '2026/27');
+          const list = (await fetch('/api/budgets').then((r) => r.json())) as { id: number }[];
+          for (const b of list) {
+            const full = (await fetch(`/api/budgets/${b.id}`).then((r) => r.json())) as { source?: { kind?: string; outlookId?: number } };
+            if (full.source?.kind === 'outlook' && full.source.outlookId === season?.id) return b.id;
+          }
+          return list[0]?.id ?? null;
+        });
+        assert(chosen !== null, 'no budget');
+        await page.goto(`${base}/budget/${chosen}`);
         const section = page.getByRole('region', { name: 'Contracts or outlook: which demand to budget on' });
         await section.waitFor({ timeout: 30_000 });
         const table = section.getByRole('region', { name: 'Demand on the two bases' });
