@@ -14,7 +14,7 @@ export default async function foundation({ base, page }: Harness): Promise<void>
       );
       assertEqual(
         await navTitles(page),
-        ['Home', 'Prices', 'Farms', 'Imports', 'Reference data', 'Models', 'Outlook', 'Budget', 'Audit log', 'Account'],
+        ['Home', 'Prices', 'Farms', 'Imports', 'Contracts', 'Reference data', 'Models', 'Outlook', 'Budget', 'Audit log', 'Account'],
         'navigation labels',
       );
     });
@@ -82,7 +82,7 @@ export default async function foundation({ base, page }: Harness): Promise<void>
   if (memberIn) {
     await check("the member's navigation is only Home, Season outlook, Fertiliser booking and Account", async () => {
       assertEqual(await navHrefs(page), ['/', '/my-farm/outlook', '/my-farm/bookings', '/account'], 'navigation links');
-      assertEqual(await navTitles(page), ['Home', 'Season outlook', 'Account'], 'navigation labels');
+      assertEqual(await navTitles(page), ['Home', 'Season outlook', 'Fertiliser booking', 'Account'], 'navigation labels');
     });
     await check('the member sees their own farm and its records', async () => {
       const mine = (await page.evaluate(() => fetch('/api/my-farm').then((r) => r.json()))) as {
