@@ -2,7 +2,7 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef } from 'ag-grid-community';
 import type { UnitSystem } from '../../../shared/units';
-import { FIT_FIGURES, gridTheme, WRAPPED_HEADINGS } from '../shared/grid';
+import { denseGridTheme, FIT_FIGURES, WRAPPED_HEADINGS } from '../shared/grid';
 import { formatLot, formatMass, formatMoney, formatTonnes } from './budget-format';
 import { priceText } from '../../../shared/number-format';
 import { NUTRIENT_LABEL, NUTRIENTS, type MixLine, type ScenarioResult } from './budget-api-types';
@@ -60,7 +60,7 @@ export class ProductPlan {
   readonly currency = input.required<string>();
   readonly system = input.required<UnitSystem>();
 
-  protected readonly theme = gridTheme;
+  protected readonly theme = denseGridTheme;
   protected readonly nutrients = NUTRIENTS;
   protected readonly label = NUTRIENT_LABEL;
   protected readonly mass = formatMass;
