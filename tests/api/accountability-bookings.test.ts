@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
-import { demoModel } from '../../seed/demo-model.js';
+import { openBookingRound, publishOutlook } from './season-setup.js';
 
 /**
  * Forecast against outcome for fertiliser: a published 2025/26 outlook, members' bookings in a
@@ -15,16 +15,6 @@ let planner: Agent;
 let treasurer: Agent;
 let member: Agent;
 
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 240_000): Promise<T> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await sleep(200);
-  }
-}
 const kg = (v: number) => Math.round(v).toLocaleString('en-GB');
 
 beforeAll(async () => {
@@ -32,32 +22,8 @@ beforeAll(async () => {
   planner = await signedIn(t.app, 'planner@example.org');
   treasurer = await signedIn(t.app, 'treasurer@example.org');
   member = await signedIn(t.app, 'member@example.org');
-  const model = await planner.post('/api/models').send({ name: 'Accountability model', definition: demoModel({ toSeason: '2024/25', backtestSeasons: 0 }) });
-  expect(model.status).toBe(201);
-  const run = await planner.post(`/api/models/${model.body.id}/runs`);
-  const status = await until('the fit', async () => {
-    const s = (await planner.get(`/api/model-runs/${run.body.id}/status`)).body;
-    return ['succeeded', 'failed', 'cancelled'].includes(s.status) ? s : undefined;
-  });
-  expect(status.status).toBe('succeeded');
-  const outlook = await planner.post('/api/outlooks').send({ season: '2025/26', modelRunId: run.body.id, title: 'Outlook 2025/26 (entered afterwards)' });
-  expect(outlook.status).toBe(201);
-  expect((await planner.post(`/api/outlooks/${outlook.body.id}/projection`)).status).toBe(202);
-  const projection = await until('the projection', async () => {
-    const p = (await planner.get(`/api/outlooks/${outlook.body.id}/projection`)).body;
-    return p.status === 'succeeded' || p.status === 'failed' ? p : undefined;
-  });
-  expect(projection.status).toBe('succeeded');
-  const pub = await planner.post(`/api/outlooks/${outlook.body.id}/publish`).send({ notifyMembers: false, acceptWeakSkill: true });
-  expect(pub.status).toBe(201);
-
-  const budget = await treasurer.post('/api/budgets').send({
-    name: 'Bookings 2025/26',
-    source: { kind: 'manual', nKg: 400_000, p2o5Kg: 100_000, k2oKg: 120_000 },
-    bookingPlan: { months: [{ month: '2026-12', share: 1, prepay: true }], prepayDiscountPct: 2.5, paymentTermsDays: 30, deliveryMonth: '2027-03', financingRatePct: null },
-  });
-  expect(budget.status).toBe(201);
-  expect((await treasurer.put('/api/bookings/rounds').send({ season: '2025/26', budgetId: budget.body.id, discountDeadline: '2099-01-31', vatPct: 20 })).status).toBe(200);
+  await publishOutlook(planner, { fittedTo: '2024/25', season: '2025/26', name: 'Accountability model', title: 'Outlook 2025/26 (entered afterwards)' });
+  await openBookingRound(treasurer, '2025/26');
   const products = (await treasurer.get('/api/fertiliser-products')).body as { id: number; name: string }[];
   const urea = products.find((p) => p.name === 'Urea')!.id;
   const mop = products.find((p) => p.name === 'Muriate of potash')!.id;

@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
-import { demoModel } from '../../seed/demo-model.js';
+import { openBookingRound, publishOutlook } from './season-setup.js';
 import { leastCostTonnes } from '../../server/budget/product-mix.js';
 
 /**
@@ -16,16 +16,6 @@ let planner: Agent;
 let treasurer: Agent;
 let member: Agent;
 
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 240_000): Promise<T> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await sleep(200);
-  }
-}
 
 const NUTRIENT_ITEM = { nitrogen: 'nitrogen', phosphate: 'phosphate', potash: 'potash' } as const;
 type N = keyof typeof NUTRIENT_ITEM;
@@ -37,33 +27,8 @@ beforeAll(async () => {
   treasurer = await signedIn(t.app, 'treasurer@example.org');
   member = await signedIn(t.app, 'member@example.org');
   // A fit without back-test (speed), the 2026/27 outlook projected on it and published.
-  const model = await planner.post('/api/models').send({ name: 'Booking outlook model', definition: demoModel({ toSeason: '2025/26', backtestSeasons: 0 }) });
-  expect(model.status).toBe(201);
-  const run = await planner.post(`/api/models/${model.body.id}/runs`);
-  const status = await until('the fit', async () => {
-    const s = (await planner.get(`/api/model-runs/${run.body.id}/status`)).body;
-    return ['succeeded', 'failed', 'cancelled'].includes(s.status) ? s : undefined;
-  });
-  expect(status.status).toBe('succeeded');
-  const outlook = await planner.post('/api/outlooks').send({ season: '2026/27', modelRunId: run.body.id, title: 'Outlook 2026/27 for bookings' });
-  expect(outlook.status).toBe(201);
-  expect((await planner.post(`/api/outlooks/${outlook.body.id}/projection`)).status).toBe(202);
-  const projection = await until('the projection', async () => {
-    const p = (await planner.get(`/api/outlooks/${outlook.body.id}/projection`)).body;
-    return p.status === 'succeeded' || p.status === 'failed' ? p : undefined;
-  });
-  expect(projection.status).toBe('succeeded');
-  const pub = await planner.post(`/api/outlooks/${outlook.body.id}/publish`).send({ notifyMembers: false, acceptWeakSkill: true });
-  expect(pub.status).toBe(201);
-  // The treasurer's budget and the 2026/27 booking round (prices as in tests/api/bookings.test.ts).
-  const budget = await treasurer.post('/api/budgets').send({
-    name: 'Bookings 2026/27',
-    source: { kind: 'manual', nKg: 400_000, p2o5Kg: 100_000, k2oKg: 120_000 },
-    bookingPlan: { months: [{ month: '2026-12', share: 1, prepay: true }], prepayDiscountPct: 2.5, paymentTermsDays: 30, deliveryMonth: '2027-03', financingRatePct: null },
-  });
-  expect(budget.status).toBe(201);
-  const round = await treasurer.put('/api/bookings/rounds').send({ season: '2026/27', budgetId: budget.body.id, discountDeadline: '2099-01-31', vatPct: 20 });
-  expect(round.status).toBe(200);
+  await publishOutlook(planner, { fittedTo: '2025/26', season: '2026/27', name: 'Booking outlook model', title: 'Outlook 2026/27 for bookings' });
+  await openBookingRound(treasurer, '2026/27');
 }, 300_000);
 afterAll(async () => t?.close());
 
