@@ -5,7 +5,7 @@ import { describe, expect, it } from 'vitest';
 import { parseNetputCsv } from './dataset.js';
 import { EstimationInputError } from './errors.js';
 import { fitProfitFunction } from './fit.js';
-import { projectSeason, summarise } from './projection.js';
+import { projectSeason } from './projection.js';
 import { SeededRandom } from './random.js';
 import { deltaMethod, evaluateFit } from './results.js';
 
@@ -108,27 +108,6 @@ describe('Monte Carlo building blocks', () => {
       expect(f.p5).toBe(c.p5);
       expect(f.p95).toBe(c.p95);
       expect(f.mean).toBeCloseTo(c.mean, 9);
-    }
-  });
-
-  it('summarise gives R type-7 quantiles exactly (normal and skewed samples)', () => {
-    // Reference: the type-7 definition written out below, h = (N − 1)·p with linear interpolation
-    // (Hyndman & Fan 1996, The American Statistician 50:361–365, from memory; R's default quantile).
-    const rng = new SeededRandom(9);
-    for (const [N, skewed] of [[100, false], [1001, false], [10000, false], [10000, true], [999, true]] as const) {
-      const x = Float64Array.from({ length: N }, () => (skewed ? Math.exp(1.5 * rng.normal()) : rng.normal() * 3 + 10));
-      const sorted = Array.from(x).sort((a, b) => a - b);
-      const q7 = (p: number): number => {
-        const h = (N - 1) * p;
-        const lo = Math.floor(h);
-        return sorted[lo]! + (h - lo) * (sorted[Math.min(lo + 1, N - 1)]! - sorted[lo]!);
-      };
-      const s = summarise(Float64Array.from(x), 0);
-      expect(s.p5).toBe(q7(0.05));
-      expect(s.median).toBe(q7(0.5));
-      expect(s.p95).toBe(q7(0.95));
-      const mean = sorted.reduce((a, b) => a + b, 0) / N;
-      expect(s.mean).toBeCloseTo(mean, 10);
     }
   });
 

@@ -10,7 +10,8 @@
  * its marginal N(0, σ̂_ii) of N(0, Σ̂): the cross-item correlations of Σ̂ cannot change any of
  * these distributions, and skipping the mixing saves a third of the work. A figure that adds
  * different items (e.g. a farm's profit) would need the joint draw u = chol(Σ̂)·η. Residual
- * normals come in antithetic pairs (see antitheticNormals).
+ * normals come in antithetic pairs (see antitheticNormals). The draws' summaries (mean, SD, exact
+ * type-7 quantiles without a full sort) are order-statistics.ts.
  * Projections are estimates, not advice.
  */
 import type { QuantitySummary } from '../../shared/estimation-types.js';
@@ -20,6 +21,7 @@ import type { FitResult } from './fit.js';
 import { formOf } from './forms.js';
 import { psdFactor } from './linalg.js';
 import { netputsFromDecomposition } from './model.js';
+import { drawGrid, gridBin, gridOrderStatistics, quantileRanks, summarise, summariseWithMoments } from './order-statistics.js';
 import { SeededRandom } from './random.js';
 import { resolvePoint } from './results.js';
 
@@ -197,7 +199,7 @@ export function projectSeason(fit: FitResult, options: ProjectionOptions): Proje
         for (let r = 0; r < F; r++) for (let r2 = 0; r2 < F; r2++) varP += phi[r]! * W[i]![r]![r2]! * phi[r2]!;
         const sdExact = Math.sqrt(Math.max(varP + (withResiduals ? fit.sigma[i]![i]! : 0), 0));
         if (withResiduals) antitheticNormals(rng, eta);
-        const order = farmItemKernel(buf[i]!, coop[i]!, coefSoA[i]!, phi, withResiduals ? eta : null, Math.sqrt(fit.sigma[i]![i]!), sign[i]!, moments, pt, sdExact, RANKS(S));
+        const order = farmItemKernel(buf[i]!, coop[i]!, coefSoA[i]!, phi, withResiduals ? eta : null, Math.sqrt(fit.sigma[i]![i]!), sign[i]!, moments, pt, sdExact, quantileRanks(S));
         coopPoint[i]! += pt;
         quantities[it.name] = summariseWithMoments(buf[i]!, pt, moments, order);
       });
@@ -224,17 +226,12 @@ export function projectSeason(fit: FitResult, options: ProjectionOptions): Proje
   };
 }
 
-const Z = [-1.6448536269514722, 0, 1.6448536269514722];
-/** Histogram used by farmItemKernel: 1024 bins of sd/64 over mean ± 8 sd, plus two end bins. */
-const HBINS = 1024;
-const kernelScratch = { counts: new Int32Array(HBINS + 2), slot: new Int32Array(HBINS + 2).fill(-1), start: new Int32Array(HBINS + 3) };
-
 /**
  * One farm and item, all draws, in one pass: out = sign·(Σ_r c_r φ_r + √σ_ii·η), coop += out,
  * the moments of out, and a histogram of out on a grid set by the exact mean and SD of the
- * projection (mean ± 8 sd in steps of sd/64). A second, cheap pass keeps the values of the few
- * bins that hold the ranks of the 5/50/95% points, and selection inside them gives the exact
- * order statistics. Returns them by rank, or null when a rank falls outside the grid.
+ * projection (order-statistics.ts: mean ± 8 sd in steps of sd/64). A second, cheap pass there
+ * gives the exact order statistics of the 5/50/95% points. Returns them by rank, or null when a
+ * rank falls outside the grid.
  */
 function farmItemKernel(
   out: Float64Array,
@@ -270,11 +267,8 @@ function farmItemKernel(
   }
   const e = eta ?? c0;
   const sdRes = eta ? residualSd : 0;
-  const useHist = sd > 0;
-  const lo = mean - 8 * sd;
-  const scale = useHist ? HBINS / (16 * sd) : 0;
-  const counts = kernelScratch.counts;
-  counts.fill(0);
+  const grid = drawGrid(mean, sd);
+  const { lo, scale, counts } = grid;
   const shift = sign * (c0[0]! * f0 + c1[0]! * f1 + c2[0]! * f2 + (extra ? extra[0]! : 0) + sdRes * e[0]!);
   let s1 = 0;
   let s2 = 0;
@@ -287,54 +281,13 @@ function farmItemKernel(
     const d = v - shift;
     s1 += d;
     s2 += d * d;
-    let b = ((v - lo) * scale + 1) | 0;
-    b = b < 0 ? 0 : b > HBINS + 1 ? HBINS + 1 : b;
-    counts[b]!++;
+    counts[gridBin(v, lo, scale)]!++;
   }
   moments[0] = shift + s1 / S;
   moments[1] = S > 1 ? Math.sqrt(Math.max(s2 - (s1 * s1) / S, 0) / (S - 1)) : 0;
   moments[2] = -Infinity; // range not tracked: the fallback computes it
   moments[3] = Infinity;
-  if (!useHist) return null;
-  const start = kernelScratch.start;
-  start[0] = 0;
-  for (let b = 0; b < HBINS + 2; b++) start[b + 1] = start[b]! + counts[b]!;
-  const binOf = (r: number): number => {
-    let a = 0;
-    let c = HBINS + 1;
-    while (a < c) {
-      const mid = (a + c) >>> 1;
-      if (start[mid + 1]! <= r) a = mid + 1;
-      else c = mid;
-    }
-    return a;
-  };
-  const rankBins = ranks.map(binOf);
-  if (rankBins.some((b) => b === 0 || b === HBINS + 1)) return null;
-  const slot = kernelScratch.slot;
-  const lists: Float64Array[] = [];
-  const fill: number[] = [];
-  for (const b of rankBins)
-    if (slot[b] === -1) {
-      slot[b] = lists.length;
-      lists.push(new Float64Array(counts[b]!));
-      fill.push(0);
-    }
-  for (let s = 0; s < S; s++) {
-    const v = out[s]!;
-    let b = ((v - lo) * scale + 1) | 0;
-    b = b < 0 ? 0 : b > HBINS + 1 ? HBINS + 1 : b;
-    const k = slot[b]!;
-    if (k >= 0) lists[k]![fill[k]!++] = v;
-  }
-  const result = new Map<number, number>();
-  ranks.forEach((r, j) => {
-    const b = rankBins[j]!;
-    const list = lists[slot[b]!]!;
-    result.set(r, select(list, r - start[b]!, 0, list.length - 1));
-  });
-  for (const b of rankBins) slot[b] = -1;
-  return result;
+  return gridOrderStatistics(out, grid, ranks);
 }
 
 /**
@@ -423,213 +376,4 @@ function isPsd(a: Float64Array, size: number): boolean {
     }
   }
   return true;
-}
-
-/**
- * Mean, SD and the 5/50/95% quantiles (R's type 7, exact) of a sample. The order statistics are
- * found by bucketing the values into 1024 equal-width bins and sorting only the few values that
- * fall in the bins holding the wanted ranks: a few linear passes instead of a full sort.
- */
-export function summarise(x: Float64Array, point: number): QuantitySummary {
-  const N = x.length;
-  // One pass: shifted sums (shift x[0] keeps the variance accurate) and the range.
-  const c = x[0]!;
-  let s1 = 0;
-  let s2 = 0;
-  let lo = Infinity;
-  let hi = -Infinity;
-  for (let i = 0; i < N; i++) {
-    const v = x[i]!;
-    const d = v - c;
-    s1 += d;
-    s2 += d * d;
-    if (v < lo) lo = v;
-    if (v > hi) hi = v;
-  }
-  const moments = Float64Array.of(c + s1 / N, N > 1 ? Math.sqrt(Math.max(s2 - (s1 * s1) / N, 0) / (N - 1)) : 0, lo, hi);
-  return summariseWithMoments(x, point, moments);
-}
-
-/** Ranks (0-based) of the order statistics behind the type-7 5/50/95% quantiles of N values. */
-function RANKS(N: number): number[] {
-  const ranks = new Set<number>();
-  for (const pr of [0.05, 0.5, 0.95]) {
-    const h = (N - 1) * pr;
-    ranks.add(Math.floor(h));
-    ranks.add(Math.min(Math.floor(h) + 1, N - 1));
-  }
-  return [...ranks];
-}
-
-/** summarise() given [mean, sd, min, max] (and optionally the kernel's order statistics) already computed. */
-function summariseWithMoments(x: Float64Array, point: number, moments: Float64Array, known: Map<number, number> | null = null): QuantitySummary {
-  const N = x.length;
-  const [mean, sd, lo, hi] = [moments[0]!, moments[1]!, moments[2]!, moments[3]!];
-  const probs = [0.05, 0.5, 0.95];
-  if (!(hi > lo) || sd === 0) {
-    const v = Number.isFinite(lo) ? lo : x[0]!;
-    if (sd === 0 || !Number.isFinite(lo)) {
-      // sd is exactly 0 only when every value is equal (the shifted sums vanish)
-      let same = true;
-      for (let i = 1; i < N && same; i++) same = x[i] === x[0];
-      if (same) return { point, mean, sd, median: x[0]!, p5: x[0]!, p95: x[0]! };
-    } else return { point, mean, sd, median: v, p5: v, p95: v };
-  }
-  const ranks = new Set<number>();
-  for (const pr of probs) {
-    const h = (N - 1) * pr;
-    ranks.add(Math.floor(h));
-    ranks.add(Math.min(Math.floor(h) + 1, N - 1));
-  }
-  const range = (): [number, number] => {
-    if (Number.isFinite(lo) && Number.isFinite(hi)) return [lo, hi];
-    let a = Infinity;
-    let b = -Infinity;
-    for (let i = 0; i < N; i++) {
-      if (x[i]! < a) a = x[i]!;
-      if (x[i]! > b) b = x[i]!;
-    }
-    return [a, b];
-  };
-  const order = known ?? bracketedOrderStatistics(x, [...ranks], mean, sd) ?? orderStatistics(x, [...ranks], ...range());
-  const q = (pr: number): number => {
-    const h = (N - 1) * pr;
-    const k = Math.floor(h);
-    const a = order.get(k)!;
-    const b = order.get(Math.min(k + 1, N - 1))!;
-    return a + (h - k) * (b - a);
-  };
-  return { point, mean, sd, median: q(0.5), p5: q(0.05), p95: q(0.95) };
-}
-
-const scratch = { buf: new Float64Array(0) };
-
-
-/**
- * Fast path for the order statistics near the 5/50/95% points: one pass that counts the values
- * below three narrow brackets (±0.08 sd around mean + z·sd, where the quantiles of a roughly
- * normal sample fall) and keeps the values inside them. Exact when every wanted rank falls in a
- * bracket; returns null otherwise (the caller then uses the histogram method).
- */
-function bracketedOrderStatistics(x: Float64Array, ranks: number[], mean: number, sd: number): Map<number, number> | null {
-  const N = x.length;
-  if (!(sd > 0)) return null;
-  const w = 0.08 * sd;
-  const a0 = mean + Z[0]! * sd - w;
-  const b0 = mean + Z[0]! * sd + w;
-  const a1 = mean - w;
-  const b1 = mean + w;
-  const a2 = mean + Z[2]! * sd - w;
-  const b2 = mean + Z[2]! * sd + w;
-  if (scratch.buf.length < 3 * N) scratch.buf = new Float64Array(3 * N);
-  const buf = scratch.buf;
-  // regions: 0 (<a0) 1 [a0,b0] 2 (b0,a1) 3 [a1,b1] 4 (b1,a2) 5 [a2,b2] 6 (>b2)
-  let c0 = 0;
-  let c2 = 0;
-  let c4 = 0;
-  let n1 = 0;
-  let n3 = 0;
-  let n5 = 0;
-  for (let i = 0; i < N; i++) {
-    const v = x[i]!;
-    if (v < a1) {
-      if (v < a0) c0++;
-      else if (v <= b0) buf[n1++] = v;
-      else c2++;
-    } else if (v <= b1) buf[N + n3++] = v;
-    else if (v < a2) c4++;
-    else if (v <= b2) buf[2 * N + n5++] = v;
-  }
-  const starts = [c0, c0 + n1 + c2, c0 + n1 + c2 + n3 + c4];
-  const sizes = [n1, n3, n5];
-  const sorted: (Float64Array | null)[] = [null, null, null];
-  const out = new Map<number, number>();
-  for (const r of ranks) {
-    let hit = -1;
-    for (let k = 0; k < 3; k++) if (r >= starts[k]! && r < starts[k]! + sizes[k]!) hit = k;
-    if (hit < 0) return null;
-    if (!sorted[hit]) sorted[hit] = buf.subarray(hit * N, hit * N + sizes[hit]!).sort();
-    out.set(r, sorted[hit]![r - starts[hit]!]!);
-  }
-  return out;
-}
-
-const BINS = 1024;
-
-function orderStatistics(x: Float64Array, ranks: number[], lo: number, hi: number): Map<number, number> {
-  const N = x.length;
-  const scale = BINS / (hi - lo);
-  const counts = new Int32Array(BINS);
-  for (let i = 0; i < N; i++) {
-    let b = ((x[i]! - lo) * scale) | 0;
-    if (b >= BINS) b = BINS - 1;
-    counts[b]!++;
-  }
-  // Bin holding each rank, and the rank's position within that bin.
-  const start = new Int32Array(BINS + 1);
-  for (let b = 0; b < BINS; b++) start[b + 1] = start[b]! + counts[b]!;
-  const binOf = (r: number): number => {
-    let a = 0;
-    let c = BINS - 1;
-    while (a < c) {
-      const mid = (a + c) >>> 1;
-      if (start[mid + 1]! <= r) a = mid + 1;
-      else c = mid;
-    }
-    return a;
-  };
-  const binSlot = new Int32Array(BINS).fill(-1);
-  const lists: Float64Array[] = [];
-  const fill: number[] = [];
-  const rankBins = ranks.map(binOf);
-  for (const b of rankBins)
-    if (binSlot[b] === -1) {
-      binSlot[b] = lists.length;
-      lists.push(new Float64Array(counts[b]!));
-      fill.push(0);
-    }
-  for (let i = 0; i < N; i++) {
-    const v = x[i]!;
-    let b = ((v - lo) * scale) | 0;
-    if (b >= BINS) b = BINS - 1;
-    const slot = binSlot[b]!;
-    if (slot >= 0) lists[slot]![fill[slot]!++] = v;
-  }
-  for (const list of lists) list.sort();
-  const out = new Map<number, number>();
-  ranks.forEach((r, j) => {
-    const b = rankBins[j]!;
-    out.set(r, lists[binSlot[b]!]![r - start[b]!]!);
-  });
-  return out;
-}
-
-/** Hoare quickselect: returns the k-th smallest of x[lo..hi] (0-based within the array), reordering x. */
-function select(x: Float64Array, k: number, lo: number, hi: number): number {
-  let l = lo;
-  let r = hi;
-  while (r > l) {
-    const mid = (l + r) >>> 1;
-    const a = x[l]!;
-    const b = x[mid]!;
-    const c = x[r]!;
-    const pivot = a < b ? (b < c ? b : a < c ? c : a) : a < c ? a : b < c ? c : b;
-    let i = l;
-    let j = r;
-    while (i <= j) {
-      while (x[i]! < pivot) i++;
-      while (x[j]! > pivot) j--;
-      if (i <= j) {
-        const t = x[i]!;
-        x[i] = x[j]!;
-        x[j] = t;
-        i++;
-        j--;
-      }
-    }
-    if (k <= j) r = j;
-    else if (k >= i) l = i;
-    else break;
-  }
-  return x[k]!;
 }
