@@ -36,8 +36,12 @@ export const ACCESS = {
   budget: ['admin', 'planner', 'treasurer'],
   /** Who makes and changes fertiliser budgets and the product list (planners and admins read). */
   budgetEdit: ['treasurer'],
+  /** Booking rounds: who opens and changes them and reads the members' bookings and the round's report (the board reads the nutrient comparison under `budget`; members book under `myFarm`). */
+  bookingRounds: ['admin', 'treasurer'],
   users: ['admin'],
   settings: ['admin'],
   audit: ['admin', 'planner'],
   devMail: ['admin'],
+  /** The local fake payment service's page (development only). */
+  devPayments: ['admin'],
 } as const satisfies Record<string, readonly Role[]>;

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { ACCESS } from '../../shared/roles.js';
 import type { RouteDef } from '../core/routes.js';
 import { AppError } from '../core/app-error.js';
 import { parse } from '../core/validate.js';
@@ -27,7 +28,7 @@ export function bookingsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'get',
       path: '/offer',
-      access: ['member'],
+      access: ACCESS.myFarm,
       // No round open yet is a normal state: 204 No Content.
       handler: async (req, res) => {
         const offer = await memberOffer(deps(), req.user!.farmId);
@@ -35,25 +36,25 @@ export function bookingsRoutes(ctx: AppContext): RouteDef[] {
         else res.status(204).end();
       },
     },
-    { method: 'get', path: '/mine', access: ['member'], handler: async (req, res) => res.json(await memberBookings(deps(), req.user!.farmId)) },
+    { method: 'get', path: '/mine', access: ACCESS.myFarm, handler: async (req, res) => res.json(await memberBookings(deps(), req.user!.farmId)) },
     {
       method: 'post',
       path: '/',
-      access: ['member'],
+      access: ACCESS.myFarm,
       handler: async (req, res) => res.status(201).json(await placeBooking(deps(), req.user!, parse(bookingInputSchema, req.body, 'body'))),
     },
-    { method: 'get', path: '/rounds', access: ['treasurer', 'planner', 'admin'], handler: async (_req, res) => res.json(await roundsList(ctx.db)) },
+    { method: 'get', path: '/rounds', access: ACCESS.budget, handler: async (_req, res) => res.json(await roundsList(ctx.db)) },
     {
       method: 'put',
       path: '/rounds',
-      access: ['treasurer', 'admin'],
+      access: ACCESS.bookingRounds,
       handler: async (req, res) => res.json(await saveRound(deps(), parse(bookingRoundSchema, req.body, 'body'), req.user!.id)),
     },
-    { method: 'get', path: '/rounds/:id/report', access: ['treasurer', 'admin'], handler: async (req, res) => res.json(await bookingReport(ctx.db, id(req.params))) },
+    { method: 'get', path: '/rounds/:id/report', access: ACCESS.bookingRounds, handler: async (req, res) => res.json(await bookingReport(ctx.db, id(req.params))) },
     {
       method: 'get',
       path: '/rounds/:id/report/export',
-      access: ['treasurer', 'admin'],
+      access: ACCESS.bookingRounds,
       handler: async (req, res) => {
         const { format } = parse(exportQuery, req.query, 'query');
         const file = await bookingReportExport(ctx.db, id(req.params), format);
@@ -62,20 +63,20 @@ export function bookingsRoutes(ctx: AppContext): RouteDef[] {
         res.send(file.body);
       },
     },
-    { method: 'get', path: '/rounds/:id/bookings', access: ['treasurer', 'admin'], handler: async (req, res) => res.json(await roundBookingList(ctx.db, id(req.params))) },
-    { method: 'get', path: '/rounds/:id/nutrients', access: ['planner', 'treasurer', 'admin'], handler: async (req, res) => res.json(await nutrientComparison(ctx.db, id(req.params))) },
+    { method: 'get', path: '/rounds/:id/bookings', access: ACCESS.bookingRounds, handler: async (req, res) => res.json(await roundBookingList(ctx.db, id(req.params))) },
+    { method: 'get', path: '/rounds/:id/nutrients', access: ACCESS.budget, handler: async (req, res) => res.json(await nutrientComparison(ctx.db, id(req.params))) },
     // Member routes with an id last, so `/rounds` is never taken for a booking id.
     {
       method: 'put',
       path: '/:id',
-      access: ['member'],
+      access: ACCESS.myFarm,
       handler: async (req, res) => {
         const bookingId = id(req.params);
         res.json(await placeBooking(deps(), req.user!, parse(bookingInputSchema, req.body, 'body'), bookingId));
       },
     },
-    { method: 'post', path: '/:id/checkout', access: ['member'], handler: async (req, res) => res.status(201).json(await startCheckout(deps(), req.user!, id(req.params))) },
-    { method: 'post', path: '/:id/cancel', access: ['member'], handler: async (req, res) => res.json(await cancelBooking(deps(), req.user!, id(req.params))) },
+    { method: 'post', path: '/:id/checkout', access: ACCESS.myFarm, handler: async (req, res) => res.status(201).json(await startCheckout(deps(), req.user!, id(req.params))) },
+    { method: 'post', path: '/:id/cancel', access: ACCESS.myFarm, handler: async (req, res) => res.json(await cancelBooking(deps(), req.user!, id(req.params))) },
   ];
 }
 
@@ -110,12 +111,12 @@ export function devPaymentsRoutes(ctx: AppContext): RouteDef[] {
     return ctx.fakePayments;
   };
   return [
-    { method: 'get', path: '/status', access: ['admin'], handler: (_req, res) => res.json({ available: ctx.config.dev && Boolean(ctx.fakePayments) }) },
-    { method: 'get', path: '/', access: ['admin'], devOnly: true, handler: (_req, res) => res.json({ sessions: fake().sessions().reverse(), deliveries: fake().deliveries().map(({ eventId, type, status, at }) => ({ eventId, type, status, at })).reverse() }) },
+    { method: 'get', path: '/status', access: ACCESS.devPayments, handler: (_req, res) => res.json({ available: ctx.config.dev && Boolean(ctx.fakePayments) }) },
+    { method: 'get', path: '/', access: ACCESS.devPayments, devOnly: true, handler: (_req, res) => res.json({ sessions: fake().sessions().reverse(), deliveries: fake().deliveries().map(({ eventId, type, status, at }) => ({ eventId, type, status, at })).reverse() }) },
     {
       method: 'post',
       path: '/:sessionId/complete',
-      access: ['admin'],
+      access: ACCESS.devPayments,
       devOnly: true,
       handler: async (req, res) => {
         const { sessionId } = parse(sessionParam, req.params, 'params');
@@ -127,7 +128,7 @@ export function devPaymentsRoutes(ctx: AppContext): RouteDef[] {
     {
       method: 'post',
       path: '/:sessionId/fail',
-      access: ['admin'],
+      access: ACCESS.devPayments,
       devOnly: true,
       handler: async (req, res) => {
         const { sessionId } = parse(sessionParam, req.params, 'params');

@@ -9,7 +9,7 @@ export function settingsRoutes(ctx: AppContext): RouteDef[] {
   return [
     { method: 'get', path: '/', access: 'signed-in', handler: async (_req, res) => res.json(await getSettings(ctx.db)) },
     // How this server is set up (from its environment): the address e-mail links use, and how mail leaves.
-    { method: 'get', path: '/server', access: ['admin'], handler: (_req, res) => res.json(serverSetup(ctx)) },
+    { method: 'get', path: '/server', access: ACCESS.settings, handler: (_req, res) => res.json(serverSetup(ctx)) },
     {
       method: 'put',
       path: '/',

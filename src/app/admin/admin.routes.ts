@@ -33,7 +33,7 @@ const adminRoutes: Routes = [
   {
     path: 'payments',
     title: 'Test payments',
-    canMatch: [roleGuard(ACCESS.devMail), devPaymentsGuard],
+    canMatch: [roleGuard(ACCESS.devPayments), devPaymentsGuard],
     loadComponent: () => import('./payments/dev-payments').then((m) => m.DevPayments),
   },
 ];

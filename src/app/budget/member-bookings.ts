@@ -36,8 +36,8 @@ export class MemberBookings {
   readonly #api = inject(BookingsApi);
   readonly #auth = inject(AuthStore);
 
-  protected readonly canEdit = computed(() => this.#auth.hasRole(['treasurer', 'admin']));
-  protected readonly canReport = computed(() => this.#auth.hasRole(['treasurer', 'admin']));
+  protected readonly canEdit = computed(() => this.#auth.hasRole(ACCESS.bookingRounds));
+  protected readonly canReport = computed(() => this.#auth.hasRole(ACCESS.bookingRounds));
   protected readonly access = ACCESS;
 
   protected readonly rounds = httpResource<BookingRoundView[]>(() => '/api/bookings/rounds');
