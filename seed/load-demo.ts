@@ -14,9 +14,9 @@ import {
   users,
 } from '../server/db/schema/index.js';
 import { hashPassword } from '../server/auth/passwords.js';
-import { newToken } from '../server/core/ids.js';
+import { newToken } from '../server/core/tokens.js';
 import { buildDemoCoop, DEMO_ACCOUNTS, DEMO_PASSWORD } from './demo-coop.js';
-import { seedFertiliserProducts } from '../server/budget/fertiliser-products.js';
+import { seedFertiliserProducts } from '../server/budget/fertiliser-products-repository.js';
 import { tablesInDependencyOrder } from '../server/db/portable.js';
 import { seedDemoContracts } from './demo-contracts.js';
 import { purgeOutlookData } from '../server/outlook/outlook-service.js';

@@ -3,7 +3,7 @@ import type { Me, TokenInfo } from '../../shared/api-types.js';
 import type { Db } from '../db/client.js';
 import { oneTimeTokens, sessions, users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
-import { newToken, sha256 } from '../core/ids.js';
+import { newToken, sha256 } from '../core/tokens.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { dummyPasswordHash, hashPassword, verifyPassword } from './passwords.js';
 

@@ -11,7 +11,7 @@
 import { createHmac, randomBytes, timingSafeEqual } from 'node:crypto';
 import type { Request, RequestHandler, Response } from 'express';
 import { AppError } from '../core/app-error.js';
-import { sha256 } from '../core/ids.js';
+import { sha256 } from '../core/tokens.js';
 import { storedSecret } from '../core/secrets.js';
 import type { Db } from '../db/client.js';
 

@@ -3,7 +3,7 @@ import { and, eq, gt, lt } from 'drizzle-orm';
 import type { Role } from '../../shared/roles.js';
 import type { Db } from '../db/client.js';
 import { sessions, users } from '../db/schema/index.js';
-import { newToken, sha256 } from '../core/ids.js';
+import { newToken, sha256 } from '../core/tokens.js';
 import type { ChangeTracker } from '../db/change-tracker.js';
 import { issueSessionCsrfToken } from './csrf.js';
 

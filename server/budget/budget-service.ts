@@ -16,7 +16,7 @@ import { monthsOutsideInputs, monthWords, seasonWindows, type SeasonCalendar } f
 import type { BudgetInput, BudgetSource } from '../../shared/budget-schemas.js';
 import { computeBudget, type BudgetResult, type ProductCopy, type ResolvedSource } from './budget-compute.js';
 import { inUnits } from './budget-units.js';
-import { activeProducts, productsByIds } from './fertiliser-products.js';
+import { activeProducts, productsByIds } from './fertiliser-products-repository.js';
 import { demandAt, farmPoints, modelDemand } from './model-demand.js';
 import { nutrientItemsOf, priceItemsOf } from './nutrient-items.js';
 import { BudgetInputError, NUTRIENTS, type Nutrient } from './nutrients.js';

@@ -7,7 +7,7 @@ import { parse } from '../core/validate.js';
 import { budgetExportQuerySchema, budgetInputSchema, budgetViewQuerySchema, fertiliserProductSchema } from '../../shared/budget-schemas.js';
 import { budgetCsv, budgetXlsx } from './budget-export.js';
 import { budgetForExport, createBudget, deleteBudget, getBudget, listBudgets, previewBudget, unitSystemOf, updateBudget } from './budget-service.js';
-import { createProduct, deleteProduct, listProducts, updateProduct } from './fertiliser-products.js';
+import { createProduct, deleteProduct, listProducts, updateProduct } from './fertiliser-products-repository.js';
 
 /** Treasurers write budgets and the product list they plan with; planners and admins read; members nothing. */
 const READ = ACCESS.budget;

@@ -2,7 +2,7 @@ import ExcelJS from 'exceljs';
 import Papa from 'papaparse';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
-import { seedFertiliserProducts } from '../../server/budget/fertiliser-products.js';
+import { seedFertiliserProducts } from '../../server/budget/fertiliser-products-repository.js';
 import { recomputeStoredBudget } from '../../server/budget/budget-service.js';
 import { KG_PER_LB, KG_PER_SHORT_TON } from '../../shared/units.js';
 import { demoModel } from '../../seed/demo-model.js';
