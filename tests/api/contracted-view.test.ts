@@ -13,6 +13,7 @@ import { runContractedTask } from '../../server/outlook/contracted-task.js';
 import { gatherProjectionInputs } from '../../server/outlook/projection-service.js';
 import { mailOutbox, outlooks, outlookVersions } from '../../server/db/schema/index.js';
 import { eq } from 'drizzle-orm';
+import { demoModel } from '../../seed/demo-model.js';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
@@ -34,7 +35,8 @@ async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 
 beforeAll(async () => {
   t = await startTestApp({ jobs: true });
   planner = await signedIn(t.app, 'planner@example.org');
-  const definition = { items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'], numeraire: 'labour', fixedFactors: ['land_ha'], trend: true, form: 'nq', curvature: 'auto' };
+  // The demo model with the schema's default five-season back-test.
+  const definition = demoModel({ backtestSeasons: 5 });
   const model = await planner.post('/api/models').send({ name: 'Per hectare', definition });
   const run = await planner.post(`/api/models/${model.body.id}/runs`);
   await until('the fit', async () => {

@@ -8,6 +8,7 @@ import ExcelJS from 'exceljs';
 import fc from 'fast-check';
 import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { demoModel } from '../../seed/demo-model.js';
 import { agent, signedIn, startTestApp, type TestApp } from './test-app.js';
 
 let t: TestApp;
@@ -103,7 +104,7 @@ describe('property: the fit API', () => {
   it('evaluation at random prices answers 200 or a 4xx with a message', async () => {
     const model = await planner.post('/api/models').send({
       name: 'Fuzz evaluation',
-      definition: { items: ['wheat', 'canola', 'nitrogen', 'phosphate', 'potash', 'diesel', 'labour'], numeraire: 'labour', backtestSeasons: 0 },
+      definition: demoModel({ backtestSeasons: 0 }),
     });
     const run = await planner.post(`/api/models/${model.body.id}/runs`).send({});
     let status = '';
