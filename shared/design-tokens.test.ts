@@ -10,7 +10,7 @@ function sassValue(name: string): string {
   return match[1]!.trim();
 }
 
-/** Relative luminance and contrast ratio as WCAG 2.2 defines them (§ "relative luminance", "contrast ratio"). */
+/** Relative luminance and contrast ratio as WCAG 2.2 defines them (§ "relative luminance", "contrast ratio"; docs/sources.md §10). */
 function luminance(hex: string): number {
   const [r, g, b] = [1, 3, 5].map((i) => parseInt(hex.slice(i, i + 2), 16) / 255).map((c) => (c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4));
   return 0.2126 * r! + 0.7152 * g! + 0.0722 * b!;

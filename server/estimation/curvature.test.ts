@@ -24,7 +24,8 @@ const nonConvex = generateNqPanel({ items, farms: 5, seasons: 8, firstSeason: 20
 describe('convexity imposed by C = LL′ (the cone step of curvature.ts)', () => {
   it('when convexity does not bind, the constrained fit reproduces R systemfit to 6 significant digits', () => {
     // The LL′ path (the constrained step, Σ̂ iterated) must land on the same ML estimate as the
-    // linear ITSUR when the unrestricted estimate is already convex (reference: systemfit-nq.json).
+    // linear ITSUR when the unrestricted estimate is already convex (reference: systemfit-nq.json,
+    // docs/sources.md §4).
     const fit = fitProfitFunction(panel, { trend: true, curvature: 'impose' });
     expect(fit.curvature.imposed).toBe(true);
     expect(fit.curvature.binding).toBe(false);

@@ -6,6 +6,7 @@ function expectRel(actual: number, expected: number, tol: number): void {
   expect(Math.abs(actual - expected)).toBeLessThanOrEqual(tol * Math.abs(expected));
 }
 
+// Sources and values: docs/sources.md §1 (NIST StRD linear regression).
 describe('least-squares core against NIST StRD certified values', () => {
   it('reproduces Longley (higher difficulty) coefficients and SDs to 1e-9 relative', () => {
     // Source: NIST StRD "Longley" (Longley 1967, JASA 62:819-841); data and certified values as

@@ -9,7 +9,7 @@ import { fitProfitFunction } from './fit.js';
 
 // Reference: R systemfit 1.1-28 (Debian r-cran-systemfit), run by
 // tests/fixtures/estimation/systemfit-nq.R on tests/fixtures/estimation/nq-panel.csv (an invented
-// panel; the reference values are systemfit's, not ours).
+// panel; the reference values are systemfit's, not ours; docs/sources.md §4).
 const root = join(dirname(fileURLToPath(import.meta.url)), '..', '..');
 const fixtures = join(root, 'tests', 'fixtures', 'estimation');
 const csvPath = join(fixtures, 'nq-panel.csv');

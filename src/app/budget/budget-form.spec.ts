@@ -3,7 +3,7 @@ import { NonNullableFormBuilder } from '@angular/forms';
 import { bookingProblems, defaultBooking, formValueFromStored, monthGroup, scenarioGroup, scenarioName, toBudgetInput, whereOf } from './budget-form';
 import type { FertiliserProduct, ProductCopy, StoredInputs } from './budget-api-types';
 
-// The demo list's urea and DAP (grades: Cornell NRCCA CA4 PO26 and UNL PASSEL; prices invented for the demo).
+// The demo list's urea and DAP (grades: Cornell NRCCA CA4 PO26 and UNL PASSEL, docs/sources.md §7; prices invented for the demo).
 const list: FertiliserProduct[] = [
   { id: 1, name: 'Urea', nPct: 46, p2o5Pct: 0, k2oPct: 0, form: 'solid', pricePerT: 475, currency: 'EUR', lotT: 25, supplier: '', gradeSource: '', priceNote: '', active: true, updatedAt: '' },
   { id: 5, name: 'DAP', nPct: 18, p2o5Pct: 46, k2oPct: 0, form: 'solid', pricePerT: 650, currency: 'EUR', lotT: 25, supplier: '', gradeSource: '', priceNote: '', active: true, updatedAt: '' },

@@ -21,7 +21,7 @@ describe('budget number formatting', () => {
   });
 
   it('should show a lot size to at most 0.01 (25 t is 27.56 short tons)', () => {
-    // 1 short ton = 907.18474 kg exactly (NIST Handbook 44, Appendix C).
+    // 1 short ton = 907.18474 kg exactly (NIST Handbook 44, Appendix C; docs/sources.md §6).
     expect(formatLot(25_000 / 907.18474)).toBe('27.56');
     expect(formatLot(25)).toBe('25');
     expect(formatLot(22.5)).toBe('22.5');

@@ -22,7 +22,7 @@ function asRgb(hex: string): string {
 }
 
 describe('relativeLuminance and contrastRatio', () => {
-  // WCAG 2.1, "relative luminance" and "contrast ratio" definitions (W3C Recommendation): white has
+  // WCAG 2.1, "relative luminance" and "contrast ratio" definitions (W3C Recommendation; docs/sources.md §9–§10): white has
   // luminance 1, black 0, and their contrast ratio is (1 + 0.05) / (0 + 0.05) = 21, the maximum.
   it('should give the WCAG end points for white and black', () => {
     expect(relativeLuminance('#ffffff')).toBeCloseTo(1, 12);
