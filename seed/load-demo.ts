@@ -19,7 +19,7 @@ import { buildDemoCoop, DEMO_ACCOUNTS, DEMO_PASSWORD } from './demo-coop.js';
 import { seedFertiliserProducts } from '../server/budget/fertiliser-products-repository.js';
 import { tablesInDependencyOrder } from '../server/db/portable.js';
 import { seedDemoContracts } from './demo-contracts.js';
-import { purgeOutlookData } from '../server/outlook/outlook-service.js';
+import { purgeOutlookData } from '../server/outlook/outlook-repository.js';
 import { enqueueDemoSetup } from './prepare-demo.js';
 
 export async function isDatabaseEmpty(db: Db): Promise<boolean> {

@@ -14,7 +14,7 @@ import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { leastCostTonnes } from '../budget/product-mix.js';
 import { gradeLabel, itemNutrients, NUTRIENTS, type Nutrient, type NutrientAmounts } from '../budget/nutrients.js';
-import { seasonFor } from '../outlook/outlook-service.js';
+import { findOrCreateSeason } from '../outlook/season-creation.js';
 import { bookingAmounts, percentToBp, toMinor } from '../../shared/booking-money.js';
 import {
   LARGE_BOOKING_FACTOR,
@@ -289,7 +289,7 @@ export async function saveRound(d: BookingDeps, input: BookingRoundInput, actorU
     throw AppError.invalid((e as Error).message, [{ path: 'body.vatPct', message: (e as Error).message }]);
   }
   return d.db.transaction(async (tx) => {
-    const season = await seasonFor(tx, input.season, actorUserId);
+    const season = await findOrCreateSeason(tx, input.season, actorUserId);
     const [before] = await tx.select().from(bookingRounds).where(eq(bookingRounds.seasonId, season.id));
     if (before && before.budgetId !== input.budgetId) {
       const [{ n }] = (await tx.select({ n: sql<number>`count(*)`.mapWith(Number) }).from(bookings).where(eq(bookings.roundId, before.id))) as [{ n: number }];

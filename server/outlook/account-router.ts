@@ -6,9 +6,8 @@ import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
 import { getSettings } from '../settings/settings-service.js';
 import { mailPreferencesSchema, unsubscribeParamSchema } from '../../shared/outlook-schemas.js';
-import { unsubscribeSecret, verifyUnsubscribe } from './unsubscribe-token.js';
 import { MAIL_STYLE } from '../mail/mail-style.js';
-import { findMailChoice, mailPreferences, setOptOut } from './mail-preferences-service.js';
+import { mailPreferences, setOptOut, unsubscribeMember } from './mail-preferences-service.js';
 
 /** `/api/account`: the member's own mail preferences. */
 export function accountMailRoutes(ctx: AppContext): RouteDef[] {
@@ -48,11 +47,7 @@ function page(title: string, lines: string[], form?: { action: string; button: s
  * member's outlook e-mails off.
  */
 export function unsubscribeRoutes(ctx: AppContext): RouteDef[] {
-  const member = async (req: Request) => {
-    const { token } = parse(unsubscribeParamSchema, req.params, 'params');
-    const userId = verifyUnsubscribe(await unsubscribeSecret(ctx.db), token);
-    return userId !== null ? findMailChoice(ctx.db, userId) : undefined;
-  };
+  const member = (req: Request) => unsubscribeMember(ctx.db, parse(unsubscribeParamSchema, req.params, 'params').token);
   const notFound = (res: Response, wantsJson: boolean) => {
     if (wantsJson) throw AppError.notFound('The unsubscribe link');
     res.status(404).type('html').send(page('This link does not work', ['The unsubscribe link is not valid. Sign in and open your mail preferences to change what you receive.']));

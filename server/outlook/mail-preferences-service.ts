@@ -3,8 +3,13 @@ import { AppError } from '../core/app-error.js';
 import type { Db } from '../db/client.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { findMailChoice, setMailOptOut } from './mail-preferences-repository.js';
+import { unsubscribeSecret, verifyUnsubscribe } from './unsubscribe-token.js';
 
-export { findMailChoice } from './mail-preferences-repository.js';
+/** The member an unsubscribe link's token names (address and choice), or undefined when the token is not ours or the account is gone. */
+export async function unsubscribeMember(db: Db, token: string) {
+  const userId = verifyUnsubscribe(await unsubscribeSecret(db), token);
+  return userId !== null ? findMailChoice(db, userId) : undefined;
+}
 
 export async function mailPreferences(db: Db, userId: number) {
   const u = await findMailChoice(db, userId);

@@ -18,21 +18,9 @@ import {
 import { compareMethods } from './expectations-service.js';
 import { accountability } from './accountability.js';
 import { runChoiceView } from './run-choice.js';
-import {
-  createOutlook,
-  deliveries,
-  fullVersion,
-  getOutlook,
-  getProjection,
-  listOutlooks,
-  listVersions,
-  outlookSeason,
-  patchOutlook,
-  publishOutlook,
-  retryDelivery,
-  setExpectations,
-  startProjection,
-} from './outlook-service.js';
+import { createOutlook, getOutlook, getProjection, listOutlooks, outlookSeason, patchOutlook, setExpectations, startProjection } from './outlook-drafts.js';
+import { fullVersion, listVersions, publishOutlook } from './outlook-publishing.js';
+import { deliveries, retryDelivery } from './outlook-deliveries.js';
 
 /** Who reads full outlooks (every farm) and the accountability record: the planner and the board's people. */
 const OUTLOOK_READ = ACCESS.outlook;

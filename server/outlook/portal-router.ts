@@ -2,7 +2,7 @@ import { ACCESS } from '../../shared/roles.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
-import { latestMemberVersion, listVersions, memberVersion } from './outlook-service.js';
+import { latestMemberVersion, memberVersion, portalVersions } from './portal-service.js';
 import { versionParamSchema } from '../../shared/outlook-schemas.js';
 
 /**
@@ -28,8 +28,7 @@ export function portalRoutes(ctx: AppContext): RouteDef[] {
       path: '/outlook/versions',
       access: ACCESS.myFarm,
       cache: true,
-      handler: async (_req, res) =>
-        res.json((await listVersions(ctx.db)).map((v) => ({ id: v.id, outlookId: v.outlookId, version: v.version, season: v.season, title: v.title, publishedAt: v.publishedAt }))),
+      handler: async (_req, res) => res.json(await portalVersions(ctx.db)),
     },
     {
       method: 'get',

@@ -467,7 +467,7 @@ describe('accountability', () => {
 
 describe('a full reset of the database', () => {
   it('removes outlooks and their versions only when the reset says so', async () => {
-    const { purgeOutlookData } = await import('../../server/outlook/outlook-service.js');
+    const { purgeOutlookData } = await import('../../server/outlook/outlook-repository.js');
     await expect(t.database.db.delete(outlookVersionFarms)).rejects.toThrow();
     await t.database.db.transaction(async (tx) => purgeOutlookData(tx));
     const [{ n }] = await t.database.db.select({ n: sql<number>`count(*)`.mapWith(Number) }).from(outlookVersions);
