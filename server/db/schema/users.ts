@@ -1,6 +1,7 @@
 import { sql } from 'drizzle-orm';
 import { boolean, check, index, integer, pgTable, text, timestamp, type AnyPgColumn } from 'drizzle-orm/pg-core';
 import { farms } from './farms.js';
+import { ROLES } from '../../../shared/roles.js';
 
 export const users = pgTable(
   'users',
@@ -8,7 +9,7 @@ export const users = pgTable(
     id: integer('id').primaryKey().generatedAlwaysAsIdentity(),
     email: text('email').notNull().unique(),
     name: text('name').notNull(),
-    role: text('role', { enum: ['admin', 'planner', 'treasurer', 'member'] }).notNull(),
+    role: text('role', { enum: ROLES }).notNull(),
     /** argon2id; null while an invitation has not been accepted. */
     passwordHash: text('password_hash'),
     active: boolean('active').notNull().default(true),
@@ -21,5 +22,6 @@ export const users = pgTable(
     createdAt: timestamp('created_at', { withTimezone: true }).notNull().defaultNow(),
     lastSignInAt: timestamp('last_sign_in_at', { withTimezone: true }),
   },
-  (t) => [check('users_role_check', sql`${t.role} in ('admin','planner','treasurer','member')`), index('users_farm_id_idx').on(t.farmId)],
+  // The roles of shared/roles.ts; a change there needs a migration (npm run db:generate).
+  (t) => [check('users_role_check', sql`${t.role} in (${sql.raw(ROLES.map((r) => `'${r}'`).join(','))})`), index('users_farm_id_idx').on(t.farmId)],
 );
