@@ -133,29 +133,10 @@ export function gridOrderStatistics(x: Float64Array, grid: DrawGrid, ranks: numb
   if (!(scale > 0)) return null;
   const S = x.length;
   const start = gridScratch.start;
-  start[0] = 0;
-  for (let b = 0; b < GRID_BINS + 2; b++) start[b + 1] = start[b]! + counts[b]!;
-  const binOf = (r: number): number => {
-    let a = 0;
-    let c = GRID_BINS + 1;
-    while (a < c) {
-      const mid = (a + c) >>> 1;
-      if (start[mid + 1]! <= r) a = mid + 1;
-      else c = mid;
-    }
-    return a;
-  };
-  const rankBins = ranks.map(binOf);
+  const rankBins = binsOfRanks(counts, GRID_BINS + 2, ranks, start);
   if (rankBins.some((b) => b === 0 || b === GRID_BINS + 1)) return null;
   const slot = gridScratch.slot;
-  const lists: Float64Array[] = [];
-  const fill: number[] = [];
-  for (const b of rankBins)
-    if (slot[b] === -1) {
-      slot[b] = lists.length;
-      lists.push(new Float64Array(counts[b]!));
-      fill.push(0);
-    }
+  const { lists, fill } = listsForBins(rankBins, counts, slot);
   for (let s = 0; s < S; s++) {
     const v = x[s]!;
     const k = slot[gridBin(v, lo, scale)]!;
@@ -242,27 +223,9 @@ export function rangeOrderStatistics(x: Float64Array, ranks: number[], lo: numbe
   }
   // Bin holding each rank, and the rank's position within that bin.
   const start = new Int32Array(BINS + 1);
-  for (let b = 0; b < BINS; b++) start[b + 1] = start[b]! + counts[b]!;
-  const binOf = (r: number): number => {
-    let a = 0;
-    let c = BINS - 1;
-    while (a < c) {
-      const mid = (a + c) >>> 1;
-      if (start[mid + 1]! <= r) a = mid + 1;
-      else c = mid;
-    }
-    return a;
-  };
+  const rankBins = binsOfRanks(counts, BINS, ranks, start);
   const binSlot = new Int32Array(BINS).fill(-1);
-  const lists: Float64Array[] = [];
-  const fill: number[] = [];
-  const rankBins = ranks.map(binOf);
-  for (const b of rankBins)
-    if (binSlot[b] === -1) {
-      binSlot[b] = lists.length;
-      lists.push(new Float64Array(counts[b]!));
-      fill.push(0);
-    }
+  const { lists, fill } = listsForBins(rankBins, counts, binSlot);
   for (let i = 0; i < N; i++) {
     const v = x[i]!;
     let b = ((v - lo) * scale) | 0;
@@ -277,6 +240,43 @@ export function rangeOrderStatistics(x: Float64Array, ranks: number[], lo: numbe
     out.set(r, lists[binSlot[b]!]![r - start[b]!]!);
   });
   return out;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Shared by the two histograms
+
+/**
+ * The bin holding each rank (0-based, in ascending order of the values) of a histogram of `bins`
+ * bins; fills start[b] with the number of values in the bins before b (so the rank's place in its
+ * bin is r − start[b]).
+ */
+function binsOfRanks(counts: Int32Array, bins: number, ranks: number[], start: Int32Array): number[] {
+  start[0] = 0;
+  for (let b = 0; b < bins; b++) start[b + 1] = start[b]! + counts[b]!;
+  const binOf = (r: number): number => {
+    let a = 0;
+    let c = bins - 1;
+    while (a < c) {
+      const mid = (a + c) >>> 1;
+      if (start[mid + 1]! <= r) a = mid + 1;
+      else c = mid;
+    }
+    return a;
+  };
+  return ranks.map(binOf);
+}
+
+/** One list per distinct bin of `rankBins`, sized for its values, numbered in slot[b] (which must hold −1 elsewhere). */
+function listsForBins(rankBins: number[], counts: Int32Array, slot: Int32Array): { lists: Float64Array[]; fill: number[] } {
+  const lists: Float64Array[] = [];
+  const fill: number[] = [];
+  for (const b of rankBins)
+    if (slot[b] === -1) {
+      slot[b] = lists.length;
+      lists.push(new Float64Array(counts[b]!));
+      fill.push(0);
+    }
+  return { lists, fill };
 }
 
 /** Hoare quickselect: returns the k-th smallest of x[lo..hi] (0-based within the array), reordering x. */
