@@ -152,10 +152,7 @@ export function dualAt(tech: Technology, sol: SolveSuccess, committed: readonly 
   const isC = new Array<boolean>(n).fill(false);
   for (const c of committed) isC[c] = true;
   const rest = Array.from({ length: n }, (_, i) => i).filter((i) => !isC[i]);
-  let cost = 0;
-  let spend = 0;
-  for (const i of rest) cost -= p[i]! * y[i]!;
-  for (let i = 0; i < n; i++) if (tech.roles[i] === 'input') spend -= p[i]! * y[i]!;
+  const [cost, spend] = costAndSpending(tech.roles, isC, p, y);
   const H = tech.hessian(p);
   const Hcc = committed.map((a) => committed.map((b) => H[a]![b]!));
   const pc = committed.map((c) => p[c]!);
@@ -166,6 +163,22 @@ export function dualAt(tech: Technology, sol: SolveSuccess, committed: readonly 
   const unconditional = rest.map((a) => rest.map((b) => H[a]![b]!));
   const conditional = rest.map((a, ia) => rest.map((b, ib) => unconditional[ia]![ib]! - A[ia]!.reduce((acc, v, k) => acc + v * H[committed[k]!]![b]!, 0)));
   return { cost, inputSpending: spend, rest, conditional, unconditional, restPerCommitted: A, marginalCostSlope: inv };
+}
+
+/**
+ * At prices p and netputs y (per unit of land for the per-hectare model): the cost
+ * C = −Σ_{i not committed} p_i y_i (spending on the inputs less the revenue of the free outputs) and
+ * the input spending Σ_inputs −p_j y_j. The same arithmetic at the point (dualAt), in every draw and
+ * in every step of the bands' sensitivities.
+ */
+export function costAndSpending(roles: readonly string[], committed: readonly boolean[], p: ArrayLike<number>, y: ArrayLike<number>): [cost: number, spending: number] {
+  let cost = 0;
+  let spend = 0;
+  for (let i = 0; i < roles.length; i++) {
+    if (!committed[i]) cost -= p[i]! * y[i]!;
+    if (roles[i] === 'input') spend -= p[i]! * y[i]!;
+  }
+  return [cost, spend];
 }
 
 /**

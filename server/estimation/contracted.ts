@@ -15,6 +15,9 @@
  * Co-op figures are sums over farms within each draw (the marginal cost and margin: tonnage-weighted
  * means). As in the projection, the season parts are drawn at their plug-in scale and each figure's
  * band is stretched to the t of its own Welch–Satterthwaite degrees of freedom (farmStretches).
+ * Parts: contracted-setup.ts (each farm checked and in the model's terms), contracted-draws.ts (one
+ * draw's solve, per form), contracted-bands.ts (a farm's figures per draw, the co-op's sums, bands and
+ * stretches), contracted-words.ts (the words). This file puts them together, with the elasticities.
  * Estimates, not advice.
  */
 import type {
@@ -28,16 +31,17 @@ import type {
   ContractedOutputResult,
   ElasticityTable,
 } from '../../shared/contracted-types.js';
-import { dualAt, solveCommitted, type DualPoint, type SolveFailure, type SolveSuccess, type Technology } from './contracted-core.js';
+import { CoopSums, FarmFigures, farmStretches, quadForm, summarise, type ItemSets } from './contracted-bands.js';
+import { dualAt, solveCommitted, type DualPoint, type SolveFailure, type SolveResult, type Technology } from './contracted-core.js';
+import { glDrawSolver, nqDrawSolver, type DrawStatus } from './contracted-draws.js';
+import { historyOf, setUp } from './contracted-setup.js';
+import { failedDrawsIssue, failureIssues, historyIssues, wrongSignIssues } from './contracted-words.js';
 import { EstimationInputError } from './errors.js';
 import { NO_STRETCH, WelchTable, type Stretch } from './forecast.js';
 import { drawSharedParts, type SharedDraws } from './forecast-draws.js';
 import { formOf } from './forms.js';
 import { netputsFromDecomposition } from './model.js';
-import { glIndex } from './gl.js';
-import { nqIndex } from './nq.js';
 import type { ForecastModel } from './panel.js';
-import { PROJECTION_CAUTION } from './projection.js';
 import { SeededRandom } from './random.js';
 
 export type * from '../../shared/contracted-types.js';
@@ -63,28 +67,8 @@ export interface ContractedOptions {
   onProgress?: (share: number, stage: string) => void;
 }
 
-/** Share of failed draws above which a farm gets a (non-blocking) word about its bands. */
-const FAILED_DRAWS_WORTH_SAYING = 0.05;
-
 export const CONTRACTED_CAUTION =
   'Marginal costs and conditional input needs are estimates from the fitted profit function, conditional on the stated input prices and on past relationships; they are not financial advice or a recommendation to sign, price or hedge a contract. Fertiliser rates follow soil tests, local guidance and nutrient-management rules; a certified adviser has the last word.';
-
-interface FarmSetup {
-  spec: ContractedFarmSpec;
-  prices: number[];
-  /** Fixed factors as the profit function takes them (per hectare for the per-hectare model, trend included). */
-  z: number[];
-  land: number;
-  known: boolean;
-  /** Own level μ_f per item (0 for the pooled model or a new farm). */
-  mu: number[];
-  /** Standard deviation of the farm-level shift per item (own-level uncertainty + residual). */
-  noiseSd: number[];
-  committed: number[];
-  /** Committed quantities in levels and per hectare (per farm for the pooled model). */
-  quantity: number[];
-  target: number[];
-}
 
 /**
  * Evaluate committed outputs against the forecasting model: marginal costs, conditional input
@@ -148,24 +132,14 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
   const coopJl = welch ? Array.from({ length: CQ }, () => new Float64Array(n)) : null;
   const coopNoise = new Float64Array(CQ);
 
-  // Co-op accumulators per draw (NaN once any evaluated farm fails in that draw).
-  const coopInputs = names.map(() => new Float64Array(S));
-  const coopFree = names.map(() => new Float64Array(S));
-  const coopCost = new Float64Array(S);
-  const coopSpend = new Float64Array(S);
-  const coopMcNum = names.map(() => new Float64Array(S));
-  const coopMarginNum = names.map(() => new Float64Array(S));
+  // Co-op sums per draw (a draw counts only where every evaluated farm could be evaluated) and at the point.
+  const coopDraws = new CoopSums(n, S);
+  const coopAtPoint = new CoopSums(n, 1);
   const coopOk = new Uint8Array(S).fill(1);
   const coopPoint = {
-    inputs: new Array<number>(n).fill(0),
-    free: new Array<number>(n).fill(0),
     freeAny: new Array<boolean>(n).fill(false),
-    cost: 0,
-    spend: 0,
     qty: new Array<number>(n).fill(0),
-    mcNum: new Array<number>(n).fill(0),
     marginQty: new Array<number>(n).fill(0),
-    marginNum: new Array<number>(n).fill(0),
     unconditional: new Array<number>(n).fill(0),
   };
   const coopElast: { farmX: number[]; farm: FarmElasticityParts }[] = [];
@@ -185,27 +159,10 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
       if (roles[i] === 'input') unconditionalInputs[nm] = Math.max(0, -f.land * yUncond[i]!);
     });
     const history = f.committed.map((c) => historyOf(f.spec, names[c]!));
+    /** Contract price of each committed output (undefined where none is given). */
+    const contractPrices = f.committed.map((c) => f.spec.contractPrices?.[names[c]!]);
     // Words on commitments beyond the farm's own record.
-    f.committed.forEach((c, j) => {
-      const h = history[j];
-      if (!h) return;
-      const t = f.target[j]!;
-      const what = unitPer(units[names[c]!], perHa);
-      if (t > h.max * (1 + 1e-9))
-        issues.push({
-          item: names[c]!,
-          kind: 'beyond-history',
-          blocking: false,
-          text: `${fmtQty(f.quantity[j]!, units[names[c]!])} of ${names[c]} is ${fmt(t)} ${what}: more ${names[c]} ${perHa ? 'per hectare ' : ''}than farm ${f.spec.farm} has grown in any of its ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'} (at most ${fmt(h.max)} ${what}), so the figures extrapolate the fitted technology.`,
-        });
-      else if (t < h.min * (1 - 1e-9))
-        issues.push({
-          item: names[c]!,
-          kind: 'beyond-history',
-          blocking: false,
-          text: `${fmtQty(f.quantity[j]!, units[names[c]!])} of ${names[c]} is ${fmt(t)} ${what}: less ${names[c]} ${perHa ? 'per hectare ' : ''}than farm ${f.spec.farm} has grown in any of its ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'} (at least ${fmt(h.min)} ${what}), so the figures extrapolate the fitted technology.`,
-        });
-    });
+    issues.push(...historyIssues(f, history, names, units, perHa));
 
     const sol = solveCommitted(pointTech, f.prices, f.committed, f.target);
     const dual = sol.ok ? dualAt(pointTech, sol, f.committed) : null;
@@ -218,7 +175,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
             perHectare: perHa ? f.target[j]! : null,
             marginalCost: null,
             marginalCostSlope: null,
-            contractPrice: f.spec.contractPrices?.[names[c]!] ?? null,
+            contractPrice: contractPrices[j] ?? null,
             margin: null,
             history: history[j] ?? null,
           },
@@ -248,19 +205,18 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     // Point values (levels).
     const pStar = sol.prices;
     const yStar = sol.netputs;
-    names.forEach((nm, i) => {
-      if (roles[i] === 'input' && yStar[i]! > 0)
-        issues.push({
-          item: nm,
-          kind: 'wrong-sign',
-          blocking: false,
-          text: `At the committed tonnage the fitted technology gives farm ${f.spec.farm} a negative use of ${nm} (${fmt(-f.land * yStar[i]!)}); it is shown as zero, and the other figures should be read with care.`,
-        });
-    });
+    issues.push(...wrongSignIssues(f, names, roles, yStar));
     const isCommitted = new Array<boolean>(n).fill(false);
     for (const c of f.committed) isCommitted[c] = true;
     const freeIdx = names.map((_, i) => i).filter((i) => roles[i] === 'output' && !isCommitted[i]);
     const inputIdx = names.map((_, i) => i).filter((i) => roles[i] === 'input');
+    const sets: ItemSets = { roles, isCommitted, inputIdx, freeIdx };
+    // The general (Newton) solve of one draw's technology, started at the point's marginal costs.
+    const solveGeneral = (theta: ArrayLike<number>, shift: ArrayLike<number>): SolveResult => {
+      const start = f.prices.slice();
+      f.committed.forEach((c) => (start[c] = pStar[c]!));
+      return solveCommitted(technology(theta, f.z, shift), start, f.committed, f.target, { keepNonPositive: true });
+    };
 
     // Welch–Satterthwaite stretch of every figure of this farm (and its share of the co-op's).
     // The solve used for the draws and the sensitivities: written out per form where it can be.
@@ -277,7 +233,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     const yrBuf = new Float64Array(n);
     const stretchOf = welch
       ? farmStretches(f, welch, {
-          roles,
+          sets,
           k,
           n,
           theta: fit.theta,
@@ -291,9 +247,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
               const st = fast(thetaBuf, 0, shiftBuf, prBuf, yrBuf);
               return st === 'ok' || st === 'below-zero' ? { ok: true, prices: Array.from(prBuf), netputs: Array.from(yrBuf), iterations: 0 } : null;
             }
-            const start = f.prices.slice();
-            f.committed.forEach((c) => (start[c] = pStar[c]!));
-            const r = solveCommitted(technology(theta, f.z, shift), start, f.committed, f.target, { keepNonPositive: true });
+            const r = solveGeneral(theta, shift);
             return r.ok ? r : null;
           },
           coop: { Jt: coopJt!, Jl: coopJl!, noise: coopNoise, marginOf: (c) => f.spec.contractPrices?.[names[c]!] !== undefined },
@@ -302,11 +256,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     const stretch = (row: number): Stretch => (stretchOf ? stretchOf[row]! : NO_STRETCH);
 
     // Draws.
-    const mc = f.committed.map(() => new Float64Array(S));
-    const inputsD = inputIdx.map(() => new Float64Array(S));
-    const freeD = freeIdx.map(() => new Float64Array(S));
-    const costD = new Float64Array(S);
-    const spendD = new Float64Array(S);
+    const draws = new FarmFigures(f, sets, S);
     const ok = new Uint8Array(S);
     let failed = 0;
     let belowZero = 0;
@@ -322,10 +272,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
         let status: DrawStatus;
         if (fast) status = fast(shared.theta, s * k, shift, pr, yr);
         else {
-          const theta = shared.theta.subarray(s * k, (s + 1) * k);
-          const start = f.prices.slice();
-          f.committed.forEach((c) => (start[c] = pStar[c]!));
-          const r = solveCommitted(technology(theta, f.z, shift), start, f.committed, f.target, { keepNonPositive: true });
+          const r = solveGeneral(shared.theta.subarray(s * k, (s + 1) * k), shift);
           if (r.ok) {
             pr.set(r.prices);
             yr.set(r.netputs);
@@ -342,84 +289,46 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
         }
         if (status === 'below-zero') belowZero++;
         ok[s] = 1;
-        f.committed.forEach((c, j) => (mc[j]![s] = pr[c]!));
-        inputIdx.forEach((i, j) => (inputsD[j]![s] = Math.max(0, -f.land * yr[i]!)));
-        freeIdx.forEach((i, j) => (freeD[j]![s] = Math.max(0, f.land * yr[i]!)));
-        let cost = 0;
-        let spend = 0;
-        for (let i = 0; i < n; i++) {
-          if (!isCommitted[i]) cost -= pr[i]! * yr[i]!;
-          if (roles[i] === 'input') spend -= pr[i]! * yr[i]!;
-        }
-        costD[s] = f.land * cost;
-        spendD[s] = f.land * spend;
-        // co-op sums within the draw
-        for (let j = 0; j < inputIdx.length; j++) coopInputs[inputIdx[j]!]![s]! += inputsD[j]![s]!;
-        for (let j = 0; j < freeIdx.length; j++) coopFree[freeIdx[j]!]![s]! += freeD[j]![s]!;
-        coopCost[s]! += costD[s]!;
-        coopSpend[s]! += spendD[s]!;
-        f.committed.forEach((c, j) => {
-          coopMcNum[c]![s]! += f.quantity[j]! * pr[c]!;
-          const cp = f.spec.contractPrices?.[names[c]!];
-          if (cp !== undefined) coopMarginNum[c]![s]! += f.quantity[j]! * (cp - pr[c]!);
-        });
+        draws.record(s, pr, yr);
+        coopDraws.add(s, draws, s, contractPrices);
       }
     }
-    if (S > 0 && failed / S > FAILED_DRAWS_WORTH_SAYING) {
-      const what =
-        beyond >= failed / 2
-          ? 'the committed quantity is more than the technology of that draw can supply at any price'
-          : belowZero >= failed / 2
-            ? 'the committed quantity needs a price at or below zero'
-            : 'the committed quantity could not be evaluated';
-      issues.push({
-        item: names[f.committed[0]!]!,
-        kind: 'out-of-reach',
-        blocking: false,
-        text: `In ${Math.round((100 * failed) / S)} % of the ${S} draws of the model's uncertainty ${what} on farm ${f.spec.farm}; the bands cover the other draws only, so read them with care.`,
-      });
-    }
+    const failedWord = failedDrawsIssue(f, names, S, failed, belowZero, beyond);
+    if (failedWord) issues.push(failedWord);
     const band = (values: Float64Array, point: number, clip: boolean, st: Stretch): ContractedBand => summarise(values, ok, point, probs, level, clip, st);
     const m = f.committed.length;
+    // The point's figures, by the same arithmetic as a draw's.
+    const at = new FarmFigures(f, sets, 1);
+    at.record(0, pStar, yStar);
+    coopAtPoint.add(0, at, 0, contractPrices);
 
     const outputs: Record<string, ContractedOutputResult> = {};
     f.committed.forEach((c, j) => {
-      const cp = f.spec.contractPrices?.[names[c]!];
-      const marginValues = cp === undefined ? null : Float64Array.from(mc[j]!, (v) => cp - v);
+      const cp = contractPrices[j];
+      const mcPoint = at.mc[j]![0]!;
+      const marginValues = cp === undefined ? null : Float64Array.from(draws.mc[j]!, (v) => cp - v);
       outputs[names[c]!] = {
         quantity: f.quantity[j]!,
         perHectare: perHa ? f.target[j]! : null,
-        marginalCost: band(mc[j]!, pStar[c]!, false, stretch(j)),
+        marginalCost: band(draws.mc[j]!, mcPoint, false, stretch(j)),
         marginalCostSlope: dual.marginalCostSlope[j]![j]! / f.land,
         contractPrice: cp ?? null,
-        margin: marginValues ? band(marginValues, cp! - pStar[c]!, false, stretch(j)) : null,
+        margin: marginValues ? band(marginValues, cp! - mcPoint, false, stretch(j)) : null,
         history: history[j] ?? null,
       };
       coopPoint.qty[c]! += f.quantity[j]!;
-      coopPoint.mcNum[c]! += f.quantity[j]! * pStar[c]!;
-      if (cp !== undefined) {
-        coopPoint.marginQty[c]! += f.quantity[j]!;
-        coopPoint.marginNum[c]! += f.quantity[j]! * (cp - pStar[c]!);
-      }
+      if (cp !== undefined) coopPoint.marginQty[c]! += f.quantity[j]!;
     });
     const inputs: Record<string, ContractedBand> = {};
-    inputIdx.forEach((i, j) => {
-      const x = Math.max(0, -f.land * yStar[i]!);
-      inputs[names[i]!] = band(inputsD[j]!, x, true, stretch(m + i));
-      coopPoint.inputs[i]! += x;
-    });
+    inputIdx.forEach((i, j) => (inputs[names[i]!] = band(draws.inputs[j]!, at.inputs[j]![0]!, true, stretch(m + i))));
     const freeOutputs: Record<string, ContractedBand> = {};
     freeIdx.forEach((i, j) => {
-      const q = Math.max(0, f.land * yStar[i]!);
-      freeOutputs[names[i]!] = band(freeD[j]!, q, true, stretch(m + i));
-      coopPoint.free[i]! += q;
+      freeOutputs[names[i]!] = band(draws.free[j]!, at.free[j]![0]!, true, stretch(m + i));
       coopPoint.freeAny[i] = true;
     });
     for (const i of inputIdx) coopPoint.unconditional[i]! += unconditionalInputs[names[i]!]!;
-    coopPoint.cost += f.land * dual.cost;
-    coopPoint.spend += f.land * dual.inputSpending;
     const parts = elasticityParts(dual, pStar, yStar, f.committed, f.target, roles);
-    coopElast.push({ farmX: inputIdx.map((i) => Math.max(0, -f.land * yStar[i]!)), farm: parts });
+    coopElast.push({ farmX: inputIdx.map((_, j) => at.inputs[j]![0]!), farm: parts });
     return {
       farm: f.spec.farm,
       known: f.known,
@@ -430,8 +339,8 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
       freeOutputs,
       inputs,
       unconditionalInputs,
-      cost: band(costD, f.land * dual.cost, false, stretch(m + n)),
-      inputSpending: band(spendD, f.land * dual.inputSpending, false, stretch(m + n + 1)),
+      cost: band(draws.cost, at.cost[0]!, false, stretch(m + n)),
+      inputSpending: band(draws.spend, at.spend[0]!, false, stretch(m + n + 1)),
       elasticities: farmTables(parts, names),
       failedDrawShare: S > 0 ? failed / S : 0,
       belowZeroDrawShare: S > 0 ? belowZero / S : 0,
@@ -455,26 +364,26 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     freeOutputs: {},
     inputs: {},
     unconditionalInputs: {},
-    cost: coopBand(coopCost, coopPoint.cost, false, 3 * n),
-    inputSpending: coopBand(coopSpend, coopPoint.spend, false, 3 * n + 1),
+    cost: coopBand(coopDraws.cost, coopAtPoint.cost[0]!, false, 3 * n),
+    inputSpending: coopBand(coopDraws.spend, coopAtPoint.spend[0]!, false, 3 * n + 1),
     elasticities: null,
     farmsEvaluated: evaluatedCount,
     farmsLeftOut: leftOut,
   };
   names.forEach((nm, i) => {
     if (roles[i] === 'input') {
-      coop.inputs[nm] = coopBand(coopInputs[i]!, coopPoint.inputs[i]!, true, 2 * n + i);
+      coop.inputs[nm] = coopBand(coopDraws.inputs[i]!, coopAtPoint.inputs[i]![0]!, true, 2 * n + i);
       coop.unconditionalInputs[nm] = coopPoint.unconditional[i]!;
     }
     if (anyCommitted[i] && coopPoint.qty[i]! > 0) {
       const Q = coopPoint.qty[i]!;
       coop.quantities[nm] = Q;
-      coop.marginalCost[nm] = coopBand(Float64Array.from(coopMcNum[i]!, (v) => v / Q), coopPoint.mcNum[i]! / Q, false, i);
+      coop.marginalCost[nm] = coopBand(Float64Array.from(coopDraws.mcNum[i]!, (v) => v / Q), coopAtPoint.mcNum[i]![0]! / Q, false, i);
       // the margin: tonnage-weighted over the farms that gave a contract price
       const MQ = coopPoint.marginQty[i]!;
-      if (MQ > 0) coop.margin[nm] = coopBand(Float64Array.from(coopMarginNum[i]!, (v) => v / MQ), coopPoint.marginNum[i]! / MQ, false, n + i);
+      if (MQ > 0) coop.margin[nm] = coopBand(Float64Array.from(coopDraws.marginNum[i]!, (v) => v / MQ), coopAtPoint.marginNum[i]![0]! / MQ, false, n + i);
     }
-    if (roles[i] === 'output' && coopPoint.freeAny[i]) coop.freeOutputs[nm] = coopBand(coopFree[i]!, coopPoint.free[i]!, true, 2 * n + i);
+    if (roles[i] === 'output' && coopPoint.freeAny[i]) coop.freeOutputs[nm] = coopBand(coopDraws.free[i]!, coopAtPoint.free[i]![0]!, true, 2 * n + i);
   });
   coop.elasticities = coopTables(coopElast, names, roles, anyCommitted);
 
@@ -499,406 +408,6 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
     ],
     caution: CONTRACTED_CAUTION,
   };
-}
-
-// ---------------------------------------------------------------------------------------------
-// The normalized quadratic's linear solve, per draw
-
-/**
- * 'ok'; 'below-zero': solved, but a committed output needs a price at or below zero (kept: the
- * linear solution is exact, and a negative marginal cost says the farm would grow more than committed
- * even at a zero price); 'lost-below-zero' / 'lost-beyond': not solved because no positive price reaches the
- * quantity (general solve only); 'failed': singular or not settled.
- */
-type DrawStatus = 'ok' | 'below-zero' | 'lost-below-zero' | 'lost-beyond' | 'failed';
-
-/**
- * For the NQ with the numeraire not committed: B_cc p̃*_c = y*_c/L − μ_c − λ_c − u_c − a_c − B_cr p̃_r − C_c z,
- * then every netput from the NQ equations. No allocation per draw.
- */
-function nqDrawSolver(layout: ForecastModel['fit']['layout'], f: FarmSetup, pointPrices: number[]) {
-  const n = layout.items.length;
-  const nn = n - 1;
-  const m = layout.factors.length;
-  const q = layout.quadraticFactors;
-  const ix = nqIndex(n, m, q);
-  const C = f.committed;
-  const mc = C.length;
-  const isC = new Uint8Array(n);
-  for (const c of C) isC[c] = 1;
-  const pn = f.prices[nn]!;
-  const pt = new Float64Array(nn);
-  for (let j = 0; j < nn; j++) pt[j] = f.prices[j]! / pn;
-  // scaling of the pivot test: the point's normalised prices of the committed outputs
-  const scale = C.map((c) => Math.abs(pointPrices[c]! / pn) || 1);
-  const A = new Float64Array(mc * mc);
-  const rhs = new Float64Array(mc);
-  const zp = new Float64Array(n);
-  const ptS = new Float64Array(nn);
-  const bIdx = Array.from({ length: nn }, (_, i) => Int32Array.from({ length: nn }, (_, j) => ix.b(i, j)));
-  const z = f.z;
-  return (theta: Float64Array, o: number, shift: Float64Array, pr: Float64Array, yr: Float64Array): DrawStatus => {
-    for (let i = 0; i < nn; i++) {
-      let v = 0;
-      for (let kk = 0; kk < m; kk++) v += theta[o + ix.c(i, kk)]! * z[kk]!;
-      zp[i] = v;
-    }
-    {
-      let v = 0;
-      for (let kk = 0; kk < m; kk++) v += theta[o + ix.d(kk)]! * z[kk]!;
-      for (let kk = 0; kk < q; kk++) for (let l = 0; l < q; l++) v += 0.5 * theta[o + ix.g(kk, l)]! * z[kk]! * z[l]!;
-      zp[nn] = v;
-    }
-    for (let a = 0; a < mc; a++) {
-      const ca = C[a]!;
-      let r = f.target[a]! - shift[ca]! - theta[o + ix.a(ca)]! - zp[ca]!;
-      const row = bIdx[ca]!;
-      for (let j = 0; j < nn; j++) if (!isC[j]) r -= theta[o + row[j]!]! * pt[j]!;
-      rhs[a] = r * scale[a]!;
-      for (let b = 0; b < mc; b++) A[a * mc + b] = theta[o + row[C[b]!]!]! * scale[a]! * scale[b]!;
-    }
-    // scaled Cholesky in place (lower triangle), then the two triangular solves
-    let maxDiag = 0;
-    for (let a = 0; a < mc; a++) maxDiag = Math.max(maxDiag, Math.abs(A[a * mc + a]!));
-    if (!(maxDiag > 0)) return 'failed';
-    for (let a = 0; a < mc; a++)
-      for (let b = 0; b <= a; b++) {
-        let v = A[a * mc + b]!;
-        for (let l = 0; l < b; l++) v -= A[a * mc + l]! * A[b * mc + l]!;
-        if (a === b) {
-          if (!(v > 1e-10 * maxDiag)) return 'failed';
-          A[a * mc + a] = Math.sqrt(v);
-        } else A[a * mc + b] = v / A[b * mc + b]!;
-      }
-    for (let a = 0; a < mc; a++) {
-      let v = rhs[a]!;
-      for (let l = 0; l < a; l++) v -= A[a * mc + l]! * rhs[l]!;
-      rhs[a] = v / A[a * mc + a]!;
-    }
-    for (let a = mc - 1; a >= 0; a--) {
-      let v = rhs[a]!;
-      for (let l = a + 1; l < mc; l++) v -= A[l * mc + a]! * rhs[l]!;
-      rhs[a] = v / A[a * mc + a]!;
-    }
-    for (let j = 0; j < nn; j++) pr[j] = f.prices[j]!;
-    pr[nn] = pn;
-    ptS.set(pt);
-    let below = false;
-    for (let a = 0; a < mc; a++) {
-      const v = rhs[a]! * scale[a]!;
-      ptS[C[a]!] = v;
-      pr[C[a]!] = v * pn;
-      if (!(v > 0)) below = true;
-    }
-    let quad = 0;
-    for (let i = 0; i < nn; i++) {
-      const row = bIdx[i]!;
-      let v = theta[o + ix.a(i)]! + zp[i]! + shift[i]!;
-      for (let j = 0; j < nn; j++) {
-        const bij = theta[o + row[j]!]!;
-        v += bij * ptS[j]!;
-        quad += bij * ptS[i]! * ptS[j]!;
-      }
-      yr[i] = v;
-    }
-    yr[nn] = theta[o + ix.a0]! - 0.5 * quad + zp[nn]! + shift[nn]!;
-    return below ? 'below-zero' : 'ok';
-  };
-}
-
-/**
- * For the generalized Leontief: Newton's method on the committed prices as in solveCommitted
- * (contracted-core.ts: the same safeguards, tolerance and verdicts), with the netputs
- *   y_i = b_ii + Σ_{j≠i} b_ij √(p_j/p_i) + Σ_k c_ik z_k + ½ Σ_kl g_ikl z_k z_l + shift_i
- * and their price Hessian written out, so that a draw allocates nothing.
- */
-function glDrawSolver(layout: ForecastModel['fit']['layout'], f: FarmSetup, pointPrices: number[]) {
-  const n = layout.items.length;
-  const m = layout.factors.length;
-  const q = layout.quadraticFactors;
-  const ix = glIndex(n, m, q);
-  const C = f.committed;
-  const mc = C.length;
-  const bIdx = Array.from({ length: n }, (_, i) => Int32Array.from({ length: n }, (_, j) => ix.b(i, j)));
-  const z = f.z;
-  const zp = new Float64Array(n);
-  const sp = new Float64Array(n);
-  const p = new Float64Array(n);
-  const y = new Float64Array(n);
-  const r = new Float64Array(mc);
-  const A = new Float64Array(mc * mc);
-  const d = new Float64Array(mc);
-  const pc = new Float64Array(mc);
-  const scale = new Float64Array(mc);
-  const start = C.map((c) => pointPrices[c]!);
-  const netputs = (theta: Float64Array, o: number, shift: Float64Array): void => {
-    for (let j = 0; j < n; j++) sp[j] = Math.sqrt(p[j]!);
-    for (let i = 0; i < n; i++) {
-      const row = bIdx[i]!;
-      let v = theta[o + row[i]!]! + zp[i]! + shift[i]!;
-      for (let j = 0; j < n; j++) if (j !== i) v += (theta[o + row[j]!]! * sp[j]!) / sp[i]!;
-      y[i] = v;
-    }
-  };
-  const residualNorm = (): number => {
-    let worst = 0;
-    for (let a = 0; a < mc; a++) {
-      r[a] = f.target[a]! - y[C[a]!]!;
-      worst = Math.max(worst, Math.abs(r[a]!) / scale[a]!);
-    }
-    return worst;
-  };
-  return (theta: Float64Array, o: number, shift: Float64Array, pr: Float64Array, yr: Float64Array): DrawStatus => {
-    for (let i = 0; i < n; i++) {
-      let v = 0;
-      for (let kk = 0; kk < m; kk++) v += theta[o + ix.c(i, kk)]! * z[kk]!;
-      for (let kk = 0; kk < q; kk++) for (let l = 0; l < q; l++) v += 0.5 * theta[o + ix.g(i, kk, l)]! * z[kk]! * z[l]!;
-      zp[i] = v;
-    }
-    for (let j = 0; j < n; j++) p[j] = f.prices[j]!;
-    for (let a = 0; a < mc; a++) p[C[a]!] = start[a]!;
-    netputs(theta, o, shift);
-    for (let a = 0; a < mc; a++) scale[a] = Math.max(Math.abs(f.target[a]!), Math.abs(y[C[a]!]!), 1e-300);
-    let rn = residualNorm();
-    let settled = false;
-    for (let it = 0; it < 200; it++) {
-      if (rn <= 1e-11) {
-        settled = true;
-        break;
-      }
-      // H_cc (scaled by p_c on both sides) and its Cholesky factor
-      for (let a = 0; a < mc; a++) {
-        const i = C[a]!;
-        for (let b = 0; b < mc; b++) {
-          const j = C[b]!;
-          let h: number;
-          if (i === j) {
-            h = 0;
-            for (let l = 0; l < n; l++) if (l !== i) h -= 0.5 * theta[o + bIdx[i]![l]!]! * sp[l]! * Math.pow(p[i]!, -1.5);
-          } else h = (0.5 * theta[o + bIdx[i]![j]!]!) / (sp[i]! * sp[j]!);
-          A[a * mc + b] = h * p[i]! * p[j]!;
-        }
-      }
-      let maxDiag = 0;
-      for (let a = 0; a < mc; a++) maxDiag = Math.max(maxDiag, Math.abs(A[a * mc + a]!));
-      if (!(maxDiag > 0)) return 'failed';
-      for (let a = 0; a < mc; a++)
-        for (let b = 0; b <= a; b++) {
-          let v = A[a * mc + b]!;
-          for (let l = 0; l < b; l++) v -= A[a * mc + l]! * A[b * mc + l]!;
-          if (a === b) {
-            if (!(v > 1e-10 * maxDiag)) return 'failed';
-            A[a * mc + a] = Math.sqrt(v);
-          } else A[a * mc + b] = v / A[b * mc + b]!;
-        }
-      for (let a = 0; a < mc; a++) {
-        let v = r[a]! * p[C[a]!]!;
-        for (let l = 0; l < a; l++) v -= A[a * mc + l]! * d[l]!;
-        d[a] = v / A[a * mc + a]!;
-      }
-      for (let a = mc - 1; a >= 0; a--) {
-        let v = d[a]!;
-        for (let l = a + 1; l < mc; l++) v -= A[l * mc + a]! * d[l]!;
-        d[a] = v / A[a * mc + a]!;
-      }
-      for (let a = 0; a < mc; a++) {
-        d[a] = d[a]! * p[C[a]!]!;
-        pc[a] = p[C[a]!]!;
-      }
-      let t = 1;
-      for (let a = 0; a < mc; a++) if (pc[a]! + t * d[a]! < 0.2 * pc[a]!) t = (-0.8 * pc[a]!) / d[a]!;
-      let accepted = false;
-      for (let half = 0; half < 40; half++) {
-        for (let a = 0; a < mc; a++) p[C[a]!] = pc[a]! + t * d[a]!;
-        netputs(theta, o, shift);
-        const next = residualNorm();
-        if (Number.isFinite(next) && next < rn) {
-          rn = next;
-          accepted = true;
-          break;
-        }
-        t /= 2;
-      }
-      if (!accepted) {
-        for (let a = 0; a < mc; a++) p[C[a]!] = pc[a]!;
-        break;
-      }
-      for (let a = 0; a < mc; a++) if (p[C[a]!]! < 1e-9 * start[a]!) return 'lost-below-zero';
-      for (let a = 0; a < mc; a++) if (p[C[a]!]! > 1e9 * start[a]!) return 'lost-beyond';
-    }
-    if (!settled) {
-      for (let a = 0; a < mc; a++) if (p[C[a]!]! < 1e-4 * start[a]!) return 'lost-below-zero';
-      for (let a = 0; a < mc; a++) if (p[C[a]!]! > 1e4 * start[a]!) return 'lost-beyond';
-      return 'failed';
-    }
-    netputs(theta, o, shift);
-    pr.set(p);
-    yr.set(y);
-    return 'ok';
-  };
-}
-
-// ---------------------------------------------------------------------------------------------
-// Set-up and validation
-
-function setUp(model: ForecastModel, options: ContractedOptions, season: number): FarmSetup[] {
-  const { fit } = model;
-  const { layout } = fit;
-  const n = layout.items.length;
-  const perHa = model.spec === 'per-hectare';
-  const itemIndex = new Map(layout.items.map((it, i) => [it.name, i]));
-  const trendIdx = layout.trendOrigin !== null ? layout.factors.indexOf('trend') : -1;
-  const common = fit.means.prices.slice();
-  for (const [name, v] of Object.entries(options.prices ?? {})) {
-    const i = itemIndex.get(name);
-    if (i === undefined) throw new EstimationInputError(`prices: "${name}" is not an item of the model (items: ${[...itemIndex.keys()].join(', ')})`);
-    if (!(Number.isFinite(v) && v > 0)) throw new EstimationInputError(`prices: the price of ${name} must be a positive number, got ${v}`);
-    common[i] = v;
-  }
-  const landName = model.landFactor;
-  const fx = model.farmEffects;
-  const farmPos = new Map((fx?.farms ?? []).map((f, i) => [f, i]));
-  const scale = model.errorScale;
-  const seen = new Set<string>();
-  return options.farms.map((spec) => {
-    const where = `farm ${spec.farm}`;
-    if (typeof spec.farm !== 'string' || !spec.farm) throw new EstimationInputError('every farm needs a name');
-    if (seen.has(spec.farm)) throw new EstimationInputError(`${where} is listed twice`);
-    seen.add(spec.farm);
-    const prices = common.slice();
-    for (const [name, v] of Object.entries(spec.prices ?? {})) {
-      const i = itemIndex.get(name);
-      if (i === undefined) throw new EstimationInputError(`${where}: "${name}" is not an item of the model`);
-      if (!(Number.isFinite(v) && v > 0)) throw new EstimationInputError(`${where}: the price of ${name} must be a positive number, got ${v}`);
-      prices[i] = v;
-    }
-    const fixed = spec.fixed ?? {};
-    for (const name of Object.keys(fixed))
-      if (name !== landName && !layout.factors.includes(name)) throw new EstimationInputError(`${where}: "${name}" is not a fixed factor of the model`);
-    let land = 1;
-    if (perHa) {
-      const L = fixed[landName!];
-      if (L === undefined || !(Number.isFinite(L) && L > 0)) throw new EstimationInputError(`${where}: land (${landName}) must be given and more than 0 ha`);
-      land = L;
-    }
-    const z = layout.factors.map((name, kk) => {
-      if (kk === trendIdx && fixed[name] === undefined) return season - layout.trendOrigin! + 1;
-      const v = fixed[name];
-      if (v === undefined || !Number.isFinite(v)) throw new EstimationInputError(`${where}: fixed factor "${name}" is missing or not a number`);
-      return perHa && kk !== trendIdx ? v / land : v;
-    });
-    const committed: number[] = [];
-    const quantity: number[] = [];
-    const entries = Object.entries(spec.contracted ?? {});
-    for (const [name, q] of entries) {
-      const i = itemIndex.get(name);
-      if (i === undefined) throw new EstimationInputError(`${where}: committed item "${name}" is not an item of the model`);
-      if (layout.items[i]!.role !== 'output') throw new EstimationInputError(`${where}: ${name} is an input; only outputs can be committed`);
-      if (!(Number.isFinite(q) && q > 0)) throw new EstimationInputError(`${where}: the committed quantity of ${name} must be a number above 0, got ${q}`);
-      committed.push(i);
-      quantity.push(q);
-    }
-    // item order
-    const order = committed.map((_, j) => j).sort((a, b) => committed[a]! - committed[b]!);
-    const c = order.map((j) => committed[j]!);
-    const qs = order.map((j) => quantity[j]!);
-    for (const [name, v] of Object.entries(spec.contractPrices ?? {})) {
-      if (!(spec.contracted ?? {})[name]) throw new EstimationInputError(`${where}: a contract price is given for ${name}, which the farm has not committed`);
-      if (!(Number.isFinite(v) && v >= 0)) throw new EstimationInputError(`${where}: the contract price of ${name} must be a number of at least 0, got ${v}`);
-    }
-    for (const [name, v] of Object.entries(spec.history ?? {})) {
-      if (!itemIndex.has(name)) throw new EstimationInputError(`${where}: history for "${name}", which is not an item of the model`);
-      if (!Array.isArray(v) || v.some((x) => !(Number.isFinite(x) && x >= 0))) throw new EstimationInputError(`${where}: the history of ${name} must be a list of quantities of at least 0`);
-    }
-    const pos = farmPos.get(spec.farm);
-    const mu = new Array<number>(n).fill(0);
-    const noiseSd = new Array<number>(n).fill(0);
-    for (let i = 0; i < n; i++) {
-      let varFarm = 0;
-      if (perHa && fx) {
-        if (pos !== undefined) {
-          mu[i] = fx.effects[i]![pos]!;
-          varFarm = fx.variance[i]![pos]!;
-        } else varFarm = fx.tau2[i]!;
-      }
-      const resVar = perHa && scale ? scale.variance[i]! * Math.exp(scale.exponent[i]! * Math.log(land / scale.referenceLand)) : fit.sigma[i]![i]!;
-      noiseSd[i] = Math.sqrt(Math.max(varFarm + resVar, 0));
-    }
-    return { spec, prices, z, land, known: pos !== undefined, mu, noiseSd, committed: c, quantity: qs, target: qs.map((q) => q / land) };
-  });
-}
-
-function historyOf(spec: ContractedFarmSpec, item: string): { min: number; max: number; seasons: number } | null {
-  const h = spec.history?.[item];
-  if (!h || !h.length) return null;
-  return { min: Math.min(...h), max: Math.max(...h), seasons: h.length };
-}
-
-// ---------------------------------------------------------------------------------------------
-// Words
-
-function fmt(v: number): string {
-  const a = Math.abs(v);
-  const digits = a >= 100 ? 0 : a >= 10 ? 1 : a >= 1 ? 2 : 3;
-  return v.toLocaleString('en-GB', { maximumFractionDigits: digits, minimumFractionDigits: 0 });
-}
-
-function fmtQty(q: number, unit: string | undefined): string {
-  return unit ? `${fmt(q)} ${unit}` : fmt(q);
-}
-
-function unitPer(unit: string | undefined, perHa: boolean): string {
-  if (!perHa) return unit ? `${unit} for the farm` : 'for the farm';
-  return unit ? `${unit}/ha` : 'per hectare';
-}
-
-function failureIssues(
-  failure: SolveFailure,
-  f: FarmSetup,
-  names: string[],
-  units: Record<string, string>,
-  perHa: boolean,
-  history: ({ min: number; max: number; seasons: number } | null)[],
-): ContractedIssue[] {
-  const others = f.committed.length > 1;
-  return failure.items.map((c) => {
-    const j = f.committed.indexOf(c);
-    const item = names[c]!;
-    const qty = `${fmtQty(f.quantity[j]!, units[item])} of ${item}${perHa ? ` (${fmt(f.target[j]!)} ${unitPer(units[item], true)})` : ''}`;
-    const h = history[j];
-    const given = others ? ', together with its other commitments' : '';
-    if (failure.reason === 'out-of-reach' && failure.direction === 'low') {
-      const hist = h && f.target[j]! < h.min ? ` It is also less ${item} ${perHa ? 'per hectare ' : ''}than the farm has grown in any of its ${h.seasons} recorded seasons (at least ${fmt(h.min)} ${unitPer(units[item], perHa)}).` : '';
-      return {
-        item,
-        kind: 'out-of-reach' as const,
-        blocking: true,
-        text: `${qty} is out of reach for farm ${f.spec.farm} at positive prices: the fitted technology would grow more ${item} than that even at a price near zero${given}, so no marginal cost can be given.${hist}`,
-      };
-    }
-    if (failure.reason === 'out-of-reach') {
-      const hist = h && f.target[j]! > h.max ? ` That is more ${item} ${perHa ? 'per hectare ' : ''}than this farm has ever grown (at most ${fmt(h.max)} ${unitPer(units[item], perHa)} in ${h.seasons} recorded season${h.seasons === 1 ? '' : 's'}).` : '';
-      return {
-        item,
-        kind: 'out-of-reach' as const,
-        blocking: true,
-        text: `${qty} is more than the fitted technology can supply on farm ${f.spec.farm} at any price${given}, so no marginal cost can be given.${hist}`,
-      };
-    }
-    if (failure.reason === 'singular')
-      return {
-        item,
-        kind: 'singular' as const,
-        blocking: true,
-        text: `The fitted supply of ${item} on farm ${f.spec.farm} does not respond to its own price${others ? ' independently of the other committed outputs' : ''} (the profit function is flat in that direction), so no price brings it to ${qty} and no marginal cost can be read from it.`,
-      };
-    return {
-      item,
-      kind: 'no-solution' as const,
-      blocking: true,
-      text: `The search for the price at which farm ${f.spec.farm} would supply ${qty} did not settle, so no marginal cost is given.`,
-    };
-  });
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -965,139 +474,3 @@ function coopTables(farms: { farmX: number[]; farm: FarmElasticityParts }[], nam
   };
 }
 
-// ---------------------------------------------------------------------------------------------
-// Summaries
-
-/**
- * Point and predictive summary over the draws marked ok: deviations of the quantiles from the median
- * stretched by the figure's Welch–Satterthwaite t (as the projection's), the SD by its factor, and
- * the band widened to hold the point.
- */
-function summarise(values: Float64Array, ok: Uint8Array, point: number, probs: number[], level: number, clip: boolean, stretch: Stretch): ContractedBand {
-  let N = 0;
-  for (let s = 0; s < values.length; s++) if (ok[s]) N++;
-  const c = (v: number) => (clip ? Math.max(0, v) : v);
-  if (!N) return { point: c(point), mean: c(point), sd: 0, median: c(point), p5: c(point), p95: c(point), lower: c(point), upper: c(point) };
-  const sorted = new Float64Array(N);
-  for (let s = 0, t = 0; s < values.length; s++) if (ok[s]) sorted[t++] = values[s]!;
-  sorted.sort();
-  let m = 0;
-  for (const v of sorted) m += v;
-  m /= N;
-  let v2 = 0;
-  for (const v of sorted) v2 += (v - m) ** 2;
-  const raw = (p: number) => {
-    const h = (N - 1) * p;
-    const lo = Math.floor(h);
-    const hi = Math.min(lo + 1, N - 1);
-    return sorted[lo]! + (h - lo) * (sorted[hi]! - sorted[lo]!);
-  };
-  const med = raw(0.5);
-  const q = new Map(probs.map((p) => [p, p === 0.5 ? med : med + (raw(p) - med) * stretch.ratio(p)]));
-  const lower = Math.min(q.get((1 - level) / 2)!, point);
-  const upper = Math.max(q.get((1 + level) / 2)!, point);
-  const sd = N > 1 ? Math.sqrt(v2 / (N - 1)) * stretch.sdFactor : 0;
-  return { point: c(point), mean: c(m), sd, median: c(med), p5: c(q.get(0.05)!), p95: c(q.get(0.95)!), lower: c(lower), upper: c(upper) };
-}
-
-/** x′Vx over the parameters or items (0 without V). */
-function quadForm(V: number[][] | null, x: ArrayLike<number>): number {
-  if (!V) return 0;
-  let acc = 0;
-  for (let a = 0; a < x.length; a++) {
-    const xa = x[a]!;
-    if (xa === 0) continue;
-    const row = V[a]!;
-    for (let b = 0; b < x.length; b++) acc += xa * row[b]! * x[b]!;
-  }
-  return acc;
-}
-
-interface StretchContext {
-  roles: readonly ('output' | 'input')[];
-  k: number;
-  n: number;
-  theta: number[];
-  Vf: number[][] | null;
-  Vs: number[][] | null;
-  Sl: number[][] | null;
-  solve: (theta: ArrayLike<number>, shift: ArrayLike<number>) => SolveSuccess | null;
-  coop: { Jt: Float64Array[]; Jl: Float64Array[]; noise: Float64Array; marginOf: (c: number) => boolean };
-}
-
-/**
- * Welch–Satterthwaite stretches of one farm's figures (docs/cost-duality.md §6). Each figure q is
- * linearised at the point by central differences in the parameters θ and in the shift of every
- * netput (the season shock λ and the farm's own level and residual u enter the same way); then
- *   V_known = J_θ′ V_f J_θ + Σ_i (J_i a_i)²,   V_season = J_θ′ V_s J_θ + J_λ′ Σ_λ J_λ,
- * and the stretch is that of a t with ν* = V² ν / V_season². Rows: the committed outputs' marginal
- * costs, the n netputs (levels), cost, input spending. Adds the farm's parts to the co-op's rows.
- */
-function farmStretches(f: FarmSetup, welch: WelchTable, cx: StretchContext): Stretch[] {
-  const { k, n } = cx;
-  const m = f.committed.length;
-  const R = m + n + 2;
-  const isC = new Set(f.committed);
-  const figures = (sol: SolveSuccess): number[] => {
-    let cost = 0;
-    let spend = 0;
-    for (let i = 0; i < n; i++) {
-      if (!isC.has(i)) cost -= sol.prices[i]! * sol.netputs[i]!;
-      if (cx.roles[i] === 'input') spend -= sol.prices[i]! * sol.netputs[i]!;
-    }
-    return [...f.committed.map((c) => sol.prices[c]!), ...sol.netputs.map((y) => f.land * y), f.land * cost, f.land * spend];
-  };
-  const Jt = Array.from({ length: R }, () => new Float64Array(k));
-  const Jl = Array.from({ length: R }, () => new Float64Array(n));
-  const th = cx.theta.slice();
-  for (let a = 0; a < k; a++) {
-    const sd = Math.sqrt(Math.max((cx.Vf?.[a]?.[a] ?? 0) + (cx.Vs?.[a]?.[a] ?? 0), 0));
-    if (!(sd > 0)) continue;
-    const h = 1e-3 * sd;
-    th[a] = cx.theta[a]! + h;
-    const up = cx.solve(th, f.mu);
-    th[a] = cx.theta[a]! - h;
-    const dn = cx.solve(th, f.mu);
-    th[a] = cx.theta[a]!;
-    if (!up || !dn) continue;
-    const fu = figures(up);
-    const fd = figures(dn);
-    for (let r = 0; r < R; r++) Jt[r]![a] = (fu[r]! - fd[r]!) / (2 * h);
-  }
-  const shift = f.mu.slice();
-  for (let i = 0; i < n; i++) {
-    const sd = Math.max(f.noiseSd[i]!, Math.sqrt(Math.max(cx.Sl?.[i]?.[i] ?? 0, 0)));
-    if (!(sd > 0)) continue;
-    const h = 1e-3 * sd;
-    shift[i] = f.mu[i]! + h;
-    const up = cx.solve(cx.theta, shift);
-    shift[i] = f.mu[i]! - h;
-    const dn = cx.solve(cx.theta, shift);
-    shift[i] = f.mu[i]!;
-    if (!up || !dn) continue;
-    const fu = figures(up);
-    const fd = figures(dn);
-    for (let r = 0; r < R; r++) Jl[r]![i] = (fu[r]! - fd[r]!) / (2 * h);
-  }
-  const noiseOf = (jl: Float64Array, w: number): number => {
-    let acc = 0;
-    for (let i = 0; i < n; i++) acc += (w * jl[i]! * f.noiseSd[i]!) ** 2;
-    return acc;
-  };
-  // the co-op's rows
-  const addTo = (row: number, r: number, w: number): void => {
-    const jt = cx.coop.Jt[row]!;
-    const jl = cx.coop.Jl[row]!;
-    for (let a = 0; a < k; a++) jt[a]! += w * Jt[r]![a]!;
-    for (let i = 0; i < n; i++) jl[i]! += w * Jl[r]![i]!;
-    cx.coop.noise[row]! += noiseOf(Jl[r]!, w);
-  };
-  f.committed.forEach((c, j) => {
-    addTo(c, j, f.quantity[j]!);
-    if (cx.coop.marginOf(c)) addTo(n + c, j, -f.quantity[j]!);
-  });
-  for (let i = 0; i < n; i++) addTo(2 * n + i, m + i, 1);
-  addTo(3 * n, m + n, 1);
-  addTo(3 * n + 1, m + n + 1, 1);
-  return Array.from({ length: R }, (_, r) => welch.at(quadForm(cx.Vf, Jt[r]!) + noiseOf(Jl[r]!, 1), quadForm(cx.Vs, Jt[r]!) + quadForm(cx.Sl, Jl[r]!)));
-}
