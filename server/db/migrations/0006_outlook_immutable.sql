@@ -1,6 +1,6 @@
 -- Published outlooks are unchangeable: rows of outlook_versions and outlook_version_farms are never
 -- updated, and deleted only by a full reset that sets `netput.purge_outlooks = 'on'` in its own
--- transaction (see purgeOutlookData in server/outlook/outlook-service.ts).
+-- transaction (see purgeOutlookData in server/outlook/outlook-repository.ts).
 CREATE FUNCTION netput_refuse_outlook_change() RETURNS trigger LANGUAGE plpgsql AS $$
 BEGIN
   IF TG_OP IN ('DELETE', 'TRUNCATE') AND coalesce(current_setting('netput.purge_outlooks', true), '') = 'on' THEN
