@@ -2,7 +2,6 @@ import { ACCESS } from '../../shared/roles.js';
 import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
-import { AppError } from '../core/app-error.js';
 import type { AppContext } from '../context.js';
 import {
   accountabilityQuerySchema,
