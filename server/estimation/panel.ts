@@ -53,9 +53,8 @@ export interface ForecastModelOptions {
    * Per-hectare only: weight the season means by the season-shock variance in the SUR step (the
    * random-effects transformation of Fuller & Battese 1974 for the season dimension: each
    * observation less θ_it × its season's weighted mean, θ_it = 1 − √(σ_i²/(σ_i² + W_t σ_λi²))).
-   * Default false (the plain SUR step, every farm-season weighted alike): with it on, the simulation
-   * study's farm projections beat the per-hectare rule for every item and design, but the demo
-   * co-op's back-test holds 86.5 % of the smallest third's outcomes (target 87–93 %).
+   * Default true (docs/forecasting.md §5–§6); false gives the plain SUR step, every farm-season
+   * weighted alike, kept for comparison.
    */
   seasonGls?: boolean;
 }
@@ -203,7 +202,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const useFarm = options.farmEffects ?? true;
   const useSeason = options.seasonEffects ?? true;
   const useScale = options.sizeScaledErrors ?? true;
-  const useGls = (options.seasonGls ?? false) && useSeason;
+  const useGls = (options.seasonGls ?? true) && useSeason;
   const warnings: string[] = [];
 
   // Farm and season indices.
@@ -868,9 +867,21 @@ function seasonShockCovariance(
   // items' shocks through the cross-equation restrictions is small and, estimated, unstable);
   // correlations across items from the λ̂ themselves.
   const own = lambda.map((_, i) => coef(i, i));
+  // The season means of the farm residuals (noise) enter λ̂ exactly as the shocks do — the fit absorbs
+  // them through the same M — so their expected share of Σ_t λ̂_it² is Σ_t Σ_(a,s) M_(i,t),(a,s)²·noise_as,
+  // not Σ_t noise_it·(1 − 1/S) (that would take the absorbed part of the noise off twice and bias
+  // σ̂_λ² down, to 0 for an item whose prices move only from season to season).
+  const noiseShare = lambda.map((_, i) => {
+    let acc = 0;
+    for (let t = 0; t < S; t++) {
+      const ri = M[i * S + t]!;
+      for (let a = 0; a < n; a++) for (let s = 0; s < S; s++) acc += ri[a * S + s]! ** 2 * noise[a]![s]!;
+    }
+    return acc;
+  });
   const sd = lambda.map((l, i) => {
-    let ss = 0;
-    for (let t = 0; t < S; t++) ss += l[t]! ** 2 - noise[i]![t]! * (1 - 1 / S);
+    let ss = -noiseShare[i]!;
+    for (let t = 0; t < S; t++) ss += l[t]! ** 2;
     return Math.sqrt(Math.max(ss / Math.max(own[i]!, 1e-9), 0));
   });
   const gram = lambda.map((a) => lambda.map((b) => dotF(a, b)));
