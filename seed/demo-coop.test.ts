@@ -89,15 +89,20 @@ describe('the demo co-op (invented data)', () => {
     // The pooled form in levels with a land term is misspecified for these farms but still lands near it.
     const e2 = elasticitiesAt(fitProfitFunction(ds, { numeraire: NUMERAIRE, trend: true }));
     expect(Math.abs(e2.elasticities[k][k] - design)).toBeLessThan(0.15);
-    // The forecasting model the outlook uses (per hectare, farm and season effects): −0.31 measured.
+    // The forecasting model the outlook uses (per hectare, farm and season effects, season GLS): −0.287 measured.
     const e3 = elasticitiesAt(fitForecastModel(ds, { spec: 'per-hectare', numeraire: NUMERAIRE, trend: true }).fit);
     expect(Math.abs(e3.elasticities[k][k] - design)).toBeLessThan(0.1);
   });
 
   it('back-tests as the outlook does (last 5 seasons): every item no worse than the per-hectare rule, bands near 90 % by farm size and for the co-op', () => {
     // docs/forecasting.md §7 and §10. 20 farms × 5 seasons = 100 outcomes per item, about 35 per
-    // third: one item's third has a binomial SE of ±5 %, so the 87–93 % target is checked over all
-    // items (about 230 outcomes per third).
+    // third: one item's third has a binomial SE of ±5 %, so coverage is checked over all items
+    // (245, 245 and 210 outcomes per third). Binomial SE of a share near 90 % on 245 outcomes:
+    // √(0.9·0.1/245) = 1.9 %, so a calibrated band lands within 86.2–93.8 % (±2 SE, about 95 %) —
+    // the 86–94 % checked here. The 87–93 % target of the ≥200-panel study (SE under 1 %) would fail
+    // exactly calibrated, independent outcomes on one panel about one time in three (binomial, the
+    // three thirds together: 35 %; 86–94 %: 11 %). Shared season shocks make the real spread wider
+    // still (§10: the demo regenerated with other seeds). Measured: 86.9 / 92.2 / 92.4 %.
     const bt = backTestForecast(demoDataset(), { spec: 'per-hectare', numeraire: NUMERAIRE, trend: true, maxOrigins: 5, level: 0.9 });
     expect(bt.origins.filter((o) => o.error === null)).toHaveLength(5);
     for (const it of bt.items) {
@@ -107,10 +112,10 @@ describe('the demo co-op (invented data)', () => {
     for (let t = 0; t < 3; t++) {
       const held = bt.items.reduce((a, it) => a + it.coverage.byThird[t]!.held, 0);
       const total = bt.items.reduce((a, it) => a + it.coverage.byThird[t]!.total, 0);
-      expect(held / total).toBeGreaterThanOrEqual(0.87);
-      expect(held / total).toBeLessThanOrEqual(0.93);
+      expect(held / total).toBeGreaterThanOrEqual(0.86);
+      expect(held / total).toBeLessThanOrEqual(0.94);
     }
     const coopHeld = bt.items.reduce((a, it) => a + it.coverage.coop.held, 0);
     expect(coopHeld).toBeGreaterThanOrEqual(28); // of 35 (80 %); measured 31
-  });
+  }, 120_000); // five fits and projections: a few seconds alone, longer on a busy machine
 });

@@ -36,9 +36,15 @@ describe('backTestForecast', () => {
     for (const it of result.items) expect(it.ratios.lastSeason.mdape!, it.item).toBeLessThan(1);
   });
 
-  it('its 90 % farm bands hold between 80 % and 97 % of outcomes (240 outcomes: ±2 binomial SE is ±4 %, plus model error)', () => {
+  // 240 outcomes per item, but only 4 seasons: the 60 farms of a season share its shock, so one
+  // item's share is far from binomial (±2 binomial SE would be ±4 %). Measured on 30 panels of this
+  // design (seeds 1–30, the default model; docs/forecasting.md §7): one item's share averaged
+  // 90.6 %, its 2.5th percentile over the 150 item-panels was 75.8 % (lowest 74.6 %), 5th 78.7 %.
+  // The lower check is that 2.5th percentile; this panel: 78.3–91.7 % (other lowest: its 2021
+  // season shock fell 2.4 SD below the mean of the seasons before it).
+  it('its 90 % farm bands hold between 75 % and 97 % of outcomes', () => {
     for (const it of result.items) {
-      expect(it.coverage.farms.share!, it.item).toBeGreaterThan(0.8);
+      expect(it.coverage.farms.share!, it.item).toBeGreaterThan(0.75);
       expect(it.coverage.farms.share!, it.item).toBeLessThan(0.97);
     }
   });
