@@ -9,11 +9,12 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import { DemandSummary } from './demand-summary';
 import { BudgetEditorStore } from './budget-editor-store';
 import { NUTRIENT_LABEL } from './budget-api-types';
+import { FieldError } from '../shared/field-error';
 
 /** Where the nutrient demand comes from: an outlook scenario, contracted output, a model run or typed amounts, with the outlook's pricing options. Reads and acts through the page's BudgetEditorStore. */
 @Component({
   selector: 'np-budget-source-section',
-  imports: [ReactiveFormsModule, DatePipe, DemandSummary, MatCheckbox, MatError, MatFormField, MatHint, MatInput, MatLabel, MatOption, MatRadioButton, MatRadioGroup, MatSelect, MatSuffix],
+  imports: [ReactiveFormsModule, DatePipe, DemandSummary, MatCheckbox, MatError, FieldError, MatFormField, MatHint, MatInput, MatLabel, MatOption, MatRadioButton, MatRadioGroup, MatSelect, MatSuffix],
   templateUrl: './budget-source-section.html',
   styleUrl: './budget-editor.scss',
   // The section's cards sit in the page's column as if written there.

@@ -1,10 +1,8 @@
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
-import { type AbstractControl, NonNullableFormBuilder, ReactiveFormsModule, type ValidationErrors, Validators } from '@angular/forms';
+import { type AbstractControl, NonNullableFormBuilder, type ValidationErrors, Validators } from '@angular/forms';
 import { MatButton } from '@angular/material/button';
 import { MatCheckbox } from '@angular/material/checkbox';
-import { MAT_DIALOG_DATA, MatDialog, MatDialogActions, MatDialogClose, MatDialogContent, MatDialogRef, MatDialogTitle } from '@angular/material/dialog';
-import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
-import { MatInput } from '@angular/material/input';
+import { MAT_DIALOG_DATA, MatDialog, MatDialogActions, MatDialogClose, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { firstValueFrom } from 'rxjs';
 import type { UnitSystem } from '../../../shared/units';
@@ -14,6 +12,7 @@ import { applyServerDetails } from '../shared/zod-validator';
 import { BudgetApi } from './budget-api';
 import type { FertiliserProduct, FertiliserProductInput, ProductForm } from './budget-api-types';
 import { pricePerTFromShown, pricePerTToShown, productFromShown, productToShown, unitLabels } from './budget-units';
+import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
 
 export interface ProductDialogData {
   /** The product to change; absent when adding one. */
@@ -34,23 +33,7 @@ function gradeValidator(group: AbstractControl): ValidationErrors | null {
 /** Adds a fertiliser product or changes one (prices and lots typed in the units shown). Closes with the saved product, or 'deleted'. */
 @Component({
   selector: 'np-product-dialog',
-  imports: [
-    ReactiveFormsModule,
-    MatDialogTitle,
-    MatDialogContent,
-    MatDialogActions,
-    MatDialogClose,
-    MatFormField,
-    MatLabel,
-    MatHint,
-    MatError,
-    MatSuffix,
-    MatInput,
-    MatSelect,
-    MatOption,
-    MatCheckbox,
-    MatButton,
-  ],
+  imports: [FORM_DIALOG_IMPORTS, MatDialogActions, MatDialogClose, MatSelect, MatOption, MatCheckbox, MatButton],
   templateUrl: './product-dialog.html',
   styleUrl: './product-dialog.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -1,20 +1,11 @@
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
-import { MatButton } from '@angular/material/button';
-import {
-  MAT_DIALOG_DATA,
-  MatDialogActions,
-  MatDialogClose,
-  MatDialogContent,
-  MatDialogRef,
-  MatDialogTitle,
-} from '@angular/material/dialog';
-import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
-import { MatInput } from '@angular/material/input';
+import { NonNullableFormBuilder, Validators } from '@angular/forms';
+import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { farmMemberNames, type FarmSummary } from '../../../shared/api-types';
 import { farmSchema } from '../../../shared/data-schemas';
 import { DataDeskApi, type FarmRow } from '../data-desk/data-desk-api';
 import { saveAndClose } from '../shared/dialog-save';
+import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
 import { zodValidator } from '../shared/zod-validator';
 
 export interface FarmDialogData {
@@ -26,20 +17,7 @@ export interface FarmDialogData {
 /** Adds or edits a farm: code, name, region and the land it farms now. Members are linked under Users. */
 @Component({
   selector: 'np-farm-dialog',
-  imports: [
-    ReactiveFormsModule,
-    MatDialogTitle,
-    MatDialogContent,
-    MatDialogActions,
-    MatDialogClose,
-    MatButton,
-    MatFormField,
-    MatLabel,
-    MatHint,
-    MatError,
-    MatSuffix,
-    MatInput,
-  ],
+  imports: [FORM_DIALOG_IMPORTS],
   template: `
     <h2 mat-dialog-title>{{ farm ? 'Edit ' + farm.name : 'Add a farm' }}</h2>
     <mat-dialog-content>
@@ -48,22 +26,12 @@ export interface FarmDialogData {
           <mat-label>Farm code</mat-label>
           <input matInput formControlName="code" required autocomplete="off" cdkFocusInitial />
           <mat-hint>The co-op's own code, e.g. F21</mat-hint>
-          @if (form.controls.code.hasError('required')) {
-            <mat-error>Enter a code</mat-error>
-          } @else if (form.controls.code.hasError('schema')) {
-            <mat-error>{{ form.controls.code.getError('schema') }}</mat-error>
-          } @else if (form.controls.code.hasError('server')) {
-            <mat-error>{{ form.controls.code.getError('server') }}</mat-error>
-          }
+          <mat-error><np-field-error [control]="form.controls.code" required="Enter a code" /></mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Name</mat-label>
           <input matInput formControlName="name" required autocomplete="off" />
-          @if (form.controls.name.hasError('required')) {
-            <mat-error>Enter the farm's name</mat-error>
-          } @else if (form.controls.name.hasError('schema')) {
-            <mat-error>{{ form.controls.name.getError('schema') }}</mat-error>
-          }
+          <mat-error><np-field-error [control]="form.controls.name" required="Enter the farm's name" /></mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Region</mat-label>
@@ -73,22 +41,14 @@ export interface FarmDialogData {
               <option [value]="r"></option>
             }
           </datalist>
-          @if (form.controls.region.hasError('required')) {
-            <mat-error>Enter the region</mat-error>
-          } @else if (form.controls.region.hasError('schema')) {
-            <mat-error>{{ form.controls.region.getError('schema') }}</mat-error>
-          }
+          <mat-error><np-field-error [control]="form.controls.region" required="Enter the region" /></mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Land farmed now</mat-label>
           <input matInput type="number" min="0" step="any" formControlName="landHa" required />
           <span matTextSuffix>ha</span>
           <mat-hint>Land per season is kept with the farm's records</mat-hint>
-          @if (form.controls.landHa.hasError('required')) {
-            <mat-error>Enter the land in hectares</mat-error>
-          } @else if (form.controls.landHa.hasError('schema')) {
-            <mat-error>{{ form.controls.landHa.getError('schema') }}</mat-error>
-          }
+          <mat-error><np-field-error [control]="form.controls.landHa" required="Enter the land in hectares" /></mat-error>
         </mat-form-field>
         <p class="info np-muted">
           Members: {{ memberNames() }}. An administrator links members' accounts to the farm under Users.
@@ -98,10 +58,7 @@ export interface FarmDialogData {
         }
       </form>
     </mat-dialog-content>
-    <mat-dialog-actions align="end">
-      <button matButton type="button" mat-dialog-close>Cancel</button>
-      <button matButton="filled" type="submit" form="farm-form" [disabled]="saving()">{{ farm ? 'Save changes' : 'Add farm' }}</button>
-    </mat-dialog-actions>
+    <np-dialog-actions form="farm-form" [disabled]="saving()">{{ farm ? 'Save changes' : 'Add farm' }}</np-dialog-actions>
   `,
   styleUrl: '../data-desk/reference/ref-dialog.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

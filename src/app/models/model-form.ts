@@ -14,6 +14,7 @@ import { applyServerDetails } from '../shared/zod-validator';
 import { CURVATURE_LABELS } from './model-types';
 import type { ModelSummary } from './model-types';
 import { ModelsApi } from './models-api';
+import { FieldError } from '../shared/field-error';
 
 export interface ModelSaved {
   model: ModelSummary;
@@ -32,6 +33,7 @@ export interface ModelSaved {
     MatLabel,
     MatHint,
     MatError,
+    FieldError,
     MatInput,
     MatSelect,
     MatOption,

@@ -17,6 +17,7 @@ import { applyServerDetails, zodValidator } from '../shared/zod-validator';
 import { OutlookApi } from './outlook-api';
 import { formatPrice } from './outlook-format';
 import type { FuturesQuote } from './outlook-api-types';
+import { FieldError } from '../shared/field-error';
 
 /**
  * The futures history behind the "futures quote plus local basis" method: one row per quote (item,
@@ -25,7 +26,7 @@ import type { FuturesQuote } from './outlook-api-types';
  */
 @Component({
   selector: 'np-futures-quotes',
-  imports: [ReactiveFormsModule, MatButton, MatIconButton, MatIcon, MatFormField, MatLabel, MatHint, MatError, MatInput, MatSelect, MatOption],
+  imports: [ReactiveFormsModule, MatButton, MatIconButton, MatIcon, MatFormField, MatLabel, MatHint, MatError, FieldError, MatInput, MatSelect, MatOption],
   templateUrl: './futures-quotes.html',
   styleUrl: './futures-quotes.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -1,15 +1,13 @@
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
-import { MatButton } from '@angular/material/button';
-import { MAT_DIALOG_DATA, MatDialogActions, MatDialogClose, MatDialogContent, MatDialogRef, MatDialogTitle } from '@angular/material/dialog';
-import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
-import { MatInput } from '@angular/material/input';
+import { NonNullableFormBuilder, Validators } from '@angular/forms';
+import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { seasonLabelSchema } from '../../../shared/outlook-schemas';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { applyServerDetails, zodValidator } from '../shared/zod-validator';
 import { OutlookApi } from './outlook-api';
 import type { OutlookDraft } from './outlook-api-types';
+import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
 
 export interface RunChoice {
   id: number;
@@ -29,7 +27,7 @@ export interface NewOutlookDialogData {
 /** Opens the draft outlook of a season with a finished model run. */
 @Component({
   selector: 'np-new-outlook-dialog',
-  imports: [ReactiveFormsModule, MatDialogTitle, MatDialogContent, MatDialogActions, MatDialogClose, MatButton, MatFormField, MatLabel, MatHint, MatError, MatInput, MatSelect, MatOption],
+  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
   template: `
     <h2 mat-dialog-title>Open a season outlook</h2>
     <mat-dialog-content>
@@ -38,11 +36,7 @@ export interface NewOutlookDialogData {
           <mat-label>Season</mat-label>
           <input matInput formControlName="season" required autocomplete="off" cdkFocusInitial />
           <mat-hint>e.g. 2026/27; a season not recorded yet is added</mat-hint>
-          @if (form.controls.season.hasError('schema')) {
-            <mat-error>{{ form.controls.season.getError('schema') }}</mat-error>
-          } @else if (form.controls.season.hasError('server')) {
-            <mat-error>{{ form.controls.season.getError('server') }}</mat-error>
-          }
+          <mat-error><np-field-error [control]="form.controls.season" /></mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Title</mat-label>
@@ -57,9 +51,7 @@ export interface NewOutlookDialogData {
             }
           </mat-select>
           <mat-hint>{{ data.runs.length ? 'Each item of the model starts at last season’s price' : 'No model run has finished yet: fit one under Models first' }}</mat-hint>
-          @if (form.controls.modelRunId.hasError('required')) {
-            <mat-error>Choose a finished model run</mat-error>
-          }
+          <mat-error><np-field-error [control]="form.controls.modelRunId" required="Choose a finished model run" /></mat-error>
         </mat-form-field>
         @if (data.favoured; as f) {
           <p class="favoured">{{ f.reason }}</p>
@@ -69,10 +61,7 @@ export interface NewOutlookDialogData {
         }
       </form>
     </mat-dialog-content>
-    <mat-dialog-actions align="end">
-      <button matButton type="button" mat-dialog-close>Cancel</button>
-      <button matButton="filled" type="submit" form="new-outlook" [disabled]="saving()">Open the draft</button>
-    </mat-dialog-actions>
+    <np-dialog-actions form="new-outlook" [disabled]="saving()">Open the draft</np-dialog-actions>
   `,
   styles: `
     .form {

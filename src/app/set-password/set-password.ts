@@ -19,6 +19,7 @@ import { PASSWORD_MIN_LENGTH } from '../../../shared/schemas';
 import { ApiRequestError, errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { PublicFrame } from '../shared/public-frame';
+import { FieldError } from '../shared/field-error';
 
 function passwordsMatch(group: AbstractControl): ValidationErrors | null {
   const password = group.get('password')?.value as string;
@@ -39,6 +40,7 @@ type LinkState = 'loading' | 'ready' | 'unknown' | 'gone' | 'failed';
     MatFormField,
     MatLabel,
     MatError,
+    FieldError,
     MatHint,
     MatSuffix,
     MatInput,

@@ -9,10 +9,11 @@ import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { PublicFrame } from '../shared/public-frame';
 import { zodValidator } from '../shared/zod-validator';
+import { FieldError } from '../shared/field-error';
 
 @Component({
   selector: 'np-forgot-password',
-  imports: [ReactiveFormsModule, RouterLink, PublicFrame, MatFormField, MatLabel, MatError, MatInput, MatButton],
+  imports: [ReactiveFormsModule, RouterLink, PublicFrame, MatFormField, MatLabel, MatError, FieldError, MatInput, MatButton],
   template: `
     <np-public-frame heading="Forgot your password?">
       @if (sentTo(); as email) {
@@ -26,11 +27,7 @@ import { zodValidator } from '../shared/zod-validator';
           <mat-form-field>
             <mat-label>E-mail</mat-label>
             <input matInput formControlName="email" type="email" autocomplete="username" required />
-            @if (form.controls.email.hasError('required')) {
-              <mat-error>Enter your e-mail address</mat-error>
-            } @else if (form.controls.email.hasError('schema')) {
-              <mat-error>{{ form.controls.email.getError('schema') }}</mat-error>
-            }
+            <mat-error><np-field-error [control]="form.controls.email" required="Enter your e-mail address" /></mat-error>
           </mat-form-field>
           @if (failure(); as message) {
             <p class="problem" role="alert">{{ message }}</p>

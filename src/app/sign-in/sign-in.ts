@@ -12,6 +12,7 @@ import { safeReturnUrl } from '../core/auth-guards';
 import { AuthStore } from '../core/auth-store';
 import { PublicFrame } from '../shared/public-frame';
 import { zodValidator } from '../shared/zod-validator';
+import { FieldError } from '../shared/field-error';
 
 @Component({
   selector: 'np-sign-in',
@@ -22,6 +23,7 @@ import { zodValidator } from '../shared/zod-validator';
     MatFormField,
     MatLabel,
     MatError,
+    FieldError,
     MatSuffix,
     MatInput,
     MatIcon,

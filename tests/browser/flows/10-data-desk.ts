@@ -310,6 +310,7 @@ async function planner(base: string, page: Page, messyFile: string, fixedFile: s
     await dialog.getByLabel('Label').fill('');
     await dialog.getByRole('button', { name: 'Add season' }).click();
     await dialog.getByText('Enter a label such as 2024/25').waitFor();
+    await shotBoth('data-desk-season-dialog-error');
     await dialog.getByRole('button', { name: 'Cancel' }).click();
   });
   await shot(page, 'data-desk-reference-1280');

@@ -14,6 +14,7 @@ import { calendarWords, DEFAULT_SEASON_CALENDAR, MONTH_NAMES, seasonCalendarSche
 import { ApiRequestError, errorMessage } from '../../core/api-error';
 import { SettingsStore } from '../../core/settings-store';
 import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
+import { FieldError } from '../../shared/field-error';
 
 /** `/admin/settings`: the co-op's name, currency, units and capacities. */
 @Component({
@@ -24,6 +25,7 @@ import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
     MatLabel,
     MatHint,
     MatError,
+    FieldError,
     MatSuffix,
     MatInput,
     MatSelect,

@@ -1,17 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
-import { MatButton } from '@angular/material/button';
-import {
-  MAT_DIALOG_DATA,
-  MatDialogActions,
-  MatDialogClose,
-  MatDialogContent,
-  MatDialogRef,
-  MatDialogTitle,
-} from '@angular/material/dialog';
-import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
-import { MatInput } from '@angular/material/input';
+import { NonNullableFormBuilder, Validators } from '@angular/forms';
+import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { FarmSummary, UserSummary } from '../../../../shared/api-types';
 import { ROLES, ROLE_LABELS, type Role } from '../../../../shared/roles';
@@ -19,6 +9,7 @@ import { emailSchema } from '../../../../shared/schemas';
 import { ApiRequestError, errorMessage } from '../../core/api-error';
 import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
 import { UsersApi } from './users-api';
+import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 
 export interface UserDialogData {
   /** The account to edit; absent when inviting someone new. */
@@ -36,21 +27,7 @@ const ROLE_HINTS: Record<Role, string> = {
 /** Invites a person, or edits an account's name, role and farm. Closes with the saved account. */
 @Component({
   selector: 'np-user-dialog',
-  imports: [
-    ReactiveFormsModule,
-    MatDialogTitle,
-    MatDialogContent,
-    MatDialogActions,
-    MatDialogClose,
-    MatFormField,
-    MatLabel,
-    MatHint,
-    MatError,
-    MatInput,
-    MatSelect,
-    MatOption,
-    MatButton,
-  ],
+  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
   templateUrl: './user-dialog.html',
   styles: `
     form {

@@ -1,41 +1,18 @@
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
-import { MatButton } from '@angular/material/button';
-import {
-  MAT_DIALOG_DATA,
-  MatDialogActions,
-  MatDialogClose,
-  MatDialogContent,
-  MatDialogRef,
-  MatDialogTitle,
-} from '@angular/material/dialog';
-import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
-import { MatInput } from '@angular/material/input';
+import { NonNullableFormBuilder, Validators } from '@angular/forms';
+import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { DeliveryPoint } from '../../../../shared/api-types';
 import { deliveryPointSchema } from '../../../../shared/data-schemas';
 import { saveAndClose } from '../../shared/dialog-save';
+import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi } from '../data-desk-api';
 
 /** Adds or edits a delivery point (an elevator, a store, a depot) or a price region. */
 @Component({
   selector: 'np-delivery-point-dialog',
-  imports: [
-    ReactiveFormsModule,
-    MatDialogTitle,
-    MatDialogContent,
-    MatDialogActions,
-    MatDialogClose,
-    MatButton,
-    MatFormField,
-    MatLabel,
-    MatHint,
-    MatError,
-    MatInput,
-    MatSelect,
-    MatOption,
-  ],
+  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
   template: `
     <h2 mat-dialog-title>{{ point ? 'Edit ' + point.name : 'Add a delivery point or region' }}</h2>
     <mat-dialog-content>
@@ -44,13 +21,7 @@ import { DataDeskApi } from '../data-desk-api';
           <mat-label>Name</mat-label>
           <input matInput formControlName="name" required autocomplete="off" cdkFocusInitial />
           <mat-hint>As files and price sheets name it, e.g. Ashby elevator</mat-hint>
-          @if (form.controls.name.hasError('required')) {
-            <mat-error>Enter a name</mat-error>
-          } @else if (form.controls.name.hasError('schema')) {
-            <mat-error>{{ form.controls.name.getError('schema') }}</mat-error>
-          } @else if (form.controls.name.hasError('server')) {
-            <mat-error>{{ form.controls.name.getError('server') }}</mat-error>
-          }
+          <mat-error><np-field-error [control]="form.controls.name" required="Enter a name" /></mat-error>
         </mat-form-field>
         <mat-form-field>
           <mat-label>Kind</mat-label>
@@ -62,21 +33,14 @@ import { DataDeskApi } from '../data-desk-api';
         <mat-form-field>
           <mat-label>Region</mat-label>
           <input matInput formControlName="region" required autocomplete="off" />
-          @if (form.controls.region.hasError('required')) {
-            <mat-error>Enter the region</mat-error>
-          } @else if (form.controls.region.hasError('schema')) {
-            <mat-error>{{ form.controls.region.getError('schema') }}</mat-error>
-          }
+          <mat-error><np-field-error [control]="form.controls.region" required="Enter the region" /></mat-error>
         </mat-form-field>
         @if (failure(); as message) {
           <p class="problem" role="alert">{{ message }}</p>
         }
       </form>
     </mat-dialog-content>
-    <mat-dialog-actions align="end">
-      <button matButton type="button" mat-dialog-close>Cancel</button>
-      <button matButton="filled" type="submit" form="point-form" [disabled]="saving()">{{ point ? 'Save changes' : 'Add' }}</button>
-    </mat-dialog-actions>
+    <np-dialog-actions form="point-form" [disabled]="saving()">{{ point ? 'Save changes' : 'Add' }}</np-dialog-actions>
   `,
   styleUrl: './ref-dialog.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

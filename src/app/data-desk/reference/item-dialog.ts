@@ -1,21 +1,12 @@
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators, type AbstractControl, type ValidationErrors } from '@angular/forms';
-import { MatButton } from '@angular/material/button';
-import {
-  MAT_DIALOG_DATA,
-  MatDialogActions,
-  MatDialogClose,
-  MatDialogContent,
-  MatDialogRef,
-  MatDialogTitle,
-} from '@angular/material/dialog';
-import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/material/form-field';
-import { MatInput } from '@angular/material/input';
+import { NonNullableFormBuilder, Validators, type AbstractControl, type ValidationErrors } from '@angular/forms';
+import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { Item } from '../../../../shared/api-types';
 import { itemSchema } from '../../../../shared/data-schemas';
 import { saveAndClose } from '../../shared/dialog-save';
+import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi, type ItemBody } from '../data-desk-api';
 
@@ -40,22 +31,7 @@ const shape = itemSchema.shape;
 /** Adds or edits an item of the catalogue: an output or input with its unit, and a fertiliser's analysis. */
 @Component({
   selector: 'np-item-dialog',
-  imports: [
-    ReactiveFormsModule,
-    MatDialogTitle,
-    MatDialogContent,
-    MatDialogActions,
-    MatDialogClose,
-    MatButton,
-    MatFormField,
-    MatLabel,
-    MatHint,
-    MatError,
-    MatSuffix,
-    MatInput,
-    MatSelect,
-    MatOption,
-  ],
+  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
   templateUrl: './item-dialog.html',
   styleUrl: './ref-dialog.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -1,20 +1,11 @@
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
-import { MatButton } from '@angular/material/button';
-import {
-  MAT_DIALOG_DATA,
-  MatDialogActions,
-  MatDialogClose,
-  MatDialogContent,
-  MatDialogRef,
-  MatDialogTitle,
-} from '@angular/material/dialog';
-import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
-import { MatInput } from '@angular/material/input';
+import { NonNullableFormBuilder, Validators } from '@angular/forms';
+import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import type { PriceIndex } from '../../../../shared/api-types';
 import { priceIndexSchema } from '../../../../shared/data-schemas';
 import { saveAndClose } from '../../shared/dialog-save';
+import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi } from '../data-desk-api';
 import { parseTable, readIndexValues } from '../paste';
@@ -29,20 +20,7 @@ export interface PriceIndexDialogData {
 /** Adds a price index (to deflate prices with), or corrects a stored one: its name, base, source and a value per season, typed, pasted or read from a CSV file. */
 @Component({
   selector: 'np-price-index-dialog',
-  imports: [
-    ReactiveFormsModule,
-    MatDialogTitle,
-    MatDialogContent,
-    MatDialogActions,
-    MatDialogClose,
-    MatButton,
-    MatFormField,
-    MatLabel,
-    MatHint,
-    MatError,
-    MatInput,
-    ProblemList,
-  ],
+  imports: [FORM_DIALOG_IMPORTS, ProblemList],
   templateUrl: './price-index-dialog.html',
   styleUrl: './ref-dialog.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -1,21 +1,12 @@
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
-import { NonNullableFormBuilder, ReactiveFormsModule, Validators } from '@angular/forms';
-import { MatButton } from '@angular/material/button';
-import {
-  MAT_DIALOG_DATA,
-  MatDialogActions,
-  MatDialogClose,
-  MatDialogContent,
-  MatDialogRef,
-  MatDialogTitle,
-} from '@angular/material/dialog';
-import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
-import { MatInput } from '@angular/material/input';
+import { NonNullableFormBuilder, Validators } from '@angular/forms';
+import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { Season } from '../../../../shared/api-types';
 import { seasonSchema } from '../../../../shared/data-schemas';
 import { saveAndClose } from '../../shared/dialog-save';
+import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 import { DataDeskApi } from '../data-desk-api';
 import { MONTHS, seasonSpan, suggestedSeasonLabel } from '../season-dates';
 
@@ -28,21 +19,7 @@ export interface SeasonDialogData {
 /** Adds or edits a season: a crop or marketing year, its first month and its label. */
 @Component({
   selector: 'np-season-dialog',
-  imports: [
-    ReactiveFormsModule,
-    MatDialogTitle,
-    MatDialogContent,
-    MatDialogActions,
-    MatDialogClose,
-    MatButton,
-    MatFormField,
-    MatLabel,
-    MatHint,
-    MatError,
-    MatInput,
-    MatSelect,
-    MatOption,
-  ],
+  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
   templateUrl: './season-dialog.html',
   styleUrl: './ref-dialog.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
