@@ -8,11 +8,12 @@ import { MatInput } from '@angular/material/input';
 import { CashSection } from './cash-section';
 import { ScenarioPicker } from './scenario-picker';
 import { BudgetEditorStore } from './budget-editor-store';
+import { FieldError } from '../shared/field-error';
 
 /** The booking plan (months, shares, prepayment, delivery, terms) and the cash it gives. Reads and acts through the page's BudgetEditorStore. */
 @Component({
   selector: 'np-budget-booking-section',
-  imports: [ReactiveFormsModule, CashSection, MatButton, MatCheckbox, MatError, MatFormField, MatHint, MatIcon, MatIconButton, MatInput, MatLabel, MatSuffix, ScenarioPicker],
+  imports: [ReactiveFormsModule, CashSection, MatButton, MatCheckbox, MatError, FieldError, MatFormField, MatHint, MatIcon, MatIconButton, MatInput, MatLabel, MatSuffix, ScenarioPicker],
   templateUrl: './budget-booking-section.html',
   styleUrl: './budget-editor.scss',
   // The section's cards sit in the page's column as if written there.

@@ -6,11 +6,12 @@ import { MatIcon } from '@angular/material/icon';
 import { MatInput } from '@angular/material/input';
 import { ScenarioComparison } from './scenario-comparison';
 import { BudgetEditorStore } from './budget-editor-store';
+import { FieldError } from '../shared/field-error';
 
 /** The price scenarios, typed and side by side with the base. Reads and acts through the page's BudgetEditorStore. */
 @Component({
   selector: 'np-budget-scenarios-section',
-  imports: [ReactiveFormsModule, MatButton, MatError, MatFormField, MatIcon, MatIconButton, MatInput, MatLabel, MatSuffix, ScenarioComparison],
+  imports: [ReactiveFormsModule, MatButton, MatError, FieldError, MatFormField, MatIcon, MatIconButton, MatInput, MatLabel, MatSuffix, ScenarioComparison],
   templateUrl: './budget-scenarios-section.html',
   styleUrl: './budget-editor.scss',
   // The section's cards sit in the page's column as if written there.

@@ -8,6 +8,7 @@ import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { bandSchema, methodSchema } from '../../../shared/outlook-schemas';
 import type { BandRule, ExpectationKind, ExpectationMethod, ExpectationSetting } from './outlook-api-types';
+import { FieldError } from '../shared/field-error';
 
 /** The methods in the order the planner meets them, with a line on what each does. */
 export const METHOD_CHOICES: { kind: ExpectationKind; label: string; hint: string }[] = [
@@ -161,7 +162,7 @@ export function settingFromForm(item: string, v: ExpectationFormValue): SettingR
  */
 @Component({
   selector: 'np-expectation-form',
-  imports: [ReactiveFormsModule, MatButton, MatCheckbox, MatError, MatFormField, MatHint, MatLabel, MatSuffix, MatInput, MatSelect, MatOption],
+  imports: [ReactiveFormsModule, MatButton, MatCheckbox, MatError, FieldError, MatFormField, MatHint, MatLabel, MatSuffix, MatInput, MatSelect, MatOption],
   templateUrl: './expectation-form.html',
   styleUrl: './expectation-form.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -239,11 +240,6 @@ export class ExpectationForm {
     }
     this.errors.set({});
     this.saved.emit(result.setting);
-  }
-
-  protected errorOf(field: keyof ExpectationFormValue): string | null {
-    const control = this.form.get(field);
-    return (control?.errors?.['schema'] as string | undefined) ?? null;
   }
 
   #load(v: ExpectationFormValue): void {
