@@ -9,8 +9,8 @@ import { checkConvexity, imposeConvexity, leadingBlock } from './curvature.js';
 import type { NetputDataset } from './dataset.js';
 import { EstimationInputError } from './errors.js';
 import { formOf, resolveFormName } from './forms.js';
-import { covarianceToCorrelation, jacobiEigenvalues, logDetSymmetricPD, type Mat } from './linalg.js';
-import type { FormName, ModelData, ModelLayout } from './model.js';
+import { covarianceToCorrelation, dot, jacobiEigenvalues, logDetSymmetricPD, mean, type Mat } from './linalg.js';
+import type { CurvatureBlock, FormName, ModelData, ModelLayout } from './model.js';
 import { fitSurTwoStarts, type SurEquationInput } from './sur.js';
 
 export type { CoefficientEstimate, CurvatureReport, EquationFit, FitResult, MonotonicityReport } from '../../shared/estimation-types.js';
@@ -180,10 +180,10 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
     });
     return e;
   });
-  const sigma = residuals.map((ei) => residuals.map((ej) => dotArr(ei, ej) / T));
+  const sigma = residuals.map((ei) => residuals.map((ej) => dot(ei, ej) / T));
   const standardErrors = covariance.map((row, i) => Math.sqrt(Math.max(row[i]!, 0)));
   const eqFits: EquationFit[] = equations.map((eq, i) => {
-    const ssr = dotArr(residuals[i]!, residuals[i]!);
+    const ssr = dot(residuals[i]!, residuals[i]!);
     const ym = mean(eq.y);
     let sst = 0;
     for (let t = 0; t < T; t++) sst += (eq.y[t]! - ym) ** 2;
@@ -207,33 +207,19 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
   }
   const logLikelihood = (-T / 2) * (n * Math.log(2 * Math.PI) + logDet + n);
 
-  // Per-observation curvature and monotonicity of the reported fit. Fitted netputs are the data
-  // less the residuals (the estimating equations are the netput equations).
-  let violating = 0;
-  const wrongSign = new Array<number>(n).fill(0);
-  let anyWrong = 0;
-  const globalConvex = checkConvexity(block.toMatrix(theta)).convex;
-  if (block.global) violating = globalConvex ? 0 : T;
-  const p = new Array<number>(n);
-  for (let t = 0; t < T; t++) {
-    if (!block.global) {
-      for (let i = 0; i < n; i++) p[i] = data.prices[i]![t]!;
-      const eig = jacobiEigenvalues(leadingBlock(form.priceHessian(layout, theta, p)));
-      const maxAbs = eig.reduce((acc, v) => Math.max(acc, Math.abs(v)), 0);
-      if (eig[0]! < -1e-9 * maxAbs) violating++;
-    }
-    let wrong = false;
-    for (let i = 0; i < n; i++) {
-      const y = data.netputs[i]![t]! - residuals[i]![t]!;
-      const bad = layout.items[i]!.role === 'output' ? !(y > 0) : !(y < 0);
-      if (bad) {
-        wrongSign[i]!++;
-        wrong = true;
-      }
-    }
-    if (wrong) anyWrong++;
-  }
-  const finalCheck = checkConvexity(block.toMatrix(theta));
+  // Fitted netputs are the data less the residuals (the estimating equations are the netput equations).
+  const checks = fitChecks({
+    layout,
+    form,
+    block,
+    theta,
+    prices: data.prices,
+    observations: T,
+    fitted: (i, t) => data.netputs[i]![t]! - residuals[i]![t]!,
+    unrestricted,
+    imposed: impose,
+    extra: curvatureExtra,
+  });
   return {
     layout,
     observations: T,
@@ -252,20 +238,72 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
     seasonYears: { first: Math.min(...ds.seasonYears), last: Math.max(...ds.seasonYears) },
     means,
     referencePrices: means.prices,
+    ...checks,
+    warnings,
+  };
+}
+
+/**
+ * The checks a fit reports at its θ (the pooled fit and the per-hectare model alike): convexity in
+ * prices at the reference point and at every observation's prices (everywhere or nowhere for a form
+ * whose curvature does not depend on prices), and per item the observations whose fitted netput has
+ * the wrong sign (an output not above 0, an input not below 0).
+ */
+export function fitChecks(a: {
+  layout: ModelLayout;
+  form: ReturnType<typeof formOf>;
+  block: CurvatureBlock;
+  theta: number[];
+  prices: ArrayLike<number>[];
+  observations: number;
+  fitted: (item: number, observation: number) => number;
+  unrestricted: { eigenvalues: number[]; convex: boolean };
+  imposed: boolean;
+  extra: Pick<CurvatureReport, 'binding' | 'iterations' | 'converged' | 'optimality'>;
+}): Pick<FitResult, 'curvature' | 'monotonicity' | 'monotonicityViolationShare'> {
+  const { layout, block, theta } = a;
+  const T = a.observations;
+  const n = layout.items.length;
+  const finalCheck = checkConvexity(block.toMatrix(theta));
+  let violating = 0;
+  if (block.global) violating = finalCheck.convex ? 0 : T;
+  else {
+    const p = new Array<number>(n);
+    for (let t = 0; t < T; t++) {
+      for (let i = 0; i < n; i++) p[i] = a.prices[i]![t]!;
+      const eig = jacobiEigenvalues(leadingBlock(a.form.priceHessian(layout, theta, p)));
+      const maxAbs = eig.reduce((acc, v) => Math.max(acc, Math.abs(v)), 0);
+      if (eig[0]! < -1e-9 * maxAbs) violating++;
+    }
+  }
+  const wrongSign = new Array<number>(n).fill(0);
+  let anyWrong = 0;
+  for (let t = 0; t < T; t++) {
+    let wrong = false;
+    for (let i = 0; i < n; i++) {
+      const y = a.fitted(i, t);
+      const bad = layout.items[i]!.role === 'output' ? !(y > 0) : !(y < 0);
+      if (bad) {
+        wrongSign[i]!++;
+        wrong = true;
+      }
+    }
+    if (wrong) anyWrong++;
+  }
+  return {
     curvature: {
       global: block.global,
-      unrestrictedEigenvalues: unrestricted.eigenvalues,
-      unrestrictedConvex: unrestricted.convex,
-      imposed: impose,
+      unrestrictedEigenvalues: a.unrestricted.eigenvalues,
+      unrestrictedConvex: a.unrestricted.convex,
+      imposed: a.imposed,
       eigenvalues: finalCheck.eigenvalues,
       convexAtMeans: finalCheck.convex,
       violatingObservations: violating,
       violationShare: violating / T,
-      ...curvatureExtra,
+      ...a.extra,
     },
     monotonicity: layout.items.map((it, i) => ({ item: it.name, role: it.role, violations: wrongSign[i]!, share: wrongSign[i]! / T })),
     monotonicityViolationShare: anyWrong / T,
-    warnings,
   };
 }
 
@@ -297,18 +335,6 @@ export function symmetryRestrictions(equations: SurEquationInput[], slots: numbe
     return row;
   });
   return { rep, R, offsets };
-}
-
-function mean(v: ArrayLike<number>): number {
-  let s = 0;
-  for (let i = 0; i < v.length; i++) s += v[i]!;
-  return s / v.length;
-}
-
-function dotArr(a: ArrayLike<number>, b: ArrayLike<number>): number {
-  let s = 0;
-  for (let i = 0; i < a.length; i++) s += a[i]! * b[i]!;
-  return s;
 }
 
 /** Human-readable name of a regressor column, for messages. */
@@ -351,12 +377,12 @@ function checkDesign(eq: SurEquationInput, layout: ModelLayout): void {
   const T = eq.y.length;
   const K = eq.regressors.length;
   const cols = eq.regressors.map((r) => (r.values instanceof Float64Array ? r.values : Float64Array.from(r.values as ArrayLike<number>)));
-  const norms = cols.map((c) => Math.sqrt(dotArr(c, c)));
+  const norms = cols.map((c) => Math.sqrt(dot(c, c)));
   const G: number[][] = [];
   for (let a = 0; a < K; a++) {
     G.push(new Array<number>(K).fill(0));
     for (let b = 0; b <= a; b++) {
-      const v = norms[a]! > 0 && norms[b]! > 0 ? dotArr(cols[a]!, cols[b]!) / (norms[a]! * norms[b]!) : 0;
+      const v = norms[a]! > 0 && norms[b]! > 0 ? dot(cols[a]!, cols[b]!) / (norms[a]! * norms[b]!) : 0;
       G[a]![b] = v;
       G[b]![a] = v;
     }
@@ -424,10 +450,10 @@ function checkDesign(eq: SurEquationInput, layout: ModelLayout): void {
 function orthogonalise(v: Float64Array, basis: Float64Array[], T: number, force: boolean): Float64Array | null {
   for (let pass = 0; pass < 2; pass++)
     for (const q of basis) {
-      const c = dotArr(q, v);
+      const c = dot(q, v);
       for (let t = 0; t < T; t++) v[t]! -= c * q[t]!;
     }
-  const r = Math.sqrt(dotArr(v, v));
+  const r = Math.sqrt(dot(v, v));
   if (r < 1e-10 && !force) return null;
   for (let t = 0; t < T; t++) v[t]! /= r || 1;
   return v;
@@ -437,8 +463,8 @@ function residualNorm2(x: Float64Array, norm: number, basis: Float64Array[], T: 
   const v = Float64Array.from(x, (val) => val / norm);
   for (let pass = 0; pass < 2; pass++)
     for (const q of basis) {
-      const c = dotArr(q, v);
+      const c = dot(q, v);
       for (let t = 0; t < T; t++) v[t]! -= c * q[t]!;
     }
-  return dotArr(v, v);
+  return dot(v, v);
 }

@@ -57,6 +57,13 @@ export function dot(a: ArrayLike<number>, b: ArrayLike<number>): number {
   return s;
 }
 
+/** Arithmetic mean of a vector. */
+export function mean(v: ArrayLike<number>): number {
+  let s = 0;
+  for (let i = 0; i < v.length; i++) s += v[i]!;
+  return s / v.length;
+}
+
 /** J V J' (the delta-method sandwich). */
 export function sandwich(j: Mat, v: Mat): Mat {
   return matMul(matMul(j, v), transpose(j));

@@ -24,12 +24,12 @@
  */
 import type { CurvatureReport, EquationFit } from '../../shared/estimation-types.js';
 import type { ForecastSpec } from '../../shared/forecast-types.js';
-import { checkConvexity, imposeConvexity, leadingBlock } from './curvature.js';
+import { checkConvexity, imposeConvexity } from './curvature.js';
 import type { NetputDataset } from './dataset.js';
 import { EstimationInputError } from './errors.js';
-import { fitProfitFunction, prepareModel, symmetryRestrictions, type FitResult, type MonotonicityReport } from './fit.js';
+import { fitChecks, fitProfitFunction, prepareModel, symmetryRestrictions, type FitResult } from './fit.js';
 import { formOf } from './forms.js';
-import { covarianceToCorrelation, inverse, jacobiEigenvalues, symmetricEigen, type Mat } from './linalg.js';
+import { covarianceToCorrelation, dot, inverse, jacobiEigenvalues, mean, symmetricEigen, type Mat } from './linalg.js';
 import type { FormName } from './model.js';
 import { fitSur, type CrossProductCache, type SurEquationInput } from './sur.js';
 
@@ -550,7 +550,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   updateEffects();
 
   // Convexity.
-  const means = { prices: data.prices.map(meanOf), fixed: data.factors.map(meanOf) };
+  const means = { prices: data.prices.map((v) => mean(v)), fixed: data.factors.map((v) => mean(v)) };
   const block = form.curvatureBlock(layout, means.prices);
   const unrestricted = checkConvexity(block.toMatrix(theta));
   const mode = options.curvature ?? 'auto';
@@ -669,7 +669,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       const e = resid[i]![o]! - lambda[i]![seasonOf[o]!]! - mu[i]![farmOf[o]!]!;
       ssr += e * e;
     }
-    const ym = meanOf(eq.y);
+    const ym = mean(eq.y);
     let sst = 0;
     for (let o = 0; o < N; o++) sst += (eq.y[o]! - ym) ** 2;
     const se = covariance.map((row, a) => Math.sqrt(Math.max(row[a]!, 0)));
@@ -694,33 +694,18 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   let logW = 0;
   for (let o = 0; o < N; o++) logW += Math.log(w[o]!);
   const logLikelihood = (-N / 2) * (n * Math.log(2 * Math.PI) + logDet + n) + (n / 2) * logW;
-  const finalCheck = checkConvexity(block.toMatrix(theta));
-  let violating = 0;
-  if (block.global) violating = finalCheck.convex ? 0 : N;
-  else {
-    const p = new Array<number>(n);
-    for (let o = 0; o < N; o++) {
-      for (let i = 0; i < n; i++) p[i] = data.prices[i]![o]!;
-      const eig = jacobiEigenvalues(leadingBlock(form.priceHessian(layout, theta, p)));
-      const maxAbs = eig.reduce((acc, v) => Math.max(acc, Math.abs(v)), 0);
-      if (eig[0]! < -1e-9 * maxAbs) violating++;
-    }
-  }
-  const wrong = new Array<number>(n).fill(0);
-  let anyWrong = 0;
-  for (let o = 0; o < N; o++) {
-    let bad = false;
-    for (let i = 0; i < n; i++) {
-      const fitted = y[i]![o]! - resid[i]![o]!;
-      const ok = layout.items[i]!.role === 'output' ? fitted > 0 : fitted < 0;
-      if (!ok) {
-        wrong[i]!++;
-        bad = true;
-      }
-    }
-    if (bad) anyWrong++;
-  }
-  const monotonicity: MonotonicityReport[] = layout.items.map((it, i) => ({ item: it.name, role: it.role, violations: wrong[i]!, share: wrong[i]! / N }));
+  const checks = fitChecks({
+    layout,
+    form,
+    block,
+    theta,
+    prices: data.prices,
+    observations: N,
+    fitted: (i, o) => y[i]![o]! - resid[i]![o]!,
+    unrestricted,
+    imposed: impose,
+    extra: curvatureExtra,
+  });
   const fit: FitResult = {
     layout,
     observations: N,
@@ -739,19 +724,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     seasonYears: { first: seasons.years[0]!, last: seasons.years[S - 1]! },
     means,
     referencePrices: means.prices,
-    curvature: {
-      global: block.global,
-      unrestrictedEigenvalues: unrestricted.eigenvalues,
-      unrestrictedConvex: unrestricted.convex,
-      imposed: impose,
-      eigenvalues: finalCheck.eigenvalues,
-      convexAtMeans: finalCheck.convex,
-      violatingObservations: violating,
-      violationShare: violating / N,
-      ...curvatureExtra,
-    },
-    monotonicity,
-    monotonicityViolationShare: anyWrong / N,
+    ...checks,
     warnings,
   };
   const parts = [
@@ -884,7 +857,7 @@ function seasonShockCovariance(
     for (let t = 0; t < S; t++) ss += l[t]! ** 2;
     return Math.sqrt(Math.max(ss / Math.max(own[i]!, 1e-9), 0));
   });
-  const gram = lambda.map((a) => lambda.map((b) => dotF(a, b)));
+  const gram = lambda.map((a) => lambda.map((b) => dot(a, b)));
   const cov = clipPsd(gram.map((row, i) => row.map((v, j) => (i === j ? sd[i]! ** 2 : (v / Math.sqrt(gram[i]![i]! * gram[j]![j]! || 1)) * sd[i]! * sd[j]!))));
   // Degrees of freedom (Satterthwaite 1946): σ̂_i² = (λ̂_i'λ̂_i − noise)/c_i is a quadratic form
   // x'M_i'M_i x / c_i in the stacked shocks and season-mean noise x ~ N(0, Ω), Ω = Σ_λ ⊗ I + diag(noise),
@@ -907,7 +880,7 @@ function seasonShockCovariance(
     let tr2 = 0;
     for (let t = 0; t < S; t++)
       for (let u = 0; u < S; u++) {
-        const b = dotF(MO[t]!, M[i * S + u]!);
+        const b = dot(MO[t]!, M[i * S + u]!);
         tr2 += b * b;
       }
     const e = cov[i]![i]! * own[i]!;
@@ -940,7 +913,7 @@ function residualCovarianceOf(resid: Float64Array[], lambda: Float64Array[], mu:
     for (let o = 0; o < N; o++) out[o] = r[o]! - lam[seasonOf[o]!]! - m[farmOf[o]!]!;
     return out;
   });
-  const g = e.map((a) => e.map((b) => dotF(a, b)));
+  const g = e.map((a) => e.map((b) => dot(a, b)));
   return g.map((row, i) => row.map((v, j) => (v / Math.sqrt(g[i]![i]! * g[j]![j]! || 1)) * Math.sqrt(sigma2[i]! * sigma2[j]!) * (N > 0 ? 1 : 0)));
 }
 
@@ -949,18 +922,6 @@ function mapF(a: Float64Array, f: (v: number) => number): Float64Array<ArrayBuff
   const out = new Float64Array(a.length);
   for (let o = 0; o < a.length; o++) out[o] = f(a[o]!);
   return out;
-}
-
-function meanOf(v: ArrayLike<number>): number {
-  let s = 0;
-  for (let i = 0; i < v.length; i++) s += v[i]!;
-  return s / v.length;
-}
-
-function dotF(a: ArrayLike<number>, b: ArrayLike<number>): number {
-  let s = 0;
-  for (let i = 0; i < a.length; i++) s += a[i]! * b[i]!;
-  return s;
 }
 
 function zerosMat(n: number): Mat {
