@@ -182,23 +182,7 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
   });
   const sigma = residuals.map((ei) => residuals.map((ej) => dot(ei, ej) / T));
   const standardErrors = covariance.map((row, i) => Math.sqrt(Math.max(row[i]!, 0)));
-  const eqFits: EquationFit[] = equations.map((eq, i) => {
-    const ssr = dot(residuals[i]!, residuals[i]!);
-    const ym = mean(eq.y);
-    let sst = 0;
-    for (let t = 0; t < T; t++) sst += (eq.y[t]! - ym) ** 2;
-    return {
-      item: layout.items[i]!.name,
-      role: layout.items[i]!.role,
-      r2: 1 - ssr / sst,
-      rmse: Math.sqrt(ssr / T),
-      ssr,
-      coefficients: eq.regressors.map((reg, r) => {
-        const th = slots[i]![r]!;
-        return { name: `${eq.name}_${reg.name}`, parameter: layout.parameterNames[th]!, estimate: theta[th]!, standardError: standardErrors[th]! };
-      }),
-    };
-  });
+  const eqFits = equationFits(layout, equations, slots, theta, standardErrors, (i) => dot(residuals[i]!, residuals[i]!), T);
   let logDet: number;
   try {
     logDet = logDetSymmetricPD(sigma);
@@ -241,6 +225,35 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
     ...checks,
     warnings,
   };
+}
+
+/** Per-equation statistics and coefficient table of a netput system at θ, given each equation's SSR. */
+export function equationFits(
+  layout: ModelLayout,
+  equations: SurEquationInput[],
+  slots: number[][],
+  theta: number[],
+  standardErrors: number[],
+  ssrOf: (equation: number) => number,
+  observations: number,
+): EquationFit[] {
+  return equations.map((eq, i) => {
+    const ssr = ssrOf(i);
+    const ym = mean(eq.y);
+    let sst = 0;
+    for (let t = 0; t < observations; t++) sst += (eq.y[t]! - ym) ** 2;
+    return {
+      item: layout.items[i]!.name,
+      role: layout.items[i]!.role,
+      r2: 1 - ssr / sst,
+      rmse: Math.sqrt(ssr / observations),
+      ssr,
+      coefficients: eq.regressors.map((reg, r) => {
+        const th = slots[i]![r]!;
+        return { name: `${eq.name}_${reg.name}`, parameter: layout.parameterNames[th]!, estimate: theta[th]!, standardError: standardErrors[th]! };
+      }),
+    };
+  });
 }
 
 /**

@@ -22,12 +22,12 @@
  * 'pooled': the profit function of fit.ts in levels (land an ordinary fixed factor), bands from
  * parameter and residual uncertainty only; kept for comparison.
  */
-import type { CurvatureReport, EquationFit } from '../../shared/estimation-types.js';
+import type { CurvatureReport } from '../../shared/estimation-types.js';
 import type { ForecastSpec } from '../../shared/forecast-types.js';
 import { checkConvexity, imposeConvexity } from './curvature.js';
 import type { NetputDataset } from './dataset.js';
 import { EstimationInputError } from './errors.js';
-import { fitChecks, fitProfitFunction, prepareModel, symmetryRestrictions, type FitResult } from './fit.js';
+import { equationFits, fitChecks, fitProfitFunction, prepareModel, symmetryRestrictions, type FitResult } from './fit.js';
 import { formOf } from './forms.js';
 import { covarianceToCorrelation, dot, inverse, jacobiEigenvalues, mean, symmetricEigen, type Mat } from './linalg.js';
 import type { FormName } from './model.js';
@@ -663,30 +663,24 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const covariance = idio.map((row, a) => row.map((v, b) => v + PBsP[a]![b]!));
 
   // Equation statistics (per hectare, raw residuals less the effects) and the FitResult.
-  const eqFits: EquationFit[] = equations.map((eq, i) => {
-    let ssr = 0;
-    for (let o = 0; o < N; o++) {
-      const e = resid[i]![o]! - lambda[i]![seasonOf[o]!]! - mu[i]![farmOf[o]!]!;
-      ssr += e * e;
-    }
-    const ym = mean(eq.y);
-    let sst = 0;
-    for (let o = 0; o < N; o++) sst += (eq.y[o]! - ym) ** 2;
-    const se = covariance.map((row, a) => Math.sqrt(Math.max(row[a]!, 0)));
-    return {
-      item: layout.items[i]!.name,
-      role: layout.items[i]!.role,
-      r2: 1 - ssr / sst,
-      rmse: Math.sqrt(ssr / N),
-      ssr,
-      coefficients: eq.regressors.map((reg, r) => {
-        const th = slots[i]![r]!;
-        return { name: `${eq.name}_${reg.name}`, parameter: layout.parameterNames[th]!, estimate: theta[th]!, standardError: se[th]! };
-      }),
-    };
-  });
-  const sigmaEps = residualCovarianceOf(resid, lambda, mu, seasonOf, farmOf, sigma2);
   const standardErrors = covariance.map((row, a) => Math.sqrt(Math.max(row[a]!, 0)));
+  const eqFits = equationFits(
+    layout,
+    equations,
+    slots,
+    theta,
+    standardErrors,
+    (i) => {
+      let ssr = 0;
+      for (let o = 0; o < N; o++) {
+        const e = resid[i]![o]! - lambda[i]![seasonOf[o]!]! - mu[i]![farmOf[o]!]!;
+        ssr += e * e;
+      }
+      return ssr;
+    },
+    N,
+  );
+  const sigmaEps = residualCovarianceOf(resid, lambda, mu, seasonOf, farmOf, sigma2);
   // Gaussian log-likelihood of the weighted SUR (an approximation that ignores the effects' variance).
   let logDet = 0;
   const ch = jacobiEigenvalues(sur!.sigmaUsed);
