@@ -27,12 +27,7 @@ export interface ContractDialogData {
   imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
   templateUrl: './contract-dialog.html',
   styleUrl: '../shared/form-dialog.scss',
-  // 40 px wider than the shared form dialog's 520.
-  styles: `
-    :host form {
-      min-width: min(560px, 76vw);
-    }
-  `,
+  host: { style: '--np-dialog-form-width: 560px' },
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class ContractDialog {

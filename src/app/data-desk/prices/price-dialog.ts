@@ -45,12 +45,7 @@ export function priceTextValidator(mark: () => DecimalMark): ValidatorFn {
   imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
   templateUrl: './price-dialog.html',
   styleUrl: '../../shared/form-dialog.scss',
-  // 40 px wider than the shared form dialog's 520.
-  styles: `
-    :host form {
-      min-width: min(560px, 76vw);
-    }
-  `,
+  host: { style: '--np-dialog-form-width: 560px' },
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class PriceDialog {
