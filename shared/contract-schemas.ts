@@ -5,6 +5,7 @@
  */
 import { z } from 'zod';
 import { idSchema } from './ids.js';
+import { currencySchema, numberInMessage, TEXT_MAX, VALUE_MAX } from './field-limits.js';
 
 /** Our own words for where a contract stands. */
 export const CONTRACT_STATUSES = ['offered', 'signed', 'delivered', 'cancelled'] as const;
@@ -31,18 +32,18 @@ const month = (what: string) => z.string({ error: `Enter the ${what} month as YY
 
 export const contractSchema = z
   .object({
-    reference: z.string({ error: 'Enter the contract number' }).trim().min(1, 'Enter the contract number').max(40, 'Use at most 40 characters'),
+    reference: z.string({ error: 'Enter the contract number' }).trim().min(1, 'Enter the contract number').max(TEXT_MAX.contractReference, `Use at most ${TEXT_MAX.contractReference} characters`),
     farmId: idSchema,
     seasonId: idSchema,
     itemId: idSchema,
-    quantity: z.number({ error: 'Enter the quantity' }).positive('A contract commits more than 0').max(1e7, 'At most 10,000,000 per contract'),
+    quantity: z.number({ error: 'Enter the quantity' }).positive('A contract commits more than 0').max(VALUE_MAX.contractQuantity, `At most ${numberInMessage(VALUE_MAX.contractQuantity)} per contract`),
     /** Price per unit of the item in `currency` (major units; stored in cents). */
     price: z
       .number({ error: 'Enter the contract price' })
       .positive('A price must be more than 0')
-      .max(1e6, 'At most 1,000,000 per unit')
+      .max(VALUE_MAX.contractPrice, `At most ${numberInMessage(VALUE_MAX.contractPrice)} per unit`)
       .refine((p) => Math.abs(priceToCents(p) - p * MINOR_PER_MAJOR) < 1e-6, 'Use at most two decimals (cents)'),
-    currency: z.string().trim().regex(/^[A-Z]{3}$/, 'Use a three-letter ISO 4217 code such as EUR'),
+    currency: currencySchema,
     deliveryFrom: month('first delivery'),
     deliveryTo: month('last delivery'),
     status: z.enum(CONTRACT_STATUSES, { error: `Choose a status: ${CONTRACT_STATUSES.join(', ')}` }),

@@ -5,10 +5,11 @@
  */
 import { parseCurrency, quote } from '../../shared/cell-parsers.js';
 import { CONTRACT_STATUSES, MONTH_PATTERN, priceToCents, MINOR_PER_MAJOR, type ContractStatus } from '../../shared/contract-schemas.js';
+import { TEXT_MAX } from '../../shared/field-limits.js';
 import type { CheckContext, RowChecker } from './row-checker.js';
 
 const STATUS_NOTE = 'Contracts without a status are stored as signed.';
-const MAX_REFERENCE_CHARS = 40;
+const MAX_REFERENCE_CHARS = TEXT_MAX.contractReference;
 
 export class ContractRows implements RowChecker {
   private headerUnit: string | null = null;
@@ -38,10 +39,10 @@ export class ContractRows implements RowChecker {
     if (item && item.role !== 'output') ctx.error(n, ctx.columnOf('item'), `${item.code} is an input; a contract commits an output`);
     else if (item) ctx.checkUnit(n, item, this.headerUnit, undefined, 'quantity');
     const qtyText = ctx.text(raw, 'quantity') ?? '';
-    let quantity = qtyText === '' ? (ctx.error(n, ctx.columnOf('quantity'), 'empty cell: quantity is required'), null) : ctx.numberIn(n, ctx.columnOf('quantity'), qtyText, 'quantity');
+    let quantity = qtyText === '' ? (ctx.error(n, ctx.columnOf('quantity'), 'empty cell: quantity is required'), null) : ctx.numberIn(n, ctx.columnOf('quantity'), qtyText, 'contractQuantity');
     if (quantity === 0) quantity = (ctx.error(n, ctx.columnOf('quantity'), 'a contract commits more than 0'), null);
     const priceText = ctx.text(raw, 'price') ?? '';
-    let price = priceText === '' ? (ctx.error(n, ctx.columnOf('price'), 'empty cell: the contract price is required'), null) : ctx.numberIn(n, ctx.columnOf('price'), priceText, 'price');
+    let price = priceText === '' ? (ctx.error(n, ctx.columnOf('price'), 'empty cell: the contract price is required'), null) : ctx.numberIn(n, ctx.columnOf('price'), priceText, 'contractPrice');
     if (price !== null && Math.abs(priceToCents(price) - price * MINOR_PER_MAJOR) > 1e-6) price = (ctx.error(n, ctx.columnOf('price'), `${quote(priceText)} has more than two decimals (cents)`), null);
     let currency = this.headerCurrency ?? ctx.lookups.currency;
     const currencyText = ctx.text(raw, 'currency');

@@ -5,6 +5,7 @@
 import type { ImportField, ImportKind, Lookups } from './import-types.js';
 import { headerParts } from '../../shared/unit-names.js';
 import { PRICE_COLUMNS } from '../../shared/price-columns.js';
+import { FACTOR_NAME } from '../../shared/data-schemas.js';
 
 export interface FieldDef extends ImportField {
   /** Header spellings (compared after `normalHeader`) suggested for this field. */
@@ -45,7 +46,8 @@ export function fixedFactorName(name: string): string {
   return n === 'land' ? 'land_ha' : n;
 }
 
-export const FACTOR_NAME = /^[a-z][a-z0-9_]{0,39}$/;
+/** A fixed factor's name as stored (shared/data-schemas.ts). */
+export { FACTOR_NAME };
 
 /** The wide layout of the fit command: its fields follow the items table and the file's fixed columns. */
 export function observationFields(lookups: Lookups, columns: string[]): FieldDef[] {

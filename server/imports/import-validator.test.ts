@@ -10,6 +10,9 @@ import { ImportFileError } from './import-file-error.js';
 import { IMPORT_LIMITS } from './import-limits.js';
 import { validateImport } from './import-validator.js';
 import type { RowSource } from './packed-rows.js';
+import type { ZodType } from 'zod';
+import { contractSchema } from '../../shared/contract-schemas.js';
+import { factorValueSchema, landSchema, priceSchema, recordSchema } from '../../shared/data-schemas.js';
 
 const fixtures = path.join(path.dirname(fileURLToPath(import.meta.url)), '../../tests/fixtures/imports');
 const fixture = (name: string) => fs.readFileSync(path.join(fixtures, name));
@@ -294,6 +297,75 @@ describe('observations (the wide layout of the fit command)', () => {
     const out = await run(fs.readFileSync(path.join(fixtures, '../estimation/nq-panel.csv')), { kind: 'observations' });
     expect(out.errors[0]).toEqual({ row: 1, column: 'price:other', message: 'unknown item "other" (items: wheat, canola, nitrogen, phosphate, potash, diesel, labour)' });
     expect(out.errors[2]).toEqual({ row: 2, column: 'farm', message: 'unknown farm "F001": no farm has this code' });
+  });
+});
+
+describe('the limits the API keeps (shared/field-limits.ts)', () => {
+  /** A value at the limit passes both the import and the API's schema; one just past it fails both. */
+  const agrees = (field: ZodType, kept: unknown[], refused: unknown[]) => {
+    for (const v of kept) expect(field.safeParse(v).success, `${String(v)} is kept`).toBe(true);
+    for (const v of refused) expect(field.safeParse(v).success, `${String(v)} is refused`).toBe(false);
+  };
+  /** Runs the file and checks its errors as `row|column|message`. */
+  const errorsOf = async (csv: string, kind: ValidationOptions['kind'], expected: string[]) => {
+    const out = await run(csv, { kind });
+    expect(out.errors.map((e) => `${e.row}|${e.column}|${e.message}`)).toEqual(expected);
+    return out.writes;
+  };
+
+  it('prices: at most 1,000,000,000 per unit and 200 characters of source', async () => {
+    const [s200, s201] = ['s'.repeat(200), 's'.repeat(201)];
+    const csv = `item,season,delivery_point,price,observed_on,source\nwheat,2024/25,Ashby elevator,1000000000,2024-08-20,${s200}\nwheat,2024/25,Larkfield terminal,1000000001,2024-08-20,x\ncanola,2024/25,Ashby elevator,230,2024-08-20,${s201}\n`;
+    const writes = await errorsOf(csv, 'prices', [
+      '3|price|"1000000001" is larger than the largest price kept (1,000,000,000)',
+      '4|source|the source is 201 characters long; at most 200 are kept',
+    ]);
+    expect(all(writes.prices).map((p) => p.row)).toEqual([2]);
+    agrees(priceSchema.shape.price, [1e9], [1e9 + 1]);
+    agrees(priceSchema.shape.source, [s200], [s201]);
+  });
+
+  it('records: at most 1,000,000,000,000 of an item and 1,000,000 ha', async () => {
+    const csv = 'farm,season,item,quantity,land_ha\nF01,2025/26,wheat,1000000000000,1000000\nF02,2025/26,wheat,1000000000001,1000001\n';
+    await errorsOf(csv, 'records', [
+      '3|quantity|"1000000000001" is larger than the largest quantity kept (1,000,000,000,000)',
+      '3|land_ha|"1000001" ha is more land than the server keeps for a farm (1,000,000 ha)',
+    ]);
+    agrees(recordSchema.shape.quantity, [1e12], [1e12 + 1]);
+    agrees(landSchema.shape.landHa, [1e6], [1e6 + 1]);
+  });
+
+  // The import kept any number here before the limits were declared once; the API refused these.
+  it('fixed factors: 0 to 1,000,000,000, as the API keeps them', async () => {
+    const csv = 'season,farm,fixed:irrigated\n2025/26,F01,1000000000\n2025/26,F02,1000000001\n2025/26,F03,-1\n';
+    const writes = await errorsOf(csv, 'observations', [
+      '3|fixed:irrigated|"1000000001" is larger than the largest fixed factor kept (1,000,000,000)',
+      '4|fixed:irrigated|"-1" is negative: a fixed factor cannot be negative',
+    ]);
+    expect(all(writes.factors).map((f) => [f.row, f.factor, f.value])).toEqual([[2, 'irrigated', 1e9]]);
+    agrees(factorValueSchema.shape.value, [0, 1e9], [-1, 1e9 + 1]);
+  });
+
+  // The import kept contract quantities up to 1e12 and prices up to 1e9 per unit before; the
+  // contracts API (and the dialog) keep at most 10,000,000 and 1,000,000.
+  it('contracts: at most 10,000,000 per contract, 1,000,000 per unit and 40 characters of contract number', async () => {
+    const [r40, r41] = ['R'.repeat(40), 'R'.repeat(41)];
+    const csv = [
+      'contract number,farm,season,item,quantity,price (EUR/t),from,to,status',
+      `${r40},F01,2025/26,wheat,10000000,1000000,2025-08,2025-10,signed`,
+      'C-2,F01,2025/26,wheat,10000001,200,2025-08,2025-10,signed',
+      'C-3,F01,2025/26,wheat,100,1000000.01,2025-08,2025-10,signed',
+      `${r41},F01,2025/26,wheat,100,200,2025-08,2025-10,signed`,
+    ].join('\n');
+    const writes = await errorsOf(csv, 'contracts', [
+      '3|quantity|"10000001" is larger than the largest contract quantity kept (10,000,000)',
+      '4|price (EUR/t)|"1000000.01" is larger than the largest contract price kept (1,000,000)',
+      '5|contract number|the contract number is 41 characters long; at most 40 are kept',
+    ]);
+    expect(all(writes.contracts).map((c) => [c.row, c.quantity, c.priceCents])).toEqual([[2, 1e7, 1e8]]);
+    agrees(contractSchema.shape.quantity, [1e7], [1e7 + 1]);
+    agrees(contractSchema.shape.price, [1e6], [1e6 + 0.01]);
+    agrees(contractSchema.shape.reference, [r40], [r41]);
   });
 });
 

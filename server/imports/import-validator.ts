@@ -18,18 +18,16 @@ import { IMPORT_LIMITS, type ImportLimits } from './import-limits.js';
 import { columnLetter, fieldsFor, suggestMapping, type FieldDef } from './import-fields.js';
 import { parseNumber, parseSeason, quote, unescapeFormula, type DecimalMark, type Parsed, type SeasonRef } from '../../shared/cell-parsers.js';
 import { headerParts, priceUnitParts, sameUnit } from '../../shared/unit-names.js';
+import { VALUE_MAX } from '../../shared/field-limits.js';
 import { readTable, type TableMeta, type TableSink } from './table-reader.js';
 import { newBuiltWrites } from './packed-rows.js';
-import { fmt, type CheckContext, type DeliveryPointRef, type FarmRef, type Item, type RowChecker } from './row-checker.js';
+import { fmt, type CheckContext, type DeliveryPointRef, type FarmRef, type Item, type NumberRule, type RowChecker } from './row-checker.js';
 import { PriceRows } from './price-rows.js';
 import { RecordRows } from './record-rows.js';
 import { ContractRows } from './contract-rows.js';
 import { ObservationRows } from './observation-rows.js';
 
-/** Largest values kept, as in the data desk's own forms (shared/data-schemas.ts). */
-const MAX_PRICE = 1e9;
-const MAX_QUANTITY = 1e12;
-const MAX_LAND_HA = 1e6;
+/** Longest cell shown in the preview (characters). */
 const PREVIEW_CELL_CHARS = 200;
 
 const CHECKERS: Record<ImportKind, (ctx: CheckContext) => RowChecker> = {
@@ -331,21 +329,15 @@ class Validator implements TableSink, CheckContext {
         : { ok: false, message: `unknown delivery point ${quote(s)} (delivery points: ${this.lookups.deliveryPoints.map((d) => d.name).join(', ')})` };
     });
 
-  numberIn(n: number, column: string, s: string, rule: 'price' | 'quantity' | 'land' | 'factor'): number | null {
+  numberIn(n: number, column: string, s: string, rule: NumberRule): number | null {
     const r = this.cached('number', s, () => parseNumber(s, this.mark));
     if (!r.ok) {
       this.error(n, column, r.message);
       return null;
     }
     const v = r.value;
-    if (rule === 'price' && !(v > 0)) return this.error(n, column, `${quote(s)} is not a price: a price must be more than 0`), null;
-    if (rule === 'price' && v > MAX_PRICE) return this.error(n, column, `${quote(s)} is larger than the largest price kept (${fmt(MAX_PRICE)})`), null;
-    if (rule === 'quantity' && v < 0) {
-      return this.error(n, column, `${quote(s)} is negative: quantities are 0 or more, inputs too (the column or the item says whether it is an input)`), null;
-    }
-    if (rule === 'quantity' && v > MAX_QUANTITY) return this.error(n, column, `${quote(s)} is larger than the largest quantity kept (${fmt(MAX_QUANTITY)})`), null;
-    if (rule === 'land' && !(v > 0)) return this.error(n, column, `${quote(s)} is not an area: land must be more than 0 ha`), null;
-    if (rule === 'land' && v > MAX_LAND_HA) return this.error(n, column, `${quote(s)} ha is more land than the server keeps for a farm (${fmt(MAX_LAND_HA)} ha)`), null;
+    const problem = numberProblem(s, v, rule);
+    if (problem) return this.error(n, column, problem), null;
     return v;
   }
 
@@ -421,4 +413,36 @@ export async function validateImport(bytes: Uint8Array, options: ValidationOptio
   const validator = new Validator(options, lookups, limits);
   const meta = await readTable(bytes, options.fileName, validator, limits);
   return validator.finish(meta);
+}
+
+/**
+ * What is wrong with a number for its rule, or null: the bounds are the API's (shared/field-limits.ts
+ * through the schemas of shared/data-schemas.ts and shared/contract-schemas.ts), so a file keeps what
+ * a form keeps.
+ */
+function numberProblem(s: string, v: number, rule: NumberRule): string | null {
+  switch (rule) {
+    case 'price':
+    case 'contractPrice': {
+      const max = rule === 'price' ? VALUE_MAX.price : VALUE_MAX.contractPrice;
+      if (!(v > 0)) return `${quote(s)} is not a price: a price must be more than 0`;
+      if (v > max) return `${quote(s)} is larger than the largest ${rule === 'price' ? 'price' : 'contract price'} kept (${fmt(max)})`;
+      return null;
+    }
+    case 'quantity':
+    case 'contractQuantity': {
+      const max = rule === 'quantity' ? VALUE_MAX.quantity : VALUE_MAX.contractQuantity;
+      if (v < 0) return `${quote(s)} is negative: quantities are 0 or more, inputs too (the column or the item says whether it is an input)`;
+      if (v > max) return `${quote(s)} is larger than the largest ${rule === 'quantity' ? 'quantity' : 'contract quantity'} kept (${fmt(max)})`;
+      return null;
+    }
+    case 'land':
+      if (!(v > 0)) return `${quote(s)} is not an area: land must be more than 0 ha`;
+      if (v > VALUE_MAX.landHa) return `${quote(s)} ha is more land than the server keeps for a farm (${fmt(VALUE_MAX.landHa)} ha)`;
+      return null;
+    case 'factor':
+      if (v < 0) return `${quote(s)} is negative: a fixed factor cannot be negative`;
+      if (v > VALUE_MAX.factor) return `${quote(s)} is larger than the largest fixed factor kept (${fmt(VALUE_MAX.factor)})`;
+      return null;
+  }
 }

@@ -8,16 +8,20 @@
 import type { Lookups, ValidationOptions } from './import-types.js';
 import type { BuiltWrites } from './packed-rows.js';
 import type { Parsed, SeasonRef } from '../../shared/cell-parsers.js';
+import { numberInMessage, TEXT_MAX } from '../../shared/field-limits.js';
 
 export type Item = Lookups['items'][number];
 export type FarmRef = Lookups['farms'][number];
 export type DeliveryPointRef = Lookups['deliveryPoints'][number];
 
 /** Longest price source kept (characters). */
-export const MAX_SOURCE_CHARS = 200;
+export const MAX_SOURCE_CHARS = TEXT_MAX.source;
 
 /** A number as messages show it. */
-export const fmt = (n: number) => n.toLocaleString('en-GB', { maximumFractionDigits: 6 });
+export const fmt = numberInMessage;
+
+/** The bounds a number cell is checked against: each is a field's limit in shared/field-limits.ts. */
+export type NumberRule = 'price' | 'quantity' | 'land' | 'factor' | 'contractPrice' | 'contractQuantity';
 
 /** One kind's checks. The core calls `header` once the columns are mapped, `row` for each data row (not when the header lets no row through), `finish` after the last row. */
 export interface RowChecker {
@@ -66,7 +70,7 @@ export interface CheckContext {
   /** The season of a row; a well-formed season that is not set up yet is remembered, to be offered for creation. */
   seasonOf(n: number, s: string | undefined): SeasonRef | null;
   /** A number in the co-op's (or the file's) decimal convention, within the range its rule keeps. */
-  numberIn(n: number, column: string, s: string, rule: 'price' | 'quantity' | 'land' | 'factor'): number | null;
+  numberIn(n: number, column: string, s: string, rule: NumberRule): number | null;
   /** The item's unit against the one in the value column's header and the one in the row's unit cell. */
   checkUnit(n: number, item: Item, headerUnit: string | null, cellUnit: string | undefined, valueField: 'price' | 'quantity'): void;
   /** False, with an error, when an earlier row had the same natural key. */
