@@ -19,6 +19,13 @@ export interface TodoItem {
   link?: { path: string; label: string };
 }
 
+/** One figure card on Home: an icon, a count and what it counts. */
+interface Figure {
+  icon: string;
+  value: number;
+  label: string;
+}
+
 @Component({
   selector: 'np-coop-overview',
   imports: [DecimalPipe, RouterLink, MatCard, MatCardContent, MatIcon, MatButton, MatProgressBar, CautionNote],
@@ -43,6 +50,20 @@ export class CoopOverview {
     if (!seasons || seasons.count === 0 || !seasons.first) return seasons?.opened.length ? `none with data yet (${seasons.opened.join(', ')} opened)` : 'none yet';
     const range = seasons.first === seasons.last ? seasons.first : `${seasons.first} – ${seasons.last}`;
     return seasons.opened.length ? `${range}; ${seasons.opened.join(', ')} opened, no data yet` : range;
+  });
+
+  /** The co-op's figures in the order Home shows them, one card each. */
+  protected readonly figures = computed<Figure[]>(() => {
+    const s = this.data();
+    if (!s) return [];
+    return [
+      { icon: 'agriculture', value: s.farms, label: 'farms' },
+      { icon: 'groups', value: s.members, label: 'members with an account' },
+      { icon: 'inventory_2', value: s.items.outputs + s.items.inputs, label: `items: ${s.items.outputs} outputs, ${s.items.inputs} inputs` },
+      { icon: 'calendar_month', value: s.seasons.count, label: `seasons of data: ${this.seasonsRange()}` },
+      { icon: 'price_change', value: s.priceObservations, label: 'price observations' },
+      { icon: 'table_rows', value: s.farmRecords, label: 'farm records' },
+    ];
   });
 
   /** The server words the next steps for the signed-in role (server/summary/summary-service.ts). */
