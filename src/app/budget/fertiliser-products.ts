@@ -8,7 +8,6 @@ import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, GridApi, GridReadyEvent, ICellRendererParams } from 'ag-grid-community';
 import { inUnitSystem } from '../../../shared/units';
 import { ACCESS, roleAllows } from '../core/access';
@@ -16,7 +15,7 @@ import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { SettingsStore } from '../core/settings-store';
 import { CautionNote } from '../shared/caution-note';
-import { gridTheme } from '../shared/grid';
+import { AgGridAngular } from '../shared/grid';
 import { gradeOf } from './budget-form';
 import { formatPrice, formatTonnes } from './budget-format';
 import { NUTRIENT_LABEL, NUTRIENTS, type FertiliserProduct, type Nutrient } from './budget-api-types';
@@ -77,8 +76,6 @@ export class FertiliserProducts {
     return names.length > 1 ? `${names.slice(0, -1).join(', ')} and ${names.at(-1)}` : (names[0] ?? '');
   });
 
-  protected readonly theme = gridTheme;
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
   protected readonly columns = computed<ColDef<FertiliserProduct>[]>(() => {
     const system = this.#units.system();
     const u = unitLabels(system, this.currency());

@@ -1,8 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef } from 'ag-grid-community';
 import type { UnitSystem } from '../../../shared/units';
-import { denseGridTheme, FIT_FIGURES, WRAPPED_HEADINGS } from '../shared/grid';
+import { AgGridAngular, denseGridTheme, FIT_FIGURES, WRAPPED_HEADINGS } from '../shared/grid';
 import { formatLot, formatMass, formatMoney, formatTonnes } from './budget-format';
 import { priceText } from '../../../shared/number-format';
 import { NUTRIENT_LABEL, NUTRIENTS, type MixLine, type ScenarioResult } from './budget-api-types';
@@ -65,7 +64,7 @@ export class ProductPlan {
   protected readonly label = NUTRIENT_LABEL;
   protected readonly mass = formatMass;
   protected readonly labels = computed(() => unitLabels(this.system(), this.currency()));
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true, ...WRAPPED_HEADINGS };
+  protected readonly defaultColDef = WRAPPED_HEADINGS;
   protected readonly fitFigures = FIT_FIGURES;
   protected readonly tonnes = formatTonnes;
   protected readonly total = computed(() => ({ tonnes: this.scenario().mix.lines.reduce((a, l) => a + l.tonnes, 0) }));

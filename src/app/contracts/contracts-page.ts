@@ -10,7 +10,6 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, RowClickedEvent } from 'ag-grid-community';
 import { firstValueFrom } from 'rxjs';
 import type { FarmSummary } from '../../../shared/api-types';
@@ -19,7 +18,7 @@ import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { SettingsStore } from '../core/settings-store';
-import { gridTheme } from '../shared/grid';
+import { AgGridAngular } from '../shared/grid';
 import { ReferenceStore } from '../data-desk/reference-store';
 import { ContractDialog, type ContractDialogData } from './contract-dialog';
 import { deliveryWindow } from './contract-format';
@@ -74,7 +73,6 @@ export class ContractsPage {
   });
   protected readonly currency = computed(() => this.#settings.settings()?.currency ?? 'EUR');
 
-  protected readonly theme = gridTheme;
   protected readonly columns: ColDef<ContractRow>[] = [
     { field: 'reference', headerName: 'Contract', minWidth: 120, filter: 'agTextColumnFilter', sort: 'asc' },
     { colId: 'farm', headerName: 'Farm', minWidth: 170, filter: 'agTextColumnFilter', valueGetter: (p) => (p.data ? `${p.data.farmCode} · ${p.data.farmName}` : '') },
@@ -96,7 +94,6 @@ export class ContractsPage {
     { colId: 'window', headerName: 'Delivery', minWidth: 130, valueGetter: (p) => (p.data ? deliveryWindow(p.data.deliveryFrom, p.data.deliveryTo) : '') },
     { field: 'status', headerName: 'Status', minWidth: 110, filter: 'agTextColumnFilter', valueFormatter: (p) => (p.data ? CONTRACT_STATUS_LABELS[p.data.status] : '') },
   ];
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
 
   #dialogData(contract?: ContractRow): ContractDialogData {
     const farms = (this.#farms.hasValue() ? this.#farms.value() : []).map((f) => ({ id: f.id, code: f.code, name: f.name }));

@@ -11,8 +11,6 @@ import {
   type ValueParserParams,
 } from 'ag-grid-community';
 import { numberInMark, parseNumber, type DecimalMark } from '../../../shared/cell-parsers';
-// The shared registration (row model, filters, pagination, CSV export) and the theme.
-export { gridTheme } from '../shared/grid';
 
 // The data desk's grids also edit in place (text, number, date and list editors, whose validation
 // messages show as tooltips) and select rows to delete. Registering modules is additive.

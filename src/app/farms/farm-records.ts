@@ -9,7 +9,6 @@ import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
-import { AgGridAngular } from 'ag-grid-angular';
 import type {
   CellValueChangedEvent,
   ColDef,
@@ -27,8 +26,8 @@ import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { factorNameSchema } from '../../../shared/data-schemas';
 import { DataDeskApi, type FactorRow, type FarmRow, type LandRow, type RecordBody } from '../data-desk/data-desk-api';
-import { gridTheme, numberEditing, numberTextProblem, safeCsvCell } from '../data-desk/data-grid';
-import { FIT_FIGURES, WRAPPED_HEADINGS } from '../shared/grid';
+import { numberEditing, numberTextProblem, safeCsvCell } from '../data-desk/data-grid';
+import { AgGridAngular, FIT_FIGURES, WRAPPED_HEADINGS } from '../shared/grid';
 import { SettingsStore } from '../core/settings-store';
 import type { DecimalMark } from '../../../shared/cell-parsers';
 import { parseTable } from '../data-desk/paste';
@@ -107,11 +106,10 @@ export class FarmRecords {
   protected readonly status = signal<{ ok: boolean; text: string } | null>(null);
   readonly #grid = signal<GridApi<SeasonRow> | null>(null);
 
-  protected readonly theme = gridTheme;
   /** Columns sized to their figures; the item headings (wrapped) sit above them. */
   protected readonly fitFigures = FIT_FIGURES;
   protected readonly getRowId = (p: GetRowIdParams<SeasonRow>) => String(p.data.seasonId);
-  protected readonly defaultColDef: ColDef<SeasonRow> = { sortable: false, resizable: true, editable: () => this.canEdit(), wrapHeaderText: WRAPPED_HEADINGS.wrapHeaderText, autoHeaderHeight: WRAPPED_HEADINGS.autoHeaderHeight };
+  protected readonly defaultColDef: ColDef<SeasonRow> = { sortable: false, editable: () => this.canEdit(), wrapHeaderText: WRAPPED_HEADINGS.wrapHeaderText, autoHeaderHeight: WRAPPED_HEADINGS.autoHeaderHeight };
   protected readonly columns = computed<(ColDef<SeasonRow> | ColGroupDef<SeasonRow>)[]>(() => {
     const items = this.ref.items();
     const mark = this.decimalMark();

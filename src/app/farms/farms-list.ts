@@ -9,14 +9,14 @@ import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, GridApi, GridReadyEvent, ICellRendererParams, RowClickedEvent } from 'ag-grid-community';
 import { farmMemberNames, type FarmSummary } from '../../../shared/api-types';
 import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import type { FarmRow } from '../data-desk/data-desk-api';
-import { gridTheme, safeCsvCell } from '../data-desk/data-grid';
+import { safeCsvCell } from '../data-desk/data-grid';
+import { AgGridAngular } from '../shared/grid';
 import { FarmDialog, type FarmDialogData } from './farm-dialog';
 
 const landFormat = new Intl.NumberFormat(undefined, { minimumFractionDigits: 1, maximumFractionDigits: 1 });
@@ -44,7 +44,6 @@ export class FarmsList {
   protected readonly quickFilter = signal('');
   readonly #grid = signal<GridApi<FarmSummary> | null>(null);
 
-  protected readonly theme = gridTheme;
   protected readonly columns: ColDef<FarmSummary>[] = [
     {
       field: 'code',
@@ -86,7 +85,6 @@ export class FarmsList {
       valueGetter: (p) => farmMemberNames(p.data?.members ?? []),
     },
   ];
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
 
   protected gridReady(event: GridReadyEvent<FarmSummary>): void {
     this.#grid.set(event.api);

@@ -1,10 +1,9 @@
 import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, GridApi, GridReadyEvent } from 'ag-grid-community';
 import { NgxEchartsDirective } from 'ngx-echarts';
-import { gridTheme } from '../shared/grid';
+import { AgGridAngular } from '../shared/grid';
 import { backtestOption } from './chart-options';
 import { formatAmount, formatPercent, ItemLabels } from './model-format';
 import type { FitRunResult } from './model-types';
@@ -53,7 +52,6 @@ export class BacktestSection {
   readonly result = input.required<FitRunResult>();
   readonly labels = input.required<ItemLabels>();
 
-  protected readonly theme = gridTheme;
   readonly #seasonGrid = signal<GridApi<SeasonRow> | null>(null);
 
   protected readonly backtest = computed(() => this.result().backtest);
@@ -125,7 +123,6 @@ export class BacktestSection {
       filter: 'agNumberColumnFilter',
     },
   ];
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
 
   protected seasonGridReady(event: GridReadyEvent<SeasonRow>): void {
     this.#seasonGrid.set(event.api);

@@ -5,12 +5,11 @@ import { MatButtonToggle, MatButtonToggleGroup } from '@angular/material/button-
 import { MatExpansionPanel, MatExpansionPanelDescription, MatExpansionPanelHeader, MatExpansionPanelTitle } from '@angular/material/expansion';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef } from 'ag-grid-community';
 import type { EChartsCoreOption } from 'echarts/core';
 import { NgxEchartsDirective } from 'ngx-echarts';
 import { errorMessage } from '../core/api-error';
-import { gridTheme } from '../shared/grid';
+import { AgGridAngular } from '../shared/grid';
 import { FAN_COLOURS } from './fan-chart';
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, formatPercent, formatPrice, formatQuantity, formatShare, formatSignedPercent } from './outlook-format';
@@ -122,8 +121,6 @@ export class AccountabilityPage {
   protected readonly formatPrice = formatPrice;
   protected readonly formatSignedPercent = formatSignedPercent;
 
-  protected readonly theme = gridTheme;
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
   protected readonly itemSummaryColumns: ColDef[] = [
     { field: 'name', headerName: 'Item', minWidth: 180, flex: 2 },
     { field: 'seasons', headerName: 'Seasons', type: 'numericColumn', width: 110 },

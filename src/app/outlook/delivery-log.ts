@@ -7,10 +7,9 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router, RouterLink } from '@angular/router';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef } from 'ag-grid-community';
 import { errorMessage, errorStatus } from '../core/api-error';
-import { gridTheme } from '../shared/grid';
+import { AgGridAngular } from '../shared/grid';
 import { OutlookApi } from './outlook-api';
 import { formatDateTime } from './outlook-format';
 import type { DeliveryLog, DeliveryRow, DeliveryStatus, VersionSummary } from './outlook-api-types';
@@ -62,7 +61,6 @@ export class DeliveryLogPage {
   protected readonly statuses: DeliveryStatus[] = ['sent', 'queued', 'sending', 'failed', 'skipped'];
   protected readonly formatDateTime = formatDateTime;
 
-  protected readonly theme = gridTheme;
   protected readonly columns: ColDef<DeliveryRow>[] = [
     { field: 'name', headerName: 'Member', minWidth: 160, flex: 1, filter: 'agTextColumnFilter', valueFormatter: (p) => (p.value as string | null) ?? '—' },
     { field: 'to', headerName: 'E-mail', minWidth: 250, flex: 1, filter: 'agTextColumnFilter' },
@@ -79,7 +77,6 @@ export class DeliveryLogPage {
     { field: 'sentAt', headerName: 'Sent', width: 170, valueFormatter: (p) => (p.value ? formatDateTime(p.value as string) : '') },
     { field: 'nextAttemptAt', headerName: 'Next attempt', width: 170, valueFormatter: (p) => (p.data?.status === 'queued' || p.data?.status === 'failed' ? formatDateTime(p.value as string | null) : '') },
   ];
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
 
   constructor() {
     const timer = setInterval(() => {

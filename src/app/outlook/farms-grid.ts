@@ -1,9 +1,8 @@
 import { ChangeDetectionStrategy, Component, computed, input, output, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, GridApi, GridReadyEvent, RowClickedEvent } from 'ag-grid-community';
-import { gridTheme } from '../shared/grid';
+import { AgGridAngular } from '../shared/grid';
 import { csvCell, formatQuantity } from './outlook-format';
 import type { FarmOutlook } from './outlook-api-types';
 
@@ -35,10 +34,8 @@ const quantity = (p: { value: unknown }) => (typeof p.value === 'number' ? forma
     <ag-grid-angular
       class="grid"
       aria-label="Farms, base scenario"
-      [theme]="theme"
       [rowData]="rows()"
       [columnDefs]="columns()"
-      [defaultColDef]="defaultColDef"
       [pagination]="true"
       [paginationPageSize]="10"
       [paginationPageSizeSelector]="[10, 20, 50]"
@@ -77,7 +74,6 @@ export class FarmsGrid {
 
   readonly selected = output<number>();
 
-  protected readonly theme = gridTheme;
   protected readonly rows = computed(() => farmRows(this.farms()));
   protected readonly columns = computed<ColDef<FarmRow>[]>(() => {
     const first = this.farms()[0];
@@ -91,7 +87,6 @@ export class FarmsGrid {
       ),
     ];
   });
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true };
   readonly #grid = signal<GridApi<FarmRow> | null>(null);
 
   protected gridReady(event: GridReadyEvent<FarmRow>): void {

@@ -1,9 +1,8 @@
 import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, ColGroupDef, GridApi, GridReadyEvent } from 'ag-grid-community';
-import { gridTheme } from '../shared/grid';
+import { AgGridAngular, WRAPPED_HEADINGS } from '../shared/grid';
 import { csvCell, formatQuantity } from './outlook-format';
 import { SCENARIO_NAMES, scenarioLabel, type ItemProjection, type QuantitySummary } from './outlook-api-types';
 
@@ -89,7 +88,6 @@ function scenarioColumns(rows: readonly ProjectionRow[]): ColGroupDef<Projection
     <ag-grid-angular
       class="grid"
       [attr.aria-label]="label()"
-      [theme]="theme"
       [rowData]="rows()"
       [columnDefs]="columns()"
       [tooltipShowDelay]="300"
@@ -131,7 +129,6 @@ export class ProjectionGrid {
   /** The CSV file name, without extension. */
   readonly fileName = input('netput-projection');
 
-  protected readonly theme = gridTheme;
   protected readonly rows = computed(() => projectionRows(this.items(), this.tonnes()));
   readonly #grid = signal<GridApi<ProjectionRow> | null>(null);
 
@@ -140,7 +137,7 @@ export class ProjectionGrid {
     { field: 'unit', headerName: 'Unit', width: 100 },
     ...scenarioColumns(this.rows()),
   ]);
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true, wrapHeaderText: true, autoHeaderHeight: true };
+  protected readonly defaultColDef = WRAPPED_HEADINGS;
 
   protected gridReady(event: GridReadyEvent<ProjectionRow>): void {
     this.#grid.set(event.api);

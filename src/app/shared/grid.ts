@@ -21,9 +21,12 @@ import {
 } from 'ag-grid-community';
 import { COLOUR, FONT, RADIUS, SPACE, TYPE } from '../../../shared/design-tokens';
 
+export { AgGridAngular } from 'ag-grid-angular';
+
 // The one place Netput's grids are set up: the modules they use, their theme and their words.
-// Every grid in the app gets the theme and the words below through the global grid options; the
-// `[theme]="theme"` bindings in the templates hand over the same object.
+// Every grid in the app gets the theme and the words below through the global grid options, so a
+// template names a theme only where it differs (the product plan's denseGridTheme). Components take
+// AgGridAngular from here (re-exported below), so this registration has run wherever a grid is drawn.
 
 // Only the grid features Netput's tables use (sorting is built in); ValidationModule explains
 // misconfigured grids in development builds only.

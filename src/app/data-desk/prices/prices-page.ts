@@ -12,7 +12,6 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
-import { AgGridAngular } from 'ag-grid-angular';
 import type {
   CellValueChangedEvent,
   ColDef,
@@ -39,7 +38,8 @@ import { SettingsStore } from '../../core/settings-store';
 import { CautionNote } from '../../shared/caution-note';
 import { ConfirmDialog, type ConfirmDialogData } from '../../shared/confirm-dialog';
 import { DataDeskApi } from '../data-desk-api';
-import { gridTheme, numberEditing } from '../data-grid';
+import { numberEditing } from '../data-grid';
+import { AgGridAngular } from '../../shared/grid';
 import { ReferenceStore } from '../reference-store';
 import { PasteDialog, type PasteDialogData } from './paste-dialog';
 import { PriceChart, formatPrice } from './price-chart';
@@ -160,14 +160,11 @@ export class PricesPage {
   });
 
   // --- the grid ---
-  protected readonly theme = gridTheme;
   protected readonly getRowId = (p: GetRowIdParams<PriceRow>) => String(p.data.id);
   protected readonly rowSelection = computed<RowSelectionOptions | undefined>(() =>
     this.canEdit() ? { mode: 'multiRow', checkboxes: true, headerCheckbox: false, enableClickSelection: false } : undefined,
   );
   protected readonly defaultColDef: ColDef<PriceRow> = {
-    sortable: true,
-    resizable: true,
     filter: 'agTextColumnFilter',
     editable: () => this.canEdit(),
     // The server narrows: one condition per column, the comparisons it knows (shared/price-query.ts).

@@ -2,9 +2,8 @@ import { ChangeDetectionStrategy, Component, computed, input, output, signal } f
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
-import { AgGridAngular } from 'ag-grid-angular';
 import type { ColDef, GetRowIdParams, RowDoubleClickedEvent, RowSelectionOptions, SelectionChangedEvent } from 'ag-grid-community';
-import { gridTheme } from '../data-grid';
+import { AgGridAngular } from '../../shared/grid';
 
 /**
  * A reference table: the rows in a grid, and for planners Add, Edit and Delete on the selected row
@@ -40,7 +39,6 @@ import { gridTheme } from '../data-grid';
     <ag-grid-angular
       class="grid"
       [attr.aria-label]="caption()"
-      [theme]="theme"
       [rowData]="rows()"
       [columnDefs]="columns()"
       [defaultColDef]="defaultColDef"
@@ -93,8 +91,7 @@ export class RefTable<T extends { id: number }> {
   readonly edit = output<T>();
   readonly remove = output<T>();
 
-  protected readonly theme = gridTheme;
-  protected readonly defaultColDef: ColDef = { sortable: true, resizable: true, filter: 'agTextColumnFilter' };
+  protected readonly defaultColDef: ColDef = { filter: 'agTextColumnFilter' };
   protected readonly getRowId = (p: GetRowIdParams<T>) => String(p.data.id);
   protected readonly selected = signal<T | null>(null);
   protected readonly selection = computed<RowSelectionOptions | undefined>(() =>
