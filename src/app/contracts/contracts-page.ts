@@ -22,6 +22,7 @@ import { AgGridAngular } from '../shared/grid';
 import { ReferenceStore } from '../data-desk/reference-store';
 import { ContractDialog, type ContractDialogData } from './contract-dialog';
 import { deliveryWindow } from './contract-format';
+import { HistoryLink } from '../shared/history-link';
 
 const qty = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 1 });
 const money = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 });
@@ -29,7 +30,7 @@ const money = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 2, maximum
 /** `/contracts`: the members' forward delivery contracts of a season (planners and administrators record and change them). */
 @Component({
   selector: 'np-contracts-page',
-  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatLabel, MatPrefix, MatIcon, MatInput, MatSelect, MatOption, MatProgressBar],
+  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatLabel, MatPrefix, MatIcon, MatInput, MatSelect, MatOption, MatProgressBar, HistoryLink],
   templateUrl: './contracts-page.html',
   styleUrl: './contracts-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -43,7 +44,6 @@ export class ContractsPage {
 
   protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.contractsEdit));
   protected readonly canImport = computed(() => roleAllows(this.#auth.role(), ACCESS.imports));
-  protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
 
   protected readonly contracts = httpResource<ContractRow[]>(() => '/api/contracts');
   readonly #farms = httpResource<FarmSummary[]>(() => '/api/farms');

@@ -36,6 +36,7 @@ import { CautionNote } from '../shared/caution-note';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
 import { FarmDialog, type FarmDialogData } from './farm-dialog';
 import { factorKey, itemKey, pivotRecords, quantityDoubt, recordCellProblem, type SeasonRow } from './records-pivot';
+import { HistoryLink } from '../shared/history-link';
 
 const quantityFormat = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 2 });
 /** Tonnes with one decimal throughout a column (1,124.0 beside 1,184.1), other units as recorded. */
@@ -45,7 +46,7 @@ const landFormat = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 1, ma
 /** `/farms/:id`: one farm, its outputs, input use and land per season in one grid. Planners edit cells and paste blocks. */
 @Component({
   selector: 'np-farm-records',
-  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatHint, MatIcon, MatInput, MatLabel, MatProgressBar, CautionNote],
+  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatHint, MatIcon, MatInput, MatLabel, MatProgressBar, CautionNote, HistoryLink],
   templateUrl: './farm-records.html',
   styleUrl: './farm-records.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -66,7 +67,6 @@ export class FarmRecords {
   protected readonly farmId = computed(() => Number(this.id()));
   protected readonly memberNames = (farm: FarmSummary) => farmMemberNames(farm.members);
   protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
-  protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
 
   protected readonly farms = httpResource<FarmSummary[]>(() => '/api/farms');
   protected readonly farm = computed(() => (this.farms.hasValue() ? (this.farms.value().find((f) => f.id === this.farmId()) ?? null) : null));

@@ -8,7 +8,7 @@ import { MatIcon } from '@angular/material/icon';
 import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
-import { Router, RouterLink } from '@angular/router';
+import { Router } from '@angular/router';
 import type { ColDef, GridApi, GridReadyEvent, ICellRendererParams, RowClickedEvent } from 'ag-grid-community';
 import { farmMemberNames, type FarmSummary } from '../../../shared/api-types';
 import { ACCESS, roleAllows } from '../core/access';
@@ -18,13 +18,14 @@ import type { FarmRow } from '../data-desk/data-desk-api';
 import { safeCsvCell } from '../data-desk/data-grid';
 import { AgGridAngular } from '../shared/grid';
 import { FarmDialog, type FarmDialogData } from './farm-dialog';
+import { HistoryLink } from '../shared/history-link';
 
 const landFormat = new Intl.NumberFormat(undefined, { minimumFractionDigits: 1, maximumFractionDigits: 1 });
 
 /** `/farms`: every farm of the co-op; a row opens the farm's records. Planners add and edit farms. */
 @Component({
   selector: 'np-farms-list',
-  imports: [DecimalPipe, RouterLink, AgGridAngular, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatButton, MatProgressBar],
+  imports: [DecimalPipe, AgGridAngular, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatButton, MatProgressBar, HistoryLink],
   templateUrl: './farms-list.html',
   styleUrl: './farms-list.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -40,7 +41,6 @@ export class FarmsList {
   protected readonly problem = computed(() => (this.farms.error() ? errorMessage(this.farms.error()) : null));
   protected readonly totalLand = computed(() => this.rows().reduce((sum, f) => sum + f.landHa, 0));
   protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
-  protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
   protected readonly quickFilter = signal('');
   readonly #grid = signal<GridApi<FarmSummary> | null>(null);
 

@@ -23,6 +23,7 @@ import { DataDeskApi } from '../data-desk-api';
 import type { DecimalMark } from '../../../../shared/cell-parsers';
 import { MatCheckbox } from '@angular/material/checkbox';
 import { IMPORT_FILE_LIMITS, ImportsApi, type ImportKind, type ImportSummary, type ImportView, type OnExisting } from './imports-api';
+import { HistoryLink } from '../../shared/history-link';
 
 export const KIND_INFO: Record<ImportKind, { label: string; about: string; columns: string }> = {
   prices: {
@@ -84,6 +85,7 @@ export function fileProblem(file: { name: string; size: number }): string | null
     CautionNote,
     ProblemList,
     MatCheckbox,
+    HistoryLink,
   ],
   templateUrl: './imports-page.html',
   styleUrl: './imports-page.scss',
@@ -102,7 +104,6 @@ export class ImportsPage {
   }
 
   protected readonly canImport = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
-  protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
   protected readonly kinds = Object.entries(KIND_INFO).map(([kind, info]) => ({ kind: kind as ImportKind, ...info }));
   protected readonly kindInfo = KIND_INFO;
   protected readonly limits = IMPORT_FILE_LIMITS;

@@ -47,6 +47,7 @@ import { PriceDialog, type PriceDialogData } from './price-dialog';
 import { PRICE_FIELD_LABEL, priceEditProblems, withEdit, type PriceField } from './price-validation';
 import { savePriceEdit } from './price-save';
 import { parseNumber, type DecimalMark } from '../../../../shared/cell-parsers';
+import { HistoryLink } from '../../shared/history-link';
 
 /** A number formatted with a decimal point and comma groups (1,234.50), written in the co-op's convention. */
 function inMark(text: string, mark: DecimalMark): string {
@@ -79,6 +80,7 @@ const MAX_CHART_ITEMS = 8;
     MatProgressBar,
     CautionNote,
     PriceChart,
+    HistoryLink,
   ],
   templateUrl: './prices-page.html',
   styleUrl: './prices-page.scss',
@@ -93,7 +95,6 @@ export class PricesPage {
   protected readonly ref = inject(ReferenceStore);
 
   protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
-  protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
   protected readonly currency = computed(() => this.#settings.settings()?.currency ?? 'EUR');
   /** How the co-op writes decimals: the price cells show and read numbers that way. */
   protected readonly decimalMark = computed<DecimalMark>(() => this.#settings.settings()?.decimalMark ?? 'point');

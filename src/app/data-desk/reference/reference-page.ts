@@ -1,10 +1,8 @@
 import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
-import { MatButton } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
-import { MatIcon } from '@angular/material/icon';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTab, MatTabGroup } from '@angular/material/tabs';
-import { Router, RouterLink } from '@angular/router';
+import { Router } from '@angular/router';
 import type { ColDef } from 'ag-grid-community';
 import { firstValueFrom, type Observable } from 'rxjs';
 import type { DeliveryPoint, Item, PriceIndex, Season } from '../../../../shared/api-types';
@@ -20,6 +18,7 @@ import { CATEGORIES, ItemDialog } from './item-dialog';
 import { PriceIndexDialog } from './price-index-dialog';
 import { RefTable } from './ref-table';
 import { SeasonDialog, type SeasonDialogData } from './season-dialog';
+import { HistoryLink } from '../../shared/history-link';
 
 const TABS = ['items', 'seasons', 'points', 'indexes'] as const;
 type Tab = (typeof TABS)[number];
@@ -35,7 +34,7 @@ interface IndexRow extends PriceIndex {
 /** `/reference`: the items catalogue, seasons, delivery points and price indexes, as tabs. Planners edit; others read. */
 @Component({
   selector: 'np-reference-page',
-  imports: [RouterLink, MatTabGroup, MatTab, MatButton, MatIcon, RefTable],
+  imports: [MatTabGroup, MatTab, RefTable, HistoryLink],
   templateUrl: './reference-page.html',
   styles: `
     .tabs {
@@ -56,7 +55,6 @@ export class ReferencePage {
   readonly tab = input<string | undefined>(undefined);
   protected readonly tabIndex = computed(() => Math.max(0, TABS.indexOf((this.tab() ?? 'items') as Tab)));
   protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
-  protected readonly canAudit = computed(() => roleAllows(this.#auth.role(), ACCESS.audit));
   protected readonly auditEntity = computed(() => ['item', 'season', 'delivery-point', 'price-index'][this.tabIndex()]);
 
   protected readonly itemColumns: ColDef<Item>[] = [
