@@ -1,17 +1,15 @@
 import { httpResource } from '@angular/common/http';
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, linkedSignal, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, linkedSignal, untracked } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
-import type { ContractedState, DemandBand } from '../../../shared/contracted-view';
+import type { DemandBand } from '../../../shared/contracted-view';
 import { nutrientAmount } from '../../../shared/contract-words';
-import { errorMessage } from '../core/api-error';
 import { CautionNote } from '../shared/caution-note';
-import { ContractsApi } from './contracts-api';
+import { ContractEvaluation } from './contract-evaluation';
 
-const POLL_MS = 700;
 const signedPct = (v: number) => `${v > 0 ? '+' : v < 0 ? '−' : ''}${Math.abs(v).toLocaleString('en-GB', { maximumFractionDigits: 1 })} %`;
 
 /**
@@ -28,14 +26,13 @@ const signedPct = (v: number) => `${v > 0 ? '+' : v < 0 ? '−' : ''}${Math.abs(
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class ContractBasisSection {
-  readonly #api = inject(ContractsApi);
+  readonly #evaluation = new ContractEvaluation();
   protected readonly outlooks = httpResource<{ id: number; season: string; title: string }[]>(() => '/api/outlooks');
   protected readonly outlookId = linkedSignal<number | null>(() => (this.outlooks.hasValue() ? (this.outlooks.value()[0]?.id ?? null) : null));
-  protected readonly state = signal<ContractedState | null>(null);
-  protected readonly problem = signal<string | null>(null);
-  protected readonly active = computed(() => ['queued', 'running'].includes(this.state()?.status ?? ''));
-  protected readonly percent = computed(() => Math.round((this.state()?.progress ?? 0) * 100));
-  #timer: ReturnType<typeof setTimeout> | undefined;
+  protected readonly state = this.#evaluation.state;
+  protected readonly problem = this.#evaluation.problem;
+  protected readonly active = this.#evaluation.active;
+  protected readonly percent = this.#evaluation.percent;
 
   protected readonly rows = computed(() => {
     const basis = this.state()?.view?.demandBasis;
@@ -56,32 +53,12 @@ export class ContractBasisSection {
   constructor() {
     effect(() => {
       const id = this.outlookId();
-      untracked(() => (id === null ? this.state.set(null) : void this.#load(id)));
+      untracked(() => void this.#evaluation.load(id));
     });
-    inject(DestroyRef).onDestroy(() => clearTimeout(this.#timer));
-  }
-
-  async #load(id: number): Promise<void> {
-    clearTimeout(this.#timer);
-    try {
-      const s = await this.#api.state(id);
-      if (id !== this.outlookId()) return;
-      this.state.set(s);
-      this.problem.set(null);
-      if (s.status === 'queued' || s.status === 'running') this.#timer = setTimeout(() => void this.#load(id), POLL_MS);
-    } catch (error) {
-      this.problem.set(errorMessage(error));
-    }
   }
 
   protected async evaluate(): Promise<void> {
     const id = this.outlookId();
-    if (id === null) return;
-    try {
-      this.state.set(await this.#api.evaluate(id));
-      await this.#load(id);
-    } catch (error) {
-      this.problem.set(errorMessage(error));
-    }
+    if (id !== null) await this.#evaluation.evaluate(id);
   }
 }

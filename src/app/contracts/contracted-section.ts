@@ -1,16 +1,13 @@
 import { DecimalPipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, input, signal, untracked } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
-import type { ContractedState, ContractedView } from '../../../shared/contracted-view';
-import { errorMessage } from '../core/api-error';
+import type { ContractedView } from '../../../shared/contracted-view';
 import { CautionNote } from '../shared/caution-note';
-import { ContractsApi } from './contracts-api';
+import { ContractEvaluation } from './contract-evaluation';
 import { bandText, money, signedMoney, tonnes } from './contract-format';
-
-const POLL_MS = 700;
 
 /**
  * The outlook's contracted view (issue 19): for the season's signed contracts, the estimated
@@ -30,14 +27,13 @@ export class ContractedSection {
   /** Whether this person may start an evaluation. */
   readonly canRun = input(false);
 
-  readonly #api = inject(ContractsApi);
-  protected readonly state = signal<ContractedState | null>(null);
-  protected readonly problem = signal<string | null>(null);
+  readonly #evaluation = new ContractEvaluation();
+  protected readonly state = this.#evaluation.state;
+  protected readonly problem = this.#evaluation.problem;
+  protected readonly active = this.#evaluation.active;
+  protected readonly percent = this.#evaluation.percent;
   protected readonly starting = signal(false);
-  #timer: ReturnType<typeof setTimeout> | undefined;
 
-  protected readonly active = computed(() => ['queued', 'running'].includes(this.state()?.status ?? ''));
-  protected readonly percent = computed(() => Math.round((this.state()?.progress ?? 0) * 100));
   protected readonly view = computed<ContractedView | null>(() => this.state()?.view ?? null);
   protected readonly bandText = bandText;
   protected readonly money = money;
@@ -86,31 +82,15 @@ export class ContractedSection {
   constructor() {
     effect(() => {
       const id = this.outlookId();
-      untracked(() => void this.#load(id));
+      untracked(() => void this.#evaluation.load(id));
     });
-    inject(DestroyRef).onDestroy(() => clearTimeout(this.#timer));
-  }
-
-  async #load(id: number): Promise<void> {
-    clearTimeout(this.#timer);
-    try {
-      const s = await this.#api.state(id);
-      this.state.set(s);
-      this.problem.set(null);
-      if (s.status === 'queued' || s.status === 'running') this.#timer = setTimeout(() => void this.#load(id), POLL_MS);
-    } catch (error) {
-      this.problem.set(errorMessage(error));
-    }
   }
 
   protected async evaluate(): Promise<void> {
     this.starting.set(true);
-    this.problem.set(null);
+    this.#evaluation.clearProblem();
     try {
-      this.state.set(await this.#api.evaluate(this.outlookId()));
-      await this.#load(this.outlookId());
-    } catch (error) {
-      this.problem.set(errorMessage(error));
+      await this.#evaluation.evaluate(this.outlookId());
     } finally {
       this.starting.set(false);
     }
