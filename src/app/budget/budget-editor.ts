@@ -13,6 +13,7 @@ import { BudgetPlanSection } from './budget-plan-section';
 import { BudgetScenariosSection } from './budget-scenarios-section';
 import { BudgetSourceSection } from './budget-source-section';
 import { UnitSwitch } from './unit-switch';
+import { LoadProblem } from '../shared/load-problem';
 
 /**
  * `/budget/new` and `/budget/:id`: a fertiliser purchase budget. The treasurer picks where the
@@ -40,6 +41,7 @@ import { UnitSwitch } from './unit-switch';
     BudgetPlanSection,
     BudgetBookingSection,
     BudgetScenariosSection,
+    LoadProblem,
   ],
   providers: [BudgetEditorStore],
   templateUrl: './budget-editor.html',

@@ -22,6 +22,7 @@ import { NUTRIENT_LABEL, NUTRIENTS, type FertiliserProduct, type Nutrient } from
 import { BudgetUnitsStore, pricePerTToShown, productToShown, unitLabels } from './budget-units';
 import { ProductDialog, type ProductDialogData } from './product-dialog';
 import { UnitSwitch } from './unit-switch';
+import { LoadProblem } from '../shared/load-problem';
 
 const FORM_LABEL = { solid: 'Solid', liquid: 'Liquid', gas: 'Gas (pressurised)' } as const;
 const GRADE_FIELD = { nitrogen: 'nPct', phosphate: 'p2o5Pct', potash: 'k2oPct' } as const;
@@ -48,7 +49,7 @@ export function blendReason(p: FertiliserProduct): string {
 /** `/budget/products`: the fertiliser products budgets plan with. Treasurers keep the list; others read it. */
 @Component({
   selector: 'np-fertiliser-products',
-  imports: [RouterLink, AgGridAngular, MatAnchor, MatButton, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatProgressBar, CautionNote, UnitSwitch],
+  imports: [RouterLink, AgGridAngular, MatAnchor, MatButton, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatProgressBar, CautionNote, UnitSwitch, LoadProblem],
   templateUrl: './fertiliser-products.html',
   styleUrl: './fertiliser-products.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

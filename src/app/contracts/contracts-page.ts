@@ -23,6 +23,7 @@ import { ReferenceStore } from '../data-desk/reference-store';
 import { ContractDialog, type ContractDialogData } from './contract-dialog';
 import { deliveryWindow } from './contract-format';
 import { HistoryLink } from '../shared/history-link';
+import { LoadProblem } from '../shared/load-problem';
 
 const qty = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 1 });
 const money = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 });
@@ -30,7 +31,7 @@ const money = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 2, maximum
 /** `/contracts`: the members' forward delivery contracts of a season (planners and administrators record and change them). */
 @Component({
   selector: 'np-contracts-page',
-  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatLabel, MatPrefix, MatIcon, MatInput, MatSelect, MatOption, MatProgressBar, HistoryLink],
+  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatLabel, MatPrefix, MatIcon, MatInput, MatSelect, MatOption, MatProgressBar, HistoryLink, LoadProblem],
   templateUrl: './contracts-page.html',
   styleUrl: './contracts-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -19,13 +19,14 @@ import { safeCsvCell } from '../data-desk/data-grid';
 import { AgGridAngular } from '../shared/grid';
 import { FarmDialog, type FarmDialogData } from './farm-dialog';
 import { HistoryLink } from '../shared/history-link';
+import { LoadProblem } from '../shared/load-problem';
 
 const landFormat = new Intl.NumberFormat(undefined, { minimumFractionDigits: 1, maximumFractionDigits: 1 });
 
 /** `/farms`: every farm of the co-op; a row opens the farm's records. Planners add and edit farms. */
 @Component({
   selector: 'np-farms-list',
-  imports: [DecimalPipe, AgGridAngular, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatButton, MatProgressBar, HistoryLink],
+  imports: [DecimalPipe, AgGridAngular, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatButton, MatProgressBar, HistoryLink, LoadProblem],
   templateUrl: './farms-list.html',
   styleUrl: './farms-list.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

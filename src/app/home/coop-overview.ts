@@ -11,6 +11,7 @@ import { ROLE_LABELS } from '../../../shared/roles';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { CautionNote } from '../shared/caution-note';
+import { LoadProblem } from '../shared/load-problem';
 
 /** One thing the person could do now, worded for their role. */
 export interface TodoItem {
@@ -28,7 +29,7 @@ interface Figure {
 
 @Component({
   selector: 'np-coop-overview',
-  imports: [DecimalPipe, RouterLink, MatCard, MatCardContent, MatIcon, MatButton, MatProgressBar, CautionNote],
+  imports: [DecimalPipe, RouterLink, MatCard, MatCardContent, MatIcon, MatButton, MatProgressBar, CautionNote, LoadProblem],
   templateUrl: './coop-overview.html',
   styleUrl: './coop-overview.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -11,6 +11,7 @@ import type { MyFarm } from '../../../shared/api-types';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { CautionNote } from '../shared/caution-note';
 import { dayText } from '../../../shared/number-format';
+import { LoadProblem } from '../shared/load-problem';
 
 /** A published outlook version as the portal lists it. */
 interface PortalVersion {
@@ -63,6 +64,7 @@ export function recordsBySeason(records: MyFarm['records']): { seasons: string[]
     MatProgressBar,
     MatTableModule,
     CautionNote,
+    LoadProblem,
   ],
   templateUrl: './my-farm-overview.html',
   styleUrl: './my-farm-overview.scss',

@@ -20,11 +20,12 @@ import { ACTIVE_STATES, CURVATURE_LABELS, FORM_LABELS, type ModelSummary, type R
 import { ModelsApi } from './models-api';
 import { pollRunStatuses } from './run-status-poller';
 import { RunStateBadge } from './run-state-badge';
+import { LoadProblem } from '../shared/load-problem';
 
 /** `/models/:id`: one model's definition and its runs, with progress, cancel and run-again. */
 @Component({
   selector: 'np-model-detail',
-  imports: [DatePipe, RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, CautionNote, RunStateBadge],
+  imports: [DatePipe, RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, CautionNote, RunStateBadge, LoadProblem],
   templateUrl: './model-detail.html',
   styleUrl: './model-detail.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

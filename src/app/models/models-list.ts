@@ -17,6 +17,7 @@ import { definitionLine, ItemLabels } from './model-format';
 import { STATE_LABELS, type ModelSummary } from './model-types';
 import { ModelsApi } from './models-api';
 import { RunStateBadge } from './run-state-badge';
+import { LoadProblem } from '../shared/load-problem';
 
 /** `/models`: the co-op's model definitions with their latest run, and the form to define one. */
 @Component({
@@ -32,6 +33,7 @@ import { RunStateBadge } from './run-state-badge';
     CautionNote,
     ModelForm,
     RunStateBadge,
+    LoadProblem,
   ],
   templateUrl: './models-list.html',
   styleUrl: './models-list.scss',

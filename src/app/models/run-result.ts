@@ -27,6 +27,7 @@ import { ResponseSection } from './response-section';
 import { RunProvenance } from './run-provenance';
 import { RunStateBadge } from './run-state-badge';
 import { pollRunStatuses } from './run-status-poller';
+import { LoadProblem } from '../shared/load-problem';
 
 /** `/models/runs/:runId`: one run's result, read for planners and explained for the board. */
 @Component({
@@ -49,6 +50,7 @@ import { pollRunStatuses } from './run-status-poller';
     ResponseSection,
     RunProvenance,
     RunStateBadge,
+    LoadProblem,
   ],
   templateUrl: './run-result.html',
   styleUrl: './run-result.scss',

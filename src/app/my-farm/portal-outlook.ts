@@ -3,7 +3,6 @@ import { MyContractsSection } from '../contracts/my-contracts';
 import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
-import { MatButton } from '@angular/material/button';
 import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
@@ -18,6 +17,7 @@ import { QuantityCards } from './quantity-cards';
 import { PortalFertiliser } from './portal-fertiliser';
 import { inItemOrder, PortalPrices } from './portal-prices';
 import { PortalSource } from './portal-source';
+import { LoadProblem } from '../shared/load-problem';
 
 /**
  * `/my-farm/outlook`: the member's portal. The published outlook (co-op part) and the member's own
@@ -28,7 +28,7 @@ import { PortalSource } from './portal-source';
  */
 @Component({
   selector: 'np-portal-outlook',
-  imports: [MyContractsSection, MatButton, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, FanChart, OutlookCautions, QuantityCards, PortalFertiliser, PortalPrices, PortalSource],
+  imports: [MyContractsSection, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, FanChart, OutlookCautions, QuantityCards, PortalFertiliser, PortalPrices, PortalSource, LoadProblem],
   templateUrl: './portal-outlook.html',
   styleUrl: './portal-outlook.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -16,6 +16,7 @@ import { formatDateTime, formatPercent, formatPrice, formatQuantity, formatShare
 import type { Accountability, AccountabilitySeason, Comparison, FertiliserComparison } from './outlook-api-types';
 import { SERIES } from '../../../shared/design-tokens';
 import { CHART_TEXT } from '../shared/chart-theme';
+import { LoadProblem } from '../shared/load-problem';
 
 const SERIES_COLOURS: readonly string[] = SERIES;
 
@@ -85,6 +86,7 @@ const wholeKg = (v: number): string => Math.round(v).toLocaleString('en');
     MatExpansionPanelDescription,
     MatProgressBar,
     OutlookCautions,
+    LoadProblem,
   ],
   templateUrl: './accountability-page.html',
   styleUrl: './accountability-page.scss',

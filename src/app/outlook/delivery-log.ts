@@ -13,6 +13,7 @@ import { AgGridAngular } from '../shared/grid';
 import { OutlookApi } from './outlook-api';
 import { formatDateTime } from './outlook-format';
 import type { DeliveryLog, DeliveryRow, DeliveryStatus, VersionSummary } from './outlook-api-types';
+import { LoadProblem } from '../shared/load-problem';
 
 /** How often the log is read again while messages wait or are being sent. */
 export const DELIVERY_POLL_MS = 2000;
@@ -28,7 +29,7 @@ export const DELIVERY_WORDS: Record<DeliveryStatus, string> = {
 /** `/outlook/:id/deliveries`: the personal e-mails of a published version, one row per member, with retry. */
 @Component({
   selector: 'np-delivery-log',
-  imports: [RouterLink, AgGridAngular, MatButton, MatIcon, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption],
+  imports: [RouterLink, AgGridAngular, MatButton, MatIcon, MatProgressBar, MatFormField, MatLabel, MatSelect, MatOption, LoadProblem],
   templateUrl: './delivery-log.html',
   styleUrl: './delivery-log.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

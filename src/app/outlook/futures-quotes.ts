@@ -18,6 +18,7 @@ import { OutlookApi } from './outlook-api';
 import { formatPrice } from './outlook-format';
 import type { FuturesQuote } from './outlook-api-types';
 import { FieldError } from '../shared/field-error';
+import { LoadProblem } from '../shared/load-problem';
 
 /**
  * The futures history behind the "futures quote plus local basis" method: one row per quote (item,
@@ -26,7 +27,7 @@ import { FieldError } from '../shared/field-error';
  */
 @Component({
   selector: 'np-futures-quotes',
-  imports: [ReactiveFormsModule, MatButton, MatIconButton, MatIcon, MatFormField, MatLabel, MatHint, MatError, FieldError, MatInput, MatSelect, MatOption],
+  imports: [ReactiveFormsModule, MatButton, MatIconButton, MatIcon, MatFormField, MatLabel, MatHint, MatError, FieldError, MatInput, MatSelect, MatOption, LoadProblem],
   templateUrl: './futures-quotes.html',
   styleUrl: './futures-quotes.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -30,6 +30,7 @@ import { PROJECTION_WORDS } from './outlook-list';
 import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookPatch, type ProjectionAnswer, type ProjectionState, type RunChoiceAnswer, type ScenarioRule } from './outlook-api-types';
 import { ProjectionReport } from './projection-report';
 import { PublishDialog, type PublishChoice, type PublishDialogData } from './publish-dialog';
+import { LoadProblem } from '../shared/load-problem';
 
 /** How often a queued or running projection is asked for its progress. */
 export const PROJECTION_POLL_MS = 1000;
@@ -66,6 +67,7 @@ const ACTIVE = new Set(['queued', 'running']);
     FuturesQuotes,
     ProjectionReport,
     OutlookCautions,
+    LoadProblem,
   ],
   templateUrl: './outlook-editor.html',
   styleUrl: './outlook-editor.scss',

@@ -13,6 +13,7 @@ import { NewOutlookDialog, type NewOutlookDialogData } from './new-outlook-dialo
 import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, suggestedOutlookSeason } from './outlook-format';
 import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookListRow, type ProjectionStatus, type RunChoiceAnswer } from './outlook-api-types';
+import { LoadProblem } from '../shared/load-problem';
 
 export const PROJECTION_WORDS: Record<ProjectionStatus, string> = {
   none: 'not projected',
@@ -25,7 +26,7 @@ export const PROJECTION_WORDS: Record<ProjectionStatus, string> = {
 /** `/outlook`: every season's outlook, its projection state and published versions; planners open new ones. */
 @Component({
   selector: 'np-outlook-list',
-  imports: [RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, OutlookCautions],
+  imports: [RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, OutlookCautions, LoadProblem],
   templateUrl: './outlook-list.html',
   styleUrl: './outlook-list.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

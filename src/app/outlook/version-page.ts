@@ -13,11 +13,12 @@ import { formatDateTime } from './outlook-format';
 import type { FullVersion, VersionSummary } from './outlook-api-types';
 import { ProjectionReport } from './projection-report';
 import { SourceFacts } from './source-facts';
+import { LoadProblem } from '../shared/load-problem';
 
 /** `/outlook/:id/versions/:versionId`: a published version, read-only, with every farm. */
 @Component({
   selector: 'np-version-page',
-  imports: [RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, ExpectationsTable, OutlookCautions, ProjectionReport, SourceFacts],
+  imports: [RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, ExpectationsTable, OutlookCautions, ProjectionReport, SourceFacts, LoadProblem],
   templateUrl: './version-page.html',
   styleUrl: './version-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

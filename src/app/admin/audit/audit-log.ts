@@ -1,7 +1,6 @@
 import { DatePipe } from '@angular/common';
 import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, input, linkedSignal, signal } from '@angular/core';
-import { MatButton } from '@angular/material/button';
 import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { Router } from '@angular/router';
@@ -9,6 +8,7 @@ import { MatPaginator, type PageEvent } from '@angular/material/paginator';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import { errorMessage } from '../../core/api-error';
+import { LoadProblem } from '../../shared/load-problem';
 
 /** One changed field of an audit entry, in words (the server's describer, server/audit/audit-describe.ts). */
 export interface AuditChange {
@@ -59,7 +59,6 @@ export const AUDIT_ENTITIES: { entity: string; label: string }[] = [
   selector: 'np-audit-log',
   imports: [
     DatePipe,
-    MatButton,
     MatFormField,
     MatLabel,
     MatSelect,
@@ -67,6 +66,7 @@ export const AUDIT_ENTITIES: { entity: string; label: string }[] = [
     MatPaginator,
     MatProgressBar,
     MatTableModule,
+    LoadProblem,
   ],
   templateUrl: './audit-log.html',
   styleUrl: './audit-log.scss',

@@ -20,6 +20,7 @@ import { AuthStore } from '../../core/auth-store';
 import { ConfirmDialog, type ConfirmDialogData } from '../../shared/confirm-dialog';
 import { UserDialog, type UserDialogData } from './user-dialog';
 import { UsersApi } from './users-api';
+import { LoadProblem } from '../../shared/load-problem';
 
 const STATUS: Record<UserStatus, { label: string; icon: string }> = {
   active: { label: 'Active', icon: 'check_circle' },
@@ -51,6 +52,7 @@ interface UserRow extends UserSummary {
     MatMenuTrigger,
     MatProgressBar,
     MatTableModule,
+    LoadProblem,
   ],
   templateUrl: './users.html',
   styleUrl: './users.scss',

@@ -48,6 +48,7 @@ import { PRICE_FIELD_LABEL, priceEditProblems, withEdit, type PriceField } from 
 import { savePriceEdit } from './price-save';
 import { parseNumber, type DecimalMark } from '../../../../shared/cell-parsers';
 import { HistoryLink } from '../../shared/history-link';
+import { LoadProblem } from '../../shared/load-problem';
 
 /** A number formatted with a decimal point and comma groups (1,234.50), written in the co-op's convention. */
 function inMark(text: string, mark: DecimalMark): string {
@@ -81,6 +82,7 @@ const MAX_CHART_ITEMS = 8;
     CautionNote,
     PriceChart,
     HistoryLink,
+    LoadProblem,
   ],
   templateUrl: './prices-page.html',
   styleUrl: './prices-page.scss',
