@@ -11,6 +11,9 @@ import {
   type ValueParserParams,
 } from 'ag-grid-community';
 import { numberInMark, parseNumber, type DecimalMark } from '../../../shared/cell-parsers';
+// The data desk's grids take AgGridAngular from here, so the shared set-up (shared/grid.ts) and the
+// editing and selection modules below are registered wherever one of them is drawn.
+export { AgGridAngular } from '../shared/grid';
 
 // The data desk's grids also edit in place (text, number, date and list editors, whose validation
 // messages show as tooltips) and select rows to delete. Registering modules is additive.

@@ -26,7 +26,8 @@ export { AgGridAngular } from 'ag-grid-angular';
 // The one place Netput's grids are set up: the modules they use, their theme and their words.
 // Every grid in the app gets the theme and the words below through the global grid options, so a
 // template names a theme only where it differs (the product plan's denseGridTheme). Components take
-// AgGridAngular from here (re-exported below), so this registration has run wherever a grid is drawn.
+// AgGridAngular from here (re-exported below; the data desk's editing grids from data-desk/data-grid.ts,
+// which adds its modules), so this registration has run wherever a grid is drawn.
 
 // Only the grid features Netput's tables use (sorting is built in); ValidationModule explains
 // misconfigured grids in development builds only.

@@ -3,7 +3,7 @@ import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import type { ColDef, GetRowIdParams, RowDoubleClickedEvent, RowSelectionOptions, SelectionChangedEvent } from 'ag-grid-community';
-import { AgGridAngular } from '../../shared/grid';
+import { AgGridAngular } from '../data-grid';
 
 /**
  * A reference table: the rows in a grid, and for planners Add, Edit and Delete on the selected row
