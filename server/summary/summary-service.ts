@@ -4,7 +4,7 @@
  * published, a published outlook with no budget. Members read their next steps on their own Home.
  */
 import type { CoopSummary, NextStep } from '../../shared/api-types.js';
-import type { Role } from '../../shared/roles.js';
+import { ACCESS, type Role } from '../../shared/roles.js';
 import { modelDefinitionSchema } from '../../shared/model-schemas.js';
 import { dayText } from '../../shared/number-format.js';
 import type { Db } from '../db/client.js';
@@ -38,7 +38,8 @@ async function dataChangedSince(db: Db, run: { definition: unknown; dataHash: st
   }
 }
 
-const PLANNING: readonly Role[] = ['admin', 'planner'];
+/** Who is shown the missing-records steps: those who may open the imports page they link to. */
+const PLANNING: readonly Role[] = ACCESS.imports;
 
 async function nextSteps(db: Db, role: Role, facts: { farms: number; members: number; prices: number; coverage: ReturnType<typeof recordCoverage> }): Promise<NextStep[]> {
   const steps: NextStep[] = [];
