@@ -36,6 +36,7 @@ import { dualAt, solveCommitted, type DualPoint, type SolveFailure, type SolveRe
 import { glDrawSolver, nqDrawSolver, type DrawStatus } from './contracted-draws.js';
 import { historyOf, setUp } from './contracted-setup.js';
 import { failedDrawsIssue, failureIssues, historyIssues, wrongSignIssues } from './contracted-words.js';
+import { drawSettings } from './draw-options.js';
 import { EstimationInputError } from './errors.js';
 import { NO_STRETCH, WelchTable, type Stretch } from './forecast.js';
 import { drawSharedParts, type SharedDraws } from './forecast-draws.js';
@@ -82,12 +83,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
   const form = formOf(layout.form);
   const n = layout.items.length;
   const k = fit.theta.length;
-  const S = options.draws ?? 2000;
-  const seed = options.seed ?? 1;
-  const level = options.level ?? 0.9;
-  if (!(Number.isInteger(S) && (S === 0 || S >= 100))) throw new EstimationInputError(`draws must be 0 (the point only) or a whole number of at least 100, got ${S}`);
-  if (!(level > 0 && level < 1)) throw new EstimationInputError(`level must lie between 0 and 1, got ${level}`);
-  if (!options.farms.length) throw new EstimationInputError('the contracted evaluation needs at least one farm');
+  const { draws: S, seed, level } = drawSettings(options, { what: 'the contracted evaluation', defaultDraws: 2000, pointOnly: true });
   const perHa = model.spec === 'per-hectare';
   const season = options.season ?? fit.seasonYears.last + 1;
   const itemIndex = new Map(layout.items.map((it, i) => [it.name, i]));

@@ -25,6 +25,7 @@
  * Projections are estimates, not advice.
  */
 import type { ForecastProjection, ForecastQuantity } from '../../shared/forecast-types.js';
+import { drawSettings } from './draw-options.js';
 import { EstimationInputError } from './errors.js';
 import { drawSharedParts } from './forecast-draws.js';
 import { formOf } from './forms.js';
@@ -76,13 +77,8 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
   const form = formOf(layout.form);
   const n = layout.items.length;
   const k = fit.theta.length;
-  const S = options.draws ?? 10000;
-  const seed = options.seed ?? 1;
-  const level = options.level ?? 0.9;
-  if (!(Number.isInteger(S) && S >= 100)) throw new EstimationInputError(`draws must be a whole number of at least 100, got ${S}`);
-  if (!(level > 0 && level < 1)) throw new EstimationInputError(`level must lie between 0 and 1, got ${level}`);
+  const { draws: S, seed, level } = drawSettings(options, { what: 'the projection', defaultDraws: 10000 });
   const farms = options.farms;
-  if (!farms.length) throw new EstimationInputError('the projection needs at least one farm');
   const F = farms.length;
   const perHa = model.spec === 'per-hectare';
   const season = options.season ?? fit.seasonYears.last + 1;

@@ -16,6 +16,7 @@
  */
 import type { QuantitySummary } from '../../shared/estimation-types.js';
 import { leadingBlock } from './curvature.js';
+import { drawSettings } from './draw-options.js';
 import { EstimationInputError } from './errors.js';
 import type { FitResult } from './fit.js';
 import { formOf } from './forms.js';
@@ -87,10 +88,8 @@ export function projectSeason(fit: FitResult, options: ProjectionOptions): Proje
   const form = formOf(layout.form);
   const n = layout.items.length;
   const m = layout.factors.length;
-  const S = options.draws ?? 2000;
-  const seed = options.seed ?? 1;
-  if (!(Number.isInteger(S) && S >= 100)) throw new EstimationInputError(`draws must be a whole number of at least 100, got ${S}`);
-  if (!options.farms.length) throw new EstimationInputError('the projection needs at least one farm');
+  // No level option here: only draws, seed and farms are passed on, so nothing else is checked.
+  const { draws: S, seed } = drawSettings({ draws: options.draws, seed: options.seed, farms: options.farms }, { what: 'the projection', defaultDraws: 2000 });
   const scenarios: ProjectionScenario[] = Array.isArray(options.scenarios) ? options.scenarios : [{ name: 'base', prices: options.scenarios }];
   if (!scenarios.length) throw new EstimationInputError('the projection needs at least one price scenario');
   const trendIdx = layout.trendOrigin !== null ? layout.factors.indexOf('trend') : -1;
