@@ -6,9 +6,10 @@
 import { z } from 'zod';
 import { idSchema } from './ids.js';
 import { seasonLabelSchema } from './outlook-schemas.js';
+import { MONTH_PATTERN } from './field-limits.js';
 import type { NutrientAmounts } from './budget-types.js';
 
-const month = z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, 'Use YYYY-MM, e.g. 2027-02');
+const month = z.string().regex(MONTH_PATTERN, 'Use YYYY-MM, e.g. 2027-02');
 const day = z.string().regex(/^\d{4}-(0[1-9]|1[0-2])-(0[1-9]|[12]\d|3[01])$/, 'Use YYYY-MM-DD, e.g. 2027-01-31');
 
 /** Most a line may carry: 5,000 t of one product (a bound on slips, not on farms). */
@@ -17,6 +18,9 @@ export const MAX_LINE_TONNES = 5000;
 export const LARGE_BOOKING_FACTOR = 3;
 
 /** The treasurer opens (or changes) a season's booking round. */
+/** Highest VAT rate on fertiliser a booking round takes, %; above it the rate is taken for a slip (common practice, no source). */
+export const MAX_VAT_PCT = 50;
+
 export const bookingRoundSchema = z.strictObject({
   season: seasonLabelSchema,
   budgetId: idSchema,
@@ -24,7 +28,7 @@ export const bookingRoundSchema = z.strictObject({
   /** % of the net value; default: the budget's booking plan prepayment discount. */
   discountPct: z.number().min(0, 'A discount cannot be negative').max(50, 'A discount above 50 % is not plausible').optional(),
   /** VAT on fertiliser, % (a setting: rates differ by country and change). */
-  vatPct: z.number().min(0, 'VAT cannot be negative').max(50, 'A VAT rate above 50 % is not plausible'),
+  vatPct: z.number().min(0, 'VAT cannot be negative').max(MAX_VAT_PCT, `A VAT rate above ${MAX_VAT_PCT} % is not plausible`),
 });
 export type BookingRoundInput = z.output<typeof bookingRoundSchema>;
 

@@ -4,11 +4,12 @@
  */
 import { z } from 'zod';
 import { idSchema } from './ids.js';
+import { currencySchema, MONTH_PATTERN, SEASON_YEARS, TEXT_MAX } from './field-limits.js';
 
 /** A % price change: above −100 % (a price cannot fall to zero) and at most +500 %. */
 export const pctChangeSchema = z.number().gt(-100, 'A price change must be above −100 %').max(500, 'A price change above +500 % is not plausible');
-const itemCode = z.string().trim().min(1).max(40);
-const month = z.string().regex(/^\d{4}-(0[1-9]|1[0-2])$/, 'Use YYYY-MM, e.g. 2026-08');
+const itemCode = z.string().trim().min(1).max(TEXT_MAX.code);
+const month = z.string().regex(MONTH_PATTERN, 'Use YYYY-MM, e.g. 2026-08');
 const kg = z.number().nonnegative('Use a number of kg ≥ 0').max(1e12);
 
 const nutrientRecord = <T extends z.ZodType>(v: T) => z.strictObject({ nitrogen: v, phosphate: v, potash: v });
@@ -30,7 +31,7 @@ export const budgetSourceSchema = z.discriminatedUnion('kind', [
     runId: idSchema,
     prices: z.record(itemCode, z.number().positive('An expected price must be above 0')).default({}),
     /** Season (first calendar year) projected; default the run's last season + 1. */
-    season: z.number().int().min(1900).max(2200).optional(),
+    season: z.number().int().min(SEASON_YEARS.min).max(SEASON_YEARS.max).optional(),
     /** Model item of each nutrient; default the fertiliser item carrying only that nutrient at 100 %. */
     items: z.strictObject({ nitrogen: itemCode, phosphate: itemCode, potash: itemCode }).partial().optional(),
   }),
@@ -100,7 +101,7 @@ export const budgetProductChoiceSchema = z.strictObject({
 
 export const budgetInputSchema = z
   .strictObject({
-    name: z.string().trim().min(1, 'Name the budget').max(120),
+    name: z.string().trim().min(1, 'Name the budget').max(TEXT_MAX.name),
     source: budgetSourceSchema,
     /** Products to plan with; default every active product. */
     products: z.array(budgetProductChoiceSchema).min(1, 'Choose at least one product').max(50).optional(),
@@ -128,17 +129,17 @@ export type BudgetOptions = z.output<typeof budgetOptionsSchema>;
 
 export const fertiliserProductSchema = z
   .strictObject({
-    name: z.string().trim().min(1, 'Name the product').max(120),
+    name: z.string().trim().min(1, 'Name the product').max(TEXT_MAX.name),
     nPct: z.number().min(0).max(100).default(0),
     p2o5Pct: z.number().min(0).max(100).default(0),
     k2oPct: z.number().min(0).max(100).default(0),
     form: z.enum(['solid', 'liquid', 'gas']),
     pricePerT: z.number().positive('The price per tonne must be above 0').max(1e6),
-    currency: z.string().trim().regex(/^[A-Z]{3}$/, 'Use a three-letter ISO 4217 code such as EUR'),
+    currency: currencySchema,
     lotT: z.number().positive('The lot size must be above 0 t').max(1e5),
-    supplier: z.string().trim().max(120).default(''),
-    gradeSource: z.string().trim().max(300).default(''),
-    priceNote: z.string().trim().max(300).default(''),
+    supplier: z.string().trim().max(TEXT_MAX.name).default(''),
+    gradeSource: z.string().trim().max(TEXT_MAX.productNote).default(''),
+    priceNote: z.string().trim().max(TEXT_MAX.productNote).default(''),
     active: z.boolean().default(true),
   })
   .superRefine((p, ctx) => {

@@ -5,7 +5,7 @@
  */
 import { z } from 'zod';
 import { idSchema } from './ids.js';
-import { currencySchema, numberInMessage, TEXT_MAX, VALUE_MAX } from './field-limits.js';
+import { currencySchema, MONTH_PATTERN, numberInMessage, TEXT_MAX, VALUE_MAX } from './field-limits.js';
 
 /** Our own words for where a contract stands. */
 export const CONTRACT_STATUSES = ['offered', 'signed', 'delivered', 'cancelled'] as const;
@@ -26,8 +26,7 @@ export const priceFromCents = (cents: number): number => cents / MINOR_PER_MAJOR
 /** A typed price as stored: 205.5 → 20550 (rounded to the cent). */
 export const priceToCents = (price: number): number => Math.round(price * MINOR_PER_MAJOR);
 
-/** A month as YYYY-MM. */
-export const MONTH_PATTERN = /^\d{4}-(0[1-9]|1[0-2])$/;
+export { MONTH_PATTERN };
 const month = (what: string) => z.string({ error: `Enter the ${what} month as YYYY-MM` }).trim().regex(MONTH_PATTERN, `Enter the ${what} month as YYYY-MM, e.g. 2026-08`);
 
 export const contractSchema = z

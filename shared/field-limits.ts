@@ -1,5 +1,5 @@
 /**
- * The bounds of what the co-op's data keeps, declared once: the API schemas (data-schemas.ts,
+ * The bounds and formats of what the co-op's data keeps, declared once: the API schemas (data-schemas.ts,
  * contract-schemas.ts, schemas.ts, …), the import row checkers (server/imports/) and the client's
  * forms and grids all take their limits from here, so a form, a file and a request are refused at
  * the same value. Plain data, no Node imports.
@@ -55,6 +55,9 @@ export const VALUE_MAX = {
   /** A contract's price per unit of the item, in the contract's currency. */
   contractPrice: 1e6,
 } as const;
+
+/** A month as YYYY-MM (contract windows, booking plans). */
+export const MONTH_PATTERN = /^\d{4}-(0[1-9]|1[0-2])$/;
 
 /** A currency as stored: three upper-case letters (ISO 4217 style). */
 export const CURRENCY_CODE = /^[A-Z]{3}$/;

@@ -1,6 +1,10 @@
 import { z } from 'zod';
+import { TEXT_MAX } from './field-limits.js';
 
-const itemCode = z.string().trim().min(1).max(40);
+const itemCode = z.string().trim().min(1).max(TEXT_MAX.code);
+
+/** Most seasons a model run back-tests (rolling origin). */
+export const MAX_BACKTEST_SEASONS = 10;
 
 /**
  * How the forecasting model is specified: 'per-hectare' = every netput per hectare of the farm's
@@ -49,12 +53,12 @@ export const modelDefinitionSchema = z
     form: z.enum(['nq', 'gl']).default('nq'),
     curvature: z.enum(['auto', 'impose', 'check']).default('auto'),
     /** First and last season label of the sample (inclusive); null means the data's first or last. */
-    fromSeason: z.string().trim().max(20).nullable().default(null),
-    toSeason: z.string().trim().max(20).nullable().default(null),
+    fromSeason: z.string().trim().max(TEXT_MAX.seasonLabel).nullable().default(null),
+    toSeason: z.string().trim().max(TEXT_MAX.seasonLabel).nullable().default(null),
     /** Farm codes in the sample; null means every farm. */
-    farms: z.array(z.string().trim().min(1).max(40)).min(1).nullable().default(null),
+    farms: z.array(z.string().trim().min(1).max(TEXT_MAX.code)).min(1).nullable().default(null),
     /** How many of the last seasons to back-test (rolling origin); 0 turns it off. */
-    backtestSeasons: z.number().int().min(0).max(10).default(5),
+    backtestSeasons: z.number().int().min(0).max(MAX_BACKTEST_SEASONS).default(5),
     /** The forecasting model's specification; by default per hectare when land is a fixed factor. */
     spec: z.enum(FORECAST_SPECS).optional(),
   })
@@ -70,7 +74,7 @@ export const modelDefinitionSchema = z
 export type ModelDefinition = z.output<typeof modelDefinitionSchema>;
 
 export const modelCreateSchema = z.object({
-  name: z.string().trim().min(1, 'Name the model').max(120),
+  name: z.string().trim().min(1, 'Name the model').max(TEXT_MAX.name),
   definition: modelDefinitionSchema,
 });
 

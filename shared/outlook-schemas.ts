@@ -4,8 +4,9 @@
  */
 import { z } from 'zod';
 import { idSchema, idTextSchema } from './ids.js';
+import { currencySchema, numberInMessage, TEXT_MAX } from './field-limits.js';
 
-const itemCode = z.string().trim().min(1, 'Name the item').max(40);
+const itemCode = z.string().trim().min(1, 'Name the item').max(TEXT_MAX.code);
 const positive = (what: string) => z.number({ error: `Enter ${what}` }).positive(`${what[0]!.toUpperCase()}${what.slice(1)} must be more than 0`).max(1e9);
 
 export const seasonLabelSchema = z
@@ -49,7 +50,7 @@ export const expectationSettingSchema = z.object({
   item: itemCode,
   method: methodSchema,
   band: bandSchema.optional(),
-  note: z.string().trim().max(2000).optional(),
+  note: z.string().trim().max(TEXT_MAX.expectationNote).optional(),
 });
 
 export const expectationsBodySchema = z
@@ -58,15 +59,15 @@ export const expectationsBodySchema = z
 
 export const outlookCreateSchema = z.object({
   season: seasonLabelSchema,
-  title: z.string().trim().min(1).max(160).optional(),
+  title: z.string().trim().min(1).max(TEXT_MAX.outlookTitle).optional(),
   modelRunId: idSchema.nullable().optional(),
 });
 
 export const outlookPatchSchema = z
   .object({
-    title: z.string().trim().min(1, 'Enter a title').max(160),
+    title: z.string().trim().min(1, 'Enter a title').max(TEXT_MAX.outlookTitle),
     modelRunId: idSchema.nullable(),
-    commentary: z.string().max(20000, 'Keep the commentary under 20,000 characters'),
+    commentary: z.string().max(TEXT_MAX.outlookCommentary, `Keep the commentary under ${numberInMessage(TEXT_MAX.outlookCommentary)} characters`),
     scenarioRule: z.enum(['margin', 'uniform']),
     draws: z.number().int().min(500, 'Use at least 500 draws').max(20000, 'Use at most 20,000 draws'),
     seed: z.number().int().min(1).max(2 ** 31 - 1),
@@ -76,7 +77,7 @@ export const outlookPatchSchema = z
 
 export const publishSchema = z.object({
   /** Replaces the draft's commentary before publishing, when given. */
-  commentary: z.string().max(20000).optional(),
+  commentary: z.string().max(TEXT_MAX.outlookCommentary).optional(),
   /** false: publish without e-mailing members (e.g. an outlook entered after its season). */
   notifyMembers: z.boolean().default(true),
   /** The planner publishes although the model did not beat the plain per-hectare rule for some item (the warning is kept). */
@@ -90,9 +91,9 @@ export const futuresQuoteSchema = z.object({
   seasonId: idSchema,
   contract: z.string({ error: 'Name the contract' }).trim().min(1, 'Name the contract').max(80),
   quote: positive('the quote'),
-  currency: z.string().trim().regex(/^[A-Z]{3}$/, 'Use a three-letter ISO 4217 code such as EUR'),
+  currency: currencySchema,
   quotedOn: z.iso.date('Use a date such as 2026-11-20'),
-  source: z.string().trim().min(1, 'Name the source').max(200),
+  source: z.string().trim().min(1, 'Name the source').max(TEXT_MAX.source),
 });
 
 export const futuresListQuerySchema = z.object({

@@ -9,6 +9,7 @@
 import { DateTime } from 'luxon';
 import type { BookingMonth, BookingPlan, CashMonth, CashSchedule, Tranche } from '../../shared/budget-types.js';
 import { BudgetInputError } from './nutrients.js';
+import { MONTH_PATTERN as MONTH } from '../../shared/field-limits.js';
 
 export type { BookingMonth, BookingPlan, CashMonth, CashSchedule, Tranche } from '../../shared/budget-types.js';
 
@@ -19,7 +20,6 @@ export interface CashLine {
   pricePerT: number;
 }
 
-const MONTH = /^\d{4}-(0[1-9]|1[0-2])$/;
 
 function monthStart(month: string): DateTime {
   return DateTime.fromFormat(month, 'yyyy-MM', { zone: 'utc' });

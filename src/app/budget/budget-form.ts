@@ -1,5 +1,6 @@
 import { type AbstractControl, type FormArray, type FormGroup, type NonNullableFormBuilder, type ValidationErrors, Validators } from '@angular/forms';
 import type { UnitSystem } from '../../../shared/units';
+import { MONTH_PATTERN as MONTH, SEASON_YEARS } from '../../../shared/field-limits';
 import { bookedShareSchema, bookingPlanSchema, budgetInputSchema, pctChangeSchema, scenarioSchema } from '../../../shared/budget-schemas';
 import { zodValidator } from '../shared/zod-validator';
 import { DEFAULT_SEASON_CALENDAR, defaultBookingMonths, type SeasonCalendar } from '../../../shared/season-calendar';
@@ -24,7 +25,6 @@ import { NUTRIENTS } from './budget-api-types';
  * functions between it and the API's metric BudgetInput.
  */
 
-const MONTH = /^\d{4}-(0[1-9]|1[0-2])$/;
 
 export interface SourceValue {
   kind: SourceKind;
@@ -432,7 +432,7 @@ export function buildBudgetForm(fb: NonNullableFormBuilder, v: BudgetFormValue) 
       sideBySide: [v.source.sideBySide],
       runId: fb.control<number | null>(v.source.runId),
       contractOutlookId: fb.control<number | null>(v.source.contractOutlookId),
-      season: fb.control<number | null>(v.source.season, [Validators.min(1900), Validators.max(2200)]),
+      season: fb.control<number | null>(v.source.season, [Validators.min(SEASON_YEARS.min), Validators.max(SEASON_YEARS.max)]),
       nitrogen: fb.control<number | null>(v.source.nitrogen, nonNegative),
       phosphate: fb.control<number | null>(v.source.phosphate, nonNegative),
       potash: fb.control<number | null>(v.source.potash, nonNegative),

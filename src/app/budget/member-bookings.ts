@@ -10,7 +10,7 @@ import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { ACCESS } from '../core/access';
 import { CautionNote } from '../shared/caution-note';
-import type { BookingReport, BookingRoundView, NutrientComparison } from '../../../shared/booking-types';
+import { MAX_VAT_PCT, type BookingReport, type BookingRoundView, type NutrientComparison } from '../../../shared/booking-types';
 import { day, kg, money, month, pct } from '../my-farm/bookings/booking-format';
 import { BookingsApi } from './bookings-api';
 
@@ -63,7 +63,7 @@ export class MemberBookings {
     season: new FormControl('', { nonNullable: true, validators: [Validators.required, Validators.pattern(/^\d{4}\/\d{2}$/)] }),
     budgetId: new FormControl<number | null>(null, { validators: [Validators.required] }),
     discountDeadline: new FormControl('', { nonNullable: true, validators: [Validators.required, Validators.pattern(/^\d{4}-\d{2}-\d{2}$/)] }),
-    vatPct: new FormControl<number | null>(null, { validators: [Validators.required, Validators.min(0), Validators.max(50)] }),
+    vatPct: new FormControl<number | null>(null, { validators: [Validators.required, Validators.min(0), Validators.max(MAX_VAT_PCT)] }),
   });
 
   protected readonly fmt = { money, kg, pct, day, month };

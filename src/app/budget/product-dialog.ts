@@ -6,6 +6,7 @@ import { MAT_DIALOG_DATA, MatDialog, MatDialogActions, MatDialogClose, MatDialog
 import { MatOption, MatSelect } from '@angular/material/select';
 import { firstValueFrom } from 'rxjs';
 import type { UnitSystem } from '../../../shared/units';
+import { TEXT_MAX } from '../../../shared/field-limits';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
 import { applyServerDetails } from '../shared/zod-validator';
@@ -55,7 +56,7 @@ export class ProductDialog {
 
   readonly #fb = inject(NonNullableFormBuilder);
   protected readonly form = this.#fb.group({
-    name: [this.data.product?.name ?? '', [Validators.required, Validators.maxLength(120)]],
+    name: [this.data.product?.name ?? '', [Validators.required, Validators.maxLength(TEXT_MAX.name)]],
     grade: this.#fb.group(
       {
         nPct: this.#fb.control<number | null>(this.data.product?.nPct ?? 0, [Validators.min(0), Validators.max(100)]),
@@ -67,9 +68,9 @@ export class ProductDialog {
     form: [this.data.product?.form ?? ('solid' as ProductForm), Validators.required],
     price: this.#fb.control<number | null>(this.data.product ? round(pricePerTToShown(this.data.product.pricePerT, this.data.system)) : null, [Validators.required, Validators.min(0.000001)]),
     lot: this.#fb.control<number | null>(this.data.product ? round(productToShown(this.data.product.lotT, this.data.system)) : null, [Validators.required, Validators.min(0.000001)]),
-    supplier: [this.data.product?.supplier ?? '', Validators.maxLength(120)],
-    gradeSource: [this.data.product?.gradeSource ?? '', Validators.maxLength(300)],
-    priceNote: [this.data.product?.priceNote ?? '', Validators.maxLength(300)],
+    supplier: [this.data.product?.supplier ?? '', Validators.maxLength(TEXT_MAX.name)],
+    gradeSource: [this.data.product?.gradeSource ?? '', Validators.maxLength(TEXT_MAX.productNote)],
+    priceNote: [this.data.product?.priceNote ?? '', Validators.maxLength(TEXT_MAX.productNote)],
     active: [this.data.product?.active ?? true],
   });
   protected readonly saving = signal(false);

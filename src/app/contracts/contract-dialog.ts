@@ -5,6 +5,7 @@ import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { Item, Season } from '../../../shared/api-types';
 import { CONTRACT_STATUSES, CONTRACT_STATUS_LABELS, contractSchema, type ContractRow } from '../../../shared/contract-schemas';
+import { TEXT_MAX } from '../../../shared/field-limits';
 import { saveAndClose } from '../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
 import { zodValidator } from '../shared/zod-validator';
@@ -36,6 +37,7 @@ export class ContractDialog {
   protected readonly data = inject<ContractDialogData>(MAT_DIALOG_DATA);
   protected readonly outputs = this.data.items.filter((i) => i.role === 'output');
   protected readonly seasonsNewestFirst = [...this.data.seasons].reverse();
+  protected readonly textMax = TEXT_MAX;
   protected readonly statuses = CONTRACT_STATUSES.map((s) => ({ value: s, label: CONTRACT_STATUS_LABELS[s] }));
   readonly #c = this.data.contract;
   readonly #shape = contractSchema.shape;

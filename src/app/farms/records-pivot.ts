@@ -1,6 +1,7 @@
 import type { FarmRecordRow, Item, Season } from '../../../shared/api-types';
 import type { FactorRow, LandRow } from '../data-desk/data-desk-api';
 import { implausibleQuantity, quantityHistory } from '../../../shared/plausibility';
+import { numberInMessage, VALUE_MAX } from '../../../shared/field-limits';
 
 /**
  * One season of a farm: land, a quantity per item (`i<itemId>`) and the level of each other fixed
@@ -40,7 +41,7 @@ export function pivotRecords(
     });
 }
 
-/** What is wrong with a quantity, land or other fixed-factor cell, in the shared schema's words, or null. */
+/** What is wrong with a quantity, land or other fixed-factor cell, in the shared schema's words and limits (shared/field-limits.ts), or null. */
 export function recordCellProblem(kind: 'quantity' | 'land' | 'factor', value: unknown): string | null {
   if (value === null || value === undefined || value === '') {
     return kind === 'land' ? 'Land cannot be left empty: enter the hectares farmed that season' : null;
@@ -49,16 +50,16 @@ export function recordCellProblem(kind: 'quantity' | 'land' | 'factor', value: u
   if (!Number.isFinite(n)) return `${JSON.stringify(String(value))} is not a number: write it with a point for decimals`;
   if (kind === 'land') {
     if (!(n > 0)) return 'Land must be more than 0 ha';
-    if (n > 1e6) return 'Land must be at most 1,000,000 ha';
+    if (n > VALUE_MAX.landHa) return `Land must be at most ${numberInMessage(VALUE_MAX.landHa)} ha`;
     return null;
   }
   if (kind === 'factor') {
     if (n < 0) return 'A fixed factor cannot be negative';
-    if (n > 1e9) return 'The value is larger than the largest kept (1,000,000,000)';
+    if (n > VALUE_MAX.factor) return `The value is larger than the largest kept (${numberInMessage(VALUE_MAX.factor)})`;
     return null;
   }
   if (n < 0) return 'A quantity cannot be negative (inputs are recorded as positive amounts used)';
-  if (n > 1e12) return 'The quantity is larger than the largest kept (1,000,000,000,000)';
+  if (n > VALUE_MAX.quantity) return `The quantity is larger than the largest kept (${numberInMessage(VALUE_MAX.quantity)})`;
   return null;
 }
 

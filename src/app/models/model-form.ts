@@ -8,7 +8,8 @@ import { MatInput } from '@angular/material/input';
 import { MatRadioButton, MatRadioGroup } from '@angular/material/radio';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { FarmSummary, Item, Season } from '../../../shared/api-types';
-import { FORECAST_SPECS, modelDefinitionSchema, SPEC_WORDS, type ForecastSpecName, type ModelDefinition } from '../../../shared/model-schemas';
+import { TEXT_MAX } from '../../../shared/field-limits';
+import { FORECAST_SPECS, MAX_BACKTEST_SEASONS, modelDefinitionSchema, SPEC_WORDS, type ForecastSpecName, type ModelDefinition } from '../../../shared/model-schemas';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { applyServerDetails } from '../shared/zod-validator';
 import { CURVATURE_LABELS } from './model-types';
@@ -64,7 +65,7 @@ export class ModelForm {
   protected readonly specChoices = FORECAST_SPECS;
 
   protected readonly form = inject(NonNullableFormBuilder).group({
-    name: ['', [Validators.required, Validators.maxLength(120)]],
+    name: ['', [Validators.required, Validators.maxLength(TEXT_MAX.name)]],
     items: [[] as string[]],
     numeraire: [''],
     land: [true],
@@ -77,7 +78,7 @@ export class ModelForm {
     toSeason: [''],
     allFarms: [true],
     farms: [[] as string[]],
-    backtestSeasons: [5, [Validators.required, Validators.min(0), Validators.max(10)]],
+    backtestSeasons: [5, [Validators.required, Validators.min(0), Validators.max(MAX_BACKTEST_SEASONS)]],
     /** Per hectare by default; pooled when the planner chooses it or land is left out. */
     spec: ['per-hectare' as ForecastSpecName],
   });

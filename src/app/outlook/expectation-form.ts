@@ -7,6 +7,7 @@ import { MatError, MatFormField, MatHint, MatLabel, MatSuffix } from '@angular/m
 import { MatInput } from '@angular/material/input';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { bandSchema, methodSchema } from '../../../shared/outlook-schemas';
+import { TEXT_MAX } from '../../../shared/field-limits';
 import type { BandRule, ExpectationKind, ExpectationMethod, ExpectationSetting } from './outlook-api-types';
 import { FieldError } from '../shared/field-error';
 
@@ -182,6 +183,7 @@ export class ExpectationForm {
   readonly cancelled = output<void>();
 
   protected readonly methods = METHOD_CHOICES;
+  protected readonly textMax = TEXT_MAX;
   protected readonly bands = BAND_CHOICES;
 
   protected readonly form = inject(NonNullableFormBuilder).group({

@@ -13,6 +13,7 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
 import type { Item, Season } from '../../../shared/api-types';
+import { TEXT_MAX } from '../../../shared/field-limits';
 import { ACCESS } from '../core/access';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
@@ -96,6 +97,7 @@ export class OutlookEditor {
   protected readonly items = httpResource<Item[]>(() => '/api/items');
   protected readonly seasons = httpResource<Season[]>(() => '/api/seasons');
 
+  protected readonly textMax = TEXT_MAX;
   protected readonly d = computed(() => (this.draft.hasValue() ? this.draft.value() : null));
   /** The season's months in the co-op's calendar, as the budget books them. */
   protected readonly calendarLine = computed(() => {

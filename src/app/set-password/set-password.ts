@@ -16,6 +16,7 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { Router, RouterLink } from '@angular/router';
 import type { TokenInfo } from '../../../shared/api-types';
 import { PASSWORD_MIN_LENGTH } from '../../../shared/schemas';
+import { TEXT_MAX } from '../../../shared/field-limits';
 import { ApiRequestError, errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { PublicFrame } from '../shared/public-frame';
@@ -89,7 +90,7 @@ export class SetPassword {
 
   protected readonly form = inject(NonNullableFormBuilder).group(
     {
-      password: ['', [Validators.required, Validators.minLength(PASSWORD_MIN_LENGTH), Validators.maxLength(200)]],
+      password: ['', [Validators.required, Validators.minLength(PASSWORD_MIN_LENGTH), Validators.maxLength(TEXT_MAX.password)]],
       confirm: ['', Validators.required],
     },
     { validators: passwordsMatch },

@@ -6,6 +6,7 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import type { FarmSummary, UserSummary } from '../../../../shared/api-types';
 import { ROLES, ROLE_LABELS, type Role } from '../../../../shared/roles';
 import { emailSchema } from '../../../../shared/schemas';
+import { TEXT_MAX } from '../../../../shared/field-limits';
 import { ApiRequestError, errorMessage } from '../../core/api-error';
 import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
 import { UsersApi } from './users-api';
@@ -57,7 +58,7 @@ export class UserDialog {
 
   protected readonly form = inject(NonNullableFormBuilder).group({
     email: [this.data.user?.email ?? '', [Validators.required, zodValidator(emailSchema)]],
-    name: [this.data.user?.name ?? '', [Validators.required, Validators.maxLength(120)]],
+    name: [this.data.user?.name ?? '', [Validators.required, Validators.maxLength(TEXT_MAX.name)]],
     role: [this.data.user?.role ?? ('member' as Role), Validators.required],
     farmId: [this.data.user?.farmId ?? (null as number | null)],
   });

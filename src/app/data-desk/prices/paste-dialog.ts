@@ -14,6 +14,7 @@ import { MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import type { PriceRow } from '../../../../shared/api-types';
+import { TEXT_MAX } from '../../../../shared/field-limits';
 import { ApiRequestError, errorMessage } from '../../core/api-error';
 import { DataDeskApi } from '../data-desk-api';
 import { PASTE_COLUMN_LABEL, PRICE_PASTE_COLUMNS, parseTable, problemsFromServer, readPastedPrices, type PasteProblem } from '../paste';
@@ -67,6 +68,7 @@ export class PasteDialog {
   protected readonly order = PRICE_PASTE_COLUMNS.map((c) => PASTE_COLUMN_LABEL[c].toLowerCase()).join(', ');
   protected readonly shownColumns = [...PRICE_PASTE_COLUMNS];
   protected readonly labels = PASTE_COLUMN_LABEL;
+  protected readonly textMax = TEXT_MAX;
 
   protected readonly parsed = computed(() => {
     const result = readPastedPrices(parseTable(this.#text()), this.data.lookups, { currency: this.data.currency, source: this.#source(), decimalMark: this.data.decimalMark });

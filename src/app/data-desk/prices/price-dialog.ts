@@ -8,6 +8,7 @@ import { DateTime } from 'luxon';
 import type { PriceRow } from '../../../../shared/api-types';
 import { markName, parseNumber, type DecimalMark } from '../../../../shared/cell-parsers';
 import { priceSchema } from '../../../../shared/data-schemas';
+import { TEXT_MAX } from '../../../../shared/field-limits';
 import { saveAndClose } from '../../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 import { zodValidator } from '../../shared/zod-validator';
@@ -53,6 +54,7 @@ export class PriceDialog {
   readonly #dialogRef = inject<MatDialogRef<PriceDialog, PriceRow[]>>(MatDialogRef);
   protected readonly data = inject<PriceDialogData>(MAT_DIALOG_DATA);
   protected readonly lookups = this.data.lookups;
+  protected readonly textMax = TEXT_MAX;
   protected readonly seasonsNewestFirst = [...this.lookups.seasons].reverse();
 
   protected readonly form = inject(NonNullableFormBuilder).group({

@@ -30,6 +30,7 @@ import type {
 } from 'ag-grid-community';
 import { firstValueFrom } from 'rxjs';
 import type { CoopSummary, PriceRow, PriceSeries } from '../../../../shared/api-types';
+import { TEXT_MAX } from '../../../../shared/field-limits';
 import { NUMBER_FILTER_OPS, PRICE_SORT_COLUMNS, PRICE_TEXT_FILTERS, TEXT_FILTER_OPS, type PriceSortColumn } from '../../../../shared/price-query';
 import { ACCESS, roleAllows } from '../../core/access';
 import { errorMessage } from '../../core/api-error';
@@ -250,7 +251,7 @@ export class PricesPage {
         minWidth: 120,
         tooltipField: 'source',
         cellEditor: 'agTextCellEditor',
-        cellEditorParams: { maxLength: 200, ...validate('source') },
+        cellEditorParams: { maxLength: TEXT_MAX.source, ...validate('source') },
       },
       {
         field: 'observedOn',

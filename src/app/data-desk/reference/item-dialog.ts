@@ -5,6 +5,7 @@ import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { Item } from '../../../../shared/api-types';
 import { itemSchema } from '../../../../shared/data-schemas';
+import { TEXT_MAX } from '../../../../shared/field-limits';
 import { saveAndClose } from '../../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 import { zodValidator } from '../../shared/zod-validator';
@@ -41,6 +42,7 @@ export class ItemDialog {
   readonly #dialogRef = inject<MatDialogRef<ItemDialog, Item>>(MatDialogRef);
   protected readonly item = inject<Item | null>(MAT_DIALOG_DATA);
   protected readonly categories = CATEGORIES;
+  protected readonly textMax = TEXT_MAX;
 
   protected readonly form = inject(NonNullableFormBuilder).group({
     code: [this.item?.code ?? '', [Validators.required, zodValidator(shape.code)]],

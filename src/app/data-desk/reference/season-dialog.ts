@@ -5,6 +5,7 @@ import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { Season } from '../../../../shared/api-types';
 import { seasonSchema } from '../../../../shared/data-schemas';
+import { SEASON_LABEL_MIN, SEASON_YEARS, TEXT_MAX } from '../../../../shared/field-limits';
 import { saveAndClose } from '../../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 import { DataDeskApi } from '../data-desk-api';
@@ -30,21 +31,22 @@ export class SeasonDialog {
   protected readonly data = inject<SeasonDialogData>(MAT_DIALOG_DATA);
   protected readonly season = this.data.season;
   protected readonly months = MONTHS;
+  protected readonly textMax = TEXT_MAX;
 
   readonly #last = this.data.seasons[this.data.seasons.length - 1];
   readonly #startYear = this.season?.startYear ?? (this.#last ? this.#last.startYear + 1 : new Date().getFullYear());
   readonly #startMonth = this.season?.startMonth ?? this.#last?.startMonth ?? 7;
 
   protected readonly form = inject(NonNullableFormBuilder).group({
-    startYear: [this.#startYear, [Validators.required, Validators.min(1900), Validators.max(2200)]],
+    startYear: [this.#startYear, [Validators.required, Validators.min(SEASON_YEARS.min), Validators.max(SEASON_YEARS.max)]],
     startMonth: [this.#startMonth, Validators.required],
-    label: [this.season?.label ?? suggestedSeasonLabel(this.#startYear, this.#startMonth), [Validators.required, Validators.minLength(4), Validators.maxLength(20)]],
+    label: [this.season?.label ?? suggestedSeasonLabel(this.#startYear, this.#startMonth), [Validators.required, Validators.minLength(SEASON_LABEL_MIN), Validators.maxLength(TEXT_MAX.seasonLabel)]],
   });
   readonly #value = toSignal(this.form.valueChanges, { initialValue: this.form.getRawValue() });
   /** The season's first and last day, through luxon. */
   protected readonly span = computed(() => {
     const v = this.#value();
-    if (!v.startYear || !v.startMonth || v.startYear < 1900 || v.startYear > 2200) return null;
+    if (!v.startYear || !v.startMonth || v.startYear < SEASON_YEARS.min || v.startYear > SEASON_YEARS.max) return null;
     return seasonSpan({ startYear: v.startYear, startMonth: v.startMonth }).text;
   });
   protected readonly clash = computed(() => {
