@@ -3,6 +3,7 @@
  * a message that quotes the cell; the caller adds the row and column.
  */
 import { DateTime } from 'luxon';
+import { seasonLabel } from './season-calendar.js';
 
 export type Parsed<T> = { ok: true; value: T } | { ok: false; message: string };
 
@@ -130,7 +131,8 @@ export interface SeasonRef {
   startYear: number;
 }
 
-const SEASON = /^(\d{4})(?:\s*[/-]\s*(\d{2}|\d{4}))?$/;
+/** A season as a cell writes it: 2014/15, 2014-15, 2014/2015 or 2014; group 1 is the first year. */
+export const SEASON_CELL = /^(\d{4})(?:\s*[/-]\s*(\d{2}|\d{4}))?$/;
 
 /**
  * A season by its label (2014/15) or its first year (2014, as in the fit command's layout); 2014-15
@@ -141,13 +143,13 @@ export function parseSeason(raw: string, seasons: readonly SeasonRef[], byLabel:
   if (s === '') return fail('empty cell');
   const labelled = byLabel.get(s.toLowerCase());
   if (labelled) return ok(labelled);
-  const m = SEASON.exec(s);
+  const m = SEASON_CELL.exec(s);
   if (!m) return fail(`${quote(s)} is not a season: write it as 2014/15 or 2014`);
   const start = Number(m[1]);
   if (m[2]) {
     const end = Number(m[2]);
     const follows = m[2].length === 2 ? end === (start + 1) % 100 : end === start + 1;
-    if (!follows) return fail(`${quote(s)} is not a season: the second year must follow the first (${start}/${String((start + 1) % 100).padStart(2, '0')})`);
+    if (!follows) return fail(`${quote(s)} is not a season: the second year must follow the first (${seasonLabel(start)})`);
   }
   const found = byYear.get(start);
   if (found) return ok(found);

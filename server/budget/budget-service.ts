@@ -12,7 +12,7 @@ import { getSettings } from '../settings/settings-service.js';
 import { getRun } from '../models/models-service.js';
 import { isEstimationInputError, type FitResult, type NetputDataset } from '../estimation/index.js';
 import type { UnitSystem } from '../../shared/units.js';
-import { monthsOutsideInputs, monthWords, seasonWindows, type SeasonCalendar } from '../../shared/season-calendar.js';
+import { monthsOutsideInputs, monthWords, seasonLabel, seasonWindows, type SeasonCalendar } from '../../shared/season-calendar.js';
 import type { BudgetInput, BudgetSource } from '../../shared/budget-schemas.js';
 import { computeBudget, type BudgetResult, type ProductCopy, type ResolvedSource } from './budget-compute.js';
 import { inUnits } from './budget-units.js';
@@ -59,7 +59,7 @@ async function resolveModelRun(db: Db, source: Extract<BudgetSource, { kind: 'mo
       dataHash: run.dataHash,
       runSoftwareVersion: run.softwareVersion,
       season: md.season,
-      seasonLabel: md.season === null ? null : `${md.season}/${String((md.season + 1) % 100).padStart(2, '0')}`,
+      seasonLabel: md.season === null ? null : seasonLabel(md.season),
       prices: md.prices,
       priceBasis: md.priceBasis,
       priceItems,

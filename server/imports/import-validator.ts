@@ -16,9 +16,10 @@ import type { ImportError, ImportKind, Lookups, PreviewRow, ValidationOptions, V
 import { ImportFileError } from './import-file-error.js';
 import { IMPORT_LIMITS, type ImportLimits } from './import-limits.js';
 import { columnLetter, fieldsFor, suggestMapping, type FieldDef } from './import-fields.js';
-import { parseNumber, parseSeason, quote, unescapeFormula, type DecimalMark, type Parsed, type SeasonRef } from '../../shared/cell-parsers.js';
+import { parseNumber, parseSeason, SEASON_CELL, quote, unescapeFormula, type DecimalMark, type Parsed, type SeasonRef } from '../../shared/cell-parsers.js';
 import { headerParts, priceUnitParts, sameUnit } from '../../shared/unit-names.js';
 import { VALUE_MAX } from '../../shared/field-limits.js';
+import { seasonLabel } from '../../shared/season-calendar.js';
 import { readTable, type TableMeta, type TableSink } from './table-reader.js';
 import { newBuiltWrites } from './packed-rows.js';
 import { fmt, type CheckContext, type DeliveryPointRef, type FarmRef, type Item, type NumberRule, type RowChecker } from './row-checker.js';
@@ -305,12 +306,12 @@ class Validator implements TableSink, CheckContext {
   seasonOf(n: number, s: string | undefined): SeasonRef | null {
     const season = this.required(n, 'season', s, this.season);
     if (season || !s) return season;
-    const m = /^(\d{4})(?:\s*[/-]\s*(\d{2}|\d{4}))?$/.exec(s.trim());
+    const m = SEASON_CELL.exec(s.trim());
     if (m && /^unknown season/.test((this.season(s) as { message: string }).message)) {
       const startYear = Number(m[1]);
       const known = this.unknownSeasons.get(startYear);
       if (known) known.rows++;
-      else this.unknownSeasons.set(startYear, { label: `${startYear}/${String((startYear + 1) % 100).padStart(2, '0')}`, startYear, row: n, rows: 1 });
+      else this.unknownSeasons.set(startYear, { label: seasonLabel(startYear), startYear, row: n, rows: 1 });
     }
     return null;
   }

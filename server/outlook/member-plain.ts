@@ -10,6 +10,7 @@ import { items, outlookVersionFarms, seasons } from '../db/schema/index.js';
 import type { FarmOutlook, ItemProjection, MemberPlain, OutlookSnapshot, PlainFertiliserLine } from '../../shared/outlook-types.js';
 import { bandCoverWords, SCENARIO_WORDS } from '../../shared/band-words.js';
 import { dayText } from '../../shared/number-format.js';
+import { seasonLabel } from '../../shared/season-calendar.js';
 
 /** The nutrient a fertiliser item carries entirely (100 % N, P2O5 or K2O), if it is one. */
 function nutrientOf(row: { category: string | null; nPct: number | null; p2o5Pct: number | null; k2oPct: number | null }): PlainFertiliserLine['nutrient'] | null {
@@ -30,8 +31,8 @@ async function seasonLabels(db: Db, years: number[]): Promise<Map<number, string
 export async function memberPlain(db: Db, versionId: number, s: OutlookSnapshot, farm: FarmOutlook | null): Promise<MemberPlain> {
   const { first, last } = s.model.sampleSeasons;
   const labels = await seasonLabels(db, [first, last]);
-  const firstLabel = labels.get(first) ?? `${first}/${String((first + 1) % 100).padStart(2, '0')}`;
-  const lastLabel = labels.get(last) ?? `${last}/${String((last + 1) % 100).padStart(2, '0')}`;
+  const firstLabel = labels.get(first) ?? seasonLabel(first);
+  const lastLabel = labels.get(last) ?? seasonLabel(last);
 
   // The co-op's land: the sum over the farms projected (a total, no farm's own figure).
   const parts = await db.select({ data: outlookVersionFarms.data }).from(outlookVersionFarms).where(eq(outlookVersionFarms.versionId, versionId));

@@ -1,4 +1,5 @@
 import { DateTime } from 'luxon';
+import { seasonLabel } from '../../../shared/season-calendar';
 
 /** The first and last day of a season (a crop or marketing year of twelve months), in UTC dates. */
 export function seasonSpan(season: { startYear: number; startMonth: number }): { start: DateTime; end: DateTime; text: string } {
@@ -11,7 +12,7 @@ export function seasonSpan(season: { startYear: number; startMonth: number }): {
 /** The usual label of a season: "2024/25" for a year that crosses New Year, "2024" for a calendar year. */
 export function suggestedSeasonLabel(startYear: number, startMonth: number): string {
   if (startMonth === 1) return String(startYear);
-  return `${startYear}/${String((startYear + 1) % 100).padStart(2, '0')}`;
+  return seasonLabel(startYear);
 }
 
 export const MONTHS = Array.from({ length: 12 }, (_, i) => ({ value: i + 1, name: DateTime.utc(2000, i + 1, 1).toFormat('LLLL') }));

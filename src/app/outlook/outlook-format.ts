@@ -1,4 +1,5 @@
 import { minus, priceText, quantityText } from '../../../shared/number-format';
+import { seasonLabel } from '../../../shared/season-calendar';
 import type { QuantitySummary } from './outlook-api-types';
 
 const nf = (min: number, max = min) => new Intl.NumberFormat('en-GB', { minimumFractionDigits: min, maximumFractionDigits: max });
@@ -75,7 +76,7 @@ export function shortHash(hash: string | null | undefined): string {
 /** The next season label after the latest one ("2025/26" → "2026/27"); the current year's season when none exists. */
 export function nextSeasonLabel(latestStartYear: number | null, now = new Date()): string {
   const y = latestStartYear !== null ? latestStartYear + 1 : now.getFullYear();
-  return `${y}/${String((y + 1) % 100).padStart(2, '0')}`;
+  return seasonLabel(y);
 }
 
 /**
