@@ -1,44 +1,60 @@
 import { ACCESS } from '../../shared/roles.js';
-import { DateTime } from 'luxon';
+import type { z } from 'zod';
 import { deliveryPointSchema, farmSchema, itemSchema, seasonSchema } from '../../shared/data-schemas.js';
-import { crudRoutes } from '../core/crud.js';
-import type { RouteDef } from '../core/routes.js';
+import { idParamSchema } from '../../shared/schemas.js';
+import type { Access, RouteDef } from '../core/routes.js';
+import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
-import { deliveryPoints, farms, items, seasons } from '../db/schema/index.js';
+import { listReference } from './reference-repository.js';
+import { createReference, removeReference, replaceReference, type ReferenceInput, type ReferenceKind } from './reference-service.js';
 
 const READ = ACCESS.reference;
 const WRITE = ACCESS.dataEdit;
 
-export const itemsRoutes = (ctx: AppContext): RouteDef[] =>
-  crudRoutes(ctx, {
-    entity: 'item',
-    label: 'item',
-    table: items,
-    orderBy: items.id,
-    createSchema: itemSchema,
-    toValues: (v) => ({ ...v, nPct: v.nPct ?? null, p2o5Pct: v.p2o5Pct ?? null, k2oPct: v.k2oPct ?? null }),
-    // Members read item names and units for their own records.
-    read: 'signed-in',
-    write: WRITE,
-  });
+/** Create, replace and delete one row of `kind`. */
+function writeRoutes<K extends ReferenceKind>(ctx: AppContext, kind: K, schema: z.ZodType<ReferenceInput[K]>): RouteDef[] {
+  return [
+    {
+      method: 'post',
+      path: '/',
+      access: WRITE,
+      handler: async (req, res) => {
+        const body = parse(schema, req.body, 'body');
+        res.status(201).json(await createReference(ctx.db, kind, body, req.user!.id));
+      },
+    },
+    {
+      method: 'put',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        const body = parse(schema, req.body, 'body');
+        res.json(await replaceReference(ctx.db, kind, id, body, req.user!.id));
+      },
+    },
+    {
+      method: 'delete',
+      path: '/:id',
+      access: WRITE,
+      handler: async (req, res) => {
+        const { id } = parse(idParamSchema, req.params, 'params');
+        await removeReference(ctx.db, kind, id, req.user!.id);
+        res.status(204).end();
+      },
+    },
+  ];
+}
 
-export const seasonsRoutes = (ctx: AppContext): RouteDef[] =>
-  crudRoutes(ctx, {
-    entity: 'season',
-    label: 'season',
-    table: seasons,
-    orderBy: seasons.startYear,
-    createSchema: seasonSchema,
-    toValues: (v) => ({ ...v, startsOn: DateTime.utc(v.startYear as number, v.startMonth as number, 1).toISODate() }),
-    read: 'signed-in',
-    write: WRITE,
-  });
+/** The list of `kind` (readable by `read`) and its writes. */
+function referenceRoutes<K extends ReferenceKind>(ctx: AppContext, kind: K, schema: z.ZodType<ReferenceInput[K]>, read: Access): RouteDef[] {
+  return [{ method: 'get', path: '/', access: read, cache: true, handler: async (_req, res) => res.json(await listReference(ctx.db, kind)) }, ...writeRoutes(ctx, kind, schema)];
+}
 
-export const deliveryPointsRoutes = (ctx: AppContext): RouteDef[] =>
-  crudRoutes(ctx, { entity: 'delivery-point', label: 'delivery point', table: deliveryPoints, orderBy: deliveryPoints.name, createSchema: deliveryPointSchema, read: READ, write: WRITE });
+/** Members read item names and units, and seasons, for their own records. */
+export const itemsRoutes = (ctx: AppContext): RouteDef[] => referenceRoutes(ctx, 'item', itemSchema, 'signed-in');
+export const seasonsRoutes = (ctx: AppContext): RouteDef[] => referenceRoutes(ctx, 'season', seasonSchema, 'signed-in');
+export const deliveryPointsRoutes = (ctx: AppContext): RouteDef[] => referenceRoutes(ctx, 'delivery-point', deliveryPointSchema, READ);
 
-/** Farm writes (the list with owners is GET /api/farms). */
-export const farmWriteRoutes = (ctx: AppContext): RouteDef[] =>
-  crudRoutes(ctx, { entity: 'farm', label: 'farm', table: farms, orderBy: farms.code, createSchema: farmSchema, read: READ, write: WRITE }).filter(
-    (r) => r.method !== 'get',
-  );
+/** Farm writes (the list with owners, narrowed for a member, is GET /api/farms in farms/farms-router.ts). */
+export const farmWriteRoutes = (ctx: AppContext): RouteDef[] => writeRoutes(ctx, 'farm', farmSchema);
