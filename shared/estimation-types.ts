@@ -2,6 +2,7 @@
  * Result shapes of the estimation engine (server/estimation) that the API answers with and the
  * screens read: plain data, no Node imports, so the client and the server share one declaration.
  */
+import type { BackTestResult, ForecastModel, ForecastSpec } from './forecast-types.js';
 
 /**
  * First-order (Karush–Kuhn–Tucker) conditions of the convexity-constrained maximum likelihood
@@ -161,4 +162,128 @@ export interface BacktestItem {
   mape: number;
   /** Mean of (predicted − actual) / actual, in % (positive: the model over-projects). */
   bias: number;
+}
+
+/** An evaluation point with every price and factor level filled in (server/estimation/results.ts). */
+export interface ResolvedPoint {
+  /** Layout item order. */
+  prices: number[];
+  /** Layout factor order (the trend last, when fitted). */
+  fixed: number[];
+}
+
+/** The n×n price-elasticity matrix at a point with delta-method standard errors (`elasticitiesAt`). */
+export interface ElasticityResult {
+  items: string[];
+  point: ResolvedPoint;
+  /** Fitted netputs at the point (the y in e_ij = ∂y_i/∂p_j · p_j / y_i). */
+  netputs: number[];
+  /** [i][j] = ∂ln|y_i|/∂ln p_j; every row sums to zero (homogeneity). */
+  elasticities: number[][];
+  standardErrors: number[][];
+}
+
+/** Shadow value ∂π/∂z of one fixed factor at a point (`shadowValues`). */
+export interface ShadowValue {
+  factor: string;
+  /** ∂π/∂z in money per unit of the factor (e.g. the value of one more hectare). */
+  value: number;
+  standardError: number;
+  /** Elasticity of profit with respect to the factor, ∂ln π/∂ln z. */
+  profitElasticity: number;
+}
+
+/** Response when fixed factors adjust to their rental rates (`longRunResponse`). */
+export interface LongRunResult {
+  items: string[];
+  factors: string[];
+  rentalRates: number[];
+  /** Long-run levels z* solving ∂π/∂z = rental rate. */
+  levels: number[];
+  /** Netputs at (p, z*), where short and long run coincide. */
+  netputs: number[];
+  /** Short-run elasticities at (p, z*), factors held at z*. */
+  shortRun: number[][];
+  /** Long-run elasticities at (p, z*), factors adjusting, rental rates held. */
+  longRun: number[][];
+  longRunStandardErrors: number[][];
+  /** ∂ln z*_k/∂ln p_j. */
+  factorElasticities: number[][];
+}
+
+/**
+ * The fit command's JSON document (docs/fit-command.md §3; `fitToContractJson` in
+ * server/estimation/contract.ts), also stored as a run's `summary`. The keys of the contract come
+ * first (form … equations), then details.
+ */
+export interface FitSummary {
+  form: FormName;
+  numeraire: string;
+  items: NetputRef[];
+  observations: number;
+  evaluatedAt: { prices: Record<string, number>; fixed: Record<string, number> };
+  netputs: Record<string, number>;
+  profit: number;
+  elasticities: number[][];
+  elasticityStandardErrors: number[][];
+  convex: boolean;
+  curvatureImposed: boolean;
+  equations: { item: string; r2: number; rmse: number }[];
+  fixedFactors: string[];
+  trend: { firstSeason: number; definition: string } | null;
+  hessianEigenvalues: number[];
+  curvature: CurvatureReport;
+  monotonicity: { violationShare: number; byItem: Record<string, number> };
+  shadowValues: Record<string, { value: number; standardError: number }>;
+  coefficients: CoefficientEstimate[];
+  residualCovariance: number[][];
+  residualCorrelation: number[][];
+  logLikelihood: number;
+  parameterCount: number;
+  aic: number;
+  bic: number;
+  iterations: number;
+  converged: boolean;
+  warnings: string[];
+  caution: string;
+}
+
+/**
+ * A model run's result as the fit worker returns it (`runFit` in server/jobs/fit-task.ts), stored
+ * with the run and answered by GET /api/model-runs/:id.
+ */
+export interface FitRunResult {
+  fit: FitResult;
+  summary: FitSummary;
+  elasticities: ElasticityResult;
+  shadowValues: ShadowValue[];
+  longRun: LongRunResult | null;
+  longRunError: string | null;
+  /** Per season: co-op totals, actual and fitted (quantities ≥ 0). */
+  fittedBySeason: { season: string; actual: Record<string, number>; fitted: Record<string, number> }[];
+  /** Per observation: residual (actual − fitted quantity) of every item. */
+  residuals: { season: string; farm: string | null; fitted: Record<string, number>; residual: Record<string, number> }[];
+  /** Each netput against its own price, other prices at their means. */
+  responseCurves: { item: string; prices: number[]; quantities: number[] }[];
+  backtest: { seasons: BacktestSeason[]; items: BacktestItem[]; error: string | null };
+  /**
+   * The forecasting model's specification. This and the three fields after it are absent in runs
+   * stored before forecasting models existed.
+   */
+  spec?: ForecastSpec;
+  /**
+   * The forecasting model of the chosen specification, fitted on every season (null when it failed:
+   * see forecastError). For a per-hectare run its `fit` is the profit function per hectare of land
+   * (netputs per ha; land itself is not a factor).
+   */
+  forecast?: ForecastModel | null;
+  forecastError?: string | null;
+  /** The rolling-origin back-test of the forecasting model against the plain rules, with band coverage. */
+  skill?: BackTestResult | null;
+  /**
+   * Per-hectare runs: the price elasticities of the per-hectare profit function at its sample means
+   * (with constant returns to land they hold for a farm of any size); null otherwise (absent in
+   * older runs).
+   */
+  forecastElasticities?: { elasticities: number[][]; standardErrors: number[][] } | null;
 }

@@ -1,9 +1,9 @@
 /**
- * Result shapes of the forecasting engine (server/estimation/forecast.ts, backtest.ts): per-farm and
- * co-op predictive bands and the rolling-origin back-test. Plain data shared by the server and the
- * screens.
+ * Result shapes of the forecasting engine (server/estimation/panel.ts, forecast.ts, backtest.ts): the
+ * fitted forecasting model, per-farm and co-op predictive bands and the rolling-origin back-test.
+ * Plain data shared by the server and the screens.
  */
-import type { QuantitySummary } from './estimation-types.js';
+import type { FitResult, QuantitySummary } from './estimation-types.js';
 
 /** Specification of a forecasting model. */
 export type ForecastSpec = 'per-hectare' | 'pooled';
@@ -109,4 +109,59 @@ export interface BackTestResult {
   thirds: { by: 'land' | 'quantity'; cuts: [number, number] | null };
   origins: BackTestOrigin[];
   items: BackTestItem[];
+}
+
+export interface FarmEffects {
+  farms: string[];
+  /** effects[i][f]: farm f's shrunk own level in equation i (netput per hectare). */
+  effects: number[][];
+  /** Posterior variance of each effect (w·σ²/T_f). */
+  variance: number[][];
+  /** Between-farm variance τ_i² (a new farm's effect has mean 0 and this variance). */
+  tau2: number[];
+  /** Seasons each farm was observed in. */
+  seasons: number[];
+  /** Each farm's land in its last recorded season (ha). */
+  lastLand: number[];
+}
+
+export interface SeasonEffects {
+  seasons: string[];
+  years: number[];
+  /** effects[i][s]: season s's shared effect in equation i (netput per hectare). */
+  effects: number[][];
+  /** Covariance of a new season's effect across items (per hectare), scale of the t predictive. */
+  covariance: number[][];
+  /** Degrees of freedom of the t predictive (seasons less what the fit absorbs; at least 2). */
+  df: number;
+}
+
+export interface ErrorScale {
+  /** Land (ha) at which the variances apply (geometric mean of the panel's land). */
+  referenceLand: number;
+  /** δ_i: per-hectare residual variance ∝ (land / referenceLand)^δ_i. */
+  exponent: number[];
+  /** σ_i² at the reference land (per hectare, squared). */
+  variance: number[];
+}
+
+/** A fitted forecasting model: plain JSON, safe to post to a worker thread or store. */
+export interface ForecastModel {
+  spec: ForecastSpec;
+  /** One line in words. */
+  specification: string;
+  /**
+   * The profit function: per hectare for 'per-hectare' (netputs and profit per ha, fixed factors
+   * other than land per ha, land not a factor), in levels for 'pooled'.
+   */
+  fit: FitResult;
+  landFactor: string | null;
+  /** Parameter covariance split: the part from farm-level noise and the season-shock part. */
+  parameterCovariance: { idiosyncratic: number[][]; season: number[][] };
+  farmEffects: FarmEffects | null;
+  seasonEffects: SeasonEffects | null;
+  errorScale: ErrorScale | null;
+  /** Seasons of the history, in order (labels and years). */
+  seasons: { labels: string[]; years: number[] };
+  outerIterations: number;
 }

@@ -1,6 +1,7 @@
 /**
  * The JSON document of the fit command (docs/fit-command.md §3), also returned by the API.
  */
+import type { FitSummary } from '../../shared/estimation-types.js';
 import type { FitResult } from './fit.js';
 import { elasticitiesAt, evaluateFit, shadowValues, type EvaluationPoint } from './results.js';
 
@@ -14,7 +15,7 @@ const byName = (names: string[], values: number[]): Record<string, number> => Ob
  * contract first (form, numeraire, items, observations, evaluatedAt, netputs, profit,
  * elasticities, elasticityStandardErrors, convex, curvatureImposed, equations), then details.
  */
-export function fitToContractJson(fit: FitResult, point: EvaluationPoint = {}) {
+export function fitToContractJson(fit: FitResult, point: EvaluationPoint = {}): FitSummary {
   const { layout } = fit;
   const items = layout.items.map((i) => i.name);
   const ev = evaluateFit(fit, point);
@@ -56,4 +57,5 @@ export function fitToContractJson(fit: FitResult, point: EvaluationPoint = {}) {
   };
 }
 
-export type FitContractJson = ReturnType<typeof fitToContractJson>;
+/** The document's shape, declared once for the server and the screens. */
+export type FitContractJson = FitSummary;

@@ -23,7 +23,7 @@
  * parameter and residual uncertainty only; kept for comparison.
  */
 import type { CurvatureReport } from '../../shared/estimation-types.js';
-import type { ForecastSpec } from '../../shared/forecast-types.js';
+import type { ErrorScale, FarmEffects, ForecastModel, ForecastSpec, SeasonEffects } from '../../shared/forecast-types.js';
 import { checkConvexity, imposeConvexity } from './curvature.js';
 import type { NetputDataset } from './dataset.js';
 import { EstimationInputError } from './errors.js';
@@ -59,60 +59,7 @@ export interface ForecastModelOptions {
   seasonGls?: boolean;
 }
 
-export interface FarmEffects {
-  farms: string[];
-  /** effects[i][f]: farm f's shrunk own level in equation i (netput per hectare). */
-  effects: number[][];
-  /** Posterior variance of each effect (w·σ²/T_f). */
-  variance: number[][];
-  /** Between-farm variance τ_i² (a new farm's effect has mean 0 and this variance). */
-  tau2: number[];
-  /** Seasons each farm was observed in. */
-  seasons: number[];
-  /** Each farm's land in its last recorded season (ha). */
-  lastLand: number[];
-}
-
-export interface SeasonEffects {
-  seasons: string[];
-  years: number[];
-  /** effects[i][s]: season s's shared effect in equation i (netput per hectare). */
-  effects: number[][];
-  /** Covariance of a new season's effect across items (per hectare), scale of the t predictive. */
-  covariance: Mat;
-  /** Degrees of freedom of the t predictive (seasons less what the fit absorbs; at least 2). */
-  df: number;
-}
-
-export interface ErrorScale {
-  /** Land (ha) at which the variances apply (geometric mean of the panel's land). */
-  referenceLand: number;
-  /** δ_i: per-hectare residual variance ∝ (land / referenceLand)^δ_i. */
-  exponent: number[];
-  /** σ_i² at the reference land (per hectare, squared). */
-  variance: number[];
-}
-
-/** A fitted forecasting model: plain JSON, safe to post to a worker thread or store. */
-export interface ForecastModel {
-  spec: ForecastSpec;
-  /** One line in words. */
-  specification: string;
-  /**
-   * The profit function: per hectare for 'per-hectare' (netputs and profit per ha, fixed factors
-   * other than land per ha, land not a factor), in levels for 'pooled'.
-   */
-  fit: FitResult;
-  landFactor: string | null;
-  /** Parameter covariance split: the part from farm-level noise and the season-shock part. */
-  parameterCovariance: { idiosyncratic: Mat; season: Mat };
-  farmEffects: FarmEffects | null;
-  seasonEffects: SeasonEffects | null;
-  errorScale: ErrorScale | null;
-  /** Seasons of the history, in order (labels and years). */
-  seasons: { labels: string[]; years: number[] };
-  outerIterations: number;
-}
+export type { ErrorScale, FarmEffects, ForecastModel, SeasonEffects } from '../../shared/forecast-types.js';
 
 const LAND_NAMES = ['land', 'land_ha'];
 

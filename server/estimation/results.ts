@@ -5,22 +5,18 @@
  */
 import { checkConvexity, leadingBlock } from './curvature.js';
 import { EstimationInputError } from './errors.js';
+import type { ElasticityResult, LongRunResult, ResolvedPoint, ShadowValue } from '../../shared/estimation-types.js';
 import type { FitResult } from './fit.js';
 import { formOf } from './forms.js';
 import { solve, zeros, type Mat } from './linalg.js';
 import { factorGradient, factorHessian, netputFactorDerivatives, netputsFromDecomposition, profitFromNetputs } from './model.js';
 
+export type { ElasticityResult, LongRunResult, ResolvedPoint, ShadowValue } from '../../shared/estimation-types.js';
+
 /** Prices and fixed-factor levels by name; anything not named stays at its sample mean. */
 export interface EvaluationPoint {
   prices?: Record<string, number>;
   fixed?: Record<string, number>;
-}
-
-export interface ResolvedPoint {
-  /** Layout item order. */
-  prices: number[];
-  /** Layout factor order (the trend last, when fitted). */
-  fixed: number[];
 }
 
 /** Fill a partial point with the sample means and check names and values. */
@@ -116,15 +112,6 @@ function elasticityMatrix(H: Mat, p: number[], y: number[]): Mat {
   return H.map((row, i) => row.map((h, j) => (h * p[j]!) / y[i]!));
 }
 
-export interface ElasticityResult {
-  items: string[];
-  point: ResolvedPoint;
-  /** Fitted netputs at the point (the y in e_ij = ∂y_i/∂p_j · p_j / y_i). */
-  netputs: number[];
-  /** [i][j] = ∂ln|y_i|/∂ln p_j; every row sums to zero (homogeneity). */
-  elasticities: Mat;
-  standardErrors: Mat;
-}
 
 /** The full n×n price-elasticity matrix (numeraire row and column included) with delta-method SEs. */
 export function elasticitiesAt(fit: FitResult, point: EvaluationPoint = {}): ElasticityResult {
@@ -146,14 +133,6 @@ export function elasticitiesAt(fit: FitResult, point: EvaluationPoint = {}): Ela
   };
 }
 
-export interface ShadowValue {
-  factor: string;
-  /** ∂π/∂z in money per unit of the factor (e.g. the value of one more hectare). */
-  value: number;
-  standardError: number;
-  /** Elasticity of profit with respect to the factor, ∂ln π/∂ln z. */
-  profitElasticity: number;
-}
 
 /** Shadow value ∂π/∂z_k of every fixed factor (trend included) at a point, with delta-method SEs. */
 export function shadowValues(fit: FitResult, point: EvaluationPoint = {}): ShadowValue[] {
@@ -181,22 +160,6 @@ export interface LongRunOptions {
   point?: EvaluationPoint;
 }
 
-export interface LongRunResult {
-  items: string[];
-  factors: string[];
-  rentalRates: number[];
-  /** Long-run levels z* solving ∂π/∂z = rental rate. */
-  levels: number[];
-  /** Netputs at (p, z*), where short and long run coincide. */
-  netputs: number[];
-  /** Short-run elasticities at (p, z*), factors held at z*. */
-  shortRun: Mat;
-  /** Long-run elasticities at (p, z*), factors adjusting, rental rates held. */
-  longRun: Mat;
-  longRunStandardErrors: Mat;
-  /** ∂ln z*_k/∂ln p_j. */
-  factorElasticities: Mat;
-}
 
 /**
  * Long-run response when fixed factors adjust so that ∂π/∂z = r. With H_zz = ∂²π/∂z² negative

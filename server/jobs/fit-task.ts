@@ -15,7 +15,7 @@ import {
   type ForecastSpec,
   type NetputDataset,
 } from '../estimation/index.js';
-import type { BacktestItem, BacktestSeason } from '../../shared/estimation-types.js';
+import type { BacktestSeason, FitRunResult } from '../../shared/estimation-types.js';
 import { lowerWorkerPriority } from './worker-priority.js';
 
 lowerWorkerPriority();
@@ -30,34 +30,7 @@ export interface FitTask {
   progressPort?: MessagePort;
 }
 
-export type { BacktestItem, BacktestSeason } from '../../shared/estimation-types.js';
-
-export interface FitRunResult {
-  fit: FitResult;
-  summary: ReturnType<typeof fitToContractJson>;
-  elasticities: ReturnType<typeof elasticitiesAt>;
-  shadowValues: ReturnType<typeof shadowValues>;
-  longRun: ReturnType<typeof longRunResponse> | null;
-  longRunError: string | null;
-  /** Per season: co-op totals, actual and fitted (quantities ≥ 0). */
-  fittedBySeason: { season: string; actual: Record<string, number>; fitted: Record<string, number> }[];
-  /** Per observation: residual (actual − fitted quantity) of every item. */
-  residuals: { season: string; farm: string | null; fitted: Record<string, number>; residual: Record<string, number> }[];
-  /** Each netput against its own price, other prices at their means. */
-  responseCurves: { item: string; prices: number[]; quantities: number[] }[];
-  backtest: { seasons: BacktestSeason[]; items: BacktestItem[]; error: string | null };
-  /** The forecasting model of the chosen specification, fitted on every season (null when it failed: see forecastError). */
-  spec: ForecastSpec;
-  forecast: ForecastModel | null;
-  forecastError: string | null;
-  /**
-   * Per-hectare runs: the price elasticities of the per-hectare profit function at its sample means
-   * (with constant returns to land they hold for a farm of any size); null otherwise.
-   */
-  forecastElasticities?: { elasticities: number[][]; standardErrors: number[][] } | null;
-  /** The rolling-origin back-test of the forecasting model against the plain rules, with band coverage. */
-  skill: BackTestResult | null;
-}
+export type { BacktestItem, BacktestSeason, FitRunResult } from '../../shared/estimation-types.js';
 
 type Progress = (share: number, stage: string) => void;
 

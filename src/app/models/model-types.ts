@@ -1,14 +1,25 @@
-import type { BacktestItem, BacktestSeason, FitResult, NetputRef } from '../../../shared/estimation-types';
-import type { ForecastSpecName, ModelDefinition } from '../../../shared/model-schemas';
-import type { BackTestResult } from '../../../shared/forecast-types';
+import type { FitResult, FitRunResult, NetputRef } from '../../../shared/estimation-types';
+import type { ModelDefinition } from '../../../shared/model-schemas';
 
-export type { BacktestItem, BacktestSeason, CoefficientEstimate, CurvatureReport, EquationFit, FitResult, MonotonicityReport, NetputRef } from '../../../shared/estimation-types';
+export type {
+  BacktestItem,
+  BacktestSeason,
+  CoefficientEstimate,
+  CurvatureReport,
+  EquationFit,
+  FitResult,
+  FitRunResult,
+  FitSummary,
+  MonotonicityReport,
+  NetputRef,
+} from '../../../shared/estimation-types';
 
 /**
- * The shapes the model API answers with (server/models/models-service.ts, server/jobs/fit-task.ts,
- * server/estimation/fit.ts). Declared here because those server types import Node modules the
- * client build cannot type-check; only the fields the screens read are listed. The engine's result
- * shapes (the fit, its layout, the back-test rows) are declared once in shared/estimation-types.ts.
+ * The shapes the model API answers with. A run's result (the fit, its summary document, the
+ * back-tests and the forecasting model) is declared once in shared/estimation-types.ts, which the
+ * engine returns; the run and model rows below (server/models/models-service.ts) are declared here
+ * because those server types import Node modules the client build cannot type-check; only the
+ * fields the screens read are listed.
  */
 export type RunState = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
@@ -46,58 +57,6 @@ export interface ExcludedObservation {
   farm: string;
   season: string;
   reason: string;
-}
-
-/** The fit command's document (docs/fit-command.md §3; server/estimation/contract.ts) stored with the run. */
-export interface FitSummary {
-  form: FitResult['layout']['form'];
-  numeraire: string;
-  items: NetputRef[];
-  observations: number;
-  evaluatedAt: { prices: Record<string, number>; fixed: Record<string, number> };
-  netputs: Record<string, number>;
-  profit: number;
-  elasticities: number[][];
-  elasticityStandardErrors: number[][];
-  convex: boolean;
-  curvatureImposed: boolean;
-  equations: { item: string; r2: number; rmse: number }[];
-  fixedFactors: string[];
-  trend: { firstSeason: number; definition: string } | null;
-  shadowValues: Record<string, { value: number; standardError: number }>;
-  logLikelihood: number;
-  parameterCount: number;
-  aic: number;
-  bic: number;
-  iterations: number;
-  converged: boolean;
-  warnings: string[];
-  caution: string;
-}
-
-export interface FitRunResult {
-  fit: FitResult;
-  summary: FitSummary;
-  shadowValues: { factor: string; value: number; standardError: number; profitElasticity: number }[];
-  longRun: { items: string[]; shortRun: number[][]; longRun: number[][]; longRunStandardErrors: number[][] } | null;
-  longRunError: string | null;
-  fittedBySeason: { season: string; actual: Record<string, number>; fitted: Record<string, number> }[];
-  residuals: { season: string; farm: string | null; fitted: Record<string, number>; residual: Record<string, number> }[];
-  responseCurves: { item: string; prices: number[]; quantities: number[] }[];
-  backtest: { seasons: BacktestSeason[]; items: BacktestItem[]; error: string | null };
-  /** Absent in runs stored before forecasting models existed. */
-  spec?: ForecastSpecName;
-  /**
-   * The forecasting model (server/estimation/panel.ts). For a per-hectare run its `fit` is the
-   * profit function per hectare of land (netputs per ha; land itself is not a factor); only the
-   * parts the page reads are declared here.
-   */
-  forecast?: { spec: ForecastSpecName; specification: string; landFactor: string | null; fit: FitResult } | null;
-  forecastError?: string | null;
-  /** Per-hectare runs: elasticities of the per-hectare profit function at its sample means (absent in older runs). */
-  forecastElasticities?: { elasticities: number[][]; standardErrors: number[][] } | null;
-  /** The forecasting model's rolling-origin back-test against the plain rules (absent or null: none). */
-  skill?: BackTestResult | null;
 }
 
 /** `GET /api/model-runs/:id` (the snapshot itself is left out; `observations` counts it). */
