@@ -1,7 +1,7 @@
 import type { Routes } from '@angular/router';
 import { ACCESS } from '../core/access';
 import { roleGuard } from '../core/auth-guards';
-import { devMailGuard } from '../core/dev-mail-availability';
+import { devMailGuard } from './mail/dev-mail-guard';
 import { devPaymentsGuard } from './payments/dev-payments-guard';
 
 const adminRoutes: Routes = [

@@ -1,15 +1,15 @@
-import { HttpClient, HttpXsrfTokenExtractor } from '@angular/common/http';
+import { HttpXsrfTokenExtractor } from '@angular/common/http';
 import { Injectable, computed, inject, signal } from '@angular/core';
-import { firstValueFrom } from 'rxjs';
 import type { Me } from '../../../shared/api-types';
 import type { Role } from '../../../shared/roles';
 import { ApiRequestError, errorMessage } from './api-error';
+import { AuthApi } from './auth-api';
 
 /** Who is signed in. Loaded once at start-up (`GET /api/auth/session`) and kept current by sign-in, sign-out and one-time links. */
 @Injectable({ providedIn: 'root' })
 export class AuthStore {
   // services
-  readonly #http = inject(HttpClient);
+  readonly #api = inject(AuthApi);
   readonly #xsrf = inject(HttpXsrfTokenExtractor);
 
   // state
@@ -26,7 +26,7 @@ export class AuthStore {
   async load(): Promise<void> {
     try {
       // 200 `{ user: null }` when signed out: nothing for the browser to log as an error.
-      const { user } = await firstValueFrom(this.#http.get<{ user: Me | null }>('/api/auth/session'));
+      const { user } = await this.#api.session();
       this.#user.set(user);
       this.#startupProblem.set(null);
     } catch (error) {
@@ -43,12 +43,12 @@ export class AuthStore {
    */
   async ensureXsrfCookie(): Promise<void> {
     if (this.#xsrf.getToken()) return;
-    await firstValueFrom(this.#http.get('/api/auth/csrf', { responseType: 'text' }));
+    await this.#api.csrf();
   }
 
   async signIn(email: string, password: string): Promise<Me> {
     await this.ensureXsrfCookie();
-    const { user } = await firstValueFrom(this.#http.post<{ user: Me }>('/api/auth/login', { email, password }));
+    const { user } = await this.#api.login(email, password);
     this.#user.set(user);
     this.#startupProblem.set(null);
     return user;
@@ -56,7 +56,7 @@ export class AuthStore {
 
   async signOut(): Promise<void> {
     try {
-      await firstValueFrom(this.#http.post('/api/auth/logout', null, { responseType: 'text' }));
+      await this.#api.logout();
     } finally {
       this.#user.set(null);
     }
@@ -65,15 +65,13 @@ export class AuthStore {
   /** Asks for a password-reset link. The server answers 202 whether or not the account exists. */
   async requestPasswordReset(email: string): Promise<void> {
     await this.ensureXsrfCookie();
-    await firstValueFrom(this.#http.post('/api/auth/password-reset', { email }, { responseType: 'text' }));
+    await this.#api.requestPasswordReset(email);
   }
 
   /** Redeems an invitation or reset link; the server signs the person in. */
   async setPasswordWithToken(token: string, password: string): Promise<Me> {
     await this.ensureXsrfCookie();
-    const { user } = await firstValueFrom(
-      this.#http.post<{ user: Me }>(`/api/auth/tokens/${encodeURIComponent(token)}`, { password }),
-    );
+    const { user } = await this.#api.redeemToken(token, password);
     this.#user.set(user);
     return user;
   }

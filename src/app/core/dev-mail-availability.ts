@@ -1,7 +1,5 @@
-import { HttpClient, httpResource } from '@angular/common/http';
+import { httpResource } from '@angular/common/http';
 import { Injectable, computed, inject } from '@angular/core';
-import type { CanMatchFn } from '@angular/router';
-import { catchError, map, of } from 'rxjs';
 import { AuthStore } from './auth-store';
 
 /**
@@ -16,12 +14,3 @@ export class DevMailAvailability {
 
   readonly available = computed(() => (this.#status.hasValue() ? this.#status.value().available : false));
 }
-
-/** Matches the mail page only when the server keeps mail (so production shows the not-found page). */
-export const devMailGuard: CanMatchFn = () =>
-  inject(HttpClient)
-    .get<{ available: boolean }>('/api/dev/mail/status')
-    .pipe(
-      map((status) => status.available),
-      catchError(() => of(false)),
-    );

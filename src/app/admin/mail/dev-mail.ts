@@ -1,5 +1,5 @@
 import { DatePipe } from '@angular/common';
-import { HttpClient, httpResource } from '@angular/common/http';
+import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, ElementRef, inject, linkedSignal, signal, viewChild } from '@angular/core';
 import { MatAnchor, MatButton } from '@angular/material/button';
 import { RouterLink } from '@angular/router';
@@ -13,6 +13,7 @@ import { firstValueFrom } from 'rxjs';
 import type { StoredMail } from '../../../../shared/api-types';
 import { errorMessage } from '../../core/api-error';
 import { ConfirmDialog, type ConfirmDialogData } from '../../shared/confirm-dialog';
+import { DevMailApi } from './dev-mail-api';
 
 /** A piece of a plain-text body: text, or a web link worth making clickable. */
 export type TextPart = { text: string; href?: string };
@@ -42,7 +43,7 @@ export function linkify(text: string): TextPart[] {
 })
 export class DevMail {
   // services
-  readonly #http = inject(HttpClient);
+  readonly #api = inject(DevMailApi);
   readonly #dialog = inject(MatDialog);
   readonly #snackBar = inject(MatSnackBar);
   readonly #sanitizer = inject(DomSanitizer);
@@ -102,7 +103,7 @@ export class DevMail {
     };
     if (!(await firstValueFrom(this.#dialog.open(ConfirmDialog, { data }).afterClosed()))) return;
     try {
-      await firstValueFrom(this.#http.delete('/api/dev/mail', { responseType: 'text' }));
+      await this.#api.clear();
       this.mails.reload();
     } catch (error) {
       this.#snackBar.open(errorMessage(error), 'Dismiss');

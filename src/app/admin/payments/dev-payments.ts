@@ -1,12 +1,12 @@
 import { DatePipe } from '@angular/common';
-import { HttpClient, httpResource } from '@angular/common/http';
+import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
-import { firstValueFrom } from 'rxjs';
 import { errorMessage } from '../../core/api-error';
 import { money } from '../../my-farm/bookings/booking-format';
+import { DevPaymentsApi } from './dev-payments-api';
 
 interface FakeSession {
   id: string;
@@ -114,7 +114,7 @@ interface FakeDelivery {
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class DevPayments {
-  readonly #http = inject(HttpClient);
+  readonly #api = inject(DevPaymentsApi);
   protected readonly data = httpResource<{ sessions: FakeSession[]; deliveries: FakeDelivery[] }>(() => '/api/dev/payments');
   protected readonly sessions = computed(() => (this.data.hasValue() ? this.data.value().sessions : []));
   protected readonly deliveries = computed(() => (this.data.hasValue() ? this.data.value().deliveries : []));
@@ -127,7 +127,7 @@ export class DevPayments {
     this.busy.set(true);
     this.#actionProblem.set(null);
     try {
-      await firstValueFrom(this.#http.post(`/api/dev/payments/${encodeURIComponent(id)}/${what}`, {}));
+      await this.#api.settle(id, what);
     } catch (err) {
       this.#actionProblem.set(errorMessage(err));
     } finally {
