@@ -214,9 +214,11 @@ export interface LongRunResult {
 /**
  * The fit command's JSON document (docs/fit-command.md §3; `fitToContractJson` in
  * server/estimation/contract.ts), also stored as a run's `summary`. The keys of the contract come
- * first (form … equations), then details.
+ * first (form … equations), then details; the fit statistics (log-likelihood … warnings) are the
+ * fit's own.
  */
-export interface FitSummary {
+export interface FitSummary
+  extends Pick<FitResult, 'logLikelihood' | 'parameterCount' | 'aic' | 'bic' | 'iterations' | 'converged' | 'warnings'> {
   form: FormName;
   numeraire: string;
   items: NetputRef[];
@@ -235,16 +237,12 @@ export interface FitSummary {
   curvature: CurvatureReport;
   monotonicity: { violationShare: number; byItem: Record<string, number> };
   shadowValues: Record<string, { value: number; standardError: number }>;
+  /** Every equation's coefficients, in equation order. */
   coefficients: CoefficientEstimate[];
+  /** The fit's Σ̂ and its correlations (layout item order). */
   residualCovariance: number[][];
   residualCorrelation: number[][];
-  logLikelihood: number;
-  parameterCount: number;
-  aic: number;
-  bic: number;
-  iterations: number;
-  converged: boolean;
-  warnings: string[];
+  /** The caution every result carries (not financial advice; a certified adviser has the last word). */
   caution: string;
 }
 
@@ -253,7 +251,9 @@ export interface FitSummary {
  * with the run and answered by GET /api/model-runs/:id.
  */
 export interface FitRunResult {
+  /** The profit function fitted on every observation. */
   fit: FitResult;
+  /** The fit document at the sample means. */
   summary: FitSummary;
   elasticities: ElasticityResult;
   shadowValues: ShadowValue[];

@@ -4,6 +4,7 @@ import { CONTRACT_STATUSES, contractSchema } from '../../shared/contract-schemas
 import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
+import { createRoute, deleteRoute, replaceRoute, versionField } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { ACCESS } from '../../shared/roles.js';
 import { contractedState, myContracts, startContracted } from './contracted-service.js';
@@ -26,9 +27,7 @@ const listQuery = z.object({
     .transform((s) => s.split(',') as (typeof CONTRACT_STATUSES)[number][])
     .optional(),
 });
-const updateSchema = contractSchema.and(
-  z.object({ version: z.number({ error: 'Send the version of the contract you edited (from GET /api/contracts)' }).int().positive() }),
-);
+const updateSchema = contractSchema.and(z.object({ version: versionField('contract', 'GET /api/contracts') }));
 
 export function contractsRoutes(ctx: AppContext): RouteDef[] {
   return [
@@ -78,34 +77,8 @@ export function contractsRoutes(ctx: AppContext): RouteDef[] {
         res.json(await getContract(ctx.db, id, req.user!));
       },
     },
-    {
-      method: 'post',
-      path: '/',
-      access: WRITE,
-      handler: async (req, res) => {
-        const body = parse(contractSchema, req.body, 'body');
-        res.status(201).json(await createContract(ctx.db, body, req.user!.id));
-      },
-    },
-    {
-      method: 'put',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        const { version, ...body } = parse(updateSchema, req.body, 'body');
-        res.json(await updateContract(ctx.db, id, body, version, req.user!.id));
-      },
-    },
-    {
-      method: 'delete',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        await deleteContract(ctx.db, id, req.user!.id);
-        res.status(204).end();
-      },
-    },
+    createRoute(WRITE, contractSchema, (body, actor) => createContract(ctx.db, body, actor)),
+    replaceRoute(WRITE, updateSchema, (id, { version, ...body }, actor) => updateContract(ctx.db, id, body, version, actor)),
+    deleteRoute(WRITE, (id, actor) => deleteContract(ctx.db, id, actor)),
   ];
 }

@@ -3,9 +3,9 @@ import { z } from 'zod';
 import { idListSchema, idSchema, idTextSchema } from '../../shared/ids.js';
 import { priceIndexSchema, priceSchema } from '../../shared/data-schemas.js';
 import { priceQuerySchema } from '../../shared/price-query.js';
-import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
+import { createRoute, deleteRoute, replaceRoute, versionField } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { createPrices, deletePrice, deletePrices, exportPrices, pricePage, priceSeries, updatePrice } from './prices-service.js';
 import { createPriceIndex, listPriceIndexes, removePriceIndex, updatePriceIndex } from './price-indexes-service.js';
@@ -22,7 +22,7 @@ const blockSchema = z.object({
   [CONFIRM_FLAG]: confirmSchema,
 });
 const updateSchema = priceSchema.extend({
-  version: z.number({ error: 'Send the version of the price you edited (from GET /api/prices)' }).int().positive(),
+  version: versionField('price', 'GET /api/prices'),
   [CONFIRM_FLAG]: confirmSchema,
 });
 const deleteBlockSchema = z.object({
@@ -68,26 +68,9 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
         res.json(await priceSeries(ctx.db, q.items ?? [], q.deflator));
       },
     },
-    {
-      // One row or a pasted block: all rows are written or none.
-      method: 'post',
-      path: '/',
-      access: WRITE,
-      handler: async (req, res) => {
-        const body = parse(blockSchema, req.body, 'body');
-        res.status(201).json(await createPrices(ctx.db, body.rows, req.user!.id, body[CONFIRM_FLAG] === true));
-      },
-    },
-    {
-      method: 'put',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        const { version, [CONFIRM_FLAG]: confirmed, ...body } = parse(updateSchema, req.body, 'body');
-        res.json(await updatePrice(ctx.db, id, body, version, req.user!.id, confirmed === true));
-      },
-    },
+    // One row or a pasted block: all rows are written or none.
+    createRoute(WRITE, blockSchema, (body, actor) => createPrices(ctx.db, body.rows, actor, body[CONFIRM_FLAG] === true)),
+    replaceRoute(WRITE, updateSchema, (id, { version, [CONFIRM_FLAG]: confirmed, ...body }, actor) => updatePrice(ctx.db, id, body, version, actor, confirmed === true)),
     {
       // The rows chosen in the grid: all are deleted or none (an id that is gone refuses the lot).
       method: 'post',
@@ -99,51 +82,16 @@ export function pricesRoutes(ctx: AppContext): RouteDef[] {
         res.json({ deleted: ids.length });
       },
     },
-    {
-      method: 'delete',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        await deletePrice(ctx.db, id, req.user!.id);
-        res.status(204).end();
-      },
-    },
+    deleteRoute(WRITE, (id, actor) => deletePrice(ctx.db, id, actor)),
   ];
 }
 
 export function priceIndexRoutes(ctx: AppContext): RouteDef[] {
   return [
     { method: 'get', path: '/', access: READ, cache: true, handler: async (_req, res) => res.json(await listPriceIndexes(ctx.db)) },
-    {
-      method: 'post',
-      path: '/',
-      access: WRITE,
-      handler: async (req, res) => {
-        const body = parse(priceIndexSchema, req.body, 'body');
-        res.status(201).json(await createPriceIndex(ctx.db, body, req.user!.id));
-      },
-    },
-    {
-      // A corrected or extended index: name, base, source and every value replaced together.
-      method: 'put',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        const body = parse(priceIndexSchema, req.body, 'body');
-        res.json(await updatePriceIndex(ctx.db, id, body, req.user!.id));
-      },
-    },
-    {
-      method: 'delete',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        await removePriceIndex(ctx.db, id, req.user!.id);
-        res.status(204).end();
-      },
-    },
+    createRoute(WRITE, priceIndexSchema, (body, actor) => createPriceIndex(ctx.db, body, actor)),
+    // A corrected or extended index: name, base, source and every value replaced together.
+    replaceRoute(WRITE, priceIndexSchema, (id, body, actor) => updatePriceIndex(ctx.db, id, body, actor)),
+    deleteRoute(WRITE, (id, actor) => removePriceIndex(ctx.db, id, actor)),
   ];
 }

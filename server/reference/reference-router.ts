@@ -1,9 +1,8 @@
 import { ACCESS } from '../../shared/roles.js';
 import type { z } from 'zod';
 import { deliveryPointSchema, farmSchema, itemSchema, seasonSchema } from '../../shared/data-schemas.js';
-import { idParamSchema } from '../../shared/schemas.js';
 import type { Access, RouteDef } from '../core/routes.js';
-import { parse } from '../core/validate.js';
+import { createRoute, deleteRoute, replaceRoute } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { listReference } from './reference-repository.js';
 import { createReference, removeReference, replaceReference, type ReferenceInput, type ReferenceKind } from './reference-service.js';
@@ -14,35 +13,9 @@ const WRITE = ACCESS.dataEdit;
 /** Create, replace and delete one row of `kind`. */
 function writeRoutes<K extends ReferenceKind>(ctx: AppContext, kind: K, schema: z.ZodType<ReferenceInput[K]>): RouteDef[] {
   return [
-    {
-      method: 'post',
-      path: '/',
-      access: WRITE,
-      handler: async (req, res) => {
-        const body = parse(schema, req.body, 'body');
-        res.status(201).json(await createReference(ctx.db, kind, body, req.user!.id));
-      },
-    },
-    {
-      method: 'put',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        const body = parse(schema, req.body, 'body');
-        res.json(await replaceReference(ctx.db, kind, id, body, req.user!.id));
-      },
-    },
-    {
-      method: 'delete',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        await removeReference(ctx.db, kind, id, req.user!.id);
-        res.status(204).end();
-      },
-    },
+    createRoute(WRITE, schema, (body, actor) => createReference(ctx.db, kind, body, actor)),
+    replaceRoute(WRITE, schema, (id, body, actor) => replaceReference(ctx.db, kind, id, body, actor)),
+    deleteRoute(WRITE, (id, actor) => removeReference(ctx.db, kind, id, actor)),
   ];
 }
 

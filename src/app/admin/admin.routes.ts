@@ -1,8 +1,10 @@
+import { inject } from '@angular/core';
 import type { Routes } from '@angular/router';
 import { ACCESS } from '../core/access';
 import { roleGuard } from '../core/auth-guards';
-import { devMailGuard } from './mail/dev-mail-guard';
-import { devPaymentsGuard } from './payments/dev-payments-guard';
+import { devServiceGuard } from './dev-service-guard';
+import { DevMailApi } from './mail/dev-mail-api';
+import { DevPaymentsApi } from './payments/dev-payments-api';
 
 const adminRoutes: Routes = [
   { path: '', pathMatch: 'full', redirectTo: '/' },
@@ -27,13 +29,13 @@ const adminRoutes: Routes = [
   {
     path: 'mail',
     title: 'Mail outbox',
-    canMatch: [roleGuard(ACCESS.devMail), devMailGuard],
+    canMatch: [roleGuard(ACCESS.devMail), devServiceGuard(() => inject(DevMailApi).status())],
     loadComponent: () => import('./mail/dev-mail').then((m) => m.DevMail),
   },
   {
     path: 'payments',
     title: 'Test payments',
-    canMatch: [roleGuard(ACCESS.devPayments), devPaymentsGuard],
+    canMatch: [roleGuard(ACCESS.devPayments), devServiceGuard(() => inject(DevPaymentsApi).status())],
     loadComponent: () => import('./payments/dev-payments').then((m) => m.DevPayments),
   },
 ];

@@ -1,0 +1,53 @@
+/**
+ * The write routes most features share, as data: create from a body (`POST /`, 201 with what the
+ * service returns), replace by id (`PUT /:id`) and delete by id (`DELETE /:id`, 204). Each parses
+ * the id and the body with `parse` (a 400 naming the field) and hands the service the caller's user
+ * id for the audit; the service does the rest (transaction, version check, audit).
+ */
+import type { Request } from 'express';
+import { z } from 'zod';
+import { idParamSchema } from '../../shared/schemas.js';
+import type { Access, RouteDef } from './routes.js';
+import { parse } from './validate.js';
+
+const idOf = (req: Request): number => parse(idParamSchema, req.params, 'params').id;
+
+export function createRoute<S extends z.ZodType>(access: Access, schema: S, create: (body: z.output<S>, actorUserId: number) => Promise<unknown>): RouteDef {
+  return {
+    method: 'post',
+    path: '/',
+    access,
+    handler: async (req, res) => res.status(201).json(await create(parse(schema, req.body, 'body'), req.user!.id)),
+  };
+}
+
+export function replaceRoute<S extends z.ZodType>(
+  access: Access,
+  schema: S,
+  replace: (id: number, body: z.output<S>, actorUserId: number) => Promise<unknown>,
+): RouteDef {
+  return {
+    method: 'put',
+    path: '/:id',
+    access,
+    // The id is parsed before the body, so a bad id is the one reported.
+    handler: async (req, res) => res.json(await replace(idOf(req), parse(schema, req.body, 'body'), req.user!.id)),
+  };
+}
+
+export function deleteRoute(access: Access, remove: (id: number, actorUserId: number) => Promise<void>): RouteDef {
+  return {
+    method: 'delete',
+    path: '/:id',
+    access,
+    handler: async (req, res) => {
+      await remove(idOf(req), req.user!.id);
+      res.status(204).end();
+    },
+  };
+}
+
+/** The `version` an edit names (the one it started from), so a stale edit is refused with 409 `stale`. */
+export function versionField(what: string, readFrom: string) {
+  return z.number({ error: `Send the version of the ${what} you edited (from ${readFrom})` }).int().positive();
+}
