@@ -111,6 +111,7 @@ export interface BackTestResult {
   items: BackTestItem[];
 }
 
+/** A per-hectare model's farm effects: each farm's own level per equation, shrunk towards the co-op's. */
 export interface FarmEffects {
   farms: string[];
   /** effects[i][f]: farm f's shrunk own level in equation i (netput per hectare). */
@@ -125,6 +126,7 @@ export interface FarmEffects {
   lastLand: number[];
 }
 
+/** A per-hectare model's season effects: the shock every farm shared in a season, per equation. */
 export interface SeasonEffects {
   seasons: string[];
   years: number[];
@@ -136,6 +138,7 @@ export interface SeasonEffects {
   df: number;
 }
 
+/** How a per-hectare model's residual variance scales with a farm's land. */
 export interface ErrorScale {
   /** Land (ha) at which the variances apply (geometric mean of the panel's land). */
   referenceLand: number;
