@@ -6,11 +6,11 @@
  *   --draws N (default 1000; 0: the point only), --seed N (default 1), --level P (default 0.9)
  * The result is the engine's ContractedEvaluation, added to the fit document under `committed`.
  */
-import Papa from 'papaparse';
 import type { ContractedEvaluation, ContractedFarmSpec } from '../../shared/contracted-types.js';
 import { evaluateContracted } from './contracted.js';
 import { numberCell } from './dataset.js';
 import { EstimationInputError } from './errors.js';
+import { farmRows, readFarmFile } from './farm-file.js';
 import type { FitResult } from './fit.js';
 import type { ForecastModel } from './panel.js';
 
@@ -40,19 +40,9 @@ export function pooledModelOf(fit: FitResult, landFactor: string | null): Foreca
  */
 export function parseCommittedCsv(text: string, model: ForecastModel, point: { prices: Record<string, number>; fixed: Record<string, number> }): ContractedFarmSpec[] {
   const { layout } = model.fit;
-  const body = text.replace(/^\uFEFF/, '');
-  if (body.trim() === '') throw new EstimationInputError('the file is empty');
-  const parsed = Papa.parse<string[]>(body, { skipEmptyLines: false, delimitersToGuess: [',', ';', '\t'] });
-  const fatal = parsed.errors.find((e) => e.type === 'Quotes');
-  if (fatal) throw new EstimationInputError(`row ${(fatal.row ?? 0) + 1}: ${fatal.message}`, { row: (fatal.row ?? 0) + 1 });
-  const lines = parsed.data;
-  const header = (lines[0] ?? []).map((h) => h.trim());
   const items = new Map(layout.items.map((it) => [it.name, it.role]));
   const factorNames = Object.keys(point.fixed);
-  const col = new Map<string, number>();
-  header.forEach((h, c) => {
-    if (h === '') throw new EstimationInputError(`row 1, column ${c + 1}: empty column name`, { row: 1 });
-    if (col.has(h)) throw new EstimationInputError(`row 1, column ${h}: the column appears twice`, { row: 1, column: h });
+  const file = readFarmFile(text, (h) => {
     const m = /^(committed|contract-price|price|fixed):(.+)$/.exec(h);
     if (m && (m[1] === 'committed' || m[1] === 'contract-price') && items.has(m[2]!) && items.get(m[2]!) !== 'output')
       throw new EstimationInputError(`row 1, column ${h}: ${m[2]} is an input; only outputs can be committed`, { row: 1, column: h });
@@ -65,8 +55,8 @@ export function parseCommittedCsv(text: string, model: ForecastModel, point: { p
         `row 1, column ${h}: unknown column (expected farm, committed:<output>, contract-price:<output>, price:<item>, fixed:<name> for an item or fixed factor of the model)`,
         { row: 1, column: h },
       );
-    col.set(h, c);
   });
+  const { header, col } = file;
   if (!col.has('farm')) throw new EstimationInputError('row 1: the required column "farm" is missing', { row: 1, column: 'farm' });
   const committedCols = header.filter((h) => h.startsWith('committed:'));
   if (!committedCols.length) throw new EstimationInputError('row 1: the file needs at least one committed:<output> column', { row: 1 });
@@ -74,16 +64,7 @@ export function parseCommittedCsv(text: string, model: ForecastModel, point: { p
     if (h.startsWith('contract-price:') && !col.has(`committed:${h.slice('contract-price:'.length)}`))
       throw new EstimationInputError(`row 1, column ${h}: a contract price without its committed:${h.slice('contract-price:'.length)} column`, { row: 1, column: h });
   const farms: ContractedFarmSpec[] = [];
-  const seen = new Set<string>();
-  for (let li = 1; li < lines.length; li++) {
-    const cells = lines[li]!;
-    const row = li + 1;
-    if (cells.length === 1 && cells[0]!.trim() === '') continue;
-    if (cells.length !== header.length) throw new EstimationInputError(`row ${row}: ${cells.length} cells, but the header has ${header.length} columns`, { row });
-    const farm = cells[col.get('farm')!]!.trim();
-    if (farm === '') throw new EstimationInputError(`row ${row}, column farm: empty cell`, { row, column: 'farm' });
-    if (seen.has(farm)) throw new EstimationInputError(`row ${row}, column farm: farm "${farm}" is listed twice`, { row, column: 'farm' });
-    seen.add(farm);
+  for (const { row, cells, farm } of farmRows(file)) {
     const cell = (h: string): string => cells[col.get(h)!]!.trim();
     const contracted: Record<string, number> = {};
     const contractPrices: Record<string, number> = {};

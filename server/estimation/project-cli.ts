@@ -10,9 +10,9 @@
 import { readFileSync } from 'node:fs';
 import { basename } from 'node:path';
 import { parseArgs } from 'node:util';
-import Papa from 'papaparse';
 import { numberCell, parseNetputCsv, SEASON, type NetputDataset } from './dataset.js';
 import { EstimationInputError, isEstimationInputError } from './errors.js';
+import { farmRows, readFarmFile } from './farm-file.js';
 import { projectForecast, type ForecastFarm } from './forecast.js';
 import { fitForecastModel, landFactorIndex } from './panel.js';
 
@@ -33,17 +33,7 @@ export interface NextSeason {
  * @throws EstimationInputError naming the row and column
  */
 export function parseNextCsv(text: string, history: NetputDataset): NextSeason {
-  const body = text.replace(/^\uFEFF/, '');
-  if (body.trim() === '') throw new EstimationInputError('the file is empty');
-  const parsed = Papa.parse<string[]>(body, { skipEmptyLines: false, delimitersToGuess: [',', ';', '\t'] });
-  const fatal = parsed.errors.find((e) => e.type === 'Quotes');
-  if (fatal) throw new EstimationInputError(`row ${(fatal.row ?? 0) + 1}: ${fatal.message}`, { row: (fatal.row ?? 0) + 1 });
-  const lines = parsed.data;
-  const header = (lines[0] ?? []).map((h) => h.trim());
-  const col = new Map<string, number>();
-  header.forEach((h, c) => {
-    if (h === '') throw new EstimationInputError(`row 1, column ${c + 1}: empty column name`, { row: 1 });
-    if (col.has(h)) throw new EstimationInputError(`row 1, column ${h}: the column appears twice`, { row: 1, column: h });
+  const file = readFarmFile(text, (h) => {
     const m = /^(price|fixed):(.+)$/.exec(h);
     const ok =
       h === 'farm' ||
@@ -55,24 +45,15 @@ export function parseNextCsv(text: string, history: NetputDataset): NextSeason {
         `row 1, column ${h}: unknown column (expected farm, season, price:<item> for an item of the history, fixed:<name> for a fixed factor of the history)`,
         { row: 1, column: h },
       );
-    col.set(h, c);
   });
+  const { col } = file;
   const required = ['farm', ...history.items.map((it) => `price:${it.name}`), ...history.fixedFactors.map((f) => `fixed:${f}`)];
   for (const r of required) if (!col.has(r)) throw new EstimationInputError(`row 1: the required column "${r}" is missing`, { row: 1, column: r });
   const landIdx = landFactorIndex(history);
   const landName = landIdx >= 0 ? history.fixedFactors[landIdx]! : null;
   const farms: ForecastFarm[] = [];
-  const seen = new Set<string>();
   let season: string | null = null;
-  for (let li = 1; li < lines.length; li++) {
-    const cells = lines[li]!;
-    const row = li + 1;
-    if (cells.length === 1 && cells[0]!.trim() === '') continue;
-    if (cells.length !== header.length) throw new EstimationInputError(`row ${row}: ${cells.length} cells, but the header has ${header.length} columns`, { row });
-    const farm = cells[col.get('farm')!]!.trim();
-    if (farm === '') throw new EstimationInputError(`row ${row}, column farm: empty cell`, { row, column: 'farm' });
-    if (seen.has(farm)) throw new EstimationInputError(`row ${row}, column farm: farm "${farm}" is listed twice`, { row, column: 'farm' });
-    seen.add(farm);
+  for (const { row, cells, farm } of farmRows(file)) {
     const prices: Record<string, number> = {};
     for (const it of history.items) {
       const c = `price:${it.name}`;
