@@ -4,14 +4,14 @@
  * per farm, season after season. Errors follow the back-test's sign: (projected − actual) / actual,
  * positive when the outlook projected too much (server/jobs/fit-task.ts `backtest`).
  */
-import { and, asc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { farmRecords, farms, items, outlookVersionFarms, outlookVersions, seasons } from '../db/schema/index.js';
 import { priceSeries } from '../prices/prices-repository.js';
 import type { Comparison, FarmOutlook, OutlookSnapshot } from '../../shared/outlook-types.js';
 import { itemNutrients, NUTRIENT_LABEL, NUTRIENTS, zeroAmounts, type Nutrient, type NutrientAmounts } from '../budget/nutrients.js';
 import { seasonBookedLines, seasonHasRound } from '../bookings/bookings-repository.js';
 import type { BookingLine } from '../../shared/booking-types.js';
+import { allFarmParts } from './outlook-repository.js';
+import { allItems, recordedQuantities, seasonRecordsWithFarms, versionsWithSeasons, type ItemRow, type PublishedVersionRow } from './accountability-repository.js';
 
 export type { Comparison } from '../../shared/outlook-types.js';
 
@@ -29,19 +29,17 @@ function compare(base: Omit<Comparison, 'actual' | 'error' | 'errorPct' | 'withi
 
 const mean = (xs: number[]) => (xs.length ? xs.reduce((a, b) => a + b, 0) / xs.length : null);
 
-type VersionRow = { id: number; outlookId: number; version: number; seasonId: number; snapshot: unknown; publishedAt: Date; season: string; startYear: number };
-
-async function seasonReport(db: Db, v: VersionRow, itemRows: (typeof items.$inferSelect)[]) {
+async function seasonReport(db: Db, v: PublishedVersionRow, itemRows: ItemRow[]) {
   const snap = v.snapshot as OutlookSnapshot;
-  const parts = (await db.select({ data: outlookVersionFarms.data }).from(outlookVersionFarms).where(eq(outlookVersionFarms.versionId, v.id))).map((p) => p.data as FarmOutlook);
+  const parts = await allFarmParts(db, v.id);
   const codes = snap.projection.coop.items.map((i) => i.item);
   const ids = itemRows.filter((i) => codes.includes(i.code));
-  const recs = parts.length
-    ? await db
-        .select({ farmId: farmRecords.farmId, itemId: farmRecords.itemId, quantity: farmRecords.quantity })
-        .from(farmRecords)
-        .where(and(eq(farmRecords.seasonId, v.seasonId), inArray(farmRecords.farmId, parts.map((p) => p.farmId)), inArray(farmRecords.itemId, ids.map((i) => i.id))))
-    : [];
+  const recs = await recordedQuantities(
+    db,
+    v.seasonId,
+    parts.map((p) => p.farmId),
+    ids.map((i) => i.id),
+  );
   const codeOf = new Map(ids.map((i) => [i.id, i.code]));
   const actual = new Map(recs.map((r) => [`${r.farmId}/${codeOf.get(r.itemId)}`, r.quantity]));
   const farmsOut = parts
@@ -160,15 +158,11 @@ function fertiliserRow(n: Nutrient, projected: number | null, booked: number | n
  * by the product's analysis, as booked), and what the farm records show was used. The co-op rows add
  * up the farms with records only, so the three figures cover the same farms.
  */
-async function fertiliserReport(db: Db, v: VersionRow, parts: FarmOutlook[], itemRows: (typeof items.$inferSelect)[]) {
+async function fertiliserReport(db: Db, v: PublishedVersionRow, parts: FarmOutlook[], itemRows: ItemRow[]) {
   const graded = itemRows.filter((i) => i.category === 'fertiliser' && itemNutrients(i, 1) !== null);
   const gradedById = new Map(graded.map((i) => [i.id, i]));
   const gradedByCode = new Map(graded.map((i) => [i.code, i]));
-  const recs = await db
-    .select({ farmId: farmRecords.farmId, itemId: farmRecords.itemId, quantity: farmRecords.quantity, code: farms.code, name: farms.name })
-    .from(farmRecords)
-    .innerJoin(farms, eq(farms.id, farmRecords.farmId))
-    .where(eq(farmRecords.seasonId, v.seasonId));
+  const recs = await seasonRecordsWithFarms(db, v.seasonId);
   const hasRound = await seasonHasRound(db, v.seasonId);
   const booked = await seasonBookedLines(db, v.seasonId);
   const add = (into: NutrientAmounts, a: NutrientAmounts | null) => {
@@ -226,16 +220,12 @@ async function fertiliserReport(db: Db, v: VersionRow, parts: FarmOutlook[], ite
 }
 
 export async function accountability(db: Db, which: 'latest' | 'first') {
-  const all = await db
-    .select({ id: outlookVersions.id, outlookId: outlookVersions.outlookId, version: outlookVersions.version, seasonId: outlookVersions.seasonId, snapshot: outlookVersions.snapshot, publishedAt: outlookVersions.publishedAt, season: seasons.label, startYear: seasons.startYear })
-    .from(outlookVersions)
-    .innerJoin(seasons, eq(seasons.id, outlookVersions.seasonId))
-    .orderBy(asc(seasons.startYear), asc(outlookVersions.version));
+  const all = await versionsWithSeasons(db);
   const chosen = [...new Map(all.map((v) => [v.outlookId, v])).values()].map((last) => {
     const mine = all.filter((v) => v.outlookId === last.outlookId);
     return which === 'first' ? mine[0]! : mine.at(-1)!;
   });
-  const itemRows = await db.select().from(items);
+  const itemRows = await allItems(db);
   const seasonsOut: Awaited<ReturnType<typeof seasonReport>>[] = [];
   for (const v of chosen) seasonsOut.push(await seasonReport(db, v, itemRows));
 

@@ -1,13 +1,16 @@
 /**
  * The outlook's queries: seasons an outlook opens, drafts, published versions with their farm
- * parts, the members an outlook e-mail goes to, and outbox rows of a version. A farm's part of a
+ * parts, the finished model runs an outlook may rest on, the members an outlook e-mail goes to,
+ * and outbox rows of a version. A farm's part of a
  * version is read only with the farm in the query (`farmPart`), so a member's view cannot hold
  * another farm's figures.
  */
-import { and, asc, desc, eq, getTableColumns, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, getTableColumns, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { futuresQuotes, mailOutbox, outlooks, outlookVersionFarms, outlookVersions, seasons, users } from '../db/schema/index.js';
+import { futuresQuotes, items, mailOutbox, models, modelRuns, outlooks, outlookVersionFarms, outlookVersions, seasons, users } from '../db/schema/index.js';
 import type { FarmOutlook } from '../../shared/outlook-types.js';
+import type { ForecastSpecName } from '../../shared/model-schemas.js';
+import type { BackTestResult } from '../../shared/forecast-types.js';
 import type { OutlookRow } from './projection-service.js';
 
 export type SeasonRow = typeof seasons.$inferSelect;
@@ -154,6 +157,35 @@ export async function farmPart(db: Db, versionId: number, farmId: number): Promi
     .from(outlookVersionFarms)
     .where(and(eq(outlookVersionFarms.versionId, versionId), eq(outlookVersionFarms.farmId, farmId)));
   return (part?.data as FarmOutlook | undefined) ?? null;
+}
+
+// ---- model runs an outlook may rest on ---------------------------------------------------------
+
+/** Every item's code and name. */
+export async function itemCodesAndNames(db: Db): Promise<{ code: string; name: string }[]> {
+  return db.select({ code: items.code, name: items.name }).from(items);
+}
+
+/**
+ * The succeeded runs (of all, or only those in `runIds`), newest first, with what the choice of a
+ * run reads from each result: its forecast spec, whether its fit is convex at the means, and its
+ * back-test (which may come back as JSON text).
+ */
+export async function succeededRunsWithSkill(db: Db, runIds?: number[]) {
+  return db
+    .select({
+      runId: modelRuns.id,
+      modelId: modelRuns.modelId,
+      modelName: models.name,
+      finishedAt: modelRuns.finishedAt,
+      spec: sql<ForecastSpecName | null>`${modelRuns.result}->>'spec'`,
+      convex: sql<boolean | null>`(${modelRuns.result}->'fit'->'curvature'->>'convexAtMeans')::boolean`,
+      skill: sql<BackTestResult | string | null>`${modelRuns.result}->'skill'`,
+    })
+    .from(modelRuns)
+    .innerJoin(models, eq(models.id, modelRuns.modelId))
+    .where(runIds ? and(eq(modelRuns.status, 'succeeded'), inArray(modelRuns.id, runIds.length ? runIds : [-1])) : eq(modelRuns.status, 'succeeded'))
+    .orderBy(desc(modelRuns.id));
 }
 
 // ---- e-mail -------------------------------------------------------------------------------------

@@ -5,9 +5,8 @@
  * how near their bands' coverage lies to the stated level, then the newest; a run that breaks
  * convexity or has no back-test comes after every run that has one.
  */
-import { and, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { items, models, modelRuns } from '../db/schema/index.js';
+import { itemCodesAndNames, succeededRunsWithSkill } from './outlook-repository.js';
 import { SPEC_WORDS, type ForecastSpecName } from '../../shared/model-schemas.js';
 import type { BackTestResult } from '../../shared/forecast-types.js';
 import { closerWords, skillSummary, type SkillSummary } from '../../shared/skill-words.js';
@@ -42,7 +41,7 @@ function median(xs: number[]): number | null {
 
 /** Item code → name, for the words. */
 export async function itemNames(db: Db): Promise<(code: string) => string> {
-  const rows = await db.select({ code: items.code, name: items.name }).from(items);
+  const rows = await itemCodesAndNames(db);
   const map = new Map(rows.map((r) => [r.code, r.name]));
   return (code) => map.get(code) ?? code;
 }
@@ -98,20 +97,7 @@ function reasonFor(best: RunSkill, next: RunSkill | undefined): string {
 
 /** Every finished run with its back-test in words, and the one the back-test favours. */
 export async function runChoice(db: Db, runIds?: number[]): Promise<RunChoice> {
-  const rows = await db
-    .select({
-      runId: modelRuns.id,
-      modelId: modelRuns.modelId,
-      modelName: models.name,
-      finishedAt: modelRuns.finishedAt,
-      spec: sql<ForecastSpecName | null>`${modelRuns.result}->>'spec'`,
-      convex: sql<boolean | null>`(${modelRuns.result}->'fit'->'curvature'->>'convexAtMeans')::boolean`,
-      skill: sql<BackTestResult | null>`${modelRuns.result}->'skill'`,
-    })
-    .from(modelRuns)
-    .innerJoin(models, eq(models.id, modelRuns.modelId))
-    .where(runIds ? and(eq(modelRuns.status, 'succeeded'), inArray(modelRuns.id, runIds.length ? runIds : [-1])) : eq(modelRuns.status, 'succeeded'))
-    .orderBy(desc(modelRuns.id));
+  const rows = await succeededRunsWithSkill(db, runIds);
   const nameOf = await itemNames(db);
   const runs: RunSkill[] = rows.map((r) => {
     const spec = r.spec ?? 'pooled';
