@@ -1,6 +1,4 @@
-import { asc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { futuresQuotes, items, seasons } from '../db/schema/index.js';
 import type { ItemExpectation } from '../../shared/outlook-types.js';
 import { AppError } from '../core/app-error.js';
 import { priceSeries } from '../prices/prices-repository.js';
@@ -19,24 +17,21 @@ import {
   type FuturesBySeason,
   type PricePoint,
 } from './expectations.js';
-
-type ItemRow = typeof items.$inferSelect;
+import { quotesOfItems } from './futures-repository.js';
+import { itemsWithCodes, seasonsInOrder, type ItemRow } from './projection-repository.js';
 
 export type { ItemExpectation } from '../../shared/outlook-types.js';
 
 /** The data every method of one item draws on: the co-op's mean price per season before the target, and futures quotes. */
 export async function expectationData(db: Db, itemRows: ItemRow[], target: { label: string; startYear: number }): Promise<Map<number, ExpectationData>> {
   const { currency } = await getSettings(db);
-  const seasonRows = await db.select().from(seasons).orderBy(asc(seasons.startYear));
+  const seasonRows = await seasonsInOrder(db);
   const yearOf = new Map(seasonRows.map((s) => [s.label, s.startYear]));
   const series = itemRows.length ? await priceSeries(db, itemRows.map((i) => i.id)) : { seasons: [], series: [] };
-  const quotes = itemRows.length
-    ? await db
-        .select({ itemId: futuresQuotes.itemId, seasonId: futuresQuotes.seasonId, contract: futuresQuotes.contract, quote: futuresQuotes.quote, quotedOn: futuresQuotes.quotedOn, id: futuresQuotes.id })
-        .from(futuresQuotes)
-        .where(inArray(futuresQuotes.itemId, itemRows.map((i) => i.id)))
-        .orderBy(asc(futuresQuotes.quotedOn), asc(futuresQuotes.id))
-    : [];
+  const quotes = await quotesOfItems(
+    db,
+    itemRows.map((i) => i.id),
+  );
   const seasonById = new Map(seasonRows.map((s) => [s.id, s]));
   const out = new Map<number, ExpectationData>();
   for (const it of itemRows) {
@@ -59,17 +54,13 @@ export async function expectationData(db: Db, itemRows: ItemRow[], target: { lab
   return out;
 }
 
-export async function itemsByCode(db: Db, codes: string[]) {
-  return codes.length ? db.select().from(items).where(inArray(items.code, codes)) : [];
-}
-
 /**
  * Computes every setting; problems are collected per item and reported together as a 422 whose
  * details name `body.items.<n>.method` (or `.band`), so nothing half-computed is stored.
  */
 export async function computeExpectations(db: Db, settings: ExpectationSetting[], target: { label: string; startYear: number }): Promise<ItemExpectation[]> {
   const { currency } = await getSettings(db);
-  const rows = await itemsByCode(db, settings.map((s) => s.item));
+  const rows = await itemsWithCodes(db, settings.map((s) => s.item));
   const unknown = settings.map((s, i) => ({ s, i })).filter(({ s }) => !rows.some((r) => r.code === s.item));
   if (unknown.length)
     throw AppError.invalid(
@@ -95,7 +86,7 @@ export async function computeExpectations(db: Db, settings: ExpectationSetting[]
 
 /** The candidate methods side by side for one item: value and past errors of each, to choose from. */
 export async function compareMethods(db: Db, itemCode: string, target: { label: string; startYear: number }) {
-  const [row] = await itemsByCode(db, [itemCode]);
+  const [row] = await itemsWithCodes(db, [itemCode]);
   if (!row) throw AppError.notFound(`The item "${itemCode}"`);
   const data = (await expectationData(db, [row], target)).get(row.id)!;
   const candidates: ExpectationMethod[] = [
@@ -128,10 +119,4 @@ export async function compareMethods(db: Db, itemCode: string, target: { label: 
       }
     }),
   };
-}
-
-export async function seasonById(db: Db, id: number) {
-  const [row] = await db.select().from(seasons).where(eq(seasons.id, id));
-  if (!row) throw AppError.notFound('The season');
-  return row;
 }

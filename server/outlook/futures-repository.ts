@@ -1,5 +1,5 @@
 /** Futures quotes, the history the futures-plus-basis expectation reads. */
-import { and, asc, eq, type SQL } from 'drizzle-orm';
+import { and, asc, eq, inArray, type SQL } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { futuresQuotes, items, seasons } from '../db/schema/index.js';
 
@@ -51,6 +51,16 @@ export async function updateQuote(db: Db, id: number, quote: FuturesQuoteInput):
 
 export async function deleteQuote(db: Db, id: number): Promise<void> {
   await db.delete(futuresQuotes).where(eq(futuresQuotes.id, id));
+}
+
+/** The quotes of these items (none asked: none read), by quote date. */
+export async function quotesOfItems(db: Db, itemIds: number[]) {
+  if (!itemIds.length) return [];
+  return db
+    .select({ itemId: futuresQuotes.itemId, seasonId: futuresQuotes.seasonId, contract: futuresQuotes.contract, quote: futuresQuotes.quote, quotedOn: futuresQuotes.quotedOn, id: futuresQuotes.id })
+    .from(futuresQuotes)
+    .where(inArray(futuresQuotes.itemId, itemIds))
+    .orderBy(asc(futuresQuotes.quotedOn), asc(futuresQuotes.id));
 }
 
 /** Whether the item and the season a quote names exist. */

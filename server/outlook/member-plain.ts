@@ -4,13 +4,13 @@
  * outlook's expected prices, one item order for every section, and sentences without method names.
  * Everything here is derived from the frozen version and the item list; nothing is re-estimated.
  */
-import { and, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { items, outlookVersionFarms, seasons } from '../db/schema/index.js';
 import type { FarmOutlook, ItemProjection, MemberPlain, OutlookSnapshot, PlainFertiliserLine } from '../../shared/outlook-types.js';
 import { bandCoverWords, SCENARIO_WORDS } from '../../shared/band-words.js';
 import { dayText } from '../../shared/number-format.js';
 import { seasonLabel } from '../../shared/season-calendar.js';
+import { landOfFarmParts } from './outlook-repository.js';
+import { itemsWithCodes, seasonLabelsStartingIn } from './projection-repository.js';
 
 /** The nutrient a fertiliser item carries entirely (100 % N, P2O5 or K2O), if it is one. */
 function nutrientOf(row: { category: string | null; nPct: number | null; p2o5Pct: number | null; k2oPct: number | null }): PlainFertiliserLine['nutrient'] | null {
@@ -24,7 +24,7 @@ const base = (it: ItemProjection) => it.scenarios['base']?.point ?? null;
 
 /** Season label of a first calendar year, from the seasons table ("2006" → "2006/07"). */
 async function seasonLabels(db: Db, years: number[]): Promise<Map<number, string>> {
-  const rows = years.length ? await db.select({ startYear: seasons.startYear, label: seasons.label }).from(seasons).where(inArray(seasons.startYear, years)) : [];
+  const rows = await seasonLabelsStartingIn(db, years);
   return new Map(rows.map((r) => [r.startYear, r.label]));
 }
 
@@ -35,8 +35,7 @@ export async function memberPlain(db: Db, versionId: number, s: OutlookSnapshot,
   const lastLabel = labels.get(last) ?? seasonLabel(last);
 
   // The co-op's land: the sum over the farms projected (a total, no farm's own figure).
-  const parts = await db.select({ data: outlookVersionFarms.data }).from(outlookVersionFarms).where(eq(outlookVersionFarms.versionId, versionId));
-  const coopLand = parts.reduce((sum, p) => sum + ((p.data as FarmOutlook).fixed['land_ha'] ?? 0), 0);
+  const coopLand = (await landOfFarmParts(db, versionId)).reduce<number>((sum, land) => sum + (land ?? 0), 0);
   const farmLand = farm?.fixed['land_ha'] ?? null;
 
   // One order everywhere: outputs first, then inputs, each in the model's order.
@@ -49,9 +48,7 @@ export async function memberPlain(db: Db, versionId: number, s: OutlookSnapshot,
   let fertiliser: MemberPlain['fertiliser'] = null;
   if (farm) {
     const codes = farm.items.filter((i) => i.role === 'input').map((i) => i.item);
-    const rows = codes.length
-      ? await db.select({ code: items.code, category: items.category, nPct: items.nPct, p2o5Pct: items.p2o5Pct, k2oPct: items.k2oPct }).from(items).where(and(inArray(items.code, codes), eq(items.category, 'fertiliser')))
-      : [];
+    const rows = (await itemsWithCodes(db, codes)).filter((r) => r.category === 'fertiliser');
     const lines: PlainFertiliserLine[] = [];
     for (const it of farm.items) {
       const row = rows.find((r) => r.code === it.item);

@@ -150,6 +150,18 @@ export async function allFarmParts(db: Db, versionId: number): Promise<FarmOutlo
   return parts.map((p) => p.data as FarmOutlook);
 }
 
+/**
+ * The land (ha) of every farm projected in a version, and nothing else of their parts: what the
+ * portal sums into the co-op's land (null where a part has none).
+ */
+export async function landOfFarmParts(db: Db, versionId: number): Promise<(number | null)[]> {
+  const rows = await db
+    .select({ land: sql<number | null>`(${outlookVersionFarms.data}->'fixed'->>'land_ha')::float8` })
+    .from(outlookVersionFarms)
+    .where(eq(outlookVersionFarms.versionId, versionId));
+  return rows.map((r) => (r.land === null ? null : Number(r.land)));
+}
+
 /** One farm's part of a version, the farm held in the query; null when the farm has none. */
 export async function farmPart(db: Db, versionId: number, farmId: number): Promise<FarmOutlook | null> {
   const [part] = await db

@@ -7,10 +7,9 @@
  * units and tonnes, the co-op's deliveries against its storage and handling capacity, history for
  * fan charts).
  */
-import { and, asc, eq, inArray, lt } from 'drizzle-orm';
 import type { ModelDefinition } from '../../shared/model-schemas.js';
 import type { Db } from '../db/client.js';
-import { farmRecords, farms, farmSeasonFactors, items, models, modelRuns, outlooks, seasons } from '../db/schema/index.js';
+import type { outlooks } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import type { JobHandler } from '../jobs/job-runner.js';
 import type { WorkerPool } from '../jobs/worker-pool.js';
@@ -25,6 +24,8 @@ import { scenarioPrices, SCENARIO_RULE_TEXT, type ScenarioRule } from './expecta
 import type { ItemExpectation } from './expectations-service.js';
 import { curvatureCaution } from './outlook-cautions.js';
 import { isDeliveredInTonnes, tonnesOf } from './capacity-tonnes.js';
+import { findOutlook, seasonById, updateOutlook } from './outlook-repository.js';
+import { farmsByCode, fixedFactorValues, itemsWithCodes, recordsOfFarms, runWithModelName, seasonsBefore, type ItemRow } from './projection-repository.js';
 
 export const OUTLOOK_PROJECTION_JOB = 'outlook-projection';
 
@@ -38,11 +39,7 @@ export function draftInputsHash(o: OutlookRow): string {
 }
 
 export async function succeededRun(db: Db, runId: number) {
-  const [run] = await db
-    .select({ id: modelRuns.id, modelId: modelRuns.modelId, status: modelRuns.status, definition: modelRuns.definition, result: modelRuns.result, dataHash: modelRuns.dataHash, softwareVersion: modelRuns.softwareVersion, finishedAt: modelRuns.finishedAt, modelName: models.name })
-    .from(modelRuns)
-    .innerJoin(models, eq(models.id, modelRuns.modelId))
-    .where(eq(modelRuns.id, runId));
+  const run = await runWithModelName(db, runId);
   if (!run) throw AppError.invalid('The model run does not exist', [{ path: 'body.modelRunId', message: 'No model run has this id' }]);
   if (run.status !== 'succeeded' || !run.result) throw AppError.conflict(`Model run ${runId} has not succeeded (it is ${run.status}); choose a finished run`);
   return { ...run, definition: run.definition as ModelDefinition, result: run.result as FitRunResult };
@@ -56,7 +53,7 @@ interface ProjectionInputs {
   forecast: ForecastModel | null;
   /** The expectation methods' past relative price errors, one entry per past season (null: too few). */
   priceErrors: { errors: Record<string, number[]>; seasons: string[] } | null;
-  itemRows: (typeof items.$inferSelect)[];
+  itemRows: ItemRow[];
   scenarios: { name: string; prices: Record<string, number> }[];
   farms: { id: number; code: string; name: string; region: string; fixed: Record<string, number>; fixedSource: string }[];
   inputsHash: string;
@@ -67,9 +64,9 @@ export async function gatherProjectionInputs(db: Db, o: OutlookRow): Promise<Pro
   if (!o.modelRunId) throw AppError.conflict('Choose a model run for the outlook before projecting');
   const run = await succeededRun(db, o.modelRunId);
   const fit = run.result.fit;
-  const [season] = await db.select().from(seasons).where(eq(seasons.id, o.seasonId));
+  const season = await seasonById(db, o.seasonId);
   const codes = fit.layout.items.map((i) => i.name);
-  const itemRows = await db.select().from(items).where(inArray(items.code, codes));
+  const itemRows = await itemsWithCodes(db, codes);
   const expectations = (o.expectations as ItemExpectation[]).filter((e) => codes.includes(e.item));
   const missing = codes.filter((c) => !expectations.some((e) => e.item === c));
   if (missing.length)
@@ -83,16 +80,14 @@ export async function gatherProjectionInputs(db: Db, o: OutlookRow): Promise<Pro
   );
 
   const def = run.definition;
-  const farmRows = (await db.select().from(farms).orderBy(asc(farms.code))).filter((f) => !def.farms || def.farms.includes(f.code));
+  const farmRows = (await farmsByCode(db)).filter((f) => !def.farms || def.farms.includes(f.code));
   if (!farmRows.length) throw AppError.unprocessable('The model covers no farm that is still on the register');
   const factors = fit.layout.factors.filter((f) => f !== 'trend');
-  const landRows = farmRows.length
-    ? await db
-        .select({ farmId: farmSeasonFactors.farmId, factor: farmSeasonFactors.factor, value: farmSeasonFactors.value, season: seasons.label, startYear: seasons.startYear })
-        .from(farmSeasonFactors)
-        .innerJoin(seasons, eq(seasons.id, farmSeasonFactors.seasonId))
-        .where(and(inArray(farmSeasonFactors.farmId, farmRows.map((f) => f.id)), inArray(farmSeasonFactors.factor, factors.length ? factors : ['-'])))
-    : [];
+  const landRows = await fixedFactorValues(
+    db,
+    farmRows.map((f) => f.id),
+    factors,
+  );
   const farmInputs = farmRows.map((f) => {
     const fixed: Record<string, number> = {};
     const sources: string[] = [];
@@ -162,13 +157,12 @@ export function projectionTask(inputs: ProjectionInputs, o: { draws: number; see
 const scale = (q: QuantitySummary, f: number): QuantitySummary => ({ point: q.point * f, mean: q.mean * f, sd: q.sd * f, median: q.median * f, p5: q.p5 * f, p95: q.p95 * f });
 
 async function histories(db: Db, farmIds: number[], itemRows: ProjectionInputs['itemRows'], beforeYear: number) {
-  const seasonRows = await db.select().from(seasons).where(lt(seasons.startYear, beforeYear)).orderBy(asc(seasons.startYear));
-  const recs = farmIds.length
-    ? await db
-        .select({ farmId: farmRecords.farmId, seasonId: farmRecords.seasonId, itemId: farmRecords.itemId, quantity: farmRecords.quantity })
-        .from(farmRecords)
-        .where(and(inArray(farmRecords.farmId, farmIds), inArray(farmRecords.itemId, itemRows.map((i) => i.id))))
-    : [];
+  const seasonRows = await seasonsBefore(db, beforeYear);
+  const recs = await recordsOfFarms(
+    db,
+    farmIds,
+    itemRows.map((i) => i.id),
+  );
   const seasonIdx = new Map(seasonRows.map((s, k) => [s.id, k]));
   const empty = (): History => ({ seasons: seasonRows.map((s) => s.label), items: Object.fromEntries(itemRows.map((i) => [i.code, seasonRows.map(() => null)])) });
   const coop = empty();
@@ -278,8 +272,8 @@ function sum(xs: number[]) {
 export function projectionJobHandler(db: Db, pool: WorkerPool): JobHandler {
   return async (job, { signal }) => {
     const id = job.refId!;
-    const set = (v: Partial<typeof outlooks.$inferInsert>) => db.update(outlooks).set(v).where(eq(outlooks.id, id));
-    const [o] = await db.select().from(outlooks).where(eq(outlooks.id, id));
+    const set = (v: Partial<typeof outlooks.$inferInsert>) => updateOutlook(db, id, v);
+    const o = await findOutlook(db, id);
     if (!o) return;
     await set({ projectionStatus: 'running', projectionProgress: 0.05, projectionStage: 'Gathering farms and expected prices', projectionError: null });
     try {
