@@ -7,12 +7,11 @@
  * The published snapshot belongs to server/outlook; only the fields read here are checked, so a
  * version without a co-op projection answers 422 rather than a wrong number.
  */
-import { eq } from 'drizzle-orm';
 import { z } from 'zod';
 import type { Db } from '../db/client.js';
-import { outlookVersionFarms, outlookVersions } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { getRun } from '../models/models-service.js';
+import { allFarmParts, findVersion } from '../outlook/outlook-repository.js';
 import type { FitResult, ForecastModel } from '../estimation/index.js';
 import type { BudgetSource } from '../../shared/budget-schemas.js';
 import type { ResolvedSource } from './budget-compute.js';
@@ -39,7 +38,7 @@ const snapshotSchema = z.object({
 const farmPartSchema = z.object({ code: z.string(), fixed: z.record(z.string(), z.number()) });
 
 export async function resolveOutlook(db: Db, source: Extract<BudgetSource, { kind: 'outlook' }>): Promise<ResolvedSource> {
-  const [row] = await db.select().from(outlookVersions).where(eq(outlookVersions.id, source.outlookVersionId));
+  const row = await findVersion(db, source.outlookVersionId);
   if (!row) throw AppError.notFound('The published outlook');
   const parsed = snapshotSchema.safeParse(row.snapshot);
   if (!parsed.success) throw new BudgetInputError(`Published outlook ${source.outlookVersionId} carries no co-op projection a budget can read`, 'source.outlookVersionId');
@@ -62,9 +61,9 @@ export async function resolveOutlook(db: Db, source: Extract<BudgetSource, { kin
     if (!(demand[n] > 0)) throw new BudgetInputError(`The outlook projects no positive ${n} demand (${Math.round(demand[n])} kg)`, 'source.outlookVersionId');
   }
 
-  const parts = await db.select({ data: outlookVersionFarms.data }).from(outlookVersionFarms).where(eq(outlookVersionFarms.versionId, row.id));
+  const parts = await allFarmParts(db, row.id);
   const points = parts
-    .map((p) => farmPartSchema.safeParse(p.data))
+    .map((p) => farmPartSchema.safeParse(p))
     .filter((p) => p.success)
     .map((p) => ({ farm: p.data.code, season: snap.season.label, fixed: p.data.fixed }))
     .sort((a, b) => (a.farm < b.farm ? -1 : a.farm > b.farm ? 1 : 0));
