@@ -1,30 +1,17 @@
-import { and, asc, eq, isNull } from 'drizzle-orm';
 import type { UserStatus, UserSummary } from '../../shared/api-types.js';
 import type { Role } from '../../shared/roles.js';
 import type { Db } from '../db/client.js';
-import { farms, sessions, users } from '../db/schema/index.js';
+import type { users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import type { AppContext } from '../context.js';
 import { mailOneTimeLink, MailNotSent } from '../auth/link-mail.js';
+import * as repo from './users-repository.js';
 
 function statusOf(u: { active: boolean; passwordHash: string | null }): UserStatus {
   if (!u.active) return 'deactivated';
   return u.passwordHash ? 'active' : 'invited';
 }
-
-const summaryColumns = {
-  id: users.id,
-  email: users.email,
-  name: users.name,
-  role: users.role,
-  active: users.active,
-  passwordHash: users.passwordHash,
-  createdAt: users.createdAt,
-  lastSignInAt: users.lastSignInAt,
-  farmId: farms.id,
-  farmName: farms.name,
-};
 
 function toSummary(r: {
   id: number;
@@ -52,12 +39,12 @@ function toSummary(r: {
 }
 
 export async function listUsers(db: Db): Promise<UserSummary[]> {
-  const rows = await db.select(summaryColumns).from(users).leftJoin(farms, eq(farms.id, users.farmId)).orderBy(asc(users.name));
+  const rows = await repo.listUserRows(db);
   return rows.map(toSummary);
 }
 
 export async function getUser(db: Db, id: number): Promise<UserSummary> {
-  const [row] = await db.select(summaryColumns).from(users).leftJoin(farms, eq(farms.id, users.farmId)).where(eq(users.id, id));
+  const row = await repo.findUserRow(db, id);
   if (!row) throw AppError.notFound('The user');
   return toSummary(row);
 }
@@ -65,11 +52,10 @@ export async function getUser(db: Db, id: number): Promise<UserSummary> {
 /** Links a member to a farm (several members may share one, e.g. a family farm), or unlinks with null. */
 async function assignFarm(db: Db, userId: number, farmId: number | null | undefined) {
   if (farmId === undefined) return;
-  if (farmId !== null) {
-    const [farm] = await db.select({ id: farms.id }).from(farms).where(eq(farms.id, farmId));
-    if (!farm) throw AppError.invalid('The farm does not exist', [{ path: 'body.farmId', message: 'No farm has this id' }]);
+  if (farmId !== null && !(await repo.farmExists(db, farmId))) {
+    throw AppError.invalid('The farm does not exist', [{ path: 'body.farmId', message: 'No farm has this id' }]);
   }
-  await db.update(users).set({ farmId }).where(eq(users.id, userId));
+  await repo.setUserFarm(db, userId, farmId);
 }
 
 export interface Invitation {
@@ -95,17 +81,16 @@ export async function inviteUser(ctx: AppContext, inv: Invitation, actorUserId: 
     throw AppError.invalid('Only members belong to a farm', [{ path: 'body.farmId', message: 'Leave empty unless the role is member' }]);
   }
   const id = await ctx.db.transaction(async (tx) => {
-    const [existing] = await tx.select({ id: users.id }).from(users).where(eq(users.email, inv.email));
-    if (existing) throw AppError.conflict(`An account for ${inv.email} already exists`);
-    const [created] = await tx.insert(users).values({ email: inv.email, name: inv.name, role: inv.role }).returning({ id: users.id });
-    await assignFarm(tx, created!.id, inv.farmId ?? undefined);
-    return created!.id;
+    if (await repo.emailTaken(tx, inv.email)) throw AppError.conflict(`An account for ${inv.email} already exists`);
+    const created = await repo.insertInvitedUser(tx, { email: inv.email, name: inv.name, role: inv.role });
+    await assignFarm(tx, created, inv.farmId ?? undefined);
+    return created;
   });
   try {
     await mailOneTimeLink(ctx, { id, email: inv.email, name: inv.name, role: inv.role }, 'invite');
   } catch (err) {
     // Its only token went with the failed message; the account has done nothing yet.
-    await ctx.db.delete(users).where(and(eq(users.id, id), isNull(users.passwordHash)));
+    await repo.deleteUnacceptedUser(ctx.db, id);
     if (err instanceof MailNotSent) {
       throw mailDown(`The mail service could not be reached, so the invitation to ${inv.email} was not sent and no account was created. Try again in a few minutes.`, err);
     }
@@ -169,10 +154,10 @@ export async function updateUser(db: Db, id: number, patch: UserPatch, actorUser
     if (patch.name !== undefined) set.name = patch.name;
     if (patch.role !== undefined) set.role = patch.role;
     if (patch.active !== undefined) set.active = patch.active;
-    if (Object.keys(set).length) await tx.update(users).set(set).where(eq(users.id, id));
+    if (Object.keys(set).length) await repo.updateUserFields(tx, id, set);
     await assignFarm(tx, id, role !== 'member' ? (before.farmId ? null : undefined) : patch.farmId);
     // A deactivated account, or one whose role changed, signs in again.
-    if (patch.active === false || (patch.role && patch.role !== before.role)) await tx.delete(sessions).where(eq(sessions.userId, id));
+    if (patch.active === false || (patch.role && patch.role !== before.role)) await repo.deleteSessionsOf(tx, id);
     const after = await getUser(tx, id);
     await recordAudit(tx, { actorUserId, action: 'user.update', entity: 'user', entityId: id, before, after });
   });
