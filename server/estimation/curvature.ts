@@ -215,17 +215,7 @@ export function imposeConvexity(args: ImposeArgs): ImposedFit {
     const r = eigC.filter((v) => v > 1e-9 * Math.max(...eigC.map(Math.abs))).length;
     let complementarity = 0;
     if (r > 0) {
-      const L = factorOf(C, r);
-      const J: number[][] = [];
-      for (let a = 0; a < size; a++)
-        for (let l = 0; l < r; l++) {
-          const dC = zeros(size, size);
-          for (let j = 0; j < size; j++) {
-            dC[a]![j]! += L[j]![l]!;
-            dC[j]![a]! += L[j]![l]!;
-          }
-          J.push(block.fromMatrix(dC));
-        }
+      const J = factorJacobian(factorOf(C, r), size, block.fromMatrix);
       const Mb = inverseSymmetric(Vb);
       const gL = J.map((col) => col.reduce((s, v, e) => s + v * gb[e]!, 0));
       const MJ = J.map((col) => Mb.map((row) => row.reduce((s, v, e) => s + v * col[e]!, 0)));
@@ -310,27 +300,10 @@ export function imposeConvexity(args: ImposeArgs): ImposedFit {
     covariance = inverseSymmetric(A);
     covarianceRank = k;
   } else {
-    const C = block.toMatrix(theta);
-    const { values, vectors } = symmetricEigen(C);
-    const L = zeros(size, rank);
-    for (let c = 0; c < rank; c++) {
-      const col = size - rank + c;
-      const r = Math.sqrt(Math.max(values[col]!, 0));
-      for (let a = 0; a < size; a++) L[a]![c] = vectors[a]![col]! * r;
-    }
-    // ∂c/∂L_ac: dC = E_ac L′ + L E_ca.
+    // ∂c/∂L_ac at C = L L′ (L: the top `rank` eigenvectors scaled by √eigenvalue), column a·rank + c.
     const q = size * rank + nonBlock.length;
     const G = zeros(k, q);
-    for (let a = 0; a < size; a++)
-      for (let c = 0; c < rank; c++) {
-        const dC = zeros(size, size);
-        for (let j = 0; j < size; j++) {
-          dC[a]![j]! += L[j]![c]!;
-          dC[j]![a]! += L[j]![c]!;
-        }
-        const dc = block.fromMatrix(dC);
-        bi.forEach((j, e) => (G[j]![a * rank + c] = dc[e]!));
-      }
+    factorJacobian(factorOf(block.toMatrix(theta), rank), size, block.fromMatrix).forEach((dc, p) => bi.forEach((j, e) => (G[j]![p] = dc[e]!)));
     nonBlock.forEach((j, x) => (G[j]![size * rank + x] = 1));
     const GtAG = matMulT(G, matMul(A, G));
     const dsc = GtAG.map((row, i) => (row[i]! > 0 ? 1 / Math.sqrt(row[i]!) : 1));
@@ -415,6 +388,22 @@ function coneKkt(M: Mat, chat: number[], c: number[], basis: Entry[][], size: nu
   return jacobiEigenvalues(Lt)[0]! >= -tol && jacobiEigenvalues(Ct)[0]! >= -tol * Math.max(1, normC);
 }
 
+/** J: ∂c/∂L_{a,l} of c(L L′) for L (size × r), from dC = E_al L′ + L E_la; one column per (a, l), a-major. */
+function factorJacobian(L: Mat, size: number, fromMatrix: (C: Mat) => number[]): number[][] {
+  const r = L[0]?.length ?? 0;
+  const J: number[][] = [];
+  for (let a = 0; a < size; a++)
+    for (let l = 0; l < r; l++) {
+      const dC = zeros(size, size);
+      for (let j = 0; j < size; j++) {
+        dC[a]![j]! += L[j]![l]!;
+        dC[j]![a]! += L[j]![l]!;
+      }
+      J.push(fromMatrix(dC));
+    }
+  return J;
+}
+
 /** Standard errors of the diagonal entries C_aa, from the covariance V of the block coordinates. */
 function seDiagonal(V: Mat, basis: Entry[][], size: number): number[] {
   return Array.from({ length: size }, (_, a) => {
@@ -449,17 +438,7 @@ function faceNewton(M: Mat, chat: number[], L0: Mat, size: number, fromMatrix: (
   let settled = false;
   for (let it = 0; it < 30; it++) {
     const { q, g: gc } = quadratic(M, chat, c);
-    // J: ∂c/∂L_{a,l} from dC = E_al L′ + L E_la.
-    const J: number[][] = [];
-    for (let a = 0; a < size; a++)
-      for (let l = 0; l < r; l++) {
-        const dC = zeros(size, size);
-        for (let j = 0; j < size; j++) {
-          dC[a]![j]! += L[j]![l]!;
-          dC[j]![a]! += L[j]![l]!;
-        }
-        J.push(fromMatrix(dC));
-      }
+    const J = factorJacobian(L, size, fromMatrix);
     const grad = J.map((col) => col.reduce((s, v, e) => s + v * gc[e]!, 0));
     const MJ = J.map((col) => M.map((row) => row.reduce((s, v, e) => s + v * col[e]!, 0)));
     const gn = J.map((colA) => MJ.map((colB) => 2 * colA.reduce((s, v, e) => s + v * colB[e]!, 0)));
