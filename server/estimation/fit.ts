@@ -73,7 +73,14 @@ export function prepareModel(ds: NetputDataset, options: FitOptions = {}): Prepa
   const data: ModelData = {
     T,
     prices: order.map((i) => Float64Array.from(ds.prices[i]!)),
-    netputs: order.map((i) => Float64Array.from(ds.quantities[i]!, (q) => (ds.items[i]!.role === 'output' ? q : -q))),
+    netputs: order.map((i) => {
+      // outputs positive, inputs negative (a plain loop: a mapping callback per element is slow on long panels)
+      const q = ds.quantities[i]!;
+      const out = new Float64Array(q.length);
+      const sign = ds.items[i]!.role === 'output' ? 1 : -1;
+      for (let o = 0; o < q.length; o++) out[o] = sign * q[o]!;
+      return out;
+    }),
     factors: [
       ...ds.fixed.map((f) => Float64Array.from(f)),
       ...(options.trend ? [Float64Array.from(ds.seasonYears, (y) => y - trendOrigin! + 1)] : []),

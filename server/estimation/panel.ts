@@ -77,6 +77,13 @@ export function landFactorIndex(ds: NetputDataset, name?: string): number {
  * Fit the forecasting model. Pure and deterministic.
  * @throws EstimationInputError for unusable data or options
  */
+/** v / land, element by element (a plain loop: long panels). */
+function perHectare(v: ArrayLike<number>, land: ArrayLike<number>): number[] {
+  const out = new Array<number>(v.length);
+  for (let o = 0; o < v.length; o++) out[o] = v[o]! / land[o]!;
+  return out;
+}
+
 export function fitForecastModel(ds: NetputDataset, options: ForecastModelOptions = {}): ForecastModel {
   const landIdx = landFactorIndex(ds, options.land);
   const spec: ForecastSpec = options.spec ?? (landIdx >= 0 && ds.farms ? 'per-hectare' : 'pooled');
@@ -134,8 +141,8 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const dsHa: NetputDataset = {
     ...ds,
     fixedFactors: ds.fixedFactors.filter((_, k) => k !== landIdx),
-    quantities: ds.quantities.map((q) => q.map((v, o) => v / land[o]!)),
-    fixed: ds.fixed.filter((_, k) => k !== landIdx).map((z) => z.map((v, o) => v / land[o]!)),
+    quantities: ds.quantities.map((q) => perHectare(q, land)),
+    fixed: ds.fixed.filter((_, k) => k !== landIdx).map((z) => perHectare(z, land)),
   };
   const prepared = prepareModel(dsHa, {
     ...(options.form ? { form: options.form } : {}),
@@ -168,7 +175,8 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const F = farmNames.length;
   const S = seasons.years.length;
   const seasonIndex = new Map(seasons.years.map((y, s) => [y, s]));
-  const seasonOf = Int32Array.from(ds.seasonYears, (y) => seasonIndex.get(y)!);
+  const seasonOf = new Int32Array(N);
+  for (let o = 0; o < N; o++) seasonOf[o] = seasonIndex.get(ds.seasonYears[o]!)!;
   const Tf = new Int32Array(F);
   for (let o = 0; o < N; o++) Tf[farmOf[o]!]!++;
   const lastLand = new Float64Array(F);
@@ -212,14 +220,23 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   let eqCols: Map<ArrayLike<number>, Float64Array>[] = equations.map(() => new Map());
   const glsActive = (): boolean => keep.some((kk) => kk.some((v) => v !== 1));
   /** sqw_o (v_o − θ_is v̄_s), v̄_s the w-weighted mean of season s. */
-  const quasiDemean = (v: ArrayLike<number>, i: number): Float64Array => {
-    const num = new Float64Array(S);
-    const den = new Float64Array(S);
-    for (let o = 0; o < N; o++) {
-      const s = seasonOf[o]!;
-      num[s]! += w[o]! * v[o]!;
-      den[s]! += w[o]!;
+  // season sums of the common weights (set with the weights)
+  let seasonWeight: Float64Array | null = null;
+  const seasonWeights = (): Float64Array => {
+    if (!seasonWeight) {
+      seasonWeight = new Float64Array(S);
+      for (let o = 0; o < N; o++) seasonWeight[seasonOf[o]!]! += w[o]!;
     }
+    return seasonWeight;
+  };
+  /** sqw_o (v_o − θ_is v̄_s); `seasonSums` (Σ_{o∈s} w_o v_o) when the caller has them. */
+  const quasiDemean = (v: ArrayLike<number>, i: number, seasonSums?: Float64Array): Float64Array => {
+    let num = seasonSums;
+    if (!num) {
+      num = new Float64Array(S);
+      for (let o = 0; o < N; o++) num[seasonOf[o]!]! += w[o]! * v[o]!;
+    }
+    const den = seasonWeights();
     const th = keep[i]!;
     const sub = new Float64Array(S);
     for (let s = 0; s < S; s++) sub[s] = den[s]! > 0 ? ((1 - th[s]!) * num[s]!) / den[s]! : 0;
@@ -228,9 +245,98 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     return out;
   };
 
-  const weightedEquations = (): SurEquationInput[] =>
-    glsActive()
-      ? equations.map((eq, i) => {
+  /**
+   * Within-season statistics of the raw regressors under the common weights (set with the weights):
+   * per season s, the weight W_s, the weighted sums Σ w x_u and the centred cross products
+   * C_s[u][v] = Σ_{o∈s} w (x_u − x̄_us)(x_v − x̄_vs). With them the cross product of two
+   * quasi-demeaned columns sqw (x_u − θ_is x̄_us) and sqw (x_v − θ_js x̄_vs) is
+   * Σ_s C_s[u][v] + (1 − θ_is)(1 − θ_js) (Σ w x_u)(Σ w x_v) / W_s, S terms instead of N.
+   * A regressor that does not vary within any season (a season's prices, a trend) has C_s = 0
+   * with every other, so only the pairs of regressors that vary within seasons cost a pass.
+   */
+  let withinSeason: { cols: Map<ArrayLike<number>, number>; raw: ArrayLike<number>[]; sums: Float64Array[] } | null = null;
+  const withinSeasonStats = () => {
+    if (withinSeason) return withinSeason;
+    const cols = new Map<ArrayLike<number>, number>();
+    const raw: ArrayLike<number>[] = [];
+    for (const eq of equations)
+      for (const r of eq.regressors)
+        if (!cols.has(r.values)) {
+          cols.set(r.values, raw.length);
+          raw.push(r.values);
+        }
+    const sums = raw.map((v) => {
+      const t = new Float64Array(S);
+      for (let o = 0; o < N; o++) t[seasonOf[o]!]! += w[o]! * v[o]!;
+      return t;
+    });
+    withinSeason = { cols, raw, sums };
+    return withinSeason;
+  };
+  let centredProducts: (Float64Array | null)[][] | null = null;
+  const withinSeasonCentred = (): (Float64Array | null)[][] => {
+    if (centredProducts) return centredProducts;
+    const { raw, sums } = withinSeasonStats();
+    const W = seasonWeights();
+    // w_o (x_o − x̄_s) for the regressors that vary within a season, null for the others
+    const dev = raw.map((v, u) => {
+      const m = sums[u]!.map((t, s) => (W[s]! > 0 ? t / W[s]! : 0));
+      const d = new Float64Array(N);
+      let varies = false;
+      for (let o = 0; o < N; o++) {
+        const x = v[o]! - m[seasonOf[o]!]!;
+        if (Math.abs(x) > 1e-12 * (Math.abs(v[o]!) + Math.abs(m[seasonOf[o]!]!))) varies = true;
+        d[o] = x;
+      }
+      return varies ? d : null;
+    });
+    const U = raw.length;
+    const centred = Array.from({ length: U }, () => new Array<Float64Array | null>(U).fill(null));
+    for (let u = 0; u < U; u++) {
+      const du = dev[u];
+      if (!du) continue;
+      const wdu = new Float64Array(N);
+      for (let o = 0; o < N; o++) wdu[o] = w[o]! * du[o]!;
+      for (let v = u; v < U; v++) {
+        const dv = dev[v];
+        if (!dv) continue;
+        const c = new Float64Array(S);
+        for (let o = 0; o < N; o++) c[seasonOf[o]!]! += wdu[o]! * dv[o]!;
+        centred[u]![v] = c;
+        centred[v]![u] = c;
+      }
+    }
+    centredProducts = centred;
+    return centred;
+  };
+  /** Puts the cross products of every pair of quasi-demeaned regressors into the SUR's cache. */
+  const cacheGlsCrossProducts = (eqs: SurEquationInput[]): void => {
+    const { cols, sums } = withinSeasonStats();
+    const centred = withinSeasonCentred();
+    const W = seasonWeights();
+    const entries = eqs.flatMap((eq, i) =>
+      eq.regressors.map((r, a) => ({ col: r.values as Float64Array, u: cols.get(equations[i]!.regressors[a]!.values)!, keep: keep[i]! })),
+    );
+    for (let p = 0; p < entries.length; p++) {
+      const A = entries[p]!;
+      let inner = gramCache.get(A.col);
+      if (!inner) gramCache.set(A.col, (inner = new WeakMap()));
+      for (let q = 0; q < entries.length; q++) {
+        const B = entries[q]!;
+        if (inner.has(B.col)) continue;
+        const c = centred[A.u]![B.u];
+        const sa = sums[A.u]!;
+        const sb = sums[B.u]!;
+        let x = 0;
+        for (let s = 0; s < S; s++) x += (c ? c[s]! : 0) + (W[s]! > 0 ? (A.keep[s]! * B.keep[s]! * sa[s]! * sb[s]!) / W[s]! : 0);
+        inner.set(B.col, x);
+      }
+    }
+  };
+  const weightedEquations = (): SurEquationInput[] => {
+    if (!glsActive()) return plainWeightedEquations();
+    let built = false;
+    const eqs = equations.map((eq, i) => {
           const yi = y[i]!;
           const mi = mu[i]!;
           const d = new Float64Array(N);
@@ -241,14 +347,20 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
             regressors: eq.regressors.map((r) => {
               let c = eqCols[i]!.get(r.values);
               if (!c) {
-                c = quasiDemean(r.values, i);
+                const { cols, sums } = withinSeasonStats();
+                c = quasiDemean(r.values, i, sums[cols.get(r.values)!]);
                 eqCols[i]!.set(r.values, c);
+                built = true;
               }
               return { name: r.name, values: c };
             }),
           };
-        })
-      : equations.map((eq, i) => {
+        });
+    if (built) cacheGlsCrossProducts(eqs);
+    return eqs;
+  };
+  const plainWeightedEquations = (): SurEquationInput[] =>
+      equations.map((eq, i) => {
       const yi = y[i]!;
       const mi = mu[i]!;
       const yw = new Float64Array(N);
@@ -272,6 +384,9 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     deltaW = d;
     w = mapF(logL, (x) => Math.exp(-d * x));
     sqw = mapF(w, Math.sqrt);
+    seasonWeight = null;
+    withinSeason = null;
+    centredProducts = null;
     weightedCols = new Map();
     eqCols = equations.map(() => new Map());
     gramCache = new WeakMap();
@@ -403,26 +518,35 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       acc += eq.regressors.length;
     }
   }
+  // Σ_{o∈s} (L_o/L̄)^−δ_i per season, kept for the δ_i it was computed at
+  const itemSeasonW = equations.map(() => ({ delta: NaN, sums: new Float64Array(S) }));
+  const itemSeasonWeights = (i: number): Float64Array => {
+    const c = itemSeasonW[i]!;
+    if (c.delta !== delta[i]) {
+      const wi = new Float64Array(S);
+      for (let o = 0; o < N; o++) wi[seasonOf[o]!]! += Math.exp(-delta[i]! * logL[o]!);
+      itemSeasonW[i] = { delta: delta[i]!, sums: wi };
+    }
+    return itemSeasonW[i]!.sums;
+  };
   /** The season-shock covariance from the current fit (seasonShockCovariance) and its inputs. */
   const seasonShock = () => {
     const sigmaInv = inverse(sur!.sigmaUsed);
+    // g[s][a] = Σ_{o∈s} w_o x_oa (raw regressors, common weights), from the within-season sums
+    const { cols, sums } = withinSeasonStats();
     const seasonSums = equations.map((eq) => {
-      // g[s][a] = Σ_{o∈s} w_o x_oa (raw regressors, common weights)
-      const Ka = eq.regressors.length;
-      const g = Array.from({ length: S }, () => new Float64Array(Ka));
+      const g = Array.from({ length: S }, () => new Float64Array(eq.regressors.length));
       eq.regressors.forEach((reg, a) => {
-        const v = reg.values;
-        for (let o = 0; o < N; o++) g[seasonOf[o]!]![a]! += w[o]! * v[o]!;
+        const t = sums[cols.get(reg.values)!]!;
+        for (let s = 0; s < S; s++) g[s]![a] = t[s]!;
       });
       return g;
     });
-    const seasonW = new Float64Array(S);
-    for (let o = 0; o < N; o++) seasonW[seasonOf[o]!]! += w[o]!;
+    const seasonW = Float64Array.from(seasonWeights());
     let est: { covariance: Mat; df: number } | null = null;
     if (useSeason) {
       const noise = sigma2.map((s2, i) => {
-        const wi = new Float64Array(S);
-        for (let o = 0; o < N; o++) wi[seasonOf[o]!]! += Math.exp(-delta[i]! * logL[o]!);
+        const wi = itemSeasonWeights(i);
         return Array.from(wi, (v) => s2 / v);
       });
       est = seasonShockCovariance(lambda, sur!.covariance, sigmaInv, seasonSums, seasonW, offsets, noise, keep);
