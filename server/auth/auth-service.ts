@@ -1,10 +1,22 @@
-import { and, eq, isNull, ne, sql } from 'drizzle-orm';
 import type { Me, TokenInfo } from '../../shared/api-types.js';
 import type { Db } from '../db/client.js';
-import { oneTimeTokens, sessions, users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { newToken, sha256 } from '../core/tokens.js';
 import { recordAudit } from '../audit/audit-repository.js';
+import {
+  claimToken,
+  deleteSessionsOf,
+  deleteToken,
+  findMeRow,
+  findTokenByHash,
+  findUserByEmailIgnoringCase,
+  findUserForSignIn,
+  insertToken,
+  markSignedIn,
+  retireTokensExcept,
+  setFailedSignIns,
+  setPasswordSignedIn,
+} from './auth-repository.js';
 import { dummyPasswordHash, hashPassword, verifyPassword } from './passwords.js';
 
 /** After this many wrong passwords in a row the account is locked for LOCK_MINUTES. */
@@ -14,10 +26,7 @@ export const INVITE_DAYS = 7;
 export const RESET_HOURS = 2;
 
 export async function meOf(db: Db, userId: number): Promise<Me> {
-  const [row] = await db
-    .select({ id: users.id, email: users.email, name: users.name, role: users.role, farmId: users.farmId })
-    .from(users)
-    .where(eq(users.id, userId));
+  const row = await findMeRow(db, userId);
   if (!row) throw AppError.notFound('The account');
   return { ...row, farmId: row.farmId ?? null };
 }
@@ -26,7 +35,7 @@ const WRONG = 'The e-mail address or the password is wrong';
 
 /** Checks a password; counts failures and locks the account after too many in a row. */
 export async function checkCredentials(db: Db, email: string, password: string): Promise<number> {
-  const [user] = await db.select().from(users).where(eq(users.email, email));
+  const user = await findUserForSignIn(db, email);
   if (!user) {
     await verifyPassword(await dummyPasswordHash(), password);
     throw new AppError(401, 'invalid_credentials', WRONG);
@@ -38,17 +47,16 @@ export async function checkCredentials(db: Db, email: string, password: string):
   if (!ok || !user.active) {
     if (!ok) {
       const failed = user.failedSignIns + 1;
-      await db
-        .update(users)
-        .set({
-          failedSignIns: failed >= MAX_FAILED_SIGN_INS ? 0 : failed,
-          lockedUntil: failed >= MAX_FAILED_SIGN_INS ? new Date(Date.now() + LOCK_MINUTES * 60_000) : null,
-        })
-        .where(eq(users.id, user.id));
+      await setFailedSignIns(
+        db,
+        user.id,
+        failed >= MAX_FAILED_SIGN_INS ? 0 : failed,
+        failed >= MAX_FAILED_SIGN_INS ? new Date(Date.now() + LOCK_MINUTES * 60_000) : null,
+      );
     }
     throw new AppError(401, 'invalid_credentials', ok ? 'This account has been deactivated; ask your co-op administrator' : WRONG);
   }
-  await db.update(users).set({ failedSignIns: 0, lockedUntil: null, lastSignInAt: new Date() }).where(eq(users.id, user.id));
+  await markSignedIn(db, user.id);
   return user.id;
 }
 
@@ -60,41 +68,22 @@ export async function checkCredentials(db: Db, email: string, password: string):
 export async function createToken(db: Db, userId: number, purpose: 'invite' | 'reset'): Promise<{ id: number; token: string }> {
   const token = newToken();
   const ms = purpose === 'invite' ? INVITE_DAYS * 86400_000 : RESET_HOURS * 3600_000;
-  const [row] = await db
-    .insert(oneTimeTokens)
-    .values({ tokenHash: sha256(token), userId, purpose, expiresAt: new Date(Date.now() + ms) })
-    .returning({ id: oneTimeTokens.id });
-  return { id: row!.id, token };
+  const id = await insertToken(db, sha256(token), userId, purpose, new Date(Date.now() + ms));
+  return { id, token };
 }
 
 /** Ends every unused token of the account and purpose except `keepId`. */
 export async function retireOtherTokens(db: Db, userId: number, purpose: 'invite' | 'reset', keepId: number) {
-  await db
-    .update(oneTimeTokens)
-    .set({ usedAt: new Date() })
-    .where(and(eq(oneTimeTokens.userId, userId), eq(oneTimeTokens.purpose, purpose), isNull(oneTimeTokens.usedAt), ne(oneTimeTokens.id, keepId)));
+  await retireTokensExcept(db, userId, purpose, keepId);
 }
 
 /** Removes a token whose message was never sent. */
 export async function dropToken(db: Db, id: number) {
-  await db.delete(oneTimeTokens).where(eq(oneTimeTokens.id, id));
+  await deleteToken(db, id);
 }
 
 async function findToken(db: Db, token: string) {
-  const [row] = await db
-    .select({
-      id: oneTimeTokens.id,
-      purpose: oneTimeTokens.purpose,
-      expiresAt: oneTimeTokens.expiresAt,
-      usedAt: oneTimeTokens.usedAt,
-      userId: users.id,
-      email: users.email,
-      name: users.name,
-      active: users.active,
-    })
-    .from(oneTimeTokens)
-    .innerJoin(users, eq(users.id, oneTimeTokens.userId))
-    .where(eq(oneTimeTokens.tokenHash, sha256(token)));
+  const row = await findTokenByHash(db, sha256(token));
   if (!row) throw AppError.notFound('This link');
   if (row.usedAt) throw AppError.gone('This link has already been used; ask for a new one');
   if (row.expiresAt.getTime() < Date.now()) throw AppError.gone('This link has expired; ask for a new one');
@@ -112,17 +101,9 @@ export async function redeemToken(db: Db, token: string, password: string): Prom
   const hash = await hashPassword(password);
   return db.transaction(async (tx) => {
     const row = await findToken(tx, token);
-    const claimed = await tx
-      .update(oneTimeTokens)
-      .set({ usedAt: new Date() })
-      .where(and(eq(oneTimeTokens.id, row.id), isNull(oneTimeTokens.usedAt)))
-      .returning({ id: oneTimeTokens.id });
-    if (claimed.length === 0) throw AppError.gone('This link has already been used; ask for a new one');
-    await tx
-      .update(users)
-      .set({ passwordHash: hash, failedSignIns: 0, lockedUntil: null, lastSignInAt: new Date() })
-      .where(eq(users.id, row.userId));
-    await tx.delete(sessions).where(eq(sessions.userId, row.userId));
+    if (!(await claimToken(tx, row.id))) throw AppError.gone('This link has already been used; ask for a new one');
+    await setPasswordSignedIn(tx, row.userId, hash);
+    await deleteSessionsOf(tx, row.userId);
     await recordAudit(tx, {
       actorUserId: row.userId,
       action: row.purpose === 'invite' ? 'user.accept-invitation' : 'user.reset-password',
@@ -134,9 +115,5 @@ export async function redeemToken(db: Db, token: string, password: string): Prom
 }
 
 export async function findUserByEmail(db: Db, email: string) {
-  const [user] = await db
-    .select({ id: users.id, name: users.name, email: users.email, role: users.role, active: users.active })
-    .from(users)
-    .where(eq(sql`lower(${users.email})`, email.toLowerCase()));
-  return user;
+  return findUserByEmailIgnoringCase(db, email);
 }
