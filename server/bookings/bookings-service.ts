@@ -6,10 +6,8 @@
  * minor units (shared/booking-money.ts), never taken from the client.
  */
 import crypto from 'node:crypto';
-import { and, desc, eq, sql } from 'drizzle-orm';
 import { DateTime } from 'luxon';
 import type { Db } from '../db/client.js';
-import { bookingPayments, bookingRounds, bookings, budgets, farms, items, outlookVersionFarms, outlookVersions, seasons, users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { leastCostTonnes } from '../budget/product-mix.js';
@@ -28,7 +26,35 @@ import {
   type CheckoutStart,
 } from '../../shared/booking-types.js';
 import type { BookingPlan, BudgetResult } from '../../shared/budget-types.js';
-import { activeBooking, farmBooking, paymentsOf, roundWithNames, type BookingRow, type PaymentRow, type RoundRow } from './bookings-repository.js';
+import {
+  activeBooking,
+  budgetById,
+  countRoundBookings,
+  farmBookings,
+  farmBooking,
+  farmById,
+  fertiliserItems,
+  insertBooking,
+  insertPayment,
+  insertRound,
+  latestRoundWithNames,
+  latestSeasonOutlook,
+  lockBooking,
+  lockFarmBooking,
+  lockPayment,
+  outlookFarmParts,
+  paymentsOf,
+  pendingPaymentsOfBooking,
+  roundOfSeason,
+  roundWithNames,
+  updateBooking,
+  updatePayment,
+  updateRound,
+  userRecipient,
+  type BookingRow,
+  type PaymentRow,
+  type RoundRow,
+} from './bookings-repository.js';
 import { BOOKING_PATH, bookingConfirmationMail, cancellationMail, refundMail, type BookingFacts, type BookingMailContext, type Recipient } from './booking-mail.js';
 import type { PaymentGateway } from './payment-gateway.js';
 
@@ -80,7 +106,7 @@ export interface BudgetFacts {
 }
 
 export async function budgetFacts(db: Db, budgetId: number): Promise<BudgetFacts> {
-  const [b] = await db.select().from(budgets).where(eq(budgets.id, budgetId));
+  const b = await budgetById(db, budgetId);
   if (!b) throw AppError.notFound('The budget');
   const result = b.result as BudgetResult;
   const base = result.scenarios.find((s) => s.name.toLowerCase() === 'base') ?? result.scenarios[0];
@@ -125,18 +151,10 @@ interface FarmPart {
  * base scenario, point projection; fertiliser items count by their grade (kg of nutrient per unit).
  */
 export async function projectedNeeds(db: Db, seasonId: number, farmId?: number): Promise<{ needs: Map<number, NutrientAmounts>; source: string } | null> {
-  const [version] = await db
-    .select({ id: outlookVersions.id, version: outlookVersions.version, title: sql<string>`${outlookVersions.snapshot}->>'title'` })
-    .from(outlookVersions)
-    .where(eq(outlookVersions.seasonId, seasonId))
-    .orderBy(desc(outlookVersions.publishedAt), desc(outlookVersions.id))
-    .limit(1);
+  const version = await latestSeasonOutlook(db, seasonId);
   if (!version) return null;
-  const parts = await db
-    .select({ farmId: outlookVersionFarms.farmId, data: outlookVersionFarms.data })
-    .from(outlookVersionFarms)
-    .where(farmId === undefined ? eq(outlookVersionFarms.versionId, version.id) : and(eq(outlookVersionFarms.versionId, version.id), eq(outlookVersionFarms.farmId, farmId)));
-  const fert = await db.select().from(items).where(eq(items.category, 'fertiliser'));
+  const parts = await outlookFarmParts(db, version.id, farmId);
+  const fert = await fertiliserItems(db);
   const byCode = new Map(fert.map((i) => [i.code, i]));
   const needs = new Map<number, NutrientAmounts>();
   for (const p of parts) {
@@ -198,19 +216,12 @@ export function bookingView(b: BookingRow, payments: PaymentRow[], farmName: str
 
 /** The latest round (by season) is the one members book in. */
 export async function currentRound(db: Db) {
-  const [row] = await db
-    .select({ round: bookingRounds, season: seasons.label, budgetName: budgets.name })
-    .from(bookingRounds)
-    .innerJoin(seasons, eq(seasons.id, bookingRounds.seasonId))
-    .innerJoin(budgets, eq(budgets.id, bookingRounds.budgetId))
-    .orderBy(desc(seasons.startYear))
-    .limit(1);
-  return row ?? null;
+  return latestRoundWithNames(db);
 }
 
 async function farmOf(db: Db, farmId: number | null) {
   if (farmId === null) throw new AppError(409, 'no_farm', 'Your account is not linked to a farm; ask the co-op office to link it');
-  const [f] = await db.select().from(farms).where(eq(farms.id, farmId));
+  const f = await farmById(db, farmId);
   if (!f) throw AppError.notFound('Your farm');
   return f;
 }
@@ -263,7 +274,7 @@ export async function memberOffer(d: BookingDeps, farmId: number | null): Promis
 
 export async function memberBookings(d: BookingDeps, farmId: number | null): Promise<BookingView[]> {
   const farm = await farmOf(d.db, farmId);
-  const rows = await d.db.select().from(bookings).where(eq(bookings.farmId, farm.id)).orderBy(desc(bookings.id));
+  const rows = await farmBookings(d.db, farm.id);
   const payments = await paymentsOf(
     d.db,
     rows.map((r) => r.id),
@@ -290,18 +301,13 @@ export async function saveRound(d: BookingDeps, input: BookingRoundInput, actorU
   }
   return d.db.transaction(async (tx) => {
     const season = await findOrCreateSeason(tx, input.season, actorUserId);
-    const [before] = await tx.select().from(bookingRounds).where(eq(bookingRounds.seasonId, season.id));
+    const before = await roundOfSeason(tx, season.id);
     if (before && before.budgetId !== input.budgetId) {
-      const [{ n }] = (await tx.select({ n: sql<number>`count(*)`.mapWith(Number) }).from(bookings).where(eq(bookings.roundId, before.id))) as [{ n: number }];
+      const n = await countRoundBookings(tx, before.id);
       if (n > 0) throw AppError.conflict(`Members have already booked in the ${input.season} round at the prices of its budget; the budget can no longer change`);
     }
     const values = { seasonId: season.id, budgetId: input.budgetId, discountDeadline: input.discountDeadline, discountBp, vatBp, currency: facts.currency, updatedAt: new Date() };
-    const [row] = before
-      ? await tx.update(bookingRounds).set(values).where(eq(bookingRounds.id, before.id)).returning()
-      : await tx
-          .insert(bookingRounds)
-          .values({ ...values, createdBy: actorUserId })
-          .returning();
+    const row = before ? await updateRound(tx, before.id, values) : await insertRound(tx, { ...values, createdBy: actorUserId });
     await recordAudit(tx, { actorUserId, action: before ? 'booking_round.update' : 'booking_round.create', entity: 'booking-round', entityId: row!.id, before: before ?? null, after: row });
     return roundView({ round: row!, season: season.label, budgetName: '' }, todayOf(d));
   });
@@ -343,7 +349,7 @@ function facts(b: BookingRow, season: string, deadline: string): BookingFacts {
 }
 
 async function recipientOf(db: Db, userId: number): Promise<Recipient> {
-  const [u] = await db.select({ email: users.email, name: users.name }).from(users).where(eq(users.id, userId));
+  const u = await userRecipient(db, userId);
   if (!u) throw AppError.notFound('Your account');
   return u;
 }
@@ -383,33 +389,22 @@ export async function placeBooking(d: BookingDeps, user: { id: number; farmId: n
       updatedAt: new Date(),
     };
     if (bookingId) {
-      const [old] = await tx
-        .select()
-        .from(bookings)
-        .where(and(eq(bookings.id, bookingId), eq(bookings.farmId, farm.id)))
-        .for('update');
+      const old = await lockFarmBooking(tx, bookingId, farm.id);
       if (!old) throw AppError.notFound('The booking');
       if (old.status !== 'placed') throw AppError.conflict(old.status === 'prepaid' ? 'The booking is prepaid; to change it, cancel it (the prepayment is refunded in full) and book again' : 'The booking is cancelled');
       if (input.version !== undefined && input.version !== old.version) throw AppError.stale('The booking was changed meanwhile; here is the stored one', old);
-      [saved] = (await tx
-        .update(bookings)
-        .set({ ...values, version: old.version + 1 })
-        .where(eq(bookings.id, old.id))
-        .returning()) as [BookingRow];
+      saved = (await updateBooking(tx, old.id, { ...values, version: old.version + 1 }))!;
       // An unfinished payment of the old version is withdrawn; if it is still paid, it is refunded (payment-events.ts).
-      const open = await tx.select().from(bookingPayments).where(and(eq(bookingPayments.bookingId, old.id), eq(bookingPayments.state, 'pending')));
+      const open = await pendingPaymentsOfBooking(tx, old.id);
       for (const p of open) {
-        await tx.update(bookingPayments).set({ state: 'failed', lastSource: 'booking changed', updatedAt: new Date() }).where(eq(bookingPayments.id, p.id));
+        await updatePayment(tx, p.id, { state: 'failed', lastSource: 'booking changed', updatedAt: new Date() });
         await recordAudit(tx, { actorUserId: user.id, action: 'payment.state', entity: 'booking-payment', entityId: p.id, before: { state: 'pending' }, after: { state: 'failed', source: 'booking changed' } });
       }
       await recordAudit(tx, { actorUserId: user.id, action: 'booking.update', entity: 'booking', entityId: old.id, before: old, after: saved });
     } else {
       const existing = await activeBooking(tx, round.round.id, farm.id);
       if (existing) throw AppError.conflict(`Your farm already has booking ${existing.id} in ${round.season}; change that one`);
-      [saved] = (await tx
-        .insert(bookings)
-        .values({ ...values, roundId: round.round.id, farmId: farm.id, seasonId: round.round.seasonId, budgetId: round.round.budgetId, placedBy: user.id })
-        .returning()) as [BookingRow];
+      saved = await insertBooking(tx, { ...values, roundId: round.round.id, farmId: farm.id, seasonId: round.round.seasonId, budgetId: round.round.budgetId, placedBy: user.id });
       await recordAudit(tx, { actorUserId: user.id, action: 'booking.create', entity: 'booking', entityId: saved.id, after: saved });
     }
     await bookingConfirmationMail(tx, d.mail, recipient, facts(saved, round.season, round.round.discountDeadline));
@@ -445,11 +440,7 @@ export async function startCheckout(d: BookingDeps, user: { id: number; email: s
     // After the deadline the early-payment discount no longer applies: the amount is worked out again.
     const a = bookingAmounts(booking.lines as BookingLine[], 0, booking.vatBp);
     booking = await d.db.transaction(async (tx) => {
-      const [after] = await tx
-        .update(bookings)
-        .set({ discountBp: 0, discountMinor: 0, netMinor: a.netMinor, vatMinor: a.vatMinor, totalMinor: a.totalMinor, version: booking!.version + 1, updatedAt: new Date() })
-        .where(eq(bookings.id, bookingId))
-        .returning();
+      const after = await updateBooking(tx, bookingId, { discountBp: 0, discountMinor: 0, netMinor: a.netMinor, vatMinor: a.vatMinor, totalMinor: a.totalMinor, version: booking!.version + 1, updatedAt: new Date() });
       await recordAudit(tx, { actorUserId: user.id, action: 'booking.update', entity: 'booking', entityId: bookingId, before: booking, after: { ...after, reason: 'paid after the discount deadline' } });
       return after!;
     });
@@ -462,10 +453,7 @@ export async function startCheckout(d: BookingDeps, user: { id: number; email: s
   }
   const b = booking;
   const payment = await d.db.transaction(async (tx) => {
-    const [p] = await tx
-      .insert(bookingPayments)
-      .values({ bookingId: b.id, bookingVersion: b.version, idempotencyKey: `booking-${b.id}-v${b.version}-${crypto.randomUUID()}`, amountMinor: b.totalMinor, currency: b.currency, state: 'pending', lastSource: 'member' })
-      .returning();
+    const p = await insertPayment(tx, { bookingId: b.id, bookingVersion: b.version, idempotencyKey: `booking-${b.id}-v${b.version}-${crypto.randomUUID()}`, amountMinor: b.totalMinor, currency: b.currency, state: 'pending', lastSource: 'member' });
     await recordAudit(tx, { actorUserId: user.id, action: 'payment.create', entity: 'booking-payment', entityId: p!.id, after: { state: 'pending', bookingId: b.id, amountMinor: b.totalMinor, currency: b.currency } });
     return p!;
   });
@@ -492,10 +480,7 @@ export async function createSessionFor(d: BookingDeps, payment: PaymentRow, b: B
   } catch (err) {
     throw new AppError(502, 'payment_service', `The payment service did not answer (${(err as Error).message}); nothing was charged. Try again in a moment.`);
   }
-  await d.db
-    .update(bookingPayments)
-    .set({ checkoutSessionId: session.sessionId, checkoutUrl: session.url, updatedAt: new Date() })
-    .where(eq(bookingPayments.id, payment.id));
+  await updatePayment(d.db, payment.id, { checkoutSessionId: session.sessionId, checkoutUrl: session.url, updatedAt: new Date() });
   return session;
 }
 
@@ -514,22 +499,18 @@ export async function cancelBooking(d: BookingDeps, user: { id: number; farmId: 
   const paid = (await paymentsOf(d.db, [booking.id])).filter((p) => p.state === 'paid');
   for (const p of paid) await refundPayment(d, p, user.id, 'member cancelled', recipient);
   await d.db.transaction(async (tx) => {
-    const [old] = await tx.select().from(bookings).where(eq(bookings.id, booking.id)).for('update');
+    const old = await lockFarmBooking(tx, booking.id, farm.id);
     if (!old || old.status === 'cancelled') return;
-    const [after] = await tx
-      .update(bookings)
-      .set({ status: 'cancelled', version: old.version + 1, cancelledAt: new Date(), updatedAt: new Date() })
-      .where(eq(bookings.id, old.id))
-      .returning();
-    const open = await tx.select().from(bookingPayments).where(and(eq(bookingPayments.bookingId, old.id), eq(bookingPayments.state, 'pending')));
+    const after = await updateBooking(tx, old.id, { status: 'cancelled', version: old.version + 1, cancelledAt: new Date(), updatedAt: new Date() });
+    const open = await pendingPaymentsOfBooking(tx, old.id);
     for (const p of open) {
-      await tx.update(bookingPayments).set({ state: 'failed', lastSource: 'booking cancelled', updatedAt: new Date() }).where(eq(bookingPayments.id, p.id));
+      await updatePayment(tx, p.id, { state: 'failed', lastSource: 'booking cancelled', updatedAt: new Date() });
       await recordAudit(tx, { actorUserId: user.id, action: 'payment.state', entity: 'booking-payment', entityId: p.id, before: { state: 'pending' }, after: { state: 'failed', source: 'booking cancelled' } });
     }
     await recordAudit(tx, { actorUserId: user.id, action: 'booking.cancel', entity: 'booking', entityId: old.id, before: { status: old.status, version: old.version }, after: { status: after!.status, version: after!.version } });
     if (!paid.length) await cancellationMail(tx, d.mail, recipient, facts(after!, round.season, round.round.discountDeadline));
   });
-  const [row] = await d.db.select().from(bookings).where(eq(bookings.id, booking.id));
+  const row = await farmBooking(d.db, booking.id, farm.id);
   return bookingView(row!, await paymentsOf(d.db, [booking.id]), farm.name, round, today);
 }
 
@@ -547,12 +528,12 @@ export async function refundPayment(d: BookingDeps, p: PaymentRow, actorUserId: 
     throw new AppError(502, 'payment_service', `The payment service did not refund (${(err as Error).message}); the booking is unchanged. Try again in a moment.`);
   }
   await d.db.transaction(async (tx) => {
-    const [cur] = await tx.select().from(bookingPayments).where(eq(bookingPayments.id, p.id)).for('update');
+    const cur = await lockPayment(tx, p.id);
     if (!cur || cur.state !== 'paid') return;
-    await tx.update(bookingPayments).set({ state: 'refunded', refundId: refund.refundId, refundedAt: new Date(), lastSource: source, updatedAt: new Date() }).where(eq(bookingPayments.id, p.id));
+    await updatePayment(tx, p.id, { state: 'refunded', refundId: refund.refundId, refundedAt: new Date(), lastSource: source, updatedAt: new Date() });
     await recordAudit(tx, { actorUserId, action: 'payment.state', entity: 'booking-payment', entityId: p.id, before: { state: 'paid' }, after: { state: 'refunded', refundId: refund.refundId, source } });
-    const [b] = await tx.select().from(bookings).where(eq(bookings.id, cur.bookingId)).for('update');
-    if (b && b.status === 'prepaid') await tx.update(bookings).set({ status: 'placed', updatedAt: new Date() }).where(eq(bookings.id, b.id));
+    const b = await lockBooking(tx, cur.bookingId);
+    if (b && b.status === 'prepaid') await updateBooking(tx, b.id, { status: 'placed', updatedAt: new Date() });
     if (b && recipient) {
       const round = (await roundWithNames(tx, b.roundId))!;
       await refundMail(tx, d.mail, recipient, facts(b, round.season, round.round.discountDeadline), cur);
