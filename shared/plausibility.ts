@@ -13,7 +13,7 @@ export interface PriceHistory {
   count: number;
 }
 
-/** One item's prices season by season (server/prices/price-history.ts), oldest first. */
+/** One item's prices season by season (`priceHistories` in server/prices/prices-repository.ts), oldest first. */
 export type SeasonPrices = readonly { startYear: number; median: number; count: number }[];
 
 /** Seasons that make an item's history around a season. */

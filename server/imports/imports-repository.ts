@@ -4,8 +4,8 @@ import { and, asc, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { contracts, deliveryPoints, farmRecords, farms, farmSeasonFactors, imports, items, priceObservations, seasons, users } from '../db/schema/index.js';
 import { getSettings } from '../settings/settings-repository.js';
-import { recordHistories } from '../records/record-history.js';
-import { priceHistories } from '../prices/price-history.js';
+import { recordHistories } from '../records/records-repository.js';
+import { priceHistories } from '../prices/prices-repository.js';
 import type { CommitCounts, ContractWrite, FactorWrite, Lookups, OnExisting, PriceWrite, RecordWrite, TableCounts, TableName } from './import-types.js';
 import { forEachRow, type RowSource, type WriteSet } from './packed-rows.js';
 

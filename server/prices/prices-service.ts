@@ -15,9 +15,8 @@ import type { Db } from '../db/client.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { getSettings } from '../settings/settings-service.js';
 import { PRICE_COLUMNS, priceExportChunks, streamSpreadsheet, type ExportFormat } from '../exports/data-exports.js';
-import { countPrices, deletePriceRows, filterOf, getPrice, insertPrices, itemsAndSeasons, listPrices, lockPrice, pagePrices, priceIdsInTableOrder, writePrice, type PriceFilter } from './prices-repository.js';
+import { countPrices, deletePriceRows, filterOf, getPrice, insertPrices, itemsAndSeasons, listPrices, lockPrice, pagePrices, priceHistories, priceIdsInTableOrder, writePrice, type PriceFilter } from './prices-repository.js';
 import type { ChangeTracker } from '../db/change-tracker.js';
-import { priceHistories } from './price-history.js';
 
 export { getPrice } from './prices-repository.js';
 export { priceSeries } from './prices-repository.js';
