@@ -1,10 +1,9 @@
 import { createHash } from 'node:crypto';
-import { and, asc, eq, inArray } from 'drizzle-orm';
 import type { ModelDefinition } from '../../shared/model-schemas.js';
 import type { Db } from '../db/client.js';
-import { deliveryPoints, farmRecords, farms, farmSeasonFactors, items, priceObservations, seasons } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import type { NetputDataset } from '../estimation/index.js';
+import { farmRecordsOf, farmSeasonFactorsOf, farmsByCode, itemsByCode, pricesWithRegion, seasonsOldestFirst } from './models-repository.js';
 
 export interface ExcludedObservation {
   farm: string;
@@ -18,18 +17,18 @@ export interface ExcludedObservation {
  * mean at the delivery points of its region, or the co-op mean where its region has none.
  */
 export async function buildDataset(db: Db, def: ModelDefinition): Promise<{ dataset: NetputDataset; excluded: ExcludedObservation[] }> {
-  const itemRows = await db.select().from(items).where(inArray(items.code, def.items));
+  const itemRows = await itemsByCode(db, def.items);
   const missing = def.items.filter((c) => !itemRows.some((r) => r.code === c));
   if (missing.length) throw AppError.invalid(`Unknown item: ${missing.join(', ')}`, [{ path: 'definition.items', message: `Unknown: ${missing.join(', ')}` }]);
   // Outputs first, then inputs, in the order chosen.
   const ordered = def.items.map((c) => itemRows.find((r) => r.code === c)!).sort((a, b) => (a.role === b.role ? 0 : a.role === 'output' ? -1 : 1));
-  const allSeasons = await db.select().from(seasons).orderBy(asc(seasons.startYear));
+  const allSeasons = await seasonsOldestFirst(db);
   const fromYear = def.fromSeason ? allSeasons.find((s) => s.label === def.fromSeason)?.startYear : -Infinity;
   const toYear = def.toSeason ? allSeasons.find((s) => s.label === def.toSeason)?.startYear : Infinity;
   if (fromYear === undefined) throw AppError.invalid(`Unknown season ${def.fromSeason}`, [{ path: 'definition.fromSeason', message: 'No such season' }]);
   if (toYear === undefined) throw AppError.invalid(`Unknown season ${def.toSeason}`, [{ path: 'definition.toSeason', message: 'No such season' }]);
   const sample = allSeasons.filter((s) => s.startYear >= fromYear && s.startYear <= toYear);
-  const farmRows = (await db.select().from(farms).orderBy(asc(farms.code))).filter((f) => !def.farms || def.farms.includes(f.code));
+  const farmRows = (await farmsByCode(db)).filter((f) => !def.farms || def.farms.includes(f.code));
   if (def.farms) {
     const unknown = def.farms.filter((c) => !farmRows.some((f) => f.code === c));
     if (unknown.length) throw AppError.invalid(`Unknown farm: ${unknown.join(', ')}`, [{ path: 'definition.farms', message: `Unknown: ${unknown.join(', ')}` }]);
@@ -38,25 +37,15 @@ export async function buildDataset(db: Db, def: ModelDefinition): Promise<{ data
   const seasonIds = sample.map((s) => s.id);
   const farmIds = farmRows.map((f) => f.id);
   const priceRows = seasonIds.length
-    ? await db
-        .select({ itemId: priceObservations.itemId, seasonId: priceObservations.seasonId, price: priceObservations.price, region: deliveryPoints.region })
-        .from(priceObservations)
-        .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
-        .where(and(inArray(priceObservations.itemId, itemIds), inArray(priceObservations.seasonId, seasonIds)))
+    ? await pricesWithRegion(db, itemIds, seasonIds)
     : [];
   const recordRows =
     seasonIds.length && farmIds.length
-      ? await db
-          .select()
-          .from(farmRecords)
-          .where(and(inArray(farmRecords.itemId, itemIds), inArray(farmRecords.seasonId, seasonIds), inArray(farmRecords.farmId, farmIds)))
+      ? await farmRecordsOf(db, itemIds, seasonIds, farmIds)
       : [];
   const factorRows =
     seasonIds.length && farmIds.length && def.fixedFactors.length
-      ? await db
-          .select()
-          .from(farmSeasonFactors)
-          .where(and(inArray(farmSeasonFactors.factor, def.fixedFactors), inArray(farmSeasonFactors.seasonId, seasonIds), inArray(farmSeasonFactors.farmId, farmIds)))
+      ? await farmSeasonFactorsOf(db, def.fixedFactors, seasonIds, farmIds)
       : [];
   const unrecorded = def.fixedFactors.filter((f) => !factorRows.some((r) => r.factor === f));
   if (unrecorded.length) {

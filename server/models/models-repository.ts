@@ -1,8 +1,8 @@
 /** The models and their runs: plain queries, no use case (models-service.ts holds those). */
-import { and, desc, eq, inArray } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray } from 'drizzle-orm';
 import type { ModelDefinition } from '../../shared/model-schemas.js';
 import type { Db } from '../db/client.js';
-import { models, modelRuns, users } from '../db/schema/index.js';
+import { deliveryPoints, farmRecords, farms, farmSeasonFactors, items, models, modelRuns, priceObservations, seasons, users } from '../db/schema/index.js';
 
 export type ModelRow = typeof models.$inferSelect;
 export type ModelRunRow = typeof modelRuns.$inferSelect;
@@ -81,4 +81,42 @@ export async function userName(db: Db, userId: number | null): Promise<string | 
   if (userId === null) return null;
   const [row] = await db.select({ name: users.name }).from(users).where(eq(users.id, userId));
   return row?.name ?? null;
+}
+
+// The estimation sample's reads (model-data.ts builds the dataset from them). Models are fitted
+// over the co-op's data desk, not one farm's part of it, so these reads are not narrowed to a farm.
+
+export async function itemsByCode(db: Db, codes: string[]) {
+  return db.select().from(items).where(inArray(items.code, codes));
+}
+
+export async function seasonsOldestFirst(db: Db) {
+  return db.select().from(seasons).orderBy(asc(seasons.startYear));
+}
+
+export async function farmsByCode(db: Db) {
+  return db.select().from(farms).orderBy(asc(farms.code));
+}
+
+/** Every price observation of the items in the seasons, with its delivery point's region. */
+export async function pricesWithRegion(db: Db, itemIds: number[], seasonIds: number[]) {
+  return db
+    .select({ itemId: priceObservations.itemId, seasonId: priceObservations.seasonId, price: priceObservations.price, region: deliveryPoints.region })
+    .from(priceObservations)
+    .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
+    .where(and(inArray(priceObservations.itemId, itemIds), inArray(priceObservations.seasonId, seasonIds)));
+}
+
+export async function farmRecordsOf(db: Db, itemIds: number[], seasonIds: number[], farmIds: number[]) {
+  return db
+    .select()
+    .from(farmRecords)
+    .where(and(inArray(farmRecords.itemId, itemIds), inArray(farmRecords.seasonId, seasonIds), inArray(farmRecords.farmId, farmIds)));
+}
+
+export async function farmSeasonFactorsOf(db: Db, factors: string[], seasonIds: number[], farmIds: number[]) {
+  return db
+    .select()
+    .from(farmSeasonFactors)
+    .where(and(inArray(farmSeasonFactors.factor, factors), inArray(farmSeasonFactors.seasonId, seasonIds), inArray(farmSeasonFactors.farmId, farmIds)));
 }
