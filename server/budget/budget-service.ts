@@ -3,9 +3,7 @@
  * inputs and the result computed from them in one transaction, with an audit entry; reading
  * returns the stored result (in the reader's units), and recomputing the stored inputs gives it again.
  */
-import { desc, eq, inArray } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { budgets, models, users } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import { getSettings } from '../settings/settings-service.js';
@@ -16,6 +14,7 @@ import { monthsOutsideInputs, monthWords, seasonLabel, seasonWindows, type Seaso
 import type { BudgetInput, BudgetSource } from '../../shared/budget-schemas.js';
 import { computeBudget, type BudgetResult, type ProductCopy, type ResolvedSource } from './budget-compute.js';
 import { inUnits } from './budget-units.js';
+import { deleteBudgetRow, findBudgetRow, insertBudget, listBudgetRows, modelName, updateBudgetRow, userName } from './budget-repository.js';
 import { activeProducts, productsByIds } from './fertiliser-products-repository.js';
 import { demandAt, farmPoints, modelDemand } from './model-demand.js';
 import { nutrientItemsOf, priceItemsOf } from './nutrient-items.js';
@@ -41,7 +40,7 @@ async function resolveModelRun(db: Db, source: Extract<BudgetSource, { kind: 'mo
   const ds = run.dataset;
   const nutrientItems = await nutrientItemsOf(db, fit, source.items);
   const md = modelDemand(fit, ds, { prices: source.prices, season: source.season, items: nutrientItems });
-  const [model] = await db.select({ name: models.name }).from(models).where(eq(models.id, run.modelId));
+  const name = await modelName(db, run.modelId);
   const points = farmPoints(fit, ds, md.season);
   const priceItems = await priceItemsOf(db, Object.keys(md.prices));
   const nutrientPrices: Partial<Record<Nutrient, number>> = {};
@@ -55,7 +54,7 @@ async function resolveModelRun(db: Db, source: Extract<BudgetSource, { kind: 'mo
     detail: {
       runId: run.id,
       modelId: run.modelId,
-      modelName: model?.name ?? null,
+      modelName: name,
       dataHash: run.dataHash,
       runSoftwareVersion: run.softwareVersion,
       season: md.season,
@@ -172,32 +171,10 @@ async function unitSystemOf(db: Db, requested: UnitSystem | undefined): Promise<
 }
 export { unitSystemOf };
 
-const budgetColumns = {
-  id: budgets.id,
-  name: budgets.name,
-  source: budgets.source,
-  products: budgets.products,
-  bookingPlan: budgets.bookingPlan,
-  scenarios: budgets.scenarios,
-  options: budgets.options,
-  result: budgets.result,
-  softwareVersion: budgets.softwareVersion,
-  createdBy: budgets.createdBy,
-  updatedBy: budgets.updatedBy,
-  createdAt: budgets.createdAt,
-  updatedAt: budgets.updatedAt,
-};
-
 async function findRow(db: Db, id: number) {
-  const [row] = await db.select(budgetColumns).from(budgets).where(eq(budgets.id, id));
+  const row = await findBudgetRow(db, id);
   if (!row) throw AppError.notFound('The budget');
   return row;
-}
-
-async function userName(db: Db, id: number | null): Promise<string | null> {
-  if (id === null) return null;
-  const [u] = await db.select({ name: users.name }).from(users).where(eq(users.id, id));
-  return u?.name ?? null;
 }
 
 function view(row: Awaited<ReturnType<typeof findRow>>, system: UnitSystem, names: { createdByName: string | null; updatedByName: string | null }) {
@@ -222,7 +199,7 @@ export async function budgetForExport(db: Db, id: number, system: UnitSystem) {
 }
 
 export async function listBudgets(db: Db) {
-  const rows = await db.select(budgetColumns).from(budgets).orderBy(desc(budgets.updatedAt), desc(budgets.id));
+  const rows = await listBudgetRows(db);
   return rows.map((r) => {
     const res = r.result as BudgetResult;
     return {
@@ -242,12 +219,9 @@ export async function listBudgets(db: Db) {
 export async function createBudget(db: Db, input: BudgetInput, actorUserId: number, system: UnitSystem) {
   const { inputs, result } = await prepare(db, input);
   const id = await db.transaction(async (tx) => {
-    const [row] = await tx
-      .insert(budgets)
-      .values({ name: input.name, ...inputs, result, softwareVersion: result.softwareVersion, createdBy: actorUserId, updatedBy: actorUserId })
-      .returning({ id: budgets.id });
-    await recordAudit(tx, { actorUserId, action: 'budget.create', entity: 'budget', entityId: row!.id, after: { name: input.name, ...inputs } });
-    return row!.id;
+    const newId = await insertBudget(tx, { name: input.name, ...inputs, result, softwareVersion: result.softwareVersion, createdBy: actorUserId, updatedBy: actorUserId });
+    await recordAudit(tx, { actorUserId, action: 'budget.create', entity: 'budget', entityId: newId, after: { name: input.name, ...inputs } });
+    return newId;
   });
   return getBudget(db, id, system);
 }
@@ -257,10 +231,7 @@ export async function updateBudget(db: Db, id: number, input: BudgetInput, actor
   const { inputs, result } = await prepare(db, input);
   await db.transaction(async (tx) => {
     const before = await findRow(tx, id);
-    await tx
-      .update(budgets)
-      .set({ name: input.name, ...inputs, result, softwareVersion: result.softwareVersion, updatedBy: actorUserId, updatedAt: new Date() })
-      .where(eq(budgets.id, id));
+    await updateBudgetRow(tx, id, { name: input.name, ...inputs, result, softwareVersion: result.softwareVersion, updatedBy: actorUserId, updatedAt: new Date() });
     await recordAudit(tx, {
       actorUserId,
       action: 'budget.update',
@@ -276,7 +247,7 @@ export async function updateBudget(db: Db, id: number, input: BudgetInput, actor
 export async function deleteBudget(db: Db, id: number, actorUserId: number) {
   await db.transaction(async (tx) => {
     const before = await findRow(tx, id);
-    await tx.delete(budgets).where(eq(budgets.id, id));
+    await deleteBudgetRow(tx, id);
     await recordAudit(tx, { actorUserId, action: 'budget.delete', entity: 'budget', entityId: id, before: { name: before.name, source: before.source } });
   });
 }

@@ -1,12 +1,11 @@
-import { inArray } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { items } from '../db/schema/index.js';
+import { itemLabelsByCodes, itemsByCodes, type ItemRow } from './budget-repository.js';
 import type { FitResult } from '../estimation/index.js';
 import type { NutrientItem } from './model-demand.js';
 import { BudgetInputError, GRADE_FIELD, NUTRIENTS, type Nutrient } from './nutrients.js';
 
 /** kg of nutrient per unit of an item measured in kg or t of nutrient (or of a graded product). */
-export function kgPerUnit(item: typeof items.$inferSelect, nutrient: Nutrient): number {
+export function kgPerUnit(item: ItemRow, nutrient: Nutrient): number {
   const unit = item.unit.trim().toLowerCase();
   const mass = /^kg\b/.test(unit) ? 1 : /^(t|tonnes?|metric tons?)\b/.test(unit) ? 1000 : null;
   if (mass === null) throw new BudgetInputError(`The model item "${item.code}" is measured in "${item.unit}"; a budget needs kg or t of ${nutrient}`, `source.items.${nutrient}`);
@@ -17,7 +16,7 @@ export function kgPerUnit(item: typeof items.$inferSelect, nutrient: Nutrient): 
 /** The model item of each nutrient: as named, or the fertiliser item carrying only that nutrient at 100 %. */
 export async function nutrientItemsOf(db: Db, fit: FitResult, named: Partial<Record<Nutrient, string>> | undefined): Promise<Record<Nutrient, NutrientItem>> {
   const codes = fit.layout.items.filter((i) => i.role === 'input').map((i) => i.name);
-  const rows = codes.length ? await db.select().from(items).where(inArray(items.code, codes)) : [];
+  const rows = codes.length ? await itemsByCodes(db, codes) : [];
   const out = {} as Record<Nutrient, NutrientItem>;
   for (const n of NUTRIENTS) {
     let row: (typeof rows)[number] | undefined;
@@ -45,7 +44,7 @@ export async function nutrientItemsOf(db: Db, fit: FitResult, named: Partial<Rec
  * "Wheat EUR 212.10/t" rather than a bare code and number. An item gone from the list keeps its code.
  */
 export async function priceItemsOf(db: Db, codes: readonly string[]): Promise<Record<string, { name: string; unit: string }>> {
-  const rows = codes.length ? await db.select({ code: items.code, name: items.name, unit: items.unit }).from(items).where(inArray(items.code, [...codes])) : [];
+  const rows = codes.length ? await itemLabelsByCodes(db, [...codes]) : [];
   return Object.fromEntries(
     codes.map((code) => {
       const row = rows.find((r) => r.code === code);
