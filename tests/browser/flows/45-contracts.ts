@@ -138,7 +138,8 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
           return source?.kind === 'contracted' && source.outlookId === season.id;
         }, { timeout: 60_000 });
         await contracted.click();
-        await page.getByRole('combobox', { name: 'Season outlook' }).click();
+        // The demand source's own outlook choice (the basis comparison further down has one too).
+        await page.locator('np-budget-source-section').getByRole('combobox', { name: 'Season outlook' }).click();
         await page.getByRole('option', { name: /2026\/27/ }).click();
         const answer = await preview;
         assert(answer.ok(), `the preview answered ${answer.status()}: ${(await answer.text()).slice(0, 300)}`);
