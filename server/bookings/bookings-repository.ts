@@ -2,7 +2,7 @@
  * Queries of member bookings. Every member-facing read and write names the farm it is held to
  * (the member's own, from the session), so a member can neither see nor touch another farm's booking.
  */
-import { and, asc, desc, eq, inArray, ne, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, lte, ne, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { bookingPayments, bookingRounds, bookings, budgets, farms, items, outlookVersionFarms, outlookVersions, seasons, users } from '../db/schema/index.js';
 
@@ -229,4 +229,26 @@ export async function insertRound(tx: Db, values: typeof bookingRounds.$inferIns
 export async function updateRound(tx: Db, roundId: number, set: Partial<typeof bookingRounds.$inferInsert>) {
   const [row] = await tx.update(bookingRounds).set(set).where(eq(bookingRounds.id, roundId)).returning();
   return row;
+}
+
+/** Rounds whose discount deadline is on or before `date`, with their season names. */
+export async function roundsWithDeadlineBy(db: Db, date: string) {
+  return db
+    .select({ round: bookingRounds, season: seasons.label })
+    .from(bookingRounds)
+    .innerJoin(seasons, eq(seasons.id, bookingRounds.seasonId))
+    .where(lte(bookingRounds.discountDeadline, date));
+}
+
+/** The farms with a booking not cancelled in a round. */
+export async function bookedFarmIds(db: Db, roundId: number) {
+  return db.select({ farmId: bookings.farmId }).from(bookings).where(and(eq(bookings.roundId, roundId), ne(bookings.status, 'cancelled')));
+}
+
+/** Active member accounts, with their farm and mail preference (for booking reminders). */
+export async function activeMembers(db: Db) {
+  return db
+    .select({ userId: users.id, email: users.email, name: users.name, optOut: users.mailOptOut, farmId: users.farmId })
+    .from(users)
+    .where(and(eq(users.role, 'member'), eq(users.active, true)));
 }

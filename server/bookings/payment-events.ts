@@ -8,12 +8,28 @@
  * change, its audit entry, the booking's new status and the receipt e-mail are one transaction.
  */
 import type Stripe from 'stripe';
-import { and, eq, lte, ne } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
-import { bookingPayments, bookingRounds, bookings, paymentEvents, seasons, users } from '../db/schema/index.js';
 import { recordAudit } from '../audit/audit-repository.js';
 import type { BookingLine } from '../../shared/booking-types.js';
-import { paymentById, paymentByIntent, paymentBySession, pendingPayments, roundWithNames, type PaymentRow } from './bookings-repository.js';
+import {
+  activeMembers,
+  bookedFarmIds,
+  bookingById,
+  lockBooking,
+  lockPayment,
+  paymentById,
+  paymentByIntent,
+  paymentBySession,
+  pendingPayments,
+  roundsWithDeadlineBy,
+  roundWithNames,
+  unprepayBooking,
+  updateBooking,
+  updatePayment,
+  userRecipient,
+  type PaymentRow,
+} from './bookings-repository.js';
+import { recordPaymentEvent, seenPaymentEvent } from './payments-repository.js';
 import { paymentReceiptMail, reminderMail } from './booking-mail.js';
 import { createSessionFor, isBeforeDeadline, refundPayment, type BookingDeps } from './bookings-service.js';
 import { sessionView, type CheckoutView } from './payment-gateway.js';
@@ -35,31 +51,27 @@ async function findPayment(db: Db, s: CheckoutView) {
 async function settleInTx(d: BookingDeps, tx: Db, s: CheckoutView, source: string): Promise<SettleResult> {
   const found = await findPayment(tx, s);
   if (!found) return { outcome: 'unknown-payment' };
-  const [p] = await tx.select().from(bookingPayments).where(eq(bookingPayments.id, found.id)).for('update');
+  const p = await lockPayment(tx, found.id);
   if (!p) return { outcome: 'unknown-payment' };
   const paid = s.paymentStatus === 'paid';
   const dead = s.status === 'expired';
   if (paid && (p.state === 'pending' || p.state === 'failed')) {
     const paidAt = new Date();
-    const [after] = await tx
-      .update(bookingPayments)
-      .set({ state: 'paid', paidAt, paymentIntentId: s.paymentIntentId, checkoutSessionId: s.sessionId, lastSource: source, updatedAt: paidAt })
-      .where(eq(bookingPayments.id, p.id))
-      .returning();
+    const after = await updatePayment(tx, p.id, { state: 'paid', paidAt, paymentIntentId: s.paymentIntentId, checkoutSessionId: s.sessionId, lastSource: source, updatedAt: paidAt });
     await recordAudit(tx, { actorUserId: null, action: 'payment.state', entity: 'booking-payment', entityId: p.id, before: { state: p.state }, after: { state: 'paid', amountMinor: p.amountMinor, source } });
-    const [b] = await tx.select().from(bookings).where(eq(bookings.id, p.bookingId)).for('update');
+    const b = await lockBooking(tx, p.bookingId);
     if (b && b.status === 'placed' && b.version === p.bookingVersion) {
-      await tx.update(bookings).set({ status: 'prepaid', updatedAt: paidAt }).where(eq(bookings.id, b.id));
+      await updateBooking(tx, b.id, { status: 'prepaid', updatedAt: paidAt });
       await recordAudit(tx, { actorUserId: null, action: 'booking.prepaid', entity: 'booking', entityId: b.id, before: { status: 'placed' }, after: { status: 'prepaid', paymentId: p.id } });
       const round = await roundWithNames(tx, b.roundId);
-      const [u] = b.placedBy ? await tx.select({ email: users.email, name: users.name }).from(users).where(eq(users.id, b.placedBy)) : [];
+      const u = b.placedBy ? await userRecipient(tx, b.placedBy) : null;
       if (round && u) await paymentReceiptMail(tx, d.mail, u, { ...b, lines: b.lines as BookingLine[], season: round.season, deadline: round.round.discountDeadline }, { id: p.id, amountMinor: p.amountMinor, paidAt });
       return { outcome: 'paid' };
     }
     return { outcome: 'paid', refund: after! };
   }
   if (dead && p.state === 'pending') {
-    await tx.update(bookingPayments).set({ state: 'failed', lastSource: source, updatedAt: new Date() }).where(eq(bookingPayments.id, p.id));
+    await updatePayment(tx, p.id, { state: 'failed', lastSource: source, updatedAt: new Date() });
     await recordAudit(tx, { actorUserId: null, action: 'payment.state', entity: 'booking-payment', entityId: p.id, before: { state: 'pending' }, after: { state: 'failed', source } });
     return { outcome: 'failed' };
   }
@@ -68,8 +80,8 @@ async function settleInTx(d: BookingDeps, tx: Db, s: CheckoutView, source: strin
 
 async function afterSettle(d: BookingDeps, r: SettleResult) {
   if (!r.refund) return;
-  const [b] = await d.db.select().from(bookings).where(eq(bookings.id, r.refund.bookingId));
-  const [u] = b?.placedBy ? await d.db.select({ email: users.email, name: users.name }).from(users).where(eq(users.id, b.placedBy)) : [];
+  const b = await bookingById(d.db, r.refund.bookingId);
+  const u = b?.placedBy ? await userRecipient(d.db, b.placedBy) : null;
   await refundPayment(d, r.refund, null, 'paid after the booking changed or was cancelled', u ?? null);
 }
 
@@ -85,7 +97,7 @@ export async function handlePaymentEvent(d: BookingDeps, event: Stripe.Event): P
   }
   let toRefund: SettleResult = { outcome: 'unchanged' };
   const result = await d.db.transaction(async (tx) => {
-    const [seen] = await tx.select().from(paymentEvents).where(eq(paymentEvents.eventId, event.id));
+    const seen = await seenPaymentEvent(tx, event.id);
     if (seen) return { duplicate: true, outcome: seen.outcome };
     let outcome = 'ignored: not a type Netput uses';
     const source = `webhook ${event.id}`;
@@ -107,15 +119,15 @@ export async function handlePaymentEvent(d: BookingDeps, event: Stripe.Event): P
         if (!p) outcome = 'unknown-payment';
         else if (p.state === 'paid' && charge.refunded) {
           // A refund made at the service itself (not through Netput): the booking stands, unpaid.
-          await tx.update(bookingPayments).set({ state: 'refunded', refundedAt: new Date(), lastSource: source, updatedAt: new Date() }).where(eq(bookingPayments.id, p.id));
+          await updatePayment(tx, p.id, { state: 'refunded', refundedAt: new Date(), lastSource: source, updatedAt: new Date() });
           await recordAudit(tx, { actorUserId: null, action: 'payment.state', entity: 'booking-payment', entityId: p.id, before: { state: 'paid' }, after: { state: 'refunded', source } });
-          await tx.update(bookings).set({ status: 'placed', updatedAt: new Date() }).where(and(eq(bookings.id, p.bookingId), eq(bookings.status, 'prepaid')));
+          await unprepayBooking(tx, p.bookingId, new Date());
           outcome = 'refunded';
         } else outcome = 'unchanged';
         break;
       }
     }
-    await tx.insert(paymentEvents).values({ eventId: event.id, type: event.type, outcome });
+    await recordPaymentEvent(tx, { eventId: event.id, type: event.type, outcome });
     return { duplicate: false, outcome };
   });
   await afterSettle(d, toRefund);
@@ -138,7 +150,7 @@ export async function reconcilePayments(d: BookingDeps, minAgeMs = 60_000): Prom
     try {
       let sessionId = p.checkoutSessionId;
       if (!sessionId) {
-        const [b] = await d.db.select().from(bookings).where(eq(bookings.id, p.bookingId));
+        const b = await bookingById(d.db, p.bookingId);
         const round = b ? await roundWithNames(d.db, b.roundId) : null;
         if (!b || !round) continue;
         sessionId = (await createSessionFor(d, p, b, round.season, null)).sessionId;
@@ -166,20 +178,13 @@ export const REMINDER_DAYS = 7;
 export async function sendBookingReminders(d: BookingDeps): Promise<number> {
   const today = DateTime.fromJSDate(d.now ? d.now() : new Date(), { zone: 'utc' });
   const horizon = today.plus({ days: REMINDER_DAYS }).toISODate()!;
-  const rounds = await d.db
-    .select({ round: bookingRounds, season: seasons.label })
-    .from(bookingRounds)
-    .innerJoin(seasons, eq(seasons.id, bookingRounds.seasonId))
-    .where(lte(bookingRounds.discountDeadline, horizon));
+  const rounds = await roundsWithDeadlineBy(d.db, horizon);
   let queued = 0;
   for (const r of rounds) {
     if (!isBeforeDeadline(r.round, today.toISODate()!)) continue;
-    const booked = await d.db.select({ farmId: bookings.farmId }).from(bookings).where(and(eq(bookings.roundId, r.round.id), ne(bookings.status, 'cancelled')));
+    const booked = await bookedFarmIds(d.db, r.round.id);
     const bookedFarms = new Set(booked.map((b) => b.farmId));
-    const members = await d.db
-      .select({ userId: users.id, email: users.email, name: users.name, optOut: users.mailOptOut, farmId: users.farmId })
-      .from(users)
-      .where(and(eq(users.role, 'member'), eq(users.active, true)));
+    const members = await activeMembers(d.db);
     for (const m of members) {
       if (m.farmId === null || bookedFarms.has(m.farmId)) continue;
       await reminderMail(d.db, d.mail, m, { id: r.round.id, season: r.season, deadline: r.round.discountDeadline, discountBp: r.round.discountBp });
