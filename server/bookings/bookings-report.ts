@@ -6,13 +6,12 @@
  */
 import { DateTime } from 'luxon';
 import type { Db } from '../db/client.js';
-import { farms } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
 import { toCsv, toXlsx, type SheetColumn } from '../exports/spreadsheet-writers.js';
 import { mulDivRoundHalfUp } from '../../shared/booking-money.js';
 import type { BookingCashMonth, BookingLine, BookingReport, BookingReportRow, FarmNutrientRow, NutrientComparison } from '../../shared/booking-types.js';
 import { NUTRIENTS, type NutrientAmounts } from '../budget/nutrients.js';
-import { listRounds, paymentsOf, roundBookings, roundWithNames } from './bookings-repository.js';
+import { allFarmIds, farmsByCode, listRounds, paymentsOf, roundBookings, roundWithNames } from './bookings-repository.js';
 import { BOOKING_CAUTIONS, bookingView, budgetFacts, projectedNeeds, roundView, sumNutrients } from './bookings-service.js';
 
 const today = () => DateTime.utc().toISODate()!;
@@ -138,7 +137,7 @@ export async function bookingReport(db: Db, roundId: number): Promise<BookingRep
     const got = received.get(month) ?? 0;
     return { month, plannedMinor: planned, receivedMinor: got, expectedMinor: got + Math.round(planned * (1 - bookedShare)) + (dueAtDelivery.get(month) ?? 0) };
   });
-  const allFarms = await db.select({ id: farms.id }).from(farms);
+  const allFarms = await allFarmIds(db);
   return {
     round: roundView(r, today()),
     rows: out,
@@ -203,7 +202,7 @@ export async function nutrientComparison(db: Db, roundId: number): Promise<Nutri
   const r = await round(db, roundId);
   const needs = await projectedNeeds(db, r.round.seasonId);
   const rows = (await roundBookings(db, roundId)).filter((x) => x.booking.status !== 'cancelled');
-  const allFarms = await db.select().from(farms).orderBy(farms.code);
+  const allFarms = await farmsByCode(db);
   const zero = (): NutrientAmounts => ({ nitrogen: 0, phosphate: 0, potash: 0 });
   const coop = { projected: zero(), booked: zero() };
   const out: FarmNutrientRow[] = allFarms.map((f) => {

@@ -252,3 +252,13 @@ export async function activeMembers(db: Db) {
     .from(users)
     .where(and(eq(users.role, 'member'), eq(users.active, true)));
 }
+
+/** Every farm's id (the co-op's reports count farms that did not book). */
+export async function allFarmIds(db: Db) {
+  return db.select({ id: farms.id }).from(farms);
+}
+
+/** Every farm, by code (the co-op's reports list farms that did not book). */
+export async function farmsByCode(db: Db) {
+  return db.select().from(farms).orderBy(farms.code);
+}
