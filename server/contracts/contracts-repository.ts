@@ -72,3 +72,42 @@ export async function getContract(db: Db, id: number, reader?: Reader): Promise<
   if (!row) throw AppError.notFound('The contract');
   return row;
 }
+
+/** A contract as stored (the price in cents), without its id and version. */
+export type StoredContract = Omit<typeof contracts.$inferInsert, 'id' | 'version' | 'createdAt' | 'updatedAt'>;
+
+/** The farm, season and item a contract body names, and any contract already holding its number. */
+export async function contractReferences(db: Db, body: { farmId: number; seasonId: number; itemId: number; reference: string }) {
+  const [[farm], [season], [item], [dup]] = await Promise.all([
+    db.select({ id: farms.id }).from(farms).where(eq(farms.id, body.farmId)),
+    db.select({ id: seasons.id }).from(seasons).where(eq(seasons.id, body.seasonId)),
+    db.select({ role: items.role, code: items.code }).from(items).where(eq(items.id, body.itemId)),
+    db.select({ id: contracts.id }).from(contracts).where(eq(contracts.reference, body.reference)),
+  ]);
+  return { farm, season, item, dup };
+}
+
+/** Inside the caller's transaction. */
+export async function insertContract(tx: Db, row: StoredContract): Promise<{ id: number }> {
+  const [r] = await tx.insert(contracts).values(row).returning({ id: contracts.id });
+  return r!;
+}
+
+/** Locks one contract row for the caller's transaction; false when there is none. */
+export async function lockContract(tx: Db, id: number): Promise<boolean> {
+  const locked = await tx.select({ version: contracts.version }).from(contracts).where(eq(contracts.id, id)).for('update');
+  return locked.length > 0;
+}
+
+/** Inside the caller's transaction. */
+export async function writeContract(tx: Db, id: number, row: StoredContract, version: number): Promise<void> {
+  await tx
+    .update(contracts)
+    .set({ ...row, version, updatedAt: new Date() })
+    .where(eq(contracts.id, id));
+}
+
+/** Inside the caller's transaction. */
+export async function deleteContractRow(tx: Db, id: number): Promise<void> {
+  await tx.delete(contracts).where(eq(contracts.id, id));
+}
