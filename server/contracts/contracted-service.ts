@@ -5,7 +5,6 @@
  * evaluateContracted (docs/cost-duality.md) in a worker thread, as a database-backed job whose row
  * carries progress and, when done, the view. Uncontracted output stays as the outlook projects it.
  */
-import { and, desc, eq, inArray } from 'drizzle-orm';
 import { BINDING_STATUSES, type ContractRow } from '../../shared/contract-schemas.js';
 import type { ContractedFarmSpec } from '../../shared/contracted-types.js';
 import type { ContractedState, ContractedView, DemandBasisRow, DemandBand, MyContracts } from '../../shared/contracted-view.js';
@@ -13,7 +12,6 @@ import type { ProjectionTables } from '../../shared/outlook-types.js';
 import { AppError } from '../core/app-error.js';
 import type { Reader } from '../core/farm-scope.js';
 import type { Db } from '../db/client.js';
-import { farmRecords, farms, farmSeasonFactors, items, jobs, outlooks, seasons } from '../db/schema/index.js';
 import { CONTRACTED_CAUTION } from '../estimation/index.js';
 import { enqueueJob } from '../jobs/job-queue.js';
 import type { JobHandler } from '../jobs/job-runner.js';
@@ -21,7 +19,9 @@ import type { WorkerPool } from '../jobs/worker-pool.js';
 import { hashOf } from '../models/model-data.js';
 import { draftInputsHash, gatherProjectionInputs } from '../outlook/projection-service.js';
 import { getSettings } from '../settings/settings-service.js';
-import { listContracts } from './contracts-repository.js';
+import { findOutlook, findOutlookOfSeason } from '../outlook/outlook-repository.js';
+import type { OutlookRow } from '../outlook/projection-service.js';
+import { allFarmNames, farmNameAndCode, itemsByCode, latestDoneJobOf, latestJobOf, listContracts, pastOutputAndLand, setJobPayload } from './contracts-repository.js';
 
 export const CONTRACTED_JOB = 'outlook-contracted';
 /** Draws for the bands (the engine's default); the seed is the outlook's, so a re-run gives the same figures. */
@@ -33,42 +33,27 @@ interface JobPayload {
   view?: ContractedView;
 }
 
-async function outlookRow(db: Db, id: number) {
-  const [o] = await db.select().from(outlooks).where(eq(outlooks.id, id));
+async function outlookRow(db: Db, id: number): Promise<OutlookRow> {
+  const o = await findOutlook(db, id);
   if (!o) throw AppError.notFound('The outlook');
   return o;
 }
 
 /** What the view depends on: the outlook's inputs and every binding contract of its season, as stored. */
-async function currentHash(db: Db, o: typeof outlooks.$inferSelect, contracts?: ContractRow[]) {
+async function currentHash(db: Db, o: OutlookRow, contracts?: ContractRow[]) {
   const rows = contracts ?? (await listContracts(db, { seasonIds: [o.seasonId], statuses: BINDING_STATUSES }));
   return hashOf({ outlook: draftInputsHash(o), contracts: rows.map((c) => [c.id, c.version]) });
 }
 
-async function latestJob(db: Db, outlookId: number) {
-  const [row] = await db
-    .select()
-    .from(jobs)
-    .where(and(eq(jobs.kind, CONTRACTED_JOB), eq(jobs.refId, outlookId)))
-    .orderBy(desc(jobs.id))
-    .limit(1);
-  return row;
-}
-
 export async function contractedState(db: Db, outlookId: number): Promise<ContractedState> {
   const o = await outlookRow(db, outlookId);
-  const job = await latestJob(db, outlookId);
+  const job = await latestJobOf(db, CONTRACTED_JOB, outlookId);
   if (!job) return { status: 'none', progress: 0, stage: '', error: null, stale: false, view: null };
   const p = (job.payload ?? {}) as JobPayload;
   // The last finished view stays on screen while a new evaluation runs.
   let view = p.view ?? null;
   if (!view) {
-    const [done] = await db
-      .select({ payload: jobs.payload })
-      .from(jobs)
-      .where(and(eq(jobs.kind, CONTRACTED_JOB), eq(jobs.refId, outlookId), eq(jobs.status, 'done')))
-      .orderBy(desc(jobs.id))
-      .limit(1);
+    const done = await latestDoneJobOf(db, CONTRACTED_JOB, outlookId);
     view = (done?.payload as JobPayload | undefined)?.view ?? null;
   }
   const status = job.status === 'done' ? 'succeeded' : job.status === 'failed' || job.status === 'cancelled' ? 'failed' : job.status === 'running' ? 'running' : 'queued';
@@ -86,7 +71,7 @@ export async function contractedState(db: Db, outlookId: number): Promise<Contra
 export async function startContracted(db: Db, outlookId: number): Promise<ContractedState> {
   const o = await outlookRow(db, outlookId);
   if (!o.modelRunId) throw AppError.conflict('Choose a model run for the outlook first');
-  const job = await latestJob(db, outlookId);
+  const job = await latestJobOf(db, CONTRACTED_JOB, outlookId);
   if (job && (job.status === 'queued' || job.status === 'running')) return contractedState(db, outlookId);
   const binding = await listContracts(db, { seasonIds: [o.seasonId], statuses: BINDING_STATUSES });
   if (!binding.length) throw AppError.unprocessable('No signed or delivered contract for this season: record contracts first (offers count once signed)');
@@ -97,15 +82,7 @@ export async function startContracted(db: Db, outlookId: number): Promise<Contra
 /** Past output per hectare of each farm, by output code (for the engine's words on unusual commitments). */
 async function historyPerHa(db: Db, farmIds: number[], outputIds: Map<number, string>, beforeYear: number) {
   if (!farmIds.length || !outputIds.size) return new Map<number, Record<string, number[]>>();
-  const recs = await db
-    .select({ farmId: farmRecords.farmId, seasonId: farmRecords.seasonId, itemId: farmRecords.itemId, quantity: farmRecords.quantity, startYear: seasons.startYear })
-    .from(farmRecords)
-    .innerJoin(seasons, eq(seasons.id, farmRecords.seasonId))
-    .where(and(inArray(farmRecords.farmId, farmIds), inArray(farmRecords.itemId, [...outputIds.keys()])));
-  const land = await db
-    .select({ farmId: farmSeasonFactors.farmId, seasonId: farmSeasonFactors.seasonId, value: farmSeasonFactors.value })
-    .from(farmSeasonFactors)
-    .where(and(inArray(farmSeasonFactors.farmId, farmIds), eq(farmSeasonFactors.factor, 'land_ha')));
+  const { recs, land } = await pastOutputAndLand(db, farmIds, [...outputIds.keys()]);
   const landOf = new Map(land.map((l) => [`${l.farmId}|${l.seasonId}`, l.value]));
   const out = new Map<number, Record<string, number[]>>();
   for (const r of recs) {
@@ -150,7 +127,7 @@ function demandBasis(view: Omit<ContractedView, 'demandBasis'>, projection: Proj
 /** The job: gather, evaluate in a worker thread, store the view on the job row. */
 export function contractedJobHandler(db: Db, pool: WorkerPool): JobHandler {
   return async (job, { signal }) => {
-    const set = (p: JobPayload) => db.update(jobs).set({ payload: p }).where(eq(jobs.id, job.id));
+    const set = (p: JobPayload) => setJobPayload(db, job.id, p);
     const o = await outlookRow(db, job.refId!);
     await set({ progress: 0.02, stage: 'Gathering contracts, farms and prices' });
     const inputs = await gatherProjectionInputs(db, o);
@@ -198,8 +175,8 @@ export function contractedJobHandler(db: Db, pool: WorkerPool): JobHandler {
     if (!answer.ok) throw new AppError(422, 'unprocessable', `The contracts could not be evaluated: ${answer.error.message}`);
     const settings = await getSettings(db);
     const codes = new Set([...byFarm.values()].flat().map((c) => c.farmCode));
-    const farmRows = await db.select({ id: farms.id, code: farms.code, name: farms.name }).from(farms);
-    const itemRows = await db.select().from(items).where(inArray(items.code, [...modelItems]));
+    const farmRows = await allFarmNames(db);
+    const itemRows = await itemsByCode(db, [...modelItems]);
     const partial: Omit<ContractedView, 'demandBasis'> = {
       outlookId: o.id,
       season: inputs.season.label,
@@ -223,14 +200,7 @@ export function contractedJobHandler(db: Db, pool: WorkerPool): JobHandler {
 
 /** A finished evaluation of an outlook: the one given by job id, else the latest; null when there is none. */
 export async function finishedView(db: Db, outlookId: number, jobId?: number): Promise<{ jobId: number; view: ContractedView } | null> {
-  const where = [eq(jobs.kind, CONTRACTED_JOB), eq(jobs.refId, outlookId), eq(jobs.status, 'done')];
-  if (jobId !== undefined) where.push(eq(jobs.id, jobId));
-  const [done] = await db
-    .select({ id: jobs.id, payload: jobs.payload })
-    .from(jobs)
-    .where(and(...where))
-    .orderBy(desc(jobs.id))
-    .limit(1);
+  const done = await latestDoneJobOf(db, CONTRACTED_JOB, outlookId, jobId);
   const view = (done?.payload as JobPayload | undefined)?.view;
   return done && view ? { jobId: done.id, view } : null;
 }
@@ -242,14 +212,9 @@ export async function viewIsStale(db: Db, view: ContractedView): Promise<boolean
 
 /** The latest finished view for a season (any outlook of it), or null. */
 export async function latestViewForSeason(db: Db, seasonId: number): Promise<ContractedView | null> {
-  const [o] = await db.select({ id: outlooks.id }).from(outlooks).where(eq(outlooks.seasonId, seasonId));
+  const o = await findOutlookOfSeason(db, seasonId);
   if (!o) return null;
-  const [done] = await db
-    .select({ payload: jobs.payload })
-    .from(jobs)
-    .where(and(eq(jobs.kind, CONTRACTED_JOB), eq(jobs.refId, o.id), eq(jobs.status, 'done')))
-    .orderBy(desc(jobs.id))
-    .limit(1);
+  const done = await latestDoneJobOf(db, CONTRACTED_JOB, o.id);
   return (done?.payload as JobPayload | undefined)?.view ?? null;
 }
 
@@ -258,7 +223,7 @@ const NUTRIENT_CATEGORY = 'fertiliser';
 /** A member's contracts and their farm's figures (held to the member's own farm in the repository query). */
 export async function myContracts(db: Db, reader: Reader, seasonLabel?: string): Promise<MyContracts> {
   const rows = (await listContracts(db, {}, reader)).filter((r) => seasonLabel === undefined || r.season === seasonLabel);
-  const [farm] = reader.farmId ? await db.select({ name: farms.name, code: farms.code }).from(farms).where(eq(farms.id, reader.farmId)) : [];
+  const farm = reader.farmId ? await farmNameAndCode(db, reader.farmId) : undefined;
   const figures: MyContracts['figures'] = {};
   const nutrients: MyContracts['nutrients'] = [];
   const issues: string[] = [];

@@ -2,12 +2,12 @@
  * Contract reads. A member's queries are held to their own farm here, whatever filter they send
  * (`reader`, through core/farm-scope.ts); server-side callers without a reader read every farm.
  */
-import { and, asc, eq, inArray, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, sql, type SQL } from 'drizzle-orm';
 import type { ContractRow, ContractStatus } from '../../shared/contract-schemas.js';
 import { priceFromCents } from '../../shared/contract-schemas.js';
 import { AppError } from '../core/app-error.js';
 import type { Db } from '../db/client.js';
-import { contracts, farms, items, seasons } from '../db/schema/index.js';
+import { contracts, farmRecords, farms, farmSeasonFactors, items, jobs, seasons } from '../db/schema/index.js';
 import { readableFarmIds, type Reader } from '../core/farm-scope.js';
 
 export interface ContractFilter {
@@ -110,4 +110,63 @@ export async function writeContract(tx: Db, id: number, row: StoredContract, ver
 /** Inside the caller's transaction. */
 export async function deleteContractRow(tx: Db, id: number): Promise<void> {
   await tx.delete(contracts).where(eq(contracts.id, id));
+}
+
+// The contracted view's reads (contracted-service.ts): its job rows, the farms' past output and land.
+
+/** The newest job of `kind` for a row (`refId`), any status. */
+export async function latestJobOf(db: Db, kind: string, refId: number) {
+  const [row] = await db
+    .select()
+    .from(jobs)
+    .where(and(eq(jobs.kind, kind), eq(jobs.refId, refId)))
+    .orderBy(desc(jobs.id))
+    .limit(1);
+  return row;
+}
+
+/** The newest finished job of `kind` for a row (the one given by `jobId` when given), its id and payload. */
+export async function latestDoneJobOf(db: Db, kind: string, refId: number, jobId?: number): Promise<{ id: number; payload: unknown } | undefined> {
+  const where = [eq(jobs.kind, kind), eq(jobs.refId, refId), eq(jobs.status, 'done')];
+  if (jobId !== undefined) where.push(eq(jobs.id, jobId));
+  const [done] = await db
+    .select({ id: jobs.id, payload: jobs.payload })
+    .from(jobs)
+    .where(and(...where))
+    .orderBy(desc(jobs.id))
+    .limit(1);
+  return done;
+}
+
+export async function setJobPayload(db: Db, jobId: number, payload: unknown): Promise<void> {
+  await db.update(jobs).set({ payload }).where(eq(jobs.id, jobId));
+}
+
+/** These farms' recorded quantities of these items with each season's start year, and their land by season. */
+export async function pastOutputAndLand(db: Db, farmIds: number[], itemIds: number[]) {
+  const recs = await db
+    .select({ farmId: farmRecords.farmId, seasonId: farmRecords.seasonId, itemId: farmRecords.itemId, quantity: farmRecords.quantity, startYear: seasons.startYear })
+    .from(farmRecords)
+    .innerJoin(seasons, eq(seasons.id, farmRecords.seasonId))
+    .where(and(inArray(farmRecords.farmId, farmIds), inArray(farmRecords.itemId, itemIds)));
+  const land = await db
+    .select({ farmId: farmSeasonFactors.farmId, seasonId: farmSeasonFactors.seasonId, value: farmSeasonFactors.value })
+    .from(farmSeasonFactors)
+    .where(and(inArray(farmSeasonFactors.farmId, farmIds), eq(farmSeasonFactors.factor, 'land_ha')));
+  return { recs, land };
+}
+
+/** Every farm's id, code and name (the planner's job; no member reads this). */
+export async function allFarmNames(db: Db) {
+  return db.select({ id: farms.id, code: farms.code, name: farms.name }).from(farms);
+}
+
+/** One farm's name and code: the caller passes the member's own farm id from the session. */
+export async function farmNameAndCode(db: Db, farmId: number): Promise<{ name: string; code: string } | undefined> {
+  const [farm] = await db.select({ name: farms.name, code: farms.code }).from(farms).where(eq(farms.id, farmId));
+  return farm;
+}
+
+export async function itemsByCode(db: Db, codes: string[]) {
+  return db.select().from(items).where(inArray(items.code, codes));
 }
