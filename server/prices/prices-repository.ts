@@ -1,4 +1,4 @@
-import { and, asc, desc, eq, ilike, inArray, not, sql, type AnyColumn, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, gt, ilike, inArray, not, or, sql, type AnyColumn, type SQL } from 'drizzle-orm';
 import type { PriceRow, PriceSeries } from '../../shared/api-types.js';
 import type { PriceInput } from '../../shared/data-schemas.js';
 import type { NumberCondition, PriceQuery, PriceSortColumn, TextCondition } from '../../shared/price-query.js';
@@ -312,4 +312,56 @@ export async function priceHistories(db: Db, itemIds?: number[]): Promise<Map<nu
     out.get(id)!.push({ startYear: Number(r.startYear), median: Number(r.median), count: Number(r.count) });
   }
   return out;
+}
+
+// The price export's reads (exports/data-exports.ts reads the table chunk by chunk through these).
+
+export interface PriceExportRow {
+  item: string;
+  season: string;
+  deliveryPoint: string;
+  price: number;
+  unit: string;
+  currency: string;
+  source: string;
+  observedOn: string;
+  [key: string]: unknown;
+}
+
+/** Season ids oldest first and item ids in id order: the order the export walks the prices in. */
+export async function priceExportOrder(db: Db): Promise<{ seasonIds: number[]; itemIds: number[] }> {
+  const seasonRows = await db.select({ id: seasons.id }).from(seasons).orderBy(asc(seasons.startYear), asc(seasons.id));
+  const itemRows = await db.select({ id: items.id }).from(items).orderBy(asc(items.id));
+  return { seasonIds: seasonRows.map((s) => s.id), itemIds: itemRows.map((i) => i.id) };
+}
+
+/**
+ * At most `limit` prices of one item and season by delivery point and date, after the point and date
+ * given (through the unique index on item, season, point and date).
+ */
+export async function priceExportChunk(db: Db, itemId: number, seasonId: number, after: { point: string; on: string } | null, limit: number): Promise<PriceExportRow[]> {
+  return db
+    .select({
+      item: items.code,
+      season: seasons.label,
+      deliveryPoint: deliveryPoints.name,
+      price: priceObservations.price,
+      unit: items.unit,
+      currency: priceObservations.currency,
+      source: priceObservations.source,
+      observedOn: priceObservations.observedOn,
+    })
+    .from(priceObservations)
+    .innerJoin(items, eq(items.id, priceObservations.itemId))
+    .innerJoin(seasons, eq(seasons.id, priceObservations.seasonId))
+    .innerJoin(deliveryPoints, eq(deliveryPoints.id, priceObservations.deliveryPointId))
+    .where(
+      and(
+        eq(priceObservations.itemId, itemId),
+        eq(priceObservations.seasonId, seasonId),
+        after ? or(gt(deliveryPoints.name, after.point), and(eq(deliveryPoints.name, after.point), gt(priceObservations.observedOn, after.on))) : undefined,
+      ),
+    )
+    .orderBy(asc(deliveryPoints.name), asc(priceObservations.observedOn))
+    .limit(limit);
 }
