@@ -15,14 +15,22 @@ import { mailOutbox, outlooks, outlookVersions } from '../../server/db/schema/in
 import { eq } from 'drizzle-orm';
 import { demoModel } from '../../seed/demo-model.js';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
-import { untilWith } from '../until.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
 let t: TestApp;
 let planner: Agent;
 let outlookId: number;
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
-const until = untilWith({ ms: 300_000, everyMs: 150 });
+async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 300_000): Promise<T> {
+  const end = Date.now() + ms;
+  for (;;) {
+    const v = await probe();
+    if (v !== undefined) return v;
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await sleep(150);
+  }
+}
 
 beforeAll(async () => {
   t = await startTestApp({ jobs: true });

@@ -1,7 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
 import { demoModel } from '../../seed/demo-model.js';
-import { untilWith } from '../until.js';
 
 /**
  * The forecasting model of a model run (per hectare with farm and season effects, or pooled), its
@@ -14,8 +13,17 @@ let t: TestApp;
 let planner: Agent;
 const base = demoModel({ backtestSeasons: 5 });
 const ITEMS = base.items;
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
-const until = untilWith({ ms: 180_000, everyMs: 100 });
+async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 180_000): Promise<T> {
+  const end = Date.now() + ms;
+  for (;;) {
+    const v = await probe();
+    if (v !== undefined) return v;
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await sleep(100);
+  }
+}
 
 async function fitted(name: string, definition: Record<string, unknown>) {
   const model = await planner.post('/api/models').send({ name, definition });

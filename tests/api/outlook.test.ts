@@ -6,7 +6,6 @@ import { buildDemoCoop } from '../../seed/demo-coop.js';
 import { projectForecast } from '../../server/estimation/index.js';
 import { agent, signedIn, startTestApp, type TestApp } from './test-app.js';
 import { demoModel } from '../../seed/demo-model.js';
-import { untilWith } from '../until.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
 
@@ -21,7 +20,15 @@ const memberEmails = demo.farms.map((f) => f.ownerEmail);
 const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
-const until = untilWith({ ms: 60_000, everyMs: 100 });
+async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 60_000): Promise<T> {
+  const end = Date.now() + ms;
+  for (;;) {
+    const v = await probe();
+    if (v !== undefined) return v;
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await sleep(100);
+  }
+}
 
 async function project(id: number) {
   const started = await planner.post(`/api/outlooks/${id}/projection`);

@@ -5,12 +5,21 @@
 import { expect } from 'vitest';
 import type { signedIn } from './test-app.js';
 import { demoModel } from '../../seed/demo-model.js';
-import { untilWith } from '../until.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
 
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
-export const until = untilWith({ ms: 240_000, everyMs: 200 });
+/** Polls `probe` until it answers something, or fails naming what it waited for. */
+export async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 240_000): Promise<T> {
+  const end = Date.now() + ms;
+  for (;;) {
+    const v = await probe();
+    if (v !== undefined) return v;
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await sleep(200);
+  }
+}
 
 /** Fits the demo model on the seasons up to `fittedTo`, projects `season` on it and publishes it without mail. */
 export async function publishOutlook(planner: Agent, o: { fittedTo: string; season: string; name: string; title: string }) {

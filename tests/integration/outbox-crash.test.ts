@@ -19,7 +19,6 @@ import { buildDemoCoop } from '../../seed/demo-coop.js';
 import { startServerProcess } from './server-process.js';
 import { calibrate, killRound, seeded, signInPlanner, type KillLab } from './outbox-kills.js';
 import { demoModel } from '../../seed/demo-model.js';
-import { untilWith } from '../until.js';
 
 const ROOT = path.resolve(import.meta.dirname, '..', '..');
 const SEND_DELAY_MS = 300;
@@ -102,7 +101,15 @@ async function signIn(base: string, email: string) {
   return call;
 }
 
-const until = untilWith({ ms: 90_000, everyMs: 150 });
+async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 90_000, everyMs = 150): Promise<T> {
+  const end = Date.now() + ms;
+  for (;;) {
+    const v = await probe();
+    if (v !== undefined) return v;
+    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
+    await sleep(everyMs);
+  }
+}
 
 function groupAlive(pgid: number) {
   try {
