@@ -11,7 +11,6 @@ import { ROLE_LABELS } from '../../../shared/roles';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { CautionNote } from '../shared/caution-note';
-import { BASE_CAUTIONS } from '../outlook/outlook-cautions';
 import { LoadProblem } from '../shared/load-problem';
 
 /** One thing the person could do now, worded for their role. */
@@ -37,8 +36,6 @@ interface Figure {
 })
 export class CoopOverview {
   readonly #auth = inject(AuthStore);
-  /** The fertiliser caution, worded once with the outlook's cautions. */
-  protected readonly fertiliserCaution = BASE_CAUTIONS[1];
 
   protected readonly summary = httpResource<CoopSummary>(() => '/api/summary');
   protected readonly data = computed(() => (this.summary.hasValue() ? this.summary.value() : null));

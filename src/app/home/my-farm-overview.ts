@@ -10,7 +10,6 @@ import { MatTableModule } from '@angular/material/table';
 import type { MyFarm } from '../../../shared/api-types';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { CautionNote } from '../shared/caution-note';
-import { BASE_CAUTIONS } from '../outlook/outlook-cautions';
 import { dayText } from '../../../shared/number-format';
 import { LoadProblem } from '../shared/load-problem';
 
@@ -73,8 +72,6 @@ export function recordsBySeason(records: MyFarm['records']): { seasons: string[]
 })
 export class MyFarmOverview {
   protected readonly myFarm = httpResource<MyFarm>(() => '/api/my-farm');
-  /** The fertiliser caution, worded once with the outlook's cautions. */
-  protected readonly fertiliserCaution = BASE_CAUTIONS[1];
   protected readonly data = computed(() => (this.myFarm.hasValue() ? this.myFarm.value() : null));
   protected readonly noFarm = computed(() => errorStatus(this.myFarm.error()) === 404);
   protected readonly problem = computed(() =>
