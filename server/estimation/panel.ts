@@ -29,7 +29,7 @@ import type { NetputDataset } from './dataset.js';
 import { EstimationInputError } from './errors.js';
 import { equationFits, fitChecks, fitProfitFunction, prepareModel, symmetryRestrictions, type FitResult } from './fit.js';
 import { formOf } from './forms.js';
-import { covarianceToCorrelation, dot, inverse, jacobiEigenvalues, matMul, mean, symmetricEigen, zeros, type Mat } from './linalg.js';
+import { covarianceToCorrelation, dot, inverse, jacobiEigenvalues, mean, symmetricEigen, type Mat } from './linalg.js';
 import type { FormName } from './model.js';
 import { fitSur, type CrossProductCache, type SurEquationInput } from './sur.js';
 
@@ -654,7 +654,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
 
   // Season-shock covariance and its t degrees of freedom (the season-level residual df).
   const { sigmaInv, seasonSums, seasonW, est: finalShock } = seasonShock();
-  let seasonCov: Mat = zeros(n, n);
+  let seasonCov: Mat = zerosMat(n);
   let df = Infinity;
   const P = sur!.covariance;
   const K = P.length;
@@ -664,7 +664,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   }
 
   // Parameter covariance: P (B_farm + B_season) P, mapped to θ.
-  const Bf = zeros(K, K);
+  const Bf = zerosMat(K);
   {
     const h = Array.from({ length: F }, () => new Float64Array(K));
     const eo = new Float64Array(n);
@@ -709,14 +709,14 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       }
     }
   }
-  const Bs = zeros(K, K);
+  const Bs = zerosMat(K);
   if (useSeason) {
     // a season-s shock λ_s enters X*'Σ⁻¹y* as block i: k_is g_is [Σ⁻¹ D_s λ_s]_i, D_s = diag(k_·s)
     // (k = 1 − θ; 1 without the season GLS)
     for (let s = 0; s < S; s++) {
       const D = keep.map((kk) => kk[s]!);
       const DSD = seasonCov.map((row, i) => row.map((v, j) => D[i]! * v * D[j]!));
-      const M = matMul(matMul(sigmaInv, DSD), sigmaInv);
+      const M = matMulSmall(matMulSmall(sigmaInv, DSD), sigmaInv);
       for (let i = 0; i < n; i++)
         for (let j = 0; j < n; j++) {
           const mij = M[i]![j]! * D[i]! * D[j]!;
@@ -728,8 +728,8 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     }
   }
   const toTheta = (V: Mat): Mat => rep.map((a) => rep.map((b) => V[a]![b]!));
-  const PBfP = toTheta(matMul(matMul(P, Bf), P));
-  const PBsP = toTheta(matMul(matMul(P, Bs), P));
+  const PBfP = toTheta(matMulSmall(matMulSmall(P, Bf), P));
+  const PBsP = toTheta(matMulSmall(matMulSmall(P, Bs), P));
   const idio = imposedCov ?? PBfP;
   const covariance = idio.map((row, a) => row.map((v, b) => v + PBsP[a]![b]!));
 
@@ -959,7 +959,7 @@ function seasonShockCovariance(
 function clipPsd(a: Mat): Mat {
   const { values, vectors } = symmetricEigen(a);
   const n = a.length;
-  const out = zeros(n, n);
+  const out = zerosMat(n);
   for (let l = 0; l < n; l++) {
     const v = Math.max(values[l]!, 0);
     if (v === 0) continue;
@@ -989,4 +989,25 @@ function mapF(a: Float64Array, f: (v: number) => number): Float64Array<ArrayBuff
   return out;
 }
 
+function zerosMat(n: number): Mat {
+  return Array.from({ length: n }, () => new Array<number>(n).fill(0));
+}
+
+function matMulSmall(a: Mat, b: Mat): Mat {
+  const n = a.length;
+  const m = b[0]?.length ?? 0;
+  const kk = b.length;
+  const out = Array.from({ length: n }, () => new Array<number>(m).fill(0));
+  for (let i = 0; i < n; i++) {
+    const ai = a[i]!;
+    const oi = out[i]!;
+    for (let l = 0; l < kk; l++) {
+      const v = ai[l]!;
+      if (v === 0) continue;
+      const bl = b[l]!;
+      for (let j = 0; j < m; j++) oi[j]! += v * bl[j]!;
+    }
+  }
+  return out;
+}
 
