@@ -3,6 +3,7 @@
  * the projection tables and the published snapshot. Plain data, no Node imports.
  */
 import type { BandFacts } from './band-words.js';
+import type { Nutrient } from './budget-types.js';
 import type { QuantitySummary } from './estimation-types.js';
 
 export type { QuantitySummary } from './estimation-types.js';
@@ -259,4 +260,22 @@ export interface Comparison {
   error: number | null;
   errorPct: number | null;
   withinBand: boolean | null;
+}
+
+/** After the season, one nutrient of one farm (or of the farms with records together), in kg of the nutrient. */
+export interface FertiliserComparison {
+  nutrient: Nutrient;
+  name: string;
+  unit: string;
+  /** The published outlook's base point projection (null: the farm was not projected). */
+  projected: number | null;
+  /** Booked through the co-op's booking round (null: no round for the season). */
+  booked: number | null;
+  /** Used, from the farm records (null: no fertiliser recorded). */
+  actual: number | null;
+  /** booked ÷ actual (null when either is missing or nothing was used). */
+  bookedShareOfUse: number | null;
+  /** (projected − actual) / actual in percent, the sign of the other errors. */
+  errorPct: number | null;
+  words: string;
 }

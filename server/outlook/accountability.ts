@@ -6,7 +6,7 @@
  */
 import type { Db } from '../db/client.js';
 import { priceSeries } from '../prices/prices-repository.js';
-import type { Comparison, FarmOutlook, OutlookSnapshot } from '../../shared/outlook-types.js';
+import type { Comparison, FarmOutlook, FertiliserComparison, OutlookSnapshot } from '../../shared/outlook-types.js';
 import { itemNutrients, NUTRIENT_LABEL, NUTRIENTS, zeroAmounts, type Nutrient, type NutrientAmounts } from '../budget/nutrients.js';
 import { seasonBookedLines, seasonHasRound } from '../bookings/bookings-repository.js';
 import type { BookingLine } from '../../shared/booking-types.js';
@@ -104,24 +104,6 @@ async function seasonReport(db: Db, v: PublishedVersionRow, itemRows: ItemRow[])
 const NUTRIENT_NAME: Record<Nutrient, string> = { nitrogen: 'Nitrogen', phosphate: 'Phosphate', potash: 'Potash' };
 const kgWords = (v: number, n: Nutrient) => `${Math.round(v).toLocaleString('en-GB')} kg ${NUTRIENT_LABEL[n]}`;
 const share = (a: number, b: number) => `${Math.round((100 * a) / b)} %`;
-
-/** One nutrient of one farm (or of the farms with records together), in kg of the nutrient. */
-export interface FertiliserComparison {
-  nutrient: Nutrient;
-  name: string;
-  unit: string;
-  /** The published outlook's base point projection (null: the farm was not projected). */
-  projected: number | null;
-  /** Booked through the co-op's booking round (null: no round for the season). */
-  booked: number | null;
-  /** Used, from the farm records (null: no fertiliser recorded). */
-  actual: number | null;
-  /** booked ÷ actual (null when either is missing or nothing was used). */
-  bookedShareOfUse: number | null;
-  /** (projected − actual) / actual in percent, the sign of the other errors. */
-  errorPct: number | null;
-  words: string;
-}
 
 function fertiliserRow(n: Nutrient, projected: number | null, booked: number | null, actual: number | null): FertiliserComparison {
   const parts: string[] = [];

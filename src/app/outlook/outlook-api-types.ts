@@ -4,7 +4,7 @@
  * answers the server assembles in its routes (server/outlook/API.md), listed with the fields the
  * screens read.
  */
-import type { Comparison, ErrorHistory, ExpectationMethod, ExpectationSetting, ItemExpectation, ProjectionTables, ScenarioRule } from '../../../shared/outlook-types';
+import type { Comparison, ErrorHistory, FertiliserComparison, ExpectationMethod, ExpectationSetting, ItemExpectation, ProjectionTables, ScenarioRule } from '../../../shared/outlook-types';
 
 export * from '../../../shared/outlook-types';
 
@@ -220,19 +220,6 @@ export interface AccountabilitySeason {
     farms: { farmId: number; code: string; name: string; nutrients: FertiliserComparison[] }[];
     note: string;
   };
-}
-
-/** One nutrient, in kg of the nutrient: projected, booked, used (null: none to show), with a sentence. */
-export interface FertiliserComparison {
-  nutrient: 'nitrogen' | 'phosphate' | 'potash';
-  name: string;
-  unit: string;
-  projected: number | null;
-  booked: number | null;
-  actual: number | null;
-  bookedShareOfUse: number | null;
-  errorPct: number | null;
-  words: string;
 }
 
 /** `GET /api/outlooks/accountability?version=latest|first`. */
