@@ -8,6 +8,7 @@ import { idSchema } from './ids.js';
 import { seasonLabelSchema } from './outlook-schemas.js';
 import { MONTH_PATTERN } from './field-limits.js';
 import type { NutrientAmounts } from './budget-types.js';
+import type { BookingAmounts } from './booking-money.js';
 
 const month = z.string().regex(MONTH_PATTERN, 'Use YYYY-MM, e.g. 2027-02');
 const day = z.string().regex(/^\d{4}-(0[1-9]|1[0-2])-(0[1-9]|[12]\d|3[01])$/, 'Use YYYY-MM-DD, e.g. 2027-01-31');
@@ -77,7 +78,8 @@ export interface BookingPaymentView {
   refundedAt: string | null;
 }
 
-export interface BookingView {
+/** A booking as the API shows it; the money fields are those of BookingAmounts (shared/booking-money.ts). */
+export interface BookingView extends Omit<BookingAmounts, 'lines'> {
   id: number;
   roundId: number;
   farmId: number;
@@ -88,13 +90,6 @@ export interface BookingView {
   deliveryMonth: string;
   currency: string;
   lines: BookingLine[];
-  listMinor: number;
-  discountBp: number;
-  discountMinor: number;
-  netMinor: number;
-  vatBp: number;
-  vatMinor: number;
-  totalMinor: number;
   nutrients: NutrientAmounts;
   /** Before the deadline: the member may change (unpaid) or cancel (refund when prepaid). */
   changeable: boolean;
