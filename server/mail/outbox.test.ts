@@ -7,6 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Database } from '../db/client.js';
 import { mailOutbox, users } from '../db/schema/index.js';
 import { openTestDatabase } from '../../tests/api/test-db.js';
+import { sleep, until } from '../../tests/polling.js';
 import { createMailer } from './mailer.js';
 import { OutboxDispatcher } from './outbox-dispatcher.js';
 import { enqueueMail, mailDomain, messageIdFor, pendingCount, type NewOutboxMail } from './outbox.js';
@@ -52,14 +53,8 @@ async function closedPort() {
   return port;
 }
 
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-async function until(probe: () => Promise<boolean>, ms = 15_000) {
-  const end = Date.now() + ms;
-  while (!(await probe())) {
-    if (Date.now() > end) throw new Error('timed out');
-    await sleep(20);
-  }
-}
+/** Waits until `probe` holds (polling every 20 ms, at most 15 s). */
+const settled = (what: string, probe: () => Promise<boolean>) => until(what, async () => ((await probe()) ? true : undefined), 15_000, 20);
 
 const FROM = 'Netput <outlook@netput.example.org>';
 const DOMAIN = mailDomain(FROM);
@@ -103,7 +98,7 @@ describe('mail outbox', () => {
     expect(await enqueueMail(db, [mail('a.1', 'one@example.org')], DOMAIN)).toHaveLength(0);
     const mailer = createMailer(smtp.url, FROM);
     const d = new OutboxDispatcher(db, mailer, { pollMs: 20 }).start();
-    await until(async () => (await pendingCount(db)) === 0);
+    await settled('the outbox to empty', async () => (await pendingCount(db)) === 0);
     await d.stop();
     mailer.close();
     expect(smtp.received.map((m) => m.to[0]).sort()).toEqual(['one@example.org', 'two@example.org']);
@@ -123,7 +118,7 @@ describe('mail outbox', () => {
     const mailer = createMailer(smtp.url, FROM);
     const before = smtp.received.length;
     const d = new OutboxDispatcher(db, mailer, { pollMs: 20 }).start();
-    await until(async () => (await pendingCount(db)) === 0);
+    await settled('the outbox to empty', async () => (await pendingCount(db)) === 0);
     await d.stop();
     mailer.close();
     await db.update(users).set({ mailOptOut: false }).where(eq(users.id, memberId));
@@ -136,7 +131,7 @@ describe('mail outbox', () => {
     await enqueueMail(db, [mail('c.1', 'refuse@example.org')], DOMAIN);
     let mailer = createMailer(smtp.url, FROM);
     let d = new OutboxDispatcher(db, mailer, { pollMs: 20 }).start();
-    await until(async () => (await row('c.1')).status !== 'queued' && (await row('c.1')).status !== 'sending');
+    await settled('c.1 to be settled', async () => (await row('c.1')).status !== 'queued' && (await row('c.1')).status !== 'sending');
     await d.stop();
     mailer.close();
     const refused = await row('c.1');
@@ -147,7 +142,7 @@ describe('mail outbox', () => {
     await enqueueMail(db, [mail('c.2', 'later@example.org')], DOMAIN);
     const t0 = Date.now();
     d = new OutboxDispatcher(db, mailer, { pollMs: 20, backoffMs: 10_000, maxAttempts: 3 }).start();
-    await until(async () => (await row('c.2')).attempts === 1 && (await row('c.2')).status === 'queued');
+    await settled('the first attempt at c.2', async () => (await row('c.2')).attempts === 1 && (await row('c.2')).status === 'queued');
     const t1 = Date.now();
     let r = await row('c.2');
     expect(r.lastError).toMatch(/ECONNREFUSED/);
@@ -157,13 +152,13 @@ describe('mail outbox', () => {
     // Make it due now: the second failure waits twice as long (20 s).
     await db.update(mailOutbox).set({ nextAttemptAt: new Date() }).where(eq(mailOutbox.id, r.id));
     const t2 = Date.now();
-    await until(async () => (await row('c.2')).attempts === 2 && (await row('c.2')).status === 'queued');
+    await settled('the second attempt at c.2', async () => (await row('c.2')).attempts === 2 && (await row('c.2')).status === 'queued');
     const t3 = Date.now();
     r = await row('c.2');
     expect(r.nextAttemptAt.getTime()).toBeGreaterThanOrEqual(t2 + 20_000 - 5);
     expect(r.nextAttemptAt.getTime()).toBeLessThanOrEqual(t3 + 20_000 + 5);
     await db.update(mailOutbox).set({ nextAttemptAt: new Date() }).where(eq(mailOutbox.id, r.id));
-    await until(async () => (await row('c.2')).status === 'failed');
+    await settled('c.2 to fail', async () => (await row('c.2')).status === 'failed');
     await d.stop();
     mailer.close();
     r = await row('c.2');
@@ -192,7 +187,7 @@ describe('mail outbox', () => {
     const before = smtp.received.length;
     const mailer = createMailer(smtp.url, FROM);
     const d = new OutboxDispatcher(db, mailer, { pollMs: 20 }).start();
-    await until(async () => (await row('d.dead')).status === 'sent');
+    await settled('d.dead to be sent', async () => (await row('d.dead')).status === 'sent');
     await sleep(200);
     await d.stop();
     mailer.close();

@@ -15,23 +15,12 @@ import { mailOutbox, outlooks, outlookVersions } from '../../server/db/schema/in
 import { eq } from 'drizzle-orm';
 import { demoModel } from '../../seed/demo-model.js';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
+import { until } from '../polling.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
 let t: TestApp;
 let planner: Agent;
 let outlookId: number;
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
-async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 300_000): Promise<T> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await sleep(150);
-  }
-}
-
 beforeAll(async () => {
   t = await startTestApp({ jobs: true });
   planner = await signedIn(t.app, 'planner@example.org');
@@ -43,7 +32,7 @@ beforeAll(async () => {
     const s = (await planner.get(`/api/model-runs/${run.body.id}/status`)).body;
     if (s.status === 'failed') throw new Error(s.error);
     return s.status === 'succeeded' ? s : undefined;
-  });
+  }, 300_000);
   const created = await planner.post('/api/outlooks').send({ season: '2026/27', modelRunId: run.body.id });
   expect(created.status, JSON.stringify(created.body)).toBe(201);
   outlookId = created.body.id;
@@ -53,7 +42,7 @@ beforeAll(async () => {
     const p = (await planner.get(`/api/outlooks/${outlookId}/projection`)).body;
     if (p.status === 'failed') throw new Error(p.error);
     return p.status === 'succeeded' ? p : undefined;
-  });
+  }, 300_000);
 }, 600_000);
 afterAll(async () => t?.close());
 
@@ -69,7 +58,7 @@ describe('the contracted view of an outlook', () => {
       const s = (await planner.get(`/api/contracts/outlooks/${outlookId}/evaluation`)).body as ContractedState;
       if (s.status === 'failed') throw new Error(s.error ?? 'failed');
       return s.status === 'succeeded' ? s : undefined;
-    });
+    }, 300_000);
     const view = state.view!;
     expect(state.stale).toBe(false);
     // The demo's signed and delivered contracts of 2026/27; the offer and the cancelled one are left out.

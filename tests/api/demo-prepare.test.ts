@@ -3,10 +3,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { farmRecords } from '../../server/db/schema/index.js';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
 import { DEMO_BUDGET_NAME, DEMO_MODEL_NAME, DEMO_OUTLOOK_SEASON, demoSetupPending, demoSetupState } from '../../seed/prepare-demo.js';
+import { until } from '../polling.js';
 
 let t: TestApp;
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
 beforeAll(async () => {
   t = await startTestApp({ jobs: true, prepareDemo: true });
 }, 60_000);
@@ -20,7 +19,7 @@ describe('the demo co-op arrives alive (issue 16)', () => {
     expect(first.demo?.status).toBe('preparing');
 
     const end = Date.now() + 240_000;
-    while ((await demoSetupPending(t.database.db)) && Date.now() < end) await sleep(250);
+    await until('the demo preparation', async () => ((await demoSetupPending(t.database.db)) ? undefined : true), end - Date.now(), 250);
     expect(await demoSetupState(t.database.db)).toBeNull();
 
     const modelsList = (await planner.get('/api/models')).body as { name: string; definition: { spec: string }; runs: { id: number; status: string }[] }[];
@@ -67,7 +66,8 @@ describe('the demo co-op arrives alive (issue 16)', () => {
     // Published: the treasurer is told the new outlook has no budget; the planner's step is gone.
     const draftId = (await planner.get('/api/outlooks')).body.find((o: { season: string }) => o.season === '2027/28').id;
     expect((await planner.post(`/api/outlooks/${draftId}/projection`)).status).toBe(202);
-    while (!['succeeded', 'failed'].includes((await planner.get(`/api/outlooks/${draftId}/projection`)).body.status) && Date.now() < end) await sleep(250);
+    const projected = async () => ['succeeded', 'failed'].includes((await planner.get(`/api/outlooks/${draftId}/projection`)).body.status);
+    await until('the projection', async () => ((await projected()) ? true : undefined), end - Date.now(), 250);
     const pub = await planner.post(`/api/outlooks/${draftId}/publish`).send({ notifyMembers: false, acceptWeakSkill: true });
     expect(pub.status).toBe(201);
     const day = new Intl.DateTimeFormat('en-GB', { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' }).format(new Date());

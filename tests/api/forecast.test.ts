@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
 import { demoModel } from '../../seed/demo-model.js';
+import { until } from '../polling.js';
 
 /**
  * The forecasting model of a model run (per hectare with farm and season effects, or pooled), its
@@ -13,18 +14,6 @@ let t: TestApp;
 let planner: Agent;
 const base = demoModel({ backtestSeasons: 5 });
 const ITEMS = base.items;
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
-async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 180_000): Promise<T> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await sleep(100);
-  }
-}
-
 async function fitted(name: string, definition: Record<string, unknown>) {
   const model = await planner.post('/api/models').send({ name, definition });
   expect(model.status, JSON.stringify(model.body)).toBe(201);
@@ -33,7 +22,7 @@ async function fitted(name: string, definition: Record<string, unknown>) {
   const status = await until('the fit', async () => {
     const s = (await planner.get(`/api/model-runs/${run.body.id}/status`)).body;
     return ['succeeded', 'failed', 'cancelled'].includes(s.status) ? s : undefined;
-  });
+  }, 180_000);
   expect(status.status, status.error).toBe('succeeded');
   return { model: model.body, run: (await planner.get(`/api/model-runs/${run.body.id}`)).body };
 }
@@ -139,7 +128,7 @@ describe('the outlook', () => {
     await until('the projection', async () => {
       const p = (await planner.get(`/api/outlooks/${id}/projection`)).body;
       return p.status === 'succeeded' ? p : p.status === 'failed' ? Promise.reject(new Error(p.error)) : undefined;
-    });
+    }, 180_000);
 
     const refused = await planner.post(`/api/outlooks/${id}/publish`).send({ notifyMembers: false });
     expect(refused.status).toBe(409);
@@ -177,7 +166,7 @@ describe('the outlook', () => {
     const p = await until('the projection', async () => {
       const x = (await planner.get(`/api/outlooks/${id}/projection`)).body;
       return x.status === 'succeeded' ? x : x.status === 'failed' ? Promise.reject(new Error(x.error)) : undefined;
-    });
+    }, 180_000);
     const r = p.result;
     expect(r.band.spec).toBe('per-hectare');
     expect(r.band.words).toContain('a good or bad season that moves every farm and every item together');

@@ -6,6 +6,7 @@ import { buildDemoCoop } from '../../seed/demo-coop.js';
 import { projectForecast } from '../../server/estimation/index.js';
 import { agent, signedIn, startTestApp, type TestApp } from './test-app.js';
 import { demoModel } from '../../seed/demo-model.js';
+import { sleep, until } from '../polling.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
 
@@ -18,25 +19,13 @@ const demo = buildDemoCoop();
 const memberEmails = demo.farms.map((f) => f.ownerEmail);
 
 const mean = (xs: number[]) => xs.reduce((a, b) => a + b, 0) / xs.length;
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
-async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 60_000): Promise<T> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await sleep(100);
-  }
-}
-
 async function project(id: number) {
   const started = await planner.post(`/api/outlooks/${id}/projection`);
   expect(started.status).toBe(202);
   const done = await until('the projection', async () => {
     const p = (await planner.get(`/api/outlooks/${id}/projection`)).body;
     return p.status === 'succeeded' || p.status === 'failed' ? p : undefined;
-  });
+  }, 60_000);
   expect(done.error).toBeNull();
   expect(done.status).toBe('succeeded');
   return done.result;
@@ -58,7 +47,7 @@ beforeAll(async () => {
   const status = await until('the fit', async () => {
     const s = (await planner.get(`/api/model-runs/${runId}/status`)).body;
     return ['succeeded', 'failed', 'cancelled'].includes(s.status) ? s : undefined;
-  });
+  }, 60_000);
   expect(status.status).toBe('succeeded');
 }, 120_000);
 afterAll(async () => t?.close());
@@ -280,7 +269,7 @@ describe('publishing, e-mail and the member portal', () => {
     const log = await until('the outbox to drain', async () => {
       const l = (await planner.get(`/api/outlooks/${outlookId}/deliveries`)).body;
       return l.counts.queued + l.counts.sending === 0 ? l : undefined;
-    });
+    }, 60_000);
     expect(log.counts).toEqual({ queued: 0, sending: 0, sent: 19, failed: 0, skipped: 1 });
     const skipped = log.rows.find((r: { status: string }) => r.status === 'skipped');
     expect(skipped).toMatchObject({ to: 'member@example.org', attempts: 0, lastError: 'The member has opted out of outlook e-mails' });

@@ -5,21 +5,9 @@
 import { expect } from 'vitest';
 import type { signedIn } from './test-app.js';
 import { demoModel } from '../../seed/demo-model.js';
+import { until } from '../polling.js';
 
 type Agent = Awaited<ReturnType<typeof signedIn>>;
-
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
-/** Polls `probe` until it answers something, or fails naming what it waited for. */
-export async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 240_000): Promise<T> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await sleep(200);
-  }
-}
 
 /** Fits the demo model on the seasons up to `fittedTo`, projects `season` on it and publishes it without mail. */
 export async function publishOutlook(planner: Agent, o: { fittedTo: string; season: string; name: string; title: string }) {
@@ -29,7 +17,7 @@ export async function publishOutlook(planner: Agent, o: { fittedTo: string; seas
   const status = await until('the fit', async () => {
     const s = (await planner.get(`/api/model-runs/${run.body.id}/status`)).body;
     return ['succeeded', 'failed', 'cancelled'].includes(s.status) ? s : undefined;
-  });
+  }, 240_000);
   expect(status.status).toBe('succeeded');
   const outlook = await planner.post('/api/outlooks').send({ season: o.season, modelRunId: run.body.id, title: o.title });
   expect(outlook.status).toBe(201);
@@ -37,7 +25,7 @@ export async function publishOutlook(planner: Agent, o: { fittedTo: string; seas
   const projection = await until('the projection', async () => {
     const p = (await planner.get(`/api/outlooks/${outlook.body.id}/projection`)).body;
     return p.status === 'succeeded' || p.status === 'failed' ? p : undefined;
-  });
+  }, 240_000);
   expect(projection.status).toBe('succeeded');
   const pub = await planner.post(`/api/outlooks/${outlook.body.id}/publish`).send({ notifyMembers: false, acceptWeakSkill: true });
   expect(pub.status).toBe(201);

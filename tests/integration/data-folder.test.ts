@@ -25,13 +25,13 @@ import { priceObservations } from '../../server/db/schema/index.js';
 import { loadDemoCoop } from '../../seed/load-demo.js';
 import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
 import { demoModel } from '../../seed/demo-model.js';
+import { until } from '../polling.js';
 
 const ROOT = path.resolve(import.meta.dirname, '..', '..');
 const tmp = fs.mkdtempSync(path.join(os.tmpdir(), 'netput-folder-'));
 const dataDir = path.join(tmp, 'data');
 const pgliteDir = path.join(dataDir, 'pglite');
 const env = { DATA_DIR: dataDir, DATABASE_URL: '', SMTP_URL: 'smtp://127.0.0.1:9' };
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 const servers: ServerProcess[] = [];
 
 afterAll(async () => {
@@ -163,11 +163,8 @@ describe.skipIf(process.env.NETPUT_TEST_DB === 'postgres')('one process per data
     const modelId = await fitDefinition(planner);
     const run = await planner.request('POST', `/api/models/${modelId}/runs`);
     expect(run.status).toBe(202);
-    let status = '';
-    for (const end = Date.now() + 60_000; Date.now() < end && status !== 'running'; await sleep(20)) {
-      status = (await planner.request('GET', `/api/model-runs/${run.body.id}/status`)).body.status;
-    }
-    expect(status).toBe('running');
+    const runStatus = async () => (await planner.request('GET', `/api/model-runs/${run.body.id}/status`)).body.status as string;
+    await until('the fit to start', async () => ((await runStatus()) === 'running' ? true : undefined), 60_000, 20);
     await addPrice(planner);
     // The server renews its lease every second, so the lease would run until at least 59 s after the kill.
     const leaseEndsAfter = Date.now() + 55_000;
@@ -176,9 +173,10 @@ describe.skipIf(process.env.NETPUT_TEST_DB === 'postgres')('one process per data
     // The new server takes the dead one's lock, and its fit, at once (the lease would run 60 s).
     const c = await start();
     planner = await signIn(c);
-    for (const end = Date.now() + 120_000; Date.now() < end && !['succeeded', 'failed'].includes(status); await sleep(200)) {
-      status = (await planner.request('GET', `/api/model-runs/${run.body.id}/status`)).body.status;
-    }
+    const status = await until('the fit on the new server', async () => {
+      const s = await runStatus();
+      return ['succeeded', 'failed'].includes(s) ? s : undefined;
+    }, 120_000, 200);
     expect(status).toBe('succeeded');
     await addPrice(planner);
     await c.stop('SIGKILL');

@@ -14,10 +14,9 @@ import pg from 'pg';
 import { afterAll, describe, expect, it } from 'vitest';
 import { buildDemoCoop } from '../../seed/demo-coop.js';
 import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
+import { sleep, until } from '../polling.js';
 
 const ROWS = 120_000;
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
 /** Every stored price, read window by window as the prices grid reads them (at most 1,000 a request). */
 async function allPrices(session: HttpSession): Promise<{ id: number }[]> {
   const rows: { id: number }[] = [];
@@ -116,19 +115,24 @@ describe('an import commit interrupted by a crash', () => {
 
     const again = await planner.request('POST', `/api/imports/${staged.body.id}/commit`, { onExisting: 'skip' });
     expect(again.status, JSON.stringify(again.body)).toBe(202);
-    let final: { status: string; failure: string | null; counts: { inserted: number; skipped: number } | null } | undefined;
-    for (const end = Date.now() + 120_000; Date.now() < end; await sleep(200)) {
-      final = (await planner.request('GET', `/api/imports/${staged.body.id}`)).body;
-      if (final!.status !== 'committing') break;
-    }
-    expect(final!.status).toBe('committed');
+    type Final = { status: string; failure: string | null; counts: { inserted: number; skipped: number } | null };
+    const final = await until(
+      'the second commit',
+      async () => {
+        const i = (await planner.request('GET', `/api/imports/${staged.body.id}`)).body as Final;
+        return i.status !== 'committing' ? i : undefined;
+      },
+      120_000,
+      200,
+    );
+    expect(final.status).toBe('committed');
     // The stopped attempt's note does not stay on the committed import.
-    expect(final!.failure).toBeNull();
+    expect(final.failure).toBeNull();
     expect((await planner.request('GET', `/api/imports/${staged.body.id}`)).body.failure).toBeNull();
     // A few generated dates may coincide with the demo's own quotes: those rows exist and are skipped.
-    expect(final!.counts!.inserted + final!.counts!.skipped).toBe(ROWS);
-    expect(final!.counts!.inserted).toBeGreaterThan(ROWS * 0.99);
-    expect((await allPrices(planner)).length).toBe(before.length + final!.counts!.inserted);
+    expect(final.counts!.inserted + final.counts!.skipped).toBe(ROWS);
+    expect(final.counts!.inserted).toBeGreaterThan(ROWS * 0.99);
+    expect((await allPrices(planner)).length).toBe(before.length + final.counts!.inserted);
     await server.stop('SIGTERM');
     server = undefined;
   }, 300_000);

@@ -19,11 +19,10 @@ import { buildDemoCoop } from '../../seed/demo-coop.js';
 import { startServerProcess } from './server-process.js';
 import { calibrate, killRound, seeded, signInPlanner, type KillLab } from './outbox-kills.js';
 import { demoModel } from '../../seed/demo-model.js';
+import { sleep, until } from '../polling.js';
 
 const ROOT = path.resolve(import.meta.dirname, '..', '..');
 const SEND_DELAY_MS = 300;
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
 interface Server {
   child: ChildProcess;
   base: string;
@@ -101,16 +100,6 @@ async function signIn(base: string, email: string) {
   return call;
 }
 
-async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 90_000, everyMs = 150): Promise<T> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await sleep(everyMs);
-  }
-}
-
 function groupAlive(pgid: number) {
   try {
     process.kill(-pgid, 0);
@@ -163,7 +152,7 @@ describe('outbox after a crash', () => {
     const fitted = await until('the fit', async () => {
       const s = await api('GET', `/api/model-runs/${run.body.id}/status`);
       return ['succeeded', 'failed'].includes(s.body.status) ? s.body : undefined;
-    });
+    }, 90_000);
     expect(fitted.status).toBe('succeeded');
     const outlook = await api('POST', '/api/outlooks', { season: '2026/27', modelRunId: run.body.id });
     expect(outlook.status).toBe(201);
@@ -172,7 +161,7 @@ describe('outbox after a crash', () => {
     await until('the projection', async () => {
       const p = await api('GET', `/api/outlooks/${outlook.body.id}/projection`);
       return p.body.status === 'succeeded' ? true : p.body.status === 'failed' ? Promise.reject(new Error(p.body.error)) : undefined;
-    });
+    }, 90_000);
 
     // Every demo member is subscribed (users.mailOptOut defaults to false; the seed opts nobody out).
     const members = buildDemoCoop().farms.map((f) => f.ownerEmail).sort();
@@ -206,7 +195,7 @@ describe('outbox after a crash', () => {
     const log = await until('the outbox to drain', async () => {
       const l = await api('GET', deliveries);
       return l.body.counts.queued + l.body.counts.sending === 0 ? l.body : undefined;
-    });
+    }, 90_000);
     await sleep(SEND_DELAY_MS * 2); // nothing more should arrive
 
     const to = smtp.messages().flatMap((m) => m.to).sort();

@@ -8,18 +8,7 @@
 import type { FakeSmtp } from '../../server/mail/fake-smtp.js';
 import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
 import { demoModel } from '../../seed/demo-model.js';
-
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
-
-export async function until<T>(what: string, probe: () => Promise<T | undefined>, ms = 120_000, everyMs = 100): Promise<T> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const v = await probe();
-    if (v !== undefined) return v;
-    if (Date.now() > end) throw new Error(`timed out waiting for ${what}`);
-    await sleep(everyMs);
-  }
-}
+import { sleep, until } from '../polling.js';
 
 /** A seeded generator (mulberry32), so a run can be repeated from its printed seed. */
 export function seeded(seed: number) {

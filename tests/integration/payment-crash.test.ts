@@ -17,8 +17,8 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { startFakePayments, type FakePayments } from '../../server/bookings/fake-payments.js';
 import { startFakeSmtp, type FakeSmtp } from '../../server/mail/fake-smtp.js';
 import { HttpSession, startServerProcess, type ServerProcess } from './server-process.js';
+import { sleep, until } from '../polling.js';
 
-const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 let fake: FakePayments;
 let smtp: FakeSmtp;
 let dataDir: string;
@@ -87,19 +87,18 @@ describe('a crash between the payment service’s confirmation and Netput record
     const second = await startServerProcess({ ...env, PAYMENT_RECONCILE_MS: '500' });
     servers.push(second);
     const member2 = await signIn(second.url, 'member@example.org');
-    let mine: { status: string; payments: { state: string; amountMinor: number }[] }[] = [];
-    for (let i = 0; i < 120; i++) {
-      mine = (await member2.request('GET', '/api/bookings/mine')).body;
-      if (mine[0]?.status === 'prepaid') break;
-      await sleep(250);
-    }
+    type Mine = { status: string; payments: { state: string; amountMinor: number }[] }[];
+    const mine = await until('the reconciled prepayment', async () => {
+      const m = (await member2.request('GET', '/api/bookings/mine')).body as Mine;
+      return m[0]?.status === 'prepaid' ? m : undefined;
+    }, 30_000, 250);
     expect(mine[0]).toMatchObject({ status: 'prepaid', payments: [{ state: 'paid' }] });
     // 3 t × 475.00 = 142,500; 2 % discount 2,850; net 139,650; VAT 20 % 27,930; total 167,580.
     expect(mine[0]!.payments[0]!.amountMinor).toBe(167_580);
     expect(fake.session(sessionId)!.amount_total).toBe(167_580);
 
     const receipts = async () => smtp.messages().filter((m) => m.subject.startsWith('Receipt: prepayment of booking'));
-    for (let i = 0; i < 80 && (await receipts()).length === 0; i++) await sleep(250);
+    await until('the receipt', async () => ((await receipts()).length > 0 ? true : undefined), 20_000, 250);
     expect(await receipts()).toHaveLength(1);
 
     // The webhook the first server never recorded arrives now: nothing changes twice.
