@@ -1,6 +1,7 @@
 /** What every benchmark script shares: the repository root, rounding, the machine yardstick and timed runs. */
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import type { generateNqPanel, SyntheticItem } from '../server/estimation/index.js';
 
 export const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 
@@ -36,3 +37,23 @@ export const timeRuns = (runs: number, f: () => void): { wall: number[]; cpu: nu
   }
   return { wall, cpu };
 };
+
+/** The six invented items of the benchmark panel (2 outputs, 4 inputs with the numeraire). */
+export const BENCH_ITEMS: SyntheticItem[] = [
+  { name: 'wheat', role: 'output', price: 250, quantity: 1500, ownElasticity: 0.4, trendShare: 0.01 },
+  { name: 'canola', role: 'output', price: 520, quantity: 400, ownElasticity: 0.6, trendShare: 0.015 },
+  { name: 'nitrogen', role: 'input', price: 120, quantity: 600, ownElasticity: -0.5, trendShare: 0.005 },
+  { name: 'phosphate', role: 'input', price: 90, quantity: 250, ownElasticity: -0.4 },
+  { name: 'diesel', role: 'input', price: 110, quantity: 400, ownElasticity: -0.3, trendShare: -0.005 },
+  { name: 'other', role: 'input', price: 100, quantity: 2000 },
+];
+
+/** The benchmark panel's settings: 500 invented farms × 20 seasons from 2005, fixed seed. */
+export const benchPanel = (): Parameters<typeof generateNqPanel>[0] => ({
+  items: BENCH_ITEMS,
+  farms: 500,
+  seasons: 20,
+  firstSeason: 2005,
+  seed: 777,
+  rho: 0.12,
+});

@@ -19,19 +19,11 @@ import { spawnSync } from 'node:child_process';
 import { existsSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { root, yardstick } from './bench-kit.js';
-import { datasetToCsv, generateNqPanel, type SyntheticItem } from '../server/estimation/index.js';
+import { BENCH_ITEMS, benchPanel, root, yardstick } from './bench-kit.js';
+import { datasetToCsv, generateNqPanel } from '../server/estimation/index.js';
 
 const work = mkdtempSync(join(tmpdir(), 'netput-cli-bench-'));
-const items: SyntheticItem[] = [
-  { name: 'wheat', role: 'output', price: 250, quantity: 1500, ownElasticity: 0.4, trendShare: 0.01 },
-  { name: 'canola', role: 'output', price: 520, quantity: 400, ownElasticity: 0.6, trendShare: 0.015 },
-  { name: 'nitrogen', role: 'input', price: 120, quantity: 600, ownElasticity: -0.5, trendShare: 0.005 },
-  { name: 'phosphate', role: 'input', price: 90, quantity: 250, ownElasticity: -0.4 },
-  { name: 'diesel', role: 'input', price: 110, quantity: 400, ownElasticity: -0.3, trendShare: -0.005 },
-  { name: 'other', role: 'input', price: 100, quantity: 2000 },
-];
-const { dataset } = generateNqPanel({ items, farms: 500, seasons: 20, firstSeason: 2005, seed: 777, rho: 0.12 });
+const { dataset } = generateNqPanel(benchPanel());
 const csvPath = join(work, 'bench-10000.csv');
 writeFileSync(csvPath, datasetToCsv(dataset));
 const args = ['--input', csvPath, '--trend'];
@@ -93,7 +85,7 @@ rmSync(work, { recursive: true, force: true });
 const doc = {
   measuredAt: new Date().toISOString(),
   machine: { cpus: cpus().length, model: cpus()[0]?.model ?? '', node: process.version, loadAverageStart: loadStart.map((v) => Math.round(v * 100) / 100), loadAverageEnd: loadEnd.map((v) => Math.round(v * 100) / 100), yardstickCpuMs: { start: yardStart, end: yardEnd, what: '30 million streaming multiply-adds on Float64Array (about 100 ms on an idle machine here)' } },
-  input: { observations: dataset.rows.length, items: items.length, fixed: ['land'], trend: true },
+  input: { observations: dataset.rows.length, items: BENCH_ITEMS.length, fixed: ['land'], trend: true },
   targetMs: 1000,
   note: 'Wall time of the whole process, each run a fresh process. Under a high load average the wall time is dominated by waiting for a CPU; the CPU time is the steadier figure.',
   results,

@@ -15,20 +15,12 @@ import { execFileSync, spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { round, root, yardstick } from './bench-kit.js';
-import { datasetToCsv, fitProfitFunction, generateNqPanel, parseNetputCsv, projectSeason, type SyntheticItem } from '../server/estimation/index.js';
+import { benchPanel, root, round, yardstick } from './bench-kit.js';
+import { datasetToCsv, fitProfitFunction, generateNqPanel, parseNetputCsv, projectSeason } from '../server/estimation/index.js';
 
 const work = mkdtempSync(join(tmpdir(), 'netput-bench-'));
 
-const items: SyntheticItem[] = [
-  { name: 'wheat', role: 'output', price: 250, quantity: 1500, ownElasticity: 0.4, trendShare: 0.01 },
-  { name: 'canola', role: 'output', price: 520, quantity: 400, ownElasticity: 0.6, trendShare: 0.015 },
-  { name: 'nitrogen', role: 'input', price: 120, quantity: 600, ownElasticity: -0.5, trendShare: 0.005 },
-  { name: 'phosphate', role: 'input', price: 90, quantity: 250, ownElasticity: -0.4 },
-  { name: 'diesel', role: 'input', price: 110, quantity: 400, ownElasticity: -0.3, trendShare: -0.005 },
-  { name: 'other', role: 'input', price: 100, quantity: 2000 },
-];
-const { dataset } = generateNqPanel({ items, farms: 500, seasons: 20, firstSeason: 2005, seed: 777, rho: 0.12 });
+const { dataset } = generateNqPanel(benchPanel());
 const csv = datasetToCsv(dataset);
 const csvPath = join(work, 'bench-10000.csv');
 writeFileSync(csvPath, csv);
