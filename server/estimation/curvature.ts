@@ -8,7 +8,7 @@
 import type { OptimalityCheck } from '../../shared/estimation-types.js';
 import { jacobiEigenvalues, matMul, pinvSymmetric, symmetricEigen, zeros, type Mat } from './linalg.js';
 import type { CurvatureBlock } from './model.js';
-import { systemCrossProducts, type SurEquationInput } from './sur.js';
+import { systemCrossProducts, systemResiduals, type SurEquationInput } from './sur.js';
 
 export interface ConvexityCheck {
   /** Eigenvalues of the curvature block C (ascending). */
@@ -139,14 +139,7 @@ export function imposeConvexity(args: ImposeArgs): ImposedFit {
     return { A, b };
   };
   const residualSigma = (theta: number[]): Mat => {
-    const res = equations.map((eq, i) => {
-      const e = Float64Array.from(eq.y as ArrayLike<number>);
-      eq.regressors.forEach((reg, r) => {
-        const beta = theta[slots[i]![r]!]!;
-        for (let t = 0; t < T; t++) e[t]! -= beta * reg.values[t]!;
-      });
-      return e;
-    });
+    const res = systemResiduals(equations, (i, r) => theta[slots[i]![r]!]!);
     const S = zeros(nEq, nEq);
     for (let i = 0; i < nEq; i++)
       for (let j = i; j < nEq; j++) {

@@ -11,7 +11,7 @@ import { EstimationInputError } from './errors.js';
 import { formOf, resolveFormName } from './forms.js';
 import { covarianceToCorrelation, dot, jacobiEigenvalues, logDetSymmetricPD, mean, type Mat } from './linalg.js';
 import type { CurvatureBlock, FormName, ModelData, ModelLayout } from './model.js';
-import { fitSurTwoStarts, type SurEquationInput } from './sur.js';
+import { fitSurTwoStarts, systemResiduals, type SurEquationInput } from './sur.js';
 
 export type { CoefficientEstimate, CurvatureReport, EquationFit, FitResult, MonotonicityReport } from '../../shared/estimation-types.js';
 
@@ -179,14 +179,7 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
   }
 
   // Residuals, Σ̂ and equation statistics of the reported θ.
-  const residuals = equations.map((eq, i) => {
-    const e = Float64Array.from(eq.y as ArrayLike<number>);
-    eq.regressors.forEach((reg, r) => {
-      const beta = theta[slots[i]![r]!]!;
-      for (let t = 0; t < T; t++) e[t]! -= beta * reg.values[t]!;
-    });
-    return e;
-  });
+  const residuals = systemResiduals(equations, (i, r) => theta[slots[i]![r]!]!);
   const sigma = residuals.map((ei) => residuals.map((ej) => dot(ei, ej) / T));
   const standardErrors = covariance.map((row, i) => Math.sqrt(Math.max(row[i]!, 0)));
   const eqFits = equationFits(layout, equations, slots, theta, standardErrors, (i) => dot(residuals[i]!, residuals[i]!), T);

@@ -14,6 +14,20 @@ export interface SurEquationInput {
   regressors: { name: string; values: Column }[];
 }
 
+/** Each equation's residuals y − Σ β·x, with `coefficient(i, r)` the β of equation i's regressor r. */
+export function systemResiduals(equations: SurEquationInput[], coefficient: (equation: number, regressor: number) => number): Float64Array[] {
+  return equations.map((eq, i) => {
+    const e = new Float64Array(eq.y as ArrayLike<number>);
+    const T = e.length;
+    eq.regressors.forEach((reg, r) => {
+      const beta = coefficient(i, r);
+      const v = reg.values;
+      for (let t = 0; t < T; t++) e[t]! -= beta * v[t]!;
+    });
+    return e;
+  });
+}
+
 /**
  * Divisor of the residual covariance σ_ij = e_i'e_j / d (systemfit's `methodResidCov`):
  * 'noDfCor' d = T (Gaussian ML); 'geomean' d = √((T−K_i)(T−K_j)); 'max' d = T − max(K_i, K_j).
@@ -202,16 +216,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
     return { coef: sol.slice(0, K), cov: winv.slice(0, K).map((row) => row.slice(0, K)) };
   };
 
-  const residualsOf = (coef: number[]): Float64Array[] =>
-    equations.map((eq, i) => {
-      const e = new Float64Array(eq.y as ArrayLike<number>);
-      eq.regressors.forEach((reg, a) => {
-        const bcoef = coef[offsets[i]! + a]!;
-        const v = reg.values;
-        for (let t = 0; t < T; t++) e[t]! -= bcoef * v[t]!;
-      });
-      return e;
-    });
+  const residualsOf = (coef: number[]): Float64Array[] => systemResiduals(equations, (i, a) => coef[offsets[i]! + a]!);
 
   /** The same Σ̂ from the cross products: e_i'e_j = y_i'y_j − b_i'X_i'y_j − b_j'X_j'y_i + b_i'X_i'X_j b_j. */
   const residCovFromCrossProducts = (coef: number[]): Mat => {
