@@ -4,6 +4,7 @@ import { idParamSchema } from '../../shared/schemas.js';
 import type { AppContext } from '../context.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
+import { createRoute, deleteRoute, replaceRoute } from '../core/write-routes.js';
 import { budgetExportQuerySchema, budgetInputSchema, budgetViewQuerySchema, fertiliserProductSchema } from '../../shared/budget-schemas.js';
 import { budgetCsv, budgetXlsx } from './budget-export.js';
 import { budgetForExport, createBudget, deleteBudget, getBudget, listBudgets, previewBudget, unitSystemOf, updateBudget } from './budget-service.js';
@@ -71,15 +72,7 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
         res.json(await updateBudget(ctx.db, id, input, req.user!.id, await unitSystemOf(ctx.db, units)));
       },
     },
-    {
-      method: 'delete',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        await deleteBudget(ctx.db, parse(idParamSchema, req.params, 'params').id, req.user!.id);
-        res.status(204).end();
-      },
-    },
+    deleteRoute(WRITE, (id, actor) => deleteBudget(ctx.db, id, actor)),
     {
       method: 'get',
       path: '/:id/export',
@@ -99,29 +92,8 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
 export function fertiliserProductsRoutes(ctx: AppContext): RouteDef[] {
   return [
     { method: 'get', path: '/', access: READ, handler: async (_req, res) => res.json(await listProducts(ctx.db)) },
-    {
-      method: 'post',
-      path: '/',
-      access: WRITE,
-      handler: async (req, res) => res.status(201).json(await createProduct(ctx.db, parse(fertiliserProductSchema, req.body, 'body'), req.user!.id)),
-    },
-    {
-      method: 'put',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        res.json(await updateProduct(ctx.db, id, parse(fertiliserProductSchema, req.body, 'body'), req.user!.id));
-      },
-    },
-    {
-      method: 'delete',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        await deleteProduct(ctx.db, parse(idParamSchema, req.params, 'params').id, req.user!.id);
-        res.status(204).end();
-      },
-    },
+    createRoute(WRITE, fertiliserProductSchema, (body, actor) => createProduct(ctx.db, body, actor)),
+    replaceRoute(WRITE, fertiliserProductSchema, (id, body, actor) => updateProduct(ctx.db, id, body, actor)),
+    deleteRoute(WRITE, (id, actor) => deleteProduct(ctx.db, id, actor)),
   ];
 }

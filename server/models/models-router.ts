@@ -3,6 +3,7 @@ import { evaluateQuerySchema, modelCreateSchema } from '../../shared/model-schem
 import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
+import { createRoute, deleteRoute } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { cancelRun, createModel, deleteModel, evaluateRun, getModel, getRun, getRunStatus, getRunWithAuthor, listModels, rerun, startRun } from './models-service.js';
 
@@ -17,30 +18,14 @@ function pairs(s: string | undefined): Record<string, number> | undefined {
 export function modelsRoutes(ctx: AppContext): RouteDef[] {
   return [
     { method: 'get', path: '/', access: READ, cache: true, handler: async (_req, res) => res.json(await listModels(ctx.db)) },
-    {
-      method: 'post',
-      path: '/',
-      access: WRITE,
-      handler: async (req, res) => {
-        const body = parse(modelCreateSchema, req.body, 'body');
-        res.status(201).json(await createModel(ctx.db, body.name, body.definition, req.user!.id));
-      },
-    },
+    createRoute(WRITE, modelCreateSchema, (body, actor) => createModel(ctx.db, body.name, body.definition, actor)),
     {
       method: 'get',
       path: '/:id',
       access: READ,
       handler: async (req, res) => res.json(await getModel(ctx.db, parse(idParamSchema, req.params, 'params').id)),
     },
-    {
-      method: 'delete',
-      path: '/:id',
-      access: WRITE,
-      handler: async (req, res) => {
-        await deleteModel(ctx.db, parse(idParamSchema, req.params, 'params').id, req.user!.id);
-        res.status(204).end();
-      },
-    },
+    deleteRoute(WRITE, (id, actor) => deleteModel(ctx.db, id, actor)),
     {
       method: 'post',
       path: '/:id/runs',

@@ -1,8 +1,8 @@
 import { ACCESS } from '../../shared/roles.js';
-import { idParamSchema } from '../../shared/schemas.js';
 import { futuresListQuerySchema, futuresQuoteSchema } from '../../shared/outlook-schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
+import { createRoute, deleteRoute, replaceRoute } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { createQuote, deleteQuote, listQuotes, updateQuote } from './futures-service.js';
 
@@ -15,29 +15,8 @@ export function futuresRoutes(ctx: AppContext): RouteDef[] {
       access: ACCESS.outlook,
       handler: async (req, res) => res.json(await listQuotes(ctx.db, parse(futuresListQuerySchema, req.query, 'query'))),
     },
-    {
-      method: 'post',
-      path: '/',
-      access: ACCESS.outlookWrite,
-      handler: async (req, res) => res.status(201).json(await createQuote(ctx.db, parse(futuresQuoteSchema, req.body, 'body'), req.user!.id)),
-    },
-    {
-      method: 'put',
-      path: '/:id',
-      access: ACCESS.outlookWrite,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        res.json(await updateQuote(ctx.db, id, parse(futuresQuoteSchema, req.body, 'body'), req.user!.id));
-      },
-    },
-    {
-      method: 'delete',
-      path: '/:id',
-      access: ACCESS.outlookWrite,
-      handler: async (req, res) => {
-        await deleteQuote(ctx.db, parse(idParamSchema, req.params, 'params').id, req.user!.id);
-        res.status(204).end();
-      },
-    },
+    createRoute(ACCESS.outlookWrite, futuresQuoteSchema, (body, actor) => createQuote(ctx.db, body, actor)),
+    replaceRoute(ACCESS.outlookWrite, futuresQuoteSchema, (id, body, actor) => updateQuote(ctx.db, id, body, actor)),
+    deleteRoute(ACCESS.outlookWrite, (id, actor) => deleteQuote(ctx.db, id, actor)),
   ];
 }
