@@ -5,7 +5,7 @@
  * the conditional price elasticities, per farm and for the co-op, with bands from the same
  * uncertainty as the projection. Plain data shared by the server and the screens.
  */
-import type { ForecastQuantity, ForecastSpec } from './forecast-types.js';
+import type { ForecastQuantity, ProjectionHeader } from './forecast-types.js';
 
 /**
  * A banded value: the point (at the estimates, no shocks) and the predictive summary over the draws.
@@ -140,22 +140,11 @@ export interface ContractedCoopResult {
   farmsLeftOut: string[];
 }
 
-export interface ContractedEvaluation {
-  spec: ForecastSpec;
-  season: number;
-  level: number;
-  draws: number;
-  seed: number;
-  items: { name: string; role: 'output' | 'input' }[];
+export interface ContractedEvaluation extends ProjectionHeader {
   /** Outputs committed by at least one farm. */
   committedOutputs: string[];
-  /** Common prices (inputs and free outputs) when all farms face the same prices, else null. */
-  prices: Record<string, number> | null;
   farms: ContractedFarmResult[];
   coop: ContractedCoopResult;
-  /** Parameter draws whose price Hessian is not positive semidefinite. */
-  curvatureViolationShare: number;
   /** What the figures mean, in words (method notes for screens and exports). */
   notes: string[];
-  caution: string;
 }

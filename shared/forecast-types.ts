@@ -27,16 +27,27 @@ export interface FarmForecast {
   quantities: Record<string, ForecastQuantity>;
 }
 
-export interface ForecastProjection {
+/** What a projection and a contracted evaluation both state about themselves. */
+export interface ProjectionHeader {
   spec: ForecastSpec;
   /** Season year projected (trend and labels). */
   season: number;
+  /** Band level (e.g. 0.9 for the central 90 %). */
   level: number;
   draws: number;
   seed: number;
   items: { name: string; role: 'output' | 'input' }[];
-  /** Prices the farms face when all farms face the same prices (null when they differ). */
+  /**
+   * Prices the farms face when all farms face the same prices (null when they differ); in a
+   * contracted evaluation only the inputs and the outputs not committed.
+   */
   prices: Record<string, number> | null;
+  /** Parameter draws whose price Hessian is not positive semidefinite. */
+  curvatureViolationShare: number;
+  caution: string;
+}
+
+export interface ForecastProjection extends ProjectionHeader {
   farms: FarmForecast[];
   /** Band of the sum over the farms, per draw (the season shock is shared by every farm). */
   coop: Record<string, ForecastQuantity>;
@@ -44,9 +55,6 @@ export interface ForecastProjection {
   priceRisk: boolean;
   /** Degrees of freedom of the Student t predictive of the season shock (null: no season shock). */
   seasonShockDf: number | null;
-  /** Parameter draws whose price Hessian is not positive semidefinite. */
-  curvatureViolationShare: number;
-  caution: string;
 }
 
 export interface ErrorSummary {

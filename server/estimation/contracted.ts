@@ -38,7 +38,7 @@ import { historyOf, setUp } from './contracted-setup.js';
 import { failedDrawsIssue, failureIssues, historyIssues, wrongSignIssues } from './contracted-words.js';
 import { drawSettings } from './draw-options.js';
 import { EstimationInputError } from './errors.js';
-import { NO_STRETCH, WelchTable, type Stretch } from './forecast.js';
+import { NO_STRETCH, projectionHeader, WelchTable, type Stretch } from './forecast.js';
 import { drawSharedParts, type SharedDraws } from './forecast-draws.js';
 import { formOf } from './forms.js';
 import { netputsFromDecomposition } from './model.js';
@@ -385,12 +385,7 @@ export function evaluateContracted(model: ForecastModel, options: ContractedOpti
 
   const allSame = setups.every((f) => f.prices.every((v, i) => v === setups[0]!.prices[i] || anyCommitted[i]));
   return {
-    spec: model.spec,
-    season,
-    level,
-    draws: S,
-    seed,
-    items: layout.items.map((it) => ({ name: it.name, role: it.role })),
+    ...projectionHeader(model, season, { draws: S, seed, level }),
     committedOutputs,
     prices: allSame ? Object.fromEntries(names.map((nm, i) => [nm, setups[0]!.prices[i]!]).filter(([nm]) => !committedOutputs.includes(nm as string))) : null,
     farms,

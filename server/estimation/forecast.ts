@@ -24,7 +24,7 @@
  * Co-op quantiles are exact order statistics.
  * Projections are estimates, not advice.
  */
-import type { ForecastProjection, ForecastQuantity } from '../../shared/forecast-types.js';
+import type { ForecastProjection, ForecastQuantity, ProjectionHeader } from '../../shared/forecast-types.js';
 import { drawSettings } from './draw-options.js';
 import { EstimationInputError } from './errors.js';
 import { drawSharedParts } from './forecast-draws.js';
@@ -68,6 +68,22 @@ export interface ForecastOptions {
 interface RegressorSet {
   /** values[i][r]: regressor r of equation i, one value per farm. */
   values: Float64Array[][];
+}
+
+/** The header fields a projection and a contracted evaluation open with (their prices, curvature share and caution differ). */
+export function projectionHeader(
+  model: ForecastModel,
+  season: number,
+  settings: { draws: number; seed: number; level: number },
+): Pick<ProjectionHeader, 'spec' | 'season' | 'level' | 'draws' | 'seed' | 'items'> {
+  return {
+    spec: model.spec,
+    season,
+    level: settings.level,
+    draws: settings.draws,
+    seed: settings.seed,
+    items: model.fit.layout.items.map((it) => ({ name: it.name, role: it.role })),
+  };
 }
 
 /** Project every farm and the co-op for one season. */
@@ -317,12 +333,7 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
     coopOut[layout.items[i]!.name] = summariseExact(coop, coopPoint, probs, level, coopStretch);
   }
   return {
-    spec: model.spec,
-    season,
-    level,
-    draws: S,
-    seed,
-    items: layout.items.map((it) => ({ name: it.name, role: it.role })),
+    ...projectionHeader(model, season, { draws: S, seed, level }),
     prices: samePrices ? Object.fromEntries(layout.items.map((it, i) => [it.name, farmPrices[0]![i]!])) : null,
     farms: farms.map((farm, f) => ({ farm: farm.farm, known: known[f]!, land: perHa ? landOf[f]! : null, quantities: farmQuantities[f]! })),
     coop: coopOut,
