@@ -60,8 +60,10 @@ export function observationFields(lookups: Lookups, columns: string[]): FieldDef
   }
   const factors = new Set(['land_ha']);
   for (const c of columns) {
+    // normalHeader reads `_`, `-` and spaces alike; a factor name keeps them as `_` (fixed:irrigated_ha → irrigated_ha).
     const m = /^fixed:(.+)$/.exec(normalHeader(c));
-    if (m && FACTOR_NAME.test(fixedFactorName(m[1]))) factors.add(fixedFactorName(m[1]));
+    const name = m ? fixedFactorName(m[1].replace(/ /g, '_')) : null;
+    if (name && FACTOR_NAME.test(name)) factors.add(name);
   }
   for (const name of factors) {
     const synonyms = [normalHeader(`fixed:${name}`), ...(name === 'land_ha' ? [normalHeader('fixed:land')] : [])];

@@ -251,6 +251,18 @@ describe('records', () => {
 });
 
 describe('observations (the wide layout of the fit command)', () => {
+  // normalHeader reads `_` as a space; the factor's name keeps it.
+  it('fixed factors named with underscores import under their own name', async () => {
+    const csv = 'season,farm,fixed:irrigated_ha,fixed:Stock-Units\n2025/26,F01,120.5,40\n';
+    const out = await run(csv, { kind: 'observations', fileName: 'panel.csv' });
+    expect(out.errors).toEqual([]);
+    expect(out.mapping).toMatchObject({ 'fixed:irrigated_ha': 'fixed:irrigated_ha', 'fixed:stock_units': 'fixed:Stock-Units' });
+    expect(all(out.writes.factors).map((f) => [f.row, f.factor, f.value])).toEqual([
+      [2, 'irrigated_ha', 120.5],
+      [2, 'stock_units', 40],
+    ]);
+  });
+
   it('maps prices to co-op prices (mean of the farm rows), quantities to records and land to factors', async () => {
     const out = await run(fixture('observations-wide.csv'), { kind: 'observations', fileName: 'panel.csv' });
     expect(out.errors).toEqual([]);
