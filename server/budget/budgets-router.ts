@@ -1,5 +1,5 @@
 import { ACCESS } from '../../shared/roles.js';
-import type { Response } from 'express';
+import type { Request, Response } from 'express';
 import { idParamSchema } from '../../shared/schemas.js';
 import type { AppContext } from '../context.js';
 import type { RouteDef } from '../core/routes.js';
@@ -28,6 +28,8 @@ function attach(res: Response, type: string, name: string, body: string | Buffer
 
 /** Mounted at /api/budgets. */
 export function budgetsRoutes(ctx: AppContext): RouteDef[] {
+  /** The unit system a budget is shown in (`?units=`, else the co-op's setting). */
+  const unitsOf = async (req: Request) => unitSystemOf(ctx.db, parse(budgetViewQuerySchema, req.query, 'query').units);
   return [
     { method: 'get', path: '/', access: READ, handler: async (_req, res) => res.json(await listBudgets(ctx.db)) },
     {
@@ -37,8 +39,7 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
       access: WRITE,
       handler: async (req, res) => {
         const input = parse(budgetInputSchema, req.body, 'body');
-        const { units } = parse(budgetViewQuerySchema, req.query, 'query');
-        res.json(await previewBudget(ctx.db, input, await unitSystemOf(ctx.db, units)));
+        res.json(await previewBudget(ctx.db, input, await unitsOf(req)));
       },
     },
     {
@@ -47,8 +48,7 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
       access: WRITE,
       handler: async (req, res) => {
         const input = parse(budgetInputSchema, req.body, 'body');
-        const { units } = parse(budgetViewQuerySchema, req.query, 'query');
-        res.status(201).json(await createBudget(ctx.db, input, req.user!.id, await unitSystemOf(ctx.db, units)));
+        res.status(201).json(await createBudget(ctx.db, input, req.user!.id, await unitsOf(req)));
       },
     },
     {
@@ -57,8 +57,7 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
       access: READ,
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
-        const { units } = parse(budgetViewQuerySchema, req.query, 'query');
-        res.json(await getBudget(ctx.db, id, await unitSystemOf(ctx.db, units)));
+        res.json(await getBudget(ctx.db, id, await unitsOf(req)));
       },
     },
     {
@@ -68,8 +67,7 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => {
         const { id } = parse(idParamSchema, req.params, 'params');
         const input = parse(budgetInputSchema, req.body, 'body');
-        const { units } = parse(budgetViewQuerySchema, req.query, 'query');
-        res.json(await updateBudget(ctx.db, id, input, req.user!.id, await unitSystemOf(ctx.db, units)));
+        res.json(await updateBudget(ctx.db, id, input, req.user!.id, await unitsOf(req)));
       },
     },
     deleteRoute(WRITE, (id, actor) => deleteBudget(ctx.db, id, actor)),
