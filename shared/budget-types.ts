@@ -50,7 +50,8 @@ export interface MixResult {
 }
 
 export type SourceKind = 'model-run' | 'manual' | 'outlook' | 'contracted';
-export type ElasticitySource = 'model-run' | 'given' | 'outlook' | 'none';
+/** 'contracts': conditional (cost-side) elasticities on the contracting farms, the profit function's on the others. */
+export type ElasticitySource = 'model-run' | 'given' | 'outlook' | 'contracts' | 'none';
 export type ProductForm = 'solid' | 'liquid' | 'gas';
 
 export interface BookingMonth {

@@ -34,6 +34,27 @@ export function respondDemand(base: NutrientAmounts, elasticities: ElasticityMat
 }
 export type { ElasticityMatrix, PriceChanges } from '../../shared/budget-types.js';
 
+/** One part of a demand total with its own elasticities (e.g. the contracting farms, and the rest). */
+export interface DemandPart {
+  demand: NutrientAmounts;
+  elasticities: ElasticityMatrix;
+}
+
+/**
+ * Elasticities of a sum of parts: e_ij = Σ_k x_ki e_kij / Σ_k x_ki (∂ln Σ_k x_ki/∂ln p_j; exact at the
+ * base point). A part with no demand of a nutrient adds nothing to that row.
+ */
+export function elasticitiesOfSum(parts: DemandPart[]): ElasticityMatrix {
+  const out = {} as ElasticityMatrix;
+  for (const i of NUTRIENTS) {
+    const total = parts.reduce((a, p) => a + p.demand[i], 0);
+    out[i] = {} as Record<Nutrient, number>;
+    for (const j of NUTRIENTS) out[i][j] = total > 0 ? parts.reduce((a, p) => a + p.demand[i] * p.elasticities[i][j], 0) / total : 0;
+  }
+  return out;
+}
+
+
 export interface ReferencePrices {
   /** Per kg of N, P2O5, K2O; null for a nutrient no product carries. */
   values: Record<Nutrient, number | null>;

@@ -1,5 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
+import { cobbDouglasCost, cobbDouglasTechnology } from './cobb-douglas-technology.js';
 import { dualAt, solveCommitted, type SolveSuccess, type Technology } from './contracted-core.js';
 import { evaluateContracted, type ContractedOptions } from './contracted.js';
 import { EstimationInputError } from './errors.js';
@@ -16,41 +17,8 @@ import { generateForecastPanel, PER_HECTARE_ITEMS } from './synthetic-panel.js';
 // ---------------------------------------------------------------------------------------------
 // A Cobb–Douglas technology y = A·x1^a1·x2^a2 (a1 + a2 = r < 1) given to the engine only through its
 // profit function (Hotelling's lemma): the engine's general Newton solve must recover the known cost
-// function. Profit function (from memory; Varian, Microeconomic Analysis, 3rd ed. 1992, ch. 2 and 4):
-//   π(p, w) = (1 − r)·(A·p)^{1/(1−r)}·(a1/w1)^{a1/(1−r)}·(a2/w2)^{a2/(1−r)}
-// with log-derivatives e_p = 1/(1 − r), e_wj = −a_j/(1 − r), so
-//   ∂π/∂p_i = e_i π / p_i,  ∂²π/∂p_i∂p_j = (e_i e_j − δ_ij e_i) π / (p_i p_j).
-
-function cobbDouglas(A: number, a: [number, number]): Technology & { profit: (p: ArrayLike<number>) => number } {
-  const r = a[0] + a[1];
-  const e = [1 / (1 - r), -a[0] / (1 - r), -a[1] / (1 - r)];
-  const profit = (p: ArrayLike<number>): number =>
-    (1 - r) * Math.pow(A * p[0]!, 1 / (1 - r)) * Math.pow(a[0] / p[1]!, a[0] / (1 - r)) * Math.pow(a[1] / p[2]!, a[1] / (1 - r));
-  return {
-    roles: ['output', 'input', 'input'],
-    profit,
-    netputs: (p) => {
-      const pi = profit(p);
-      return e.map((ei, i) => (ei * pi) / p[i]!);
-    },
-    hessian: (p) => {
-      const pi = profit(p);
-      return e.map((ei, i) => e.map((ej, j) => ((ei * ej - (i === j ? ei : 0)) * pi) / (p[i]! * p[j]!)));
-    },
-  };
-}
-
-/**
- * Closed-form cost function of the Cobb–Douglas technology (from memory: Varian, Microeconomic
- * Analysis, 3rd ed. 1992, §4.1–4.2 and ch. 5; Mas-Colell, Whinston & Green 1995, §5.C; re-derived in
- * docs/cost-duality.md §5):
- *   C(w, y) = r·(y/A)^{1/r}·(w1/a1)^{a1/r}·(w2/a2)^{a2/r},  x_j^c = a_j·C / (r·w_j),  MC = C / (r·y).
- */
-function cobbDouglasCost(A: number, a: [number, number], w: [number, number], y: number) {
-  const r = a[0] + a[1];
-  const C = r * Math.pow(y / A, 1 / r) * Math.pow(w[0] / a[0], a[0] / r) * Math.pow(w[1] / a[1], a[1] / r);
-  return { C, x: [(a[0] * C) / (r * w[0]), (a[1] * C) / (r * w[1])], mc: C / (r * y) };
-}
+// function. Profit and cost functions with their sources: cobb-douglas-technology.ts.
+const cobbDouglas = cobbDouglasTechnology;
 
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(b), 1e-300);
 

@@ -14,6 +14,9 @@ import { gatherProjectionInputs } from '../../server/outlook/projection-service.
 import { mailOutbox, outlooks, outlookVersions } from '../../server/db/schema/index.js';
 import { eq } from 'drizzle-orm';
 import { demoModel } from '../../seed/demo-model.js';
+import { coopElasticities } from '../../server/budget/model-demand.js';
+import type { FitResult } from '../../server/estimation/index.js';
+import { getRun } from '../../server/models/models-service.js';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
 import { until } from '../polling.js';
 
@@ -189,5 +192,59 @@ describe('the contracted view of an outlook', () => {
     expect(none.status).toBe(422);
     expect(JSON.stringify(none.body)).toMatch(/source\.outlookId/);
     expect(JSON.stringify(none.body)).toMatch(/no finished contract evaluation/);
+  });
+
+  it('moves the contract basis with a fertiliser price scenario by the conditional responses: nitrogen +20 % lowers its nitrogen tonnage as the elasticities imply', async () => {
+    // Output is held at the contracted tonnage, so on the contracting farms only the input mix responds,
+    // by their conditional (cost-side, Shephard) elasticities from the evaluation
+    // (docs/cost-duality.md §4.1); every other farm responds as on the outlook basis (Hotelling).
+    const treasurer = await signedIn(t.app, 'treasurer@example.org');
+    const view = state.view!;
+    const projection = (await planner.get(`/api/outlooks/${outlookId}/projection`)).body.result;
+    const bookingPlan = { months: [{ month: '2026-08', share: 1, prepay: false }], prepayDiscountPct: 0, paymentTermsDays: 30, deliveryMonth: '2027-02' };
+    const res = await treasurer
+      .post('/api/budgets/preview?units=metric')
+      .send({ name: 'Contracts, dear N', source: { kind: 'contracted', outlookId }, bookingPlan, scenarios: [{ name: 'Nitrogen +20 %', priceChanges: { nitrogen: 20 } }] });
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    const r = res.body.result;
+    expect(r.demand.elasticitySource).toBe('contracts');
+    expect(r.warnings.join(' ')).not.toMatch(/hold the (contract-based|nutrient) demand fixed/);
+
+    // The co-op's nitrogen own-price elasticity on the contract basis, from the evaluation's own figures:
+    // each contracting farm's conditional demand × its conditional elasticity, plus the other farms'
+    // demand × the profit function's elasticity at their points (docs/cost-duality.md §4.1).
+    const evaluated = new Map(view.evaluation.farms.filter((f) => f.evaluated).map((f) => [f.farm, f]));
+    const farms = projection.farms as { code: string; fixed: Record<string, number> }[];
+    let held = 0;
+    let heldResponse = 0;
+    for (const f of farms.filter((x) => evaluated.has(x.code))) {
+      const e = evaluated.get(f.code)!;
+      const table = e.elasticities!.conditional;
+      const eNN = table.values[table.rows.indexOf('nitrogen')]![table.columns.indexOf('nitrogen')]!;
+      // Conditional demands slope down in their own price (concave cost function, docs/cost-duality.md §1).
+      expect(eNN).toBeLessThan(0);
+      held += e.inputs['nitrogen']!.point;
+      heldResponse += e.inputs['nitrogen']!.point * eNN;
+    }
+    expect(held).toBeGreaterThan(0);
+    const base = projection.scenarios.find((s: { name: string }) => s.name === 'base').prices;
+    const fit = ((await getRun(t.database.db, view.modelRunId)).result as { fit: FitResult }).fit;
+    const others = farms.filter((x) => !evaluated.has(x.code)).map((x) => ({ fixed: x.fixed }));
+    const freeE = coopElasticities(fit, others, base, r.source.detail.nutrientItems);
+    const X = r.demand.base.nitrogen;
+    const eNN = (heldResponse + (X - held) * freeE.nitrogen.nitrogen) / X;
+    expect(r.demand.elasticities.nitrogen.nitrogen).toBeCloseTo(eNN, 9);
+    const scenario = r.scenarios.find((s: { name: string }) => s.name === 'Nitrogen +20 %');
+    // x' = x · 1.2^e (the budget's constant-elasticity form, docs/fertiliser.md): lower by X·(1 − 1.2^e).
+    expect(scenario.demand.nitrogen).toBeCloseTo(X * 1.2 ** eNN, 3);
+    expect(X - scenario.demand.nitrogen).toBeCloseTo(X * (1 - 1.2 ** eNN), 3);
+    expect(scenario.demand.nitrogen).toBeLessThan(X - 1);
+    // Phosphate and potash move by their cross-price responses to nitrogen, not by nothing.
+    for (const n of ['phosphate', 'potash'] as const) expect(scenario.demand[n]).toBeCloseTo(r.demand.base[n] * 1.2 ** r.demand.elasticities[n].nitrogen, 3);
+    // The exact figure beside it asks the engine again at the higher price: close to the first-order one.
+    expect(scenario.modelDemand.nitrogen).toBeLessThan(X);
+    expect(Math.abs(scenario.modelDemand.nitrogen / scenario.demand.nitrogen - 1)).toBeLessThan(0.01);
+    // Le Chatelier (docs/cost-duality.md §4): with output held, nitrogen falls less than on the outlook basis of the same farms.
+    expect(Math.abs(heldResponse / held)).toBeLessThanOrEqual(Math.abs(coopElasticities(fit, farms.filter((x) => evaluated.has(x.code)), base, r.source.detail.nutrientItems).nitrogen.nitrogen));
   });
 });

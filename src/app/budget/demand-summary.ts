@@ -8,6 +8,8 @@ import { unitLabels } from './budget-units';
 const ELASTICITY_SOURCE: Record<BudgetResult['demand']['elasticitySource'], string> = {
   'model-run': "the model run's co-op elasticities at the expected prices",
   outlook: "the outlook's model run at the published prices and farms",
+  contracts:
+    "contracting farms: the cost side's conditional responses at their contracted tonnage (only the input mix moves); every other farm: the outlook's model run at the outlook's farms",
   given: 'entered with the demand',
   none: 'none: price scenarios change prices but hold the demand fixed',
 };
@@ -77,7 +79,8 @@ export class DemandSummary {
     const e = this.result().demand.elasticities?.nitrogen.nitrogen;
     if (e === undefined || !Number.isFinite(e)) return null;
     const pct = Math.abs(e * 10).toFixed(1);
-    return `A 10 % rise in the nitrogen price goes with about a ${pct} % ${e < 0 ? 'fall' : 'rise'} in the co-op's nitrogen use, other things equal.`;
+    const held = this.kind() === 'contracted' ? ', with the contracted output held at its tonnage' : '';
+    return `A 10 % rise in the nitrogen price goes with about a ${pct} % ${e < 0 ? 'fall' : 'rise'} in the co-op's nitrogen use${held}, other things equal.`;
   });
 
   protected element(n: Nutrient): string | null {

@@ -174,6 +174,22 @@ export default async function contracts({ base, page }: Harness): Promise<void> 
         await heading.evaluate((el) => el.scrollIntoView({ block: 'start' }));
         await shot(page, 'contracts-budget-contracted-390');
         await page.setViewportSize({ width: 1280, height: 860 });
+
+        await check('on the contract basis an N +20 % scenario lowers the nitrogen tonnage, and the page says output is held at the contracted tonnage', async () => {
+          const preview = page.waitForResponse((r) => new URL(r.url()).pathname === '/api/budgets/preview' && r.request().method() === 'POST', { timeout: 60_000 });
+          await page.getByRole('button', { name: 'N +20 %' }).click();
+          const answer = await preview;
+          assert(answer.ok(), `the preview answered ${answer.status()}`);
+          const { result } = (await answer.json()) as { result: { demand: { elasticitySource: string }; scenarios: { name: string; demand: { nitrogen: number; phosphate: number } }[] } };
+          assert(result.demand.elasticitySource === 'contracts', `elasticities from ${result.demand.elasticitySource}`);
+          const up = result.scenarios.find((x) => x.name === 'N +20 %');
+          assert(up && up.demand.nitrogen < result.scenarios[0]!.demand.nitrogen, 'the contract-basis nitrogen did not fall with its price');
+          const section = page.locator('np-budget-scenarios-section');
+          await section.getByText(/On a contract basis the contracting farms' output is held at the contracted tonnage, so only their input mix responds/).waitFor();
+          await page.getByRole('columnheader', { name: 'N +20 %' }).waitFor({ timeout: 60_000 });
+          await page.locator('np-demand-summary').getByText(/with the contracted output held at its tonnage/).waitFor();
+        });
+        await bothWidths(page, 'contracts-budget-scenario', page.getByRole('heading', { name: 'Price scenarios side by side' }));
       }
       await check('the treasurer signs out', () => signOut(page));
     }
