@@ -31,7 +31,7 @@ import { equationFits, fitChecks, fitProfitFunction, prepareModel, symmetryRestr
 import { formOf } from './forms.js';
 import { covarianceToCorrelation, dot, inverse, jacobiEigenvalues, mean, symmetricEigen, type Mat } from './linalg.js';
 import type { FormName } from './model.js';
-import { fitSur, type CrossProductCache, type SurEquationInput } from './sur.js';
+import { crossProducts, fitSur, type CrossProductCache, type SurEquationInput, type SystemCrossProducts } from './sur.js';
 
 export type { ForecastSpec } from '../../shared/forecast-types.js';
 
@@ -177,6 +177,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const seasonIndex = new Map(seasons.years.map((y, s) => [y, s]));
   const seasonOf = new Int32Array(N);
   for (let o = 0; o < N; o++) seasonOf[o] = seasonIndex.get(ds.seasonYears[o]!)!;
+  const runs = seasonRuns(seasonOf);
   const Tf = new Int32Array(F);
   for (let o = 0; o < N; o++) Tf[farmOf[o]!]!++;
   const lastLand = new Float64Array(F);
@@ -225,23 +226,25 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const seasonWeights = (): Float64Array => {
     if (!seasonWeight) {
       seasonWeight = new Float64Array(S);
-      for (let o = 0; o < N; o++) seasonWeight[seasonOf[o]!]! += w[o]!;
+      addSeasonSums(seasonWeight, runs, w);
     }
     return seasonWeight;
   };
   /** sqw_o (v_o − θ_is v̄_s); `seasonSums` (Σ_{o∈s} w_o v_o) when the caller has them. */
-  const quasiDemean = (v: ArrayLike<number>, i: number, seasonSums?: Float64Array): Float64Array => {
+  const quasiDemean = (v: ArrayLike<number>, i: number, seasonSums?: Float64Array, out: Float64Array = new Float64Array(N)): Float64Array => {
     let num = seasonSums;
     if (!num) {
       num = new Float64Array(S);
-      for (let o = 0; o < N; o++) num[seasonOf[o]!]! += w[o]! * v[o]!;
+      addSeasonDot(num, runs, w, v);
     }
     const den = seasonWeights();
     const th = keep[i]!;
     const sub = new Float64Array(S);
     for (let s = 0; s < S; s++) sub[s] = den[s]! > 0 ? ((1 - th[s]!) * num[s]!) / den[s]! : 0;
-    const out = new Float64Array(N);
-    for (let o = 0; o < N; o++) out[o] = sqw[o]! * (v[o]! - sub[seasonOf[o]!]!);
+    for (let r = 0; r < runs.count; r++) {
+      const sb = sub[runs.season[r]!]!;
+      for (let o = runs.start[r]!; o < runs.end[r]!; o++) out[o] = sqw[o]! * (v[o]! - sb);
+    }
     return out;
   };
 
@@ -267,53 +270,70 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
         }
     const sums = raw.map((v) => {
       const t = new Float64Array(S);
-      for (let o = 0; o < N; o++) t[seasonOf[o]!]! += w[o]! * v[o]!;
+      addSeasonDot(t, runs, w, v);
       return t;
     });
     withinSeason = { cols, raw, sums };
     return withinSeason;
   };
   let centredProducts: (Float64Array | null)[][] | null = null;
+  // x − x̄_s of each regressor (scratch of withinSeasonCentred)
+  let devBuffers: Float64Array[] | null = null;
   const withinSeasonCentred = (): (Float64Array | null)[][] => {
     if (centredProducts) return centredProducts;
     const { raw, sums } = withinSeasonStats();
     const W = seasonWeights();
     // w_o (x_o − x̄_s) for the regressors that vary within a season, null for the others
+    devBuffers ??= raw.map(() => new Float64Array(N));
     const dev = raw.map((v, u) => {
       const m = sums[u]!.map((t, s) => (W[s]! > 0 ? t / W[s]! : 0));
-      const d = new Float64Array(N);
-      let varies = false;
-      for (let o = 0; o < N; o++) {
-        const x = v[o]! - m[seasonOf[o]!]!;
-        if (Math.abs(x) > 1e-12 * (Math.abs(v[o]!) + Math.abs(m[seasonOf[o]!]!))) varies = true;
-        d[o] = x;
+      const d = devBuffers![u]!;
+      for (let r = 0; r < runs.count; r++) {
+        const ms = m[runs.season[r]!]!;
+        for (let o = runs.start[r]!; o < runs.end[r]!; o++) d[o] = v[o]! - ms;
       }
-      return varies ? d : null;
+      for (let r = 0; r < runs.count; r++) {
+        const am = Math.abs(m[runs.season[r]!]!);
+        for (let o = runs.start[r]!; o < runs.end[r]!; o++) if (Math.abs(d[o]!) > 1e-12 * (Math.abs(v[o]!) + am)) return d;
+      }
+      return null;
     });
     const U = raw.length;
     const centred = Array.from({ length: U }, () => new Array<Float64Array | null>(U).fill(null));
+    const wdu = new Float64Array(N);
     for (let u = 0; u < U; u++) {
       const du = dev[u];
       if (!du) continue;
-      const wdu = new Float64Array(N);
       for (let o = 0; o < N; o++) wdu[o] = w[o]! * du[o]!;
-      for (let v = u; v < U; v++) {
-        const dv = dev[v];
-        if (!dv) continue;
-        const c = new Float64Array(S);
-        for (let o = 0; o < N; o++) c[seasonOf[o]!]! += wdu[o]! * dv[o]!;
-        centred[u]![v] = c;
-        centred[v]![u] = c;
-      }
+      const partners: number[] = [];
+      for (let v = u; v < U; v++) if (dev[v]) partners.push(v);
+      const products = partners.map(() => new Float64Array(S));
+      addSeasonDots(products, runs, wdu, partners.map((v) => dev[v]!));
+      partners.forEach((v, j) => {
+        centred[u]![v] = products[j]!;
+        centred[v]![u] = products[j]!;
+      });
     }
     centredProducts = centred;
     return centred;
   };
+  /**
+   * Cross product of regressor u quasi-demeaned with keep kA and regressor v with keep kB (the
+   * within-season statistics' formula above).
+   */
+  const glsPairProduct = (u: number, kA: Float64Array, v: number, kB: Float64Array): number => {
+    const { sums } = withinSeasonStats();
+    const c = withinSeasonCentred()[u]![v];
+    const W = seasonWeights();
+    const sa = sums[u]!;
+    const sb = sums[v]!;
+    let x = 0;
+    for (let s = 0; s < S; s++) x += (c ? c[s]! : 0) + (W[s]! > 0 ? (kA[s]! * kB[s]! * sa[s]! * sb[s]!) / W[s]! : 0);
+    return x;
+  };
   /** Puts the cross products of every pair of quasi-demeaned regressors into the SUR's cache. */
   const cacheGlsCrossProducts = (eqs: SurEquationInput[]): void => {
-    const { cols, sums } = withinSeasonStats();
-    const centred = withinSeasonCentred();
-    const W = seasonWeights();
+    const { cols } = withinSeasonStats();
     const entries = eqs.flatMap((eq, i) =>
       eq.regressors.map((r, a) => ({ col: r.values as Float64Array, u: cols.get(equations[i]!.regressors[a]!.values)!, keep: keep[i]! })),
     );
@@ -324,40 +344,115 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       for (let q = 0; q < entries.length; q++) {
         const B = entries[q]!;
         if (inner.has(B.col)) continue;
-        const c = centred[A.u]![B.u];
-        const sa = sums[A.u]!;
-        const sb = sums[B.u]!;
-        let x = 0;
-        for (let s = 0; s < S; s++) x += (c ? c[s]! : 0) + (W[s]! > 0 ? (A.keep[s]! * B.keep[s]! * sa[s]! * sb[s]!) / W[s]! : 0);
-        inner.set(B.col, x);
+        inner.set(B.col, glsPairProduct(A.u, A.keep, B.u, B.keep));
       }
     }
   };
+  /**
+   * The quasi-demeaned dependent variables y*_i = sqw (d − θ_is d̄_s), d = y − μ_i (the season sums
+   * in the same pass), and sqw·y*_i beside them; into `into` when given (columns no cache holds).
+   */
+  const glsDependent = (into?: { yStar: Float64Array[]; weighted: Float64Array[] }): { yStar: Float64Array[]; weighted: Float64Array[] } => {
+    const yStar: Float64Array[] = [];
+    const weighted: Float64Array[] = [];
+    const d = dBuffer;
+    for (let i = 0; i < n; i++) {
+      const yi = y[i]!;
+      const mi = mu[i]!;
+      const num = new Float64Array(S);
+      for (let r = 0; r < runs.count; r++) {
+        const s = runs.season[r]!;
+        let acc = num[s]!;
+        for (let o = runs.start[r]!; o < runs.end[r]!; o++) {
+          const x = yi[o]! - mi[farmOf[o]!]!;
+          d[o] = x;
+          acc += w[o]! * x;
+        }
+        num[s] = acc;
+      }
+      const ys = quasiDemean(d, i, num, into?.yStar[i]);
+      const yw = into?.weighted[i] ?? new Float64Array(N);
+      for (let o = 0; o < N; o++) yw[o] = sqw[o]! * ys[o]!;
+      yStar.push(ys);
+      weighted.push(yw);
+    }
+    return { yStar, weighted };
+  };
+  const dBuffer = new Float64Array(N);
+  /** The SUR step's equations with their columns built (the season-GLS regressors quasi-demeaned). */
   const weightedEquations = (): SurEquationInput[] => {
     if (!glsActive()) return plainWeightedEquations();
     let built = false;
-    const eqs = equations.map((eq, i) => {
-          const yi = y[i]!;
-          const mi = mu[i]!;
-          const d = new Float64Array(N);
-          for (let o = 0; o < N; o++) d[o] = yi[o]! - mi[farmOf[o]!]!;
-          return {
-            name: eq.name,
-            y: quasiDemean(d, i),
-            regressors: eq.regressors.map((r) => {
-              let c = eqCols[i]!.get(r.values);
-              if (!c) {
-                const { cols, sums } = withinSeasonStats();
-                c = quasiDemean(r.values, i, sums[cols.get(r.values)!]);
-                eqCols[i]!.set(r.values, c);
-                built = true;
-              }
-              return { name: r.name, values: c };
-            }),
-          };
-        });
+    const { yStar } = glsDependent();
+    const eqs = equations.map((eq, i) => ({
+      name: eq.name,
+      y: yStar[i]!,
+      regressors: eq.regressors.map((r) => {
+        let c = eqCols[i]!.get(r.values);
+        if (!c) {
+          const { cols, sums } = withinSeasonStats();
+          c = quasiDemean(r.values, i, sums[cols.get(r.values)!]);
+          eqCols[i]!.set(r.values, c);
+          built = true;
+        }
+        return { name: r.name, values: c };
+      }),
+    }));
     if (built) cacheGlsCrossProducts(eqs);
     return eqs;
+  };
+  // y*, sqw·y* of the season-GLS step (fitSur keeps neither: cross products given, no residuals)
+  const glsBuffers = { yStar: equations.map(() => new Float64Array(N)), weighted: equations.map(() => new Float64Array(N)) };
+  // X*_i'X*_j blocks of the season-GLS system (kept while the weights and θ hold)
+  let glsRegressorBlocks: Mat[][] | null = null;
+  /**
+   * The season-GLS SUR step without building its regressors: X*'X* from the within-season
+   * statistics; X*_i'y*_j = Σ_o x_u sqw y*_j − Σ_s θ_is x̄_us Σ_{o∈s} sqw y*_j, a pass over each
+   * raw regressor (shared by the equations) instead of one over each equation's quasi-demeaned copy;
+   * y*'y* directly.
+   */
+  const glsSystem = (): { eqs: SurEquationInput[]; crossProducts: SystemCrossProducts } => {
+    const { cols, raw, sums } = withinSeasonStats();
+    const W = seasonWeights();
+    const units = equations.map((eq) => eq.regressors.map((r) => cols.get(r.values)!));
+    if (!glsRegressorBlocks) {
+      // each pair computed once, with the earlier (equation, regressor) first, and mirrored
+      const flat = units.flatMap((us, i) => us.map((u, a) => ({ i, a, u })));
+      const blocks = equations.map((ei) => equations.map((ej) => ei.regressors.map(() => new Array<number>(ej.regressors.length).fill(0))));
+      for (let p = 0; p < flat.length; p++)
+        for (let q = p; q < flat.length; q++) {
+          const A = flat[p]!;
+          const B = flat[q]!;
+          const x = glsPairProduct(A.u, keep[A.i]!, B.u, keep[B.i]!);
+          blocks[A.i]![B.i]![A.a]![B.a] = x;
+          blocks[B.i]![A.i]![B.a]![A.a] = x;
+        }
+      glsRegressorBlocks = blocks;
+    }
+    const { yStar, weighted } = glsDependent(glsBuffers);
+    // Σ_o x_u sqw y*_j for every raw regressor u and equation j; Σ_{o∈s} sqw y*_j
+    const zy = raw.map((x) => dotEach(x, weighted));
+    const season = weighted.map((v) => {
+      const t = new Float64Array(S);
+      addSeasonSums(t, runs, v);
+      return t;
+    });
+    const mean = sums.map((t) => t.map((v, s) => (W[s]! > 0 ? v / W[s]! : 0)));
+    const xy = units.map((us, i) =>
+      units.map((_, j) =>
+        us.map((u) => {
+          let x = zy[u]![j]!;
+          const th = keep[i]!;
+          const m = mean[u]!;
+          const t = season[j]!;
+          for (let s = 0; s < S; s++) x -= (1 - th[s]!) * m[s]! * t[s]!;
+          return x;
+        }),
+      ),
+    );
+    const yy = crossProducts(yStar, N);
+    const eqs = equations.map((eq, i) => ({ name: eq.name, y: yStar[i]!, regressors: eq.regressors.map((r) => ({ name: r.name, values: NOT_READ })) }));
+    return { eqs, crossProducts: { xx: glsRegressorBlocks, xy, yy } };
   };
   const plainWeightedEquations = (): SurEquationInput[] =>
       equations.map((eq, i) => {
@@ -390,16 +485,31 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     weightedCols = new Map();
     eqCols = equations.map(() => new Map());
     gramCache = new WeakMap();
+    glsRegressorBlocks = null;
   };
   const residualsAt = (th: number[]): void => {
     equations.forEach((eq, i) => {
       const e = resid[i]!;
       e.set(y[i]!);
-      eq.regressors.forEach((reg, r) => {
+      // up to four regressors a pass, each subtracted in turn (the same sums as one at a time)
+      const regs = eq.regressors;
+      let r = 0;
+      for (; r + 4 <= regs.length; r += 4) {
+        const b0 = th[slots[i]![r]!]!;
+        const b1 = th[slots[i]![r + 1]!]!;
+        const b2 = th[slots[i]![r + 2]!]!;
+        const b3 = th[slots[i]![r + 3]!]!;
+        const v0 = regs[r]!.values;
+        const v1 = regs[r + 1]!.values;
+        const v2 = regs[r + 2]!.values;
+        const v3 = regs[r + 3]!.values;
+        for (let o = 0; o < N; o++) e[o] = e[o]! - b0 * v0[o]! - b1 * v1[o]! - b2 * v2[o]! - b3 * v3[o]!;
+      }
+      for (; r < regs.length; r++) {
         const b = th[slots[i]![r]!]!;
-        const v = reg.values;
+        const v = regs[r]!.values;
         for (let o = 0; o < N; o++) e[o]! -= b * v[o]!;
-      });
+      }
     });
   };
 
@@ -407,25 +517,66 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   // per-item weights (L/L̄)^−δ_i, recomputed when δ_i has moved by more than 1e-3
   const itemW = Array.from({ length: n }, () => new Float64Array(N).fill(1));
   const itemWDelta = new Float64Array(n);
+  /** Item i's weights at the current δ_i when it has moved by more than 1e-3 since they were set. */
+  const refreshItemWeights = (i: number): void => {
+    if (Math.abs(delta[i]! - itemWDelta[i]!) > 1e-3) {
+      itemW[i] = mapF(logL, (x) => Math.exp(-delta[i]! * x));
+      itemWDelta[i] = delta[i]!;
+      itemWSums[i] = null;
+    }
+  };
+  const e2Buffer = new Float64Array(N);
+  // Σ log land, Σ (log land)² and the count over the observations the size exponents use
+  let logLandMoments: { sx: number; sxx: number; count: number } | null = null;
+  const logLandSums = (): { sx: number; sxx: number; count: number } => {
+    if (!logLandMoments) {
+      let sx = 0;
+      let sxx = 0;
+      let count = 0;
+      for (let o = 0; o < N; o++) {
+        if (useFarm && Tf[farmOf[o]!]! < 2) continue;
+        sx += logL[o]!;
+        sxx += logL[o]! * logL[o]!;
+        count++;
+      }
+      logLandMoments = { sx, sxx, count };
+    }
+    return logLandMoments;
+  };
+  // season and farm sums of each item's weights, kept while its weights hold
+  const itemWSums: ({ season: Float64Array; farm: Float64Array } | null)[] = equations.map(() => null);
+  const itemWeightSums = (i: number): { season: Float64Array; farm: Float64Array } => {
+    let c = itemWSums[i];
+    if (!c) {
+      const wi = itemW[i]!;
+      c = { season: new Float64Array(S), farm: new Float64Array(F) };
+      addSeasonSums(c.season, runs, wi);
+      for (let o = 0; o < N; o++) c.farm[farmOf[o]!]! += wi[o]!;
+      itemWSums[i] = c;
+    }
+    return c;
+  };
+  // squared within-farm residuals scaled to T_f − 1 degrees of freedom
+  const dofScale = new Float64Array(F);
+  for (let f = 0; f < F; f++) dofScale[f] = useFarm ? (Tf[f]! > 1 ? Tf[f]! / (Tf[f]! - 1) : 0) : 1;
   /** `estimateDelta`: re-estimate the size exponents (every round until the weights settle, and at the end). */
   const updateEffects = (estimateDelta = true): void => {
     for (let i = 0; i < n; i++) {
       const r = resid[i]!;
-      if (Math.abs(delta[i]! - itemWDelta[i]!) > 1e-3) {
-        itemW[i] = mapF(logL, (x) => Math.exp(-delta[i]! * x));
-        itemWDelta[i] = delta[i]!;
-      }
+      refreshItemWeights(i);
       const wi = itemW[i]!;
+      const wSums = itemWeightSums(i);
       const m = mu[i]!;
       const lam = lambda[i]!;
       // season effects: weighted season means of r − μ
       if (useSeason) {
         const num = new Float64Array(S);
-        const den = new Float64Array(S);
-        for (let o = 0; o < N; o++) {
-          const s = seasonOf[o]!;
-          num[s]! += wi[o]! * (r[o]! - m[farmOf[o]!]!);
-          den[s]! += wi[o]!;
+        const den = wSums.season;
+        for (let q = 0; q < runs.count; q++) {
+          const s = runs.season[q]!;
+          let an = num[s]!;
+          for (let o = runs.start[q]!; o < runs.end[q]!; o++) an += wi[o]! * (r[o]! - m[farmOf[o]!]!);
+          num[s] = an;
         }
         let lm = 0;
         for (let s = 0; s < S; s++) {
@@ -438,23 +589,24 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       }
       // farm means of r − λ (weighted) and the within-farm residuals
       const fm = new Float64Array(F);
-      const fw = new Float64Array(F);
-      for (let o = 0; o < N; o++) {
-        const f = farmOf[o]!;
-        fm[f]! += wi[o]! * (r[o]! - lam[seasonOf[o]!]!);
-        fw[f]! += wi[o]!;
+      const fw = wSums.farm;
+      for (let q = 0; q < runs.count; q++) {
+        const ls = lam[runs.season[q]!]!;
+        for (let o = runs.start[q]!; o < runs.end[q]!; o++) fm[farmOf[o]!]! += wi[o]! * (r[o]! - ls);
       }
       for (let f = 0; f < F; f++) fm[f] = fw[f]! > 0 ? fm[f]! / fw[f]! : 0;
       // σ_i² at the reference land from the within-farm residuals (degrees of freedom T_f − 1)
       let ss = 0;
       let dof = 0;
-      const e2 = new Float64Array(N);
-      for (let o = 0; o < N; o++) {
-        const f = farmOf[o]!;
-        const e = r[o]! - lam[seasonOf[o]!]! - (useFarm ? fm[f]! : 0);
-        const c = useFarm ? (Tf[f]! > 1 ? Tf[f]! / (Tf[f]! - 1) : 0) : 1;
-        e2[o] = e * e * c;
-        ss += wi[o]! * e * e;
+      const e2 = e2Buffer;
+      for (let q = 0; q < runs.count; q++) {
+        const ls = lam[runs.season[q]!]!;
+        for (let o = runs.start[q]!; o < runs.end[q]!; o++) {
+          const f = farmOf[o]!;
+          const e = r[o]! - ls - (useFarm ? fm[f]! : 0);
+          e2[o] = e * e * dofScale[f]!;
+          ss += wi[o]! * e * e;
+        }
       }
       for (let f = 0; f < F; f++) dof += useFarm ? Tf[f]! - 1 : Tf[f]!;
       dof -= useSeason ? S : 0;
@@ -488,20 +640,15 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       }
       // δ_i: slope of log squared within-farm residuals on log land
       if (useScale && landVaries && estimateDelta) {
-        let sx = 0;
+        const { sx, sxx: sxx2, count: cnt } = logLandSums();
         let sy = 0;
         let sxy = 0;
-        let sxx2 = 0;
-        let cnt = 0;
+        const floor = 1e-12 * sigma2[i]!;
         for (let o = 0; o < N; o++) {
           if (useFarm && Tf[farmOf[o]!]! < 2) continue;
-          const ly = Math.log(e2[o]! + 1e-12 * sigma2[i]!);
-          const lx = logL[o]!;
-          sx += lx;
+          const ly = Math.log(e2[o]! + floor);
           sy += ly;
-          sxy += lx * ly;
-          sxx2 += lx * lx;
-          cnt++;
+          sxy += logL[o]! * ly;
         }
         const vx = sxx2 - (sx * sx) / Math.max(cnt, 1);
         const d = cnt > 2 && vx > 1e-9 * cnt ? (sxy - (sx * sy) / cnt) / vx : 0;
@@ -519,12 +666,23 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     }
   }
   // Σ_{o∈s} (L_o/L̄)^−δ_i per season, kept for the δ_i it was computed at
-  const itemSeasonW = equations.map(() => ({ delta: NaN, sums: new Float64Array(S) }));
+  const itemSeasonW: { delta: number; sums: Float64Array }[] = equations.map(() => ({ delta: NaN, sums: new Float64Array(S) }));
   const itemSeasonWeights = (i: number): Float64Array => {
     const c = itemSeasonW[i]!;
-    if (c.delta !== delta[i]) {
+    // the weights the next round will use anyway
+    if (c.delta !== delta[i]) refreshItemWeights(i);
+    if (c.delta !== delta[i] && itemWDelta[i] === delta[i]) {
+      // the item's weights are at this δ_i: the same sums
+      itemSeasonW[i] = { delta: delta[i]!, sums: itemWeightSums(i).season };
+    } else if (c.delta !== delta[i]) {
       const wi = new Float64Array(S);
-      for (let o = 0; o < N; o++) wi[seasonOf[o]!]! += Math.exp(-delta[i]! * logL[o]!);
+      const di = delta[i]!;
+      for (let q = 0; q < runs.count; q++) {
+        const s = runs.season[q]!;
+        let acc = wi[s]!;
+        for (let o = runs.start[q]!; o < runs.end[q]!; o++) acc += Math.exp(-di * logL[o]!);
+        wi[s] = acc;
+      }
       itemSeasonW[i] = { delta: delta[i]!, sums: wi };
     }
     return itemSeasonW[i]!.sums;
@@ -562,6 +720,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     }
     eqCols = equations.map(() => new Map());
     gramCache = new WeakMap();
+    glsRegressorBlocks = null;
   };
 
   const maxOuter = 30;
@@ -569,15 +728,17 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   let converged = false;
   let surIterations = 0;
   const solveTheta = (last: boolean): number[] => {
-    const eqW = weightedEquations();
+    const system = glsActive() ? glsSystem() : { eqs: plainWeightedEquations(), crossProducts: undefined };
     try {
-      sur = fitSur(eqW, {
+      sur = fitSur(system.eqs, {
         method: 'SUR',
         maxIterations: last ? 200 : 1,
         tolerance: 1e-7,
         residualCovariance: 'noDfCor',
         crossProductCache: gramCache,
+        ...(system.crossProducts ? { crossProducts: system.crossProducts } : {}),
         residualsFromCrossProducts: true,
+        keepResiduals: false,
         ...(R.length ? { restrictions: { matrix: R } } : {}),
       });
     } catch (e) {
@@ -1011,3 +1172,104 @@ function matMulSmall(a: Mat, b: Mat): Mat {
   return out;
 }
 
+
+/** Stands for a regressor column that fitSur does not read (its cross products are given). */
+const NOT_READ = new Float64Array(0);
+
+/** Σ_o a_o b_o for each b in bs, four at a time over a. */
+function dotEach(a: ArrayLike<number>, bs: Float64Array[]): Float64Array {
+  const out = new Float64Array(bs.length);
+  const N = a.length;
+  let j = 0;
+  for (; j + 4 <= bs.length; j += 4) {
+    const [b0, b1, b2, b3] = [bs[j]!, bs[j + 1]!, bs[j + 2]!, bs[j + 3]!];
+    let s0 = 0;
+    let s1 = 0;
+    let s2 = 0;
+    let s3 = 0;
+    for (let o = 0; o < N; o++) {
+      const x = a[o]!;
+      s0 += x * b0[o]!;
+      s1 += x * b1[o]!;
+      s2 += x * b2[o]!;
+      s3 += x * b3[o]!;
+    }
+    out[j] = s0;
+    out[j + 1] = s1;
+    out[j + 2] = s2;
+    out[j + 3] = s3;
+  }
+  for (; j < bs.length; j++) out[j] = dot(a, bs[j]!);
+  return out;
+}
+
+/** Maximal runs of consecutive observations in one season (one a season when the rows are sorted by season). */
+interface SeasonRuns {
+  count: number;
+  start: Int32Array;
+  end: Int32Array;
+  season: Int32Array;
+}
+
+function seasonRuns(seasonOf: Int32Array): SeasonRuns {
+  const start: number[] = [];
+  const season: number[] = [];
+  for (let o = 0; o < seasonOf.length; o++)
+    if (o === 0 || seasonOf[o] !== seasonOf[o - 1]) {
+      start.push(o);
+      season.push(seasonOf[o]!);
+    }
+  const end = start.slice(1).concat(seasonOf.length);
+  return { count: start.length, start: Int32Array.from(start), end: Int32Array.from(end), season: Int32Array.from(season) };
+}
+
+/**
+ * out[s] += Σ_{o∈s} a_o, each season's sum taken in observation order (the same sums as adding one
+ * observation at a time, with the running total kept in a register over a run).
+ */
+function addSeasonSums(out: Float64Array, runs: SeasonRuns, a: ArrayLike<number>): void {
+  for (let r = 0; r < runs.count; r++) {
+    const s = runs.season[r]!;
+    let acc = out[s]!;
+    for (let o = runs.start[r]!; o < runs.end[r]!; o++) acc += a[o]!;
+    out[s] = acc;
+  }
+}
+
+/** out[s] += Σ_{o∈s} a_o b_o, in observation order (see addSeasonSums). */
+function addSeasonDot(out: Float64Array, runs: SeasonRuns, a: ArrayLike<number>, b: ArrayLike<number>): void {
+  for (let r = 0; r < runs.count; r++) {
+    const s = runs.season[r]!;
+    let acc = out[s]!;
+    for (let o = runs.start[r]!; o < runs.end[r]!; o++) acc += a[o]! * b[o]!;
+    out[s] = acc;
+  }
+}
+
+/** outs[j][s] += Σ_{o∈s} a_o bs[j]_o for every j, four columns a pass over a (see addSeasonSums). */
+function addSeasonDots(outs: Float64Array[], runs: SeasonRuns, a: Float64Array, bs: Float64Array[]): void {
+  let j = 0;
+  for (; j + 4 <= bs.length; j += 4) {
+    const [o0, o1, o2, o3] = [outs[j]!, outs[j + 1]!, outs[j + 2]!, outs[j + 3]!];
+    const [b0, b1, b2, b3] = [bs[j]!, bs[j + 1]!, bs[j + 2]!, bs[j + 3]!];
+    for (let r = 0; r < runs.count; r++) {
+      const s = runs.season[r]!;
+      let s0 = o0[s]!;
+      let s1 = o1[s]!;
+      let s2 = o2[s]!;
+      let s3 = o3[s]!;
+      for (let o = runs.start[r]!; o < runs.end[r]!; o++) {
+        const x = a[o]!;
+        s0 += x * b0[o]!;
+        s1 += x * b1[o]!;
+        s2 += x * b2[o]!;
+        s3 += x * b3[o]!;
+      }
+      o0[s] = s0;
+      o1[s] = s1;
+      o2[s] = s2;
+      o3[s] = s3;
+    }
+  }
+  for (; j < bs.length; j++) addSeasonDot(outs[j]!, runs, a, bs[j]!);
+}

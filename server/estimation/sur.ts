@@ -61,6 +61,26 @@ export interface SurOptions {
    * highest one).
    */
   initialSigma?: Mat;
+  /**
+   * false: no pass over the data after the fit — `residuals` is empty and the residual covariance
+   * and each equation's SSR come from the cross products (as with residualsFromCrossProducts), for a
+   * caller that refits long panels and needs only the coefficients, their covariance and Σ̂.
+   * Default true.
+   */
+  keepResiduals?: boolean;
+  /**
+   * The system's cross products when the caller has them (as systemCrossProducts returns them):
+   * the regressors' columns are then not read, so this needs method 'SUR',
+   * residualsFromCrossProducts and keepResiduals: false.
+   */
+  crossProducts?: SystemCrossProducts;
+}
+
+/** X_i'X_j, X_i'y_j and y_i'y_j of a system's equations (blocks indexed by equation). */
+export interface SystemCrossProducts {
+  xx: Mat[][];
+  xy: number[][][];
+  yy: Mat;
 }
 
 /** Cross products of pairs of column objects (see SurOptions.crossProductCache). */
@@ -88,6 +108,7 @@ export interface SurResult {
   sigmaUsed: Mat;
   /** Σ̂ recomputed from the final residuals with the same divisor (systemfit's `residCov`). */
   residualCovariance: Mat;
+  /** Empty when the caller set keepResiduals: false. */
   residuals: Float64Array[];
   equations: SurEquationResult[];
   observations: number;
@@ -154,9 +175,12 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
   const covMethod = options.residualCovariance ?? 'geomean';
   const nEq = equations.length;
   const T = equations[0]!.y.length;
+  const given = options.crossProducts;
+  if (given && (method !== 'SUR' || !options.residualsFromCrossProducts || options.keepResiduals !== false))
+    throw new Error('sur: given cross products need method SUR, residualsFromCrossProducts and keepResiduals: false');
   for (const eq of equations) {
     if (eq.y.length !== T) throw new Error(`sur: equation ${eq.name} has ${eq.y.length} observations, expected ${T}`);
-    for (const r of eq.regressors) if (r.values.length !== T) throw new Error(`sur: regressor ${r.name} of ${eq.name} has the wrong length`);
+    if (!given) for (const r of eq.regressors) if (r.values.length !== T) throw new Error(`sur: regressor ${r.name} of ${eq.name} has the wrong length`);
   }
   const kEq = equations.map((e) => e.regressors.length);
   const offsets: number[] = [];
@@ -166,7 +190,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
     K += k;
   }
 
-  const { xx: xxBlocks, xy: xyBlocks, yy } = systemCrossProducts(equations, options.crossProductCache);
+  const { xx: xxBlocks, xy: xyBlocks, yy } = given ?? systemCrossProducts(equations, options.crossProductCache);
 
   const R = options.restrictions?.matrix;
   const q = options.restrictions?.rhs ?? (R ? new Array<number>(R.length).fill(0) : []);
@@ -218,19 +242,27 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
 
   const residualsOf = (coef: number[]): Float64Array[] => systemResiduals(equations, (i, a) => coef[offsets[i]! + a]!);
 
-  /** The same Σ̂ from the cross products: e_i'e_j = y_i'y_j − b_i'X_i'y_j − b_j'X_j'y_i + b_i'X_i'X_j b_j. */
+  /** Divisor of σ_ij (see ResidualCovarianceMethod). */
+  const divisor = (i: number, j: number): number =>
+    covMethod === 'noDfCor' ? T : covMethod === 'geomean' ? Math.sqrt((T - kLi[i]!) * (T - kLi[j]!)) : T - Math.max(kLi[i]!, kLi[j]!);
+  /** e_i'e_j from the cross products: y_i'y_j − b_i'X_i'y_j − b_j'X_j'y_i + b_i'X_i'X_j b_j. */
+  const residualCrossProduct = (coef: number[], i: number, j: number): number => {
+    const bi = coef.slice(offsets[i]!, offsets[i]! + kEq[i]!);
+    const bj = coef.slice(offsets[j]!, offsets[j]! + kEq[j]!);
+    let s = yy[i]![j]!;
+    for (let a = 0; a < bi.length; a++) s -= bi[a]! * xyBlocks[i]![j]![a]!;
+    for (let b = 0; b < bj.length; b++) s -= bj[b]! * xyBlocks[j]![i]![b]!;
+    const blk = xxBlocks[i]![j]!;
+    for (let a = 0; a < bi.length; a++) for (let b = 0; b < bj.length; b++) s += bi[a]! * blk[a]![b]! * bj[b]!;
+    return s;
+  };
+  /** The same Σ̂ from the cross products (no pass over the data). */
   const residCovFromCrossProducts = (coef: number[]): Mat => {
     const S = zeros(nEq, nEq);
     for (let i = 0; i < nEq; i++)
       for (let j = i; j < nEq; j++) {
-        const bi = coef.slice(offsets[i]!, offsets[i]! + kEq[i]!);
-        const bj = coef.slice(offsets[j]!, offsets[j]! + kEq[j]!);
-        let s = yy[i]![j]!;
-        for (let a = 0; a < bi.length; a++) s -= bi[a]! * xyBlocks[i]![j]![a]!;
-        for (let b = 0; b < bj.length; b++) s -= bj[b]! * xyBlocks[j]![i]![b]!;
-        const blk = xxBlocks[i]![j]!;
-        for (let a = 0; a < bi.length; a++) for (let b = 0; b < bj.length; b++) s += bi[a]! * blk[a]![b]! * bj[b]!;
-        const d = covMethod === 'noDfCor' ? T : covMethod === 'geomean' ? Math.sqrt((T - kLi[i]!) * (T - kLi[j]!)) : T - Math.max(kLi[i]!, kLi[j]!);
+        const d = divisor(i, j);
+        const s = residualCrossProduct(coef, i, j);
         S[i]![j] = s / d;
         S[j]![i] = s / d;
       }
@@ -244,10 +276,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
         const ei = res[i]!;
         const ej = res[j]!;
         for (let t = 0; t < T; t++) s += ei[t]! * ej[t]!;
-        let d: number;
-        if (covMethod === 'noDfCor') d = T;
-        else if (covMethod === 'geomean') d = Math.sqrt((T - kLi[i]!) * (T - kLi[j]!));
-        else d = T - Math.max(kLi[i]!, kLi[j]!);
+        const d = divisor(i, j);
         S[i]![j] = s / d;
         S[j]![i] = s / d;
       }
@@ -283,17 +312,26 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
     cov = gls(inverse(sigmaUsed)).cov;
   }
 
-  const residuals = residualsOf(coef);
-  const residualCovariance = residCov(residuals);
+  const keep = options.keepResiduals ?? true;
+  const residuals = keep ? residualsOf(coef) : [];
+  const residualCovariance = keep ? residCov(residuals) : residCovFromCrossProducts(coef);
   const eqResults: SurEquationResult[] = equations.map((eq, i) => {
-    const e = residuals[i]!;
     let ssr = 0;
-    for (let t = 0; t < T; t++) ssr += e[t]! * e[t]!;
-    let ym = 0;
-    for (let t = 0; t < T; t++) ym += eq.y[t]!;
-    ym /= T;
     let sst = 0;
-    for (let t = 0; t < T; t++) sst += (eq.y[t]! - ym) ** 2;
+    if (keep) {
+      const e = residuals[i]!;
+      for (let t = 0; t < T; t++) ssr += e[t]! * e[t]!;
+      let ym = 0;
+      for (let t = 0; t < T; t++) ym += eq.y[t]!;
+      ym /= T;
+      for (let t = 0; t < T; t++) sst += (eq.y[t]! - ym) ** 2;
+    } else {
+      // e_i'e_i from the cross products (Σ̂_ii times its divisor), Σ(y − ȳ)² = y'y − (Σy)²/T
+      ssr = residualCrossProduct(coef, i, i);
+      let sy = 0;
+      for (let t = 0; t < T; t++) sy += eq.y[t]!;
+      sst = yy[i]![i]! - (sy * sy) / T;
+    }
     return {
       name: eq.name,
       coefficientNames: eq.regressors.map((r) => r.name),
@@ -323,7 +361,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
  * Cross-products X_i'X_j and X_i'y_j of a system's equations. Columns shared between equations
  * (the same array object) are multiplied once, which matters for long panels.
  */
-export function systemCrossProducts(equations: SurEquationInput[], cache?: CrossProductCache): { xx: Mat[][]; xy: number[][][]; yy: Mat } {
+export function systemCrossProducts(equations: SurEquationInput[], cache?: CrossProductCache): SystemCrossProducts {
   const T = equations[0]!.y.length;
   const columnIndex = new Map<Column, number>();
   const columns: Column[] = [];
