@@ -1,32 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { backTestForecast, elasticitiesAt, fitForecastModel, fitProfitFunction, type NetputDataset } from '../server/estimation/index.js';
 import { buildDemoCoop } from './demo-coop.js';
+import { demoDataset as buildDataset } from './demo-dataset.js';
 import { buildTechnology, DEMO_ITEMS, netputs, NUMERAIRE, valueHessian } from './technology.js';
 
 const demo = buildDemoCoop();
-const order = [...DEMO_ITEMS.filter((i) => i.role === 'output'), ...DEMO_ITEMS.filter((i) => i.role === 'input')];
-const dpOfRegion: Record<string, string> = { Riverlands: 'Larkfield terminal', 'North Wold': 'Ashby elevator', Clayvale: 'Millbrook store' };
-
-/** The demo's records as the model sample sees them: prices faced per region, land per farm and season. */
-function demoDataset(): NetputDataset {
-  const rec = new Map(demo.records.map((r) => [`${r.farm}/${r.season}/${r.item}`, r.quantity]));
-  const land = new Map(demo.land.map((r) => [`${r.farm}/${r.season}`, r.landHa]));
-  const ds: NetputDataset = { items: order.map((i) => ({ name: i.code, role: i.role })), fixedFactors: ['land_ha'], seasons: [], seasonYears: [], farms: [], prices: order.map(() => []), quantities: order.map(() => []), fixed: [[]], rows: [] };
-  for (const s of demo.seasons)
-    for (const f of demo.farms) {
-      ds.seasons.push(s.label);
-      ds.seasonYears.push(s.startYear);
-      ds.farms!.push(f.code);
-      ds.rows.push(ds.rows.length + 2);
-      order.forEach((it, k) => {
-        const obs = demo.prices.filter((p) => p.item === it.code && p.season === s.label && (it.role === 'input' || p.deliveryPoint === dpOfRegion[f.region]));
-        ds.prices[k].push(obs.reduce((a, p) => a + p.price, 0) / obs.length);
-        ds.quantities[k].push(rec.get(`${f.code}/${s.label}/${it.code}`)!);
-      });
-      ds.fixed[0].push(land.get(`${f.code}/${s.label}`)!);
-    }
-  return ds;
-}
+const demoDataset = () => buildDataset(demo);
 
 describe('the demo co-op (invented data)', () => {
   it('states the own-price elasticities its technology implies, the numeraire included', () => {
