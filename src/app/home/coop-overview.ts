@@ -10,6 +10,7 @@ import type { CoopSummary } from '../../../shared/api-types';
 import { ROLE_LABELS } from '../../../shared/roles';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
+import { FERTILISER_RATE_CAUTION } from '../shared/base-cautions';
 import { CautionNote } from '../shared/caution-note';
 import { LoadProblem } from '../shared/load-problem';
 
@@ -38,6 +39,7 @@ export class CoopOverview {
   readonly #auth = inject(AuthStore);
 
   protected readonly summary = httpResource<CoopSummary>(() => '/api/summary');
+  protected readonly fertiliserCaution = FERTILISER_RATE_CAUTION;
   protected readonly data = computed(() => (this.summary.hasValue() ? this.summary.value() : null));
   protected readonly problem = computed(() => (this.summary.error() ? errorMessage(this.summary.error()) : null));
   protected readonly roleLabel = computed(() => {

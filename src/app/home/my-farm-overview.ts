@@ -9,6 +9,7 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import type { MyFarm } from '../../../shared/api-types';
 import { errorMessage, errorStatus } from '../core/api-error';
+import { FERTILISER_RATE_CAUTION } from '../shared/base-cautions';
 import { CautionNote } from '../shared/caution-note';
 import { dayText } from '../../../shared/number-format';
 import { LoadProblem } from '../shared/load-problem';
@@ -72,6 +73,7 @@ export function recordsBySeason(records: MyFarm['records']): { seasons: string[]
 })
 export class MyFarmOverview {
   protected readonly myFarm = httpResource<MyFarm>(() => '/api/my-farm');
+  protected readonly fertiliserCaution = FERTILISER_RATE_CAUTION;
   protected readonly data = computed(() => (this.myFarm.hasValue() ? this.myFarm.value() : null));
   protected readonly noFarm = computed(() => errorStatus(this.myFarm.error()) === 404);
   protected readonly problem = computed(() =>

@@ -1,11 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import { BASE_CAUTIONS } from '../shared/base-cautions';
 import { CautionNote } from '../shared/caution-note';
-
-/** The cautions every outlook page shows when the server has not sent its own list (yet). */
-export const BASE_CAUTIONS: readonly string[] = [
-  'Projections are estimates from past behaviour, not financial advice, nor a recommendation to buy, sell, book, store or hedge.',
-  'Fertiliser rates follow soil tests, local agronomic guidance and nutrient-management rules, and a certified adviser has the last word.',
-];
 
 /** The outlook's cautions (the list frozen with each version), in the app's caution style. */
 @Component({
