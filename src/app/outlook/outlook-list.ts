@@ -14,6 +14,7 @@ import { OutlookCautions } from './outlook-cautions';
 import { formatDateTime, suggestedOutlookSeason } from './outlook-format';
 import { finishedRuns, type ModelListRow, type OutlookDraft, type OutlookListRow, type ProjectionStatus, type RunChoiceAnswer } from './outlook-api-types';
 import { LoadProblem } from '../shared/load-problem';
+import { StatusPill, type PillTone } from '../shared/status-pill';
 
 export const PROJECTION_WORDS: Record<ProjectionStatus, string> = {
   none: 'not projected',
@@ -23,10 +24,19 @@ export const PROJECTION_WORDS: Record<ProjectionStatus, string> = {
   failed: 'projection failed',
 };
 
+/** The colour of each projection state's pill on the list. */
+const PROJECTION_TONES: Record<ProjectionStatus, PillTone> = {
+  none: 'neutral',
+  queued: 'pending',
+  running: 'pending',
+  succeeded: 'success',
+  failed: 'error',
+};
+
 /** `/outlook`: every season's outlook, its projection state and published versions; planners open new ones. */
 @Component({
   selector: 'np-outlook-list',
-  imports: [RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, OutlookCautions, LoadProblem],
+  imports: [RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, OutlookCautions, LoadProblem, StatusPill],
   templateUrl: './outlook-list.html',
   styleUrl: './outlook-list.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -46,6 +56,7 @@ export class OutlookList {
   readonly #seasons = httpResource<Season[]>(() => (this.canWrite() ? '/api/seasons' : undefined));
   readonly #choice = httpResource<RunChoiceAnswer>(() => (this.canWrite() ? '/api/outlooks/run-choice' : undefined));
   protected readonly words = PROJECTION_WORDS;
+  protected readonly tones = PROJECTION_TONES;
   protected readonly formatDateTime = formatDateTime;
 
   protected openNew(): void {

@@ -21,17 +21,24 @@ import { ConfirmDialog, type ConfirmDialogData } from '../../shared/confirm-dial
 import { UserDialog, type UserDialogData } from './user-dialog';
 import { UsersApi } from './users-api';
 import { LoadProblem } from '../../shared/load-problem';
+import { StatusPill, type PillTone } from '../../shared/status-pill';
 
-const STATUS: Record<UserStatus, { label: string; icon: string }> = {
-  active: { label: 'Active', icon: 'check_circle' },
-  invited: { label: 'Invited', icon: 'schedule_send' },
-  deactivated: { label: 'Deactivated', icon: 'block' },
+interface StatusView {
+  label: string;
+  icon: string;
+  tone: PillTone;
+}
+
+const STATUS: Record<UserStatus, StatusView> = {
+  active: { label: 'Active', icon: 'check_circle', tone: 'success' },
+  invited: { label: 'Invited', icon: 'schedule_send', tone: 'pending' },
+  deactivated: { label: 'Deactivated', icon: 'block', tone: 'neutral' },
 };
 
 /** A table row: the account plus the words and icon the table shows for it. */
 interface UserRow extends UserSummary {
   roleLabel: string;
-  statusView: { label: string; icon: string };
+  statusView: StatusView;
 }
 
 /** `/admin/users`: who has an account, invitations, roles, deactivation and reset links. */
@@ -42,6 +49,7 @@ interface UserRow extends UserSummary {
     MatButton,
     MatIconButton,
     MatIcon,
+    StatusPill,
     MatFormField,
     MatLabel,
     MatPrefix,
