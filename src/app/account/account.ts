@@ -5,9 +5,9 @@ import { MatCard, MatCardContent } from '@angular/material/card';
 import { MatIcon } from '@angular/material/icon';
 import type { FarmSummary } from '../../../shared/api-types';
 import { ROLE_LABELS } from '../../../shared/roles';
-import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { MailPreferencesToggle } from '../my-farm/mail-preferences';
+import { runBusy } from '../shared/run-busy';
 
 const ROLE_DESCRIPTIONS = {
   admin: 'You invite people, set their roles and keep the co-op settings.',
@@ -55,15 +55,13 @@ export class Account {
   protected async requestPasswordLink(): Promise<void> {
     const email = this.user()?.email;
     if (!email) return;
-    this.failure.set(null);
-    this.sending.set(true);
-    try {
-      await this.#auth.requestPasswordReset(email);
-      this.sent.set(true);
-    } catch (error) {
-      this.failure.set(errorMessage(error));
-    } finally {
-      this.sending.set(false);
-    }
+    await runBusy(
+      this.sending,
+      async () => {
+        await this.#auth.requestPasswordReset(email);
+        this.sent.set(true);
+      },
+      this.failure,
+    );
   }
 }

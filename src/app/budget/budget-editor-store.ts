@@ -49,6 +49,7 @@ import type {
 } from './budget-api-types';
 import { BudgetUnitsStore, pricePerTToShown, unitLabels } from './budget-units';
 import { scenarioLabel } from '../outlook/outlook-api-types';
+import { runBusy } from '../shared/run-busy';
 
 /** The cautions every budget carries, shown before the first result arrives (the server sends its own with each result). */
 const STANDING_CAUTIONS = [
@@ -359,25 +360,26 @@ export class BudgetEditorStore {
       this.#snackBar.open('Some fields need attention before the budget can be saved; they are marked.', 'OK');
       return;
     }
-    this.saving.set(true);
-    try {
-      const id = this.budgetId();
-      if (this.isNew() || id === null) {
-        const created = await this.#api.create(input, this.#formSystem);
-        this.#snackBar.open(`“${created.name}” is saved.`, 'OK');
-        await this.#router.navigate(['/budget', created.id], { replaceUrl: true });
-        return;
-      }
-      const updated = await this.#api.update(id, input, this.#formSystem);
-      this.saved.set(updated);
-      this.#reloadFromSaved(updated);
-      this.#snackBar.open('The budget is saved.', 'OK');
-    } catch (error) {
-      this.problems.set(this.#problemLines(error));
-      this.#snackBar.open('The budget was not saved; the problem is shown at the top of the page.', 'OK');
-    } finally {
-      this.saving.set(false);
-    }
+    await runBusy(
+      this.saving,
+      async () => {
+        const id = this.budgetId();
+        if (this.isNew() || id === null) {
+          const created = await this.#api.create(input, this.#formSystem);
+          this.#snackBar.open(`“${created.name}” is saved.`, 'OK');
+          await this.#router.navigate(['/budget', created.id], { replaceUrl: true });
+          return;
+        }
+        const updated = await this.#api.update(id, input, this.#formSystem);
+        this.saved.set(updated);
+        this.#reloadFromSaved(updated);
+        this.#snackBar.open('The budget is saved.', 'OK');
+      },
+      (error) => {
+        this.problems.set(this.#problemLines(error));
+        this.#snackBar.open('The budget was not saved; the problem is shown at the top of the page.', 'OK');
+      },
+    );
   }
 
   discard(): void {

@@ -8,6 +8,7 @@ import type { ContractedView } from '../../../shared/contracted-view';
 import { CautionNote } from '../shared/caution-note';
 import { ContractEvaluation } from './contract-evaluation';
 import { bandText, money, signedMoney, tonnes } from './contract-format';
+import { runBusy } from '../shared/run-busy';
 
 /**
  * The outlook's contracted view (issue 19): for the season's signed contracts, the estimated
@@ -87,13 +88,8 @@ export class ContractedSection {
   }
 
   protected async evaluate(): Promise<void> {
-    this.starting.set(true);
     this.#evaluation.clearProblem();
-    try {
-      await this.#evaluation.evaluate(this.outlookId());
-    } finally {
-      this.starting.set(false);
-    }
+    await runBusy(this.starting, () => this.#evaluation.evaluate(this.outlookId()));
   }
 }
 

@@ -28,6 +28,7 @@ import { RunProvenance } from './run-provenance';
 import { RunStateBadge } from './run-state-badge';
 import { pollRunStatuses } from './run-status-poller';
 import { LoadProblem } from '../shared/load-problem';
+import { runBusy } from '../shared/run-busy';
 
 /** `/models/runs/:runId`: one run's result, read for planners and explained for the board. */
 @Component({
@@ -149,29 +150,27 @@ export class RunResult {
   protected async rerun(): Promise<void> {
     const d = this.detail();
     if (!d) return;
-    this.busy.set(true);
-    try {
-      const again = await this.#api.rerun(d.id);
-      this.#snackBar.open(`Run #${again.id} repeats run #${d.id} on the same data snapshot.`);
-      await this.#router.navigate(['/models/runs', again.id]);
-    } catch (error) {
-      this.#snackBar.open(errorMessage(error));
-    } finally {
-      this.busy.set(false);
-    }
+    await runBusy(
+      this.busy,
+      async () => {
+        const again = await this.#api.rerun(d.id);
+        this.#snackBar.open(`Run #${again.id} repeats run #${d.id} on the same data snapshot.`);
+        await this.#router.navigate(['/models/runs', again.id]);
+      },
+      (error) => this.#snackBar.open(errorMessage(error)),
+    );
   }
 
   protected async cancel(): Promise<void> {
     const d = this.detail();
     if (!d) return;
-    this.busy.set(true);
-    try {
-      await this.#api.cancel(d.id);
-      this.run.reload();
-    } catch (error) {
-      this.#snackBar.open(errorMessage(error));
-    } finally {
-      this.busy.set(false);
-    }
+    await runBusy(
+      this.busy,
+      async () => {
+        await this.#api.cancel(d.id);
+        this.run.reload();
+      },
+      (error) => this.#snackBar.open(errorMessage(error)),
+    );
   }
 }

@@ -3,6 +3,7 @@ import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@a
 import { MatSlideToggle } from '@angular/material/slide-toggle';
 import { errorMessage } from '../core/api-error';
 import { OutlookApi } from '../outlook/outlook-api';
+import { runBusy } from '../shared/run-busy';
 
 export interface MailPreferences {
   email: string;
@@ -57,15 +58,14 @@ export class MailPreferencesToggle {
   protected readonly failure = signal<string | null>(null);
 
   protected async save(outlookEmails: boolean): Promise<void> {
-    this.saving.set(true);
     this.failure.set(null);
-    try {
-      this.prefs.set(await this.#api.setMailPreferences(outlookEmails));
-    } catch (error) {
-      this.failure.set(`Your choice was not saved: ${errorMessage(error)}`);
-      this.prefs.reload();
-    } finally {
-      this.saving.set(false);
-    }
+    await runBusy(
+      this.saving,
+      async () => this.prefs.set(await this.#api.setMailPreferences(outlookEmails)),
+      (error) => {
+        this.failure.set(`Your choice was not saved: ${errorMessage(error)}`);
+        this.prefs.reload();
+      },
+    );
   }
 }

@@ -8,6 +8,7 @@ import { ExpectationForm } from './expectation-form';
 import { OutlookApi } from './outlook-api';
 import { formatPercent, formatPrice, formatSignedPercent } from './outlook-format';
 import type { ExpectationMethod, ExpectationSetting, MethodComparison, OutlookDraft } from './outlook-api-types';
+import { runBusy } from '../shared/run-busy';
 
 export interface ExpectationDialogData {
   outlookId: number;
@@ -81,18 +82,17 @@ export class ExpectationDialog {
     const list = [...this.data.settings];
     const index = this.#index >= 0 ? this.#index : list.length;
     list[index] = setting;
-    this.busy.set(true);
     this.serverErrors.set(null);
     this.failure.set(null);
-    try {
-      this.#ref.close(await this.#api.setExpectations(this.data.outlookId, list));
-    } catch (error) {
-      const d = detailsForItem(error, index);
-      this.serverErrors.set(d.method || d.band ? { method: d.method, band: d.band } : null);
-      this.failure.set(d.other ?? null);
-    } finally {
-      this.busy.set(false);
-    }
+    await runBusy(
+      this.busy,
+      async () => this.#ref.close(await this.#api.setExpectations(this.data.outlookId, list)),
+      (error) => {
+        const d = detailsForItem(error, index);
+        this.serverErrors.set(d.method || d.band ? { method: d.method, band: d.band } : null);
+        this.failure.set(d.other ?? null);
+      },
+    );
   }
 
   protected cancel(): void {

@@ -19,6 +19,7 @@ import { formatPrice } from './outlook-format';
 import type { FuturesQuote } from './outlook-api-types';
 import { FieldError } from '../shared/field-error';
 import { LoadProblem } from '../shared/load-problem';
+import { runBusy } from '../shared/run-busy';
 
 /**
  * The futures history behind the "futures quote plus local basis" method: one row per quote (item,
@@ -105,20 +106,21 @@ export class FuturesQuotes {
     if (this.form.invalid) return;
     const v = this.form.getRawValue();
     const body = { itemId: v.itemId!, seasonId: v.seasonId!, contract: v.contract.trim(), quote: v.quote!, currency: v.currency.trim(), quotedOn: v.quotedOn, source: v.source.trim() };
-    this.saving.set(true);
     this.failure.set(null);
-    try {
-      const editing = this.editing();
-      const saved = editing ? await this.#api.updateQuote(editing.id, body) : await this.#api.addQuote(body);
-      this.#snackBar.open(`Quote ${saved.contract}, ${saved.season}: ${formatPrice(saved.quote)} ${saved.currency} saved. Save the item's expected price again to use it.`, 'OK');
-      this.quotes.reload();
-      this.cancelEdit();
-    } catch (error) {
-      const matched = error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details);
-      if (!matched) this.failure.set(errorMessage(error));
-    } finally {
-      this.saving.set(false);
-    }
+    await runBusy(
+      this.saving,
+      async () => {
+        const editing = this.editing();
+        const saved = editing ? await this.#api.updateQuote(editing.id, body) : await this.#api.addQuote(body);
+        this.#snackBar.open(`Quote ${saved.contract}, ${saved.season}: ${formatPrice(saved.quote)} ${saved.currency} saved. Save the item's expected price again to use it.`, 'OK');
+        this.quotes.reload();
+        this.cancelEdit();
+      },
+      (error) => {
+        const matched = error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details);
+        if (!matched) this.failure.set(errorMessage(error));
+      },
+    );
   }
 
   protected async remove(q: FuturesQuote): Promise<void> {

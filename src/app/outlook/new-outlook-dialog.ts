@@ -3,11 +3,11 @@ import { NonNullableFormBuilder, Validators } from '@angular/forms';
 import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { seasonLabelSchema } from '../../../shared/outlook-schemas';
-import { ApiRequestError, errorMessage } from '../core/api-error';
-import { applyServerDetails, zodValidator } from '../shared/zod-validator';
+import { zodValidator } from '../shared/zod-validator';
 import { OutlookApi } from './outlook-api';
 import type { OutlookDraft } from './outlook-api-types';
 import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
+import { saveAndClose } from '../shared/dialog-save';
 
 export interface RunChoice {
   id: number;
@@ -103,16 +103,11 @@ export class NewOutlookDialog {
       return;
     }
     if (this.form.invalid) return;
-    this.saving.set(true);
-    this.failure.set(null);
-    try {
-      const created = await this.#api.create({ season: v.season.trim(), modelRunId: v.modelRunId, ...(v.title.trim() ? { title: v.title.trim() } : {}) });
-      this.#ref.close(created);
-    } catch (error) {
-      const matched = error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details);
-      if (!matched) this.failure.set(errorMessage(error));
-    } finally {
-      this.saving.set(false);
-    }
+    await saveAndClose(() => this.#api.create({ season: v.season.trim(), modelRunId: v.modelRunId, ...(v.title.trim() ? { title: v.title.trim() } : {}) }), {
+      ref: this.#ref,
+      saving: this.saving,
+      failure: this.failure,
+      controls: this.form.controls,
+    });
   }
 }

@@ -21,6 +21,7 @@ import { ApiRequestError, errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { PublicFrame } from '../shared/public-frame';
 import { FieldError } from '../shared/field-error';
+import { runBusy } from '../shared/run-busy';
 
 function passwordsMatch(group: AbstractControl): ValidationErrors | null {
   const password = group.get('password')?.value as string;
@@ -105,20 +106,21 @@ export class SetPassword {
       return;
     }
     this.failure.set(null);
-    this.submitting.set(true);
-    try {
-      await this.#auth.setPasswordWithToken(this.token(), this.form.controls.password.value);
-      await this.#router.navigateByUrl('/', { replaceUrl: true });
-    } catch (error) {
-      if (error instanceof ApiRequestError && error.status === 410) {
-        this.#goneOnSubmit.set(true);
-      } else if (error instanceof ApiRequestError && error.detailFor('password')) {
-        this.form.controls.password.setErrors({ server: error.detailFor('password') });
-      } else {
-        this.failure.set(errorMessage(error));
-      }
-    } finally {
-      this.submitting.set(false);
-    }
+    await runBusy(
+      this.submitting,
+      async () => {
+        await this.#auth.setPasswordWithToken(this.token(), this.form.controls.password.value);
+        await this.#router.navigateByUrl('/', { replaceUrl: true });
+      },
+      (error) => {
+        if (error instanceof ApiRequestError && error.status === 410) {
+          this.#goneOnSubmit.set(true);
+        } else if (error instanceof ApiRequestError && error.detailFor('password')) {
+          this.form.controls.password.setErrors({ server: error.detailFor('password') });
+        } else {
+          this.failure.set(errorMessage(error));
+        }
+      },
+    );
   }
 }

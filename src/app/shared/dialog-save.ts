@@ -2,6 +2,7 @@ import type { WritableSignal } from '@angular/core';
 import type { AbstractControl } from '@angular/forms';
 import type { MatDialogRef } from '@angular/material/dialog';
 import { ApiRequestError, errorMessage } from '../core/api-error';
+import { runBusy } from './run-busy';
 import { applyServerDetails } from './zod-validator';
 
 /** What a form dialog hands to {@link saveAndClose}. */
@@ -26,16 +27,15 @@ export interface DialogSave<T> {
  */
 export async function saveAndClose<T>(request: () => Promise<T>, o: DialogSave<T>): Promise<void> {
   o.failure.set(null);
-  o.saving.set(true);
-  try {
-    o.ref.close(await request());
-  } catch (error) {
-    const details = error instanceof ApiRequestError ? error.error.details : undefined;
-    const mapped = o.detailPath ? details?.map((d) => ({ ...d, path: o.detailPath!(d.path) })) : details;
-    if (!applyServerDetails(o.controls, mapped)) {
-      o.failure.set(o.conflict && error instanceof ApiRequestError && error.status === 409 ? o.conflict : errorMessage(error));
-    }
-  } finally {
-    o.saving.set(false);
-  }
+  await runBusy(
+    o.saving,
+    async () => o.ref.close(await request()),
+    (error) => {
+      const details = error instanceof ApiRequestError ? error.error.details : undefined;
+      const mapped = o.detailPath ? details?.map((d) => ({ ...d, path: o.detailPath!(d.path) })) : details;
+      if (!applyServerDetails(o.controls, mapped)) {
+        o.failure.set(o.conflict && error instanceof ApiRequestError && error.status === 409 ? o.conflict : errorMessage(error));
+      }
+    },
+  );
 }

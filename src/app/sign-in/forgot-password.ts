@@ -5,11 +5,11 @@ import { MatError, MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { RouterLink } from '@angular/router';
 import { emailSchema } from '../../../shared/schemas';
-import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { PublicFrame } from '../shared/public-frame';
 import { zodValidator } from '../shared/zod-validator';
 import { FieldError } from '../shared/field-error';
+import { runBusy } from '../shared/run-busy';
 
 @Component({
   selector: 'np-forgot-password',
@@ -57,15 +57,13 @@ export class ForgotPassword {
       return;
     }
     const email = this.form.controls.email.value.trim();
-    this.failure.set(null);
-    this.submitting.set(true);
-    try {
-      await this.#auth.requestPasswordReset(email);
-      this.sentTo.set(email);
-    } catch (error) {
-      this.failure.set(errorMessage(error));
-    } finally {
-      this.submitting.set(false);
-    }
+    await runBusy(
+      this.submitting,
+      async () => {
+        await this.#auth.requestPasswordReset(email);
+        this.sentTo.set(email);
+      },
+      this.failure,
+    );
   }
 }

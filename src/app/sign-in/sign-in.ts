@@ -7,12 +7,12 @@ import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { Router, RouterLink } from '@angular/router';
 import { emailSchema } from '../../../shared/schemas';
-import { errorMessage } from '../core/api-error';
 import { safeReturnUrl } from '../core/auth-guards';
 import { AuthStore } from '../core/auth-store';
 import { PublicFrame } from '../shared/public-frame';
 import { zodValidator } from '../shared/zod-validator';
 import { FieldError } from '../shared/field-error';
+import { runBusy } from '../shared/run-busy';
 
 @Component({
   selector: 'np-sign-in',
@@ -59,15 +59,13 @@ export class SignIn {
       return;
     }
     const { email, password } = this.form.getRawValue();
-    this.failure.set(null);
-    this.submitting.set(true);
-    try {
-      await this.#auth.signIn(email.trim(), password);
-      await this.#router.navigateByUrl(safeReturnUrl(this.returnUrl()));
-    } catch (error) {
-      this.failure.set(errorMessage(error));
-    } finally {
-      this.submitting.set(false);
-    }
+    await runBusy(
+      this.submitting,
+      async () => {
+        await this.#auth.signIn(email.trim(), password);
+        await this.#router.navigateByUrl(safeReturnUrl(this.returnUrl()));
+      },
+      this.failure,
+    );
   }
 }

@@ -7,6 +7,7 @@ import { MatProgressBar } from '@angular/material/progress-bar';
 import { errorMessage } from '../../core/api-error';
 import { money } from '../../my-farm/bookings/booking-format';
 import { DevPaymentsApi } from './dev-payments-api';
+import { runBusy } from '../../shared/run-busy';
 
 interface FakeSession {
   id: string;
@@ -124,15 +125,7 @@ export class DevPayments {
   protected readonly fmt = money;
 
   protected async act(id: string, what: 'complete' | 'fail') {
-    this.busy.set(true);
-    this.#actionProblem.set(null);
-    try {
-      await this.#api.settle(id, what);
-    } catch (err) {
-      this.#actionProblem.set(errorMessage(err));
-    } finally {
-      this.busy.set(false);
-      this.data.reload();
-    }
+    await runBusy(this.busy, () => this.#api.settle(id, what), this.#actionProblem);
+    this.data.reload();
   }
 }

@@ -15,6 +15,7 @@ import { ApiRequestError, errorMessage } from '../../core/api-error';
 import { SettingsStore } from '../../core/settings-store';
 import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
 import { FieldError } from '../../shared/field-error';
+import { runBusy } from '../../shared/run-busy';
 
 /** `/admin/settings`: the co-op's name, currency, units and capacities. */
 @Component({
@@ -100,19 +101,20 @@ export class CoopSettingsPage {
       return;
     }
     this.failure.set(null);
-    this.saving.set(true);
-    try {
-      const value = this.form.getRawValue();
-      const saved = await this.#store.save({ ...value, coopName: value.coopName.trim() });
-      this.form.reset(saved);
-      this.#snackBar.open('Settings saved.', 'OK');
-    } catch (error) {
-      if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
-        this.failure.set(errorMessage(error));
-      }
-    } finally {
-      this.saving.set(false);
-    }
+    await runBusy(
+      this.saving,
+      async () => {
+        const value = this.form.getRawValue();
+        const saved = await this.#store.save({ ...value, coopName: value.coopName.trim() });
+        this.form.reset(saved);
+        this.#snackBar.open('Settings saved.', 'OK');
+      },
+      (error) => {
+        if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
+          this.failure.set(errorMessage(error));
+        }
+      },
+    );
   }
 
   protected discardChanges(): void {

@@ -11,6 +11,7 @@ import { ApiRequestError, errorMessage } from '../../core/api-error';
 import { applyServerDetails, zodValidator } from '../../shared/zod-validator';
 import { UsersApi } from './users-api';
 import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
+import { runBusy } from '../../shared/run-busy';
 
 export interface UserDialogData {
   /** The account to edit; absent when inviting someone new. */
@@ -90,21 +91,22 @@ export class UserDialog {
     const { email, name, role, farmId } = this.form.getRawValue();
     const farm = role === 'member' ? farmId : null;
     this.failure.set(null);
-    this.saving.set(true);
-    try {
-      const saved = this.data.user
-        ? await this.#api.update(this.data.user.id, { name: name.trim(), role, farmId: farm })
-        : await this.#api.invite({ email: email.trim(), name: name.trim(), role, farmId: farm });
-      this.#dialogRef.close(saved);
-    } catch (error) {
-      // 409 names either the e-mail address (an account exists) or the farm (it has a member already).
-      if (error instanceof ApiRequestError && error.status === 409 && !this.editing && error.message.includes(email.trim())) {
-        this.form.controls.email.setErrors({ server: error.message });
-      } else if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
-        this.failure.set(errorMessage(error));
-      }
-    } finally {
-      this.saving.set(false);
-    }
+    await runBusy(
+      this.saving,
+      async () => {
+        const saved = this.data.user
+          ? await this.#api.update(this.data.user.id, { name: name.trim(), role, farmId: farm })
+          : await this.#api.invite({ email: email.trim(), name: name.trim(), role, farmId: farm });
+        this.#dialogRef.close(saved);
+      },
+      (error) => {
+        // 409 names either the e-mail address (an account exists) or the farm (it has a member already).
+        if (error instanceof ApiRequestError && error.status === 409 && !this.editing && error.message.includes(email.trim())) {
+          this.form.controls.email.setErrors({ server: error.message });
+        } else if (!(error instanceof ApiRequestError && applyServerDetails(this.form.controls, error.error.details))) {
+          this.failure.set(errorMessage(error));
+        }
+      },
+    );
   }
 }

@@ -21,6 +21,7 @@ import { PASTE_COLUMN_LABEL, PRICE_PASTE_COLUMNS, parseTable, problemsFromServer
 import { ProblemList } from '../problem-list';
 import type { DecimalMark } from '../../../../shared/cell-parsers';
 import type { Lookups } from '../reference-store';
+import { runBusy } from '../../shared/run-busy';
 
 export interface PasteDialogData {
   text: string;
@@ -107,24 +108,22 @@ export class PasteDialog {
     const parsed = this.parsed();
     if (!this.canSend()) return;
     const confirmed = this.askingToConfirm();
-    this.sending.set(true);
     this.failure.set(null);
     this.serverProblems.set([]);
-    try {
-      const created = await this.#api.createPrices(parsed.validRows, confirmed);
-      this.#dialogRef.close(created);
-    } catch (error) {
-      const mapped = error instanceof ApiRequestError ? problemsFromServer(error.error.details, parsed.rows) : [];
-      if (error instanceof ApiRequestError && error.error.code === 'needs_confirmation') {
-        // Far from the item's history: shown line by line; sending the same block again stores it.
-        this.doubts.set({ text: this.#text(), problems: mapped });
-        this.failure.set('Nothing was added yet: check the lines below; if they are right, add them anyway.');
-        return;
-      }
-      if (mapped.length) this.serverProblems.set(mapped);
-      this.failure.set(`Nothing was added: ${errorMessage(error)}`);
-    } finally {
-      this.sending.set(false);
-    }
+    await runBusy(
+      this.sending,
+      async () => this.#dialogRef.close(await this.#api.createPrices(parsed.validRows, confirmed)),
+      (error) => {
+        const mapped = error instanceof ApiRequestError ? problemsFromServer(error.error.details, parsed.rows) : [];
+        if (error instanceof ApiRequestError && error.error.code === 'needs_confirmation') {
+          // Far from the item's history: shown line by line; sending the same block again stores it.
+          this.doubts.set({ text: this.#text(), problems: mapped });
+          this.failure.set('Nothing was added yet: check the lines below; if they are right, add them anyway.');
+          return;
+        }
+        if (mapped.length) this.serverProblems.set(mapped);
+        this.failure.set(`Nothing was added: ${errorMessage(error)}`);
+      },
+    );
   }
 }
