@@ -3,11 +3,11 @@ import { ChangeDetectionStrategy, Component, computed, effect, linkedSignal, unt
 import { MatButton } from '@angular/material/button';
 import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
-import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { DemandBand } from '../../../shared/contracted-view';
 import { nutrientAmount } from '../../../shared/contract-words';
 import { CautionNote } from '../shared/caution-note';
+import { JobProgress } from '../shared/job-progress';
 import { ContractEvaluation } from './contract-evaluation';
 
 const signedPct = (v: number) => `${v > 0 ? '+' : v < 0 ? '−' : ''}${Math.abs(v).toLocaleString('en-GB', { maximumFractionDigits: 1 })} %`;
@@ -20,7 +20,7 @@ const signedPct = (v: number) => `${v > 0 ? '+' : v < 0 ? '−' : ''}${Math.abs(
  */
 @Component({
   selector: 'np-contract-basis-section',
-  imports: [MatButton, MatIcon, MatFormField, MatLabel, MatSelect, MatOption, MatProgressBar, CautionNote],
+  imports: [MatButton, MatIcon, MatFormField, MatLabel, MatSelect, MatOption, JobProgress, CautionNote],
   templateUrl: './contract-basis-section.html',
   styleUrl: './contracted-section.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

@@ -2,10 +2,10 @@ import { DecimalPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, effect, input, signal, untracked } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatIcon } from '@angular/material/icon';
-import { MatProgressBar } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import type { ContractedView } from '../../../shared/contracted-view';
 import { CautionNote } from '../shared/caution-note';
+import { JobProgress } from '../shared/job-progress';
 import { ContractEvaluation } from './contract-evaluation';
 import { bandText, money, signedMoney, tonnes } from './contract-format';
 import { runBusy } from '../shared/run-busy';
@@ -18,7 +18,7 @@ import { runBusy } from '../shared/run-busy';
  */
 @Component({
   selector: 'np-contracted-section',
-  imports: [DecimalPipe, RouterLink, MatButton, MatIcon, MatProgressBar, CautionNote],
+  imports: [DecimalPipe, RouterLink, MatButton, MatIcon, JobProgress, CautionNote],
   templateUrl: './contracted-section.html',
   styleUrl: './contracted-section.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

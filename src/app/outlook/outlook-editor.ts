@@ -8,6 +8,7 @@ import { MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
 import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
+import { JobProgress } from '../shared/job-progress';
 import { MatRadioButton, MatRadioGroup } from '@angular/material/radio';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
@@ -61,6 +62,7 @@ const ACTIVE = new Set(['queued', 'running']);
     MatRadioGroup,
     MatRadioButton,
     MatProgressBar,
+    JobProgress,
     MatExpansionPanel,
     MatExpansionPanelHeader,
     MatExpansionPanelTitle,

@@ -187,14 +187,14 @@ describe('ImportsPage', () => {
     await new Promise((r) => setTimeout(r, 300));
     http.expectOne('/api/imports/41').flush(view({ errorCount: 0, errors: [], status: 'committing', progress: { done: 2, total: 3 } }));
     await settle();
-    expect(root.querySelector('.progress-text')!.textContent!.trim()).toBe('2 of 3 rows written (67%)');
+    expect(root.querySelector('np-job-progress')!.textContent!.trim()).toBe('2 of 3 rows written (67%)');
 
     await new Promise((r) => setTimeout(r, 300));
     http
       .expectOne('/api/imports/41')
       .flush(view({ errorCount: 0, errors: [], status: 'committed', committedAt: '2026-12-01T09:01:00.000Z', progress: { done: 3, total: 3 }, counts: { inserted: 2, updated: 0, skipped: 1 } }));
     await settle();
-    expect(root.querySelector('.progress-text')!.textContent!.trim()).toBe('3 of 3 rows written (100%)');
+    expect(root.querySelector('np-job-progress')!.textContent!.trim()).toBe('3 of 3 rows written (100%)');
     expect(root.querySelector('.done')!.textContent).toContain('2 added, 0 updated, 1 skipped.');
   });
 });

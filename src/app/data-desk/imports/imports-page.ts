@@ -9,6 +9,7 @@ import { MatCard, MatCardContent } from '@angular/material/card';
 import { MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
 import { MatProgressBar } from '@angular/material/progress-bar';
+import { JobProgress } from '../../shared/job-progress';
 import { MatRadioButton, MatRadioGroup } from '@angular/material/radio';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { RouterLink } from '@angular/router';
@@ -78,6 +79,7 @@ export function fileProblem(file: { name: string; size: number }): string | null
     MatHint,
     MatIcon,
     MatProgressBar,
+    JobProgress,
     MatRadioGroup,
     MatRadioButton,
     MatSelect,
