@@ -1,31 +1,20 @@
 import { ChangeDetectionStrategy, Component, computed, input, linkedSignal } from '@angular/core';
-import { MatFormField, MatLabel } from '@angular/material/form-field';
-import { MatOption, MatSelect } from '@angular/material/select';
-import { NgxEchartsDirective } from 'ngx-echarts';
 import { fittedOption } from './chart-options';
 import { ItemLabels } from './model-format';
 import type { FitRunResult } from './model-types';
+import { NetputChart } from './netput-chart';
 
 /** Co-op totals by season for one netput: what members delivered or bought, and what the model fits. */
 @Component({
   selector: 'np-fitted-section',
-  imports: [MatFormField, MatLabel, MatSelect, MatOption, NgxEchartsDirective],
+  imports: [NetputChart],
   template: `
-    <mat-form-field class="pick">
-      <mat-label>Netput</mat-label>
-      <mat-select [value]="item()" (valueChange)="item.set($event)">
-        @for (code of codes(); track code) {
-          <mat-option [value]="code">{{ labels().name(code) }}</mat-option>
-        }
-      </mat-select>
-    </mat-form-field>
-    <div class="chart" echarts [options]="options()" [initOpts]="{ renderer: 'svg' }" role="img" [attr.aria-label]="caption()"></div>
-    <p class="np-muted">{{ caption() }}. Quantities are the sum over the farms in the sample, in {{ labels().unit(item()) || 'item units' }}.</p>
+    <np-netput-chart [codes]="codes()" [labels]="labels()" [(item)]="item" [options]="options()" [caption]="caption()">
+      <p class="np-muted">{{ caption() }}. Quantities are the sum over the farms in the sample, in {{ labels().unit(item()) || 'item units' }}.</p>
+    </np-netput-chart>
   `,
   styles: `
-    :host { display: flex; flex-direction: column; gap: 8px; }
-    .pick { max-width: 320px; }
-    .chart { height: 320px; width: 100%; }
+    :host { display: block; }
     p { margin: 0; font: var(--mat-sys-body-small); }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,

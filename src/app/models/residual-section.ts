@@ -1,35 +1,24 @@
 import { ChangeDetectionStrategy, Component, computed, input, linkedSignal } from '@angular/core';
-import { MatFormField, MatLabel } from '@angular/material/form-field';
-import { MatOption, MatSelect } from '@angular/material/select';
-import { NgxEchartsDirective } from 'ngx-echarts';
 import { missesBySeasonOption } from './chart-options';
 import { formatAmount, ItemLabels } from './model-format';
 import type { FitRunResult } from './model-types';
+import { NetputChart } from './netput-chart';
 
 /** Each farm's miss on one netput, season by season: a season off the zero line is one the model did not see coming. */
 @Component({
   selector: 'np-residual-section',
-  imports: [MatFormField, MatLabel, MatSelect, MatOption, NgxEchartsDirective],
+  imports: [NetputChart],
   template: `
-    <mat-form-field class="pick">
-      <mat-label>Netput</mat-label>
-      <mat-select [value]="item()" (valueChange)="item.set($event)">
-        @for (code of codes(); track code) {
-          <mat-option [value]="code">{{ labels().name(code) }}</mat-option>
-        }
-      </mat-select>
-    </mat-form-field>
-    <div class="chart" echarts [options]="options()" [initOpts]="{ renderer: 'svg' }" role="img" [attr.aria-label]="caption()"></div>
-    <p class="np-muted">
-      {{ caption() }}: each dot is one farm in one season, what it actually {{ verb() }} less what the model gives it
-      ({{ labels().unit(item()) || 'item units' }}). Dots spread evenly either side of zero in every season are what a sound model leaves;
-      a season sitting above or below the line is one the model did not see coming. A typical miss is {{ rmse() }} {{ labels().unit(item()) }}.
-    </p>
+    <np-netput-chart [codes]="codes()" [labels]="labels()" [(item)]="item" [options]="options()" [caption]="caption()">
+      <p class="np-muted">
+        {{ caption() }}: each dot is one farm in one season, what it actually {{ verb() }} less what the model gives it
+        ({{ labels().unit(item()) || 'item units' }}). Dots spread evenly either side of zero in every season are what a sound model leaves;
+        a season sitting above or below the line is one the model did not see coming. A typical miss is {{ rmse() }} {{ labels().unit(item()) }}.
+      </p>
+    </np-netput-chart>
   `,
   styles: `
-    :host { display: flex; flex-direction: column; gap: 8px; }
-    .pick { max-width: 320px; }
-    .chart { height: 320px; width: 100%; }
+    :host { display: block; }
     p { margin: 0; font: var(--mat-sys-body-small); max-width: 90ch; }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
