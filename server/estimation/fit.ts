@@ -407,7 +407,7 @@ function checkDesign(eq: SurEquationInput, layout: ModelLayout): void {
     // orthonormal basis of the accepted columns, built only when a column needs confirming
     if (basis.length === accepted.length) return;
     basis.length = 0;
-    for (const a of accepted) basis.push(orthogonalise(Float64Array.from(cols[a]!, (x) => x / norms[a]!), basis, T, true)!);
+    for (const a of accepted) basis.push(orthogonalise(dividedBy(cols[a]!, norms[a]!), basis, T, true)!);
   };
   eq.regressors.forEach((reg, j) => {
     const what = describeRegressor(reg.name, eq.name, layout);
@@ -424,7 +424,7 @@ function checkDesign(eq: SurEquationInput, layout: ModelLayout): void {
     let dependent = false;
     if (d < 1e-9) {
       basisFor();
-      dependent = orthogonalise(Float64Array.from(cols[j]!, (x) => x / norms[j]!), basis, T, false) === null;
+      dependent = orthogonalise(dividedBy(cols[j]!, norms[j]!), basis, T, false) === null;
     }
     if (!dependent) {
       // keep L consistent: recompute the pivot from the data when the Gram value is unreliable
@@ -432,7 +432,7 @@ function checkDesign(eq: SurEquationInput, layout: ModelLayout): void {
       // L is stored by column index (row j), entries by position among the accepted columns
       L[j]![accepted.length] = Math.sqrt(pivot);
       accepted.push(j);
-      if (basis.length === accepted.length - 1 && basis.length > 0) basis.push(orthogonalise(Float64Array.from(cols[j]!, (x) => x / norms[j]!), basis, T, true)!);
+      if (basis.length === accepted.length - 1 && basis.length > 0) basis.push(orthogonalise(dividedBy(cols[j]!, norms[j]!), basis, T, true)!);
       return;
     }
     {
@@ -459,6 +459,13 @@ function checkDesign(eq: SurEquationInput, layout: ModelLayout): void {
   });
 }
 
+/** x / d element by element, into a new array (a plain loop: a mapping callback per element is slow on long panels). */
+function dividedBy(x: Float64Array, d: number): Float64Array {
+  const out = new Float64Array(x.length);
+  for (let t = 0; t < x.length; t++) out[t] = x[t]! / d;
+  return out;
+}
+
 /** Remove the components along an orthonormal basis (twice); null when nothing is left (< 1e-10). */
 function orthogonalise(v: Float64Array, basis: Float64Array[], T: number, force: boolean): Float64Array | null {
   for (let pass = 0; pass < 2; pass++)
@@ -473,7 +480,7 @@ function orthogonalise(v: Float64Array, basis: Float64Array[], T: number, force:
 }
 
 function residualNorm2(x: Float64Array, norm: number, basis: Float64Array[], T: number): number {
-  const v = Float64Array.from(x, (val) => val / norm);
+  const v = dividedBy(x, norm);
   for (let pass = 0; pass < 2; pass++)
     for (const q of basis) {
       const c = dot(q, v);

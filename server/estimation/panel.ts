@@ -464,6 +464,8 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
         name: eq.name,
         y: yw,
         regressors: eq.regressors.map((r) => {
+          // unit weights (δ = 0: every (L/L̄)^0 is exactly 1) leave the columns as they are
+          if (deltaW === 0) return { name: r.name, values: r.values };
           let c = weightedCols.get(r.values);
           if (!c) {
             c = new Float64Array(N);
@@ -832,6 +834,8 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     const uo = new Float64Array(n);
     const vo = new Float64Array(n);
     const gls = glsActive();
+    // 1 − k_is k_js by season
+    const cross = Array.from({ length: S }, (_, s) => keep.map((ki) => keep.map((kj) => 1 - ki[s]! * kj[s]!)));
     for (let o = 0; o < N; o++) {
       const f = farmOf[o]!;
       const s = seasonOf[o]!;
@@ -842,7 +846,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
         for (let j = 0; j < n; j++) {
           acc += sigmaInv[i]![j]! * eo[j]!;
           // season GLS: Σ_o x*_io ε*_jo = Σ_o w_o ε_jo (x_io − (1 − k_is k_js) x̄_is)
-          if (gls) accV += sigmaInv[i]![j]! * eo[j]! * (1 - keep[i]![s]! * keep[j]![s]!);
+          if (gls) accV += sigmaInv[i]![j]! * eo[j]! * cross[s]![i]![j]!;
         }
         uo[i] = acc;
         vo[i] = accV;
