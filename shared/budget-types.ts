@@ -14,6 +14,17 @@ export type NutrientAmounts = Record<Nutrient, number>;
 /** How grades are written: N, P2O5, K2O (oxide basis). */
 export const NUTRIENT_LABEL: Record<Nutrient, string> = { nitrogen: 'N', phosphate: 'P2O5', potash: 'K2O' };
 
+/** Where a grade keeps each nutrient, % by weight: the fields of items, fertiliser products and booking lines. */
+export const GRADE_FIELD = { nitrogen: 'nPct', phosphate: 'p2o5Pct', potash: 'k2oPct' } as const satisfies Record<Nutrient, string>;
+export type GradeField = (typeof GRADE_FIELD)[Nutrient];
+
+/** The grade's fields in N, P2O5, K2O order, with their labels: what a form shows, one field per nutrient. */
+export const GRADE_FIELDS: readonly { nutrient: Nutrient; label: string; field: GradeField }[] = NUTRIENTS.map((nutrient) => ({
+  nutrient,
+  label: NUTRIENT_LABEL[nutrient],
+  field: GRADE_FIELD[nutrient],
+}));
+
 export type LotRule = 'round-up' | 'whole-lots';
 
 export interface MixLine {

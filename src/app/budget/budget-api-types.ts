@@ -11,6 +11,8 @@ import type { bookingPlanSchema, budgetInputSchema, budgetOptionsSchema, budgetP
  */
 
 export {
+  GRADE_FIELD,
+  GRADE_FIELDS,
   NUTRIENT_LABEL,
   NUTRIENTS,
   type CashMonth,

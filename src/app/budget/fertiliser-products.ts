@@ -18,14 +18,13 @@ import { CautionNote } from '../shared/caution-note';
 import { AgGridAngular } from '../shared/grid';
 import { gradeOf } from './budget-form';
 import { formatPrice, formatTonnes } from './budget-format';
-import { NUTRIENT_LABEL, NUTRIENTS, type FertiliserProduct, type Nutrient } from './budget-api-types';
+import { GRADE_FIELD, NUTRIENT_LABEL, NUTRIENTS, type FertiliserProduct, type Nutrient } from './budget-api-types';
 import { BudgetUnitsStore, pricePerTToShown, productToShown, unitLabels } from './budget-units';
 import { ProductDialog, type ProductDialogData } from './product-dialog';
 import { UnitSwitch } from './unit-switch';
 import { LoadProblem } from '../shared/load-problem';
 
 const FORM_LABEL = { solid: 'Solid', liquid: 'Liquid', gas: 'Gas (pressurised)' } as const;
-const GRADE_FIELD = { nitrogen: 'nPct', phosphate: 'p2o5Pct', potash: 'k2oPct' } as const;
 
 /** Price per kg (or lb) of a nutrient for a product carrying only that nutrient; null for blends (MAP, DAP). */
 export function pricePerNutrient(p: FertiliserProduct, n: Nutrient): number | null {

@@ -11,7 +11,7 @@ import { ApiRequestError, errorMessage } from '../core/api-error';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
 import { applyServerDetails } from '../shared/zod-validator';
 import { BudgetApi } from './budget-api';
-import type { FertiliserProduct, FertiliserProductInput, ProductForm } from './budget-api-types';
+import { GRADE_FIELDS, type FertiliserProduct, type FertiliserProductInput, type ProductForm } from './budget-api-types';
 import { pricePerTFromShown, pricePerTToShown, productFromShown, productToShown, unitLabels } from './budget-units';
 import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
 
@@ -48,6 +48,7 @@ export class ProductDialog {
 
   protected readonly editing = this.data.product !== undefined;
   protected readonly labels = unitLabels(this.data.system, this.data.product?.currency ?? this.data.currency);
+  protected readonly nutrients = GRADE_FIELDS;
   protected readonly forms: { value: ProductForm; label: string }[] = [
     { value: 'solid', label: 'Solid (granular, prilled)' },
     { value: 'liquid', label: 'Liquid (solution)' },

@@ -4,6 +4,7 @@ import { NonNullableFormBuilder, Validators, type AbstractControl, type Validati
 import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { Item } from '../../../../shared/api-types';
+import { GRADE_FIELDS } from '../../../../shared/budget-types';
 import { itemSchema } from '../../../../shared/data-schemas';
 import { TEXT_MAX } from '../../../../shared/field-limits';
 import { saveAndClose } from '../../shared/dialog-save';
@@ -43,6 +44,7 @@ export class ItemDialog {
   protected readonly item = inject<Item | null>(MAT_DIALOG_DATA);
   protected readonly categories = CATEGORIES;
   protected readonly textMax = TEXT_MAX;
+  protected readonly nutrients = GRADE_FIELDS;
 
   protected readonly form = inject(NonNullableFormBuilder).group({
     code: [this.item?.code ?? '', [Validators.required, zodValidator(shape.code)]],
