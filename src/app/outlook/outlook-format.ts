@@ -14,6 +14,9 @@ export function formatQuantity(v: number | null | undefined): string {
   return quantityText(v);
 }
 
+/** A grid column's `valueFormatter` for projected quantities: formatQuantity, "—" where there is no figure. */
+export const quantityCell = (p: { value: unknown }): string => (typeof p.value === 'number' ? formatQuantity(p.value) : '—');
+
 /**
  * A price: two decimals from 10 up (195.40 EUR/t), three below (1.152 EUR/kg N), by the rule the
  * server's explanations and the e-mails use too (shared/number-format.ts): 1.3215 reads 1.322 everywhere.

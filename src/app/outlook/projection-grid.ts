@@ -1,9 +1,8 @@
-import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
-import { MatButton } from '@angular/material/button';
-import { MatIcon } from '@angular/material/icon';
-import type { ColDef, ColGroupDef, GridApi, GridReadyEvent } from 'ag-grid-community';
+import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import type { ColDef, ColGroupDef } from 'ag-grid-community';
 import { AgGridAngular, WRAPPED_HEADINGS } from '../shared/grid';
-import { csvCell, formatQuantity } from './outlook-format';
+import { GridFooter } from './grid-footer';
+import { quantityCell } from './outlook-format';
 import { SCENARIO_NAMES, scenarioLabel, type ItemProjection, type QuantitySummary } from './outlook-api-types';
 
 /**
@@ -45,8 +44,6 @@ export function projectionRows(items: readonly ItemProjection[], tonnes: boolean
   });
 }
 
-const quantity = (p: { value: unknown }) => (typeof p.value === 'number' ? formatQuantity(p.value) : '—');
-
 /**
  * Width in px that shows a formatted number whole: digits of the app font at 14 px are about 8 px
  * wide, separators about 4 px, plus the cell's padding and a margin for the sort arrow.
@@ -58,7 +55,7 @@ export function numberWidth(text: string): number {
 
 /** The columns of one scenario, each at least as wide as its widest formatted value and its header. */
 function scenarioColumns(rows: readonly ProjectionRow[]): ColGroupDef<ProjectionRow>[] {
-  const widest = (field: string, header: number) => Math.max(header, ...rows.map((r) => numberWidth(quantity({ value: r[field] }))));
+  const widest = (field: string, header: number) => Math.max(header, ...rows.map((r) => numberWidth(quantityCell({ value: r[field] }))));
   return SCENARIO_NAMES.map((s) => ({
     headerName: s === 'base' ? 'Base' : s === 'low' ? 'Low' : 'High',
     headerTooltip: `${scenarioLabel(s)}${s === 'base' ? ': the expected prices' : ': see the prices of the scenarios'}. The arrow opens or closes its 5–95 % band.`,
@@ -71,11 +68,11 @@ function scenarioColumns(rows: readonly ProjectionRow[]): ColGroupDef<Projection
         type: 'numericColumn',
         minWidth: widest(s === 'base' ? 'point' : `${s}_point`, 96),
         flex: 1,
-        valueFormatter: quantity,
+        valueFormatter: quantityCell,
       },
-      { field: `${s}_p5`, headerName: '5 %', headerTooltip: '5 % of the simulated outcomes fall below this', type: 'numericColumn', minWidth: widest(`${s}_p5`, 76), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
-      { field: `${s}_median`, headerName: 'Median', headerTooltip: 'Median of the simulated outcomes', type: 'numericColumn', minWidth: widest(`${s}_median`, 96), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
-      { field: `${s}_p95`, headerName: '95 %', headerTooltip: '95 % of the simulated outcomes fall below this', type: 'numericColumn', minWidth: widest(`${s}_p95`, 84), flex: 1, valueFormatter: quantity, columnGroupShow: 'open' },
+      { field: `${s}_p5`, headerName: '5 %', headerTooltip: '5 % of the simulated outcomes fall below this', type: 'numericColumn', minWidth: widest(`${s}_p5`, 76), flex: 1, valueFormatter: quantityCell, columnGroupShow: 'open' },
+      { field: `${s}_median`, headerName: 'Median', headerTooltip: 'Median of the simulated outcomes', type: 'numericColumn', minWidth: widest(`${s}_median`, 96), flex: 1, valueFormatter: quantityCell, columnGroupShow: 'open' },
+      { field: `${s}_p95`, headerName: '95 %', headerTooltip: '95 % of the simulated outcomes fall below this', type: 'numericColumn', minWidth: widest(`${s}_p95`, 84), flex: 1, valueFormatter: quantityCell, columnGroupShow: 'open' },
     ],
   }));
 }
@@ -83,9 +80,10 @@ function scenarioColumns(rows: readonly ProjectionRow[]): ColGroupDef<Projection
 /** Supply and input demand of the co-op or one farm per price scenario, with 5–95 % bands (AG Grid). */
 @Component({
   selector: 'np-projection-grid',
-  imports: [AgGridAngular, MatButton, MatIcon],
+  imports: [AgGridAngular, GridFooter],
   template: `
     <ag-grid-angular
+      #grid
       class="grid"
       [attr.aria-label]="label()"
       [rowData]="rows()"
@@ -93,29 +91,16 @@ function scenarioColumns(rows: readonly ProjectionRow[]): ColGroupDef<Projection
       [tooltipShowDelay]="300"
       [defaultColDef]="defaultColDef"
       domLayout="autoHeight"
-      (gridReady)="gridReady($event)"
     />
-    <div class="under">
-      <span class="np-muted"
-        >Outputs are supply, inputs demand. Each scenario's figure is “at estimates”: the model at its fitted parameters, without chance variation, as in
+    <np-grid-footer [grid]="grid" [fileName]="fileName()"
+      >Outputs are supply, inputs demand. Each scenario's figure is “at estimates”: the model at its fitted parameters, without chance variation, as in
         the e-mail and the member portal. Its 5 % and 95 % points bound the band where 9 in 10 outcomes should fall, from {{ draws() ?? 'the' }} simulated
-        outcomes (what the band allows for is said with the chart); the arrow by a scenario opens or closes them. Export CSV keeps every figure unrounded.</span
-      >
-      <button matButton type="button" (click)="exportCsv()"><mat-icon>download</mat-icon>Export CSV</button>
-    </div>
+        outcomes (what the band allows for is said with the chart); the arrow by a scenario opens or closes them. Export CSV keeps every figure unrounded.</np-grid-footer
+    >
   `,
   styles: `
     :host {
       display: block;
-    }
-    .under {
-      display: flex;
-      flex-wrap: wrap;
-      align-items: center;
-      justify-content: space-between;
-      gap: 4px 16px;
-      margin-top: 4px;
-      font: var(--mat-sys-body-small);
     }
   `,
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -130,7 +115,6 @@ export class ProjectionGrid {
   readonly fileName = input('netput-projection');
 
   protected readonly rows = computed(() => projectionRows(this.items(), this.tonnes()));
-  readonly #grid = signal<GridApi<ProjectionRow> | null>(null);
 
   protected readonly columns = computed<(ColDef<ProjectionRow> | ColGroupDef<ProjectionRow>)[]>(() => [
     { field: 'name', headerName: 'Item', pinned: 'left', minWidth: 140, flex: 2 },
@@ -138,12 +122,4 @@ export class ProjectionGrid {
     ...scenarioColumns(this.rows()),
   ]);
   protected readonly defaultColDef = WRAPPED_HEADINGS;
-
-  protected gridReady(event: GridReadyEvent<ProjectionRow>): void {
-    this.#grid.set(event.api);
-  }
-
-  protected exportCsv(): void {
-    this.#grid()?.exportDataAsCsv({ fileName: `${this.fileName()}.csv`, processCellCallback: csvCell });
-  }
 }
