@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, inject, signal } from '@angular/core';
 import { NonNullableFormBuilder, Validators } from '@angular/forms';
-import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
+import { MAT_DIALOG_DATA, MatDialog, MatDialogRef } from '@angular/material/dialog';
+import type { Observable } from 'rxjs';
 import { farmMemberNames, type FarmSummary } from '../../../shared/api-types';
 import { farmSchema } from '../../../shared/data-schemas';
 import { DataDeskApi, type FarmRow } from '../data-desk/data-desk-api';
@@ -12,6 +13,15 @@ export interface FarmDialogData {
   farm: FarmSummary | null;
   /** Regions already in use, offered as suggestions. */
   regions: string[];
+}
+
+/**
+ * Opens the farm dialog: to add a farm (`farm` null) or edit one, suggesting the regions `farms`
+ * already use. Emits the saved farm on closing, or undefined when the dialog was cancelled.
+ */
+export function openFarmDialog(dialog: MatDialog, farm: FarmSummary | null, farms: readonly { region: string }[]): Observable<FarmRow | undefined> {
+  const data: FarmDialogData = { farm, regions: [...new Set(farms.map((f) => f.region))].sort() };
+  return dialog.open<FarmDialog, FarmDialogData, FarmRow>(FarmDialog, { data, autoFocus: 'first-tabbable' }).afterClosed();
 }
 
 /** Adds or edits a farm: code, name, region and the land it farms now. Members are linked under Users. */

@@ -25,7 +25,7 @@ import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage, errorStatus } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { factorNameSchema } from '../../../shared/data-schemas';
-import { DataDeskApi, type FactorRow, type FarmRow, type LandRow, type RecordBody } from '../data-desk/data-desk-api';
+import { DataDeskApi, type FactorRow, type LandRow, type RecordBody } from '../data-desk/data-desk-api';
 import { AgGridAngular, numberEditing, numberTextProblem, safeCsvCell } from '../data-desk/data-grid';
 import { FIT_FIGURES, WRAPPED_HEADINGS } from '../shared/grid';
 import { SettingsStore } from '../core/settings-store';
@@ -34,7 +34,7 @@ import { parseTable } from '../data-desk/paste';
 import { ReferenceStore } from '../data-desk/reference-store';
 import { CautionNote } from '../shared/caution-note';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
-import { FarmDialog, type FarmDialogData } from './farm-dialog';
+import { openFarmDialog } from './farm-dialog';
 import { factorKey, itemKey, pivotRecords, quantityDoubt, recordCellProblem, type SeasonRow } from './records-pivot';
 import { HistoryLink } from '../shared/history-link';
 
@@ -330,15 +330,11 @@ export class FarmRecords {
   protected editFarm(): void {
     const farm = this.farm();
     if (!farm) return;
-    const data: FarmDialogData = { farm, regions: [...new Set((this.farms.hasValue() ? this.farms.value() : []).map((f) => f.region))].sort() };
-    this.#dialog
-      .open<FarmDialog, FarmDialogData, FarmRow>(FarmDialog, { data, autoFocus: 'first-tabbable' })
-      .afterClosed()
-      .subscribe((saved) => {
-        if (!saved) return;
-        this.farms.reload();
-        this.#snackBar.open(`${saved.name} saved.`, 'OK');
-      });
+    openFarmDialog(this.#dialog, farm, this.farms.hasValue() ? this.farms.value() : []).subscribe((saved) => {
+      if (!saved) return;
+      this.farms.reload();
+      this.#snackBar.open(`${saved.name} saved.`, 'OK');
+    });
   }
 
   protected async deleteFarm(): Promise<void> {

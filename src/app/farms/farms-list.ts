@@ -14,10 +14,9 @@ import { farmMemberNames, type FarmSummary } from '../../../shared/api-types';
 import { ACCESS, roleAllows } from '../core/access';
 import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
-import type { FarmRow } from '../data-desk/data-desk-api';
 import { safeCsvCell } from '../data-desk/data-grid';
 import { AgGridAngular } from '../shared/grid';
-import { FarmDialog, type FarmDialogData } from './farm-dialog';
+import { openFarmDialog } from './farm-dialog';
 import { HistoryLink } from '../shared/history-link';
 import { LoadProblem } from '../shared/load-problem';
 
@@ -98,15 +97,11 @@ export class FarmsList {
   }
 
   protected addFarm(): void {
-    const data: FarmDialogData = { farm: null, regions: [...new Set(this.rows().map((f) => f.region))].sort() };
-    this.#dialog
-      .open<FarmDialog, FarmDialogData, FarmRow>(FarmDialog, { data, autoFocus: 'first-tabbable' })
-      .afterClosed()
-      .subscribe((saved) => {
-        if (!saved) return;
-        this.farms.reload();
-        this.#snackBar.open(`${saved.name} (${saved.code}) added. Open it to enter its records.`, 'OK');
-      });
+    openFarmDialog(this.#dialog, null, this.rows()).subscribe((saved) => {
+      if (!saved) return;
+      this.farms.reload();
+      this.#snackBar.open(`${saved.name} (${saved.code}) added. Open it to enter its records.`, 'OK');
+    });
   }
 
   protected exportCsv(): void {
