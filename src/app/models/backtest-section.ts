@@ -6,7 +6,7 @@ import { NgxEchartsDirective } from 'ngx-echarts';
 import { AgGridAngular } from '../shared/grid';
 import { backtestOption } from './chart-options';
 import { formatAmount, formatPercent, ItemLabels } from './model-format';
-import type { FitRunResult } from './model-types';
+import type { FitRunResult } from '../../../shared/estimation-types';
 import { SkillSection } from './skill-section';
 
 interface ItemRow {

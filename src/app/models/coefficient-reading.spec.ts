@@ -1,7 +1,7 @@
 import type { Item } from '../../../shared/api-types';
 import { coefficientMeaning, readEquations } from './coefficient-reading';
 import { ItemLabels } from './model-format';
-import type { EquationFit } from './model-types';
+import type { EquationFit } from '../../../shared/estimation-types';
 
 const labels = new ItemLabels([
   { code: 'wheat', name: 'Wheat', unit: 't' },

@@ -1,4 +1,4 @@
-import type { CoefficientEstimate, EquationFit } from './model-types';
+import type { CoefficientEstimate, EquationFit } from '../../../shared/estimation-types';
 import { factorLabel, type ItemLabels } from './model-format';
 
 /** Two standard errors either side: the usual 95 % range under a normal approximation. */

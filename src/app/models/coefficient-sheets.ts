@@ -4,7 +4,7 @@ import { MatIcon } from '@angular/material/icon';
 import { spreadsheetSafe } from '../data-desk/data-grid';
 import { readEquations, type CoefficientLine } from './coefficient-reading';
 import { formatAmount, formatSignificant, ItemLabels } from './model-format';
-import type { FitRunResult } from './model-types';
+import type { FitRunResult } from '../../../shared/estimation-types';
 
 const VERDICT_WORDS: Record<CoefficientLine['verdict'], string> = {
   above: 'clearly above zero',

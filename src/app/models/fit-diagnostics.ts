@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { formatAmount, formatPercent, formatRatio, formatSignificant, ItemLabels } from './model-format';
-import type { FitRunResult } from './model-types';
+import type { FitRunResult } from '../../../shared/estimation-types';
 
 /** The curvature and monotonicity report of a fit, and the figures for weighing it against another model. */
 @Component({

@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input, linkedSignal } from '@angular/core';
 import { fittedOption } from './chart-options';
 import { ItemLabels } from './model-format';
-import type { FitRunResult } from './model-types';
+import type { FitRunResult } from '../../../shared/estimation-types';
 import { NetputChart } from './netput-chart';
 
 /** Co-op totals by season for one netput: what members delivered or bought, and what the model fits. */

@@ -12,8 +12,8 @@ import { TEXT_MAX } from '../../../shared/field-limits';
 import { FORECAST_SPECS, MAX_BACKTEST_SEASONS, modelDefinitionSchema, SPEC_WORDS, type ForecastSpecName, type ModelDefinition } from '../../../shared/model-schemas';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { applyServerDetails } from '../shared/zod-validator';
-import { CURVATURE_LABELS } from './model-types';
-import type { ModelSummary } from './model-types';
+import { CURVATURE_LABELS } from './model-format';
+import type { ModelSummary } from './models-api-types';
 import { ModelsApi } from './models-api';
 import { FieldError } from '../shared/field-error';
 

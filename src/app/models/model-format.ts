@@ -1,6 +1,34 @@
 import type { Item } from '../../../shared/api-types';
 import type { ModelDefinition } from '../../../shared/model-schemas';
-import { FACTOR_LABELS, FORM_LABELS } from './model-types';
+import type { FitResult } from '../../../shared/estimation-types';
+import type { RunState } from './models-api-types';
+
+/** The words the screens use for a model's settings and a run's state. */
+export const FORM_LABELS: Record<ModelDefinition['form'] | FitResult['layout']['form'], string> = {
+  nq: 'Normalised quadratic',
+  gl: 'Generalised Leontief',
+  'normalized-quadratic': 'Normalised quadratic',
+  'generalized-leontief': 'Generalised Leontief',
+};
+
+export const CURVATURE_LABELS: Record<ModelDefinition['curvature'], string> = {
+  auto: 'Impose only when the estimate breaks it',
+  impose: 'Always impose',
+  check: 'Check only, never impose',
+};
+
+export const STATE_LABELS: Record<RunState, string> = {
+  queued: 'Waiting',
+  running: 'Running',
+  succeeded: 'Finished',
+  failed: 'Failed',
+  cancelled: 'Cancelled',
+};
+
+export const FACTOR_LABELS: Record<string, string> = {
+  land_ha: 'Land (ha)',
+  trend: 'Trend (technical change)',
+};
 
 /** The first 12 hex digits: enough to tell snapshots apart on screen; the full hash is in the tooltip. */
 export function shortHash(hash: string | null | undefined): string {

@@ -2,7 +2,7 @@ import { HttpClient, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import { firstValueFrom } from 'rxjs';
 import type { ModelDefinition } from '../../../shared/model-schemas';
-import type { Evaluation, ModelSummary, RunStatus } from './model-types';
+import type { Evaluation, ModelSummary, RunStatus } from './models-api-types';
 
 /** Writes and on-demand reads of the model workspace (page reads go through `httpResource`). */
 @Injectable({ providedIn: 'root' })

@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input, linkedSignal } from '@angular/core';
 import { missesBySeasonOption } from './chart-options';
 import { formatAmount, ItemLabels } from './model-format';
-import type { FitRunResult } from './model-types';
+import type { FitRunResult } from '../../../shared/estimation-types';
 import { NetputChart } from './netput-chart';
 
 /** Each farm's miss on one netput, season by season: a season off the zero line is one the model did not see coming. */

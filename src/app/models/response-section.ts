@@ -7,7 +7,7 @@ import { errorMessage } from '../core/api-error';
 import { responseOption } from './chart-options';
 import { quantityText } from '../../../shared/number-format';
 import { formatAmount, ItemLabels } from './model-format';
-import type { FitRunResult } from './model-types';
+import type { FitRunResult } from '../../../shared/estimation-types';
 import { ModelsApi } from './models-api';
 
 /** Points of a cross-price curve, each one evaluation by the server: half to one and a half times the mean price. */

@@ -17,8 +17,9 @@ import { SettingsStore } from '../core/settings-store';
 import { CautionNote } from '../shared/caution-note';
 import { elasticityScaleLimit } from './colour-scale';
 import { ElasticityTable, type MatrixItem } from './elasticity-table';
-import { formatAmount, formatPercent, formatRatio, ItemLabels, shortHash } from './model-format';
-import { FORM_LABELS, type Evaluation, type FitRunResult, type ModelSummary, type RunDetail } from './model-types';
+import { FORM_LABELS, ItemLabels, formatAmount, formatPercent, formatRatio, shortHash } from './model-format';
+import type { FitRunResult } from '../../../shared/estimation-types';
+import { type Evaluation, type ModelSummary, type RunDetail } from './models-api-types';
 import { ModelsApi } from './models-api';
 
 /** B against A in %, signed ("+1.2 %"), or a dash when either is missing or A is zero. */

@@ -2,8 +2,8 @@ import { DatePipe, LowerCasePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { RouterLink } from '@angular/router';
-import { ItemLabels, sampleSeasons, shortHash } from './model-format';
-import { CURVATURE_LABELS, FORM_LABELS, type RunDetail } from './model-types';
+import { CURVATURE_LABELS, FORM_LABELS, ItemLabels, sampleSeasons, shortHash } from './model-format';
+import { type RunDetail } from './models-api-types';
 
 /** How many excluded observations show before "Show all". */
 const EXCLUDED_SHOWN = 8;

@@ -19,7 +19,7 @@ import { ElasticityTable, type MatrixItem } from './elasticity-table';
 import { FitDiagnostics } from './fit-diagnostics';
 import { FittedSection } from './fitted-section';
 import { ItemLabels, shortHash } from './model-format';
-import { ACTIVE_STATES, type ModelSummary, type RunDetail, type RunStatus } from './model-types';
+import { ACTIVE_STATES, type ModelSummary, type RunDetail, type RunStatus } from './models-api-types';
 import { ModelsApi } from './models-api';
 import { PlainReadingPanel } from './plain-reading-panel';
 import { ResidualSection } from './residual-section';

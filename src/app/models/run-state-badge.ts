@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { StatusPill, type PillTone } from '../shared/status-pill';
-import { STATE_LABELS, type RunState } from './model-types';
+import { STATE_LABELS } from './model-format';
+import type { RunState } from './models-api-types';
 
 const LOOKS: Record<RunState, { icon: string; tone: PillTone }> = {
   queued: { icon: 'hourglass_empty', tone: 'pending' },

@@ -1,5 +1,5 @@
 import { DestroyRef, inject, signal, untracked, type Signal } from '@angular/core';
-import { ACTIVE_STATES, type RunStatus } from './model-types';
+import { ACTIVE_STATES, type RunStatus } from './models-api-types';
 import { ModelsApi } from './models-api';
 
 /** How often a waiting or running fit is asked for its progress. */

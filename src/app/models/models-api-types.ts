@@ -1,25 +1,13 @@
-import type { FitResult, FitRunResult, NetputRef } from '../../../shared/estimation-types';
+import type { FitRunResult, NetputRef } from '../../../shared/estimation-types';
 import type { ModelDefinition } from '../../../shared/model-schemas';
 
-export type {
-  BacktestItem,
-  BacktestSeason,
-  CoefficientEstimate,
-  CurvatureReport,
-  EquationFit,
-  FitResult,
-  FitRunResult,
-  FitSummary,
-  MonotonicityReport,
-  NetputRef,
-} from '../../../shared/estimation-types';
-
 /**
- * The shapes the model API answers with. A run's result (the fit, its summary document, the
- * back-tests and the forecasting model) is declared once in shared/estimation-types.ts, which the
- * engine returns; the run and model rows below (server/models/models-service.ts) are declared here
- * because those server types import Node modules the client build cannot type-check; only the
- * fields the screens read are listed.
+ * The shapes the model API answers with: the model and run rows (server/models/models-service.ts),
+ * declared here because those server types import Node modules the client build cannot
+ * type-check; only the fields the screens read are listed. A run's result (the fit, its summary
+ * document, the back-tests and the forecasting model) is the engine's own type: import it from
+ * shared/estimation-types.ts. The words for these values (states, forms, curvature) are in
+ * model-format.ts.
  */
 export type RunState = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled';
 
@@ -81,29 +69,3 @@ export interface Evaluation {
   elasticities: number[][];
   standardErrors: number[][];
 }
-
-export const FORM_LABELS: Record<ModelDefinition['form'] | FitResult['layout']['form'], string> = {
-  nq: 'Normalised quadratic',
-  gl: 'Generalised Leontief',
-  'normalized-quadratic': 'Normalised quadratic',
-  'generalized-leontief': 'Generalised Leontief',
-};
-
-export const CURVATURE_LABELS: Record<ModelDefinition['curvature'], string> = {
-  auto: 'Impose only when the estimate breaks it',
-  impose: 'Always impose',
-  check: 'Check only, never impose',
-};
-
-export const STATE_LABELS: Record<RunState, string> = {
-  queued: 'Waiting',
-  running: 'Running',
-  succeeded: 'Finished',
-  failed: 'Failed',
-  cancelled: 'Cancelled',
-};
-
-export const FACTOR_LABELS: Record<string, string> = {
-  land_ha: 'Land (ha)',
-  trend: 'Trend (technical change)',
-};
