@@ -6,7 +6,7 @@
 import { z } from 'zod';
 import { idSchema } from './ids.js';
 import { seasonLabelSchema } from './outlook-schemas.js';
-import { MONTH_PATTERN } from './field-limits.js';
+import { MAX_VAT_PCT, MONTH_PATTERN } from './field-limits.js';
 import type { NutrientAmounts } from './budget-types.js';
 import type { BookingAmounts } from './booking-money.js';
 
@@ -19,9 +19,6 @@ export const MAX_LINE_TONNES = 5000;
 export const LARGE_BOOKING_FACTOR = 3;
 
 /** The treasurer opens (or changes) a season's booking round. */
-/** Highest VAT rate on fertiliser a booking round takes, %; above it the rate is taken for a slip (common practice, no source). */
-export const MAX_VAT_PCT = 50;
-
 export const bookingRoundSchema = z.strictObject({
   season: seasonLabelSchema,
   budgetId: idSchema,

@@ -56,6 +56,9 @@ export const VALUE_MAX = {
   contractPrice: 1e6,
 } as const;
 
+/** Highest VAT rate on fertiliser a booking round takes, %; above it the rate is taken for a slip (common practice, no source). */
+export const MAX_VAT_PCT = 50;
+
 /** A month as YYYY-MM (contract windows, booking plans). */
 export const MONTH_PATTERN = /^\d{4}-(0[1-9]|1[0-2])$/;
 

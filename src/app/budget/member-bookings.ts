@@ -2,7 +2,7 @@ import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, linkedSignal, signal } from '@angular/core';
 import { FormControl, FormGroup, ReactiveFormsModule, Validators } from '@angular/forms';
 import { MatAnchor, MatButton } from '@angular/material/button';
-import { MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
+import { MatError, MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
@@ -10,9 +10,14 @@ import { errorMessage } from '../core/api-error';
 import { AuthStore } from '../core/auth-store';
 import { ACCESS } from '../core/access';
 import { CautionNote } from '../shared/caution-note';
-import { MAX_VAT_PCT, type BookingReport, type BookingRoundView, type NutrientComparison } from '../../../shared/booking-types';
+import { FieldError } from '../shared/field-error';
+import { zodValidator } from '../shared/zod-validator';
+import { bookingRoundSchema, type BookingReport, type BookingRoundView, type NutrientComparison } from '../../../shared/booking-types';
+import { MAX_VAT_PCT } from '../../../shared/field-limits';
 import { day, kg, money, month, pct } from '../my-farm/bookings/booking-format';
 import { BookingsApi } from './bookings-api';
+
+const round = bookingRoundSchema.shape;
 
 interface BudgetRow {
   id: number;
@@ -27,7 +32,7 @@ interface BudgetRow {
  */
 @Component({
   selector: 'np-member-bookings',
-  imports: [ReactiveFormsModule, MatButton, MatAnchor, MatFormField, MatLabel, MatHint, MatInput, MatSelect, MatOption, MatProgressBar, CautionNote],
+  imports: [ReactiveFormsModule, MatButton, MatAnchor, MatFormField, MatLabel, MatHint, MatError, FieldError, MatInput, MatSelect, MatOption, MatProgressBar, CautionNote],
   templateUrl: './member-bookings.html',
   styleUrl: './member-bookings.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -60,11 +65,19 @@ export class MemberBookings {
   protected readonly saveProblem = signal<string | null>(null);
   protected readonly showForm = signal(false);
   protected readonly form = new FormGroup({
-    season: new FormControl('', { nonNullable: true, validators: [Validators.required, Validators.pattern(/^\d{4}\/\d{2}$/)] }),
+    // The shared schema's checks, so a field says what the server would: "The second year must follow the first".
+    season: new FormControl('', { nonNullable: true, validators: [Validators.required, zodValidator(round.season)] }),
     budgetId: new FormControl<number | null>(null, { validators: [Validators.required] }),
-    discountDeadline: new FormControl('', { nonNullable: true, validators: [Validators.required, Validators.pattern(/^\d{4}-\d{2}-\d{2}$/)] }),
-    vatPct: new FormControl<number | null>(null, { validators: [Validators.required, Validators.min(0), Validators.max(MAX_VAT_PCT)] }),
+    discountDeadline: new FormControl('', { nonNullable: true, validators: [Validators.required, zodValidator(round.discountDeadline)] }),
+    vatPct: new FormControl<number | null>(null, { validators: [Validators.required, zodValidator(round.vatPct)] }),
   });
+  protected readonly maxVatPct = MAX_VAT_PCT;
+  /** The VAT field's words; its min and max attributes check before the schema, so they say the schema's messages. */
+  protected readonly vatWords = {
+    required: `Enter the VAT rate on fertiliser, 0 to ${MAX_VAT_PCT} %`,
+    min: 'VAT cannot be negative',
+    max: `A VAT rate above ${MAX_VAT_PCT} % is not plausible`,
+  };
 
   protected readonly fmt = { money, kg, pct, day, month };
 
