@@ -125,6 +125,16 @@ export function mainNav(page: Page) {
   return page.locator('nav[aria-label="Main"]');
 }
 
+/**
+ * Waits until the phone's navigation drawer has finished closing after a link in it was followed
+ * (the app closes it on navigation, with a slide-out), so a screenshot shows the page alone.
+ */
+export async function navClosed(page: Page): Promise<void> {
+  // Material hides a closed drawer (visibility: hidden) only when its closing animation has ended.
+  await page.locator('mat-sidenav').waitFor({ state: 'hidden' });
+  await page.locator('.mat-drawer-backdrop.mat-drawer-shown').waitFor({ state: 'detached' });
+}
+
 export async function navHrefs(page: Page): Promise<string[]> {
   return mainNav(page)
     .locator('a[href]')

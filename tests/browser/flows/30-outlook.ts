@@ -1,6 +1,6 @@
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
-import { assert, assertEqual, check, ensureFittedRun, mainNav, shot, shotPath, signIn, signOut, waitForDemoPrepared } from '../harness.js';
+import { assert, assertEqual, check, ensureFittedRun, mainNav, navClosed, shot, shotPath, signIn, signOut, waitForDemoPrepared } from '../harness.js';
 import { DEMO_MODEL } from '../../../seed/demo-model.js';
 
 /** A fit and a projection take seconds on the demo co-op, longer while other work shares the two cores. */
@@ -279,6 +279,7 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
       await mainNav(page).getByRole('link', { name: 'Season outlook' }).click();
       await page.waitForURL(/\/my-farm\/outlook$/);
       await page.getByRole('heading', { level: 1, name: `Season outlook ${SEASON}` }).waitFor();
+      await navClosed(page);
       await page.getByRole('heading', { name: 'Your farm: Hollybrook Farm' }).waitFor();
       await page.getByText('Wheat area looks steady; book nitrogen early, prices are firm.').waitFor();
       await page.getByRole('heading', { name: 'The co-op in total' }).waitFor();
