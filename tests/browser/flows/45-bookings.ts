@@ -1,6 +1,6 @@
 import type { Page } from 'playwright-core';
 import type { Harness } from '../harness.js';
-import { assert, check, shot, signIn, signOut } from '../harness.js';
+import { assert, check, shot, shotPath, signIn, signOut } from '../harness.js';
 import { demoModel } from '../../../seed/demo-model.js';
 
 /** A fit on the demo co-op and a 300-draw projection take a while when other work shares the two cores. */
@@ -167,6 +167,16 @@ export default async function bookings({ base, page }: Harness): Promise<void> {
   await check('the treasurer opens the 2026/27 booking round on the page', async () => {
     await page.goto(`${base}/budget/bookings`);
     await page.getByRole('button', { name: 'Open a booking round' }).click();
+    // Saved empty, each field says what it needs.
+    await page.getByRole('button', { name: 'Save round' }).click();
+    for (const message of ['Enter the season, e.g. 2026/27', 'Choose the budget whose prices members book at', 'Enter the deadline as YYYY-MM-DD, e.g. 2027-01-31', 'Enter the VAT rate on fertiliser, 0 to 50 %']) {
+      await page.locator('mat-error').getByText(message).waitFor();
+    }
+    for (const width of [1280, 390]) {
+      await page.setViewportSize({ width, height: width === 390 ? 844 : 860 });
+      await page.locator('form.round-form').screenshot({ path: shotPath(`bookings-round-errors-${width}`) });
+    }
+    await page.setViewportSize({ width: 1280, height: 860 });
     await page.getByRole('textbox', { name: 'Season' }).fill('2026/27');
     // The empty select's floating label sits over it: open it from the keyboard, as a keyboard user would.
     await page.getByRole('combobox', { name: 'Budget with the booking prices' }).focus();
