@@ -277,38 +277,44 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     return withinSeason;
   };
   let centredProducts: (Float64Array | null)[][] | null = null;
-  // x − x̄_s of each regressor (scratch of withinSeasonCentred)
-  let devBuffers: Float64Array[] | null = null;
   const withinSeasonCentred = (): (Float64Array | null)[][] => {
     if (centredProducts) return centredProducts;
     const { raw, sums } = withinSeasonStats();
     const W = seasonWeights();
-    // w_o (x_o − x̄_s) for the regressors that vary within a season, null for the others
-    devBuffers ??= raw.map(() => new Float64Array(N));
-    const dev = raw.map((v, u) => {
-      const m = sums[u]!.map((t, s) => (W[s]! > 0 ? t / W[s]! : 0));
-      const d = devBuffers![u]!;
+    // season means x̄_us, and which regressors vary within a season (x − x̄_s is formed where it is
+    // used, the same rounded difference each time)
+    const means = raw.map((_, u) => sums[u]!.map((t, s) => (W[s]! > 0 ? t / W[s]! : 0)));
+    const varies = raw.map((v, u) => {
+      const m = means[u]!;
       for (let r = 0; r < runs.count; r++) {
         const ms = m[runs.season[r]!]!;
-        for (let o = runs.start[r]!; o < runs.end[r]!; o++) d[o] = v[o]! - ms;
+        const am = Math.abs(ms);
+        for (let o = runs.start[r]!; o < runs.end[r]!; o++) if (Math.abs(v[o]! - ms) > 1e-12 * (Math.abs(v[o]!) + am)) return true;
       }
-      for (let r = 0; r < runs.count; r++) {
-        const am = Math.abs(m[runs.season[r]!]!);
-        for (let o = runs.start[r]!; o < runs.end[r]!; o++) if (Math.abs(d[o]!) > 1e-12 * (Math.abs(v[o]!) + am)) return d;
-      }
-      return null;
+      return false;
     });
     const U = raw.length;
     const centred = Array.from({ length: U }, () => new Array<Float64Array | null>(U).fill(null));
     const wdu = new Float64Array(N);
     for (let u = 0; u < U; u++) {
-      const du = dev[u];
-      if (!du) continue;
-      for (let o = 0; o < N; o++) wdu[o] = w[o]! * du[o]!;
+      if (!varies[u]) continue;
+      // w_o (x_uo − x̄_us)
+      const xu = raw[u]!;
+      const mx = means[u]!;
+      for (let r = 0; r < runs.count; r++) {
+        const ms = mx[runs.season[r]!]!;
+        for (let o = runs.start[r]!; o < runs.end[r]!; o++) wdu[o] = w[o]! * (xu[o]! - ms);
+      }
       const partners: number[] = [];
-      for (let v = u; v < U; v++) if (dev[v]) partners.push(v);
+      for (let v = u; v < U; v++) if (varies[v]) partners.push(v);
       const products = partners.map(() => new Float64Array(S));
-      addSeasonDots(products, runs, wdu, partners.map((v) => dev[v]!));
+      addSeasonCentredDots(
+        products,
+        runs,
+        wdu,
+        partners.map((v) => raw[v]!),
+        partners.map((v) => means[v]!),
+      );
       partners.forEach((v, j) => {
         centred[u]![v] = products[j]!;
         centred[v]![u] = products[j]!;
@@ -1250,24 +1256,29 @@ function addSeasonDot(out: Float64Array, runs: SeasonRuns, a: ArrayLike<number>,
   }
 }
 
-/** outs[j][s] += Σ_{o∈s} a_o bs[j]_o for every j, four columns a pass over a (see addSeasonSums). */
-function addSeasonDots(outs: Float64Array[], runs: SeasonRuns, a: Float64Array, bs: Float64Array[]): void {
+/**
+ * outs[j][s] += Σ_{o∈s} a_o (bs[j]_o − means[j]_s) for every j, four columns a pass over a, each
+ * season's sum in observation order (see addSeasonSums).
+ */
+function addSeasonCentredDots(outs: Float64Array[], runs: SeasonRuns, a: Float64Array, bs: ArrayLike<number>[], means: Float64Array[]): void {
   let j = 0;
   for (; j + 4 <= bs.length; j += 4) {
     const [o0, o1, o2, o3] = [outs[j]!, outs[j + 1]!, outs[j + 2]!, outs[j + 3]!];
     const [b0, b1, b2, b3] = [bs[j]!, bs[j + 1]!, bs[j + 2]!, bs[j + 3]!];
+    const [m0, m1, m2, m3] = [means[j]!, means[j + 1]!, means[j + 2]!, means[j + 3]!];
     for (let r = 0; r < runs.count; r++) {
       const s = runs.season[r]!;
+      const [c0, c1, c2, c3] = [m0[s]!, m1[s]!, m2[s]!, m3[s]!];
       let s0 = o0[s]!;
       let s1 = o1[s]!;
       let s2 = o2[s]!;
       let s3 = o3[s]!;
       for (let o = runs.start[r]!; o < runs.end[r]!; o++) {
         const x = a[o]!;
-        s0 += x * b0[o]!;
-        s1 += x * b1[o]!;
-        s2 += x * b2[o]!;
-        s3 += x * b3[o]!;
+        s0 += x * (b0[o]! - c0);
+        s1 += x * (b1[o]! - c1);
+        s2 += x * (b2[o]! - c2);
+        s3 += x * (b3[o]! - c3);
       }
       o0[s] = s0;
       o1[s] = s1;
@@ -1275,5 +1286,16 @@ function addSeasonDots(outs: Float64Array[], runs: SeasonRuns, a: Float64Array, 
       o3[s] = s3;
     }
   }
-  for (; j < bs.length; j++) addSeasonDot(outs[j]!, runs, a, bs[j]!);
+  for (; j < bs.length; j++) {
+    const out = outs[j]!;
+    const b = bs[j]!;
+    const m = means[j]!;
+    for (let r = 0; r < runs.count; r++) {
+      const s = runs.season[r]!;
+      const c = m[s]!;
+      let acc = out[s]!;
+      for (let o = runs.start[r]!; o < runs.end[r]!; o++) acc += a[o]! * (b[o]! - c);
+      out[s] = acc;
+    }
+  }
 }
