@@ -59,6 +59,7 @@ import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type ItemProjection
     }
   `,
   styles: `
+    @use '../shared/tables';
     :host {
       display: block;
     }
@@ -76,25 +77,7 @@ import { SCENARIO_NAMES, scenarioLabel, type CoopProjection, type ItemProjection
       color: var(--mat-sys-error);
     }
     table {
-      border-collapse: collapse;
-    }
-    th,
-    td {
-      padding: 6px 12px;
-      border-bottom: 1px solid var(--mat-sys-outline-variant);
-      text-align: left;
-      white-space: nowrap;
-    }
-    thead th {
-      font: var(--mat-sys-label-large);
-      background: var(--mat-sys-surface-container);
-    }
-    tbody th {
-      font-weight: 500;
-    }
-    .num {
-      text-align: right;
-      font-variant-numeric: tabular-nums;
+      @include tables.figures($head-font: var(--mat-sys-label-large));
     }
     tr.over td:nth-child(4) {
       color: var(--mat-sys-error);
