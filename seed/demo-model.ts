@@ -18,8 +18,9 @@ export const DEMO_MODEL: ModelDefinition = {
   fromSeason: null,
   toSeason: null,
   farms: null,
-  // A short back-test, so an outlook can say how well the run forecast and warn before publishing.
-  backtestSeasons: 3,
+  // The product's default back-test (the last 5 seasons), so an outlook can say how well the run
+  // forecast and warn before publishing; seed/demo-coop.test.ts checks the demo's skill over the same 5.
+  backtestSeasons: 5,
 };
 
 /** The demo model with some choices changed. */

@@ -67,7 +67,7 @@ describe('model runs', () => {
     expect(own('nitrogen')).toBeLessThan(-0.1);
     expect(own('nitrogen')).toBeGreaterThan(-0.9);
     for (const row of summary.elasticities as number[][]) expect(Math.abs(row.reduce((a, b) => a + b, 0))).toBeLessThan(1e-9);
-    expect(run.result.backtest.seasons).toHaveLength(3);
+    expect(run.result.backtest.seasons).toHaveLength(5);
     expect(run.result.fittedBySeason).toHaveLength(20);
 
     // Run it again from the stored snapshot: identical numbers.

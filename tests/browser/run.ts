@@ -3,8 +3,8 @@
  *
  * Run by `npm run test:browser` after `ng build`: starts `tsx server/main.ts` on a free port with a
  * fresh data directory, drives Debian's Chromium through playwright-core and runs every flow in
- * tests/browser/flows/ in file-name order, in one browser. `-- --only NAME` runs the flows whose file
- * name contains NAME. Screenshots land in tmp/screenshots/. The last line is always
+ * tests/browser/flows/ in file-name order, in one browser. `-- --only NAME[,NAME…]` runs the flows whose file
+ * name contains one of the NAMEs. Screenshots land in tmp/screenshots/. The last line is always
  * `browser: N passed, M failed`.
  */
 import { mkdirSync, mkdtempSync, readdirSync, rmSync } from 'node:fs';
@@ -70,7 +70,7 @@ async function main(): Promise<void> {
     });
 
     for (const file of readdirSync(join(import.meta.dirname, 'flows')).filter((f) => f.endsWith('.ts')).sort()) {
-      if (only && !file.includes(only)) continue;
+      if (only && !only.split(",").some((o) => file.includes(o))) continue;
       console.log(`flow ${file}`);
       const flow = (await import(`./flows/${file}`)) as { default: (h: Harness) => Promise<void> };
       await check(`flow ${file} runs to its end`, () => flow.default({ base, page, context: context! }));

@@ -90,7 +90,10 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
       // The dialog starts at the run the back-test favours and says why.
       const choice = await getJson<{ favoured: { runId: number; reason: string } | null }>(page, '/api/outlooks/run-choice');
       assert(choice.favoured, 'no run is favoured although one has finished');
-      await dialog.getByText(choice.favoured.reason).waitFor();
+      const reason = dialog.locator('p.favoured');
+      await reason.waitFor();
+      const words = (text: string) => text.replace(/\s+/g, ' ').trim();
+      assertEqual(words(await reason.innerText()), words(choice.favoured.reason), 'the reason the dialog gives for its favoured run');
       assert((await dialog.getByRole('combobox', { name: 'Model run' }).innerText()).includes(`run #${choice.favoured.runId}`), 'the dialog does not start at the favoured run');
       await dialog.getByRole('combobox', { name: 'Model run' }).click();
       await page.getByRole('option', { name: new RegExp(`run #${runId}(,|$)`) }).click();
