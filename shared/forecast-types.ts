@@ -154,6 +154,13 @@ export interface ErrorScale {
   exponent: number[];
   /** σ_i² at the reference land (per hectare, squared). */
   variance: number[];
+  /**
+   * Sampling variance of log σ̂_i² (2 / its degrees of freedom) and of δ̂_i: the uncertainty of the
+   * error-variance function that the bands' Welch–Satterthwaite t counts (docs/forecasting.md §6).
+   * Absent in runs stored before 2026-12-03 (then treated as known).
+   */
+  logVarianceVariance?: number[];
+  exponentVariance?: number[];
 }
 
 /** A fitted forecasting model: plain JSON, safe to post to a worker thread or store. */

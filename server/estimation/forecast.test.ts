@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { projectForecast } from './forecast.js';
+import { projectForecast, WelchTable } from './forecast.js';
+import { normalQuantile, studentTQuantile } from './student-t.js';
 import { fitForecastModel } from './panel.js';
 import { generateForecastPanel, PER_HECTARE_ITEMS } from './synthetic-panel.js';
 
@@ -111,5 +112,22 @@ describe('projectForecast options', () => {
     expect(() => projectForecast(model, { farms: [{ farm: 'X', fixed: {} }], draws: 500 })).toThrow(/land \(land\) must be given/);
     expect(() => projectForecast(model, { farms, priceErrors: { wheat: [0.1], canola: [0.1, 0.2] }, draws: 500 })).toThrow(/same number of past seasons/);
     expect(() => projectForecast(model, { farms, level: 1.2 })).toThrow(/level must lie between 0 and 1/);
+  });
+});
+
+describe('Welch–Satterthwaite stretch with an estimated residual variance (docs/forecasting.md §6, step 8)', () => {
+  // Welch (1947): ν* = V² / Σ v_k²/ν_k. A residual part v with Var(log v̂) = g enters with ν_r = 2/g.
+  // The t quantiles are those of student-t.ts, checked against SciPy in student-t.test.ts.
+  const z = normalQuantile(0.95);
+  it('a residual part alone with g = 0.1 is a t with 20 degrees of freedom', () => {
+    const st = new WelchTable(5, [0.05, 0.5, 0.95]).at(0, 0, 1, 0.1);
+    expect(st.ratio(0.95)).toBeCloseTo(studentTQuantile(0.95, 20) / z, 12);
+  });
+  it('season part 0.5 (ν = 5) and residual part 0.5 (ν_r = 20): ν* = 1/(0.25/5 + 0.25/20) = 16', () => {
+    const st = new WelchTable(5, [0.05, 0.5, 0.95]).at(0, 0.5, 0.5, 0.1);
+    expect(st.ratio(0.95)).toBeCloseTo(studentTQuantile(0.95, 16) / z, 12);
+    expect(st.sdFactor).toBeCloseTo(Math.sqrt(16 / 14), 12);
+    // the same residual part counted as known: ν* = 1/(0.25/5) = 20
+    expect(new WelchTable(5, [0.05, 0.5, 0.95]).at(0.5, 0.5).ratio(0.95)).toBeCloseTo(studentTQuantile(0.95, 20) / z, 12);
   });
 });

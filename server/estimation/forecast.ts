@@ -11,7 +11,9 @@
  * Few seasons: Σ_λ rests on ν degrees of freedom, so every reported quantity's band is that of a
  * Student t with its Welch–Satterthwaite degrees of freedom ν* = V²/(V_season²/ν) — the season
  * parts' share of its predictive variance decides how much it widens (a co-op total about as much as
- * a t_ν, a farm dominated by its own residual hardly at all).
+ * a t_ν, a farm dominated by its own residual hardly at all). The residual variance σ̂²(L/L̄)^δ̂ is an
+ * estimate too: it enters with ν_r = 2/Var(log v̂), Var(log v̂) = 2/d + x²·Var(δ̂) by the delta method
+ * (x = log(L/L̄)), so ν* = V²/(V_season²/ν + v²/ν_r) — widest far from the centre of log-size.
  *
  * Speed: the parts shared by all farms (parameter draws, season shock, price error) are computed
  * once per draw; per farm and draw only the farm's own normal is added. Farms take their normals
@@ -241,6 +243,11 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
     const shift = Math.floor((i * P) / n);
     const muF = new Float64Array(F);
     const aF = new Float64Array(F);
+    const resVarF = new Float64Array(F);
+    const logLandF = new Float64Array(F);
+    // uncertainty of the error-variance function σ̂_i²·(L/L̄)^δ̂_i (docs/forecasting.md §6, step 8)
+    const logVarG = perHa && scale ? (scale.logVarianceVariance?.[i] ?? 0) : 0;
+    const expVarG = perHa && scale ? (scale.exponentVariance?.[i] ?? 0) : 0;
     const pointF = new Float64Array(F);
     for (let f = 0; f < F; f++) {
       const pos = farmPos.get(farms[f]!.farm);
@@ -256,6 +263,8 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
       const resVar = perHa && scale ? scale.variance[i]! * Math.exp(scale.exponent[i]! * Math.log(L / scale.referenceLand)) : fit.sigma[i]![i]!;
       muF[f] = mu;
       aF[f] = Math.sqrt(varFarm + resVar);
+      resVarF[f] = resVar;
+      logLandF[f] = perHa && scale ? Math.log(L / scale.referenceLand) : 0;
       // point: θ̂, no shocks, the farm's own level, at the stated prices
       let yp = mu;
       const pv = pointSet.values[i]!;
@@ -287,8 +296,8 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
       if (!Number.isFinite(nu)) return NO_STRETCH;
       const xs = (r: number): number => pv[r]![f]!;
       const vs = lamVar + quad(Vsz, xs);
-      const vk = aF[f]! ** 2 + quad(Vf, xs);
-      return welch.at(vk, vs);
+      const vk = aF[f]! ** 2 - resVarF[f]! + quad(Vf, xs);
+      return welch.at(vk, vs, resVarF[f]!, logVarG + logLandF[f]! ** 2 * expVarG);
     };
     let coopStretch: Stretch = NO_STRETCH;
     if (Number.isFinite(nu)) {
@@ -299,11 +308,18 @@ export function projectForecast(model: ForecastModel, options: ForecastOptions):
       });
       let Lsum = 0;
       let known = 0;
+      let res = 0;
+      let resX = 0;
       for (let f = 0; f < F; f++) {
         Lsum += landOf[f]!;
-        known += (landOf[f]! * aF[f]!) ** 2;
+        const c = landOf[f]! ** 2 * resVarF[f]!;
+        known += (landOf[f]! * aF[f]!) ** 2 - c;
+        res += c;
+        resX += c * logLandF[f]!;
       }
-      coopStretch = welch.at(known + quad(Vf, (r) => X[r]!), Lsum * Lsum * lamVar + quad(Vsz, (r) => X[r]!));
+      // the farms' residual parts rest on the same σ̂_i², δ̂_i: Var(log Σ c_f) at their weighted log land
+      const xc = res > 0 ? resX / res : 0;
+      coopStretch = welch.at(known + quad(Vf, (r) => X[r]!), Lsum * Lsum * lamVar + quad(Vsz, (r) => X[r]!), res, logVarG + xc * xc * expVarG);
     }
     if (varying.length === 0) {
       // Every farm's per-hectare draw is base_s + μ_f + a_f·η: its quantiles are μ_f plus those of
@@ -364,7 +380,9 @@ export class WelchTable {
   private readonly grid = 64;
   private readonly tables = new Map<number, Float64Array>();
   private readonly sd: Float64Array;
+  private readonly nu: number;
   constructor(nu: number, probs: number[]) {
+    this.nu = nu;
     for (const p of probs) {
       if (p === 0.5) continue;
       const z = normalQuantile(p);
@@ -382,12 +400,17 @@ export class WelchTable {
       return nuStar > 3 ? Math.sqrt(nuStar / (nuStar - 2)) : r95[g]!;
     });
   }
-  /** The stretch for a quantity with known variance vk and season-based variance vs. */
-  at(vk: number, vs: number): Stretch {
-    if (!(vs > 0)) return NO_STRETCH;
-    const V = vk + vs;
-    // ν* = V²ν / vs², so u = ν/ν* = (vs / V)²
-    const u = Math.min(1, (vs / V) ** 2);
+  /**
+   * The stretch for a quantity with known variance vk, season-based variance vs (ν degrees of
+   * freedom) and a residual part vr whose estimate has Var(log v̂r) = logVar, i.e. ν_r = 2/logVar degrees
+   * of freedom (vr and logVar default to 0: vr counted as known, or included in vk).
+   */
+  at(vk: number, vs: number, vr = 0, logVar = 0): Stretch {
+    const wr = vr > 0 && logVar > 0 ? (vr * vr * logVar) / 2 : 0; // vr² / ν_r
+    if (!(vs > 0) && !(wr > 0)) return NO_STRETCH;
+    const V = vk + vs + vr;
+    // ν* = V² / (vs²/ν + vr²/ν_r), so u = ν/ν* = (vs² + ν·vr²/ν_r) / V² (at most 1: ν* ≥ ν)
+    const u = Math.min(1, (vs * vs + this.nu * wr) / (V * V));
     const x = u * this.grid;
     const g = Math.min(Math.floor(x), this.grid - 1);
     const h = x - g;

@@ -208,6 +208,9 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const lambda = Array.from({ length: n }, () => new Float64Array(S));
   const tau2 = new Array<number>(n).fill(0);
   const sigma2 = new Array<number>(n).fill(0);
+  // sampling variances of log σ̂_i² and of δ̂_i (the bands' residual degrees of freedom, forecasting.md §6)
+  const logSigma2Var = new Array<number>(n).fill(0);
+  const deltaVar = new Array<number>(n).fill(0);
   const resid = Array.from({ length: n }, () => new Float64Array(N));
   let theta = new Array<number>(k).fill(0);
   let sur: ReturnType<typeof fitSur> | null = null;
@@ -620,6 +623,8 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       dof -= useSeason ? S : 0;
       const s2 = ss / Math.max(dof, 1);
       sigma2[i] = s2 > 0 ? s2 : 1e-300;
+      // a scaled χ² with `dof` degrees of freedom: Var(log σ̂²) ≈ 2/dof
+      logSigma2Var[i] = 2 / Math.max(dof, 1);
       // τ_i² by moments: spread of farm means less their sampling variance
       if (useFarm) {
         // effects are deviations from the population level, which the intercept carries
@@ -661,6 +666,18 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
         const vx = sxx2 - (sx * sx) / Math.max(cnt, 1);
         const d = cnt > 2 && vx > 1e-9 * cnt ? (sxy - (sx * sy) / cnt) / vx : 0;
         delta[i] = Math.min(Math.max(d, -2), 1);
+        // Var(δ̂) = s²/Σ(x − x̄)², s² the residual variance of the log squares about the line
+        if (cnt > 2 && vx > 1e-9 * cnt) {
+          const xbar = sx / cnt;
+          const ybar = sy / cnt;
+          let rss = 0;
+          for (let o = 0; o < N; o++) {
+            if (useFarm && Tf[farmOf[o]!]! < 2) continue;
+            const ry = Math.log(e2[o]! + floor) - ybar - d * (logL[o]! - xbar);
+            rss += ry * ry;
+          }
+          deltaVar[i] = rss / (cnt - 2) / vx;
+        } else deltaVar[i] = 0;
       }
     }
   };
@@ -994,7 +1011,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
           lastLand: Array.from(lastLand),
         },
     seasonEffects: useSeason ? { seasons: seasons.labels, years: seasons.years, effects: lambda.map((l) => Array.from(l)), covariance: seasonCov, df } : null,
-    errorScale: { referenceLand: Lref, exponent: Array.from(delta), variance: sigma2.slice() },
+    errorScale: { referenceLand: Lref, exponent: Array.from(delta), variance: sigma2.slice(), logVarianceVariance: logSigma2Var.slice(), exponentVariance: useScale && landVaries ? deltaVar.slice() : deltaVar.map(() => 0) },
     seasons,
     outerIterations: outer,
   };
