@@ -20,12 +20,13 @@ import { ACTIVE_STATES, type ModelSummary, type RunStatus } from './models-api-t
 import { ModelsApi } from './models-api';
 import { pollRunStatuses } from './run-status-poller';
 import { RunStateBadge } from './run-state-badge';
+import { JobProgress } from '../shared/job-progress';
 import { LoadProblem } from '../shared/load-problem';
 
 /** `/models/:id`: one model's definition and its runs, with progress, cancel and run-again. */
 @Component({
   selector: 'np-model-detail',
-  imports: [DatePipe, RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, CautionNote, RunStateBadge, LoadProblem],
+  imports: [DatePipe, RouterLink, MatAnchor, MatButton, MatIcon, MatProgressBar, JobProgress, CautionNote, RunStateBadge, LoadProblem],
   templateUrl: './model-detail.html',
   styleUrl: './model-detail.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

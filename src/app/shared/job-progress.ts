@@ -10,7 +10,7 @@ import { MatProgressBar } from '@angular/material/progress-bar';
   imports: [MatProgressBar],
   template: `
     <div class="progress" role="status">
-      <mat-progress-bar mode="determinate" [value]="percent()" [attr.aria-label]="label()" />
+      <mat-progress-bar [mode]="waiting() ? 'query' : 'determinate'" [value]="percent()" [attr.aria-label]="label()" />
       <span class="stage"><ng-content /></span>
     </div>
   `,
@@ -36,4 +36,6 @@ export class JobProgress {
   readonly percent = input.required<number>();
   /** What the bar measures, e.g. "Progress of the projection". */
   readonly label = input.required<string>();
+  /** Queued and not started: the bar shows that it waits rather than a share done. */
+  readonly waiting = input(false);
 }
