@@ -1,3 +1,4 @@
+import { readFileSync } from 'node:fs';
 import type { Page, Response } from 'playwright-core';
 import type { Harness } from '../harness.js';
 import { assert, assertEqual, check, ensureFittedRun, mainNav, navClosed, shot, shotPath, signIn, signOut, waitForDemoPrepared } from '../harness.js';
@@ -194,6 +195,19 @@ export default async function outlook({ base, page }: Harness): Promise<void> {
           assertEqual(await page.getByText('simulated seasons', { exact: false }).count(), 0, 'mentions of "simulated seasons"');
         });
         await shot(page, 'outlook-projection-1280');
+        await check('Export CSV under the co-op and the farms grids writes each grid, every figure unrounded', async () => {
+          const p = await getJson<ProjectionJson>(page, `/api/outlooks/${outlookId}/projection`);
+          for (const [selector, rows] of [['np-projection-grid', p.result!.coop.items.length], ['np-farms-grid', null]] as const) {
+            const footer = page.locator(selector).first().locator('np-grid-footer');
+            const [download] = await Promise.all([page.waitForEvent('download'), footer.getByRole('button', { name: 'Export CSV' }).click()]);
+            assert(download.suggestedFilename().endsWith('.csv'), `file name ${download.suggestedFilename()}`);
+            const lines = readFileSync(await download.path(), 'utf8').trim().split(/\r?\n/);
+            // The projection grid's columns are grouped by scenario: two header lines (scenario, then column).
+            if (rows !== null) assertEqual(lines.length - 2, rows, `${selector} CSV rows`);
+            else assert(lines.length > 1, `${selector} CSV has no rows`);
+            await footer.screenshot({ path: shotPath(`outlook-${selector.slice(3)}-footer-1280`) });
+          }
+        });
         await shotAt(page, '#setup-heading', 'outlook-model-1280');
         await shotAt(page, 'np-fan-chart.coop-fan', 'outlook-band-1280');
         await page.setViewportSize({ width: 390, height: 844 });
