@@ -7,9 +7,9 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import { firstValueFrom } from 'rxjs';
 import type { UnitSystem } from '../../../shared/units';
 import { TEXT_MAX } from '../../../shared/field-limits';
-import { ApiRequestError, errorMessage } from '../core/api-error';
+import { errorMessage } from '../core/api-error';
+import { formToSave, saveAndClose } from '../shared/dialog-save';
 import { ConfirmDialog, type ConfirmDialogData } from '../shared/confirm-dialog';
-import { applyServerDetails } from '../shared/zod-validator';
 import { BudgetApi } from './budget-api';
 import { GRADE_FIELDS, type FertiliserProduct, type FertiliserProductInput, type ProductForm } from './budget-api-types';
 import { pricePerTFromShown, pricePerTToShown, productFromShown, productToShown, unitLabels } from './budget-units';
@@ -78,11 +78,8 @@ export class ProductDialog {
   protected readonly failure = signal<string | null>(null);
 
   protected async save(): Promise<void> {
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
-    const v = this.form.getRawValue();
+    const v = formToSave(this.form);
+    if (!v) return;
     const p = this.data.product;
     // An untouched price or lot keeps its stored metric value exactly (no round trip through the units shown).
     const pricePerT = p && this.form.controls.price.pristine ? p.pricePerT : pricePerTFromShown(v.price!, this.data.system);
@@ -101,16 +98,15 @@ export class ProductDialog {
       priceNote: v.priceNote.trim(),
       active: v.active,
     };
-    this.failure.set(null);
-    this.saving.set(true);
-    try {
-      const saved = p ? await this.#api.updateProduct(p.id, body) : await this.#api.createProduct(body);
-      this.#dialogRef.close(saved);
-    } catch (error) {
-      if (!(error instanceof ApiRequestError && this.#applyDetails(error))) this.failure.set(errorMessage(error));
-    } finally {
-      this.saving.set(false);
-    }
+    const c = this.form.controls;
+    const g = c.grade.controls;
+    await saveAndClose(() => (p ? this.#api.updateProduct(p.id, body) : this.#api.createProduct(body)), {
+      ref: this.#dialogRef,
+      saving: this.saving,
+      failure: this.failure,
+      controls: { name: c.name, nPct: g.nPct, p2o5Pct: g.p2o5Pct, k2oPct: g.k2oPct, form: c.form, pricePerT: c.price, lotT: c.lot, supplier: c.supplier, gradeSource: c.gradeSource, priceNote: c.priceNote },
+      conflictControl: c.name,
+    });
   }
 
   protected async remove(): Promise<void> {
@@ -134,18 +130,7 @@ export class ProductDialog {
     }
   }
 
-  /** The server names fields as body.nPct, body.pricePerT...; put each message on its control. */
-  #applyDetails(error: ApiRequestError): boolean {
-    const c = this.form.controls;
-    const g = c.grade.controls;
-    const controls = { name: c.name, nPct: g.nPct, p2o5Pct: g.p2o5Pct, k2oPct: g.k2oPct, form: c.form, pricePerT: c.price, lotT: c.lot, supplier: c.supplier, gradeSource: c.gradeSource, priceNote: c.priceNote };
-    if (error.status === 409) {
-      c.name.setErrors({ server: error.message });
-      return true;
-    }
-    return applyServerDetails(controls, error.error.details);
-  }
-}
+  /** The server names fields as body.nPct, body.pricePerT...; put each message on its control. */}
 
 function round(v: number): number {
   return Math.round(v * 1e6) / 1e6;

@@ -6,7 +6,7 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import type { Item, Season } from '../../../shared/api-types';
 import { CONTRACT_STATUSES, CONTRACT_STATUS_LABELS, contractSchema, type ContractRow } from '../../../shared/contract-schemas';
 import { TEXT_MAX } from '../../../shared/field-limits';
-import { saveAndClose } from '../shared/dialog-save';
+import { formToSave, saveAndClose } from '../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
 import { zodValidator } from '../shared/zod-validator';
 import { ContractsApi } from './contracts-api';
@@ -61,11 +61,8 @@ export class ContractDialog {
   protected readonly failure = signal<string | null>(null);
 
   protected async save(): Promise<void> {
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
-    const v = this.form.getRawValue();
+    const v = formToSave(this.form);
+    if (!v) return;
     if (v.deliveryFrom > v.deliveryTo) {
       this.form.controls.deliveryTo.setErrors({ server: 'The last delivery month is before the first' });
       this.form.controls.deliveryTo.markAsTouched();

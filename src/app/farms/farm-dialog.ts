@@ -5,7 +5,7 @@ import type { Observable } from 'rxjs';
 import { farmMemberNames, type FarmSummary } from '../../../shared/api-types';
 import { farmSchema } from '../../../shared/data-schemas';
 import { DataDeskApi, type FarmRow } from '../data-desk/data-desk-api';
-import { saveAndClose } from '../shared/dialog-save';
+import { formToSave, saveAndClose } from '../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
 import { zodValidator } from '../shared/zod-validator';
 
@@ -89,11 +89,8 @@ export class FarmDialog {
   protected readonly failure = signal<string | null>(null);
 
   protected async save(): Promise<void> {
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
-    const v = this.form.getRawValue();
+    const v = formToSave(this.form);
+    if (!v) return;
     const body = { code: v.code.trim(), name: v.name.trim(), region: v.region.trim(), landHa: Number(v.landHa) };
     await saveAndClose(() => this.farm ? this.#api.updateFarm(this.farm.id, body) : this.#api.createFarm(body), {
       ref: this.#dialogRef,

@@ -1,8 +1,8 @@
 import { signal } from '@angular/core';
-import { FormControl } from '@angular/forms';
+import { FormControl, FormGroup, Validators } from '@angular/forms';
 import type { MatDialogRef } from '@angular/material/dialog';
 import { ApiRequestError } from '../core/api-error';
-import { saveAndClose } from './dialog-save';
+import { formToSave, saveAndClose } from './dialog-save';
 
 function dialog() {
   const closed: unknown[] = [];
@@ -49,5 +49,27 @@ describe('saveAndClose', () => {
     expect(d.o.failure()).toBe('The server is restarting; try again in a minute.');
     expect(d.closed).toEqual([]);
     expect(d.o.saving()).toBe(false);
+  });
+
+  it('puts the server’s words for a conflict on the conflict control, when given one', async () => {
+    const d = dialog();
+    await saveAndClose(() => Promise.reject(new ApiRequestError(409, { code: 'conflict', message: 'A product named “CAN 27” exists already.' }, '/api/products')), { ...d.o, conflictControl: d.code });
+    expect(d.code.getError('server')).toBe('A product named “CAN 27” exists already.');
+    expect(d.o.failure()).toBeNull();
+    expect(d.closed).toEqual([]);
+  });
+});
+
+describe('formToSave', () => {
+  it('gives the raw value of a valid form, including disabled fields', () => {
+    const form = new FormGroup({ code: new FormControl('F01', Validators.required), region: new FormControl({ value: 'North', disabled: true }) });
+    expect(formToSave(form)).toEqual({ code: 'F01', region: 'North' });
+  });
+
+  it('gives null for an invalid form and marks every field touched so its problem shows', () => {
+    const form = new FormGroup({ code: new FormControl('', Validators.required), name: new FormControl('') });
+    expect(formToSave(form)).toBeNull();
+    expect(form.controls.code.touched).toBe(true);
+    expect(form.controls.name.touched).toBe(true);
   });
 });

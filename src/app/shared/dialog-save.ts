@@ -1,5 +1,5 @@
 import type { WritableSignal } from '@angular/core';
-import type { AbstractControl } from '@angular/forms';
+import type { AbstractControl, FormGroup } from '@angular/forms';
 import type { MatDialogRef } from '@angular/material/dialog';
 import { ApiRequestError, errorMessage } from '../core/api-error';
 import { runBusy } from './run-busy';
@@ -16,6 +16,8 @@ export interface DialogSave<T> {
   controls: Record<string, AbstractControl>;
   /** Said instead of the server's own words when it answers 409 (the record exists already). */
   conflict?: string;
+  /** When the server answers 409, its words go onto this control instead (e.g. the name already taken). */
+  conflictControl?: AbstractControl;
   /** Rewrites a detail's path before it is matched to a control (e.g. drops `body.rows.0.`). */
   detailPath?: (path: string) => string;
 }
@@ -31,6 +33,10 @@ export async function saveAndClose<T>(request: () => Promise<T>, o: DialogSave<T
     o.saving,
     async () => o.ref.close(await request()),
     (error) => {
+      if (o.conflictControl && error instanceof ApiRequestError && error.status === 409) {
+        o.conflictControl.setErrors({ server: error.message });
+        return;
+      }
       const details = error instanceof ApiRequestError ? error.error.details : undefined;
       const mapped = o.detailPath ? details?.map((d) => ({ ...d, path: o.detailPath!(d.path) })) : details;
       if (!applyServerDetails(o.controls, mapped)) {
@@ -38,4 +44,13 @@ export async function saveAndClose<T>(request: () => Promise<T>, o: DialogSave<T
       }
     },
   );
+}
+
+/** The form's value to save, or null while the form is invalid (then every field shows its problem). */
+export function formToSave<F extends FormGroup>(form: F): ReturnType<F['getRawValue']> | null {
+  if (form.invalid) {
+    form.markAllAsTouched();
+    return null;
+  }
+  return form.getRawValue();
 }

@@ -4,7 +4,7 @@ import { MAT_DIALOG_DATA, MatDialogRef } from '@angular/material/dialog';
 import { MatOption, MatSelect } from '@angular/material/select';
 import type { DeliveryPoint } from '../../../../shared/api-types';
 import { deliveryPointSchema } from '../../../../shared/data-schemas';
-import { saveAndClose } from '../../shared/dialog-save';
+import { formToSave, saveAndClose } from '../../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
 import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi } from '../data-desk-api';
@@ -58,11 +58,8 @@ export class DeliveryPointDialog {
   protected readonly failure = signal<string | null>(null);
 
   protected async save(): Promise<void> {
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
-    const v = this.form.getRawValue();
+    const v = formToSave(this.form);
+    if (!v) return;
     const body = { name: v.name.trim(), kind: v.kind, region: v.region.trim() };
     await saveAndClose(() => this.point ? this.#api.updateDeliveryPoint(this.point.id, body) : this.#api.createDeliveryPoint(body), {
       ref: this.#dialogRef,
