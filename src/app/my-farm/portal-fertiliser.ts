@@ -51,21 +51,11 @@ import { formatMoney, formatPricePer } from '../budget/budget-format';
     <p class="caution">{{ f.caution }}</p>
   `,
   styles: `
-    .fert {
-      border-collapse: collapse;
-      min-width: 100%;
-    }
+    @use '../shared/tables';
+    @include tables.portal-table('.fert');
     th,
     td {
-      padding: 6px 10px;
-      border-bottom: 1px solid var(--mat-sys-outline-variant);
-      text-align: left;
       vertical-align: top;
-    }
-    .num {
-      text-align: right;
-      font-variant-numeric: tabular-nums;
-      white-space: nowrap;
     }
     tfoot th,
     tfoot td {

@@ -37,21 +37,8 @@ import { formatPrice } from '../outlook/outlook-format';
     </div>
   `,
   styles: `
-    table {
-      border-collapse: collapse;
-      min-width: 100%;
-    }
-    th,
-    td {
-      padding: 6px 10px;
-      border-bottom: 1px solid var(--mat-sys-outline-variant);
-      text-align: left;
-    }
-    .num {
-      text-align: right;
-      font-variant-numeric: tabular-nums;
-      white-space: nowrap;
-    }
+    @use '../shared/tables';
+    @include tables.portal-table;
     .unit {
       display: block;
       font: var(--mat-sys-body-small);
