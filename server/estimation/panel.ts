@@ -260,16 +260,24 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
    * A regressor that does not vary within any season (a season's prices, a trend) has C_s = 0
    * with every other, so only the pairs of regressors that vary within seasons cost a pass.
    */
-  let withinSeason: { cols: Map<ArrayLike<number>, number>; raw: ArrayLike<number>[]; sums: Float64Array[] } | null = null;
+  let withinSeason: { cols: Map<ArrayLike<number>, number>; raw: Float64Array[]; sums: Float64Array[] } | null = null;
+  // the regressors as Float64Arrays (copies of plain arrays, kept for the fit): one element type in the passes
+  const asFloat64 = new Map<ArrayLike<number>, Float64Array>();
+  const float64Of = (v: ArrayLike<number>): Float64Array => {
+    if (v instanceof Float64Array) return v;
+    let c = asFloat64.get(v);
+    if (!c) asFloat64.set(v, (c = Float64Array.from(v)));
+    return c;
+  };
   const withinSeasonStats = () => {
     if (withinSeason) return withinSeason;
     const cols = new Map<ArrayLike<number>, number>();
-    const raw: ArrayLike<number>[] = [];
+    const raw: Float64Array[] = [];
     for (const eq of equations)
       for (const r of eq.regressors)
         if (!cols.has(r.values)) {
           cols.set(r.values, raw.length);
-          raw.push(r.values);
+          raw.push(float64Of(r.values));
         }
     const sums = raw.map((v) => {
       const t = new Float64Array(S);
@@ -510,17 +518,13 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
         const b1 = th[slots[i]![r + 1]!]!;
         const b2 = th[slots[i]![r + 2]!]!;
         const b3 = th[slots[i]![r + 3]!]!;
-        const v0 = regs[r]!.values;
-        const v1 = regs[r + 1]!.values;
-        const v2 = regs[r + 2]!.values;
-        const v3 = regs[r + 3]!.values;
-        for (let o = 0; o < N; o++) e[o] = e[o]! - b0 * v0[o]! - b1 * v1[o]! - b2 * v2[o]! - b3 * v3[o]!;
+        const v0 = float64Of(regs[r]!.values);
+        const v1 = float64Of(regs[r + 1]!.values);
+        const v2 = float64Of(regs[r + 2]!.values);
+        const v3 = float64Of(regs[r + 3]!.values);
+        subtractFour(e, b0, v0, b1, v1, b2, v2, b3, v3);
       }
-      for (; r < regs.length; r++) {
-        const b = th[slots[i]![r]!]!;
-        const v = regs[r]!.values;
-        for (let o = 0; o < N; o++) e[o]! -= b * v[o]!;
-      }
+      for (; r < regs.length; r++) subtractOne(e, th[slots[i]![r]!]!, float64Of(regs[r]!.values));
     });
   };
 
@@ -571,6 +575,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   const dofScale = new Float64Array(F);
   for (let f = 0; f < F; f++) dofScale[f] = useFarm ? (Tf[f]! > 1 ? Tf[f]! / (Tf[f]! - 1) : 0) : 1;
   /** `estimateDelta`: re-estimate the size exponents (every round until the weights settle, and at the end). */
+  const sumsOut = new Float64Array(2);
   const updateEffects = (estimateDelta = true): void => {
     for (let i = 0; i < n; i++) {
       const r = resid[i]!;
@@ -583,12 +588,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       if (useSeason) {
         const num = new Float64Array(S);
         const den = wSums.season;
-        for (let q = 0; q < runs.count; q++) {
-          const s = runs.season[q]!;
-          let an = num[s]!;
-          for (let o = runs.start[q]!; o < runs.end[q]!; o++) an += wi[o]! * (r[o]! - m[farmOf[o]!]!);
-          num[s] = an;
-        }
+        seasonSumsLessFarm(num, runs, wi, r, m, farmOf);
         let lm = 0;
         for (let s = 0; s < S; s++) {
           lam[s] = den[s]! > 0 ? num[s]! / den[s]! : 0;
@@ -601,24 +601,12 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       // farm means of r − λ (weighted) and the within-farm residuals
       const fm = new Float64Array(F);
       const fw = wSums.farm;
-      for (let q = 0; q < runs.count; q++) {
-        const ls = lam[runs.season[q]!]!;
-        for (let o = runs.start[q]!; o < runs.end[q]!; o++) fm[farmOf[o]!]! += wi[o]! * (r[o]! - ls);
-      }
+      farmSumsLessSeason(fm, runs, wi, r, lam, farmOf);
       for (let f = 0; f < F; f++) fm[f] = fw[f]! > 0 ? fm[f]! / fw[f]! : 0;
       // σ_i² at the reference land from the within-farm residuals (degrees of freedom T_f − 1)
-      let ss = 0;
       let dof = 0;
       const e2 = e2Buffer;
-      for (let q = 0; q < runs.count; q++) {
-        const ls = lam[runs.season[q]!]!;
-        for (let o = runs.start[q]!; o < runs.end[q]!; o++) {
-          const f = farmOf[o]!;
-          const e = r[o]! - ls - (useFarm ? fm[f]! : 0);
-          e2[o] = e * e * dofScale[f]!;
-          ss += wi[o]! * e * e;
-        }
-      }
+      const ss = withinFarmSquares(e2, runs, wi, r, lam, useFarm ? fm : null, farmOf, dofScale);
       for (let f = 0; f < F; f++) dof += useFarm ? Tf[f]! - 1 : Tf[f]!;
       dof -= useSeason ? S : 0;
       const s2 = ss / Math.max(dof, 1);
@@ -654,15 +642,10 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
       // δ_i: slope of log squared within-farm residuals on log land
       if (useScale && landVaries && estimateDelta) {
         const { sx, sxx: sxx2, count: cnt } = logLandSums();
-        let sy = 0;
-        let sxy = 0;
         const floor = 1e-12 * sigma2[i]!;
-        for (let o = 0; o < N; o++) {
-          if (useFarm && Tf[farmOf[o]!]! < 2) continue;
-          const ly = Math.log(e2[o]! + floor);
-          sy += ly;
-          sxy += logL[o]! * ly;
-        }
+        logSquareSums(sumsOut, e2, floor, logL, useFarm ? Tf : null, farmOf);
+        const sy = sumsOut[0]!;
+        const sxy = sumsOut[1]!;
         const vx = sxx2 - (sx * sx) / Math.max(cnt, 1);
         const d = cnt > 2 && vx > 1e-9 * cnt ? (sxy - (sx * sy) / cnt) / vx : 0;
         delta[i] = Math.min(Math.max(d, -2), 1);
@@ -670,12 +653,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
         if (cnt > 2 && vx > 1e-9 * cnt) {
           const xbar = sx / cnt;
           const ybar = sy / cnt;
-          let rss = 0;
-          for (let o = 0; o < N; o++) {
-            if (useFarm && Tf[farmOf[o]!]! < 2) continue;
-            const ry = Math.log(e2[o]! + floor) - ybar - d * (logL[o]! - xbar);
-            rss += ry * ry;
-          }
+          const rss = logSquareRss(e2, floor, logL, useFarm ? Tf : null, farmOf, ybar, d, xbar);
           deltaVar[i] = rss / (cnt - 2) / vx;
         } else deltaVar[i] = 0;
       }
@@ -857,36 +835,10 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     const uo = new Float64Array(n);
     const vo = new Float64Array(n);
     const gls = glsActive();
+    const regValues = equations.map((eq) => eq.regressors.map((r) => float64Of(r.values)));
     // 1 − k_is k_js by season
     const cross = Array.from({ length: S }, (_, s) => keep.map((ki) => keep.map((kj) => 1 - ki[s]! * kj[s]!)));
-    for (let o = 0; o < N; o++) {
-      const f = farmOf[o]!;
-      const s = seasonOf[o]!;
-      for (let i = 0; i < n; i++) eo[i] = sqw[o]! * (resid[i]![o]! - lambda[i]![s]! - mu[i]![f]!);
-      for (let i = 0; i < n; i++) {
-        let acc = 0;
-        let accV = 0;
-        for (let j = 0; j < n; j++) {
-          acc += sigmaInv[i]![j]! * eo[j]!;
-          // season GLS: Σ_o x*_io ε*_jo = Σ_o w_o ε_jo (x_io − (1 − k_is k_js) x̄_is)
-          if (gls) accV += sigmaInv[i]![j]! * eo[j]! * cross[s]![i]![j]!;
-        }
-        uo[i] = acc;
-        vo[i] = accV;
-      }
-      const hf = h[f]!;
-      for (let i = 0; i < n; i++) {
-        const regs = equations[i]!.regressors;
-        const base = offsets[i]!;
-        const u = uo[i]! * sqw[o]!;
-        for (let a = 0; a < regs.length; a++) hf[base + a]! += regs[a]!.values[o]! * u;
-        if (gls && vo[i] !== 0) {
-          const v = (vo[i]! * sqw[o]!) / seasonW[s]!;
-          const gs = seasonSums[i]![s]!;
-          for (let a = 0; a < regs.length; a++) hf[base + a]! -= gs[a]! * v;
-        }
-      }
-    }
+    addFarmScores(h, { farmOf, seasonOf, sqw, resid, lambda, mu, sigmaInv, gls, cross, regValues, offsets, seasonW, seasonSums }, eo, uo, vo);
     for (let f = 0; f < F; f++) {
       const hf = h[f]!;
       for (let a = 0; a < K; a++) {
@@ -1231,6 +1183,128 @@ function dotEach(a: ArrayLike<number>, bs: Float64Array[]): Float64Array {
 }
 
 /** Maximal runs of consecutive observations in one season (one a season when the rows are sorted by season). */
+/** num_s += Σ_{o∈s} w_o (r_o − m_farm(o)) (a module-level loop: optimised once for every fit). */
+function seasonSumsLessFarm(num: Float64Array, runs: SeasonRuns, w: Float64Array, r: Float64Array, m: Float64Array, farmOf: Int32Array): void {
+  for (let q = 0; q < runs.count; q++) {
+    const s = runs.season[q]!;
+    let an = num[s]!;
+    for (let o = runs.start[q]!; o < runs.end[q]!; o++) an += w[o]! * (r[o]! - m[farmOf[o]!]!);
+    num[s] = an;
+  }
+}
+
+/** fm_f += Σ_{o∈f} w_o (r_o − λ_season(o)). */
+function farmSumsLessSeason(fm: Float64Array, runs: SeasonRuns, w: Float64Array, r: Float64Array, lam: Float64Array, farmOf: Int32Array): void {
+  for (let q = 0; q < runs.count; q++) {
+    const ls = lam[runs.season[q]!]!;
+    for (let o = runs.start[q]!; o < runs.end[q]!; o++) fm[farmOf[o]!]! += w[o]! * (r[o]! - ls);
+  }
+}
+
+/** e2_o = e_o² · dofScale_f with e = r − λ_s − fm_f (fm null: no farm term); returns Σ w e². */
+function withinFarmSquares(e2: Float64Array, runs: SeasonRuns, w: Float64Array, r: Float64Array, lam: Float64Array, fm: Float64Array | null, farmOf: Int32Array, dofScale: Float64Array): number {
+  let ss = 0;
+  for (let q = 0; q < runs.count; q++) {
+    const ls = lam[runs.season[q]!]!;
+    for (let o = runs.start[q]!; o < runs.end[q]!; o++) {
+      const f = farmOf[o]!;
+      const e = r[o]! - ls - (fm ? fm[f]! : 0);
+      e2[o] = e * e * dofScale[f]!;
+      ss += w[o]! * e * e;
+    }
+  }
+  return ss;
+}
+
+/** out = [Σ log(e2 + floor), Σ x log(e2 + floor)] over the observations of farms with two or more seasons (Tf null: all). */
+function logSquareSums(out: Float64Array, e2: Float64Array, floor: number, x: Float64Array, Tf: Int32Array | null, farmOf: Int32Array): void {
+  let sy = 0;
+  let sxy = 0;
+  for (let o = 0; o < e2.length; o++) {
+    if (Tf && Tf[farmOf[o]!]! < 2) continue;
+    const ly = Math.log(e2[o]! + floor);
+    sy += ly;
+    sxy += x[o]! * ly;
+  }
+  out[0] = sy;
+  out[1] = sxy;
+}
+
+/** Residual sum of squares of log(e2 + floor) about the line ybar + d (x − xbar), same observations. */
+function logSquareRss(e2: Float64Array, floor: number, x: Float64Array, Tf: Int32Array | null, farmOf: Int32Array, ybar: number, d: number, xbar: number): number {
+  let rss = 0;
+  for (let o = 0; o < e2.length; o++) {
+    if (Tf && Tf[farmOf[o]!]! < 2) continue;
+    const ry = Math.log(e2[o]! + floor) - ybar - d * (x[o]! - xbar);
+    rss += ry * ry;
+  }
+  return rss;
+}
+
+/** e −= b0 v0 + … + b3 v3, subtracted in that order. */
+function subtractFour(e: Float64Array, b0: number, v0: Float64Array, b1: number, v1: Float64Array, b2: number, v2: Float64Array, b3: number, v3: Float64Array): void {
+  for (let o = 0; o < e.length; o++) e[o] = e[o]! - b0 * v0[o]! - b1 * v1[o]! - b2 * v2[o]! - b3 * v3[o]!;
+}
+
+function subtractOne(e: Float64Array, b: number, v: Float64Array): void {
+  for (let o = 0; o < e.length; o++) e[o]! -= b * v[o]!;
+}
+
+/** h_f += the farm's score terms X*' Σ⁻¹ ε* observation by observation (module level: optimised once). */
+function addFarmScores(
+  h: Float64Array[],
+  d: {
+    farmOf: Int32Array;
+    seasonOf: Int32Array;
+    sqw: Float64Array;
+    resid: Float64Array[];
+    lambda: Float64Array[];
+    mu: Float64Array[];
+    sigmaInv: Mat;
+    gls: boolean;
+    cross: number[][][];
+    regValues: Float64Array[][];
+    offsets: number[];
+    seasonW: Float64Array;
+    seasonSums: Float64Array[][];
+  },
+  eo: Float64Array,
+  uo: Float64Array,
+  vo: Float64Array,
+): void {
+  const { farmOf, seasonOf, sqw, resid, lambda, mu, sigmaInv, gls, cross, regValues, offsets, seasonW, seasonSums } = d;
+  const N = farmOf.length;
+  const n = eo.length;
+  for (let o = 0; o < N; o++) {
+    const f = farmOf[o]!;
+    const s = seasonOf[o]!;
+    for (let i = 0; i < n; i++) eo[i] = sqw[o]! * (resid[i]![o]! - lambda[i]![s]! - mu[i]![f]!);
+    for (let i = 0; i < n; i++) {
+      let acc = 0;
+      let accV = 0;
+      for (let j = 0; j < n; j++) {
+        acc += sigmaInv[i]![j]! * eo[j]!;
+        // season GLS: Σ_o x*_io ε*_jo = Σ_o w_o ε_jo (x_io − (1 − k_is k_js) x̄_is)
+        if (gls) accV += sigmaInv[i]![j]! * eo[j]! * cross[s]![i]![j]!;
+      }
+      uo[i] = acc;
+      vo[i] = accV;
+    }
+    const hf = h[f]!;
+    for (let i = 0; i < n; i++) {
+      const regs = regValues[i]!;
+      const base = offsets[i]!;
+      const u = uo[i]! * sqw[o]!;
+      for (let a = 0; a < regs.length; a++) hf[base + a]! += regs[a]![o]! * u;
+      if (gls && vo[i] !== 0) {
+        const v = (vo[i]! * sqw[o]!) / seasonW[s]!;
+        const gs = seasonSums[i]![s]!;
+        for (let a = 0; a < regs.length; a++) hf[base + a]! -= gs[a]! * v;
+      }
+    }
+  }
+}
+
 interface SeasonRuns {
   count: number;
   start: Int32Array;

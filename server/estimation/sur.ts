@@ -328,8 +328,7 @@ export function fitSur(equations: SurEquationInput[], options: SurOptions = {}):
     } else {
       // e_i'e_i from the cross products (Σ̂_ii times its divisor), Σ(y − ȳ)² = y'y − (Σy)²/T
       ssr = residualCrossProduct(coef, i, i);
-      let sy = 0;
-      for (let t = 0; t < T; t++) sy += eq.y[t]!;
+      const sy = columnSum(eq.y, T);
       sst = yy[i]![i]! - (sy * sy) / T;
     }
     return {
@@ -393,6 +392,38 @@ export function systemCrossProducts(equations: SurEquationInput[], cache?: Cross
 }
 
 /** Gram matrix of columns (upper triangle computed, mirrored). */
+/** out[q] = Σ_t a_t c_q,t for four columns in one pass (a small module-level loop: optimised once). */
+function dotFour(out: Float64Array, a: Float64Array, c0: Float64Array, c1: Float64Array, c2: Float64Array, c3: Float64Array, T: number): void {
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  for (let t = 0; t < T; t++) {
+    const v = a[t]!;
+    s0 += v * c0[t]!;
+    s1 += v * c1[t]!;
+    s2 += v * c2[t]!;
+    s3 += v * c3[t]!;
+  }
+  out[0] = s0;
+  out[1] = s1;
+  out[2] = s2;
+  out[3] = s3;
+}
+
+/** Σ_t v_t in order (module level: optimised once). */
+function columnSum(v: Column, T: number): number {
+  let s = 0;
+  for (let t = 0; t < T; t++) s += v[t]!;
+  return s;
+}
+
+function dotOne(a: Float64Array, b: Float64Array, T: number): number {
+  let s = 0;
+  for (let t = 0; t < T; t++) s += a[t]! * b[t]!;
+  return s;
+}
+
 export function crossProducts(columns: Column[], T: number, cache?: CrossProductCache): Mat {
   const U = columns.length;
   const g = zeros(U, U);
@@ -411,6 +442,7 @@ export function crossProducts(columns: Column[], T: number, cache?: CrossProduct
       }
     }
   };
+  const four = new Float64Array(4);
   for (let a = 0; a < U; a++) {
     const ca = arrs[a]!;
     // the pairs (a, b ≥ a) not cached yet, four columns per pass over ca (each sum in the same order)
@@ -432,28 +464,15 @@ export function crossProducts(columns: Column[], T: number, cache?: CrossProduct
       const c1 = arrs[b1]!;
       const c2 = arrs[b2]!;
       const c3 = arrs[b3]!;
-      let s0 = 0;
-      let s1 = 0;
-      let s2 = 0;
-      let s3 = 0;
-      for (let t = 0; t < T; t++) {
-        const v = ca[t]!;
-        s0 += v * c0[t]!;
-        s1 += v * c1[t]!;
-        s2 += v * c2[t]!;
-        s3 += v * c3[t]!;
-      }
-      store(a, b0, s0);
-      store(a, b1, s1);
-      store(a, b2, s2);
-      store(a, b3, s3);
+      dotFour(four, ca, c0, c1, c2, c3, T);
+      store(a, b0, four[0]!);
+      store(a, b1, four[1]!);
+      store(a, b2, four[2]!);
+      store(a, b3, four[3]!);
     }
     for (; j < todo.length; j++) {
       const b = todo[j]!;
-      const cb = arrs[b]!;
-      let s = 0;
-      for (let t = 0; t < T; t++) s += ca[t]! * cb[t]!;
-      store(a, b, s);
+      store(a, b, dotOne(ca, arrs[b]!, T));
     }
   }
   return g;
