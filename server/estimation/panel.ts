@@ -31,7 +31,7 @@ import { equationFits, fitChecks, fitProfitFunction, prepareModel, symmetryRestr
 import { formOf } from './forms.js';
 import { covarianceToCorrelation, dot, inverse, jacobiEigenvalues, mean, symmetricEigen, type Mat } from './linalg.js';
 import type { FormName } from './model.js';
-import { crossProducts, fitSur, type CrossProductCache, type SurEquationInput, type SystemCrossProducts } from './sur.js';
+import { crossProducts, dotFour, fitSur, type CrossProductCache, type SurEquationInput, type SystemCrossProducts } from './sur.js';
 
 export type { ForecastSpec } from '../../shared/forecast-types.js';
 
@@ -1156,27 +1156,13 @@ function matMulSmall(a: Mat, b: Mat): Mat {
 const NOT_READ = new Float64Array(0);
 
 /** Σ_o a_o b_o for each b in bs, four at a time over a. */
-function dotEach(a: ArrayLike<number>, bs: Float64Array[]): Float64Array {
+function dotEach(a: Float64Array, bs: Float64Array[]): Float64Array {
   const out = new Float64Array(bs.length);
-  const N = a.length;
+  const four = new Float64Array(4);
   let j = 0;
   for (; j + 4 <= bs.length; j += 4) {
-    const [b0, b1, b2, b3] = [bs[j]!, bs[j + 1]!, bs[j + 2]!, bs[j + 3]!];
-    let s0 = 0;
-    let s1 = 0;
-    let s2 = 0;
-    let s3 = 0;
-    for (let o = 0; o < N; o++) {
-      const x = a[o]!;
-      s0 += x * b0[o]!;
-      s1 += x * b1[o]!;
-      s2 += x * b2[o]!;
-      s3 += x * b3[o]!;
-    }
-    out[j] = s0;
-    out[j + 1] = s1;
-    out[j + 2] = s2;
-    out[j + 3] = s3;
+    dotFour(four, a, bs[j]!, bs[j + 1]!, bs[j + 2]!, bs[j + 3]!, a.length);
+    out.set(four, j);
   }
   for (; j < bs.length; j++) out[j] = dot(a, bs[j]!);
   return out;

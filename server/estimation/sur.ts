@@ -393,7 +393,7 @@ export function systemCrossProducts(equations: SurEquationInput[], cache?: Cross
 
 /** Gram matrix of columns (upper triangle computed, mirrored). */
 /** out[q] = Σ_t a_t c_q,t for four columns in one pass (a small module-level loop: optimised once). */
-function dotFour(out: Float64Array, a: Float64Array, c0: Float64Array, c1: Float64Array, c2: Float64Array, c3: Float64Array, T: number): void {
+export function dotFour(out: Float64Array, a: Float64Array, c0: Float64Array, c1: Float64Array, c2: Float64Array, c3: Float64Array, T: number): void {
   let s0 = 0;
   let s1 = 0;
   let s2 = 0;
