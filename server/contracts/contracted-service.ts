@@ -20,7 +20,7 @@ import { hashOf } from '../models/model-data.js';
 import { draftInputsHash, gatherProjectionInputs } from '../outlook/projection-service.js';
 import { getSettings } from '../settings/settings-service.js';
 import { findOutlook, findOutlookOfSeason } from '../outlook/outlook-repository.js';
-import type { OutlookRow } from '../outlook/projection-service.js';
+import type { OutlookRow } from '../outlook/outlook-repository.js';
 import { allFarmNames, farmNameAndCode, itemsByCode, latestDoneJobOf, latestJobOf, listContracts, pastOutputAndLand, setJobPayload } from './contracts-repository.js';
 
 export const CONTRACTED_JOB = 'outlook-contracted';

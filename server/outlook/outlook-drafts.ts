@@ -10,9 +10,10 @@ import { skillOfRun } from './run-choice.js';
 import { SCENARIO_RULE_TEXT, type ExpectationSetting, type ScenarioRule } from './expectations.js';
 import { computeExpectations, type ItemExpectation } from './expectations-service.js';
 import { OUTLOOK_CAUTIONS } from './outlook-cautions.js';
-import { draftInputsHash, gatherProjectionInputs, OUTLOOK_PROJECTION_JOB, succeededRun, type OutlookRow, type ProjectionTables } from './projection-service.js';
+import { draftInputsHash, gatherProjectionInputs, OUTLOOK_PROJECTION_JOB, succeededRun, type ProjectionTables } from './projection-service.js';
 import { findOrCreateSeason } from './season-creation.js';
 import * as repo from './outlook-repository.js';
+import type { OutlookRow } from './outlook-repository.js';
 
 /** The draft, or a 404; `lock` holds it for the rest of the transaction. */
 export async function draftRow(db: Db, id: number, lock = false): Promise<OutlookRow> {

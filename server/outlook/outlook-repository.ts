@@ -11,9 +11,9 @@ import { futuresQuotes, items, mailOutbox, models, modelRuns, outlooks, outlookV
 import type { FarmOutlook } from '../../shared/outlook-types.js';
 import type { ForecastSpecName } from '../../shared/model-schemas.js';
 import type { BackTestResult } from '../../shared/forecast-types.js';
-import type { OutlookRow } from './projection-service.js';
 
 export type SeasonRow = typeof seasons.$inferSelect;
+export type OutlookRow = typeof outlooks.$inferSelect;
 export type VersionRow = typeof outlookVersions.$inferSelect;
 
 // ---- seasons ------------------------------------------------------------------------------------

@@ -24,12 +24,11 @@ import { scenarioPrices, SCENARIO_RULE_TEXT, type ScenarioRule } from './expecta
 import type { ItemExpectation } from './expectations-service.js';
 import { curvatureCaution } from './outlook-cautions.js';
 import { isDeliveredInTonnes, tonnesOf } from './capacity-tonnes.js';
-import { findOutlook, seasonById, updateOutlook } from './outlook-repository.js';
+import { findOutlook, seasonById, updateOutlook, type OutlookRow } from './outlook-repository.js';
 import { farmsByCode, fixedFactorValues, itemsWithCodes, recordsOfFarms, runWithModelName, seasonsBefore, type ItemRow } from './projection-repository.js';
 
 export const OUTLOOK_PROJECTION_JOB = 'outlook-projection';
 
-export type OutlookRow = typeof outlooks.$inferSelect;
 export type { ByScenario, CapacityComparison, CoopProjection, FarmOutlook, History, ItemProjection, ProjectionTables, ScenarioName, TotalBand } from '../../shared/outlook-types.js';
 
 /** Everything the projection's numbers depend on; the published version must match it. */
