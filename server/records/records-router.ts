@@ -5,6 +5,7 @@ import { factorKeySchema, factorValueSchema, landSchema, recordSchema } from '..
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
+import type { SessionUser } from '../auth/session.js';
 import { getSettings } from '../settings/settings-service.js';
 import { exportFormatSchema, RECORD_COLUMNS, sendSpreadsheet } from '../exports/data-exports.js';
 import { listFactorNames, listFactors, listLand, listRecords, recordExportRows } from './records-repository.js';
@@ -16,20 +17,39 @@ const versionedRecordSchema = recordSchema.extend({ version: z.number().int().po
 const blockSchema = z.object({ rows: z.array(versionedRecordSchema).min(1).max(5000, 'Send at most 5,000 rows at once') });
 const keySchema = recordSchema.pick({ farmId: true, seasonId: true, itemId: true });
 
+/** A farm-scoped read (`?farms=` narrows it; a member gets only their own farm whatever they send). */
+function farmListRoute(path: string, list: (reader: SessionUser, farmIds: number[] | undefined) => Promise<unknown>): RouteDef {
+  return {
+    method: 'get',
+    path,
+    access: 'signed-in',
+    cache: true,
+    handler: async (req, res) => res.json(await list(req.user!, parse(listQuery, req.query, 'query').farms)),
+  };
+}
+
+/**
+ * An editor's write of what the body names (farm, season and item or factor), not an id in the path:
+ * PUT answers what the service returns, DELETE answers 204. The service checks, writes and audits.
+ */
+function keyedWriteRoute<S extends z.ZodType>(method: 'put' | 'delete', path: string, schema: S, write: (body: z.output<S>, actor: SessionUser) => Promise<unknown>): RouteDef {
+  return {
+    method,
+    path,
+    access: ACCESS.dataEdit,
+    handler: async (req, res) => {
+      const result = await write(parse(schema, req.body, 'body'), req.user!);
+      if (method === 'delete') res.status(204).end();
+      else res.json(result);
+    },
+  };
+}
+
 /** `/api/records`: reads narrow a member to their own farm in the repository, whatever filter they send. */
 export function recordsRoutes(ctx: AppContext): RouteDef[] {
   return [
-    {
-      // Every fixed factor (land_ha and any other) per farm and season.
-      method: 'get',
-      path: '/factors',
-      access: 'signed-in',
-      cache: true,
-      handler: async (req, res) => {
-        const q = parse(listQuery, req.query, 'query');
-        res.json(await listFactors(ctx.db, req.user!, q.farms));
-      },
-    },
+    // Every fixed factor (land_ha and any other) per farm and season.
+    farmListRoute('/factors', (reader, farmIds) => listFactors(ctx.db, reader, farmIds)),
     {
       // The fixed factors recorded anywhere, with how many farms and seasons have a value: the model form's choices.
       method: 'get',
@@ -38,22 +58,9 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
       cache: true,
       handler: async (req, res) => res.json(await listFactorNames(ctx.db, req.user!)),
     },
-    {
-      // Set one farm's level of one fixed factor in one season (a grid cell).
-      method: 'put',
-      path: '/factors',
-      access: ACCESS.dataEdit,
-      handler: async (req, res) => res.json(await setFactor(ctx.db, parse(factorValueSchema, req.body, 'body'), req.user!)),
-    },
-    {
-      method: 'delete',
-      path: '/factors',
-      access: ACCESS.dataEdit,
-      handler: async (req, res) => {
-        await deleteFactor(ctx.db, parse(factorKeySchema, req.body, 'body'), req.user!);
-        res.status(204).end();
-      },
-    },
+    // Set one farm's level of one fixed factor in one season (a grid cell).
+    keyedWriteRoute('put', '/factors', factorValueSchema, (value, actor) => setFactor(ctx.db, value, actor)),
+    keyedWriteRoute('delete', '/factors', factorKeySchema, (key, actor) => deleteFactor(ctx.db, key, actor)),
     {
       method: 'get',
       path: '/',
@@ -75,37 +82,10 @@ export function recordsRoutes(ctx: AppContext): RouteDef[] {
         await sendSpreadsheet(res, format, await recordExportRows(ctx.db, req.user!, only), RECORD_COLUMNS, 'farm-records', { decimalMark: (await getSettings(ctx.db)).decimalMark });
       },
     },
-    {
-      method: 'get',
-      path: '/land',
-      access: 'signed-in',
-      cache: true,
-      handler: async (req, res) => {
-        const q = parse(listQuery, req.query, 'query');
-        res.json(await listLand(ctx.db, req.user!, q.farms));
-      },
-    },
-    {
-      // Insert or replace quantities: a cell edited in the grid or a pasted block, all or nothing.
-      method: 'put',
-      path: '/',
-      access: ACCESS.dataEdit,
-      handler: async (req, res) => res.json(await saveRecords(ctx.db, parse(blockSchema, req.body, 'body').rows, req.user!)),
-    },
-    {
-      method: 'delete',
-      path: '/',
-      access: ACCESS.dataEdit,
-      handler: async (req, res) => {
-        await deleteRecord(ctx.db, parse(keySchema, req.body, 'body'), req.user!);
-        res.status(204).end();
-      },
-    },
-    {
-      method: 'put',
-      path: '/land',
-      access: ACCESS.dataEdit,
-      handler: async (req, res) => res.json(await setLand(ctx.db, parse(landSchema, req.body, 'body'), req.user!)),
-    },
+    farmListRoute('/land', (reader, farmIds) => listLand(ctx.db, reader, farmIds)),
+    // Insert or replace quantities: a cell edited in the grid or a pasted block, all or nothing.
+    keyedWriteRoute('put', '/', blockSchema, (block, actor) => saveRecords(ctx.db, block.rows, actor)),
+    keyedWriteRoute('delete', '/', keySchema, (key, actor) => deleteRecord(ctx.db, key, actor)),
+    keyedWriteRoute('put', '/land', landSchema, (land, actor) => setLand(ctx.db, land, actor)),
   ];
 }
