@@ -4,7 +4,7 @@ import type { RouteDef } from '../core/routes.js';
 import { AppError } from '../core/app-error.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
-import { idParamSchema } from '../../shared/ids.js';
+import { idOf } from '../core/write-routes.js';
 import { bookingInputSchema, bookingRoundSchema } from '../../shared/booking-types.js';
 import { cancelBooking, memberBookings, memberOffer, placeBooking, saveRound, startCheckout, type BookingDeps } from './bookings-service.js';
 import { handlePaymentEvent } from './payment-events.js';
@@ -23,7 +23,6 @@ const exportQuery = z.strictObject({ format: z.enum(['csv', 'xlsx'], { error: 'C
  */
 export function bookingsRoutes(ctx: AppContext): RouteDef[] {
   const deps = () => bookingDeps(ctx);
-  const id = (params: unknown) => Number(parse(idParamSchema, params, 'params').id);
   return [
     {
       method: 'get',
@@ -50,33 +49,33 @@ export function bookingsRoutes(ctx: AppContext): RouteDef[] {
       access: ACCESS.bookingRounds,
       handler: async (req, res) => res.json(await saveRound(deps(), parse(bookingRoundSchema, req.body, 'body'), req.user!.id)),
     },
-    { method: 'get', path: '/rounds/:id/report', access: ACCESS.bookingRounds, handler: async (req, res) => res.json(await bookingReport(ctx.db, id(req.params))) },
+    { method: 'get', path: '/rounds/:id/report', access: ACCESS.bookingRounds, handler: async (req, res) => res.json(await bookingReport(ctx.db, idOf(req))) },
     {
       method: 'get',
       path: '/rounds/:id/report/export',
       access: ACCESS.bookingRounds,
       handler: async (req, res) => {
         const { format } = parse(exportQuery, req.query, 'query');
-        const file = await bookingReportExport(ctx.db, id(req.params), format);
+        const file = await bookingReportExport(ctx.db, idOf(req), format);
         res.setHeader('Content-Type', file.type);
         res.setHeader('Content-Disposition', `attachment; filename="${file.name}"`);
         res.send(file.body);
       },
     },
-    { method: 'get', path: '/rounds/:id/bookings', access: ACCESS.bookingRounds, handler: async (req, res) => res.json(await roundBookingList(ctx.db, id(req.params))) },
-    { method: 'get', path: '/rounds/:id/nutrients', access: ACCESS.budget, handler: async (req, res) => res.json(await nutrientComparison(ctx.db, id(req.params))) },
+    { method: 'get', path: '/rounds/:id/bookings', access: ACCESS.bookingRounds, handler: async (req, res) => res.json(await roundBookingList(ctx.db, idOf(req))) },
+    { method: 'get', path: '/rounds/:id/nutrients', access: ACCESS.budget, handler: async (req, res) => res.json(await nutrientComparison(ctx.db, idOf(req))) },
     // Member routes with an id last, so `/rounds` is never taken for a booking id.
     {
       method: 'put',
       path: '/:id',
       access: ACCESS.myFarm,
       handler: async (req, res) => {
-        const bookingId = id(req.params);
+        const bookingId = idOf(req);
         res.json(await placeBooking(deps(), req.user!, parse(bookingInputSchema, req.body, 'body'), bookingId));
       },
     },
-    { method: 'post', path: '/:id/checkout', access: ACCESS.myFarm, handler: async (req, res) => res.status(201).json(await startCheckout(deps(), req.user!, id(req.params))) },
-    { method: 'post', path: '/:id/cancel', access: ACCESS.myFarm, handler: async (req, res) => res.json(await cancelBooking(deps(), req.user!, id(req.params))) },
+    { method: 'post', path: '/:id/checkout', access: ACCESS.myFarm, handler: async (req, res) => res.status(201).json(await startCheckout(deps(), req.user!, idOf(req))) },
+    { method: 'post', path: '/:id/cancel', access: ACCESS.myFarm, handler: async (req, res) => res.json(await cancelBooking(deps(), req.user!, idOf(req))) },
   ];
 }
 

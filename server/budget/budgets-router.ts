@@ -1,10 +1,9 @@
 import { ACCESS } from '../../shared/roles.js';
 import type { Request, Response } from 'express';
-import { idParamSchema } from '../../shared/schemas.js';
 import type { AppContext } from '../context.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
-import { createRoute, deleteRoute, replaceRoute } from '../core/write-routes.js';
+import { createRoute, deleteRoute, idOf, replaceRoute } from '../core/write-routes.js';
 import { budgetExportQuerySchema, budgetInputSchema, budgetViewQuerySchema, fertiliserProductSchema } from '../../shared/budget-schemas.js';
 import { budgetCsv, budgetXlsx } from './budget-export.js';
 import { budgetForExport, createBudget, deleteBudget, getBudget, listBudgets, previewBudget, unitSystemOf, updateBudget } from './budget-service.js';
@@ -56,7 +55,7 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id',
       access: READ,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         res.json(await getBudget(ctx.db, id, await unitsOf(req)));
       },
     },
@@ -65,7 +64,7 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id',
       access: WRITE,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         const input = parse(budgetInputSchema, req.body, 'body');
         res.json(await updateBudget(ctx.db, id, input, req.user!.id, await unitsOf(req)));
       },
@@ -76,7 +75,7 @@ export function budgetsRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id/export',
       access: READ,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         const q = parse(budgetExportQuerySchema, req.query, 'query');
         const { header, result } = await budgetForExport(ctx.db, id, await unitSystemOf(ctx.db, q.units));
         if (q.format === 'csv') attach(res, 'text/csv; charset=utf-8', fileName(id, header.name, 'csv'), budgetCsv(header, result));

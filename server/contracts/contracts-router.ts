@@ -1,10 +1,9 @@
 import { z } from 'zod';
 import { idListSchema } from '../../shared/ids.js';
 import { CONTRACT_STATUSES, contractSchema } from '../../shared/contract-schemas.js';
-import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
-import { createRoute, deleteRoute, replaceRoute, versionField } from '../core/write-routes.js';
+import { createRoute, deleteRoute, idOf, replaceRoute, versionField } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { ACCESS } from '../../shared/roles.js';
 import { contractedState, myContracts, startContracted } from './contracted-service.js';
@@ -43,7 +42,7 @@ export function contractsRoutes(ctx: AppContext): RouteDef[] {
       path: '/outlooks/:id/evaluation',
       access: EVALUATE,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         res.json(await contractedState(ctx.db, id));
       },
     },
@@ -53,7 +52,7 @@ export function contractsRoutes(ctx: AppContext): RouteDef[] {
       path: '/outlooks/:id/evaluation',
       access: EVALUATE,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         res.status(202).json(await startContracted(ctx.db, id));
       },
     },
@@ -73,7 +72,7 @@ export function contractsRoutes(ctx: AppContext): RouteDef[] {
       access: READ,
       cache: true,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         res.json(await getContract(ctx.db, id, req.user!));
       },
     },

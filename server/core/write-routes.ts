@@ -10,7 +10,8 @@ import { idParamSchema } from '../../shared/schemas.js';
 import type { Access, RouteDef } from './routes.js';
 import { parse } from './validate.js';
 
-const idOf = (req: Request): number => parse(idParamSchema, req.params, 'params').id;
+/** The `:id` of the path, parsed (a 400 naming `params.id` when it is not a record id). Every router reads ids with it. */
+export const idOf = (req: Pick<Request, 'params'>): number => parse(idParamSchema, req.params, 'params').id;
 
 export function createRoute<S extends z.ZodType>(access: Access, schema: S, create: (body: z.output<S>, actorUserId: number) => Promise<unknown>): RouteDef {
   return {

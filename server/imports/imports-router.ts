@@ -2,7 +2,7 @@ import { ACCESS } from '../../shared/roles.js';
 import type { Request, Response } from 'express';
 import multer from 'multer';
 import { z } from 'zod';
-import { idParamSchema } from '../../shared/schemas.js';
+import { idOf } from '../core/write-routes.js';
 import { DECIMAL_MARKS } from '../../shared/cell-parsers.js';
 import { AppError } from '../core/app-error.js';
 import type { RouteDef } from '../core/routes.js';
@@ -109,7 +109,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id',
       access: ACCESS.imports,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         res.json(await getImport(ctx, jobs, id));
       },
     },
@@ -118,7 +118,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id/validate',
       access: ACCESS.dataEdit,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         const body = parse(validateSchema, req.body, 'body');
         res.json(await revalidateImport(ctx, jobs, id, body));
       },
@@ -128,7 +128,7 @@ export function importsRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id/commit',
       access: ACCESS.dataEdit,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         const { onExisting, acceptWarnings } = parse(commitSchema, req.body, 'body');
         const log = (err: unknown) => req.log?.error({ err, importId: id }, 'import commit failed');
         const view = await startCommit(ctx, jobs, id, onExisting, req.user!.id, log, acceptWarnings ?? false);

@@ -1,9 +1,8 @@
 import { ACCESS } from '../../shared/roles.js';
 import { evaluateQuerySchema, modelCreateSchema } from '../../shared/model-schemas.js';
-import { idParamSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
-import { createRoute, deleteRoute } from '../core/write-routes.js';
+import { createRoute, deleteRoute, idOf } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { cancelRun, createModel, deleteModel, evaluateRun, getModel, getRun, getRunStatus, getRunWithAuthor, listModels, rerun, startRun } from './models-service.js';
 
@@ -23,7 +22,7 @@ export function modelsRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/:id',
       access: READ,
-      handler: async (req, res) => res.json(await getModel(ctx.db, parse(idParamSchema, req.params, 'params').id)),
+      handler: async (req, res) => res.json(await getModel(ctx.db, idOf(req))),
     },
     deleteRoute(WRITE, (id, actor) => deleteModel(ctx.db, id, actor)),
     {
@@ -31,7 +30,7 @@ export function modelsRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id/runs',
       access: WRITE,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         const run = await startRun(ctx.db, id, req.user!.id);
         ctx.jobs?.poke();
         res.status(202).json(run);
@@ -46,20 +45,20 @@ export function modelRunsRoutes(ctx: AppContext): RouteDef[] {
       method: 'get',
       path: '/:id',
       access: READ,
-      handler: async (req, res) => res.json(await getRunWithAuthor(ctx.db, parse(idParamSchema, req.params, 'params').id)),
+      handler: async (req, res) => res.json(await getRunWithAuthor(ctx.db, idOf(req))),
     },
     {
       method: 'get',
       path: '/:id/status',
       access: READ,
-      handler: async (req, res) => res.json(await getRunStatus(ctx.db, parse(idParamSchema, req.params, 'params').id)),
+      handler: async (req, res) => res.json(await getRunStatus(ctx.db, idOf(req))),
     },
     {
       method: 'get',
       path: '/:id/dataset',
       access: READ,
       handler: async (req, res) => {
-        const run = await getRun(ctx.db, parse(idParamSchema, req.params, 'params').id, true);
+        const run = await getRun(ctx.db, idOf(req), true);
         res.json({ dataHash: run.dataHash, dataset: (run as { dataset: unknown }).dataset });
       },
     },
@@ -67,14 +66,14 @@ export function modelRunsRoutes(ctx: AppContext): RouteDef[] {
       method: 'post',
       path: '/:id/cancel',
       access: WRITE,
-      handler: async (req, res) => res.json(await cancelRun(ctx.db, parse(idParamSchema, req.params, 'params').id, req.user!.id)),
+      handler: async (req, res) => res.json(await cancelRun(ctx.db, idOf(req), req.user!.id)),
     },
     {
       method: 'post',
       path: '/:id/rerun',
       access: WRITE,
       handler: async (req, res) => {
-        const run = await rerun(ctx.db, parse(idParamSchema, req.params, 'params').id, req.user!.id);
+        const run = await rerun(ctx.db, idOf(req), req.user!.id);
         ctx.jobs?.poke();
         res.status(202).json(run);
       },
@@ -85,7 +84,7 @@ export function modelRunsRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id/evaluate',
       access: READ,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         const q = parse(evaluateQuerySchema, req.query, 'query');
         res.json(await evaluateRun(ctx.db, id, { prices: pairs(q.prices), fixed: pairs(q.fixed) }));
       },

@@ -1,5 +1,5 @@
 import { ACCESS } from '../../shared/roles.js';
-import { idParamSchema } from '../../shared/schemas.js';
+import { idOf } from '../core/write-routes.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
@@ -28,7 +28,6 @@ const DELIVERY_LOG = ACCESS.outlookLog;
 
 /** `/api/outlooks`: drafts, expectations, projection, publishing, versions, delivery log, accountability. */
 export function outlookRoutes(ctx: AppContext): RouteDef[] {
-  const id = (req: { params: unknown }) => parse(idParamSchema, req.params, 'params').id;
   return [
     { method: 'get', path: '/', access: OUTLOOK_READ, cache: true, handler: async (_req, res) => res.json(await listOutlooks(ctx.db)) },
     {
@@ -53,18 +52,18 @@ export function outlookRoutes(ctx: AppContext): RouteDef[] {
       access: OUTLOOK_READ,
       handler: async (req, res) => res.json(await fullVersion(ctx.db, parse(versionParamSchema, req.params, 'params').versionId)),
     },
-    { method: 'get', path: '/:id', access: OUTLOOK_READ, handler: async (req, res) => res.json(await getOutlook(ctx.db, id(req))) },
+    { method: 'get', path: '/:id', access: OUTLOOK_READ, handler: async (req, res) => res.json(await getOutlook(ctx.db, idOf(req))) },
     {
       method: 'patch',
       path: '/:id',
       access: OUTLOOK_WRITE,
-      handler: async (req, res) => res.json(await patchOutlook(ctx.db, id(req), parse(outlookPatchSchema, req.body, 'body'), req.user!.id)),
+      handler: async (req, res) => res.json(await patchOutlook(ctx.db, idOf(req), parse(outlookPatchSchema, req.body, 'body'), req.user!.id)),
     },
     {
       method: 'put',
       path: '/:id/expectations',
       access: OUTLOOK_WRITE,
-      handler: async (req, res) => res.json(await setExpectations(ctx.db, id(req), parse(expectationsBodySchema, req.body, 'body').items, req.user!.id)),
+      handler: async (req, res) => res.json(await setExpectations(ctx.db, idOf(req), parse(expectationsBodySchema, req.body, 'body').items, req.user!.id)),
     },
     {
       // Every method's value and past errors for one item, to choose from.
@@ -72,7 +71,7 @@ export function outlookRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id/expectation-methods',
       access: OUTLOOK_READ,
       handler: async (req, res) => {
-        const season = await outlookSeason(ctx.db, id(req));
+        const season = await outlookSeason(ctx.db, idOf(req));
         res.json(await compareMethods(ctx.db, parse(methodCompareQuerySchema, req.query, 'query').item, season));
       },
     },
@@ -81,27 +80,27 @@ export function outlookRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id/projection',
       access: OUTLOOK_WRITE,
       handler: async (req, res) => {
-        const started = await startProjection(ctx.db, id(req), req.user!.id);
+        const started = await startProjection(ctx.db, idOf(req), req.user!.id);
         ctx.jobs?.poke();
         res.status(202).json(started);
       },
     },
-    { method: 'get', path: '/:id/projection', access: OUTLOOK_READ, handler: async (req, res) => res.json(await getProjection(ctx.db, id(req))) },
+    { method: 'get', path: '/:id/projection', access: OUTLOOK_READ, handler: async (req, res) => res.json(await getProjection(ctx.db, idOf(req))) },
     {
       method: 'post',
       path: '/:id/publish',
       access: OUTLOOK_WRITE,
       handler: async (req, res) => {
         const body = parse(publishSchema, req.body, 'body');
-        res.status(201).json(await publishOutlook(ctx.db, ctx.config, id(req), body, { id: req.user!.id, name: req.user!.name }));
+        res.status(201).json(await publishOutlook(ctx.db, ctx.config, idOf(req), body, { id: req.user!.id, name: req.user!.name }));
       },
     },
-    { method: 'get', path: '/:id/versions', access: OUTLOOK_READ, handler: async (req, res) => res.json(await listVersions(ctx.db, id(req))) },
+    { method: 'get', path: '/:id/versions', access: OUTLOOK_READ, handler: async (req, res) => res.json(await listVersions(ctx.db, idOf(req))) },
     {
       method: 'get',
       path: '/:id/deliveries',
       access: DELIVERY_LOG,
-      handler: async (req, res) => res.json(await deliveries(ctx.db, id(req), parse(deliveriesQuerySchema, req.query, 'query').version)),
+      handler: async (req, res) => res.json(await deliveries(ctx.db, idOf(req), parse(deliveriesQuerySchema, req.query, 'query').version)),
     },
     {
       method: 'post',
