@@ -2,13 +2,14 @@
  * Contract reads. A member's queries are held to their own farm here, whatever filter they send
  * (`reader`, through core/farm-scope.ts); server-side callers without a reader read every farm.
  */
-import { and, asc, desc, eq, inArray, sql, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, type SQL } from 'drizzle-orm';
 import type { ContractRow, ContractStatus } from '../../shared/contract-schemas.js';
 import { priceFromCents } from '../../shared/contract-schemas.js';
 import { AppError } from '../core/app-error.js';
 import type { Db } from '../db/client.js';
 import { contracts, farmRecords, farms, farmSeasonFactors, items, jobs, seasons } from '../db/schema/index.js';
 import { readableFarmIds, type Reader } from '../core/farm-scope.js';
+import { inAny, onlyIn } from '../db/conditions.js';
 
 export interface ContractFilter {
   ids?: number[];
@@ -40,13 +41,13 @@ const columns = {
 };
 
 function where(f: ContractFilter): SQL | undefined {
-  const parts: SQL[] = [];
-  if (f.ids) parts.push(f.ids.length ? inArray(contracts.id, f.ids) : sql`false`);
-  if (f.farmIds) parts.push(f.farmIds.length ? inArray(contracts.farmId, f.farmIds) : sql`false`);
-  if (f.seasonIds?.length) parts.push(inArray(contracts.seasonId, f.seasonIds));
-  if (f.itemIds?.length) parts.push(inArray(contracts.itemId, f.itemIds));
-  if (f.statuses) parts.push(f.statuses.length ? inArray(contracts.status, [...f.statuses]) : sql`false`);
-  return parts.length ? and(...parts) : undefined;
+  return and(
+    onlyIn(contracts.id, f.ids),
+    onlyIn(contracts.farmId, f.farmIds),
+    inAny(contracts.seasonId, f.seasonIds),
+    inAny(contracts.itemId, f.itemIds),
+    onlyIn(contracts.status, f.statuses),
+  );
 }
 
 function toRow({ priceCents, ...r }: { priceCents: number } & Omit<ContractRow, 'price'>): ContractRow {

@@ -5,6 +5,7 @@ import type { NumberCondition, PriceQuery, PriceSortColumn, TextCondition } from
 import type { Db } from '../db/client.js';
 import { deliveryPoints, items, priceIndexes, priceIndexValues, priceObservations, seasons } from '../db/schema/index.js';
 import { AppError } from '../core/app-error.js';
+import { inAny, onlyIn } from '../db/conditions.js';
 import type { SeasonPrices } from '../../shared/plausibility.js';
 
 export interface PriceFilter {
@@ -81,11 +82,12 @@ const rowColumns = {
 };
 
 function where(f: PriceFilter): SQL | undefined {
-  const parts: SQL[] = [];
-  if (f.ids) parts.push(f.ids.length ? inArray(priceObservations.id, f.ids) : sql`false`);
-  if (f.itemIds?.length) parts.push(inArray(priceObservations.itemId, f.itemIds));
-  if (f.seasonIds?.length) parts.push(inArray(priceObservations.seasonId, f.seasonIds));
-  if (f.deliveryPointIds?.length) parts.push(inArray(priceObservations.deliveryPointId, f.deliveryPointIds));
+  const parts: (SQL | undefined)[] = [
+    onlyIn(priceObservations.id, f.ids),
+    inAny(priceObservations.itemId, f.itemIds),
+    inAny(priceObservations.seasonId, f.seasonIds),
+    inAny(priceObservations.deliveryPointId, f.deliveryPointIds),
+  ];
   // Every word of the search somewhere in the row (as the grid's own quick filter did).
   for (const word of (f.search ?? '').split(/\s+/).filter(Boolean).slice(0, 12)) {
     const like = `%${likeText(word)}%`;
@@ -99,7 +101,7 @@ function where(f: PriceFilter): SQL | undefined {
   if (f.source) parts.push(textCondition(priceObservations.source, f.source));
   if (f.currency) parts.push(textCondition(priceObservations.currency, f.currency));
   if (f.price) parts.push(numberCondition(priceObservations.price, f.price));
-  return parts.length ? and(...parts) : undefined;
+  return and(...parts);
 }
 
 /** The table's own order: season (oldest first), item, delivery point, date; the id settles ties so pages never overlap. */
@@ -251,9 +253,9 @@ export async function priceSeries(db: Db, itemIds: number[], deflatorId?: number
       mean: sql<number>`avg(${priceObservations.price})`.mapWith(Number),
     })
     .from(priceObservations)
-    .where(itemIds.length ? inArray(priceObservations.itemId, itemIds) : undefined)
+    .where(inAny(priceObservations.itemId, itemIds))
     .groupBy(priceObservations.itemId, priceObservations.seasonId, priceObservations.currency);
-  const itemRows = await db.select().from(items).where(itemIds.length ? inArray(items.id, itemIds) : undefined).orderBy(asc(items.id));
+  const itemRows = await db.select().from(items).where(inAny(items.id, itemIds)).orderBy(asc(items.id));
   let deflator: PriceSeries['deflator'] = null;
   let index = new Map<number, number>();
   if (deflatorId) {

@@ -3,13 +3,14 @@
  * farm and season). Every read takes the reader and narrows a member to their own farm
  * (core/farm-scope.ts); writes are the planner's and run inside the service's transaction.
  */
-import { and, asc, countDistinct, eq, gt, inArray, sql, type SQL } from 'drizzle-orm';
+import { and, asc, countDistinct, eq, gt, sql } from 'drizzle-orm';
 import type { FarmRecordRow } from '../../shared/api-types.js';
 import type { z } from 'zod';
 import type { factorValueSchema, recordSchema } from '../../shared/data-schemas.js';
 import type { Db } from '../db/client.js';
 import { farmRecords, farms, farmSeasonFactors, items, seasons } from '../db/schema/index.js';
 import { readableFarmIds, type Reader } from '../core/farm-scope.js';
+import { inAny, onlyIn } from '../db/conditions.js';
 import type { SheetRow } from '../exports/spreadsheet-writers.js';
 import type { QuantityHistory } from '../../shared/plausibility.js';
 
@@ -21,9 +22,6 @@ export interface RecordFilter {
 export async function listRecords(db: Db, reader: Reader, filter: RecordFilter = {}): Promise<FarmRecordRow[]> {
   const farmIds = readableFarmIds(reader, filter.farmIds);
   if (farmIds && farmIds.length === 0) return [];
-  const parts: SQL[] = [];
-  if (farmIds) parts.push(inArray(farmRecords.farmId, farmIds));
-  if (filter.seasonIds?.length) parts.push(inArray(farmRecords.seasonId, filter.seasonIds));
   return db
     .select({
       farmId: farmRecords.farmId,
@@ -42,7 +40,7 @@ export async function listRecords(db: Db, reader: Reader, filter: RecordFilter =
     .innerJoin(farms, eq(farms.id, farmRecords.farmId))
     .innerJoin(seasons, eq(seasons.id, farmRecords.seasonId))
     .innerJoin(items, eq(items.id, farmRecords.itemId))
-    .where(parts.length ? and(...parts) : undefined)
+    .where(and(onlyIn(farmRecords.farmId, farmIds), inAny(farmRecords.seasonId, filter.seasonIds)))
     .orderBy(asc(farms.code), asc(seasons.startYear), asc(items.id));
 }
 
@@ -54,7 +52,7 @@ export async function listLand(db: Db, reader: Reader, requestedFarmIds?: number
     .from(farmSeasonFactors)
     .innerJoin(farms, eq(farms.id, farmSeasonFactors.farmId))
     .innerJoin(seasons, eq(seasons.id, farmSeasonFactors.seasonId))
-    .where(and(eq(farmSeasonFactors.factor, 'land_ha'), farmIds ? inArray(farmSeasonFactors.farmId, farmIds) : undefined))
+    .where(and(eq(farmSeasonFactors.factor, 'land_ha'), onlyIn(farmSeasonFactors.farmId, farmIds)))
     .orderBy(asc(farms.code), asc(seasons.startYear));
 }
 
@@ -67,7 +65,7 @@ export async function listFactors(db: Db, reader: Reader, requestedFarmIds?: num
     .from(farmSeasonFactors)
     .innerJoin(farms, eq(farms.id, farmSeasonFactors.farmId))
     .innerJoin(seasons, eq(seasons.id, farmSeasonFactors.seasonId))
-    .where(farmIds ? inArray(farmSeasonFactors.farmId, farmIds) : undefined)
+    .where(onlyIn(farmSeasonFactors.farmId, farmIds))
     .orderBy(asc(farms.code), asc(seasons.startYear), asc(farmSeasonFactors.factor));
 }
 
@@ -78,7 +76,7 @@ export async function listFactorNames(db: Db, reader: Reader) {
   return db
     .select({ factor: farmSeasonFactors.factor, farms: countDistinct(farmSeasonFactors.farmId), seasons: countDistinct(farmSeasonFactors.seasonId) })
     .from(farmSeasonFactors)
-    .where(farmIds ? inArray(farmSeasonFactors.farmId, farmIds) : undefined)
+    .where(onlyIn(farmSeasonFactors.farmId, farmIds))
     .groupBy(farmSeasonFactors.factor)
     .orderBy(asc(farmSeasonFactors.factor));
 }
@@ -96,13 +94,13 @@ export async function recordExportRows(db: Db, reader: Reader, requestedFarmIds?
     .innerJoin(farms, eq(farms.id, farmRecords.farmId))
     .innerJoin(seasons, eq(seasons.id, farmRecords.seasonId))
     .innerJoin(items, eq(items.id, farmRecords.itemId))
-    .where(farmIds ? inArray(farmRecords.farmId, farmIds) : undefined);
+    .where(onlyIn(farmRecords.farmId, farmIds));
   const land = await db
     .select({ farmId: farmSeasonFactors.farmId, farm: farms.code, seasonId: farmSeasonFactors.seasonId, season: seasons.label, year: seasons.startYear, value: farmSeasonFactors.value })
     .from(farmSeasonFactors)
     .innerJoin(farms, eq(farms.id, farmSeasonFactors.farmId))
     .innerJoin(seasons, eq(seasons.id, farmSeasonFactors.seasonId))
-    .where(and(eq(farmSeasonFactors.factor, 'land_ha'), farmIds ? inArray(farmSeasonFactors.farmId, farmIds) : undefined));
+    .where(and(eq(farmSeasonFactors.factor, 'land_ha'), onlyIn(farmSeasonFactors.farmId, farmIds)));
   const landOf = new Map(land.map((l) => [`${l.farmId}|${l.seasonId}`, l]));
   type Out = SheetRow & { farm: string; year: number; itemId: number };
   const out: Out[] = records.map((r) => ({ farm: r.farm, season: r.season, year: r.year, itemId: r.itemId, item: r.item, quantity: r.quantity, unit: r.unit, landHa: landOf.get(`${r.farmId}|${r.seasonId}`)?.value ?? null }));
