@@ -2,7 +2,8 @@
  * The write routes most features share, as data: create from a body (`POST /`, 201 with what the
  * service returns), replace by id (`PUT /:id`) and delete by id (`DELETE /:id`, 204). Each parses
  * the id and the body with `parse` (a 400 naming the field) and hands the service the caller's user
- * id for the audit; the service does the rest (transaction, version check, audit).
+ * id for the audit; the service does the rest (transaction, version check, audit). `actionRoute` and
+ * `jobRoute` are the `POST /:id/<action>` routes (a resent invitation, a cancelled or queued run).
  */
 import type { Request } from 'express';
 import { z } from 'zod';
@@ -46,6 +47,33 @@ export function deleteRoute(access: Access, remove: (id: number, actorUserId: nu
       res.status(204).end();
     },
   };
+}
+
+/**
+ * `POST <path>` on one record (the path names `:id`): the service gets the id and the caller's user
+ * id, and the answer is `status` with what it returns (202 where the work goes on after the answer).
+ */
+export function actionRoute(access: Access, path: string, act: (id: number, actorUserId: number) => Promise<unknown>, status: 200 | 202 = 200): RouteDef {
+  return {
+    method: 'post',
+    path,
+    access,
+    handler: async (req, res) => res.status(status).json(await act(idOf(req), req.user!.id)),
+  };
+}
+
+/** An `actionRoute` whose service queues a job (a fit, a projection): the job runner is woken at once, and the answer is 202. */
+export function jobRoute(jobs: { poke(): void } | undefined, access: Access, path: string, start: (id: number, actorUserId: number) => Promise<unknown>): RouteDef {
+  return actionRoute(
+    access,
+    path,
+    async (id, actor) => {
+      const started = await start(id, actor);
+      jobs?.poke();
+      return started;
+    },
+    202,
+  );
 }
 
 /** The `version` an edit names (the one it started from), so a stale edit is refused with 409 `stale`. */

@@ -2,7 +2,7 @@ import { ACCESS } from '../../shared/roles.js';
 import { evaluateQuerySchema, modelCreateSchema } from '../../shared/model-schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
-import { createRoute, deleteRoute, idOf } from '../core/write-routes.js';
+import { actionRoute, createRoute, deleteRoute, idOf, jobRoute } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { cancelRun, createModel, deleteModel, evaluateRun, getModel, getRun, getRunStatus, getRunWithAuthor, listModels, rerun, startRun } from './models-service.js';
 
@@ -25,17 +25,7 @@ export function modelsRoutes(ctx: AppContext): RouteDef[] {
       handler: async (req, res) => res.json(await getModel(ctx.db, idOf(req))),
     },
     deleteRoute(WRITE, (id, actor) => deleteModel(ctx.db, id, actor)),
-    {
-      method: 'post',
-      path: '/:id/runs',
-      access: WRITE,
-      handler: async (req, res) => {
-        const id = idOf(req);
-        const run = await startRun(ctx.db, id, req.user!.id);
-        ctx.jobs?.poke();
-        res.status(202).json(run);
-      },
-    },
+    jobRoute(ctx.jobs, WRITE, '/:id/runs', (id, actor) => startRun(ctx.db, id, actor)),
   ];
 }
 
@@ -62,22 +52,8 @@ export function modelRunsRoutes(ctx: AppContext): RouteDef[] {
         res.json({ dataHash: run.dataHash, dataset: (run as { dataset: unknown }).dataset });
       },
     },
-    {
-      method: 'post',
-      path: '/:id/cancel',
-      access: WRITE,
-      handler: async (req, res) => res.json(await cancelRun(ctx.db, idOf(req), req.user!.id)),
-    },
-    {
-      method: 'post',
-      path: '/:id/rerun',
-      access: WRITE,
-      handler: async (req, res) => {
-        const run = await rerun(ctx.db, idOf(req), req.user!.id);
-        ctx.jobs?.poke();
-        res.status(202).json(run);
-      },
-    },
+    actionRoute(WRITE, '/:id/cancel', (id, actor) => cancelRun(ctx.db, id, actor)),
+    jobRoute(ctx.jobs, WRITE, '/:id/rerun', (id, actor) => rerun(ctx.db, id, actor)),
     {
       // Netputs, profit and elasticities at any prices and fixed factors (cheap: no fit).
       method: 'get',

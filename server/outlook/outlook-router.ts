@@ -1,5 +1,5 @@
 import { ACCESS } from '../../shared/roles.js';
-import { idOf } from '../core/write-routes.js';
+import { idOf, jobRoute } from '../core/write-routes.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
 import type { AppContext } from '../context.js';
@@ -75,16 +75,7 @@ export function outlookRoutes(ctx: AppContext): RouteDef[] {
         res.json(await compareMethods(ctx.db, parse(methodCompareQuerySchema, req.query, 'query').item, season));
       },
     },
-    {
-      method: 'post',
-      path: '/:id/projection',
-      access: OUTLOOK_WRITE,
-      handler: async (req, res) => {
-        const started = await startProjection(ctx.db, idOf(req), req.user!.id);
-        ctx.jobs?.poke();
-        res.status(202).json(started);
-      },
-    },
+    jobRoute(ctx.jobs, OUTLOOK_WRITE, '/:id/projection', (id, actor) => startProjection(ctx.db, id, actor)),
     { method: 'get', path: '/:id/projection', access: OUTLOOK_READ, handler: async (req, res) => res.json(await getProjection(ctx.db, idOf(req))) },
     {
       method: 'post',

@@ -1,7 +1,8 @@
 import { ACCESS } from '../../shared/roles.js';
-import { idParamSchema, invitationSchema, userPatchSchema } from '../../shared/schemas.js';
+import { invitationSchema, userPatchSchema } from '../../shared/schemas.js';
 import type { RouteDef } from '../core/routes.js';
 import { parse } from '../core/validate.js';
+import { actionRoute, idOf } from '../core/write-routes.js';
 import type { AppContext } from '../context.js';
 import { inviteUser, listUsers, resendInvitation, sendResetLink, updateUser } from './users-service.js';
 
@@ -22,28 +23,12 @@ export function usersRoutes(ctx: AppContext): RouteDef[] {
       path: '/:id',
       access: ACCESS.users,
       handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
+        const id = idOf(req);
         const body = parse(userPatchSchema, req.body, 'body');
         res.json(await updateUser(ctx.db, id, body, req.user!.id));
       },
     },
-    {
-      method: 'post',
-      path: '/:id/password-reset',
-      access: ACCESS.users,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        res.status(202).json(await sendResetLink(ctx, id, req.user!.id));
-      },
-    },
-    {
-      method: 'post',
-      path: '/:id/invitation',
-      access: ACCESS.users,
-      handler: async (req, res) => {
-        const { id } = parse(idParamSchema, req.params, 'params');
-        res.status(202).json(await resendInvitation(ctx, id, req.user!.id));
-      },
-    },
+    actionRoute(ACCESS.users, '/:id/password-reset', (id, actor) => sendResetLink(ctx, id, actor), 202),
+    actionRoute(ACCESS.users, '/:id/invitation', (id, actor) => resendInvitation(ctx, id, actor), 202),
   ];
 }
