@@ -189,7 +189,7 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
   } catch {
     throw new EstimationInputError('the residual covariance is singular: some netput is fitted exactly (an equation is an identity of the others?)');
   }
-  const logLikelihood = (-T / 2) * (n * Math.log(2 * Math.PI) + logDet + n);
+  const logLikelihood = systemLogLikelihood(T, n, logDet);
 
   // Fitted netputs are the data less the residuals (the estimating equations are the netput equations).
   const checks = fitChecks({
@@ -213,10 +213,7 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
     sigma,
     residualCorrelation: covarianceToCorrelation(sigma),
     equations: eqFits,
-    logLikelihood,
-    parameterCount: k,
-    aic: -2 * logLikelihood + 2 * k,
-    bic: -2 * logLikelihood + k * Math.log(T),
+    ...likelihoodFigures(logLikelihood, k, T),
     iterations,
     converged,
     seasonYears: { first: Math.min(...ds.seasonYears), last: Math.max(...ds.seasonYears) },
@@ -225,6 +222,16 @@ export function fitProfitFunction(ds: NetputDataset, options: FitOptions = {}): 
     ...checks,
     warnings,
   };
+}
+
+/** Gaussian log-likelihood of an n-equation system over T observations, from the log-determinant of its Σ̂. */
+export function systemLogLikelihood(T: number, n: number, logDet: number): number {
+  return (-T / 2) * (n * Math.log(2 * Math.PI) + logDet + n);
+}
+
+/** A fit's log-likelihood with its parameter count and information criteria (AIC, BIC over T observations), in FitResult's order. */
+export function likelihoodFigures(logLikelihood: number, k: number, T: number) {
+  return { logLikelihood, parameterCount: k, aic: -2 * logLikelihood + 2 * k, bic: -2 * logLikelihood + k * Math.log(T) };
 }
 
 /** Per-equation statistics and coefficient table of a netput system at θ, given each equation's SSR. */

@@ -422,6 +422,15 @@ export class WelchTable {
 const HIST_BINS = 1024;
 const PILOT = 64;
 
+/**
+ * The histogram bin of a positive draw: 1 to HIST_BINS across the pilot range [lo, lo + HIST_BINS/inv),
+ * 0 below it and HIST_BINS + 1 above it (summarise() sorts the draws exactly when a quantile falls there).
+ */
+function binOf(v: number, lo: number, inv: number): number {
+  const b = ((v - lo) * inv + 1) | 0;
+  return b < 0 ? 0 : b > HIST_BINS + 1 ? HIST_BINS + 1 : b;
+}
+
 interface KernelStats {
   zeros: number;
   sum: number;
@@ -497,13 +506,8 @@ function farmKernel(
     const d = v - shift;
     s1 += d;
     s2 += d * d;
-    if (v === 0) {
-      zeros++;
-      continue;
-    }
-    let b = ((v - lo) * inv + 1) | 0;
-    b = b < 0 ? 0 : b > HIST_BINS + 1 ? HIST_BINS + 1 : b;
-    counts[b]!++;
+    if (v === 0) zeros++;
+    else counts[binOf(v, lo, inv)]!++;
   }
   return { zeros, sum: s1, sumSq: s2, shift, lo, width, fill: null };
 }
@@ -529,7 +533,6 @@ function fastLoop(
   let zeros = 0;
   let s1 = 0;
   let s2 = 0;
-  const top = HIST_BINS + 1;
   const c0 = scaleSign * mu;
   const ca = scaleSign * a;
   // two segments so the pool index needs no modulo
@@ -544,13 +547,8 @@ function fastLoop(
       const d = v - shift;
       s1 += d;
       s2 += d * d;
-      if (v === 0) {
-        zeros++;
-        continue;
-      }
-      let b = ((v - lo) * inv + 1) | 0;
-      b = b < 0 ? 0 : b > top ? top : b;
-      counts[b]!++;
+      if (v === 0) zeros++;
+      else counts[binOf(v, lo, inv)]!++;
     }
   }
   fastAcc[0] = zeros;

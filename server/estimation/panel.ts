@@ -27,7 +27,7 @@ import type { ErrorScale, FarmEffects, ForecastModel, ForecastSpec, SeasonEffect
 import { checkConvexity, imposeConvexity } from './curvature.js';
 import type { NetputDataset } from './dataset.js';
 import { EstimationInputError } from './errors.js';
-import { equationFits, fitChecks, fitProfitFunction, prepareModel, symmetryRestrictions, type FitResult } from './fit.js';
+import { equationFits, fitChecks, fitProfitFunction, likelihoodFigures, prepareModel, symmetryRestrictions, systemLogLikelihood, type FitResult } from './fit.js';
 import { formOf } from './forms.js';
 import { covarianceToCorrelation, dot, inverse, jacobiEigenvalues, mean, symmetricEigen, type Mat } from './linalg.js';
 import type { FormName } from './model.js';
@@ -898,7 +898,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
   for (const v of ch) logDet += Math.log(Math.max(v, 1e-300));
   let logW = 0;
   for (let o = 0; o < N; o++) logW += Math.log(w[o]!);
-  const logLikelihood = (-N / 2) * (n * Math.log(2 * Math.PI) + logDet + n) + (n / 2) * logW;
+  const logLikelihood = systemLogLikelihood(N, n, logDet) + (n / 2) * logW;
   const checks = fitChecks({
     layout,
     form,
@@ -920,10 +920,7 @@ function fitPerHectare(ds: NetputDataset, landIdx: number, options: ForecastMode
     sigma: sigmaEps,
     residualCorrelation: covarianceToCorrelation(sigmaEps),
     equations: eqFits,
-    logLikelihood,
-    parameterCount: k,
-    aic: -2 * logLikelihood + 2 * k,
-    bic: -2 * logLikelihood + k * Math.log(N),
+    ...likelihoodFigures(logLikelihood, k, N),
     iterations: surIterations,
     converged,
     seasonYears: { first: seasons.years[0]!, last: seasons.years[S - 1]! },
