@@ -8,6 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { ContractRow } from '../../shared/contract-schemas.js';
 import { closeValidationPool } from '../../server/imports/validation-pool.js';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
+import { commitImport, uploadImport } from './import-steps.js';
 
 let t: TestApp;
 let planner: Awaited<ReturnType<typeof signedIn>>;
@@ -20,20 +21,8 @@ afterAll(async () => {
   await t.close();
 });
 
-function upload(file: Buffer | string, fileName: string) {
-  return planner.post('/api/imports').field('kind', 'contracts').attach('file', typeof file === 'string' ? Buffer.from(file) : file, fileName);
-}
-
-async function commit(id: number, onExisting: 'update' | 'skip') {
-  const started = await planner.post(`/api/imports/${id}/commit`).send({ onExisting });
-  expect(started.status).toBe(202);
-  for (let i = 0; i < 600; i++) {
-    const res = await planner.get(`/api/imports/${id}`);
-    if (res.body.status !== 'committing') return res;
-    await new Promise((r) => setTimeout(r, 25));
-  }
-  throw new Error('the commit did not finish');
-}
+const upload = (file: Buffer | string, fileName: string) => uploadImport(planner, 'contracts', file, fileName);
+const commit = (id: number, onExisting: 'update' | 'skip') => commitImport(planner, id, onExisting);
 
 const contracts = async () => ((await planner.get('/api/contracts')).body as ContractRow[]).filter((c) => c.reference.startsWith('IMP-'));
 

@@ -13,6 +13,7 @@ import { toCsv, toXlsx } from '../../server/exports/spreadsheet-writers.js';
 import { closeValidationPool } from '../../server/imports/validation-pool.js';
 import { inflatingSheet, replaceParts } from '../fixtures/imports/zip-tools.js';
 import { signedIn, startTestApp, type TestApp } from './test-app.js';
+import { commitImport, uploadImport } from './import-steps.js';
 
 const fixtures = path.join(path.dirname(fileURLToPath(import.meta.url)), '../fixtures/imports');
 const fixture = (name: string) => fs.readFileSync(path.join(fixtures, name));
@@ -28,26 +29,8 @@ afterAll(async () => {
   await t.close();
 });
 
-type Agent = typeof planner;
-
-function upload(a: Agent, kind: string, file: Buffer | string, fileName: string, fields: Record<string, string> = {}) {
-  let req = a.post('/api/imports').field('kind', kind);
-  for (const [k, v] of Object.entries(fields)) req = req.field(k, v);
-  return req.attach('file', typeof file === 'string' ? Buffer.from(file) : file, fileName);
-}
-
-/** Commits and waits for the background work to end; answers the final GET. */
-async function commit(id: number, onExisting: 'update' | 'skip', acceptWarnings = false) {
-  const started = await planner.post(`/api/imports/${id}/commit`).send({ onExisting, acceptWarnings });
-  expect(started.status).toBe(202);
-  expect(started.body).toMatchObject({ id, status: 'committing', progress: { done: 0 } });
-  for (let i = 0; i < 600; i++) {
-    const res = await planner.get(`/api/imports/${id}`);
-    if (res.body.status !== 'committing') return res;
-    await new Promise((r) => setTimeout(r, 25));
-  }
-  throw new Error('the commit did not finish');
-}
+/** Commits as the planner and waits for the background work to end; answers the final GET. */
+const commit = (id: number, onExisting: 'update' | 'skip', acceptWarnings = false) => commitImport(planner, id, onExisting, acceptWarnings);
 
 async function rows(query: ReturnType<typeof sql>) {
   const res = (await t.database.db.execute(query)) as unknown as { rows: Record<string, unknown>[] };
@@ -79,7 +62,7 @@ const demoPrice = (item: string, season: string, point: string, observedOn: stri
 
 describe('POST /api/imports (upload and preview)', () => {
   it('a messy CSV: the preview lists exactly the wrong rows, and the commit is refused', async () => {
-    const res = await upload(planner, 'prices', fixture('messy-prices.csv'), 'messy-prices.csv');
+    const res = await uploadImport(planner, 'prices', fixture('messy-prices.csv'), 'messy-prices.csv');
     expect(res.status).toBe(201);
     expect(res.body).toMatchObject({ kind: 'prices', fileName: 'messy-prices.csv', format: 'csv', status: 'validated', totalRows: 13, validRows: 4, errorCount: 9, errorsNotShown: 0 });
     expect(res.body.columns).toEqual(['Item', 'Season', 'Delivery point', 'Price', 'Unit', 'Currency', 'Source', 'Observed date', 'Notes']);
@@ -104,7 +87,7 @@ describe('POST /api/imports (upload and preview)', () => {
 
   it('the corrected file commits: new rows inserted, rows already there updated, one audit row', async () => {
     const before = await tableCounts();
-    const res = await upload(planner, 'prices', fixture('messy-prices-fixed.csv'), 'messy-prices-fixed.csv');
+    const res = await uploadImport(planner, 'prices', fixture('messy-prices-fixed.csv'), 'messy-prices-fixed.csv');
     expect(res.status).toBe(201);
     expect(res.body).toMatchObject({ errorCount: 0, totalRows: 12, validRows: 12, toWrite: { prices: 12, records: 0, factors: 0 }, existingRows: 5 });
     const done = await commit(res.body.id, 'update');
@@ -128,7 +111,7 @@ describe('POST /api/imports (upload and preview)', () => {
 
   it('a price far from its history is a warning the planner accepts before the commit (issue 15)', async () => {
     const text = ['item;season;delivery point;price;unit;observed on', 'nitrogen;2025/26;Co-op input depot;1214;EUR/kg N;14/11/2025', 'wheat;2025/26;Larkfield terminal;20,41;EUR/t;14/08/2025'].join('\n');
-    const res = await upload(planner, 'prices', text, 'slips.csv', { decimalMark: 'comma' });
+    const res = await uploadImport(planner, 'prices', text, 'slips.csv', { decimalMark: 'comma' });
     expect(res.status).toBe(201);
     expect(res.body).toMatchObject({ errorCount: 0, warningCount: 2, decimalMark: 'comma', delimiter: ';' });
     expect(res.body.warnings.map((w: { row: number; message: string }) => [w.row, w.message.split(' is ')[0]])).toEqual([
@@ -157,12 +140,12 @@ describe('POST /api/imports (upload and preview)', () => {
       `diesel,2019/20,Co-op input depot,${old2 + 0.1},EUR,Corrected list,2020-03-01`,
       'canola,2019/20,Ashby elevator,400,EUR,Late bid,2019-10-15',
     ].join('\n');
-    const first = await upload(planner, 'prices', csv, 'corrections.csv');
+    const first = await uploadImport(planner, 'prices', csv, 'corrections.csv');
     expect(first.body).toMatchObject({ errorCount: 0, existingRows: 2, existing: { prices: 2 } });
     const skipped = await commit(first.body.id, 'skip');
     expect(skipped.body.counts).toEqual({ inserted: 1, updated: 0, skipped: 2 });
     expect(await priceOf('wheat', '2019/20', 'Ashby elevator', '2019-08-15')).toBe(old1);
-    const second = await upload(planner, 'prices', csv, 'corrections.csv');
+    const second = await uploadImport(planner, 'prices', csv, 'corrections.csv');
     expect(second.body.existingRows).toBe(3);
     const updated = await commit(second.body.id, 'update');
     expect(updated.body.counts).toEqual({ inserted: 0, updated: 3, skipped: 0 });
@@ -177,7 +160,7 @@ describe('POST /api/imports (upload and preview)', () => {
     ws.addRow(['F04', '2025/26', 'wheat', 1312.5, 't', 388]);
     ws.addRow(['F04', '2025/26', 'nitrogen', { formula: '50000+1200', result: 51200 }, 'kg N', 388]);
     ws.addRow(['f05', '2025/26', 'Diesel', 28750, 'litres', 402.5]);
-    const res = await upload(planner, 'records', Buffer.from(await wb.xlsx.writeBuffer()), 'records.xlsx');
+    const res = await uploadImport(planner, 'records', Buffer.from(await wb.xlsx.writeBuffer()), 'records.xlsx');
     expect(res.status).toBe(201);
     expect(res.body).toMatchObject({ format: 'xlsx', sheet: 'Records 2025', errorCount: 0, toWrite: { records: 3, factors: 2 } });
     expect(res.body.mapping).toEqual({ farm: 'Farm', season: 'Season', item: 'Item', quantity: 'Quantity', unit: 'Unit', land_ha: 'Land (ha)' });
@@ -201,7 +184,7 @@ describe('POST /api/imports (upload and preview)', () => {
   });
 
   it('a wide observation file becomes co-op prices, farm records and land', async () => {
-    const res = await upload(planner, 'observations', fixture('observations-wide.csv'), 'panel.csv', { deliveryPoint: 'Larkfield terminal' });
+    const res = await uploadImport(planner, 'observations', fixture('observations-wide.csv'), 'panel.csv', { deliveryPoint: 'Larkfield terminal' });
     expect(res.status).toBe(201);
     expect(res.body).toMatchObject({ errorCount: 0, deliveryPoint: 'Larkfield terminal', toWrite: { prices: 2, records: 6, factors: 3 }, existing: { prices: 0, records: 6, factors: 3 } });
     expect(res.body.notes[0]).toBe('Prices are stored as co-op prices at Larkfield terminal, dated the first day of their season, in EUR.');
@@ -216,7 +199,7 @@ describe('POST /api/imports (upload and preview)', () => {
 
   it('validating again with a mapping chosen by the planner clears the mapping errors', async () => {
     const csv = 'Commodity,Crop year,Quote,Point,Day\nwheat,2022/23,251,Millbrook store,2022-11-02\n';
-    const res = await upload(planner, 'prices', csv, 'odd-headers.csv');
+    const res = await uploadImport(planner, 'prices', csv, 'odd-headers.csv');
     expect(res.body.errors).toEqual([
       { row: 1, column: null, message: 'no column is mapped to price (Price)' },
       { row: 1, column: null, message: 'no column is mapped to observed_on (Observed on)' },
@@ -244,14 +227,14 @@ describe('POST /api/imports (upload and preview)', () => {
 
 describe('limits and refusals', () => {
   it('a file over 20 MB answers 413', async () => {
-    const res = await upload(planner, 'prices', Buffer.alloc(20 * 1024 * 1024 + 1, 'a'), 'huge.csv');
+    const res = await uploadImport(planner, 'prices', Buffer.alloc(20 * 1024 * 1024 + 1, 'a'), 'huge.csv');
     expect(res.status).toBe(413);
     expect(res.body.error).toEqual({ code: 'too_large', message: 'The file is larger than 20 MB; split it into smaller files' });
   });
 
   it('a file of more than 200,000 rows answers 422 and is not stored', async () => {
     const before = (await tableCounts()).imports;
-    const res = await upload(planner, 'prices', `item\n${'wheat\n'.repeat(200_001)}`, 'long.csv');
+    const res = await uploadImport(planner, 'prices', `item\n${'wheat\n'.repeat(200_001)}`, 'long.csv');
     expect(res.status).toBe(422);
     expect(res.body.error.message).toBe('The file has more than 200,000 data rows; split it into files of at most 200,000 rows');
     expect((await tableCounts()).imports).toBe(before);
@@ -261,7 +244,7 @@ describe('limits and refusals', () => {
     const wb = new ExcelJS.Workbook();
     wb.addWorksheet('Prices').addRow(['item', 'price']);
     const bomb = replaceParts(Buffer.from(await wb.xlsx.writeBuffer()), { 'xl/worksheets/sheet1.xml': inflatingSheet(40 * 1024 * 1024) });
-    const res = await upload(planner, 'prices', bomb, 'prices.xlsx');
+    const res = await uploadImport(planner, 'prices', bomb, 'prices.xlsx');
     expect(res.status).toBe(422);
     expect(res.body.error.message).toMatch(/^The workbook expands \d+ times \(\d+ KB to 40 MB\); more than 100 times is refused as a likely zip bomb$/);
   });
@@ -270,12 +253,12 @@ describe('limits and refusals', () => {
     const noFile = await planner.post('/api/imports').field('kind', 'prices');
     expect(noFile.status).toBe(400);
     expect(noFile.body.error.details).toEqual([{ path: 'body.file', message: 'Send the file in the form field "file"' }]);
-    const kind = await upload(planner, 'weather', 'a\n1\n', 'x.csv');
+    const kind = await uploadImport(planner, 'weather', 'a\n1\n', 'x.csv');
     expect(kind.status).toBe(400);
     expect(kind.body.error.details[0].path).toBe('body.kind');
-    const mapping = await upload(planner, 'prices', 'a\n1\n', 'x.csv', { mapping: '{price:' });
+    const mapping = await uploadImport(planner, 'prices', 'a\n1\n', 'x.csv', { mapping: '{price:' });
     expect(mapping.body.error.details).toEqual([{ path: 'body.mapping', message: 'The mapping is not valid JSON' }]);
-    const dp = await upload(planner, 'observations', fixture('observations-wide.csv'), 'x.csv', { deliveryPoint: 'Nowhere' });
+    const dp = await uploadImport(planner, 'observations', fixture('observations-wide.csv'), 'x.csv', { deliveryPoint: 'Nowhere' });
     expect(dp.status).toBe(400);
     expect(dp.body.error.details[0]).toMatchObject({ path: 'body.deliveryPoint' });
   });
@@ -283,7 +266,7 @@ describe('limits and refusals', () => {
   it('only planners upload and commit; an unknown import is 404', async () => {
     for (const email of ['member@example.org', 'treasurer@example.org', 'admin@example.org']) {
       const a = await signedIn(t.app, email);
-      expect((await upload(a, 'prices', fixture('messy-prices-fixed.csv'), 'x.csv')).status).toBe(403);
+      expect((await uploadImport(a, 'prices', fixture('messy-prices-fixed.csv'), 'x.csv')).status).toBe(403);
       expect((await a.post('/api/imports/1/commit').send({ onExisting: 'skip' })).status).toBe(403);
     }
     expect((await planner.get('/api/imports/99999')).status).toBe(404);
@@ -303,7 +286,7 @@ describe('a failed commit', () => {
     lines[3001] = lines[3001].replace(/,[\d.]+,EUR,/, ',999.999,EUR,');
     await t.database.db.execute(sql`alter table price_observations add constraint test_refuse_999 check (price <> 999.999)`);
     try {
-      const res = await upload(planner, 'prices', lines.join('\n'), 'daily-bids.csv');
+      const res = await uploadImport(planner, 'prices', lines.join('\n'), 'daily-bids.csv');
       expect(res.body).toMatchObject({ errorCount: 0, totalRows: 4500, existingRows: 320 });
       const before = await tableCounts();
       const [{ total: priceSum }] = await rows(sql`select sum(price)::text as total from price_observations`);
@@ -334,14 +317,14 @@ describe('exports re-import cleanly', () => {
       [Buffer.from(csv), 'prices.csv'],
       [await toXlsx(prices, PRICE_COLUMNS, 'Prices'), 'prices.xlsx'],
     ] as const) {
-      const res = await upload(planner, 'prices', file, name);
+      const res = await uploadImport(planner, 'prices', file, name);
       expect(res.body).toMatchObject({ errorCount: 0, totalRows: prices.length, existingRows: prices.length, ignoredColumns: [] });
       const done = await commit(res.body.id, 'update');
       expect(done.body.counts).toEqual({ inserted: 0, updated: prices.length, skipped: 0 });
       expect(await priceExportRows(t.database.db)).toEqual(prices);
     }
     const records = await recordExportRows(t.database.db, { role: 'planner', farmId: null });
-    const res = await upload(planner, 'records', toCsv(records, RECORD_COLUMNS), 'records.csv');
+    const res = await uploadImport(planner, 'records', toCsv(records, RECORD_COLUMNS), 'records.csv');
     expect(res.body).toMatchObject({ errorCount: 0, toWrite: { records: 2800, factors: 400 }, existingRows: 3200 });
     // Quantities earlier tests stored far from their farm's history per hectare come back as
     // warnings (accepted here: the file is the database's own content).
@@ -371,7 +354,7 @@ describe('property: malformed CSV through the API', () => {
     let staged = 0;
     await fc.assert(
       fc.asyncProperty(text, fc.constantFrom('prices', 'records', 'observations'), async (body, kind) => {
-        const res = await upload(planner, kind, body, 'random.csv');
+        const res = await uploadImport(planner, kind, body, 'random.csv');
         expect(res.status).toBeLessThan(500);
         if (res.status !== 201) {
           expect(res.status).toBeGreaterThanOrEqual(400);
