@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, inject, input, type Signal } from '@angular/core';
 import { MatDialog } from '@angular/material/dialog';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { MatTab, MatTabGroup } from '@angular/material/tabs';
@@ -20,11 +20,33 @@ import { RefTable } from './ref-table';
 import { SeasonDialog, type SeasonDialogData } from './season-dialog';
 import { HistoryLink } from '../../shared/history-link';
 
-const TABS = ['items', 'seasons', 'points', 'indexes'] as const;
-type Tab = (typeof TABS)[number];
-
 const pct = (v: unknown) => (typeof v === 'number' ? `${v.toLocaleString('en-GB', { maximumFractionDigits: 1 })} %` : '');
 const categoryLabel = new Map(CATEGORIES.map((c) => [c.value, c.label]));
+
+/** One tab: a kind of reference data, its table, and what Add, Edit and Delete open. */
+interface RefKind<T extends { id: number }> {
+  /** Its `?tab=` value. */
+  tab: string;
+  /** The tab's label. */
+  title: string;
+  /** Its entity in the audit log (the history link). */
+  entity: string;
+  rows: Signal<T[]>;
+  columns: ColDef<T>[];
+  /** For the table's buttons and messages (see RefTable). */
+  label: string;
+  plural: string;
+  caption: string;
+  /** The line above the table. */
+  about: string;
+  resource: { isLoading(): boolean; error(): unknown };
+  add(): void;
+  edit(row: T): void;
+  remove(row: T): void;
+}
+
+/** The kinds differ in their row type; one list holds them (each kind's table only hands back its own rows). */
+const refKind = <T extends { id: number }>(kind: RefKind<T>) => kind as unknown as RefKind<{ id: number }>;
 
 /** A row of the price-index table: the index and the span of seasons it covers. */
 interface IndexRow extends PriceIndex {
@@ -51,11 +73,11 @@ export class ReferencePage {
   readonly #snackBar = inject(MatSnackBar);
   protected readonly ref = inject(ReferenceStore);
 
-  /** `?tab=items|seasons|points|indexes` (bound by the router). */
+  /** `?tab=items|seasons|points|indexes` (bound by the router; see `kinds`). */
   readonly tab = input<string | undefined>(undefined);
-  protected readonly tabIndex = computed(() => Math.max(0, TABS.indexOf((this.tab() ?? 'items') as Tab)));
+  protected readonly tabIndex = computed(() => Math.max(0, this.kinds.findIndex((k) => k.tab === (this.tab() ?? 'items'))));
   protected readonly canEdit = computed(() => roleAllows(this.#auth.role(), ACCESS.dataEdit));
-  protected readonly auditEntity = computed(() => ['item', 'season', 'delivery-point', 'price-index'][this.tabIndex()]);
+  protected readonly auditEntity = computed(() => this.kinds[this.tabIndex()].entity);
 
   protected readonly itemColumns: ColDef<Item>[] = [
     { field: 'code', headerName: 'Code', width: 130, sort: 'asc' },
@@ -95,10 +117,76 @@ export class ReferencePage {
       covers: ix.values.length ? `${ix.values.length}: ${ix.values[0].season} – ${ix.values[ix.values.length - 1].season}` : 'none',
     })),
   );
+
+  /** The tabs, in order. */
+  protected readonly kinds: readonly RefKind<{ id: number }>[] = [
+    refKind<Item>({
+      tab: 'items',
+      title: 'Items',
+      entity: 'item',
+      rows: this.ref.items,
+      columns: this.itemColumns,
+      label: 'an item',
+      plural: 'items',
+      caption: 'Items',
+      about:
+        'Outputs the members sell and inputs they buy, each with the unit its quantities and prices use. Fertilisers carry their N–P2O5–K2O analysis (% by weight).',
+      resource: this.ref.itemsResource,
+      add: () => this.editItem(null),
+      edit: (item) => this.editItem(item),
+      remove: (item) => this.removeItem(item),
+    }),
+    refKind<Season>({
+      tab: 'seasons',
+      title: 'Seasons',
+      entity: 'season',
+      rows: this.ref.seasons,
+      columns: this.seasonColumns,
+      label: 'a season',
+      plural: 'seasons',
+      caption: 'Seasons',
+      about: 'Crop or marketing years of twelve months from their first month. Prices and farm records belong to a season.',
+      resource: this.ref.seasonsResource,
+      add: () => this.editSeason(null),
+      edit: (season) => this.editSeason(season),
+      remove: (season) => this.removeSeason(season),
+    }),
+    refKind<DeliveryPoint>({
+      tab: 'points',
+      title: 'Delivery points',
+      entity: 'delivery-point',
+      rows: this.ref.deliveryPoints,
+      columns: this.pointColumns,
+      label: 'a point',
+      plural: 'delivery points',
+      caption: 'Delivery points and regions',
+      about: 'Where prices are quoted: elevators, stores, the input depot, or whole price regions.',
+      resource: this.ref.deliveryPointsResource,
+      add: () => this.editPoint(null),
+      edit: (point) => this.editPoint(point),
+      remove: (point) => this.removePoint(point),
+    }),
+    refKind<IndexRow>({
+      tab: 'indexes',
+      title: 'Price indexes',
+      entity: 'price-index',
+      rows: this.indexRows,
+      columns: this.indexColumns,
+      label: 'an index',
+      plural: 'price indexes',
+      caption: 'Price indexes',
+      about:
+        'Indexes to deflate prices by (price ÷ index × 100), e.g. a consumer price index. Upload the official series with its source; a season without a value is left as a gap when deflating.',
+      resource: this.ref.priceIndexesResource,
+      add: () => this.addIndex(),
+      edit: (ix) => this.editIndex(ix),
+      remove: (ix) => this.removeIndex(ix),
+    }),
+  ];
   protected readonly problemOf = (error: unknown) => (error ? errorMessage(error) : null);
 
   protected selectTab(index: number): void {
-    void this.#router.navigate([], { queryParams: { tab: TABS[index] }, replaceUrl: true });
+    void this.#router.navigate([], { queryParams: { tab: this.kinds[index].tab }, replaceUrl: true });
   }
 
   // --- items ---
