@@ -8,6 +8,7 @@ import { CONTRACT_STATUSES, CONTRACT_STATUS_LABELS, contractSchema, type Contrac
 import { TEXT_MAX } from '../../../shared/field-limits';
 import { formToSave, saveAndClose } from '../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../shared/form-dialog';
+import { ItemField, newestSeasonId, SeasonField } from '../shared/lookup-fields';
 import { zodValidator } from '../shared/zod-validator';
 import { ContractsApi } from './contracts-api';
 
@@ -25,7 +26,7 @@ export interface ContractDialogData {
 /** Records or changes one delivery contract. Closes with the stored row. */
 @Component({
   selector: 'np-contract-dialog',
-  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
+  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption, SeasonField, ItemField],
   templateUrl: './contract-dialog.html',
   styleUrl: '../shared/form-dialog.scss',
   host: { style: '--np-dialog-form-width: 560px' },
@@ -36,7 +37,6 @@ export class ContractDialog {
   readonly #ref = inject<MatDialogRef<ContractDialog, ContractRow>>(MatDialogRef);
   protected readonly data = inject<ContractDialogData>(MAT_DIALOG_DATA);
   protected readonly outputs = this.data.items.filter((i) => i.role === 'output');
-  protected readonly seasonsNewestFirst = [...this.data.seasons].reverse();
   protected readonly textMax = TEXT_MAX;
   protected readonly statuses = CONTRACT_STATUSES.map((s) => ({ value: s, label: CONTRACT_STATUS_LABELS[s] }));
   readonly #c = this.data.contract;
@@ -45,7 +45,7 @@ export class ContractDialog {
   protected readonly form = inject(NonNullableFormBuilder).group({
     reference: [this.#c?.reference ?? '', [Validators.required, zodValidator(this.#shape.reference)]],
     farmId: [this.#c?.farmId ?? (null as number | null), Validators.required],
-    seasonId: [this.#c?.seasonId ?? this.data.seasonId ?? this.seasonsNewestFirst[0]?.id ?? (null as number | null), Validators.required],
+    seasonId: [this.#c?.seasonId ?? this.data.seasonId ?? newestSeasonId(this.data.seasons), Validators.required],
     itemId: [this.#c?.itemId ?? this.outputs[0]?.id ?? (null as number | null), Validators.required],
     quantity: [this.#c?.quantity ?? (null as number | null), [Validators.required, zodValidator(this.#shape.quantity)]],
     price: [this.#c?.price ?? (null as number | null), [Validators.required, zodValidator(this.#shape.price)]],

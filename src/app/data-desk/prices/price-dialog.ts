@@ -11,6 +11,7 @@ import { priceSchema } from '../../../../shared/data-schemas';
 import { TEXT_MAX } from '../../../../shared/field-limits';
 import { saveAndClose } from '../../shared/dialog-save';
 import { FORM_DIALOG_IMPORTS } from '../../shared/form-dialog';
+import { ItemField, newestSeasonId, SeasonField } from '../../shared/lookup-fields';
 import { zodValidator } from '../../shared/zod-validator';
 import { DataDeskApi } from '../data-desk-api';
 import type { Lookups } from '../reference-store';
@@ -43,7 +44,7 @@ export function priceTextValidator(mark: () => DecimalMark): ValidatorFn {
 /** Adds one price observation. Closes with the stored row. */
 @Component({
   selector: 'np-price-dialog',
-  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption],
+  imports: [FORM_DIALOG_IMPORTS, MatSelect, MatOption, SeasonField, ItemField],
   templateUrl: './price-dialog.html',
   styleUrl: '../../shared/form-dialog.scss',
   host: { style: '--np-dialog-form-width: 560px' },
@@ -55,11 +56,10 @@ export class PriceDialog {
   protected readonly data = inject<PriceDialogData>(MAT_DIALOG_DATA);
   protected readonly lookups = this.data.lookups;
   protected readonly textMax = TEXT_MAX;
-  protected readonly seasonsNewestFirst = [...this.lookups.seasons].reverse();
 
   protected readonly form = inject(NonNullableFormBuilder).group({
     itemId: [null as number | null, Validators.required],
-    seasonId: [this.seasonsNewestFirst[0]?.id ?? (null as number | null), Validators.required],
+    seasonId: [newestSeasonId(this.lookups.seasons), Validators.required],
     deliveryPointId: [null as number | null, Validators.required],
     price: ['', [Validators.required, priceTextValidator(() => this.data.decimalMark)]],
     currency: [this.data.currency, [Validators.required, zodValidator(priceSchema.shape.currency)]],

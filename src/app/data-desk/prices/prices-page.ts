@@ -49,6 +49,7 @@ import { savePriceEdit } from './price-save';
 import { parseNumber, type DecimalMark } from '../../../../shared/cell-parsers';
 import { HistoryLink } from '../../shared/history-link';
 import { LoadProblem } from '../../shared/load-problem';
+import { seasonsNewestFirst } from '../../shared/lookup-fields';
 
 /** A number formatted with a decimal point and comma groups (1,234.50), written in the co-op's convention. */
 function inMark(text: string, mark: DecimalMark): string {
@@ -198,7 +199,7 @@ export class PricesPage {
         sort: 'desc',
         valueFormatter: (p: ValueFormatterParams<PriceRow>) => seasonLabel(p.value),
         cellEditor: 'agSelectCellEditor',
-        cellEditorParams: { values: [...ref.seasons].reverse().map((s) => s.id), ...validate('seasonId') },
+        cellEditorParams: { values: seasonsNewestFirst(ref.seasons).map((s) => s.id), ...validate('seasonId') },
       },
       {
         field: 'deliveryPointId',
