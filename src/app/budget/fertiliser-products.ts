@@ -2,9 +2,7 @@ import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { MatAnchor, MatButton } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
-import { MatFormField, MatLabel, MatPrefix } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
-import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { RouterLink } from '@angular/router';
@@ -23,6 +21,7 @@ import { BudgetUnitsStore, pricePerTToShown, productToShown, unitLabels } from '
 import { ProductDialog, type ProductDialogData } from './product-dialog';
 import { UnitSwitch } from './unit-switch';
 import { LoadProblem } from '../shared/load-problem';
+import { GridSearch } from '../shared/grid-search';
 
 const FORM_LABEL = { solid: 'Solid', liquid: 'Liquid', gas: 'Gas (pressurised)' } as const;
 
@@ -48,7 +47,7 @@ export function blendReason(p: FertiliserProduct): string {
 /** `/budget/products`: the fertiliser products budgets plan with. Treasurers keep the list; others read it. */
 @Component({
   selector: 'np-fertiliser-products',
-  imports: [RouterLink, AgGridAngular, MatAnchor, MatButton, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatProgressBar, CautionNote, UnitSwitch, LoadProblem],
+  imports: [RouterLink, AgGridAngular, MatAnchor, MatButton, GridSearch, MatIcon, MatProgressBar, CautionNote, UnitSwitch, LoadProblem],
   templateUrl: './fertiliser-products.html',
   styleUrl: './fertiliser-products.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

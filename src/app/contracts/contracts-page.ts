@@ -3,9 +3,8 @@ import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, linkedSignal, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
-import { MatFormField, MatLabel, MatPrefix } from '@angular/material/form-field';
+import { MatFormField, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
-import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
@@ -24,6 +23,7 @@ import { ContractDialog, type ContractDialogData } from './contract-dialog';
 import { deliveryWindow } from './contract-format';
 import { HistoryLink } from '../shared/history-link';
 import { LoadProblem } from '../shared/load-problem';
+import { GridSearch } from '../shared/grid-search';
 
 const qty = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 1 });
 const money = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 });
@@ -31,7 +31,7 @@ const money = new Intl.NumberFormat('en-GB', { minimumFractionDigits: 2, maximum
 /** `/contracts`: the members' forward delivery contracts of a season (planners and administrators record and change them). */
 @Component({
   selector: 'np-contracts-page',
-  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatLabel, MatPrefix, MatIcon, MatInput, MatSelect, MatOption, MatProgressBar, HistoryLink, LoadProblem],
+  imports: [DecimalPipe, RouterLink, AgGridAngular, MatButton, MatFormField, MatLabel, MatIcon, MatSelect, MatOption, MatProgressBar, HistoryLink, LoadProblem, GridSearch],
   templateUrl: './contracts-page.html',
   styleUrl: './contracts-page.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

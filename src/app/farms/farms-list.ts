@@ -3,9 +3,7 @@ import { httpResource } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { MatButton } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
-import { MatFormField, MatLabel, MatPrefix } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
-import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatSnackBar } from '@angular/material/snack-bar';
 import { Router } from '@angular/router';
@@ -19,13 +17,14 @@ import { AgGridAngular } from '../shared/grid';
 import { openFarmDialog } from './farm-dialog';
 import { HistoryLink } from '../shared/history-link';
 import { LoadProblem } from '../shared/load-problem';
+import { GridSearch } from '../shared/grid-search';
 
 const landFormat = new Intl.NumberFormat(undefined, { minimumFractionDigits: 1, maximumFractionDigits: 1 });
 
 /** `/farms`: every farm of the co-op; a row opens the farm's records. Planners add and edit farms. */
 @Component({
   selector: 'np-farms-list',
-  imports: [DecimalPipe, AgGridAngular, MatFormField, MatLabel, MatPrefix, MatInput, MatIcon, MatButton, MatProgressBar, HistoryLink, LoadProblem],
+  imports: [DecimalPipe, AgGridAngular, GridSearch, MatIcon, MatButton, MatProgressBar, HistoryLink, LoadProblem],
   templateUrl: './farms-list.html',
   styleUrl: './farms-list.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,

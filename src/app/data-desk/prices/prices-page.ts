@@ -5,9 +5,8 @@ import { MatButton } from '@angular/material/button';
 import { MatButtonToggle, MatButtonToggleGroup } from '@angular/material/button-toggle';
 import { MatCard, MatCardContent } from '@angular/material/card';
 import { MatDialog } from '@angular/material/dialog';
-import { MatFormField, MatHint, MatLabel, MatPrefix } from '@angular/material/form-field';
+import { MatFormField, MatHint, MatLabel } from '@angular/material/form-field';
 import { MatIcon } from '@angular/material/icon';
-import { MatInput } from '@angular/material/input';
 import { MatProgressBar } from '@angular/material/progress-bar';
 import { MatOption, MatSelect } from '@angular/material/select';
 import { MatSnackBar } from '@angular/material/snack-bar';
@@ -49,6 +48,7 @@ import { savePriceEdit } from './price-save';
 import { parseNumber, type DecimalMark } from '../../../../shared/cell-parsers';
 import { HistoryLink } from '../../shared/history-link';
 import { LoadProblem } from '../../shared/load-problem';
+import { GridSearch } from '../../shared/grid-search';
 import { seasonsNewestFirst } from '../../shared/lookup-fields';
 
 /** A number formatted with a decimal point and comma groups (1,234.50), written in the co-op's convention. */
@@ -74,9 +74,7 @@ const MAX_CHART_ITEMS = 8;
     MatFormField,
     MatLabel,
     MatHint,
-    MatPrefix,
     MatIcon,
-    MatInput,
     MatSelect,
     MatOption,
     MatProgressBar,
@@ -84,6 +82,7 @@ const MAX_CHART_ITEMS = 8;
     PriceChart,
     HistoryLink,
     LoadProblem,
+    GridSearch,
   ],
   templateUrl: './prices-page.html',
   styleUrl: './prices-page.scss',
