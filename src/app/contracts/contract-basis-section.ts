@@ -7,8 +7,8 @@ import { MatOption, MatSelect } from '@angular/material/select';
 import type { DemandBand } from '../../../shared/contracted-view';
 import { nutrientAmount } from '../../../shared/contract-words';
 import { CautionNote } from '../shared/caution-note';
-import { JobProgress } from '../shared/job-progress';
 import { ContractEvaluation } from './contract-evaluation';
+import { ContractEvaluationStatus } from './contract-evaluation-status';
 
 const signedPct = (v: number) => `${v > 0 ? '+' : v < 0 ? '−' : ''}${Math.abs(v).toLocaleString('en-GB', { maximumFractionDigits: 1 })} %`;
 
@@ -20,19 +20,17 @@ const signedPct = (v: number) => `${v > 0 ? '+' : v < 0 ? '−' : ''}${Math.abs(
  */
 @Component({
   selector: 'np-contract-basis-section',
-  imports: [MatButton, MatIcon, MatFormField, MatLabel, MatSelect, MatOption, JobProgress, CautionNote],
+  imports: [MatButton, MatIcon, MatFormField, MatLabel, MatSelect, MatOption, ContractEvaluationStatus, CautionNote],
   templateUrl: './contract-basis-section.html',
   styleUrl: './contracted-section.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class ContractBasisSection {
-  readonly #evaluation = new ContractEvaluation();
+  protected readonly evaluation = new ContractEvaluation();
   protected readonly outlooks = httpResource<{ id: number; season: string; title: string }[]>(() => '/api/outlooks');
   protected readonly outlookId = linkedSignal<number | null>(() => (this.outlooks.hasValue() ? (this.outlooks.value()[0]?.id ?? null) : null));
-  protected readonly state = this.#evaluation.state;
-  protected readonly problem = this.#evaluation.problem;
-  protected readonly active = this.#evaluation.active;
-  protected readonly percent = this.#evaluation.percent;
+  protected readonly state = this.evaluation.state;
+  protected readonly active = this.evaluation.active;
 
   protected readonly rows = computed(() => {
     const basis = this.state()?.view?.demandBasis;
@@ -53,12 +51,12 @@ export class ContractBasisSection {
   constructor() {
     effect(() => {
       const id = this.outlookId();
-      untracked(() => void this.#evaluation.load(id));
+      untracked(() => void this.evaluation.load(id));
     });
   }
 
   protected async evaluate(): Promise<void> {
     const id = this.outlookId();
-    if (id !== null) await this.#evaluation.evaluate(id);
+    if (id !== null) await this.evaluation.evaluate(id);
   }
 }

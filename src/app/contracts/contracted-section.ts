@@ -5,8 +5,8 @@ import { MatIcon } from '@angular/material/icon';
 import { RouterLink } from '@angular/router';
 import type { ContractedView } from '../../../shared/contracted-view';
 import { CautionNote } from '../shared/caution-note';
-import { JobProgress } from '../shared/job-progress';
 import { ContractEvaluation } from './contract-evaluation';
+import { ContractEvaluationStatus } from './contract-evaluation-status';
 import { bandText, money, signedMoney, tonnes } from './contract-format';
 import { runBusy } from '../shared/run-busy';
 
@@ -18,7 +18,7 @@ import { runBusy } from '../shared/run-busy';
  */
 @Component({
   selector: 'np-contracted-section',
-  imports: [DecimalPipe, RouterLink, MatButton, MatIcon, JobProgress, CautionNote],
+  imports: [DecimalPipe, RouterLink, MatButton, MatIcon, ContractEvaluationStatus, CautionNote],
   templateUrl: './contracted-section.html',
   styleUrl: './contracted-section.scss',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -28,11 +28,9 @@ export class ContractedSection {
   /** Whether this person may start an evaluation. */
   readonly canRun = input(false);
 
-  readonly #evaluation = new ContractEvaluation();
-  protected readonly state = this.#evaluation.state;
-  protected readonly problem = this.#evaluation.problem;
-  protected readonly active = this.#evaluation.active;
-  protected readonly percent = this.#evaluation.percent;
+  protected readonly evaluation = new ContractEvaluation();
+  protected readonly state = this.evaluation.state;
+  protected readonly active = this.evaluation.active;
   protected readonly starting = signal(false);
 
   protected readonly view = computed<ContractedView | null>(() => this.state()?.view ?? null);
@@ -83,13 +81,13 @@ export class ContractedSection {
   constructor() {
     effect(() => {
       const id = this.outlookId();
-      untracked(() => void this.#evaluation.load(id));
+      untracked(() => void this.evaluation.load(id));
     });
   }
 
   protected async evaluate(): Promise<void> {
-    this.#evaluation.clearProblem();
-    await runBusy(this.starting, () => this.#evaluation.evaluate(this.outlookId()));
+    this.evaluation.clearProblem();
+    await runBusy(this.starting, () => this.evaluation.evaluate(this.outlookId()));
   }
 }
 
