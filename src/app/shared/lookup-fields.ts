@@ -18,7 +18,9 @@ export function newestSeasonId(seasons: readonly Season[]): number | null {
 /**
  * A required season field of a form dialog, the seasons newest first:
  * `<np-season-field [control]="form.controls.seasonId" [seasons]="data.seasons" />`. Its host draws no
- * box, so the field is a cell of the dialog's form grid like its neighbours.
+ * box, so the field is a cell of the dialog's form grid like its neighbours. That is a static host style
+ * rather than a `styles` block: with Angular 21.2, two components of one file with the same inline
+ * style sheet left `ng build` and `ng test` running after they had finished (seen 2026-12-04).
  */
 @Component({
   selector: 'np-season-field',
@@ -34,11 +36,7 @@ export function newestSeasonId(seasons: readonly Season[]): number | null {
       <mat-error><np-field-error [control]="control()" required="Choose the season" /></mat-error>
     </mat-form-field>
   `,
-  styles: `
-    :host {
-      display: contents;
-    }
-  `,
+  host: { style: 'display: contents' },
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class SeasonField {
@@ -66,11 +64,7 @@ export class SeasonField {
       <mat-error><np-field-error [control]="control()" [required]="'Choose the ' + label().toLowerCase()" /></mat-error>
     </mat-form-field>
   `,
-  styles: `
-    :host {
-      display: contents;
-    }
-  `,
+  host: { style: 'display: contents' },
   changeDetection: ChangeDetectionStrategy.OnPush,
 })
 export class ItemField {
